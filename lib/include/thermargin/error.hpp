@@ -1,0 +1,39 @@
+// The one error type for bad input, and the one place that formats it.
+//
+// Three failures are kept apart in thermargin (see DEVELOPERS.md): bad input
+// is rejected before any work with an `input_error`; a numerical outcome
+// (saturation, thermal runaway, a sensor outside its table) is a status field
+// in a result; a bug is an assertion. The command-line program catches
+// `input_error` in main, prints its one line and exits with status 2.
+#pragma once
+
+#include <stdexcept>
+#include <string>
+#include <string_view>
+
+namespace thermargin {
+
+enum class Origin { built_in, file, command_line, catalogue };
+
+// Where a value came from: a file and line, the command line, or a default.
+struct Where {
+  Origin kind = Origin::built_in;
+  std::string file;  // the file for Origin::file and Origin::catalogue
+  int line = 0;      // 1-based line in that file; 0 when unknown
+  std::string key;   // "divider.r_fixed", or "column 2" for a data file
+  std::string origin() const;  // "scenario.ini:12", "command line", "default"
+};
+
+class input_error : public std::runtime_error {
+ public:
+  explicit input_error(const std::string& message) : std::runtime_error(message) {}
+};
+
+// Rejects a value: "divider.r_fixed = -10k (scenario.ini:12): must be > 0".
+[[noreturn]] void reject(const Where& where, std::string_view value, std::string_view accepted);
+
+// Rejects something that is not one value (a missing file, a malformed line):
+// "table.csv:7: expected two numbers, temperature in °C and resistance in Ω".
+[[noreturn]] void reject_at(const std::string& file, int line, std::string_view message);
+
+}  // namespace thermargin

@@ -1,0 +1,43 @@
+// Numbers as hardware people write them: `10k`, `4k7`, `2.2M`, `100n`, `1%`,
+// `25ppm`, `10kohm`, `3.3V`, `1.5mW/K`.
+//
+// SI prefixes follow the SI brochure (BIPM, 9th edition, table 7): p n u/µ m
+// k M G, with `m` milli and `M` mega. The "RKM" form that writes the prefix in
+// place of the decimal point (`4k7` = 4.7 k, `4R7` = 4.7) is the marking code
+// of IEC 60062 (common practice). A unit written after the number must fit
+// the quantity the key expects; a bare number is always in the base unit.
+#pragma once
+
+#include <string>
+#include <string_view>
+
+namespace thermargin {
+
+enum class Quantity {
+  plain,            // a bare number (a count, a probability, a coefficient)
+  ratio,            // a fraction; accepts `%` and `ppm`
+  resistance,       // Ω; accepts `ohm`, `Ω`, `R` as the RKM point
+  voltage,          // V
+  current,          // A
+  dissipation,      // W/K
+  temperature,      // °C; accepts `C`, `°C`, `degC`
+  temperature_difference,  // K; accepts `K`
+  tempco,           // 1/K; accepts `ppm`, `ppm/K`, `%/K`, `/K`
+  lsb,              // ADC counts; accepts `LSB`
+  integer,          // a whole number, no prefix
+};
+
+// The unit a quantity is printed in ("Ω", "V", "ppm/K", ...).
+std::string_view unit_symbol(Quantity q);
+
+// Reads `text` as a value of quantity `q` in its base unit (Ω, V, A, W/K,
+// °C, K, 1/K, fraction, LSB). Throws input_error naming `where` on failure;
+// the message says what would be accepted.
+struct Where;
+double parse_quantity(std::string_view text, Quantity q, const Where& where);
+
+// Formats a value of a quantity for people: engineering prefixes for Ω, V,
+// A and W/K, `%` for ratios, `ppm/K` for tempcos; `digits` significant digits.
+std::string format_quantity(double value, Quantity q, int digits = 4);
+
+}  // namespace thermargin
