@@ -1,0 +1,194 @@
+#include "cli.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <iostream>
+#include <sstream>
+
+#include <unistd.h>
+
+#include "thermargin/caution.hpp"
+#include "thermargin/error.hpp"
+
+namespace thermargin::cli {
+
+namespace {
+
+po::options_description common_options(bool takes_scenario, bool has_report) {
+  po::options_description o("Common options");
+  o.add_options()("help,h", "show this help")("format", po::value<std::string>()->default_value("text"),
+                                                "text | csv | json")(
+      "output,o", po::value<std::string>(), "write to FILE instead of standard output (whole or not at all)");
+  if (has_report) o.add_options()("report", po::value<std::string>(), "also write a self-contained HTML report to FILE");
+  if (takes_scenario) o.add_options()("strict", "exit with status 3 when the verdict fails");
+  return o;
+}
+
+po::options_description key_options() {
+  po::options_description o("Scenario keys (each overrides the file; see `thermargin check` for values and units)");
+  for (const auto& k : scenario_schema()) {
+    if (k.key.ends_with("_dist") || k.key.ends_with("_gap")) continue;
+    o.add_options()(k.key.c_str(), po::value<std::string>(), (k.help + " [" + k.default_value + "]").c_str());
+  }
+  return o;
+}
+
+po::options_description hidden_key_options() {
+  po::options_description o;
+  for (const auto& k : scenario_schema())
+    if (k.key.ends_with("_dist") || k.key.ends_with("_gap")) o.add_options()(k.key.c_str(), po::value<std::string>());
+  return o;
+}
+
+}  // namespace
+
+bool help_requested(const std::string& command, int argc, char** argv, const std::string& usage,
+                    const po::options_description& own, bool takes_scenario) {
+  for (int i = 1; i < argc; ++i) {
+    const std::string a = argv[i];
+    if (a == "--help" || a == "-h") {
+      std::cout << "Usage: thermargin " << command << " " << usage << "\n\n";
+      if (!own.options().empty()) std::cout << own << "\n";
+      std::cout << common_options(takes_scenario, true) << "\n";
+      if (takes_scenario) std::cout << key_options() << "\n";
+      std::cout << caution << "\n";
+      return true;
+    }
+  }
+  return false;
+}
+
+Invocation parse(const std::string& command, int argc, char** argv, const po::options_description& own,
+                 bool takes_scenario, bool has_report) {
+  Invocation inv;
+  inv.command = command;
+  po::options_description all;
+  all.add(common_options(takes_scenario, has_report)).add(own);
+  if (takes_scenario) all.add(key_options()).add(hidden_key_options());
+  po::options_description positional_holder;
+  positional_holder.add_options()("input-file", po::value<std::vector<std::string>>());
+  all.add(positional_holder);
+  po::positional_options_description pos;
+  pos.add("input-file", -1);
+  po::parsed_options parsed(&all);
+  try {
+    parsed = po::command_line_parser(argc, argv).options(all).positional(pos).run();
+    po::store(parsed, inv.vm);
+    po::notify(inv.vm);
+  } catch (const po::error& e) {
+    throw input_error(std::string("command line: ") + e.what() + "; see `thermargin " + command + " --help`");
+  }
+  if (inv.vm.count("input-file")) {
+    const auto& files = inv.vm["input-file"].as<std::vector<std::string>>();
+    if (files.size() > 1) throw input_error("command line: more than one input file given ('" + files[1] + "'); one is accepted");
+    inv.file = files.front();
+  }
+  const std::string fmt = inv.vm["format"].as<std::string>();
+  if (fmt == "text") inv.format = Format::text;
+  else if (fmt == "csv") inv.format = Format::csv;
+  else if (fmt == "json") inv.format = Format::json;
+  else throw input_error("--format = " + fmt + " (command line): must be one of: text | csv | json");
+  if (inv.vm.count("output")) inv.output = inv.vm["output"].as<std::string>();
+  if (inv.vm.count("report")) inv.report = inv.vm["report"].as<std::string>();
+  inv.strict = inv.vm.count("strict") > 0;
+  if (takes_scenario) {
+    if (!inv.file.empty()) inv.scenario.load_file(inv.file);
+    for (const auto& opt : parsed.options) {
+      if (opt.position_key != -1 || opt.value.empty()) continue;
+      if (find_key(opt.string_key))
+        inv.scenario.set(opt.string_key, opt.value.front(), Where{Origin::command_line, "", 0, opt.string_key});
+    }
+  }
+  return inv;
+}
+
+void emit(const Invocation& inv, const std::string& text) {
+  if (inv.output.empty()) {
+    std::cout << text;
+    std::cout.flush();
+    return;
+  }
+  namespace fs = std::filesystem;
+  const fs::path target(inv.output);
+  const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  std::error_code ec;
+  if (!fs::is_directory(dir, ec)) throw input_error("--output = " + inv.output + " (command line): the directory does not exist");
+  if (fs::is_directory(target, ec)) throw input_error("--output = " + inv.output + " (command line): is a directory");
+  const fs::path tmp = dir / ("." + target.filename().string() + ".tmp" + std::to_string(::getpid()));
+  {
+    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
+    if (!out) throw input_error("--output = " + inv.output + " (command line): cannot write in that directory");
+    out << text;
+    out.flush();
+    if (!out) {
+      out.close();
+      fs::remove(tmp, ec);
+      throw input_error("--output = " + inv.output + " (command line): the write failed (disk full?)");
+    }
+  }
+  fs::rename(tmp, target, ec);
+  if (ec) {
+    fs::remove(tmp, ec);
+    throw input_error("--output = " + inv.output + " (command line): cannot replace the file");
+  }
+}
+
+std::string TextTable::render() const {
+  std::vector<std::size_t> width(headers_.size());
+  auto len = [](const std::string& s) {  // display width: count UTF-8 lead bytes
+    std::size_t n = 0;
+    for (unsigned char ch : s) n += (ch & 0xC0) != 0x80;
+    return n;
+  };
+  for (std::size_t i = 0; i < headers_.size(); ++i) width[i] = len(headers_[i]);
+  for (const auto& r : rows_)
+    for (std::size_t i = 0; i < r.size() && i < width.size(); ++i) width[i] = std::max(width[i], len(r[i]));
+  auto numeric = [](const std::string& s) {
+    return !s.empty() && (std::isdigit(static_cast<unsigned char>(s[0])) || s[0] == '-' || s[0] == '+' || s[0] == '.');
+  };
+  std::ostringstream out;
+  auto line = [&](const std::vector<std::string>& r, bool header) {
+    for (std::size_t i = 0; i < width.size(); ++i) {
+      const std::string cell = i < r.size() ? r[i] : "";
+      const std::size_t pad = width[i] - len(cell);
+      const bool right = !header ? numeric(cell) : i > 0;
+      if (i) out << "  ";
+      if (right) out << std::string(pad, ' ') << cell;
+      else out << cell << (i + 1 < width.size() ? std::string(pad, ' ') : "");
+    }
+    out << "\n";
+  };
+  line(headers_, true);
+  std::size_t total = 0;
+  for (auto w : width) total += w + 2;
+  out << std::string(total > 2 ? total - 2 : 0, '-') << "\n";
+  for (const auto& r : rows_) line(r, false);
+  return out.str();
+}
+
+std::string fixed(double v, int decimals) {
+  if (!std::isfinite(v)) return "n/a";
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string s = buf;
+  if (s.starts_with("-") && s.find_first_not_of("-0.") == std::string::npos) s = s.substr(1);  // no "-0.000"
+  return s;
+}
+
+std::string csv_escape(const std::string& cell) {
+  std::string c = cell;
+  const bool number = !c.empty() && (std::isdigit(static_cast<unsigned char>(c[0])) ||
+                                     ((c[0] == '-' || c[0] == '+' || c[0] == '.') && c.size() > 1 &&
+                                      (std::isdigit(static_cast<unsigned char>(c[1])) || c[1] == '.')));
+  if (!c.empty() && !number && std::string("=+-@\t\r").find(c[0]) != std::string::npos) c = "'" + c;
+  if (c.find_first_of(",\"\n\r") != std::string::npos) {
+    std::string q = "\"";
+    for (char ch : c) q += ch == '"' ? std::string("\"\"") : std::string(1, ch);
+    return q + "\"";
+  }
+  return c;
+}
+
+}  // namespace thermargin::cli

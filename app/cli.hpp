@@ -1,0 +1,59 @@
+// The command-line plumbing shared by every command: options, the scenario
+// they resolve, output formats and where output goes. No physics here.
+#pragma once
+
+#include <boost/program_options.hpp>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "thermargin/scenario.hpp"
+
+namespace thermargin::cli {
+
+namespace po = boost::program_options;
+
+enum class Format { text, csv, json };
+
+struct Invocation {
+  std::string command;
+  std::string file;  // the positional input file (scenario, data), may be empty
+  Format format = Format::text;
+  std::string output;  // empty: stdout
+  std::string report;  // --report FILE.html
+  bool strict = false;
+  Scenario scenario;
+  po::variables_map vm;  // the command's own options
+};
+
+// Parses argv for `command`: the scenario file (if the command takes one),
+// every scenario key as --section.key=value, --format, --output, --report,
+// --strict and the command's own options. Throws input_error on bad input.
+Invocation parse(const std::string& command, int argc, char** argv, const po::options_description& own,
+                 bool takes_scenario, bool has_report);
+
+// Prints --help for a command: usage, own options, the common options and
+// the caution. Returns true when help was asked for (and printed).
+bool help_requested(const std::string& command, int argc, char** argv, const std::string& usage,
+                    const po::options_description& own, bool takes_scenario);
+
+// Writes the command's output to --output (atomically) or stdout.
+void emit(const Invocation& inv, const std::string& text);
+
+// An aligned text table: columns right-aligned when numeric.
+class TextTable {
+ public:
+  explicit TextTable(std::vector<std::string> headers) : headers_(std::move(headers)) {}
+  void add(std::vector<std::string> row) { rows_.push_back(std::move(row)); }
+  std::string render() const;
+
+ private:
+  std::vector<std::string> headers_;
+  std::vector<std::vector<std::string>> rows_;
+};
+
+std::string fixed(double v, int decimals);  // "-0.123"; never "nan"
+std::string csv_escape(const std::string& cell);
+
+}  // namespace thermargin::cli

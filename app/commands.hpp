@@ -1,0 +1,9 @@
+// The commands of the thermargin program; each returns its exit status.
+#pragma once
+
+namespace thermargin::cli {
+
+int run_check(int argc, char** argv);
+int run_budget(int argc, char** argv);
+
+}  // namespace thermargin::cli

@@ -1,0 +1,53 @@
+// thermargin: how accurate a resistive temperature sensor really is once it
+// sits in a divider read by an ADC. This file only dispatches commands and
+// turns failures into exit statuses: 2 bad input, 1 internal error.
+#include <cstring>
+#include <exception>
+#include <iostream>
+#include <string>
+
+#include "commands.hpp"
+#include "thermargin/caution.hpp"
+#include "thermargin/error.hpp"
+
+namespace {
+
+void usage(std::ostream& out) {
+  out << "thermargin " << thermargin::version
+      << " - accuracy of a thermistor or RTD read through a divider and an ADC\n\n"
+         "Usage: thermargin COMMAND [FILE] [options]\n\n"
+         "Commands:\n"
+         "  budget [FILE]   error bands across the range (nominal, worst case, linear budget, Monte Carlo),\n"
+         "                  the contributors and the verdict against the requirement\n"
+         "  check [FILE]    read and validate a scenario; print every resolved value, its unit and origin\n\n"
+         "With no FILE the built-in default design is analysed (scenarios/default.ini holds the same values).\n"
+         "Every scenario key is also an option: --divider.r_fixed=4k7 overrides the file.\n"
+         "`thermargin COMMAND --help` lists a command's options.\n\n"
+      << thermargin::caution << "\n";
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  if (argc < 2 || !std::strcmp(argv[1], "--help") || !std::strcmp(argv[1], "-h") || !std::strcmp(argv[1], "help")) {
+    usage(std::cout);
+    return argc < 2 ? 2 : 0;
+  }
+  if (!std::strcmp(argv[1], "--version")) {
+    std::cout << "thermargin " << thermargin::version << "\n";
+    return 0;
+  }
+  const std::string command = argv[1];
+  try {
+    if (command == "budget") return thermargin::cli::run_budget(argc - 1, argv + 1);
+    if (command == "check") return thermargin::cli::run_check(argc - 1, argv + 1);
+    std::cerr << "thermargin: unknown command '" << command << "'; accepted: budget, check (see thermargin --help)\n";
+    return 2;
+  } catch (const thermargin::input_error& e) {
+    std::cerr << "thermargin: " << e.what() << "\n";
+    return 2;
+  } catch (const std::exception& e) {
+    std::cerr << "thermargin: internal error: " << e.what() << "\n";
+    return 1;
+  }
+}

@@ -1,0 +1,94 @@
+// The whole measurement chain of one unit at one true temperature:
+// sensor → self-heating → divider → supply → ADC → firmware → calibration
+// (model.md §1–§6). Every engine evaluates this; the Monte Carlo kernel
+// runs the same steps on blocks of units (monte_carlo.hpp) and is tested
+// against it.
+//
+// A unit is an array of deviations (sources.hpp); a reading is either
+// continuous (the quantiser replaced by the identity plus a shift in LSB:
+// the nominal, worst-case and linear engines) or sampled (noise, quantiser,
+// clamping, averaging: Monte Carlo). Physical limits are a Status, never a
+// number: saturation, thermal runaway, a sensor outside its table, a
+// conversion without a solution.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string_view>
+
+#include "thermargin/adc.hpp"
+#include "thermargin/calibration.hpp"
+#include "thermargin/design.hpp"
+#include "thermargin/firmware.hpp"
+
+namespace thermargin {
+
+enum class Status : std::uint8_t { ok, saturated, runaway, out_of_table, no_solution, calibration_failed };
+std::string_view to_string(Status s);
+std::string_view describe(Status s);  // one phrase for a reviewer
+
+struct FrontEnd {
+  Status status = Status::ok;
+  double t_element = 0.0;  // °C
+  double rise = 0.0;       // K, self-heating
+  double v_node = 0.0;     // V at the ADC pin
+  double x_ideal = 0.0;    // LSB, V/V_ref·2^N
+  double x_static = 0.0;   // LSB, after gain, offset and INL
+};
+
+struct Evaluation {
+  Status status = Status::ok;
+  double t_true = 0.0;      // °C
+  FrontEnd front;
+  double code = 0.0;        // LSB, the reading
+  double t_reported = 0.0;  // °C
+  double error = 0.0;       // K, reported − true
+};
+
+// Shifts added to continuous readings, in LSB: at the measured temperature
+// and at the (up to two) calibration points.
+struct ReadingShift {
+  double at_t = 0.0;
+  double at_cal[2] = {0.0, 0.0};
+};
+
+class Chain {
+ public:
+  explicit Chain(const Design& d);
+
+  const Design& design() const { return *d_; }
+  const Firmware& firmware() const { return firmware_; }
+  double max_code() const { return max_code_; }
+
+  // Sensor, self-heating, divider, supply and the ADC's static transfer.
+  FrontEnd front_end(const Deviations& dev, double t_celsius) const;
+
+  // Firmware steps 1–4 for a reading: temperature before calibration.
+  std::optional<double> convert(double code, bool round_output) const;
+
+  // The calibration a unit receives; nullopt when a calibration reading fails.
+  std::optional<CalibrationData> calibrate(const Deviations& dev, const ReadingShift& shift, bool round_output) const;
+
+  // One reading: continuous, the quantiser the identity plus shift.at_t;
+  // `cal` is the unit's calibration (needed when calibration is on).
+  Evaluation evaluate(const Deviations& dev, double t_celsius, const ReadingShift& shift,
+                      const CalibrationData* cal, bool round_output) const;
+
+  // Convenience: calibrates the unit first with the same shifts.
+  Evaluation evaluate(const Deviations& dev, double t_celsius, const ReadingShift& shift = {},
+                      bool round_output = false) const;
+
+  // From a reading (however obtained) to the evaluation's tail.
+  Evaluation finish(const FrontEnd& fe, double t_celsius, const Reading& r, const CalibrationData* cal,
+                    bool round_output) const;
+
+ private:
+  const Design* d_;
+  Firmware firmware_;
+  double span_ = 0.0, max_code_ = 0.0;
+};
+
+// The nominal unit: every deviation zero.
+inline Deviations nominal_deviations() { return Deviations{}; }
+
+}  // namespace thermargin

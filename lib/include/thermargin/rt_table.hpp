@@ -1,0 +1,47 @@
+// A sensor known only by its R–T table (a datasheet's column of resistances).
+//
+// ln R is interpolated against 1/T with a monotone piecewise cubic Hermite
+// interpolant (PCHIP; Fritsch & Carlson, SIAM J. Numer. Anal. 17, 1980) from
+// Boost.Math, which keeps the curve monotone between points as the physics
+// requires. Nothing is extrapolated: outside the table is an out-of-range
+// result. The inverse solves the same interpolant with TOMS 748, so a round
+// trip R → T → R is exact to the solver's tolerance.
+#pragma once
+
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "thermargin/rt_data.hpp"
+
+namespace thermargin {
+
+class RtTable {
+ public:
+  // At least 4 points, strictly monotonic (checked; input_error otherwise).
+  explicit RtTable(const RtData& data);
+
+  double t_min_kelvin() const { return t_lo_; }
+  double t_max_kelvin() const { return t_hi_; }
+  bool covers(double t_kelvin) const { return t_kelvin >= t_lo_ && t_kelvin <= t_hi_; }
+
+  // ln R at t (inside the table; outside, nullopt).
+  std::optional<double> ln_resistance(double t_kelvin) const;
+  std::optional<double> ln_resistance_slope(double t_kelvin) const;  // d ln R / dT
+  // The temperature (K) with resistance exp(ln_r), or nullopt outside the table.
+  std::optional<double> temperature_kelvin(double ln_r) const;
+
+  const std::vector<double>& t_kelvin_points() const { return t_; }
+  const std::vector<double>& ln_r_points() const { return lnr_; }
+  const std::string& source() const { return source_; }
+
+ private:
+  struct Interpolant;
+  std::shared_ptr<const Interpolant> curve_;
+  std::vector<double> t_, lnr_;  // ascending temperature
+  double t_lo_ = 0, t_hi_ = 0, lnr_at_lo_ = 0, lnr_at_hi_ = 0;
+  std::string source_;
+};
+
+}  // namespace thermargin

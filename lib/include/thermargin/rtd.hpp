@@ -1,0 +1,33 @@
+// Platinum resistance thermometers: the Callendar–Van Dusen equation and the
+// tolerance classes of IEC 60751 (2008 edition).
+//
+// R(t) = R0·[1 + A·t + B·t² + C·(t − 100)·t³], the C term only below 0 °C,
+// with A = 3.9083e-3 /°C, B = −5.775e-7 /°C², C = −4.183e-12 /°C⁴ as the
+// standard's defaults. Tolerance classes bound the temperature deviation:
+// AA ±(0.10 + 0.0017|t|), A ±(0.15 + 0.002|t|), B ±(0.30 + 0.005|t|),
+// C ±(0.6 + 0.01|t|) °C (class C from memory).
+#pragma once
+
+#include <string_view>
+
+namespace thermargin {
+
+struct CallendarVanDusen {
+  double r0 = 100.0;      // Ω at 0 °C
+  double a = 3.9083e-3;   // 1/°C
+  double b = -5.775e-7;   // 1/°C²
+  double c = -4.183e-12;  // 1/°C⁴, below 0 °C only
+};
+
+enum class RtdClass { AA, A, B, C };
+
+double resistance(const CallendarVanDusen& cvd, double t_celsius);
+double resistance_slope(const CallendarVanDusen& cvd, double t_celsius);  // Ω/°C
+// Inverse: closed form above 0 °C, Newton from it below. Returns the
+// temperature in °C; resistances below the curve's range give -273.15.
+double temperature_celsius(const CallendarVanDusen& cvd, double r_ohm);
+
+// The class's ± temperature bound at t (°C).
+double class_bound(RtdClass cls, double t_celsius);
+
+}  // namespace thermargin

@@ -1,0 +1,67 @@
+// Scenario files and overrides: the one schema behind the INI files, the
+// `--section.key=value` options and grade catalogues (interface.md).
+//
+// A Scenario is the resolved text of every key with where it came from
+// (built-in default, file and line, command line, catalogue). Files are INI,
+// read with Boost.Program_options' config-file parser; a line scan beside it
+// remembers each key's line so that every message names file, line and key.
+// build_design() turns the text into a validated Design, rejecting bad
+// values and bad combinations before any work is done.
+#pragma once
+
+#include <map>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "thermargin/design.hpp"
+#include "thermargin/error.hpp"
+#include "thermargin/number.hpp"
+
+namespace thermargin {
+
+struct KeySpec {
+  std::string key;            // "divider.r_fixed"
+  Quantity quantity;          // how a number is read (plain for words)
+  std::string default_value;  // the built-in default design, as text
+  std::string help;           // one line: what it is, unit, accepted words
+};
+
+// Every key a scenario may set, in section order, including the per-input
+// Monte Carlo overrides `<key>_dist` and `<key>_gap`.
+const std::vector<KeySpec>& scenario_schema();
+const KeySpec* find_key(std::string_view key);
+
+struct Setting {
+  std::string value;
+  Where where;
+};
+
+class Scenario {
+ public:
+  // The built-in default design.
+  Scenario();
+
+  // Reads an INI file over the current values (unknown keys, sections and
+  // malformed lines are refused with file and line).
+  void load_file(const std::string& path);
+  // Sets one key (command line or catalogue); unknown keys are refused.
+  void set(const std::string& key, const std::string& value, const Where& where);
+
+  const Setting& get(const std::string& key) const;
+  const std::map<std::string, Setting>& values() const { return values_; }
+  const std::string& file() const { return file_; }
+
+ private:
+  std::map<std::string, Setting> values_;
+  std::string file_;
+};
+
+// Validates every value and combination and builds the design.
+Design build_design(const Scenario& s);
+
+// The scenario as INI text (every key, its resolved value), e.g. to save the
+// built-in default design.
+std::string to_ini(const Scenario& s, bool with_help);
+
+}  // namespace thermargin

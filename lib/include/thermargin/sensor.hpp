@@ -1,0 +1,40 @@
+// The sensing element of one unit: its nominal curve and its unit spread.
+//
+// NTC spread (model.md §1): ln R_unit(T) = ln R_nom(T0) + ln(1 + δR)
+// + (1 + δβ)·(ln R_nom(T) − ln R_nom(T0)); exact for the beta model,
+// the same stretch for Steinhart–Hart and tables. RTD spread: the class
+// bound of IEC 60751 times a per-unit factor k ∈ [−1, 1],
+// R_unit(t) = R_nom(t + k·bound(t)).
+#pragma once
+
+#include <optional>
+
+#include "thermargin/design.hpp"
+
+namespace thermargin {
+
+// ln R (Ω) of the nominal curve at t_kelvin; nullopt outside a table.
+std::optional<double> nominal_ln_resistance(const SensorSettings& s, double t_kelvin);
+
+// The nominal curve's temperature (K) at resistance exp(ln_r); nullopt when
+// there is none (outside a table, a non-physical resistance).
+std::optional<double> nominal_temperature(const SensorSettings& s, double ln_r);
+
+// d ln R / dT of the nominal curve (1/K).
+std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, double t_kelvin);
+
+// A unit's element: the nominal curve with the unit's deviations applied.
+class SensorUnit {
+ public:
+  SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k);
+  std::optional<double> ln_resistance(double t_kelvin) const;
+
+ private:
+  const SensorSettings* s_;
+  double ln_r0_ = 0.0;   // ln R_nom(T0) (NTC)
+  double shift_ = 0.0;   // ln(1 + δR)
+  double stretch_ = 1.0; // 1 + δβ
+  double rtd_k_ = 0.0;
+};
+
+}  // namespace thermargin

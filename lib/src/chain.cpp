@@ -1,0 +1,164 @@
+#include "thermargin/chain.hpp"
+
+#include <cmath>
+
+#include "thermargin/divider.hpp"
+#include "thermargin/self_heating.hpp"
+#include "thermargin/sensor.hpp"
+#include "thermargin/supply.hpp"
+
+namespace thermargin {
+
+std::string_view to_string(Status s) {
+  switch (s) {
+    case Status::ok: return "ok";
+    case Status::saturated: return "saturated";
+    case Status::runaway: return "thermal-runaway";
+    case Status::out_of_table: return "outside-sensor-table";
+    case Status::no_solution: return "no-conversion";
+    case Status::calibration_failed: return "calibration-failed";
+  }
+  return "ok";
+}
+
+std::string_view describe(Status s) {
+  switch (s) {
+    case Status::ok: return "ok";
+    case Status::saturated: return "the ADC saturates (a sample at a rail)";
+    case Status::runaway: return "thermal runaway: self-heating has no stable solution";
+    case Status::out_of_table: return "the sensor is outside its R-T table";
+    case Status::no_solution: return "the firmware conversion has no solution for this reading";
+    case Status::calibration_failed: return "a calibration reading failed";
+  }
+  return "ok";
+}
+
+Chain::Chain(const Design& d) : d_(&d), firmware_(d), span_(d.adc_span()), max_code_(d.adc_span() - 1.0) {}
+
+namespace {
+double at(const Deviations& d, Source s) { return d[static_cast<std::size_t>(s)]; }
+}  // namespace
+
+FrontEnd Chain::front_end(const Deviations& dev, double t_c) const {
+  const Design& d = *d_;
+  FrontEnd fe;
+  const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class));
+  const double t_board = board_temperature(d.conditions.board, t_c, at(dev, Source::board_temperature));
+  const SupplyUnit supply = supply_unit(d.supply, dev, t_board);
+  const double r_fixed =
+      d.divider.r_fixed * (1.0 + at(dev, Source::r_fixed)) * (1.0 + at(dev, Source::r_fixed_tempco) * (t_board - 25.0));
+  std::optional<double> r_par;
+  if (d.divider.r_parallel) r_par = *d.divider.r_parallel * (1.0 + at(dev, Source::r_parallel));
+  const double r_lead = d.sensor.lead_resistance;
+
+  const double t_true_k = t_c + kelvin_offset;
+  double t_element = t_true_k;
+  double r_element = 0.0;
+  if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
+    const double gain = d.divider.duty / (d.sensor.dissipation * (1.0 + at(dev, Source::dissipation)));
+    const SelfHeating sh = solve_self_heating(t_true_k, [&](double t) -> std::optional<double> {
+      const auto l = sensor.ln_resistance(t);
+      if (!l) return std::nullopt;
+      const double r = std::exp(*l);
+      const double v = element_voltage(d.divider.placement, supply.v_excitation, r_fixed, r, r_lead, r_par);
+      return gain * v * v / r;
+    });
+    if (sh.outcome == SelfHeating::Outcome::out_of_range) {
+      fe.status = Status::out_of_table;
+      return fe;
+    }
+    if (sh.outcome == SelfHeating::Outcome::runaway) {
+      fe.status = Status::runaway;
+      fe.t_element = sh.t_element - kelvin_offset;
+      fe.rise = sh.rise;
+      return fe;
+    }
+    t_element = sh.t_element;
+  }
+  const auto l = sensor.ln_resistance(t_element);
+  if (!l) {
+    fe.status = Status::out_of_table;
+    return fe;
+  }
+  r_element = std::exp(*l);
+  fe.t_element = t_element - kelvin_offset;
+  fe.rise = t_element - t_true_k;
+  const double rb = branch_resistance(r_element, r_lead, r_par);
+  fe.v_node = node_voltage(d.divider.placement, supply.v_excitation, r_fixed, rb, at(dev, Source::adc_leakage));
+  fe.x_ideal = fe.v_node / supply.v_reference * span_;
+  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset),
+                           at(dev, Source::adc_inl));
+  return fe;
+}
+
+std::optional<double> Chain::convert(double code, bool round_output) const {
+  auto t = firmware_.temperature(code);
+  if (!t) return std::nullopt;
+  return round_output ? firmware_.round_output(*t) : *t;
+}
+
+std::optional<CalibrationData> Chain::calibrate(const Deviations& dev, const ReadingShift& shift,
+                                                bool round_output) const {
+  const FirmwareSettings& f = d_->firmware;
+  CalibrationData k;
+  const int points = f.calibration == Calibration::none ? 0 : f.calibration == Calibration::offset ? 1 : 2;
+  for (int i = 0; i < points; ++i) {
+    const double t_cal = f.calibration_at[static_cast<std::size_t>(i)];
+    const FrontEnd fe = front_end(dev, t_cal);
+    if (fe.status != Status::ok) return std::nullopt;
+    const Reading r = continuous_reading(fe.x_static, shift.at_cal[i], max_code_);
+    if (r.saturated) return std::nullopt;
+    const auto t = convert(r.code, round_output);
+    if (!t) return std::nullopt;
+    k.reported[i] = *t;
+    k.reference[i] = t_cal + at(dev, i == 0 ? Source::calibration_1 : Source::calibration_2);
+  }
+  if (points == 2 && k.reported[1] == k.reported[0]) return std::nullopt;
+  return k;
+}
+
+Evaluation Chain::finish(const FrontEnd& fe, double t_c, const Reading& r, const CalibrationData* cal,
+                         bool round_output) const {
+  Evaluation e;
+  e.t_true = t_c;
+  e.front = fe;
+  e.code = r.code;
+  if (r.saturated) {
+    e.status = Status::saturated;
+    return e;
+  }
+  const auto t = convert(r.code, round_output);
+  if (!t) {
+    e.status = Status::no_solution;
+    return e;
+  }
+  const Calibration c = d_->firmware.calibration;
+  if (c != Calibration::none && cal == nullptr) {
+    e.status = Status::calibration_failed;
+    return e;
+  }
+  e.t_reported = cal ? apply_calibration(c, *cal, *t) : *t;
+  e.error = e.t_reported - t_c;
+  return e;
+}
+
+Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift& shift, const CalibrationData* cal,
+                           bool round_output) const {
+  const FrontEnd fe = front_end(dev, t_c);
+  if (fe.status != Status::ok) {
+    Evaluation e;
+    e.status = fe.status;
+    e.t_true = t_c;
+    e.front = fe;
+    return e;
+  }
+  return finish(fe, t_c, continuous_reading(fe.x_static, shift.at_t, max_code_), cal, round_output);
+}
+
+Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift& shift, bool round_output) const {
+  if (d_->firmware.calibration == Calibration::none) return evaluate(dev, t_c, shift, nullptr, round_output);
+  const auto k = calibrate(dev, shift, round_output);
+  return evaluate(dev, t_c, shift, k ? &*k : nullptr, round_output);
+}
+
+}  // namespace thermargin

@@ -1,0 +1,45 @@
+#include "thermargin/rtd.hpp"
+
+#include <cmath>
+
+namespace thermargin {
+
+double resistance(const CallendarVanDusen& k, double t) {
+  double f = 1.0 + k.a * t + k.b * t * t;
+  if (t < 0.0) f += k.c * (t - 100.0) * t * t * t;
+  return k.r0 * f;
+}
+
+double resistance_slope(const CallendarVanDusen& k, double t) {
+  double d = k.a + 2.0 * k.b * t;
+  if (t < 0.0) d += k.c * (4.0 * t * t * t - 300.0 * t * t);
+  return k.r0 * d;
+}
+
+double temperature_celsius(const CallendarVanDusen& k, double r) {
+  // Above 0 °C the quadratic: B t² + A t + (1 − R/R0) = 0, the root near A t.
+  const double q = 1.0 - r / k.r0;
+  double t = k.b != 0.0 ? (-k.a + std::sqrt(k.a * k.a - 4.0 * k.b * q)) / (2.0 * k.b) : -q / k.a;
+  if (!std::isfinite(t)) return -273.15;
+  if (r >= k.r0) return t;
+  // Below 0 °C: Newton on the quartic, from the quadratic root (a few steps).
+  for (int i = 0; i < 50; ++i) {
+    const double step = (resistance(k, t) - r) / resistance_slope(k, t);
+    t -= step;
+    if (std::fabs(step) < 1e-12) break;
+  }
+  return t < -273.15 ? -273.15 : t;
+}
+
+double class_bound(RtdClass cls, double t) {
+  const double at = std::fabs(t);
+  switch (cls) {
+    case RtdClass::AA: return 0.10 + 0.0017 * at;
+    case RtdClass::A: return 0.15 + 0.002 * at;
+    case RtdClass::B: return 0.30 + 0.005 * at;
+    case RtdClass::C: return 0.6 + 0.01 * at;
+  }
+  return 0.0;
+}
+
+}  // namespace thermargin

@@ -1,0 +1,70 @@
+#include "thermargin/sensor.hpp"
+
+#include <cmath>
+
+namespace thermargin {
+
+std::optional<double> nominal_ln_resistance(const SensorSettings& s, double t) {
+  switch (s.kind) {
+    case SensorKind::beta: return ln_resistance(BetaCurve{s.r25, s.beta}, t);
+    case SensorKind::steinhart_hart: return ln_resistance(s.sh, t);
+    case SensorKind::table: return s.table->ln_resistance(t);
+    case SensorKind::rtd: {
+      const double r = resistance(s.cvd, t - kelvin_offset);
+      if (!(r > 0.0)) return std::nullopt;
+      return std::log(r);
+    }
+  }
+  return std::nullopt;
+}
+
+std::optional<double> nominal_temperature(const SensorSettings& s, double ln_r) {
+  if (!std::isfinite(ln_r)) return std::nullopt;
+  double t = 0.0;
+  switch (s.kind) {
+    case SensorKind::beta: t = temperature_kelvin(BetaCurve{s.r25, s.beta}, ln_r); break;
+    case SensorKind::steinhart_hart: t = temperature_kelvin(s.sh, ln_r); break;
+    case SensorKind::table: return s.table->temperature_kelvin(ln_r);
+    case SensorKind::rtd: t = temperature_celsius(s.cvd, std::exp(ln_r)) + kelvin_offset; break;
+  }
+  if (!(t > 0.0) || !std::isfinite(t)) return std::nullopt;
+  return t;
+}
+
+std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, double t) {
+  switch (s.kind) {
+    case SensorKind::beta: return ln_resistance_slope(BetaCurve{s.r25, s.beta}, t);
+    case SensorKind::steinhart_hart: return ln_resistance_slope(s.sh, t);
+    case SensorKind::table: return s.table->ln_resistance_slope(t);
+    case SensorKind::rtd: {
+      const double tc = t - kelvin_offset;
+      return resistance_slope(s.cvd, tc) / resistance(s.cvd, tc);
+    }
+  }
+  return std::nullopt;
+}
+
+SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k)
+    : s_(&s), rtd_k_(rtd_k) {
+  if (s.kind != SensorKind::rtd) {
+    // The stretch is about T0; a table that misses 25 °C has been refused
+    // upstream whenever a tolerance is active, so ln_r0 is only used then.
+    if (auto l0 = nominal_ln_resistance(s, t0_kelvin)) ln_r0_ = *l0;
+    shift_ = std::log1p(delta_r25);
+    stretch_ = 1.0 + delta_beta;
+  }
+}
+
+std::optional<double> SensorUnit::ln_resistance(double t) const {
+  if (s_->kind == SensorKind::rtd) {
+    const double tc = t - kelvin_offset;
+    const double bound = s_->rtd_class ? class_bound(*s_->rtd_class, tc) : 0.0;
+    return nominal_ln_resistance(*s_, t + rtd_k_ * bound);
+  }
+  auto l = nominal_ln_resistance(*s_, t);
+  if (!l) return std::nullopt;
+  if (shift_ == 0.0 && stretch_ == 1.0) return l;
+  return ln_r0_ + shift_ + stretch_ * (*l - ln_r0_);
+}
+
+}  // namespace thermargin
