@@ -1,0 +1,1045 @@
+#include "thermargin/svg_chart.hpp"
+
+#include <algorithm>
+#include <array>
+#include <charconv>
+#include <cmath>
+#include <cstdint>
+#include <initializer_list>
+#include <limits>
+#include <set>
+#include <stdexcept>
+#include <utility>
+
+#include "thermargin/html_report.hpp"
+
+namespace thermargin::svg {
+
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// Palette (see the header and palette()). Lightness L* (CIE 1976, sRGB D65):
+// 10, 72, 45, 58, 31, 76. The first four slots, the ones most charts use,
+// are at least 13 L* apart, so they stay apart in grey; every pair keeps a
+// CIE76 distance above 20 under simulated protan, deutan and tritan vision
+// (Machado, Oliveira & Fernandes 2009 matrices, severity 1, values from
+// memory). Hue alone is never the only cue: each slot also has its own
+// dash-and-marker pair.
+constexpr std::array<PaletteEntry, 6> kPalette{{
+    {"#10183f", "near-black navy", Dash::solid, Marker::circle},
+    {"#e8a33a", "light amber", Dash::dashed, Marker::square},
+    {"#b24a14", "burnt orange", Dash::dotted, Marker::triangle},
+    {"#4f8fcf", "mid blue", Dash::dash_dot, Marker::diamond},
+    {"#6b2f7f", "dark plum", Dash::solid, Marker::cross},
+    {"#92c7b0", "pale sea green", Dash::dashed, Marker::plus},
+}};
+
+constexpr const char* kInk = "#222222";
+constexpr const char* kFont = "system-ui, -apple-system, 'Segoe UI', Helvetica, Arial, sans-serif";
+constexpr double kTitleSize = 15, kLabelSize = 13, kTickSize = 11, kLegendSize = 12;
+
+// ---------------------------------------------------------------- numbers
+
+[[noreturn]] void bug(const std::string& what) { throw std::invalid_argument("svg chart: " + what); }
+
+// Data values: %.9g, without the C locale's decimal-separator dependence.
+std::string g9(double v) {
+  if (!std::isfinite(v)) bug("a non-finite number reached the writer");
+  char buf[48];
+  auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::general, 9);
+  return std::string(buf, r.ptr);
+}
+
+// Pixel coordinates: two decimals are far below what a screen or printer shows.
+std::string px(double v) {
+  if (!std::isfinite(v)) bug("a non-finite coordinate reached the writer");
+  if (std::fabs(v) < 0.005) v = 0;  // no "-0.00"
+  char buf[48];
+  auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::fixed, 2);
+  std::string s(buf, r.ptr);
+  while (!s.empty() && s.back() == '0') s.pop_back();
+  if (!s.empty() && s.back() == '.') s.pop_back();
+  return s;
+}
+
+// Path commands are appended with +=, which also sidesteps GCC 12's false
+// -Wrestrict warning on "M" + std::string.
+void cmd(std::string& d, char c, double x, double y) {
+  d += c;
+  d += px(x);
+  d += ',';
+  d += px(y);
+}
+std::string segment(double x0, double y0, double x1, double y1) {
+  std::string d;
+  cmd(d, 'M', x0, y0);
+  cmd(d, 'L', x1, y1);
+  return d;
+}
+
+std::string attr(std::string_view name, std::string_view value) {
+  std::string s = " ";
+  s += name;
+  s += "=\"";
+  s += html_escape(value);
+  s += '"';
+  return s;
+}
+std::string attr(std::string_view name, double pixels) { return attr(name, px(pixels)); }
+
+std::string list_g9(const std::vector<double>& v) {
+  std::string s;
+  for (double d : v) {
+    if (!s.empty()) s += ' ';
+    s += g9(d);
+  }
+  return s;
+}
+
+double pow10i(int e) {
+  static constexpr std::array<double, 23> exact{1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                                1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+                                                1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+  if (e >= 0 && e <= 22) return exact[static_cast<std::size_t>(e)];
+  return std::pow(10.0, e);
+}
+
+// k * 10^e as the double nearest the decimal number: an exact integer times or
+// divided by an exact power of ten rounds once, so 2 * 10^-1 is exactly 0.2.
+double scaled(double k, int e) { return e >= 0 ? k * pow10i(e) : k / pow10i(-e); }
+
+// The 1-2-5 sequence as an integer index: n = 3e + {0, 1, 2} stands for
+// {1, 2, 5} * 10^e, so neighbouring indices are neighbouring round steps.
+int decade_of(int n) { return n >= 0 ? n / 3 : -((-n + 2) / 3); }
+int mantissa_of(int n) {
+  static constexpr std::array<int, 3> m{1, 2, 5};
+  return m[static_cast<std::size_t>(n - 3 * decade_of(n))];
+}
+double seq125(int n) { return scaled(mantissa_of(n), decade_of(n)); }
+int floor125(double v) {  // largest n with seq125(n) <= v
+  int n = 3 * static_cast<int>(std::floor(std::log10(v))) + 5;
+  while (seq125(n) > v * (1 + 1e-12)) --n;
+  return n;
+}
+int ceil125(double v) {  // smallest n with seq125(n) >= v
+  int n = 3 * static_cast<int>(std::floor(std::log10(v))) - 3;
+  while (seq125(n) < v * (1 - 1e-12)) ++n;
+  return n;
+}
+
+// A tick step of mant * 10^exp, mant in {1, 2, 5}.
+struct Step {
+  int mant = 1;
+  int exp = 0;
+  static Step of(int n) { return {mantissa_of(n), decade_of(n)}; }
+  double value() const { return scaled(mant, exp); }
+  double at(double k) const { return scaled(k * mant + 0.0, exp); }  // + 0.0: no -0
+};
+
+std::string with_true_minus(std::string s) {
+  if (!s.empty() && s[0] == '-') s.replace(0, 1, "\u2212");
+  return s;
+}
+
+std::string general(double v, int precision) {
+  char buf[48];
+  auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::general, precision);
+  return std::string(buf, r.ptr);
+}
+
+std::string si_label(double v) {
+  if (v == 0) return "0";
+  static constexpr std::array<const char*, 9> prefix{"p", "n", "\u00b5", "m", "", "k", "M", "G", "T"};
+  int g = static_cast<int>(std::floor(std::log10(std::fabs(v)) / 3.0 + 1e-12)) * 3;
+  g = std::clamp(g, -12, 12);
+  double mant = g >= 0 ? v / pow10i(g) : v * pow10i(-g);
+  return with_true_minus(general(mant, 6) + prefix[static_cast<std::size_t>(g / 3 + 4)]);
+}
+
+std::string superscript(int n) {
+  static constexpr std::array<const char*, 10> digit{"\u2070", "\u00b9", "\u00b2", "\u00b3", "\u2074",
+                                                     "\u2075", "\u2076", "\u2077", "\u2078", "\u2079"};
+  std::string s = n < 0 ? "\u207b" : "";
+  for (char c : std::to_string(std::abs(n))) s += digit[static_cast<std::size_t>(c - '0')];
+  return s;
+}
+
+// 1e6 and up (or tiny) as "10⁶" or "2×10⁶" rather than "1e+06".
+std::string power_label(double v) {
+  double a = std::fabs(v);
+  if (v == 0 || (a >= 1e-4 && a < 1e6)) return with_true_minus(general(v, 6));
+  int e = static_cast<int>(std::floor(std::log10(a) + 1e-12));
+  double mant = v / scaled(1, e);
+  std::string m = general(mant, 6);
+  std::string s = (m == "1" ? std::string() : m + "\u00d7") + "10" + superscript(e);
+  return with_true_minus(s);
+}
+
+std::string linear_label(double v, const Step& step, double magnitude, bool si) {
+  if (si) return si_label(v);
+  int decimals = std::max(0, -step.exp);
+  if (decimals > 8 || magnitude >= 1e9) return power_label(v);
+  char buf[64];
+  auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::fixed, decimals);
+  return with_true_minus(std::string(buf, r.ptr));
+}
+
+void check_forced(const Axis& axis) {
+  for (const auto& lim : {axis.min, axis.max}) {
+    if (!lim) continue;
+    if (!std::isfinite(*lim)) bug("axis \"" + axis.label + "\" has a non-finite forced limit");
+    if (axis.scale == Scale::log10 && *lim <= 0)
+      bug("log axis \"" + axis.label + "\" has a forced limit <= 0");
+  }
+  if (axis.min && axis.max && !(*axis.min < *axis.max))
+    bug("axis \"" + axis.label + "\" has forced min >= max");
+}
+
+AxisPlan plan_linear(const Axis& axis, bool has_data, double lo, double hi, int target) {
+  if (!has_data) lo = 0, hi = 1;
+  if (axis.min) lo = *axis.min;
+  if (axis.max) hi = *axis.max;
+  // one forced end with all the data on its wrong side: keep the forced end
+  if (hi <= lo) {
+    double pad = lo != 0 ? std::fabs(lo) * 0.1 : 1.0;
+    if (axis.min && axis.max) {
+      // unreachable: check_forced rejected it
+    } else if (axis.min) {
+      hi = lo + pad;
+    } else if (axis.max) {
+      lo = hi - pad;
+    } else {
+      lo -= pad;
+      hi += pad;
+    }
+  }
+  // Try the round step nearest span/target and its two neighbours; keep the
+  // one whose widened range has the interval count closest to the target
+  // (ties: the coarser step). Rounding one raw step alone can land on 3
+  // intervals where 6 were wanted.
+  double raw = hi / target - lo / target;  // no overflow near the double limits
+  int centre = (raw > 0 && std::isfinite(raw)) ? ceil125(raw) : 0;
+  constexpr double tol = 1e-9;
+  Step step;
+  AxisPlan plan;
+  double best = std::numeric_limits<double>::infinity();
+  for (int n = centre - 1; n <= centre + 1; ++n) {
+    Step cand = Step::of(n);
+    double sv = cand.value();
+    double a = axis.min ? lo : cand.at(std::floor(lo / sv + tol));
+    double b = axis.max ? hi : cand.at(std::ceil(hi / sv - tol));
+    double intervals = (b / 2 - a / 2) / (sv / 2);
+    double score = std::fabs(intervals - target) + 1e-3 * intervals;
+    if (score < best) best = score, step = cand, plan.min = a, plan.max = b;
+  }
+  double sv = step.value();
+  if (!(plan.min < plan.max)) plan.max = plan.min + sv;
+  double magnitude = std::max(std::fabs(plan.min), std::fabs(plan.max));
+  double k0 = std::ceil(plan.min / sv - tol), k1 = std::floor(plan.max / sv + tol);
+  double slack = (plan.max - plan.min) * 1e-9;
+  for (double k = k0; k <= k1 && plan.ticks.size() < 200; k += 1) {
+    double v = step.at(k);
+    if (v < plan.min - slack || v > plan.max + slack) continue;
+    plan.ticks.push_back({v, true, linear_label(v, step, magnitude, axis.si_prefix)});
+  }
+  return plan;
+}
+
+AxisPlan plan_log(const Axis& axis, bool has_data, double lo, double hi, int target) {
+  if (!has_data) lo = 1, hi = 10;
+  if (axis.min) lo = *axis.min;
+  if (axis.max) hi = *axis.max;
+  if (hi <= lo) {
+    if (axis.min && !axis.max) hi = lo * 10;
+    else if (axis.max && !axis.min) lo = hi / 10;
+  }
+  AxisPlan plan;
+  plan.min = axis.min ? lo : seq125(floor125(lo));
+  plan.max = axis.max ? hi : seq125(ceil125(hi));
+  if (!(plan.min < plan.max)) {
+    if (!axis.min) plan.min = seq125(floor125(plan.min) - 1);
+    if (!axis.max) plan.max = seq125(ceil125(plan.max) + 1);
+  }
+  double decades = std::log10(plan.max / plan.min);
+  int every = std::max(1, static_cast<int>(std::ceil(decades / std::max(target, 1) / 2.0)));
+  auto label = [&](double v) { return axis.si_prefix ? si_label(v) : power_label(v); };
+  int n0 = floor125(plan.min) - 1, n1 = ceil125(plan.max) + 1;
+  for (int n = n0; n <= n1; ++n) {
+    double v = seq125(n);
+    if (v < plan.min * (1 - 1e-12) || v > plan.max * (1 + 1e-12)) continue;
+    int e = decade_of(n);
+    bool decade = mantissa_of(n) == 1;
+    if (!decade && decades > 8) continue;  // sub-ticks would merge into a grey smear
+    bool major = decade && (e % every == 0);
+    plan.ticks.push_back({v, major, major ? label(v) : std::string()});
+  }
+  auto majors = std::count_if(plan.ticks.begin(), plan.ticks.end(), [](const Tick& t) { return t.major; });
+  if (majors < 2) {  // less than a decade: label the 2s and 5s as well
+    for (Tick& t : plan.ticks) t.major = true, t.label = label(t.value);
+  }
+  if (plan.ticks.size() < 2) {  // inside one 1-2-5 interval: round linear ticks instead
+    Axis lin = axis;
+    lin.scale = Scale::linear;
+    lin.min = plan.min;
+    lin.max = plan.max;
+    plan.ticks = plan_linear(lin, true, plan.min, plan.max, target).ticks;
+  }
+  return plan;
+}
+
+// ---------------------------------------------------------------- geometry
+
+struct Pt {
+  double x, y;
+};
+struct Rect {
+  double x0, y0, x1, y1;
+  bool contains(Pt p, double slack = 0.5) const {
+    return p.x >= x0 - slack && p.x <= x1 + slack && p.y >= y0 - slack && p.y <= y1 + slack;
+  }
+};
+
+// Liang–Barsky: clips segment a-b to r; t0/t1 report where the kept part lies.
+bool clip_segment(Pt a, Pt b, const Rect& r, Pt& ca, Pt& cb, double& t0, double& t1) {
+  t0 = 0, t1 = 1;
+  double dx = b.x - a.x, dy = b.y - a.y;
+  const std::array<double, 4> p{-dx, dx, -dy, dy};
+  const std::array<double, 4> q{a.x - r.x0, r.x1 - a.x, a.y - r.y0, r.y1 - a.y};
+  for (std::size_t i = 0; i < 4; ++i) {
+    if (p[i] == 0) {
+      if (q[i] < 0) return false;
+    } else {
+      double t = q[i] / p[i];
+      if (p[i] < 0) {
+        if (t > t1) return false;
+        t0 = std::max(t0, t);
+      } else {
+        if (t < t0) return false;
+        t1 = std::min(t1, t);
+      }
+    }
+  }
+  ca = {a.x + t0 * dx, a.y + t0 * dy};
+  cb = {a.x + t1 * dx, a.y + t1 * dy};
+  return true;
+}
+
+// Polyline path data for one run of points, clipped to r ("" when nothing shows).
+std::string polyline_path(const std::vector<Pt>& run, const Rect& r) {
+  std::string d;
+  bool pen_down = false;
+  for (std::size_t i = 1; i < run.size(); ++i) {
+    Pt a, b;
+    double t0, t1;
+    if (!clip_segment(run[i - 1], run[i], r, a, b, t0, t1)) {
+      pen_down = false;
+      continue;
+    }
+    if (!pen_down || t0 > 0) cmd(d, 'M', a.x, a.y);
+    cmd(d, 'L', b.x, b.y);
+    pen_down = t1 >= 1;
+  }
+  return d;
+}
+
+// Sutherland–Hodgman against each edge of an axis-aligned rectangle.
+std::vector<Pt> clip_polygon(std::vector<Pt> poly, const Rect& r) {
+  auto clip_edge = [&](auto inside, auto cross) {
+    std::vector<Pt> out;
+    for (std::size_t i = 0; i < poly.size(); ++i) {
+      Pt cur = poly[i], prev = poly[(i + poly.size() - 1) % poly.size()];
+      bool ci = inside(cur), pi = inside(prev);
+      if (ci) {
+        if (!pi) out.push_back(cross(prev, cur));
+        out.push_back(cur);
+      } else if (pi) {
+        out.push_back(cross(prev, cur));
+      }
+    }
+    poly = std::move(out);
+  };
+  auto at_x = [](double x) {
+    return [x](Pt a, Pt b) { return Pt{x, a.y + (b.y - a.y) * (x - a.x) / (b.x - a.x)}; };
+  };
+  auto at_y = [](double y) {
+    return [y](Pt a, Pt b) { return Pt{a.x + (b.x - a.x) * (y - a.y) / (b.y - a.y), y}; };
+  };
+  if (poly.size() >= 3) clip_edge([&](Pt p) { return p.x >= r.x0; }, at_x(r.x0));
+  if (poly.size() >= 3) clip_edge([&](Pt p) { return p.x <= r.x1; }, at_x(r.x1));
+  if (poly.size() >= 3) clip_edge([&](Pt p) { return p.y >= r.y0; }, at_y(r.y0));
+  if (poly.size() >= 3) clip_edge([&](Pt p) { return p.y <= r.y1; }, at_y(r.y1));
+  return poly.size() >= 3 ? poly : std::vector<Pt>{};
+}
+
+// ---------------------------------------------------------------- text
+
+std::size_t codepoints(std::string_view s) {
+  return static_cast<std::size_t>(std::count_if(s.begin(), s.end(), [](char c) {
+    return (static_cast<unsigned char>(c) & 0xC0) != 0x80;
+  }));
+}
+// No font metrics without a font engine; an average sans-serif advance is enough for layout.
+double text_width(std::string_view s, double size) { return static_cast<double>(codepoints(s)) * size * 0.56; }
+
+std::string text_element(double x, double y, std::string_view anchor, double size, std::string_view content,
+                         std::string_view extra = {}) {
+  std::string s = "<text" + attr("x", x) + attr("y", y);
+  if (anchor != "start") s += attr("text-anchor", anchor);
+  s += attr("font-size", size);
+  s += extra;
+  s += '>';
+  s += html_escape(content);
+  s += "</text>";
+  return s;
+}
+// A white halo keeps labels readable where they cross lines.
+constexpr std::string_view kHalo = R"( stroke="#ffffff" stroke-width="3" stroke-linejoin="round" paint-order="stroke")";
+
+// ---------------------------------------------------------------- styles
+
+struct Resolved {
+  std::string colour;
+  Dash dash;
+  Marker marker;  // for lines: none, or the shape
+  bool thinned;   // line markers at a few spread points only
+  int slot;
+};
+
+std::string dash_array(Dash d) {
+  switch (d) {
+    case Dash::dashed: return "7 4";
+    case Dash::dotted: return "1.5 3.5";
+    case Dash::dash_dot: return "9 3.5 1.5 3.5";
+    case Dash::solid:
+    case Dash::automatic: break;
+  }
+  return {};
+}
+
+std::string stroke_attrs(const std::string& colour, double width, Dash dash) {
+  std::string s = attr("stroke", colour) + attr("stroke-width", width);
+  std::string da = dash_array(dash);
+  if (!da.empty()) s += attr("stroke-dasharray", da);
+  if (dash == Dash::dotted) s += attr("stroke-linecap", "round");
+  return s;
+}
+
+// Path data through points; closed adds Z.
+std::string polygon_d(std::initializer_list<Pt> pts, bool closed) {
+  std::string d;
+  for (Pt p : pts) cmd(d, d.empty() ? 'M' : 'L', p.x, p.y);
+  if (closed) d += 'Z';
+  return d;
+}
+
+std::string marker_element(Marker m, Pt c, const std::string& colour, std::string_view cls,
+                           std::string_view data = {}) {
+  constexpr double s = 4.5;
+  std::string out = m == Marker::circle ? "<circle" : m == Marker::square ? "<rect" : "<path";
+  out += attr("class", cls);
+  out += data;
+  const std::string filled = attr("fill", colour) + attr("stroke", "#ffffff") + attr("stroke-width", 1.0);
+  const std::string stroked = attr("fill", "none") + attr("stroke", colour) + attr("stroke-width", 2.0);
+  switch (m) {
+    case Marker::circle: out += attr("cx", c.x) + attr("cy", c.y) + attr("r", s) + filled; break;
+    case Marker::square:
+      out += attr("x", c.x - s * 0.9) + attr("y", c.y - s * 0.9) + attr("width", s * 1.8) + attr("height", s * 1.8) +
+             filled;
+      break;
+    case Marker::triangle:
+      out += attr("d", polygon_d({{c.x, c.y - s * 1.15}, {c.x + s * 1.05, c.y + s * 0.8}, {c.x - s * 1.05, c.y + s * 0.8}},
+                                 true)) +
+             filled;
+      break;
+    case Marker::diamond:
+      out += attr("d", polygon_d({{c.x, c.y - s * 1.3}, {c.x + s, c.y}, {c.x, c.y + s * 1.3}, {c.x - s, c.y}}, true)) +
+             filled;
+      break;
+    case Marker::cross:
+      out += attr("d", segment(c.x - s, c.y - s, c.x + s, c.y + s) + segment(c.x - s, c.y + s, c.x + s, c.y - s)) +
+             stroked;
+      break;
+    case Marker::plus:
+      out += attr("d", segment(c.x - s * 1.2, c.y, c.x + s * 1.2, c.y) + segment(c.x, c.y - s * 1.2, c.x, c.y + s * 1.2)) +
+             stroked;
+      break;
+    case Marker::none:
+    case Marker::automatic: return {};
+  }
+  return out + "/>";
+}
+
+// ---------------------------------------------------------------- the chart
+
+bool plottable(double v, Scale scale) { return std::isfinite(v) && (scale == Scale::linear || v > 0); }
+
+std::optional<double> value_at(const Values& v, std::size_t i) {
+  if (i >= v.size() || !v[i] || !std::isfinite(*v[i])) return std::nullopt;
+  return v[i];
+}
+
+void check_series(const Series& s) {
+  if (s.name.empty()) bug("a series has no name");
+  auto need = [&](bool ok, const char* what) {
+    if (!ok) bug("series \"" + s.name + "\": " + what);
+  };
+  switch (s.kind) {
+    case Kind::line:
+    case Kind::points: need(s.x.size() == s.y.size(), "x and y differ in length"); break;
+    case Kind::band:
+      need(s.x.size() == s.y.size() && s.x.size() == s.y_high.size(), "x, low and high differ in length");
+      break;
+    case Kind::reference: break;
+    case Kind::span: need(s.x.size() == 2, "a span needs exactly two x values"); break;
+    case Kind::annotation: need(s.x.size() == 1 && s.y.size() == 1, "an annotation needs one x and one y"); break;
+  }
+  if (s.style.slot >= static_cast<int>(kPalette.size())) bug("series \"" + s.name + "\": palette slot out of range");
+}
+
+class Renderer {
+ public:
+  explicit Renderer(const Chart& c) : c_(c) {}
+  std::string run();
+
+ private:
+  const Chart& c_;
+  AxisPlan xp_, yp_;
+  Rect plot_{};
+  std::vector<Resolved> style_;
+
+  double X(double v) const {
+    if (c_.x.scale == Scale::log10) {
+      if (!(v > 0)) return kNaN;
+      return plot_.x0 + (std::log10(v) - std::log10(xp_.min)) / (std::log10(xp_.max) - std::log10(xp_.min)) *
+                            (plot_.x1 - plot_.x0);
+    }
+    return plot_.x0 + (v / 2 - xp_.min / 2) / (xp_.max / 2 - xp_.min / 2) * (plot_.x1 - plot_.x0);
+  }
+  double Y(double v) const {
+    return plot_.y1 - (v / 2 - yp_.min / 2) / (yp_.max / 2 - yp_.min / 2) * (plot_.y1 - plot_.y0);
+  }
+  Pt P(double x, double y) const { return {X(x), Y(y)}; }
+
+  void resolve_styles();
+  std::vector<std::size_t> legend_order() const;
+  std::string legend_sample(std::size_t i, double x, double y) const;
+  std::string series_group(std::size_t i) const;
+  std::string draw_line(const Series& s, const Resolved& st, std::string& data) const;
+  std::string draw_band(const Series& s, const Resolved& st, std::string& data) const;
+  std::string draw_points(const Series& s, const Resolved& st, std::string& data) const;
+  std::string draw_reference(const Series& s, std::string& data) const;
+  std::string draw_span(const Series& s, const Resolved& st, std::string& data) const;
+  std::string draw_annotation(const Series& s, std::string& data) const;
+};
+
+void Renderer::resolve_styles() {
+  std::set<int> claimed;
+  for (const Series& s : c_.series)
+    if (s.style.slot >= 0) claimed.insert(s.style.slot);
+  int next = 0;
+  for (const Series& s : c_.series) {
+    Resolved r{};
+    bool data_kind = s.kind == Kind::line || s.kind == Kind::band || s.kind == Kind::points;
+    int slot = s.style.slot;
+    if (slot < 0 && data_kind) {
+      for (int tries = 0; tries < static_cast<int>(kPalette.size()); ++tries) {
+        int cand = (next + tries) % static_cast<int>(kPalette.size());
+        if (!claimed.count(cand)) {
+          slot = cand;
+          next = cand + 1;
+          break;
+        }
+      }
+      if (slot < 0) slot = next++ % static_cast<int>(kPalette.size());  // every slot claimed: reuse
+    }
+    r.slot = std::max(slot, 0);
+    const PaletteEntry& p = kPalette[static_cast<std::size_t>(r.slot)];
+    r.colour = p.hex;
+    r.dash = s.style.dash == Dash::automatic ? p.dash : s.style.dash;
+    r.marker = s.style.marker == Marker::automatic ? p.marker : s.style.marker;
+    r.thinned = s.kind == Kind::line && s.style.marker == Marker::automatic;
+    if (s.kind == Kind::band) r.marker = Marker::none;
+    if (s.kind == Kind::points && r.marker == Marker::none) r.marker = p.marker;  // points need a mark
+    style_.push_back(r);
+  }
+}
+
+std::vector<std::size_t> Renderer::legend_order() const {
+  std::vector<std::size_t> order;
+  for (std::size_t i = 0; i < c_.series.size(); ++i) {
+    const Series& s = c_.series[i];
+    if (!s.label.empty() && s.kind != Kind::reference && s.kind != Kind::annotation) order.push_back(i);
+  }
+  return order;
+}
+
+std::string span_fill(bool hatched) {
+  return hatched ? attr("fill", "#000000") + attr("fill-opacity", "0.05") : attr("fill", "#5a5a5a") + attr("fill-opacity", "0.13");
+}
+
+std::string hatch_lines(const Rect& r) {
+  // 45° hatching drawn as clipped lines: no <pattern>, so no ids to collide
+  // when several charts share one HTML page.
+  std::string d;
+  constexpr double gap = 7;
+  double h = r.y1 - r.y0;
+  for (double start = r.x0 - h; start < r.x1; start += gap) {
+    Pt a, b;
+    double t0, t1;
+    if (clip_segment({start, r.y1}, {start + h, r.y0}, r, a, b, t0, t1))
+      d += segment(a.x, a.y, b.x, b.y);
+  }
+  if (d.empty()) return {};
+  return "<path class=\"hatch\"" + attr("d", d) + attr("stroke", "#6e6e6e") + attr("stroke-width", 0.8) +
+         attr("fill", "none") + "/>";
+}
+
+std::string Renderer::legend_sample(std::size_t i, double x, double y) const {
+  const Series& s = c_.series[i];
+  const Resolved& st = style_[i];
+  std::string out;
+  constexpr double w = 30;
+  switch (s.kind) {
+    case Kind::line:
+      out += "<path" + attr("d", segment(x, y, x + w, y)) + attr("fill", "none") +
+             stroke_attrs(st.colour, 2.0, st.dash) + "/>";
+      if (st.marker != Marker::none) out += marker_element(st.marker, {x + w / 2, y}, st.colour, "marker");
+      break;
+    case Kind::band:
+      out += "<rect" + attr("x", x) + attr("y", y - 6) + attr("width", w) + attr("height", 12.0) +
+             attr("fill", st.colour) + attr("fill-opacity", "0.22") + stroke_attrs(st.colour, 1.25, st.dash) + "/>";
+      break;
+    case Kind::points: out += marker_element(st.marker, {x + w / 2, y}, st.colour, "marker"); break;
+    case Kind::span: {
+      Rect r{x, y - 6, x + w, y + 6};
+      out += "<rect" + attr("x", x) + attr("y", y - 6) + attr("width", w) + attr("height", 12.0) +
+             span_fill(s.style.hatched) + attr("stroke", "#6e6e6e") + attr("stroke-width", 0.8) + "/>";
+      if (s.style.hatched) out += hatch_lines(r);
+      break;
+    }
+    case Kind::reference:
+    case Kind::annotation: break;
+  }
+  return out;
+}
+
+std::string Renderer::draw_line(const Series& s, const Resolved& st, std::string& data) const {
+  std::vector<double> all_x, all_y;
+  std::vector<std::vector<std::size_t>> runs(1);
+  for (std::size_t i = 0; i < s.x.size(); ++i) {
+    auto y = value_at(s.y, i);
+    if (y && plottable(s.x[i], c_.x.scale)) {
+      Pt p = P(s.x[i], *y);
+      if (std::isfinite(p.x) && std::isfinite(p.y)) {
+        runs.back().push_back(i);
+        all_x.push_back(s.x[i]);
+        all_y.push_back(*y);
+        continue;
+      }
+    }
+    if (!runs.back().empty()) runs.emplace_back();  // a gap ends the run
+  }
+  if (runs.back().empty()) runs.pop_back();
+  data = attr("data-x", list_g9(all_x)) + attr("data-y", list_g9(all_y)) + attr("data-runs", std::to_string(runs.size()));
+
+  std::string out;
+  std::vector<Pt> shown;  // points for markers: isolated ones always, the rest when thinned/explicit
+  for (const auto& run : runs) {
+    std::vector<Pt> pts;
+    std::vector<double> rx, ry;
+    for (std::size_t i : run) {
+      pts.push_back(P(s.x[i], *value_at(s.y, i)));
+      rx.push_back(s.x[i]);
+      ry.push_back(*value_at(s.y, i));
+    }
+    std::string d = polyline_path(pts, plot_);
+    out += "<path class=\"segment\"" + attr("data-x", list_g9(rx)) + attr("data-y", list_g9(ry));
+    if (!d.empty()) out += attr("d", d);
+    out += attr("fill", "none") + stroke_attrs(st.colour, 2.0, st.dash) + attr("stroke-linejoin", "round") + "/>";
+    if (pts.size() == 1) shown.push_back(pts[0]);
+  }
+  std::vector<Pt> flat;
+  for (const auto& run : runs)
+    for (std::size_t i : run) flat.push_back(P(s.x[i], *value_at(s.y, i)));
+  if (st.marker != Marker::none && !flat.empty()) {
+    if (!st.thinned) {
+      shown = flat;
+    } else {
+      std::size_t count = std::min<std::size_t>(8, flat.size());
+      double stride = static_cast<double>(flat.size()) / static_cast<double>(count);
+      // staggered by slot so markers of neighbouring curves do not sit on each other
+      double offset = stride * (0.25 + 0.5 * static_cast<double>(st.slot % 3) / 3.0);
+      for (std::size_t k = 0; k < count; ++k) {
+        auto idx = static_cast<std::size_t>(offset + stride * static_cast<double>(k));
+        shown.push_back(flat[std::min(idx, flat.size() - 1)]);
+      }
+    }
+  }
+  Marker m = st.marker == Marker::none ? Marker::circle : st.marker;
+  for (Pt p : shown)
+    if (plot_.contains(p)) out += marker_element(m, p, st.colour, "marker");
+  return out;
+}
+
+std::string Renderer::draw_band(const Series& s, const Resolved& st, std::string& data) const {
+  std::vector<double> ax, alo, ahi;
+  std::vector<std::vector<std::size_t>> runs(1);
+  for (std::size_t i = 0; i < s.x.size(); ++i) {
+    auto lo = value_at(s.y, i), hi = value_at(s.y_high, i);
+    if (lo && hi && plottable(s.x[i], c_.x.scale)) {
+      Pt a = P(s.x[i], *lo), b = P(s.x[i], *hi);
+      if (std::isfinite(a.x) && std::isfinite(a.y) && std::isfinite(b.y)) {
+        runs.back().push_back(i);
+        ax.push_back(s.x[i]);
+        alo.push_back(*lo);
+        ahi.push_back(*hi);
+        continue;
+      }
+    }
+    if (!runs.back().empty()) runs.emplace_back();
+  }
+  if (runs.back().empty()) runs.pop_back();
+  data = attr("data-x", list_g9(ax)) + attr("data-low", list_g9(alo)) + attr("data-high", list_g9(ahi)) +
+         attr("data-runs", std::to_string(runs.size()));
+  std::string out;
+  for (const auto& run : runs) {
+    std::vector<Pt> lower, upper;
+    std::vector<double> rx, rl, rh;
+    for (std::size_t i : run) {
+      lower.push_back(P(s.x[i], *value_at(s.y, i)));
+      upper.push_back(P(s.x[i], *value_at(s.y_high, i)));
+      rx.push_back(s.x[i]);
+      rl.push_back(*value_at(s.y, i));
+      rh.push_back(*value_at(s.y_high, i));
+    }
+    std::vector<Pt> poly = upper;
+    poly.insert(poly.end(), lower.rbegin(), lower.rend());
+    std::string d;
+    for (Pt p : clip_polygon(poly, plot_)) cmd(d, d.empty() ? 'M' : 'L', p.x, p.y);
+    if (!d.empty()) d += "Z";
+    out += "<path class=\"area\"" + attr("data-x", list_g9(rx)) + attr("data-low", list_g9(rl)) +
+           attr("data-high", list_g9(rh));
+    if (!d.empty()) out += attr("d", d);
+    out += attr("fill", st.colour) + attr("fill-opacity", "0.2") + attr("stroke", "none") + "/>";
+    if (run.size() == 1) {  // a lone x: show its extent as a short vertical bar
+      upper.push_back(lower[0]);
+      lower.clear();
+    }
+    for (const auto* edge : {&lower, &upper}) {
+      std::string e = polyline_path(*edge, plot_);
+      if (!e.empty())
+        out += "<path class=\"edge\"" + attr("d", e) + attr("fill", "none") + stroke_attrs(st.colour, 1.25, st.dash) +
+               attr("stroke-linejoin", "round") + "/>";
+    }
+  }
+  return out;
+}
+
+std::string Renderer::draw_points(const Series& s, const Resolved& st, std::string& data) const {
+  std::vector<double> ax, ay;
+  std::string out;
+  for (std::size_t i = 0; i < s.x.size(); ++i) {
+    auto y = value_at(s.y, i);
+    if (!y || !plottable(s.x[i], c_.x.scale)) continue;
+    Pt p = P(s.x[i], *y);
+    if (!std::isfinite(p.x) || !std::isfinite(p.y)) continue;
+    ax.push_back(s.x[i]);
+    ay.push_back(*y);
+    if (plot_.contains(p))
+      out += marker_element(st.marker, p, st.colour, "point", attr("data-x", g9(s.x[i])) + attr("data-y", g9(*y)));
+  }
+  data = attr("data-x", list_g9(ax)) + attr("data-y", list_g9(ay));
+  return out;
+}
+
+std::string Renderer::draw_reference(const Series& s, std::string& data) const {
+  std::vector<double> levels;
+  std::string out;
+  std::optional<double> top_y;
+  for (const auto& v : s.y) {
+    if (!v || !std::isfinite(*v)) continue;
+    levels.push_back(*v);
+    double y = Y(*v);
+    if (!std::isfinite(y) || y < plot_.y0 - 0.5 || y > plot_.y1 + 0.5) continue;
+    out += "<path class=\"level\"" + attr("data-y", g9(*v)) +
+           attr("d", segment(plot_.x0, y, plot_.x1, y)) +
+           attr("stroke", "#3a3a3a") + attr("stroke-width", 1.25) + attr("stroke-dasharray", "10 3 2 3") + "/>";
+    if (!top_y || y < *top_y) top_y = y;
+  }
+  if (top_y && !s.label.empty())
+    out += text_element(plot_.x1 - 4, *top_y - 4, "end", kTickSize, s.label,
+                        std::string(kHalo) + attr("fill", "#3a3a3a"));
+  data = attr("data-y", list_g9(levels));
+  return out;
+}
+
+std::string Renderer::draw_span(const Series& s, const Resolved&, std::string& data) const {
+  double a = s.x[0], b = s.x[1];
+  if (std::isnan(a) || std::isnan(b)) return {};
+  if (a > b) std::swap(a, b);
+  if (std::isfinite(a)) data += attr("data-x0", g9(a));
+  if (std::isfinite(b)) data += attr("data-x1", g9(b));
+  // infinite (or, on a log axis, non-positive) ends reach the edge of the plot
+  double xa = std::isfinite(a) && plottable(a, c_.x.scale) ? X(a) : plot_.x0;
+  double xb = std::isfinite(b) ? X(b) : plot_.x1;
+  if (!std::isfinite(xb)) return {};  // b <= 0 on a log axis: nothing to show
+  xa = std::clamp(xa, plot_.x0, plot_.x1);
+  xb = std::clamp(xb, plot_.x0, plot_.x1);
+  if (xb - xa < 0.01) return {};
+  Rect r{xa, plot_.y0, xb, plot_.y1};
+  std::string out = "<rect" + attr("x", xa) + attr("y", plot_.y0) + attr("width", xb - xa) +
+                    attr("height", plot_.y1 - plot_.y0) + span_fill(s.style.hatched) + "/>";
+  if (s.style.hatched) out += hatch_lines(r);
+  // edges, so the span still reads where its tint is lost in print
+  for (double xe : {xa, xb})
+    if (xe > plot_.x0 + 0.5 && xe < plot_.x1 - 0.5)
+      out += "<path class=\"boundary\"" + attr("d", segment(xe, plot_.y0, xe, plot_.y1)) +
+             attr("stroke", "#6e6e6e") + attr("stroke-width", 1.0) + "/>";
+  return out;
+}
+
+std::string Renderer::draw_annotation(const Series& s, std::string& data) const {
+  auto y = value_at(s.y, 0);
+  if (!y || !plottable(s.x[0], c_.x.scale)) return {};
+  data = attr("data-x", g9(s.x[0])) + attr("data-y", g9(*y));
+  Pt p = P(s.x[0], *y);
+  if (!std::isfinite(p.x) || !std::isfinite(p.y) || !plot_.contains(p)) return {};
+  std::string out = "<circle class=\"ring\"" + attr("cx", p.x) + attr("cy", p.y) + attr("r", 8.0) +
+                    attr("fill", "none") + attr("stroke", "#000000") + attr("stroke-width", 1.75) + "/>";
+  out += "<circle" + attr("cx", p.x) + attr("cy", p.y) + attr("r", 1.75) + attr("fill", "#000000") + "/>";
+  if (s.label.empty()) return out;
+  double w = text_width(s.label, kLegendSize);
+  bool left = p.x + 14 + w > plot_.x1 - 2;
+  bool below = p.y - 16 - kLegendSize < plot_.y0;
+  Pt anchor{left ? p.x - 12 : p.x + 12, below ? p.y + 12 : p.y - 12};
+  Pt edge{p.x + (left ? -5.7 : 5.7), p.y + (below ? 5.7 : -5.7)};
+  out += "<path" + attr("d", segment(edge.x, edge.y, anchor.x, anchor.y)) +
+         attr("stroke", "#000000") + attr("stroke-width", 1.0) + "/>";
+  out += text_element(left ? anchor.x - 2 : anchor.x + 2, below ? anchor.y + kLegendSize : anchor.y - 2,
+                      left ? "end" : "start", kLegendSize, s.label,
+                      std::string(kHalo) + attr("font-weight", "600") + attr("fill", "#000000"));
+  return out;
+}
+
+std::string Renderer::series_group(std::size_t i) const {
+  const Series& s = c_.series[i];
+  const Resolved& st = style_[i];
+  std::string data, body;
+  const char* kind = "line";
+  switch (s.kind) {
+    case Kind::line: body = draw_line(s, st, data); break;
+    case Kind::band: body = draw_band(s, st, data), kind = "band"; break;
+    case Kind::points: body = draw_points(s, st, data), kind = "points"; break;
+    case Kind::reference: body = draw_reference(s, data), kind = "reference"; break;
+    case Kind::span: body = draw_span(s, st, data), kind = "span"; break;
+    case Kind::annotation: body = draw_annotation(s, data), kind = "annotation"; break;
+  }
+  std::string head = "<g class=\"series\"" + attr("data-name", s.name) + attr("data-kind", kind);
+  if (!s.label.empty()) head += attr("data-label", s.label);
+  return head + data + ">" + body + "</g>\n";
+}
+
+std::string Renderer::run() {
+  if (c_.width <= 0 || c_.height <= 0) bug("chart size must be positive");
+  check_forced(c_.x);
+  check_forced(c_.y);
+  std::set<std::string> names;
+  for (const Series& s : c_.series) {
+    check_series(s);
+    if (!names.insert(s.name).second) bug("two series are named \"" + s.name + "\"");
+  }
+  resolve_styles();
+
+  // data extents
+  double xlo = kNaN, xhi = kNaN, ylo = kNaN, yhi = kNaN;
+  auto take = [](double& lo, double& hi, double v) {
+    if (!std::isfinite(v)) return;
+    lo = std::isnan(lo) ? v : std::min(lo, v);
+    hi = std::isnan(hi) ? v : std::max(hi, v);
+  };
+  Scale xs = c_.x.scale;
+  for (const Series& s : c_.series) {
+    switch (s.kind) {
+      case Kind::line:
+      case Kind::points:
+      case Kind::band:
+        for (std::size_t i = 0; i < s.x.size(); ++i) {
+          if (!plottable(s.x[i], xs)) continue;
+          take(xlo, xhi, s.x[i]);
+          if (auto v = value_at(s.y, i)) take(ylo, yhi, *v);
+          if (auto v = value_at(s.y_high, i)) take(ylo, yhi, *v);
+        }
+        break;
+      case Kind::reference:
+        for (std::size_t i = 0; i < s.y.size(); ++i)
+          if (auto v = value_at(s.y, i)) take(ylo, yhi, *v);
+        break;
+      case Kind::span:
+        for (double v : s.x)
+          if (plottable(v, xs)) take(xlo, xhi, v);
+        break;
+      case Kind::annotation:
+        if (plottable(s.x[0], xs)) {
+          take(xlo, xhi, s.x[0]);
+          if (auto v = value_at(s.y, 0)) take(ylo, yhi, *v);
+        }
+        break;
+    }
+  }
+
+  const double W = c_.width, H = c_.height;
+  constexpr double edge = 10;
+  // legend rows, laid out over the full width below the axis label
+  std::vector<std::size_t> legend = legend_order();
+  std::vector<std::pair<double, double>> legend_pos;  // relative x, row
+  {
+    double x = 0, row = 0;
+    for (std::size_t i : legend) {
+      double w = 36 + text_width(c_.series[i].label, kLegendSize);
+      if (x > 0 && x + w > W - 2 * edge) x = 0, row += 1;
+      legend_pos.emplace_back(x, row);
+      x += w + 18;
+    }
+  }
+  double legend_rows = legend_pos.empty() ? 0 : legend_pos.back().second + 1;
+  double top = c_.title.empty() ? 14 : 38;
+  double bottom = 6 + kTickSize + 8 + (c_.x.label.empty() ? 0 : kLabelSize + 8) + legend_rows * 20 +
+                  (legend_rows > 0 ? 6 : 0) + 6;
+  double plot_h = std::max(20.0, H - top - bottom);
+  int ytarget = std::clamp(static_cast<int>(plot_h / 55), 2, 8);
+  yp_ = plan_axis(c_.y, ylo, yhi, ytarget);
+  double ytick_w = 0;
+  for (const Tick& t : yp_.ticks) ytick_w = std::max(ytick_w, text_width(t.label, kTickSize));
+  double left = edge + (c_.y.label.empty() ? 0 : kLabelSize + 8) + ytick_w + 10;
+  double right = 24;
+  double plot_w = std::max(20.0, W - left - right);
+  int xtarget = std::clamp(static_cast<int>(plot_w / 95), 2, 10);
+  xp_ = plan_axis(c_.x, xlo, xhi, xtarget);
+  plot_ = {left, top, left + plot_w, top + plot_h};
+
+  std::string o;
+  o += "<svg xmlns=\"http://www.w3.org/2000/svg\"" + attr("width", W) + attr("height", H) +
+       attr("viewBox", "0 0 " + px(W) + " " + px(H)) + attr("font-family", kFont) + attr("role", "img") + ">\n";
+  o += "<title>" + html_escape(c_.title) + "</title>\n";
+  if (!c_.description.empty()) o += "<desc>" + html_escape(c_.description) + "</desc>\n";
+  o += "<rect class=\"background\"" + attr("width", W) + attr("height", H) + attr("fill", "#ffffff") + "/>\n";
+
+  // grid
+  o += "<g class=\"grid\" fill=\"none\">";
+  auto vline = [&](double x, const char* colour, double w) {
+    return "<path" + attr("d", segment(x, plot_.y0, x, plot_.y1)) +
+           attr("stroke", colour) + attr("stroke-width", w) + "/>";
+  };
+  auto hline = [&](double y, const char* colour, double w) {
+    return "<path" + attr("d", segment(plot_.x0, y, plot_.x1, y)) +
+           attr("stroke", colour) + attr("stroke-width", w) + "/>";
+  };
+  for (const Tick& t : xp_.ticks) o += vline(X(t.value), t.major ? "#dcdcdc" : "#eeeeee", 1.0);
+  for (const Tick& t : yp_.ticks) o += hline(Y(t.value), "#dcdcdc", 1.0);
+  if (c_.y.scale == Scale::linear && yp_.min < 0 && yp_.max > 0) o += hline(Y(0), "#8a8a8a", 1.0);
+  o += "</g>\n";
+
+  // series, back to front: areas under lines, lines under markers and notes
+  o += "<g class=\"plot\">\n";
+  for (Kind layer : {Kind::span, Kind::band, Kind::reference, Kind::line, Kind::points, Kind::annotation})
+    for (std::size_t i = 0; i < c_.series.size(); ++i)
+      if (c_.series[i].kind == layer) o += series_group(i);
+  o += "</g>\n";
+
+  // axes
+  o += "<g class=\"axes\"" + attr("fill", kInk) + ">";
+  o += "<rect" + attr("x", plot_.x0) + attr("y", plot_.y0) + attr("width", plot_w) + attr("height", plot_h) +
+       attr("fill", "none") + attr("stroke", kInk) + attr("stroke-width", 1.0) + "/>";
+  for (const Tick& t : xp_.ticks) {
+    double x = X(t.value), len = t.major ? 5 : 3;
+    o += "<path class=\"tick\"" + attr("data-value", g9(t.value)) +
+         attr("d", segment(x, plot_.y1, x, plot_.y1 + len)) + attr("stroke", kInk) +
+         "/>";
+    if (!t.label.empty()) o += text_element(x, plot_.y1 + 6 + kTickSize, "middle", kTickSize, t.label);
+  }
+  for (const Tick& t : yp_.ticks) {
+    double y = Y(t.value);
+    o += "<path class=\"tick\"" + attr("data-value", g9(t.value)) +
+         attr("d", segment(plot_.x0 - 5, y, plot_.x0, y)) + attr("stroke", kInk) +
+         "/>";
+    if (!t.label.empty()) o += text_element(plot_.x0 - 8, y, "end", kTickSize, t.label, attr("dy", "0.35em"));
+  }
+  double xlabel_y = plot_.y1 + 6 + kTickSize + 8 + kLabelSize;
+  if (!c_.x.label.empty())
+    o += text_element((plot_.x0 + plot_.x1) / 2, xlabel_y, "middle", kLabelSize, c_.x.label);
+  if (!c_.y.label.empty()) {
+    double lx = edge + kLabelSize, ly = (plot_.y0 + plot_.y1) / 2;
+    o += text_element(lx, ly, "middle", kLabelSize, c_.y.label,
+                      attr("transform", "rotate(-90 " + px(lx) + " " + px(ly) + ")"));
+  }
+  o += "</g>\n";
+  if (!c_.title.empty())
+    o += text_element(plot_.x0, 24, "start", kTitleSize, c_.title, attr("font-weight", "600") + attr("fill", kInk));
+
+  if (!legend.empty()) {
+    double y0 = (c_.x.label.empty() ? plot_.y1 + 6 + kTickSize + 8 : xlabel_y + 8) + 12;
+    o += "<g class=\"legend\">";
+    for (std::size_t k = 0; k < legend.size(); ++k) {
+      std::size_t i = legend[k];
+      double x = edge + legend_pos[k].first, y = y0 + legend_pos[k].second * 20;
+      o += "<g class=\"legend-entry\"" + attr("data-name", c_.series[i].name) + ">";
+      o += legend_sample(i, x, y);
+      o += text_element(x + 36, y, "start", kLegendSize, c_.series[i].label, attr("dy", "0.35em") + attr("fill", kInk));
+      o += "</g>";
+    }
+    o += "</g>\n";
+  }
+  o += "</svg>\n";
+  return o;
+}
+
+}  // namespace
+
+Values values(std::span<const double> numbers) {
+  Values out;
+  out.reserve(numbers.size());
+  for (double v : numbers) out.push_back(std::isfinite(v) ? std::optional<double>(v) : std::nullopt);
+  return out;
+}
+
+std::span<const PaletteEntry> palette() { return kPalette; }
+
+AxisPlan plan_axis(const Axis& axis, double data_min, double data_max, int target_intervals) {
+  check_forced(axis);
+  int target = std::clamp(target_intervals, 1, 20);
+  bool log = axis.scale == Scale::log10;
+  bool has_data = std::isfinite(data_min) && std::isfinite(data_max) && (!log || (data_min > 0 && data_max > 0));
+  if (has_data && data_min > data_max) std::swap(data_min, data_max);
+  return log ? plan_log(axis, has_data, data_min, data_max, target)
+             : plan_linear(axis, has_data, data_min, data_max, target);
+}
+
+Series line(std::string name, std::string label, std::vector<double> x, Values y, Style style) {
+  return {Kind::line, std::move(name), std::move(label), std::move(x), std::move(y), {}, style};
+}
+Series band(std::string name, std::string label, std::vector<double> x, Values low, Values high, Style style) {
+  return {Kind::band, std::move(name), std::move(label), std::move(x), std::move(low), std::move(high), style};
+}
+Series points(std::string name, std::string label, std::vector<double> x, Values y, Style style) {
+  return {Kind::points, std::move(name), std::move(label), std::move(x), std::move(y), {}, style};
+}
+Series reference(std::string name, std::string label, std::vector<double> levels) {
+  return {Kind::reference, std::move(name), std::move(label), {}, values(levels), {}, {}};
+}
+Series span(std::string name, std::string label, double from, double to, bool hatched) {
+  Style st;
+  st.hatched = hatched;
+  return {Kind::span, std::move(name), std::move(label), {from, to}, {}, {}, st};
+}
+Series annotation(std::string name, std::string text, double x, double y) {
+  return {Kind::annotation, std::move(name), std::move(text), {x}, {y}, {}, {}};
+}
+
+std::string render(const Chart& chart) { return Renderer(chart).run(); }
+
+std::string render_document(const Chart& chart) {
+  return "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n" + render(chart);
+}
+
+}  // namespace thermargin::svg
