@@ -1,0 +1,152 @@
+// Fitting NTC curve coefficients to resistance–temperature points (the
+// library behind `thermargin fit DATA.csv`), and judging each fit by its
+// error in kelvin.
+//
+// Models: the beta form ln R = ln R25 + B·(1/T − 1/T0), with B between two
+// points as defined in IEC 60539-1, B = ln(R1/R2) / (1/T1 − 1/T2); the
+// Steinhart–Hart form 1/T = A + B·ln R + C·(ln R)³ (Steinhart & Hart,
+// Deep-Sea Research 15, 1968); and the four-term form that adds C·(ln R)²
+// (then D is the cubic coefficient). Each model is linear in its
+// coefficients, so every fit is a (weighted) linear least-squares problem
+// solved by column-pivoting Householder QR (Eigen); a fit through exactly as
+// many points as coefficients is the same problem with zero degrees of
+// freedom. Coefficient uncertainties follow the GUM (JCGM 100:2008, §5.2)
+// applied to the linear estimator: (XᵀWX)⁻¹ with the data's stated
+// uncertainties, s²·(XᵀX)⁻¹ without. The error between data points is
+// measured against a monotone piecewise-cubic (PCHIP, Fritsch & Carlson,
+// SIAM J. Numer. Anal. 17, 1980) interpolation of ln R against 1/T.
+// docs/fit.md explains the weighting and how to read the results.
+#pragma once
+
+#include <cstddef>
+#include <limits>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "thermargin/ntc.hpp"
+#include "thermargin/rt_data.hpp"
+
+namespace thermargin {
+
+// What to fit and where. Temperatures in °C, errors in K.
+struct FitSettings {
+  // The window: only points with t_min ≤ t ≤ t_max take part in the fits and
+  // in the error figures (residuals are still reported for every point).
+  // Default: the whole file.
+  double t_min = -std::numeric_limits<double>::infinity();
+  double t_max = std::numeric_limits<double>::infinity();
+
+  // The two temperatures of the two-point beta. Empty: 25 and 85 °C when
+  // both are data points inside the window (the B25/85 of datasheets), else
+  // the lowest and highest data points inside the window. When given, two
+  // distinct temperatures of data points inside the window.
+  std::vector<double> beta_at;
+
+  // The three temperatures of the three-point Steinhart–Hart. Empty: the
+  // lowest and highest data points inside the window and the data point
+  // nearest the middle of those two (the lower one on a tie). When given,
+  // three distinct temperatures of data points inside the window.
+  std::vector<double> sh_at;
+
+  // The error a model may make anywhere in the window to be recommended (K, > 0).
+  double limit = 0.1;
+
+  // Also fit the four-term form (needs 4 points in the window).
+  bool extended = false;
+
+  // Points sampled strictly between each pair of neighbouring data points
+  // when looking for the largest error between them (≥ 1).
+  int between_samples = 32;
+};
+
+// One coefficient of a fitted model.
+struct FitCoefficient {
+  std::string name;   // "r25", "beta"; "a", "b", "c" (and "d" for the four-term form)
+  std::string unit;   // "ohm", "K", "1/K"
+  double value = 0.0;
+  // Standard uncertainty; absent when nothing supports one (an exact fit to
+  // data without uncertainties: no degrees of freedom left).
+  std::optional<double> uncertainty;
+};
+
+// A model's residual at one data point of the file.
+struct FitResidual {
+  int line = 0;             // line in the file
+  double t_celsius = 0.0;
+  double r_ohm = 0.0;
+  bool in_window = false;
+  double residual = 0.0;    // K: the model's temperature at r_ohm minus t_celsius
+};
+
+// One model fitted by one method, and how well it describes the data.
+struct ModelFit {
+  std::string model;   // "beta", "steinhart-hart", "steinhart-hart-4"
+  std::string method;  // "two-point", "three-point", "least-squares"
+  std::vector<FitCoefficient> coefficients;  // in the model's order
+  std::vector<double> through_celsius;       // the chosen points of a point method; empty otherwise
+
+  bool weighted = false;    // the data's uncertainties weighted the fit
+  int dof = 0;              // points used minus coefficients
+  double chi_squared = 0.0; // Σ (residual/σ)² in the fitted domain; weighted fits only
+
+  std::vector<FitResidual> residuals;  // every data point, in file order
+
+  // Inside the window (K; "at" is the data temperature in °C):
+  double max_residual = 0.0;           // largest |residual| at a data point
+  double max_residual_at = 0.0;
+  double rms_residual = 0.0;
+  bool between_assessed = false;       // false with fewer than 4 data points
+  double between_max_error = 0.0;      // largest |error| between data points
+  double between_max_at = 0.0;
+  double worst_error = 0.0;            // max(max_residual, between_max_error)
+
+  // The value of the coefficient `name`; a name the model does not have is a bug.
+  double value(std::string_view name) const;
+};
+
+struct FitRecommendation {
+  bool found = false;         // a model meets the limit everywhere in the window
+  std::size_t fit = 0;        // index into FitResult::fits: the recommended fit, or the best one when !found
+  double limit = 0.0;         // K
+  std::string text;           // one sentence for people
+};
+
+struct FitResult {
+  std::string file;
+  double window_low = 0.0;    // °C: the lowest and highest data temperatures inside the window
+  double window_high = 0.0;
+  std::size_t points_total = 0;
+  std::size_t points_in_window = 0;
+  bool weighted = false;      // the file carries uncertainties and the least-squares fits use them
+  // In this order: beta two-point, beta least-squares, Steinhart–Hart
+  // three-point, Steinhart–Hart least-squares, then (extended) the
+  // four-term least-squares.
+  std::vector<ModelFit> fits;
+  FitRecommendation recommendation;
+};
+
+// Fits every model to `data` as `settings` asks. Throws input_error naming the
+// file (and line) when the data cannot support a model: fewer points in the
+// window than its coefficients, duplicate temperatures, resistance not
+// monotonic; or when a chosen temperature is not a data point in the window.
+// A model that describes the data badly is a result with large residuals.
+FitResult fit_rt_data(const RtData& data, const FitSettings& settings = {});
+
+// The beta curve through two points (IEC 60539-1): B = ln(R1/R2)/(1/T1 − 1/T2),
+// R25 = R1·exp(−B·(1/T1 − 1/T0)). Kelvin and ohm; T1 ≠ T2.
+BetaCurve beta_through(double t1_kelvin, double r1_ohm, double t2_kelvin, double r2_ohm);
+
+// The fitted curve as the sensor type the rest of the library uses; absent
+// for a fit of another model.
+std::optional<BetaCurve> beta_curve(const ModelFit& fit);
+std::optional<SteinhartHart> steinhart_hart(const ModelFit& fit);
+
+// Lines to paste into a scenario file: the [sensor] and [firmware] sections
+// for the fit result.fits[index], every coefficient with %.10g. The
+// four-term form has no scenario model: its snippet describes the sensor by
+// the data file as a table and lists the coefficients as comments.
+std::string scenario_snippet(const FitResult& result, std::size_t index);
+
+}  // namespace thermargin

@@ -1,0 +1,509 @@
+#include "thermargin/fit.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <stdexcept>
+
+// GCC 12 flags Eigen's AVX-512 transpose kernels (-march=native) with a false
+// -Wmaybe-uninitialized; keep the build quiet for opt-in -Werror.
+#pragma GCC diagnostic push
+#pragma GCC diagnostic ignored "-Wmaybe-uninitialized"
+#include <Eigen/Dense>
+#pragma GCC diagnostic pop
+// Boost 1.74's pchip.hpp calls isnan unqualified; make std::isnan visible to it.
+namespace boost::math::interpolators {
+using std::isnan;
+}
+#include <boost/math/interpolators/pchip.hpp>
+
+#include "thermargin/error.hpp"
+
+namespace thermargin {
+namespace {
+
+// A chosen temperature names a data point when it is this close (°C): far
+// finer than any thermometer, far coarser than the parser's rounding.
+constexpr double same_temperature = 1e-6;
+
+// The weighted Steinhart–Hart fit re-derives its weights from its own slope;
+// the slope changes by parts in 10⁶ between passes, so this converges in two
+// or three.
+constexpr double weight_convergence = 1e-13;
+constexpr int max_weight_passes = 50;
+
+enum class Kind { beta, sh3, sh4 };
+
+const char* model_name(Kind k) {
+  switch (k) {
+    case Kind::beta: return "beta";
+    case Kind::sh3: return "steinhart-hart";
+    case Kind::sh4: return "steinhart-hart-4";
+  }
+  return "";
+}
+
+int coefficient_count(Kind k) { return k == Kind::beta ? 2 : k == Kind::sh3 ? 3 : 4; }
+
+// A data point as the fits see it.
+struct Point {
+  double t_kelvin;
+  double ln_r;
+  double u_ln_r;  // u(R)/R, the standard uncertainty of ln R; 0 without uncertainties
+};
+
+std::string fmt(const char* format, double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, format, v);
+  return buf;
+}
+
+// ---------------------------------------------------------------- the models
+
+Eigen::RowVectorXd design_row(Kind k, const Point& p) {
+  Eigen::RowVectorXd row(coefficient_count(k));
+  const double l = p.ln_r;
+  switch (k) {
+    case Kind::beta: row << 1.0, 1.0 / p.t_kelvin - 1.0 / t0_kelvin; break;
+    case Kind::sh3: row << 1.0, l, l * l * l; break;
+    case Kind::sh4: row << 1.0, l, l * l, l * l * l; break;
+  }
+  return row;
+}
+
+// The beta form is linear in ln R, the Steinhart–Hart forms in 1/T.
+double target(Kind k, const Point& p) { return k == Kind::beta ? p.ln_r : 1.0 / p.t_kelvin; }
+
+double inverse_temperature(Kind k, const Eigen::VectorXd& x, double l) {
+  switch (k) {
+    case Kind::beta: return 1.0 / t0_kelvin + (l - x(0)) / x(1);
+    case Kind::sh3: return x(0) + l * (x(1) + l * l * x(2));
+    case Kind::sh4: return x(0) + l * (x(1) + l * (x(2) + l * x(3)));
+  }
+  return 0.0;
+}
+
+// A curve that gives no positive temperature at this resistance reads 0 K,
+// as the curves of ntc.hpp do: a huge, finite residual instead of a NaN.
+double model_temperature(Kind k, const Eigen::VectorXd& x, double l) {
+  const double inv = inverse_temperature(k, x, l);
+  if (!(inv > 0.0)) return 0.0;
+  const double t = 1.0 / inv;
+  return std::isfinite(t) ? t : 0.0;
+}
+
+// d(1/T)/d(ln R) of a Steinhart–Hart form: what turns u(ln R) into u(1/T).
+double sh_slope(Kind k, const Eigen::VectorXd& x, double l) {
+  return k == Kind::sh3 ? x(1) + 3.0 * x(2) * l * l : x(1) + l * (2.0 * x(2) + 3.0 * l * x(3));
+}
+
+// ------------------------------------------------------------ least squares
+
+struct LinearSolution {
+  Eigen::VectorXd x;
+  std::optional<Eigen::MatrixXd> covariance;
+  double chi_squared = 0.0;  // Σ of squared (weighted) residuals
+};
+
+// Minimises ‖(X·x − y)/σ‖ (σ = 1 when `sigma` is null). With σ the stated
+// standard uncertainties of y, cov(x) = (XᵀWX)⁻¹ (GUM applied to a linear
+// estimator); without, the scatter estimates them: s²·(XᵀX)⁻¹, s² = SSR/dof,
+// and an exact fit (dof = 0) has no covariance.
+LinearSolution solve(Eigen::MatrixXd x, Eigen::VectorXd y, const Eigen::VectorXd* sigma) {
+  const Eigen::Index n = x.rows();
+  const Eigen::Index p = x.cols();
+  if (sigma) {
+    for (Eigen::Index i = 0; i < n; ++i) {
+      x.row(i) /= (*sigma)(i);
+      y(i) /= (*sigma)(i);
+    }
+  }
+  // Columns as unlike as 1 and (ln R)³ ≈ 10³ are brought to unit norm so that
+  // the pivoting and the rank decision compare like with like.
+  Eigen::VectorXd scale = x.colwise().norm().transpose();
+  for (Eigen::Index j = 0; j < p; ++j)
+    if (!(scale(j) > 0.0)) scale(j) = 1.0;
+  const Eigen::VectorXd inv_scale = scale.cwiseInverse();
+  const Eigen::MatrixXd xs = x * inv_scale.asDiagonal();
+  const Eigen::ColPivHouseholderQR<Eigen::MatrixXd> qr(xs);
+
+  LinearSolution s;
+  s.x = qr.solve(y).cwiseProduct(inv_scale);
+  s.chi_squared = (y - x * s.x).squaredNorm();
+  if (qr.rank() == p) {
+    const Eigen::MatrixXd r = qr.matrixR().topLeftCorner(p, p).triangularView<Eigen::Upper>();
+    const Eigen::MatrixXd r_inv = r.triangularView<Eigen::Upper>().solve(Eigen::MatrixXd::Identity(p, p));
+    const Eigen::MatrixXd cov_scaled =
+        qr.colsPermutation() * (r_inv * r_inv.transpose()) * qr.colsPermutation().transpose();
+    const Eigen::MatrixXd cov = inv_scale.asDiagonal() * cov_scaled * inv_scale.asDiagonal();
+    const Eigen::Index dof = n - p;
+    if (sigma)
+      s.covariance = cov;
+    else if (dof > 0)
+      s.covariance = cov * (s.chi_squared / static_cast<double>(dof));
+  }
+  return s;
+}
+
+// Fits model `k` to the points `use`. With uncertainties the beta form
+// weighs ln R by R/u(R) directly; the Steinhart–Hart forms, whose fitted
+// quantity is 1/T, carry u(ln R) over to 1/T through the model's own slope
+// (the "effective variance" of a point), re-fitting until the weights settle.
+LinearSolution fit_points(Kind k, const std::vector<Point>& pts, const std::vector<std::size_t>& use, bool weighted) {
+  const auto n = static_cast<Eigen::Index>(use.size());
+  Eigen::MatrixXd x(n, coefficient_count(k));
+  Eigen::VectorXd y(n);
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const Point& p = pts[use[static_cast<std::size_t>(i)]];
+    x.row(i) = design_row(k, p);
+    y(i) = target(k, p);
+  }
+  if (!weighted) return solve(x, y, nullptr);
+
+  Eigen::VectorXd sigma(n);
+  if (k == Kind::beta) {
+    for (Eigen::Index i = 0; i < n; ++i) sigma(i) = pts[use[static_cast<std::size_t>(i)]].u_ln_r;
+    return solve(x, y, &sigma);
+  }
+  LinearSolution s = solve(x, y, nullptr);
+  for (int pass = 0; pass < max_weight_passes; ++pass) {
+    Eigen::VectorXd next(n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+      const Point& p = pts[use[static_cast<std::size_t>(i)]];
+      next(i) = std::abs(sh_slope(k, s.x, p.ln_r)) * p.u_ln_r;
+    }
+    // A fit whose slope vanished at a point would give it infinite weight;
+    // no real thermistor does that, so such a point is merely capped.
+    const double floor = 1e-9 * next.maxCoeff();
+    for (Eigen::Index i = 0; i < n; ++i) next(i) = std::max(next(i), floor);
+    const bool settled =
+        pass > 0 && ((next - sigma).cwiseAbs().array() <= weight_convergence * next.array()).all();
+    sigma = next;
+    s = solve(x, y, &sigma);
+    if (settled) break;
+  }
+  return s;
+}
+
+// --------------------------------------------------------- between points
+
+// ln R against 1/T through every data point, monotone between them.
+struct Interpolation {
+  std::vector<double> inv_t;  // ascending
+  std::vector<double> ln_r;
+  std::vector<bool> in_window;
+  std::optional<boost::math::interpolators::pchip<std::vector<double>>> curve;
+};
+
+// The slope at an end of the data: Boost's default (the end secant) is only
+// first-order and shows up as a spurious between-point error in the end
+// intervals; the shape-preserving three-point formula (C. Moler, Numerical
+// Computing with MATLAB, SIAM 2004, §3.4) is second-order. h1, d1: the end
+// interval's width and secant; h2, d2: its neighbour's.
+double end_slope(double h1, double h2, double d1, double d2) {
+  const double d = ((2.0 * h1 + h2) * d1 - h1 * d2) / (h1 + h2);
+  if ((d > 0.0) != (d1 > 0.0)) return 0.0;
+  if ((d1 > 0.0) != (d2 > 0.0) && std::abs(d) > std::abs(3.0 * d1)) return 3.0 * d1;
+  return d;
+}
+
+Interpolation make_interpolation(const std::vector<Point>& pts, const std::vector<bool>& in_window) {
+  std::vector<std::size_t> order(pts.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) { return pts[a].t_kelvin > pts[b].t_kelvin; });
+  Interpolation in;
+  for (std::size_t i : order) {
+    in.inv_t.push_back(1.0 / pts[i].t_kelvin);
+    in.ln_r.push_back(pts[i].ln_r);
+    in.in_window.push_back(in_window[i]);
+  }
+  // Boost's PCHIP needs four points; with fewer, the error between points is
+  // not assessed (and the result says so).
+  const std::size_t n = pts.size();
+  if (n >= 4) {
+    const auto& x = in.inv_t;
+    const auto& y = in.ln_r;
+    const double left = end_slope(x[1] - x[0], x[2] - x[1], (y[1] - y[0]) / (x[1] - x[0]), (y[2] - y[1]) / (x[2] - x[1]));
+    const double right = end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
+                                   (y[n - 2] - y[n - 3]) / (x[n - 2] - x[n - 3]));
+    std::vector<double> xs = x;
+    std::vector<double> ys = y;
+    in.curve.emplace(std::move(xs), std::move(ys), left, right);
+  }
+  return in;
+}
+
+void assess_between(ModelFit& f, Kind k, const Eigen::VectorXd& x, const Interpolation& in, int samples) {
+  if (!in.curve) return;
+  f.between_assessed = true;
+  for (std::size_t i = 0; i + 1 < in.inv_t.size(); ++i) {
+    if (!in.in_window[i] || !in.in_window[i + 1]) continue;
+    for (int s = 1; s <= samples; ++s) {
+      const double inv_t =
+          in.inv_t[i] + (in.inv_t[i + 1] - in.inv_t[i]) * static_cast<double>(s) / static_cast<double>(samples + 1);
+      const double t = 1.0 / inv_t;
+      const double error = std::abs(model_temperature(k, x, (*in.curve)(inv_t)) - t);
+      if (error > f.between_max_error) {
+        f.between_max_error = error;
+        f.between_max_at = t - kelvin_offset;
+      }
+    }
+  }
+}
+
+// -------------------------------------------------------------- one result
+
+ModelFit make_fit(Kind k, const char* method, const std::vector<Point>& pts, const RtData& data,
+                  const std::vector<bool>& in_window, const std::vector<std::size_t>& use, bool weighted,
+                  const Interpolation& in, int samples) {
+  const LinearSolution s = fit_points(k, pts, use, weighted);
+  ModelFit f;
+  f.model = model_name(k);
+  f.method = method;
+  f.weighted = weighted;
+  f.dof = static_cast<int>(use.size()) - coefficient_count(k);
+  f.chi_squared = weighted ? s.chi_squared : 0.0;
+  if (f.method != "least-squares")
+    for (std::size_t i : use) f.through_celsius.push_back(data.points[i].t_celsius);
+
+  auto u = [&](Eigen::Index i) -> std::optional<double> {
+    if (!s.covariance) return std::nullopt;
+    return std::sqrt(std::max(0.0, (*s.covariance)(i, i)));
+  };
+  if (k == Kind::beta) {
+    const double r25 = std::exp(s.x(0));
+    const auto u_ln = u(0);
+    f.coefficients.push_back({"r25", "ohm", r25, u_ln ? std::optional<double>(r25 * *u_ln) : std::nullopt});
+    f.coefficients.push_back({"beta", "K", s.x(1), u(1)});
+  } else {
+    const char* names[] = {"a", "b", "c", "d"};
+    for (Eigen::Index i = 0; i < s.x.size(); ++i)
+      f.coefficients.push_back({names[i], "1/K", s.x(i), u(i)});
+  }
+
+  double sum_sq = 0.0;
+  std::size_t count = 0;
+  for (std::size_t i = 0; i < pts.size(); ++i) {
+    const RtPoint& p = data.points[i];
+    const double residual = model_temperature(k, s.x, pts[i].ln_r) - pts[i].t_kelvin;
+    f.residuals.push_back({p.line, p.t_celsius, p.r_ohm, in_window[i], residual});
+    if (!in_window[i]) continue;
+    sum_sq += residual * residual;
+    ++count;
+    if (std::abs(residual) > f.max_residual || count == 1) {
+      f.max_residual = std::abs(residual);
+      f.max_residual_at = p.t_celsius;
+    }
+  }
+  f.rms_residual = std::sqrt(sum_sq / static_cast<double>(count));
+  assess_between(f, k, s.x, in, samples);
+  f.worst_error = std::max(f.max_residual, f.between_max_error);
+  return f;
+}
+
+// ------------------------------------------------------- choosing points
+
+std::string list_temperatures(const RtData& data, const std::vector<std::size_t>& window) {
+  std::string text;
+  constexpr std::size_t shown = 12;
+  for (std::size_t j = 0; j < window.size() && j < shown; ++j) {
+    if (j) text += ", ";
+    text += fmt("%g", data.points[window[j]].t_celsius);
+  }
+  if (window.size() > shown) text += ", ... (" + std::to_string(window.size()) + " points)";
+  return text;
+}
+
+// The window's points (sorted by temperature) whose temperatures are `wanted`.
+std::vector<std::size_t> pick(const RtData& data, const std::vector<std::size_t>& window,
+                              const std::vector<double>& wanted, const char* key) {
+  std::string given;
+  for (double t : wanted) given += (given.empty() ? "" : ", ") + fmt("%g", t);
+  const Where where{Origin::command_line, "", 0, key};
+  std::vector<std::size_t> chosen;
+  for (double t : wanted) {
+    auto it = std::find_if(window.begin(), window.end(), [&](std::size_t i) {
+      return std::abs(data.points[i].t_celsius - t) <= same_temperature;
+    });
+    if (it == window.end())
+      reject(where, given,
+             "must be temperatures (degC) of data points in " + data.file +
+                 " inside the fit window: " + list_temperatures(data, window));
+    if (std::find(chosen.begin(), chosen.end(), *it) != chosen.end())
+      reject(where, given, "must be distinct temperatures");
+    chosen.push_back(*it);
+  }
+  return chosen;
+}
+
+void check_settings(const FitSettings& s) {
+  const Where window{Origin::command_line, "", 0, "fit.window"};
+  if (std::isnan(s.t_min) || std::isnan(s.t_max) || s.t_min > s.t_max)
+    reject(window, fmt("%g", s.t_min) + ".." + fmt("%g", s.t_max), "must be t_min..t_max in degC with t_min <= t_max");
+  if (!(s.limit > 0.0) || !std::isfinite(s.limit))
+    reject({Origin::command_line, "", 0, "fit.limit"}, fmt("%g", s.limit), "must be an error in K > 0");
+  if (s.between_samples < 1 || s.between_samples > 100000)
+    reject({Origin::command_line, "", 0, "fit.between_samples"}, std::to_string(s.between_samples),
+           "must be a whole number from 1 to 100000");
+  if (!s.beta_at.empty() && s.beta_at.size() != 2)
+    reject({Origin::command_line, "", 0, "fit.beta_at"}, std::to_string(s.beta_at.size()) + " temperatures",
+           "must be two temperatures in degC, or none for the default");
+  if (!s.sh_at.empty() && s.sh_at.size() != 3)
+    reject({Origin::command_line, "", 0, "fit.sh_at"}, std::to_string(s.sh_at.size()) + " temperatures",
+           "must be three temperatures in degC, or none for the default");
+}
+
+std::string describe(const ModelFit& f) { return f.model + " (" + f.method + ")"; }
+
+FitRecommendation recommend(const FitResult& r, const FitSettings& s) {
+  FitRecommendation rec;
+  rec.limit = s.limit;
+  const std::string window = fmt("%g", r.window_low) + ".." + fmt("%g", r.window_high) + " degC";
+  for (const char* model : {"beta", "steinhart-hart", "steinhart-hart-4"}) {
+    for (std::size_t i = 0; i < r.fits.size(); ++i) {
+      const ModelFit& f = r.fits[i];
+      if (f.model != model || !(f.worst_error <= s.limit)) continue;
+      if (!rec.found || f.worst_error < r.fits[rec.fit].worst_error) rec.fit = i;
+      rec.found = true;
+    }
+    if (rec.found) break;
+  }
+  if (rec.found) {
+    const ModelFit& f = r.fits[rec.fit];
+    rec.text = describe(f) + " is the simplest model within " + fmt("%g", s.limit) + " K over " + window +
+               ": its largest error there is " + fmt("%.3g", f.worst_error) + " K.";
+  } else {
+    for (std::size_t i = 1; i < r.fits.size(); ++i)
+      if (r.fits[i].worst_error < r.fits[rec.fit].worst_error) rec.fit = i;
+    const ModelFit& f = r.fits[rec.fit];
+    rec.text = "No NTC model meets " + fmt("%g", s.limit) + " K over " + window + ": the closest, " + describe(f) +
+               ", is off by up to " + fmt("%.3g", f.worst_error) +
+               " K. Describe this sensor by its table (or, for a platinum RTD, the rtd model)" +
+               (s.extended ? "." : ", or try the four-term form.");
+  }
+  if (!r.fits.empty() && !r.fits.front().between_assessed)
+    rec.text += " The error between data points was not assessed: that needs at least 4 points in the file.";
+  return rec;
+}
+
+}  // namespace
+
+double ModelFit::value(std::string_view name) const {
+  for (const auto& c : coefficients)
+    if (c.name == name) return c.value;
+  throw std::out_of_range("ModelFit::value: model " + model + " has no coefficient " + std::string(name));
+}
+
+BetaCurve beta_through(double t1, double r1, double t2, double r2) {
+  const double beta = std::log(r1 / r2) / (1.0 / t1 - 1.0 / t2);
+  return {r1 * std::exp(-beta * (1.0 / t1 - 1.0 / t0_kelvin)), beta};
+}
+
+std::optional<BetaCurve> beta_curve(const ModelFit& f) {
+  if (f.model != "beta") return std::nullopt;
+  return BetaCurve{f.value("r25"), f.value("beta")};
+}
+
+std::optional<SteinhartHart> steinhart_hart(const ModelFit& f) {
+  if (f.model != "steinhart-hart") return std::nullopt;
+  return SteinhartHart{f.value("a"), f.value("b"), f.value("c")};
+}
+
+FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
+  check_settings(settings);
+  require_monotonic(data);
+
+  FitResult result;
+  result.file = data.file;
+  result.points_total = data.points.size();
+  result.weighted = data.has_uncertainty;
+
+  std::vector<Point> pts;
+  std::vector<bool> in_window;
+  std::vector<std::size_t> window;  // indices into data.points, by rising temperature
+  for (std::size_t i = 0; i < data.points.size(); ++i) {
+    const RtPoint& p = data.points[i];
+    pts.push_back({p.t_celsius + kelvin_offset, std::log(p.r_ohm), p.u_ohm / p.r_ohm});
+    const bool inside = p.t_celsius >= settings.t_min && p.t_celsius <= settings.t_max;
+    in_window.push_back(inside);
+    if (inside) window.push_back(i);
+  }
+  std::sort(window.begin(), window.end(),
+            [&](std::size_t a, std::size_t b) { return data.points[a].t_celsius < data.points[b].t_celsius; });
+  result.points_in_window = window.size();
+
+  const std::size_t needed = settings.extended ? 4 : 3;
+  if (window.size() < needed) {
+    const bool windowed = window.size() < data.points.size();
+    int line = 0;
+    for (std::size_t i : window) line = std::max(line, data.points[i].line);
+    if (line == 0 && !data.points.empty()) line = data.points.back().line;
+    reject_at(data.file, line,
+              std::string(data.points.empty() ? "no data points" : "only " + std::to_string(window.size()) +
+                                                                       " data point(s)") +
+                  (windowed ? " inside the fit window " + fmt("%g", settings.t_min) + ".." + fmt("%g", settings.t_max) +
+                                  " degC"
+                            : "") +
+                  "; the " + (settings.extended ? "four-term" : "Steinhart-Hart") + " model needs at least " +
+                  std::to_string(needed) + (windowed ? ": widen the window or add points" : ": add points"));
+  }
+  result.window_low = data.points[window.front()].t_celsius;
+  result.window_high = data.points[window.back()].t_celsius;
+
+  std::vector<std::size_t> beta_points;
+  if (!settings.beta_at.empty()) {
+    beta_points = pick(data, window, settings.beta_at, "fit.beta_at");
+  } else {
+    auto has = [&](double t) {
+      return std::any_of(window.begin(), window.end(),
+                         [&](std::size_t i) { return std::abs(data.points[i].t_celsius - t) <= same_temperature; });
+    };
+    beta_points = has(25.0) && has(85.0) ? pick(data, window, {25.0, 85.0}, "fit.beta_at")
+                                         : std::vector<std::size_t>{window.front(), window.back()};
+  }
+
+  std::vector<std::size_t> sh_points;
+  if (!settings.sh_at.empty()) {
+    sh_points = pick(data, window, settings.sh_at, "fit.sh_at");
+  } else {
+    const double middle = 0.5 * (result.window_low + result.window_high);
+    std::size_t best = window[1];
+    for (std::size_t j = 1; j + 1 < window.size(); ++j)
+      if (std::abs(data.points[window[j]].t_celsius - middle) < std::abs(data.points[best].t_celsius - middle))
+        best = window[j];
+    sh_points = {window.front(), best, window.back()};
+  }
+
+  const Interpolation in = make_interpolation(pts, in_window);
+  const bool w = data.has_uncertainty;
+  const int n = settings.between_samples;
+  result.fits.push_back(make_fit(Kind::beta, "two-point", pts, data, in_window, beta_points, w, in, n));
+  result.fits.push_back(make_fit(Kind::beta, "least-squares", pts, data, in_window, window, w, in, n));
+  result.fits.push_back(make_fit(Kind::sh3, "three-point", pts, data, in_window, sh_points, w, in, n));
+  result.fits.push_back(make_fit(Kind::sh3, "least-squares", pts, data, in_window, window, w, in, n));
+  if (settings.extended)
+    result.fits.push_back(make_fit(Kind::sh4, "least-squares", pts, data, in_window, window, w, in, n));
+  result.recommendation = recommend(result, settings);
+  return result;
+}
+
+std::string scenario_snippet(const FitResult& result, std::size_t index) {
+  const ModelFit& f = result.fits.at(index);
+  std::string text = "# thermargin fit of " + result.file + ": " + describe(f) + ", largest error " +
+                     fmt("%.3g", f.worst_error) + " K over " + fmt("%g", result.window_low) + ".." +
+                     fmt("%g", result.window_high) + " degC\n";
+  std::string coefficients;
+  for (const auto& c : f.coefficients) coefficients += c.name + " = " + fmt("%.10g", c.value) + "\n";
+  if (f.model == "steinhart-hart-4") {
+    text += "# The four-term form 1/T = a + b ln R + c (ln R)^2 + d (ln R)^3 has no scenario model:\n";
+    for (const auto& c : f.coefficients) text += "#   " + c.name + " = " + fmt("%.10g", c.value) + "\n";
+    text += "# so the sensor is described by the data as a table, and the firmware by a lookup table.\n";
+    text += "[sensor]\nmodel = table\ntable_file = " + result.file + "\n\n[firmware]\nconversion = table\n";
+    return text;
+  }
+  text += "[sensor]\nmodel = " + f.model + "\n" + coefficients;
+  text += "\n[firmware]\nconversion = " + f.model + "\n" + coefficients;
+  return text;
+}
+
+}  // namespace thermargin
