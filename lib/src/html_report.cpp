@@ -342,11 +342,11 @@ HtmlDocument& HtmlDocument::preformatted(std::string_view text) {
 }
 
 std::string HtmlDocument::str() const {
-  std::string out = "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n";
+  std::string out = "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n";
   // Belt and braces: even if something unescaped slipped in, nothing runs or loads.
   out += "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'; "
-         "img-src data:\">\n";
-  out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n";
+         "img-src data:\"/>\n";
+  out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n";
   out += "<title>" + html_escape(title_) + "</title>\n<style>" + std::string(kStyle) + "</style>\n</head>\n<body>\n";
   out += "<h1>" + html_escape(title_) + "</h1>\n";
   out += body_;

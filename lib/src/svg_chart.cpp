@@ -165,21 +165,24 @@ std::string superscript(int n) {
   return s;
 }
 
-// 1e6 and up (or tiny) as "10⁶" or "2×10⁶" rather than "1e+06".
-std::string power_label(double v) {
+// 1e6 and up (or tiny) as "10⁶" or "2×10⁶" rather than "1e+06". A bare
+// decade suits a log axis; a linear axis keeps "1×10⁹" beside "2×10⁹".
+std::string power_label(double v, bool bare_decade) {
   double a = std::fabs(v);
   if (v == 0 || (a >= 1e-4 && a < 1e6)) return with_true_minus(general(v, 6));
   int e = static_cast<int>(std::floor(std::log10(a) + 1e-12));
   double mant = v / scaled(1, e);
   std::string m = general(mant, 6);
-  std::string s = (m == "1" ? std::string() : m + "\u00d7") + "10" + superscript(e);
+  std::string s = bare_decade && m == "1" ? std::string() : m + "\u00d7";
+  s += "10";
+  s += superscript(e);
   return with_true_minus(s);
 }
 
 std::string linear_label(double v, const Step& step, double magnitude, bool si) {
   if (si) return si_label(v);
   int decimals = std::max(0, -step.exp);
-  if (decimals > 8 || magnitude >= 1e9) return power_label(v);
+  if (decimals > 8 || magnitude >= 1e9) return power_label(v, false);
   char buf[64];
   auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::fixed, decimals);
   return with_true_minus(std::string(buf, r.ptr));
@@ -263,7 +266,7 @@ AxisPlan plan_log(const Axis& axis, bool has_data, double lo, double hi, int tar
   }
   double decades = std::log10(plan.max / plan.min);
   int every = std::max(1, static_cast<int>(std::ceil(decades / std::max(target, 1) / 2.0)));
-  auto label = [&](double v) { return axis.si_prefix ? si_label(v) : power_label(v); };
+  auto label = [&](double v) { return axis.si_prefix ? si_label(v) : power_label(v, true); };
   int n0 = floor125(plan.min) - 1, n1 = ceil125(plan.max) + 1;
   for (int n = n0; n <= n1; ++n) {
     double v = seq125(n);
