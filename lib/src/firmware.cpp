@@ -1,5 +1,6 @@
 #include "thermargin/firmware.hpp"
 
+#include <algorithm>
 #include <cmath>
 
 #include "thermargin/divider.hpp"
@@ -86,20 +87,29 @@ LookupTable build_lookup_table(const Design& d, const Firmware& exact, int point
   const double span_codes = d.adc_span();
   const double v_ratio = d.supply.ratiometric ? 1.0 : d.supply.v_excitation / d.supply.v_reference;
   double lo = span_codes, hi = 0.0;
-  for (double t : {d.conditions.t_min, d.conditions.t_max}) {
+  // A sensor known only by its R-T table has no curve beyond the table's ends.
+  double t_lo = d.conditions.t_min, t_hi = d.conditions.t_max;
+  if (d.sensor.kind == SensorKind::table) {
+    t_lo = std::max(t_lo, d.sensor.table->t_min_kelvin() - kelvin_offset);
+    t_hi = std::min(t_hi, d.sensor.table->t_max_kelvin() - kelvin_offset);
+  }
+  for (double t : {t_lo, t_hi}) {
     const auto l = nominal_ln_resistance(d.sensor, t + kelvin_offset);
     const double rb = l ? branch_resistance(std::exp(*l), d.sensor.lead_resistance, d.divider.r_parallel) : 0.0;
     const double c = l ? divider_ratio(d.divider.placement, d.divider.r_fixed, rb) * v_ratio * span_codes
-                       : (t == d.conditions.t_min ? 0.0 : span_codes);
+                       : (t == t_lo ? 0.0 : span_codes);
     lo = std::min(lo, c);
     hi = std::max(hi, c);
   }
   const double margin = 0.05 * (hi - lo);
   LookupTable table;
   table.unit = unit;
-  const std::int64_t first_code = std::max<std::int64_t>(static_cast<std::int64_t>(std::floor(lo - margin)), 1);
+  std::int64_t first_code = std::max<std::int64_t>(static_cast<std::int64_t>(std::floor(lo - margin)), 1);
   const std::int64_t last_wanted = std::min<std::int64_t>(static_cast<std::int64_t>(std::ceil(hi + margin)),
                                                           static_cast<std::int64_t>(span_codes) - 2);
+  // The margin may reach past the codes with a solution (a table sensor's
+  // ends): the table starts at the first code that has one.
+  while (first_code < last_wanted && !exact.exact_temperature(static_cast<double>(first_code))) ++first_code;
   const std::int64_t span = std::max<std::int64_t>(last_wanted - first_code, 1);
   table.first_code = first_code;
   table.step = std::max<std::int64_t>((span + points - 2) / (points - 1), 1);
