@@ -9,6 +9,7 @@
 #include <unistd.h>
 
 #include <Eigen/Dense>
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -21,6 +22,7 @@
 
 #include "thermargin/error.hpp"
 #include "thermargin/ntc.hpp"
+#include "thermargin/number.hpp"
 #include "thermargin/rt_data.hpp"
 
 namespace thermargin {
@@ -36,11 +38,14 @@ constexpr double sh_c = 8.76741e-8;
 // double rounding: 1e-9 relative leaves a wide margin.
 constexpr double recover_rel = 1e-9;
 // Two solvers (Eigen QR here, LAPACK SVD in NumPy) on the same least-squares
-// problem agree to its condition number times machine epsilon; the four-term
-// form is the worst conditioned (nearly collinear ln R, ln²R, ln³R).
+// problem agree to its condition number times machine epsilon. Observed when
+// these tolerances were set: coefficients 5e-13 (three-term) and 4e-10 (the
+// four-term form, whose ln R, ln²R, ln³R columns are nearly collinear),
+// uncertainties 2e-12, residuals 2e-11 K. Stopping the weighted fit's
+// re-weighting after one pass moves the uncertainties by 1e-6: caught.
 constexpr double numpy_coef_rel = 1e-8;
-constexpr double numpy_u_rel = 1e-9;        // uncertainties go through a matrix inverse
-constexpr double numpy_residual_k = 1e-9;   // residuals are O(0.01..10 K) differences of ~300 K
+constexpr double numpy_u_rel = 1e-9;
+constexpr double numpy_residual_k = 1e-9;
 constexpr double exact_rel = 1e-12;         // closed-form formulas evaluated two ways
 
 std::string data_file(const std::string& name) { return std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/fit/" + name; }
@@ -310,6 +315,13 @@ TEST(FitBeta, TwoPointEqualsIec60539Definition) {
   EXPECT_LT(rel(f.value("beta"), b25_85), exact_rel);
   EXPECT_LT(rel(f.value("r25"), r25), exact_rel);  // the curve passes through R(25 °C)
   EXPECT_NEAR(f.residuals[13].residual, 0.0, 1e-9);  // 25 °C is the 14th point
+  const BetaCurve closed = beta_through(298.15, r25, 358.15, r85);
+  EXPECT_LT(rel(closed.beta, b25_85), exact_rel);
+  EXPECT_LT(rel(closed.r25, r25), exact_rel);
+  // Chosen away from 25 °C, R25 comes from the curve through the two points.
+  const BetaCurve off = beta_through(273.15, 32650.374707926923, 373.15, 678.42351102339057);
+  EXPECT_LT(rel(off.r25 * std::exp(off.beta * (1 / 273.15 - 1 / 298.15)), 32650.374707926923), exact_rel);
+  EXPECT_LT(rel(off.r25 * std::exp(off.beta * (1 / 373.15 - 1 / 298.15)), 678.42351102339057), exact_rel);
 }
 
 TEST(FitBeta, TwoPointFallsBackToWindowEnds) {
@@ -367,6 +379,22 @@ TEST(FitBeta, LeastSquaresRecoversABetaCurve) {
   EXPECT_LT(rel(f.value("r25"), 10000.0), exact_rel);
   EXPECT_LT(rel(f.value("beta"), 3950.0), exact_rel);
   EXPECT_LT(f.worst_error, 1e-9);
+}
+
+TEST(FitData, FileOrderDoesNotMatter) {
+  // The same points listed from hot to cold give the same fits.
+  const RtData up = read_rt_data(data_file("sh10k_rounded_u.csv"));
+  RtData down = up;
+  std::reverse(down.points.begin(), down.points.end());
+  const FitResult a = fit_rt_data(up);
+  const FitResult b = fit_rt_data(down);
+  ASSERT_EQ(a.fits.size(), b.fits.size());
+  for (std::size_t i = 0; i < a.fits.size(); ++i) {
+    EXPECT_EQ(a.fits[i].through_celsius.size(), b.fits[i].through_celsius.size());
+    for (std::size_t j = 0; j < a.fits[i].coefficients.size(); ++j)
+      EXPECT_LT(rel(a.fits[i].coefficients[j].value, b.fits[i].coefficients[j].value), 1e-12) << a.fits[i].model;
+    EXPECT_NEAR(a.fits[i].worst_error, b.fits[i].worst_error, 1e-12) << a.fits[i].model;
+  }
 }
 
 // ------------------------------------------------------------ between points
@@ -530,7 +558,10 @@ double snippet_value(const std::string& text, const std::string& section, const 
   const auto at = text.find("[" + section + "]");
   const auto line = text.find("\n" + key + " = ", at);
   if (at == std::string::npos || line == std::string::npos) throw std::runtime_error(section + "." + key + " missing");
-  return std::stod(text.substr(line + key.size() + 4));
+  const auto start = line + key.size() + 4;
+  // Read back as a scenario file reads it: the engineering-number parser.
+  return parse_quantity(text.substr(start, text.find('\n', start) - start),
+                        key == "r25" ? Quantity::resistance : Quantity::plain, Where{Origin::file, "snippet", 0, key});
 }
 
 TEST(FitSnippet, CarriesTheCoefficientsToTenDigits) {

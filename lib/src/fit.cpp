@@ -498,6 +498,7 @@ std::string scenario_snippet(const FitResult& result, std::size_t index) {
     text += "# The four-term form 1/T = a + b ln R + c (ln R)^2 + d (ln R)^3 has no scenario model:\n";
     for (const auto& c : f.coefficients) text += "#   " + c.name + " = " + fmt("%.10g", c.value) + "\n";
     text += "# so the sensor is described by the data as a table, and the firmware by a lookup table.\n";
+    text += "# (table_file is read relative to the scenario file: adjust the path if needed.)\n";
     text += "[sensor]\nmodel = table\ntable_file = " + result.file + "\n\n[firmware]\nconversion = table\n";
     return text;
   }

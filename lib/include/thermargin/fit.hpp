@@ -30,7 +30,9 @@
 
 namespace thermargin {
 
-// What to fit and where. Temperatures in °C, errors in K.
+// What to fit and where. Temperatures in °C, errors in K. A setting that
+// cannot be used is refused with an input_error that names it as the command
+// line would: fit.window, fit.beta_at, fit.sh_at, fit.limit, fit.between_samples.
 struct FitSettings {
   // The window: only points with t_min ≤ t ≤ t_max take part in the fits and
   // in the error figures (residuals are still reported for every point).
