@@ -56,13 +56,26 @@ FrontEnd Chain::front_end(const Deviations& dev, double t_c) const {
   double r_element = 0.0;
   if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
     const double gain = d.divider.duty / (d.sensor.dissipation * (1.0 + at(dev, Source::dissipation)));
-    const SelfHeating sh = solve_self_heating(t_true_k, [&](double t) -> std::optional<double> {
+    const auto rise_at = [&](double t) -> std::optional<double> {
       const auto l = sensor.ln_resistance(t);
       if (!l) return std::nullopt;
       const double r = std::exp(*l);
       const double v = element_voltage(d.divider.placement, supply.v_excitation, r_fixed, r, r_lead, r_par);
       return gain * v * v / r;
-    });
+    };
+    // Runaway already at the true temperature: the rise grows faster than the
+    // temperature (loop gain d·(dP/dT)/δ ≥ 1), so the element heats until the
+    // divider limits it. The iteration would jump past that and may settle
+    // on a far equilibrium (thousands of kelvin): refuse it here.
+    constexpr double probe = 1e-3;  // K
+    const auto r0 = rise_at(t_true_k), r1 = rise_at(t_true_k + probe);
+    if (r0 && r1 && (*r1 - *r0) / probe >= 1.0) {
+      fe.status = Status::runaway;
+      fe.t_element = t_c + *r0;
+      fe.rise = *r0;
+      return fe;
+    }
+    const SelfHeating sh = solve_self_heating(t_true_k, rise_at);
     if (sh.outcome == SelfHeating::Outcome::out_of_range) {
       fe.status = Status::out_of_table;
       return fe;
