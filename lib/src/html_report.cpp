@@ -282,7 +282,7 @@ HtmlDocument& HtmlDocument::verdict(Verdict verdict, std::string_view detail) {
   // The word and the symbol carry the result; colour and border only repeat it.
   bool pass = verdict == Verdict::pass;
   body_ += std::string("<div class=\"verdict ") + (pass ? "pass" : "fail") + "\" role=\"status\"><span class=\"mark\">" +
-           (pass ? "\u2714 PASS" : "\u2718 FAIL") + "</span>" + html_escape(detail) + "</div>\n";
+           (pass ? "\u2714 PASS" : "\u2718 FAIL") + "</span> " + html_escape(detail) + "</div>\n";
   return *this;
 }
 
@@ -331,7 +331,7 @@ HtmlDocument& HtmlDocument::chart(const svg::Chart& chart, std::string_view capt
 }
 
 HtmlDocument& HtmlDocument::caution(std::string_view text) {
-  body_ += "<div class=\"caution\" role=\"note\"><span class=\"mark\">\u26a0 Caution:</span>" + html_escape(text) +
+  body_ += "<div class=\"caution\" role=\"note\"><span class=\"mark\">\u26a0 Caution:</span> " + html_escape(text) +
            "</div>\n";
   return *this;
 }
@@ -344,8 +344,7 @@ HtmlDocument& HtmlDocument::preformatted(std::string_view text) {
 std::string HtmlDocument::str() const {
   std::string out = "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n";
   // Belt and braces: even if something unescaped slipped in, nothing runs or loads.
-  out += "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'; "
-         "img-src data:\"/>\n";
+  out += "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'\"/>\n";
   out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n";
   out += "<title>" + html_escape(title_) + "</title>\n<style>" + std::string(kStyle) + "</style>\n</head>\n<body>\n";
   out += "<h1>" + html_escape(title_) + "</h1>\n";

@@ -14,7 +14,15 @@
 // non-finite number is ever written. Every series is a
 // <g class="series" data-name=".." data-kind=".."> whose data-* attributes
 // list the plotted numbers (%.9g, space separated), so a test can read a
-// chart back with an XML parser and compare it with the JSON output.
+// chart back with an XML parser and compare it with the JSON output:
+//   line    data-x data-y data-runs (runs between gaps), one
+//           <path class="segment" data-x data-y> per run
+//   band    data-x data-low data-high data-runs, one <path class="area"> per run
+//   points  data-x data-y, and each marker (class="point") its own data-x data-y
+//   reference data-y (the levels); span data-x0 data-x1 (an infinite end is
+//   left out); annotation data-x data-y.
+// Only points with a value (and x > 0 on a log axis) are listed; points
+// beyond forced axis limits are listed but clipped from the drawing.
 #pragma once
 
 #include <optional>
@@ -76,6 +84,19 @@ struct Style {
 };
 
 // The palette: each slot pairs a colour with a dash pattern and a marker.
+//   0 #10183f near-black navy  solid     circle    L* 10
+//   1 #e8a33a light amber      dashed    square    L* 72
+//   2 #b24a14 burnt orange     dotted    triangle  L* 45
+//   3 #4f8fcf mid blue         dash-dot  diamond   L* 58
+//   4 #6b2f7f dark plum        solid     cross     L* 31
+//   5 #92c7b0 pale sea green   dashed    plus      L* 76
+// Why: grey print keeps only lightness, so the first four slots (the ones
+// most charts use) sit at least 13 L* apart, alternating dark and light; the
+// hues avoid a red-against-green pair, and every pair stays more than 20
+// CIE76 units apart under simulated protan, deutan and tritan vision; and no
+// two slots share a dash-and-marker pair, so even a monochrome copy tells
+// them apart. Bands use the slot colour at 20 % opacity with the slot's dash
+// on their edges.
 struct PaletteEntry {
   const char* hex;     // "#10183f"
   const char* name;    // plain description for documentation
@@ -91,7 +112,8 @@ enum class Kind { line, band, points, reference, span, annotation };
 struct Series {
   Kind kind = Kind::line;
   std::string name;     // machine identity, written as data-name ("wc_high"); unique per chart
-  std::string label;    // legend text (annotation: the text shown); empty = not in the legend
+  std::string label;    // legend text; empty = not in the legend. A reference's label is written
+                        // on the plot above its top line, an annotation's beside its point.
   std::vector<double> x;  // span: {from, to}; annotation: {x}
   Values y;             // line, points: y; band: lower curve; reference: the levels; annotation: {y}
   Values y_high;        // band: upper curve
