@@ -10,10 +10,19 @@ project's closed-form inverse, and printed to 0.001 Ohm.
 
 The bad_*.csv files are hand-written broken tables for the refusal tests.
 
+It also writes the demo table of scenarios/incubator.ini,
+scenarios/incubator_ntc47k.csv: an invented 47 kOhm NTC whose curve is the
+Steinhart-Hart equation through three invented datasheet-like points,
+158.0 kOhm at 0 degC, 47.0 kOhm at 25 degC and 4.95 kOhm at 85 degC
+(coefficients printed in the file), tabulated every 5 K from -10 to 90 degC
+to 0.1 Ohm as a datasheet prints it.
+
 Run with Debian's interpreter: /usr/bin/python3 generate.py (from this folder).
 """
 import math
 import os
+
+import numpy as np
 
 from scipy.optimize import brentq
 
@@ -21,9 +30,9 @@ SH_A, SH_B, SH_C = 1.129148e-3, 2.34125e-4, 8.76741e-8
 HERE = os.path.dirname(os.path.abspath(__file__))
 
 
-def sh_resistance(t_celsius):
+def sh_resistance(t_celsius, a=SH_A, b=SH_B, c=SH_C):
     inv_t = 1.0 / (t_celsius + 273.15)
-    f = lambda l: SH_A + SH_B * l + SH_C * l ** 3 - inv_t
+    f = lambda l: a + b * l + c * l ** 3 - inv_t
     return math.exp(brentq(f, 0.0, 30.0, xtol=1e-15, rtol=8.9e-16, maxiter=500))
 
 
@@ -44,3 +53,19 @@ write("ntc10k_sh_uneven_desc.csv", [125, 110, 100, 85, 70, 62, 50, 40, 25, 20, 1
       "temperature;resistance", ";")
 # A short table, 0..50 degC, for readings outside the table.
 write("ntc10k_sh_0_50.csv", range(0, 51, 5), "t_degC,r_ohm")
+
+
+# The demo table of scenarios/incubator.ini (invented part, see the docstring).
+points = [(0.0, 158.0e3), (25.0, 47.0e3), (85.0, 4.95e3)]
+m = np.array([[1.0, math.log(r), math.log(r) ** 3] for _, r in points])
+y = np.array([1.0 / (t + 273.15) for t, _ in points])
+a, b, c = np.linalg.solve(m, y)
+with open(os.path.join(HERE, "..", "..", "..", "scenarios", "incubator_ntc47k.csv"), "w") as out:
+    out.write("# Demo R-T table for scenarios/incubator.ini. INVENTED DATA, not a datasheet: an imaginary\n")
+    out.write("# 47 kOhm NTC whose curve is the Steinhart-Hart equation 1/T = A + B ln R + C (ln R)^3 through\n")
+    out.write("# 158.0 kOhm at 0 degC, 47.0 kOhm at 25 degC and 4.95 kOhm at 85 degC:\n")
+    out.write(f"# A = {a:.10e}, B = {b:.10e}, C = {c:.10e} (1/K).\n")
+    out.write("# Written by tests/data/chain/generate.py; resistances to 0.1 ohm as a datasheet prints them.\n")
+    out.write("t_degC,r_ohm\n")
+    for t in range(-10, 91, 5):
+        out.write(f"{t},{sh_resistance(t, a, b, c):.1f}\n")
