@@ -1,81 +1,253 @@
-// `thermargin budget`: error bands across the range and the verdict.
+// `thermargin budget`: error bands across the range, the contributors and
+// the verdict against the requirement.
 #include <nlohmann/json.hpp>
+#include <cstdio>
+#include <iostream>
 #include <sstream>
+
+#include <unistd.h>
 
 #include "cli.hpp"
 #include "commands.hpp"
+#include "thermargin/budget.hpp"
 #include "thermargin/caution.hpp"
-#include "thermargin/chain.hpp"
-#include "thermargin/nominal.hpp"
 
 namespace thermargin::cli {
 
 namespace {
 
-nlohmann::json number_or_null(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+nlohmann::json num(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+
+std::string pct(double v, int decimals = 2) { return fixed(100.0 * v, decimals) + " %"; }
+
+bool point_ok(const BudgetPoint& p) { return p.nominal.status == Status::ok; }
+
+nlohmann::json to_json(const Design& d, const Budget& b) {
+  nlohmann::json j;
+  j["command"] = "budget";
+  j["title"] = d.title;
+  j["units"] = {{"temperature", "degC"}, {"error", "K"}, {"sensitivity", "LSB/K"}, {"self_heating", "K"},
+                {"voltage", "V"}};
+  j["points"] = nlohmann::json::array();
+  for (const auto& p : b.points) {
+    nlohmann::json r{{"t", p.t}, {"in_window", p.in_window}};
+    if (!point_ok(p)) {
+      r["status"] = std::string(to_string(p.nominal.status));
+      if (p.nominal.status == Status::saturated) r["saturated"] = true;
+      j["points"].push_back(r);
+      continue;
+    }
+    r["v_node"] = p.nominal.v_node;
+    r["code"] = p.nominal.code;
+    r["sensitivity"] = p.nominal.sensitivity;
+    r["mv_per_k"] = p.nominal.mv_per_k;
+    r["lsb_in_k"] = num(p.nominal.lsb_in_k);
+    r["self_heating"] = p.nominal.self_heating;
+    r["nominal"] = p.nominal.error;
+    if (p.wc.any_ok) {
+      r["wc_low"] = p.wc.low;
+      r["wc_high"] = p.wc.high;
+    }
+    if (p.wc.failed_corners > 0) {
+      r["wc_failed_corners"] = p.wc.failed_corners;
+      r["wc_failure"] = std::string(to_string(p.wc.failure));
+    }
+    if (p.linear.status == Status::ok) {
+      r["rss_low"] = p.linear.low;
+      r["rss_high"] = p.linear.high;
+      r["u_c"] = p.linear.u_c;
+      nlohmann::json contributions = nlohmann::json::object();
+      for (const auto& t : p.linear.terms) contributions[t.name] = t.contribution;
+      r["contributions"] = contributions;
+    }
+    if (p.mc) {
+      if (p.mc->valid > 0) {
+        r["mc_low"] = p.mc->low;
+        r["mc_high"] = p.mc->high;
+        r["mc_median"] = p.mc->median;
+        r["mc_mean"] = p.mc->mean;
+        r["mc_stddev"] = p.mc->stddev;
+      }
+      r["mc_saturated_share"] = p.mc->saturated_share();
+      if (p.mc->failed > 0) r["mc_failed"] = p.mc->failed;
+      if (p.linear.status == Status::ok && p.mc->valid > 0)
+        r["linear_validated"] = linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high,
+                                                 numerical_tolerance(p.linear.u_c));
+    }
+    j["points"].push_back(r);
+  }
+  const auto& v = b.verdict;
+  nlohmann::json w{{"min", d.requirement.window_min},
+                   {"max", d.requirement.window_max},
+                   {"limit", d.requirement.max_error},
+                   {"wc_max_abs", b.wc_max_abs},
+                   {"wc_max_at", b.wc_max_at},
+                   {"rss_max_abs", b.rss_max_abs},
+                   {"rss_max_at", b.rss_max_at},
+                   {"dominant", b.window_contributors.empty() ? "" : b.window_contributors.front().name},
+                   {"verdict", v.pass ? "pass" : "fail"},
+                   {"basis", std::string(to_string(v.basis))},
+                   {"margin", v.margin},
+                   {"worst_at", v.worst_at},
+                   {"reason", v.reason},
+                   {"wc_method", b.wc_directed ? "directed corners" : "full enumeration"},
+                   {"wc_corners", b.wc_corners},
+                   {"k_p", b.k_p}};
+  if (b.mc) {
+    w["mc_max_abs"] = b.mc->max_abs;
+    w["yield"] = b.mc->yield;
+    w["yield_low"] = b.mc->yield_low;
+    w["yield_high"] = b.mc->yield_high;
+    w["failures_per_million"] = b.mc->failures_per_million;
+    w["mc_units"] = b.mc->units;
+    w["mc_adaptive"] = b.mc->adaptive;
+    w["mc_converged"] = b.mc->converged;
+  }
+  w["contributors"] = nlohmann::json::array();
+  for (const auto& c : b.window_contributors)
+    w["contributors"].push_back({{"source", c.name}, {"label", c.label}, {"share", c.share}, {"half_width", c.half_width}});
+  j["window"] = w;
+  j["caution"] = std::string(caution);
+  return j;
+}
+
+std::string to_csv(const Budget& b) {
+  std::ostringstream out;
+  out << "t_degC,in_window,status,code_LSB,sensitivity_LSB_per_K,sensitivity_mV_per_K,lsb_K,self_heating_K,nominal_K,"
+         "wc_low_K,wc_high_K,rss_low_K,rss_high_K,mc_low_K,mc_high_K,mc_median_K,mc_saturated_share,dominant\n";
+  for (const auto& p : b.points) {
+    out << fixed(p.t, 3) << "," << (p.in_window ? 1 : 0) << ",";
+    if (!point_ok(p)) {
+      out << to_string(p.nominal.status) << ",,,,,,,,,,,,,,,\n";
+      continue;
+    }
+    out << (p.wc.failed_corners ? std::string(to_string(p.wc.failure)) : std::string("ok")) << ","
+        << fixed(p.nominal.code, 3) << "," << fixed(p.nominal.sensitivity, 4) << "," << fixed(p.nominal.mv_per_k, 4) << ","
+        << fixed(p.nominal.lsb_in_k, 5) << "," << fixed(p.nominal.self_heating, 6) << "," << fixed(p.nominal.error, 5) << ",";
+    out << (p.wc.any_ok ? fixed(p.wc.low, 5) : "") << "," << (p.wc.any_ok ? fixed(p.wc.high, 5) : "") << ",";
+    const bool lin = p.linear.status == Status::ok;
+    out << (lin ? fixed(p.linear.low, 5) : "") << "," << (lin ? fixed(p.linear.high, 5) : "") << ",";
+    const bool mc = p.mc && p.mc->valid > 0;
+    out << (mc ? fixed(p.mc->low, 5) : "") << "," << (mc ? fixed(p.mc->high, 5) : "") << ","
+        << (mc ? fixed(p.mc->median, 5) : "") << "," << (p.mc ? fixed(p.mc->saturated_share(), 6) : "") << ",";
+    out << csv_escape(p.contributors.empty() ? "" : p.contributors.front().name) << "\n";
+  }
+  return out.str();
+}
+
+std::string to_text(const Design& d, const Budget& b) {
+  std::ostringstream out;
+  const auto& v = b.verdict;
+  out << "thermargin budget - " << d.title << "\n\n";
+  out << "VERDICT: " << (v.pass ? "PASS" : "FAIL") << "  " << v.reason;
+  if (v.basis != Requirement::Basis::monte_carlo || b.mc) out << " (margin " << fixed(v.margin, 3) << " K)";
+  out << "\n";
+  out << "Window " << fixed(d.requirement.window_min, 2) << " .. " << fixed(d.requirement.window_max, 2)
+      << " degC, limit +/-" << fixed(d.requirement.max_error, 3) << " K, verdict basis " << to_string(v.basis) << "\n\n";
+  TextTable s({"engine", "max |error| in window", "at", "notes"});
+  s.add({"worst case", fixed(b.wc_max_abs, 3) + " K", fixed(b.wc_max_at, 2) + " degC",
+         std::to_string(b.wc_corners) + " corners per temperature, " +
+             (b.wc_directed ? "directed by sensitivity signs (> 16 inputs)" : "full enumeration")});
+  s.add({"linear budget", fixed(b.rss_max_abs, 3) + " K", fixed(b.rss_max_at, 2) + " degC",
+         "k = " + fixed(b.k_p, 3) + " for " + pct(d.montecarlo.coverage) + " coverage"});
+  if (b.mc) {
+    s.add({"Monte Carlo", fixed(b.mc->max_abs, 3) + " K", fixed(b.mc->max_abs_at, 2) + " degC",
+           std::to_string(b.mc->units) + " units" + (b.mc->adaptive ? (b.mc->converged ? " (adaptive, stable)" : " (adaptive, cap reached)") : "")});
+  }
+  out << s.render();
+  if (b.mc) {
+    out << "\nYield: " << pct(b.mc->yield, 3) << " of units within +/-" << fixed(d.requirement.max_error, 3)
+        << " K over the window (95 % interval " << pct(b.mc->yield_low, 3) << " .. " << pct(b.mc->yield_high, 3)
+        << "), " << fixed(b.mc->failures_per_million, 0) << " failures per million; required " << pct(d.requirement.yield, 3)
+        << ".\n";
+    int validated = 0, compared = 0;
+    for (const auto& p : b.points)
+      if (p.in_window && p.mc && p.mc->valid > 0 && p.linear.status == Status::ok) {
+        ++compared;
+        validated += linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high, numerical_tolerance(p.linear.u_c));
+      }
+    out << "Linear budget against Monte Carlo (JCGM 101 section 8): validated at " << validated << " of " << compared
+        << " window temperatures" << (validated == compared ? "; the simple budget can be trusted here.\n"
+                                                            : "; read the Monte Carlo bands where they differ.\n");
+  }
+  if (b.status_points > 0)
+    out << "\nNote: " << b.status_points
+        << " temperature(s) have readings that cannot be converted (saturation, runaway, outside the table); see the table.\n";
+
+  out << "\nContributors over the window (share of the combined variance; own worst-case half-width):\n";
+  TextTable c({"source", "share", "half-width (K)"});
+  for (const auto& k : b.window_contributors)
+    if (k.share > 0.0 || k.half_width > 0.0) c.add({k.label, pct(k.share, 1), fixed(k.half_width, 4)});
+  out << c.render();
+
+  out << "\nPer temperature (errors in K; LSB/K is the ADC sensitivity, 1 LSB is its size in K):\n";
+  std::vector<std::string> head{"t (degC)", "code", "LSB/K", "1 LSB (K)", "self-heat", "nominal", "wc low", "wc high",
+                                "lin low", "lin high"};
+  if (b.mc) {
+    head.insert(head.end(), {"mc low", "mc high", "mc median"});
+  }
+  head.push_back("dominant");
+  TextTable t(head);
+  for (const auto& p : b.points) {
+    std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
+    if (!point_ok(p)) {
+      row.push_back(std::string(describe(p.nominal.status)));
+      t.add(row);
+      continue;
+    }
+    row.insert(row.end(), {fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.lsb_in_k, 4),
+                           fixed(p.nominal.self_heating, 4), fixed(p.nominal.error, 4)});
+    if (p.wc.any_ok && p.wc.failed_corners == 0) row.insert(row.end(), {fixed(p.wc.low, 4), fixed(p.wc.high, 4)});
+    else row.insert(row.end(), {std::string(to_string(p.wc.failure)), ""});
+    if (p.linear.status == Status::ok) row.insert(row.end(), {fixed(p.linear.low, 4), fixed(p.linear.high, 4)});
+    else row.insert(row.end(), {std::string(to_string(p.linear.status)), ""});
+    if (b.mc) {
+      if (p.mc && p.mc->valid > 0) row.insert(row.end(), {fixed(p.mc->low, 4), fixed(p.mc->high, 4), fixed(p.mc->median, 4)});
+      else row.insert(row.end(), {"n/a", "", ""});
+    }
+    row.push_back(p.contributors.empty() ? "" : p.contributors.front().name);
+    t.add(row);
+  }
+  out << t.render();
+  out << "(* outside the requirement window)\n\n" << caution << "\n";
+  return out.str();
+}
 
 }  // namespace
 
 int run_budget(int argc, char** argv) {
   po::options_description own("budget options");
+  own.add_options()("no-mc", "skip the Monte Carlo engine")(
+      "corners", po::value<std::string>()->default_value("auto"),
+      "worst-case corners: auto | enumerate | directed");
   if (help_requested("budget", argc, argv, "[FILE] [options]", own, true)) return 0;
   const Invocation inv = parse("budget", argc, argv, own, true, true);
   const Design design = build_design(inv.scenario);
-  const Chain chain(design);
-  const auto points = nominal_sweep(chain);
-
-  std::ostringstream out;
-  if (inv.format == Format::json) {
-    nlohmann::json j;
-    j["command"] = "budget";
-    j["title"] = design.title;
-    j["units"] = {{"temperature", "degC"}, {"error", "K"}, {"sensitivity", "LSB/K"}, {"voltage", "V"}};
-    j["points"] = nlohmann::json::array();
-    for (const auto& p : points) {
-      nlohmann::json row{{"t", p.t}};
-      if (p.status != Status::ok) {
-        row["status"] = std::string(to_string(p.status));
-        if (p.status == Status::saturated) row["saturated"] = true;
-      } else {
-        row["v_node"] = p.v_node;
-        row["code"] = p.code;
-        row["sensitivity"] = p.sensitivity;
-        row["mv_per_k"] = p.mv_per_k;
-        row["lsb_in_k"] = number_or_null(p.lsb_in_k);
-        row["self_heating"] = p.self_heating;
-        row["nominal"] = p.error;
-      }
-      j["points"].push_back(row);
-    }
-    j["caution"] = std::string(caution);
-    out << j.dump(2) << "\n";
-  } else if (inv.format == Format::csv) {
-    out << "t_degC,status,v_node_V,code_LSB,sensitivity_LSB_per_K,sensitivity_mV_per_K,lsb_K,self_heating_K,nominal_K\n";
-    for (const auto& p : points) {
-      out << fixed(p.t, 3) << "," << to_string(p.status);
-      if (p.status == Status::ok)
-        out << "," << fixed(p.v_node, 6) << "," << fixed(p.code, 3) << "," << fixed(p.sensitivity, 4) << ","
-            << fixed(p.mv_per_k, 4) << "," << fixed(p.lsb_in_k, 5) << "," << fixed(p.self_heating, 6) << ","
-            << fixed(p.error, 5);
-      else
-        out << ",,,,,,,";
-      out << "\n";
-    }
-  } else {
-    out << design.title << "\n\n";
-    TextTable t({"t (degC)", "V node (V)", "code (LSB)", "LSB/K", "mV/K", "1 LSB (K)", "self-heat (K)", "nominal (K)"});
-    for (const auto& p : points) {
-      if (p.status != Status::ok) {
-        t.add({fixed(p.t, 2), std::string(describe(p.status))});
-        continue;
-      }
-      t.add({fixed(p.t, 2), fixed(p.v_node, 4), fixed(p.code, 1), fixed(p.sensitivity, 2), fixed(p.mv_per_k, 3),
-             fixed(p.lsb_in_k, 4), fixed(p.self_heating, 4), fixed(p.error, 4)});
-    }
-    out << t.render() << "\n" << caution << "\n";
+  BudgetOptions options;
+  options.monte_carlo = inv.vm.count("no-mc") == 0;
+  const std::string corners = inv.vm["corners"].as<std::string>();
+  if (corners == "enumerate") options.corners = CornerMethod::enumerate;
+  else if (corners == "directed") options.corners = CornerMethod::directed;
+  else if (corners != "auto") throw input_error("--corners = " + corners + " (command line): must be one of: auto | enumerate | directed");
+  if (options.corners == CornerMethod::enumerate && design.inputs.size() > 24)
+    throw input_error("--corners = enumerate (command line): " + std::to_string(design.inputs.size()) +
+                      " active inputs would give too many corners; at most 24 are enumerated");
+  if (::isatty(STDERR_FILENO)) {
+    options.progress = [](double f) {
+      std::fprintf(stderr, "\rMonte Carlo %5.1f %%", 100.0 * std::min(f, 1.0));
+      std::fflush(stderr);
+    };
   }
-  emit(inv, out.str());
-  return 0;
+  const Chain chain(design);
+  const Budget budget = run_budget(chain, options);
+  if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
+
+  std::string text;
+  if (inv.format == Format::json) text = to_json(design, budget).dump(2) + "\n";
+  else if (inv.format == Format::csv) text = to_csv(budget);
+  else text = to_text(design, budget);
+  emit(inv, text);
+  return (inv.strict && !budget.verdict.pass) ? 3 : 0;
 }
 
 }  // namespace thermargin::cli

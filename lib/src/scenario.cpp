@@ -82,6 +82,7 @@ std::vector<KeySpec> make_schema() {
       {"requirement.window_max", Q::temperature, "60", "end of that window"},
       {"requirement.max_error", Q::temperature_difference, "1", "+/- error limit in K"},
       {"requirement.yield", Q::ratio, "99%", "required fraction of units within the limit"},
+      {"requirement.basis", Q::plain, "worst-case", "the verdict's bound: worst-case | linear | monte-carlo (yield)"},
       {"montecarlo.units", Q::plain, "100000", "units drawn, or auto (JCGM 101 7.9 adaptive)"},
       {"montecarlo.seed", Q::integer, "1", "random seed"},
       {"montecarlo.threads", Q::integer, "0", "worker threads; 0 = all cores"},
@@ -468,6 +469,9 @@ Design build_design(const Scenario& s) {
     r.fail(q.window_min < c.t_min ? "requirement.window_min" : "requirement.window_max",
            "the window must lie within conditions.t_min..t_max");
   if (!(q.yield > 0.0 && q.yield <= 1.0)) r.fail("requirement.yield", "must be a fraction in (0, 100 %]");
+  q.basis = r.word<Requirement::Basis>("requirement.basis", {{"worst-case", Requirement::Basis::worst_case},
+                                                             {"linear", Requirement::Basis::linear},
+                                                             {"monte-carlo", Requirement::Basis::monte_carlo}});
 
   // Monte Carlo.
   MonteCarloSettings& m = d.montecarlo;

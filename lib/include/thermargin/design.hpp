@@ -103,6 +103,7 @@ struct Requirement {
   double window_min = 0.0, window_max = 60.0;  // °C
   double max_error = 1.0;                      // ± K
   double yield = 0.99;                         // required fraction of good units
+  enum class Basis { worst_case, linear, monte_carlo } basis = Basis::worst_case;  // what the verdict uses
 };
 
 struct MonteCarloSettings {

@@ -50,7 +50,11 @@ SelfHeating solve_self_heating(double t_true, RiseAt&& rise_at) {
       return r;
     }
     t = next;
-    if (std::fabs(step) <= self_heating_tolerance) break;
+    // Done when the step, or the error a contracting iteration still leaves
+    // (step·q/(1 − q), q the ratio of successive steps), is within tolerance.
+    const double q = i > 1 ? std::fabs(step) / std::fabs(previous_step) : 1.0;
+    if (std::fabs(step) <= self_heating_tolerance || (q < 0.5 && std::fabs(step) * q <= self_heating_tolerance * (1.0 - q)))
+      break;
     previous_step = step;
     if (i == self_heating_max_iterations) r.outcome = SelfHeating::Outcome::runaway;
   }

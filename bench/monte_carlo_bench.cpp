@@ -1,0 +1,50 @@
+// The Monte Carlo kernel's throughput: unit-temperature evaluations per
+// second on the built-in default design (self-heating on, averaging 1),
+// single-threaded and on all threads. Items processed = units × temperatures.
+#include <benchmark/benchmark.h>
+
+#include "thermargin/monte_carlo.hpp"
+#include "thermargin/scenario.hpp"
+
+namespace {
+
+using namespace thermargin;
+
+void BM_MonteCarloDefaultDesign(benchmark::State& state) {
+  const Design design = build_design(Scenario());
+  const Chain chain(design);
+  const auto temps = design.conditions.temperatures();
+  McOptions options;
+  options.units = static_cast<std::uint64_t>(state.range(0));
+  options.threads = static_cast<int>(state.range(1));
+  for (auto _ : state) {
+    const McResult r = monte_carlo(chain, temps, options);
+    benchmark::DoNotOptimize(r.summary.yield);
+  }
+  state.SetItemsProcessed(state.iterations() * state.range(0) * static_cast<std::int64_t>(temps.size()));
+  state.counters["temperatures"] = static_cast<double>(temps.size());
+}
+BENCHMARK(BM_MonteCarloDefaultDesign)
+    ->Args({100000, 1})
+    ->Args({100000, 2})
+    ->Unit(benchmark::kMillisecond)
+    ->UseRealTime();
+
+void BM_MonteCarloBlockKernel(benchmark::State& state) {
+  // One block of 256 units across the sweep: the kernel without threads,
+  // pilot or statistics.
+  const Design design = build_design(Scenario());
+  const Chain chain(design);
+  const auto temps = design.conditions.temperatures();
+  std::vector<double> errors;
+  std::uint64_t first = 0;
+  for (auto _ : state) {
+    simulate_block(chain, temps, first, 256, errors);
+    first += 256;
+    benchmark::DoNotOptimize(errors.data());
+  }
+  state.SetItemsProcessed(state.iterations() * 256 * static_cast<std::int64_t>(temps.size()));
+}
+BENCHMARK(BM_MonteCarloBlockKernel)->Unit(benchmark::kMicrosecond);
+
+}  // namespace

@@ -1,0 +1,67 @@
+// The linear uncertainty budget (GUM, JCGM 100:2008 §5.1.2).
+//
+// Per source i the sensitivity c_i = ∂error/∂p_i by central differences and
+// the standard uncertainty u_i of its distribution (a ±a bound is a/k for a
+// normal with k = sigma_per_tol, a/√3 rectangular §4.3.7, a/√6 triangular
+// §4.3.9; quantisation 1/√12 LSB; noise σ/√M; output rounding
+// resolution/√12; a board-temperature range rectangular over its full
+// width). u_c² = Σ (c_i·u_i)² (eq. 10, uncorrelated inputs), and the band is
+// centre ± k_p·u_c with k_p the normal quantile for the coverage probability.
+// The centre is the nominal error, shifted by the floor quantiser's mean
+// truncation of −½ LSB where it applies.
+#pragma once
+
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "thermargin/chain.hpp"
+
+namespace thermargin {
+
+// One line of a budget: a source's sensitivity, standard uncertainty and
+// contribution |c|·u (in the output's unit).
+struct BudgetTerm {
+  std::string name;   // short name (sources.hpp)
+  std::string label;  // what a reviewer reads
+  double sensitivity = 0.0;  // output per unit of the source
+  double u = 0.0;            // standard uncertainty of the source
+  double contribution = 0.0; // |c|·u
+};
+
+// The coverage factor k_p of a normal distribution for probability p (two-sided).
+double coverage_factor(double p);
+
+// The generic core: central-difference sensitivities of `model` to each
+// input at the nominal point (all deviations 0), and the combined standard
+// uncertainty. `model` returns nullopt where it cannot be evaluated; then
+// the result is nullopt.
+struct Propagation {
+  double centre = 0.0;
+  double u_c = 0.0;
+  std::vector<BudgetTerm> terms;
+};
+std::optional<Propagation> propagate(const std::function<std::optional<double>(const Deviations&)>& model,
+                                     const std::vector<ToleranceInput>& inputs, double sigma_per_tol);
+
+struct LinearPoint {
+  double t = 0.0;
+  Status status = Status::ok;  // not ok: the budget could not be formed here
+  double centre = 0.0;  // K
+  double u_c = 0.0;     // K
+  double low = 0.0, high = 0.0;  // K, centre ∓ k_p·u_c
+  std::vector<BudgetTerm> terms;  // Design::inputs in order, then quantisation, noise, rounding (always)
+};
+
+struct LinearBudget {
+  double k_p = 3.0;
+  std::vector<LinearPoint> points;
+};
+
+LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temperatures);
+
+// The mean shift of the quantiser (LSB): 0 for round, −½ for floor.
+double quantizer_mean(Quantizer q);
+
+}  // namespace thermargin

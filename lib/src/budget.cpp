@@ -1,0 +1,162 @@
+#include "thermargin/budget.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+
+namespace thermargin {
+
+std::string_view to_string(Requirement::Basis b) {
+  switch (b) {
+    case Requirement::Basis::worst_case: return "worst-case";
+    case Requirement::Basis::linear: return "linear";
+    case Requirement::Basis::monte_carlo: return "monte-carlo";
+  }
+  return "worst-case";
+}
+
+namespace {
+
+bool in_window(const Requirement& q, double t) { return t >= q.window_min - 1e-9 && t <= q.window_max + 1e-9; }
+
+std::vector<Contributor> point_contributors(const LinearPoint& lp, const WorstCasePoint& wp) {
+  std::vector<Contributor> out;
+  const double var = lp.u_c * lp.u_c;
+  for (std::size_t i = 0; i < lp.terms.size(); ++i) {
+    const auto& t = lp.terms[i];
+    Contributor c{t.name, t.label, var > 0.0 ? t.contribution * t.contribution / var : 0.0,
+                  i < wp.own_half_width.size() ? wp.own_half_width[i] : 0.0};
+    out.push_back(std::move(c));
+  }
+  std::stable_sort(out.begin(), out.end(), [](const Contributor& a, const Contributor& b) { return a.share > b.share; });
+  return out;
+}
+
+}  // namespace
+
+Budget run_budget(const Chain& chain, const BudgetOptions& options) {
+  const Design& d = chain.design();
+  const auto temps = d.conditions.temperatures();
+  Budget b;
+  const WorstCase wc = worst_case(chain, temps, options.corners);
+  const LinearBudget lb = linear_budget(chain, temps);
+  b.k_p = lb.k_p;
+  b.wc_directed = wc.directed;
+  b.wc_corners = wc.corners;
+  std::optional<McResult> mc;
+  if (options.monte_carlo) {
+    McOptions mo;
+    mo.progress = options.progress;
+    mc = monte_carlo(chain, temps, mo);
+    b.mc = mc->summary;
+  }
+
+  std::map<std::string, Contributor> window;  // summed variance and largest half-width
+  double window_var = 0.0;
+  bool first_wc = true, first_rss = true;
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    BudgetPoint p;
+    p.t = temps[i];
+    p.in_window = in_window(d.requirement, p.t);
+    p.nominal = nominal_point(chain, p.t);
+    p.wc = wc.points[i];
+    p.linear = lb.points[i];
+    if (mc) p.mc = mc->points[i];
+    const bool broken = p.nominal.status != Status::ok || p.wc.failed_corners > 0 || p.linear.status != Status::ok ||
+                        (p.mc && (p.mc->saturated + p.mc->failed) > 0);
+    b.status_points += broken;
+    if (p.linear.status == Status::ok) {
+      p.contributors = point_contributors(p.linear, p.wc);
+      if (p.in_window) {
+        window_var += p.linear.u_c * p.linear.u_c;
+        for (const auto& c : p.contributors) {
+          auto& w = window[c.name];
+          w.name = c.name;
+          w.label = c.label;
+          w.share += c.share * p.linear.u_c * p.linear.u_c;
+          w.half_width = std::max(w.half_width, c.half_width);
+        }
+      }
+    }
+    if (p.in_window) {
+      if (p.wc.any_ok) {
+        const double m = std::max(std::fabs(p.wc.low), std::fabs(p.wc.high));
+        if (first_wc || m > b.wc_max_abs) {
+          b.wc_max_abs = m;
+          b.wc_max_at = p.t;
+          first_wc = false;
+        }
+      }
+      if (p.linear.status == Status::ok) {
+        const double m = std::max(std::fabs(p.linear.low), std::fabs(p.linear.high));
+        if (first_rss || m > b.rss_max_abs) {
+          b.rss_max_abs = m;
+          b.rss_max_at = p.t;
+          first_rss = false;
+        }
+      }
+    }
+    b.points.push_back(std::move(p));
+  }
+  for (auto& [name, c] : window) {
+    c.share = window_var > 0.0 ? c.share / window_var : 0.0;
+    b.window_contributors.push_back(c);
+  }
+  std::stable_sort(b.window_contributors.begin(), b.window_contributors.end(),
+                   [](const Contributor& x, const Contributor& y) { return x.share > y.share; });
+  if (!b.window_contributors.empty()) b.dominant = b.window_contributors.front().label;
+
+  // The verdict by the requirement's basis.
+  Verdict& v = b.verdict;
+  v.basis = d.requirement.basis;
+  const double limit = d.requirement.max_error;
+  int window_failures = 0;
+  Status failure = Status::ok;
+  double failure_at = 0.0;
+  for (const auto& p : b.points) {
+    if (!p.in_window) continue;
+    const bool wc_broken = p.wc.failed_corners > 0 || !p.wc.any_ok;
+    const bool lin_broken = p.linear.status != Status::ok;
+    const bool broken = v.basis == Requirement::Basis::worst_case ? wc_broken
+                        : v.basis == Requirement::Basis::linear   ? lin_broken
+                                                                  : false;
+    if (broken && window_failures++ == 0) {
+      failure = v.basis == Requirement::Basis::worst_case ? p.wc.failure : p.linear.status;
+      failure_at = p.t;
+    }
+  }
+  char buf[256];
+  if (v.basis == Requirement::Basis::monte_carlo) {
+    if (!b.mc) {
+      v.pass = false;
+      v.reason = "the verdict asks for Monte Carlo, which was not run";
+    } else {
+      v.worst_abs_error = b.mc->max_abs;
+      v.worst_at = b.mc->max_abs_at;
+      v.margin = limit - v.worst_abs_error;
+      v.pass = b.mc->yield >= d.requirement.yield;
+      std::snprintf(buf, sizeof buf, "Monte Carlo yield %.4f %% against the required %.4f %% (%llu units)",
+                    100 * b.mc->yield, 100 * d.requirement.yield, static_cast<unsigned long long>(b.mc->units));
+      v.reason = buf;
+    }
+    return b;
+  }
+  const bool wc_basis = v.basis == Requirement::Basis::worst_case;
+  v.worst_abs_error = wc_basis ? b.wc_max_abs : b.rss_max_abs;
+  v.worst_at = wc_basis ? b.wc_max_at : b.rss_max_at;
+  v.margin = limit - v.worst_abs_error;
+  if (window_failures > 0) {
+    v.pass = false;
+    std::snprintf(buf, sizeof buf, "%d temperature(s) in the window cannot be read by some unit, first at %.2f degC: ",
+                  window_failures, failure_at);
+    v.reason = std::string(buf) + std::string(describe(failure));
+  } else {
+    v.pass = v.margin >= 0.0;
+    std::snprintf(buf, sizeof buf, "%s error up to %.3f K at %.2f degC against the limit of +/-%.3f K",
+                  wc_basis ? "worst-case" : "linear-budget", v.worst_abs_error, v.worst_at, limit);
+    v.reason = buf;
+  }
+  return b;
+}
+
+}  // namespace thermargin
