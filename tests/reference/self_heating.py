@@ -3,7 +3,8 @@
 
 Usage: self_heating.py key=value ...   keys: r25 (Ohm), beta (K), r_fixed (Ohm),
   v_exc (V), duty (fraction), dissipation (W/K), lead (Ohm, default 0),
-  r_par (Ohm, default none), t (degC, the true temperature)
+  r_par (Ohm, default none), t (degC, the true temperature; a comma-separated
+  list gives one answer a line)
 
 Solves T_e - T - d * V_e^2 / (R(T_e) * delta) = 0 for the element's
 temperature T_e with scipy.optimize.brentq, where R(T) = R25 exp(B (1/T - 1/T0))
@@ -31,7 +32,6 @@ def main():
     duty, delta = float(p["duty"]), float(p["dissipation"])
     lead = float(p.get("lead", "0"))
     r_par = float(p["r_par"]) if p.get("r_par", "none") != "none" else None
-    t = float(p["t"]) + 273.15
 
     def element_power(t_e):
         r = r25 * math.exp(beta * (1.0 / t_e - 1.0 / T0))
@@ -40,10 +40,12 @@ def main():
         v_e = v_exc * branch / (r_fixed + branch) * r / series
         return v_e * v_e / r
 
-    f = lambda t_e: t_e - t - duty * element_power(t_e) / delta
-    upper = t + duty * v_exc * v_exc / (4.0 * r_fixed) / delta + 1e-6
-    t_e = brentq(f, t, upper, xtol=1e-13, rtol=8.9e-16, maxiter=500)
-    print(repr(t_e - 273.15))
+    for t_celsius in p["t"].split(","):
+        t = float(t_celsius) + 273.15
+        f = lambda t_e: t_e - t - duty * element_power(t_e) / delta
+        upper = t + duty * v_exc * v_exc / (4.0 * r_fixed) / delta + 1e-6
+        t_e = brentq(f, t, upper, xtol=1e-13, rtol=8.9e-16, maxiter=500)
+        print(repr(t_e - 273.15))
 
 
 if __name__ == "__main__":
