@@ -10,6 +10,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/budget.hpp"
+#include "thermargin/budget_report.hpp"
 #include "thermargin/caution.hpp"
 
 namespace thermargin::cli {
@@ -219,7 +220,9 @@ int run_budget(int argc, char** argv) {
   po::options_description own("budget options");
   own.add_options()("no-mc", "skip the Monte Carlo engine")(
       "corners", po::value<std::string>()->default_value("auto"),
-      "worst-case corners: auto | enumerate | directed");
+      "worst-case corners: auto | enumerate | directed")(
+      "plots", po::value<std::string>(),
+      "also write the report's charts as standalone SVG files into DIR (created when its parent exists)");
   if (help_requested("budget", argc, argv, "[FILE] [options]", own, true)) return 0;
   const Invocation inv = parse("budget", argc, argv, own, true, true);
   const Design design = build_design(inv.scenario);
@@ -238,6 +241,10 @@ int run_budget(int argc, char** argv) {
       std::fflush(stderr);
     };
   }
+  // Destinations are checked before the analysis, so long work never ends in "cannot write".
+  const std::string plots = inv.vm.count("plots") ? inv.vm["plots"].as<std::string>() : std::string();
+  if (!inv.report.empty()) check_report_path("--report", inv.report);
+  if (inv.vm.count("plots")) check_plots_directory("--plots", plots);
   const Chain chain(design);
   const Budget budget = run_budget(chain, options);
   if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
@@ -246,6 +253,8 @@ int run_budget(int argc, char** argv) {
   if (inv.format == Format::json) text = to_json(design, budget).dump(2) + "\n";
   else if (inv.format == Format::csv) text = to_csv(budget);
   else text = to_text(design, budget);
+  if (!inv.report.empty()) write_report(inv.report, budget_report_html(design, inv.scenario, budget, inv.file));
+  if (inv.vm.count("plots")) write_figures("--plots", plots, budget_figures(design, budget));
   emit(inv, text);
   return (inv.strict && !budget.verdict.pass) ? 3 : 0;
 }

@@ -1,0 +1,537 @@
+#include "thermargin/budget_report.hpp"
+
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cerrno>
+#include <cmath>
+#include <cstdio>
+#include <cstring>
+#include <filesystem>
+#include <map>
+#include <optional>
+
+#include "report_page.hpp"
+#include "thermargin/caution.hpp"
+#include "thermargin/error.hpp"
+#include "thermargin/monte_carlo.hpp"
+
+namespace thermargin {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+using Block = report::Block;
+
+// A table: the fields of thermargin::Table (html_report.hpp).
+struct Table {
+  std::string caption;
+  std::vector<std::string> header;
+  std::vector<std::vector<std::string>> rows;
+  std::vector<bool> numeric;
+};
+
+// The page in reading order, built like HtmlDocument (see report_page.hpp for why not directly).
+class Page {
+ public:
+  Page& heading(std::string text) { return add(Block::Kind::heading, std::move(text)); }
+  Page& paragraph(std::string text) { return add(Block::Kind::paragraph, std::move(text)); }
+  Page& verdict(bool pass, std::string detail) {
+    return add(pass ? Block::Kind::pass : Block::Kind::fail, std::move(detail));
+  }
+  Page& caution(std::string_view text) { return add(Block::Kind::caution, std::string(text)); }
+  Page& chart(const svg::Chart& chart, std::string caption) {
+    add(Block::Kind::chart, std::move(caption));
+    blocks_.back().chart = chart;
+    return *this;
+  }
+  Page& table(Table t) {
+    add(Block::Kind::table, {});
+    Block& b = blocks_.back();
+    b.caption = std::move(t.caption);
+    b.header = std::move(t.header);
+    b.rows = std::move(t.rows);
+    b.numeric = std::move(t.numeric);
+    return *this;
+  }
+  const std::vector<Block>& blocks() const { return blocks_; }
+
+ private:
+  Page& add(Block::Kind kind, std::string text) {
+    Block b;
+    b.kind = kind;
+    b.text = std::move(text);
+    blocks_.push_back(std::move(b));
+    return *this;
+  }
+  std::vector<Block> blocks_;
+};
+
+// ---------------------------------------------------------------- numbers as text
+
+// A figure for a person: fixed decimals, a true minus sign, never "nan" or "-0.000".
+std::string num(double v, int decimals) {
+  if (!std::isfinite(v)) return "n/a";
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string s = buf;
+  if (s.front() == '-') {
+    if (s.find_first_not_of("-0.") == std::string::npos) return s.substr(1);
+    return "\u2212" + s.substr(1);
+  }
+  return s;
+}
+
+std::string pct(double fraction, int decimals) { return num(100.0 * fraction, decimals) + " %"; }
+
+std::string kelvin(double v, int decimals = 3) { return num(v, decimals) + " K"; }
+std::string celsius(double v) { return num(v, 2) + " \u00b0C"; }
+
+// A share as a bar of block characters (eighths), so the ranking reads at a
+// glance in the table itself, on screen and on paper, without a chart.
+std::string bar(double fraction, int width = 24) {
+  const double eighths = std::clamp(fraction, 0.0, 1.0) * width * 8.0;
+  const auto n = static_cast<long>(std::lround(eighths));
+  static const char* const partial[] = {"", "\u258f", "\u258e", "\u258d", "\u258c", "\u258b", "\u258a", "\u2589"};
+  std::string s;
+  for (long i = 0; i < n / 8; ++i) s += "\u2588";
+  s += partial[n % 8];
+  return s;
+}
+
+// ---------------------------------------------------------------- which points have which curves
+
+// The rules the JSON output follows (app/cmd_budget.cpp), so that a curve
+// has a value exactly where the JSON has the number; a worst case over only
+// some corners would understate the band, so it is a gap as well.
+bool nominal_ok(const BudgetPoint& p) { return p.nominal.status == Status::ok; }
+bool wc_ok(const BudgetPoint& p) { return nominal_ok(p) && p.wc.any_ok && p.wc.failed_corners == 0; }
+bool linear_ok(const BudgetPoint& p) { return nominal_ok(p) && p.linear.status == Status::ok; }
+bool mc_ok(const BudgetPoint& p) { return nominal_ok(p) && p.mc && p.mc->valid > 0; }
+bool unreadable(const BudgetPoint& p) { return !nominal_ok(p) || !wc_ok(p) || p.linear.status != Status::ok; }
+
+template <class F>
+svg::Values column(const Budget& b, F f) {
+  svg::Values v;
+  v.reserve(b.points.size());
+  for (const auto& p : b.points) v.push_back(f(p));
+  return v;
+}
+
+std::vector<double> temperatures(const Budget& b) {
+  std::vector<double> t;
+  for (const auto& p : b.points) t.push_back(p.t);
+  return t;
+}
+
+svg::Axis axis(std::string label, svg::Scale scale = svg::Scale::linear) {
+  svg::Axis a;
+  a.label = std::move(label);
+  a.scale = scale;
+  return a;
+}
+
+svg::Style slot(int n) {
+  svg::Style s;
+  s.slot = n;
+  return s;
+}
+
+const svg::Axis kTemperatureAxis = axis("Temperature (\u00b0C)");
+
+// Runs of consecutive unreadable temperatures, widened by half a step each
+// side (clamped to the range) so a single bad temperature still shows.
+std::vector<std::pair<double, double>> unreadable_runs(const Budget& b) {
+  std::vector<std::pair<double, double>> runs;
+  const auto& pts = b.points;
+  for (std::size_t i = 0; i < pts.size();) {
+    if (!unreadable(pts[i])) {
+      ++i;
+      continue;
+    }
+    std::size_t j = i;
+    while (j + 1 < pts.size() && unreadable(pts[j + 1])) ++j;
+    const double left = i > 0 ? (pts[i - 1].t + pts[i].t) / 2 : pts[i].t;
+    const double right = j + 1 < pts.size() ? (pts[j].t + pts[j + 1].t) / 2 : pts[j].t;
+    runs.emplace_back(left, right);
+    i = j + 1;
+  }
+  return runs;
+}
+
+// The main sources shown as their own curve in the contributor chart: the
+// largest window shares, as many as the palette tells apart less one for
+// the rest.
+std::vector<Contributor> main_sources(const Budget& b) {
+  std::vector<Contributor> out;
+  const std::size_t most = svg::palette().size() - 1;
+  for (const auto& c : b.window_contributors)
+    if (c.share > 0.0 && out.size() < most) out.push_back(c);
+  return out;
+}
+
+std::optional<double> share_at(const BudgetPoint& p, const std::string& name) {
+  if (!linear_ok(p) || !(p.linear.u_c > 0.0)) return std::nullopt;
+  for (const auto& c : p.contributors)
+    if (c.name == name) return 100.0 * c.share;
+  return 0.0;
+}
+
+// ---------------------------------------------------------------- the charts
+
+Figure error_figure(const Design& d, const Budget& b) {
+  const auto t = temperatures(b);
+  svg::Chart c;
+  c.title = "Error across the range (reported \u2212 true)";
+  c.x = kTemperatureAxis;
+  c.y = axis("Error (K)");
+  c.description =
+      "Nominal error, worst-case, linear-budget and Monte Carlo bands against the requirement limits; "
+      "the shaded strip is the requirement window, hatched strips are temperatures that cannot be read.";
+  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
+  int k = 0;
+  for (const auto& [from, to] : unreadable_runs(b)) {
+    ++k;
+    c.series.push_back(svg::span("unreadable_" + std::to_string(k), k == 1 ? "Cannot be read" : "", from, to, true));
+  }
+  c.series.push_back(svg::band("wc", "Worst case", t, column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!wc_ok(p)) return std::nullopt;
+                                 return p.wc.low;
+                               }),
+                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!wc_ok(p)) return std::nullopt;
+                                 return p.wc.high;
+                               }),
+                               slot(1)));
+  c.series.push_back(svg::band("rss", "Linear budget (k = " + num(b.k_p, 2) + ")", t,
+                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!linear_ok(p)) return std::nullopt;
+                                 return p.linear.low;
+                               }),
+                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!linear_ok(p)) return std::nullopt;
+                                 return p.linear.high;
+                               }),
+                               slot(3)));
+  if (b.mc)
+    c.series.push_back(svg::band("mc", "Monte Carlo " + pct(b.mc->coverage, 2), t,
+                                 column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                   if (!mc_ok(p)) return std::nullopt;
+                                   return p.mc->low;
+                                 }),
+                                 column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                   if (!mc_ok(p)) return std::nullopt;
+                                   return p.mc->high;
+                                 }),
+                                 slot(2)));
+  c.series.push_back(svg::reference("limit", "\u00b1" + kelvin(d.requirement.max_error) + " limit",
+                                    {-d.requirement.max_error, d.requirement.max_error}));
+  c.series.push_back(svg::line("nominal", "Nominal", t, column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!nominal_ok(p)) return std::nullopt;
+                                 return p.nominal.error;
+                               }),
+                               slot(0)));
+  return {"error-bands.svg",
+          "Error bands across the range. The requirement is met where every band stays between the limit lines "
+          "inside the window.",
+          std::move(c)};
+}
+
+Figure contributor_figure(const Budget& b) {
+  const auto t = temperatures(b);
+  svg::Chart c;
+  c.title = "What the error is made of: share of the combined variance";
+  c.x = kTemperatureAxis;
+  c.y = axis("Share of u_c\u00b2 (%)");
+  c.y.min = 0.0;
+  c.y.max = 100.0;
+  c.description = "Each main source's share of the linear budget's combined variance at each temperature.";
+  const auto main = main_sources(b);
+  int next_slot = 0;
+  for (const auto& m : main)
+    c.series.push_back(svg::line(m.name, m.label, t,
+                                 column(b, [&](const BudgetPoint& p) { return share_at(p, m.name); }),
+                                 slot(next_slot++)));
+  std::size_t others = 0;
+  for (const auto& w : b.window_contributors) others += w.share > 0.0;
+  if (others > main.size())
+    c.series.push_back(svg::line("others", "All other sources", t,
+                                 column(b,
+                                        [&](const BudgetPoint& p) -> std::optional<double> {
+                                          if (!linear_ok(p) || !(p.linear.u_c > 0.0)) return std::nullopt;
+                                          double rest = 100.0;
+                                          for (const auto& m : main) rest -= *share_at(p, m.name);
+                                          return std::max(rest, 0.0);
+                                        }),
+                                 slot(next_slot)));
+  return {"contributors.svg",
+          "Where the uncertainty comes from across the range: a source near 100 % is the one to improve there.",
+          std::move(c)};
+}
+
+Figure sensitivity_figure(const Design& d, const Budget& b) {
+  const auto t = temperatures(b);
+  svg::Chart c;
+  c.title = "ADC sensitivity and the temperature size of one LSB";
+  c.x = kTemperatureAxis;
+  c.y = axis("LSB per K  \u00b7  K per LSB (log)", svg::Scale::log10);
+  c.description = "ADC counts per kelvin of the nominal chain, and its reciprocal: the temperature step of one count.";
+  // The magnitude: the sign only says which way the code runs (falling for
+  // an NTC at the low side), and a log axis needs positive values.
+  c.series.push_back(svg::line("abs_sensitivity", "|Sensitivity| (LSB/K)", t,
+                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!nominal_ok(p) || p.nominal.sensitivity == 0.0) return std::nullopt;
+                                 return std::fabs(p.nominal.sensitivity);
+                               }),
+                               slot(0)));
+  c.series.push_back(svg::line("lsb_in_k", "Size of 1 LSB (K)", t,
+                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!nominal_ok(p) || !std::isfinite(p.nominal.lsb_in_k)) return std::nullopt;
+                                 return p.nominal.lsb_in_k;
+                               }),
+                               slot(2)));
+  if (d.firmware.resolution > 0.0)
+    c.series.push_back(
+        svg::reference("resolution", "output resolution " + kelvin(d.firmware.resolution, 4), {d.firmware.resolution}));
+  bool falling = false;
+  for (const auto& p : b.points) falling = falling || (nominal_ok(p) && p.nominal.sensitivity < 0.0);
+  return {"sensitivity.svg",
+          std::string("Counts per kelvin (higher is better) and the kelvin one count stands for (lower is better)") +
+              (falling ? "; the code falls as the temperature rises." : "."),
+          std::move(c)};
+}
+
+Figure self_heating_figure(const Design& d, const Budget& b) {
+  const auto t = temperatures(b);
+  svg::Chart c;
+  c.title = "Self-heating of the sensor";
+  c.x = kTemperatureAxis;
+  c.y = axis("Temperature rise (K)");
+  c.description = "How much warmer than the medium the element runs (nominal parts, mean over the duty cycle).";
+  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
+  c.series.push_back(svg::line("self_heating", "Self-heating", t,
+                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!nominal_ok(p)) return std::nullopt;
+                                 return p.nominal.self_heating;
+                               }),
+                               slot(0)));
+  return {"self-heating.svg", "The element's rise above the medium it measures; it is part of every error above.",
+          std::move(c)};
+}
+
+// ---------------------------------------------------------------- the page's blocks
+
+std::string verdict_detail(const Design& d, const Budget& b) {
+  const auto& v = b.verdict;
+  std::string s = v.reason;
+  if (v.basis != Requirement::Basis::monte_carlo || b.mc)
+    s += "; margin " + kelvin(v.margin) + (v.margin >= 0 ? " to spare" : " short");
+  s += ". Verdict basis: " + std::string(to_string(v.basis)) + ", window " + celsius(d.requirement.window_min) +
+       " to " + celsius(d.requirement.window_max) + ".";
+  return s;
+}
+
+Table margin_table(const Design& d, const Budget& b) {
+  const double limit = d.requirement.max_error;
+  Table t{.caption = "Largest |error| in the window by engine, against the limit of \u00b1" + kelvin(limit),
+          .header = {"Engine", "Max |error| (K)", "At (\u00b0C)", "Margin (K)", "", "How"},
+          .rows = {},
+          .numeric = {false, true, true, true, false, false}};
+  auto row = [&](const std::string& engine, double worst, double at, const std::string& how) {
+    t.rows.push_back({engine, num(worst, 3), num(at, 2), num(limit - worst, 3),
+                      limit - worst >= 0 ? "within" : "exceeds", how});
+  };
+  row("Worst case", b.wc_max_abs, b.wc_max_at,
+      std::to_string(b.wc_corners) + " corners per temperature, " +
+          (b.wc_directed ? "directed by sensitivity signs" : "full enumeration"));
+  row("Linear budget", b.rss_max_abs, b.rss_max_at,
+      "k = " + num(b.k_p, 3) + " for " + pct(d.montecarlo.coverage, 2) + " coverage (JCGM 100)");
+  if (b.mc)
+    row("Monte Carlo", b.mc->max_abs, b.mc->max_abs_at,
+        std::to_string(b.mc->units) + " units, " + pct(b.mc->coverage, 2) + " coverage (JCGM 101)");
+  return t;
+}
+
+void yield_block(Page& doc, const Design& d, const Budget& b) {
+  doc.heading("Production yield");
+  if (!b.mc) {
+    doc.paragraph("Monte Carlo was not run (--no-mc), so there is no yield estimate.");
+    return;
+  }
+  const auto& m = *b.mc;
+  const bool meets = m.yield >= d.requirement.yield;
+  const bool sure = m.yield_low >= d.requirement.yield;
+  doc.paragraph("Yield " + pct(m.yield, 3) + " of units within \u00b1" + kelvin(d.requirement.max_error) +
+                " over the whole window (95 % confidence interval " + pct(m.yield_low, 3) + " to " +
+                pct(m.yield_high, 3) + "), against the required " + pct(d.requirement.yield, 3) + ". " +
+                (sure    ? "Even the interval's low end meets the requirement."
+                 : meets ? "The estimate meets the requirement but the interval's low end does not: run more units."
+                         : "The estimate falls short of the requirement."));
+  doc.table({.caption = "Monte Carlo yield",
+             .header = {"Yield", "95 % interval", "Required", "Failures per million", "Units", "Good units"},
+             .rows = {{pct(m.yield, 3), pct(m.yield_low, 3) + " \u2013 " + pct(m.yield_high, 3),
+                       pct(d.requirement.yield, 3), num(m.failures_per_million, 0), std::to_string(m.units),
+                       std::to_string(m.good_units)}},
+             .numeric = {}});
+}
+
+void status_block(Page& doc, const Budget& b) {
+  std::vector<std::vector<std::string>> rows;
+  for (const auto& p : b.points) {
+    if (!unreadable(p)) continue;
+    std::string what;
+    if (!nominal_ok(p)) what = std::string(describe(p.nominal.status)) + " (nominal parts)";
+    else if (p.wc.failed_corners > 0)
+      what = std::string(describe(p.wc.failure)) + " at " + std::to_string(p.wc.failed_corners) +
+             " worst-case corner(s)";
+    else if (p.linear.status != Status::ok) what = std::string(describe(p.linear.status)) + " (linear budget)";
+    rows.push_back({num(p.t, 2), p.in_window ? "yes" : "no", what});
+  }
+  if (rows.empty()) return;
+  doc.heading("Temperatures that cannot be read");
+  doc.paragraph("These are gaps in every curve above (and hatched on the error chart), not zeros.");
+  doc.table({.caption = {}, .header = {"t (\u00b0C)", "In window", "What happens"}, .rows = rows, .numeric = {}});
+}
+
+void inputs_block(Page& doc, const Design& d, const Scenario& s) {
+  doc.heading("Every resolved input");
+  doc.paragraph(std::to_string(d.inputs.size()) +
+                " toleranced inputs are active. Values as given (the built-in default where no file or option set "
+                "one), with their unit and where they came from, as `thermargin check` prints them.");
+  std::string section;
+  Table t;
+  auto flush = [&] {
+    if (!t.rows.empty()) doc.table(t);
+    t = Table{};
+  };
+  for (const auto& k : scenario_schema()) {
+    const auto& v = s.get(k.key);
+    if ((k.key.ends_with("_dist") || k.key.ends_with("_gap")) && v.where.kind == Origin::built_in) continue;
+    const auto dot = k.key.find('.');
+    const std::string sec = dot == std::string::npos ? "(top)" : k.key.substr(0, dot);
+    if (sec != section || t.header.empty()) {
+      flush();
+      section = sec;
+      t.caption = "[" + sec + "]";
+      t.header = {"Key", "Value", "Unit", "Origin"};
+      t.numeric = {false, false, false, false};
+    }
+    t.rows.push_back({k.key, v.value.empty() ? "(none)" : v.value, std::string(unit_symbol(k.quantity)),
+                      v.where.origin()});
+  }
+  flush();
+}
+
+// ---------------------------------------------------------------- files
+
+[[noreturn]] void refuse(const std::string& option, const std::string& path, const std::string& reason) {
+  reject(Where{Origin::command_line, "", 0, option}, path, reason);
+}
+
+}  // namespace
+
+std::vector<Figure> budget_figures(const Design& design, const Budget& budget) {
+  std::vector<Figure> f;
+  f.push_back(error_figure(design, budget));
+  f.push_back(contributor_figure(budget));
+  f.push_back(sensitivity_figure(design, budget));
+  f.push_back(self_heating_figure(design, budget));
+  return f;
+}
+
+std::string budget_report_html(const Design& d, const Scenario& scenario, const Budget& b, const std::string& source) {
+  const auto figures = budget_figures(d, b);
+  Page doc;
+  doc.paragraph("thermargin " + std::string(version) + " budget of " +
+                (source.empty() ? std::string("the built-in default design") : "scenario " + source) + ": " +
+                std::to_string(b.points.size()) + " temperatures from " + celsius(d.conditions.t_min) + " to " +
+                celsius(d.conditions.t_max) + "; requirement \u00b1" + kelvin(d.requirement.max_error) + " from " +
+                celsius(d.requirement.window_min) + " to " + celsius(d.requirement.window_max) + " with a yield of " +
+                pct(d.requirement.yield, 2) + ". Errors are reported minus true temperature, in kelvin.");
+  doc.verdict(b.verdict.pass, verdict_detail(d, b));
+  doc.caution(caution);
+  doc.table(margin_table(d, b));
+  if (!b.window_contributors.empty() && b.window_contributors.front().share > 0.0)
+    doc.paragraph("The largest contributor over the window is the " + b.window_contributors.front().label + " (" +
+                  pct(b.window_contributors.front().share, 1) + " of the combined variance).");
+  yield_block(doc, d, b);
+
+  doc.heading("Error across the range");
+  doc.chart(figures[0].chart, "Figure 1. " + figures[0].caption);
+  if (b.mc) {
+    int validated = 0, compared = 0;
+    for (const auto& p : b.points)
+      if (p.in_window && mc_ok(p) && linear_ok(p)) {
+        ++compared;
+        validated += linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high,
+                                      numerical_tolerance(p.linear.u_c));
+      }
+    doc.paragraph("Linear budget against Monte Carlo (JCGM 101 \u00a78): validated at " + std::to_string(validated) +
+                  " of " + std::to_string(compared) + " window temperatures" +
+                  (validated == compared ? "; the simple budget can be trusted here."
+                                         : "; where they differ, read the Monte Carlo band."));
+  }
+
+  doc.heading("What the error is made of");
+  doc.chart(figures[1].chart, "Figure 2. " + figures[1].caption);
+  Table rank{.caption = "Ranking over the requirement window",
+             .header = {"#", "Source", "Share of variance", "", "Own worst case (\u00b1K)"},
+             .rows = {},
+             .numeric = {true, false, true, false, true}};
+  int n = 0;
+  for (const auto& c : b.window_contributors)
+    if (c.share > 0.0 || c.half_width > 0.0)
+      rank.rows.push_back({std::to_string(++n), c.label + " (" + c.name + ")", pct(c.share, 1), bar(c.share),
+                           num(c.half_width, 4)});
+  doc.table(rank);
+
+  doc.heading("Sensitivity");
+  doc.chart(figures[2].chart, "Figure 3. " + figures[2].caption);
+  doc.heading("Self-heating");
+  doc.chart(figures[3].chart, "Figure 4. " + figures[3].caption);
+
+  status_block(doc, b);
+  inputs_block(doc, d, scenario);
+  doc.caution(caution);
+  return report::render_page("Design review: " + d.title, doc.blocks());
+}
+
+void check_report_path(const std::string& option, const std::string& path) {
+  if (path.empty()) refuse(option, path, "give the name of the HTML file to write");
+  std::error_code ec;
+  if (fs::is_directory(path, ec)) refuse(option, path, "is a directory; give a file name such as review.html");
+  const fs::path parent = fs::path(path).parent_path();
+  if (!parent.empty() && !fs::is_directory(parent, ec))
+    refuse(option, path, "directory " + parent.string() + " does not exist; give a file in an existing directory");
+}
+
+void check_plots_directory(const std::string& option, const std::string& dir) {
+  if (dir.empty()) refuse(option, dir, "give the directory for the SVG files");
+  std::error_code ec;
+  if (fs::exists(dir, ec) && !fs::is_directory(dir, ec)) refuse(option, dir, "is a file, not a directory");
+  if (fs::is_directory(dir, ec)) return;
+  const fs::path parent = fs::path(dir).lexically_normal().parent_path();
+  if (!parent.empty() && !fs::is_directory(parent, ec))
+    refuse(option, dir,
+           "directory " + parent.string() + " does not exist; the plots directory is created only inside an existing one");
+}
+
+void write_report(const std::string& path, std::string_view html) { report::write_file(path, html); }
+
+void write_figures(const std::string& option, const std::string& dir, const std::vector<Figure>& figures) {
+  check_plots_directory(option, dir);
+  // Render everything first: nothing touches the disk until every file's text exists.
+  std::vector<report::NamedText> files;
+  for (const auto& f : figures) files.push_back({f.file, svg::render_document(f.chart)});
+  bool created = false;
+  std::error_code ec;
+  if (!fs::is_directory(dir, ec)) {
+    if (::mkdir(dir.c_str(), 0777) != 0) refuse(option, dir, std::string("cannot create it: ") + std::strerror(errno));
+    created = true;
+  }
+  report::write_files(option, dir, files, created);
+}
+
+}  // namespace thermargin
