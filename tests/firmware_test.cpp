@@ -1,0 +1,228 @@
+// Checks of the firmware's conversion (firmware.hpp, model.md §6): the
+// full-scale convention, the beta and Steinhart–Hart conversions and their
+// defaults, the lookup table (its code span, its integer storage, its linear
+// interpolation) and the output rounding. Hand formulas are the second
+// opinion: the beta equation (IEC 60539-1), the divider inverted by Ohm's law.
+#include "thermargin/firmware.hpp"
+
+#include <cmath>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include <gtest/gtest.h>
+
+#include "thermargin/chain.hpp"
+#include "thermargin/divider.hpp"
+#include "thermargin/scenario.hpp"
+#include "thermargin/sensor.hpp"
+
+namespace thermargin {
+namespace {
+
+using Keys = std::vector<std::pair<std::string, std::string>>;
+
+constexpr double exact_tolerance = 1e-9;  // K: the same arithmetic in another order
+
+Design design_from(const Keys& keys) {
+  Scenario s;
+  for (const auto& [k, v] : keys) s.set(k, v, Where{Origin::command_line, "", 0, k});
+  return build_design(s);
+}
+
+Keys ideal(Keys extra) {
+  Keys k = {{"adc.bits", "24"},          {"adc.offset", "0"},          {"adc.gain_error", "0"},
+            {"adc.inl", "0"},            {"adc.noise", "0"},           {"sensor.dissipation", "0"},
+            {"firmware.conversion", "exact"}, {"firmware.resolution", "0"}, {"firmware.full_scale", "pow2"}};
+  k.insert(k.end(), extra.begin(), extra.end());
+  return k;
+}
+
+// The beta equation solved for T (IEC 60539-1), in °C.
+double beta_temperature(double r, double r25, double beta) {
+  return 1.0 / (1.0 / t0_kelvin + std::log(r / r25) / beta) - kelvin_offset;
+}
+
+TEST(FirmwareConversion, BetaConversionIsTheBetaEquationOfTheInvertedDivider) {
+  // A code c of a 12-bit ADC, FS = 2^12: ρ = c/4096, R = R_fixed ρ/(1 − ρ)
+  // for the sensor below the node (Ohm's law), T from the beta equation.
+  const Design d = design_from({{"sensor.r25", "10k"}, {"sensor.beta", "3435"}, {"divider.r_fixed", "12k"}});
+  const Firmware fw(d);
+  for (double code : {300.0, 1000.5, 2048.0, 3900.25}) {
+    const double rho = code / 4096.0;
+    const double r = 12e3 * rho / (1 - rho);
+    EXPECT_NEAR(*fw.temperature(code), beta_temperature(r, 10e3, 3435), exact_tolerance) << code;
+  }
+}
+
+TEST(FirmwareConversion, FirmwareBetaMayDifferFromTheSensors) {
+  // The firmware uses its own r25/beta: a sensor of B = 3950 read with
+  // B = 3900 reads right at 25 °C only.
+  const Design d = design_from(ideal({{"firmware.conversion", "beta"}, {"firmware.beta", "3900"}}));
+  const Chain chain(d);
+  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 25.0).error, 0.0, exact_tolerance);
+  for (double t : {-20.0, 0.0, 60.0, 80.0}) {
+    const double r = 10e3 * std::exp(3950 * (1 / (t + kelvin_offset) - 1 / t0_kelvin));
+    EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).t_reported, beta_temperature(r, 10e3, 3900), exact_tolerance) << t;
+  }
+}
+
+TEST(FirmwareConversion, FullScaleOfTwoToTheNMinusOneReadsTheRatioLarger) {
+  // FS = 2^N − 1 (model.md §6): ρ = c/(2^N − 1) while the ADC's code is
+  // V/V_ref·2^N; the systematic error is what the inverted divider makes of it.
+  const Design d = design_from(ideal({{"adc.bits", "12"}, {"firmware.full_scale", "pow2-minus-1"}}));
+  const Chain chain(d);
+  for (double t : {-20.0, 25.0, 80.0}) {
+    const double r = 10e3 * std::exp(3950 * (1 / (t + kelvin_offset) - 1 / t0_kelvin));
+    const double code = r / (10e3 + r) * 4096.0;
+    const double rho = code / 4095.0;
+    const double expected = beta_temperature(10e3 * rho / (1 - rho), 10e3, 3950);
+    const Evaluation e = chain.evaluate(nominal_deviations(), t);
+    EXPECT_NEAR(e.t_reported, expected, exact_tolerance) << t;
+    EXPECT_LT(e.error, 0.0) << t;  // a larger ratio is a larger NTC resistance: colder
+  }
+}
+
+TEST(FirmwareConversion, CodesOutsideTheDividerHaveNoConversion) {
+  const Design d = design_from({{"firmware.full_scale", "pow2-minus-1"}});
+  const Firmware fw(d);
+  EXPECT_FALSE(fw.temperature(0.0));      // ρ = 0: no resistance
+  EXPECT_FALSE(fw.temperature(4095.0));   // ρ = 1: an open sensor
+  EXPECT_TRUE(fw.temperature(4094.0));
+}
+
+TEST(FirmwareConversion, DefaultSteinhartHartPassesThroughTheCurveAtTheRangeEndsAndMiddle) {
+  // model.md §6: the firmware's own a/b/c default to the Steinhart–Hart
+  // curve through the nominal curve at t_min, the middle and t_max. A Pt1000
+  // (IEC 60751) is then read exactly there and not quite between.
+  const Design d = design_from(ideal({{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"divider.r_fixed", "1k"},
+                                      {"firmware.conversion", "steinhart-hart"}, {"conditions.t_min", "0"},
+                                      {"conditions.t_max", "250"}}));
+  const Chain chain(d);
+  for (double t : {0.0, 125.0, 250.0}) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, exact_tolerance) << t;
+  EXPECT_GT(std::fabs(chain.evaluate(nominal_deviations(), 60.0).error), 1e-3);
+}
+
+TEST(FirmwareConversion, SteinhartHartFittedToABetaCurveIsTheBetaCurve) {
+  // A beta curve is 1/T = 1/T0 + (ln R − ln R25)/B: Steinhart–Hart with
+  // C = 0, so the three-point fit reproduces it everywhere.
+  const Design d = design_from(ideal({{"firmware.conversion", "steinhart-hart"}}));
+  const Firmware fw(d);
+  EXPECT_NEAR(fw.steinhart_hart().b, 1 / 3950.0, 1e-15);
+  EXPECT_NEAR(fw.steinhart_hart().c, 0.0, 1e-15);
+  const Chain chain(d);
+  for (double t = -20.0; t <= 80.0; t += 2.5) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, exact_tolerance) << t;
+}
+
+TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRange) {
+  // For a sensor that is not a beta model, firmware.beta = sensor means the
+  // B-value through the nominal curve at t_min and t_max (IEC 60539-1:
+  // B = ln(R1/R2)/(1/T1 − 1/T2)), and r25 the value that curve gives at 25 °C.
+  const Design d = design_from(ideal({{"sensor.model", "steinhart-hart"}, {"firmware.conversion", "beta"},
+                                      {"conditions.t_min", "0"}, {"conditions.t_max", "60"}}));
+  const SteinhartHart sh{1.129148e-3, 2.34125e-4, 8.76741e-8};
+  const double t1 = kelvin_offset, t2 = 60 + kelvin_offset;
+  const double b = (ln_resistance(sh, t1) - ln_resistance(sh, t2)) / (1 / t1 - 1 / t2);
+  EXPECT_NEAR(d.firmware.beta / b, 1.0, 1e-12);
+  const Chain chain(d);
+  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 0.0).error, 0.0, exact_tolerance);
+  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 60.0).error, 0.0, exact_tolerance);
+  EXPECT_GT(std::fabs(chain.evaluate(nominal_deviations(), 30.0).error), 1e-3);
+}
+
+TEST(FirmwareConversion, OutputRoundingIsHalfUpToTheResolution) {
+  const Design d = design_from({{"firmware.resolution", "0.1"}});
+  const Firmware fw(d);
+  EXPECT_NEAR(fw.round_output(21.34), 21.3, 1e-12);
+  EXPECT_NEAR(fw.round_output(21.36), 21.4, 1e-12);
+  EXPECT_NEAR(fw.round_output(21.25), 21.3, 1e-12);  // half up
+  EXPECT_NEAR(fw.round_output(-4.25), -4.2, 1e-12);  // half up below zero too
+  const Design none = design_from({{"firmware.resolution", "0"}});
+  EXPECT_EQ(Firmware(none).round_output(21.3456), 21.3456);
+}
+
+// --- the lookup table -------------------------------------------------------
+
+// The ideal code of the nominal divider at t (no self-heating, no leakage).
+double ideal_code(const Design& d, double t) {
+  const double r = std::exp(*nominal_ln_resistance(d.sensor, t + kelvin_offset));
+  return divider_ratio(d.divider.placement, d.divider.r_fixed, r) * d.adc_span();
+}
+
+TEST(FirmwareLookupTable, SpansTheRangeCodesWithAFivePercentMarginEachSide) {
+  // docs/model.md: the codes of t_min and t_max, widened by 5 % of their span
+  // at each end, within [1, 2^N − 2].
+  const Design d = design_from({{"firmware.conversion", "table"}, {"firmware.table_points", "33"}});
+  const LookupTable& table = Firmware(d).table();
+  const double lo = ideal_code(d, d.conditions.t_max), hi = ideal_code(d, d.conditions.t_min);
+  const double margin = 0.05 * (hi - lo);
+  EXPECT_EQ(table.first_code, static_cast<std::int64_t>(std::floor(lo - margin)));
+  EXPECT_EQ(table.stored.size(), 33u);
+  EXPECT_GE(static_cast<double>(table.last_code()), hi + margin);
+  EXPECT_LT(static_cast<double>(table.last_code() - table.step), hi + margin);  // no more points than needed
+}
+
+TEST(FirmwareLookupTable, StoresTheExactConversionAsIntegersOfTheUnit) {
+  const Design d = design_from({{"firmware.conversion", "table"}, {"firmware.table_unit", "0.01"}});
+  const Firmware fw(d);
+  const LookupTable& table = fw.table();
+  for (std::size_t k = 0; k < table.stored.size(); ++k) {
+    const double code = static_cast<double>(table.first_code + table.step * static_cast<std::int64_t>(k));
+    EXPECT_EQ(table.stored[k], std::llround(*fw.exact_temperature(code) / 0.01)) << k;
+    EXPECT_NEAR(*fw.temperature(code), static_cast<double>(table.stored[k]) * 0.01, 1e-12) << k;
+  }
+}
+
+TEST(FirmwareLookupTable, InterpolatesLinearlyBetweenStoredPoints) {
+  const Design d = design_from({{"firmware.conversion", "table"}});
+  const Firmware fw(d);
+  const LookupTable& table = fw.table();
+  for (std::size_t k = 0; k + 1 < table.stored.size(); k += 5) {
+    const double c0 = static_cast<double>(table.first_code + table.step * static_cast<std::int64_t>(k));
+    const double a = static_cast<double>(table.stored[k]) * table.unit, b = static_cast<double>(table.stored[k + 1]) * table.unit;
+    const double quarter = c0 + 0.25 * static_cast<double>(table.step);
+    EXPECT_NEAR(*fw.temperature(quarter), a + 0.25 * (b - a), 1e-12) << k;
+  }
+  EXPECT_FALSE(fw.temperature(static_cast<double>(table.first_code) - 0.5));
+  EXPECT_FALSE(fw.temperature(static_cast<double>(table.last_code()) + 0.5));
+}
+
+TEST(FirmwareLookupTable, MoreNodesReadCloserToTheExactConversion) {
+  // Linear interpolation's error is h²/8 times the curvature (textbook):
+  // 8 times the nodes make it about 64 times smaller (the node spacing is
+  // rounded up to whole codes, so a little less).
+  auto worst = [](const char* points) {
+    const Design d = design_from(ideal({{"adc.bits", "12"}, {"firmware.conversion", "table"},
+                                        {"firmware.table_points", points}, {"firmware.table_unit", "0.0001"}}));
+    const Chain chain(d);
+    double w = 0.0;
+    for (double t = -20.0; t <= 80.0; t += 0.25) w = std::max(w, std::fabs(chain.evaluate(nominal_deviations(), t).error));
+    return w;
+  };
+  const double coarse = worst("17"), fine = worst("129");
+  EXPECT_LT(fine, coarse / 50) << coarse << " K with 17 points, " << fine << " K with 129";
+  EXPECT_GT(fine, coarse / 80) << coarse << " K with 17 points, " << fine << " K with 129";
+}
+
+TEST(FirmwareLookupTable, ATableSensorWhoseTableEndsAtTheRangeStillGetsALookupTable) {
+  // Regression: the 5 % margin reached past the sensor table's ends, the first
+  // point had no temperature and the lookup table came out empty.
+  const Design d = design_from(ideal({{"adc.bits", "12"},
+                                      {"sensor.model", "table"},
+                                      {"sensor.table_file", std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/ntc10k_sh_0_50.csv"},
+                                      {"conditions.t_min", "0"},
+                                      {"conditions.t_max", "50"},
+                                      {"requirement.window_min", "0"},
+                                      {"requirement.window_max", "50"},
+                                      {"firmware.conversion", "table"}}));
+  const Chain chain(d);
+  EXPECT_GE(chain.firmware().table().stored.size(), 30u);
+  for (double t = 5.0; t <= 45.0; t += 5.0) {
+    const Evaluation e = chain.evaluate(nominal_deviations(), t);
+    ASSERT_EQ(e.status, Status::ok) << t;
+    EXPECT_LT(std::fabs(e.error), 0.05) << t;
+  }
+}
+
+}  // namespace
+}  // namespace thermargin
