@@ -159,10 +159,14 @@ void Scenario::load_file(const std::string& path) {
   for (const std::string& raw : split_lines(text, path)) {
     ++n;
     const std::string line = trim(raw.substr(0, raw.find('#')));
-    if (line.empty() || line[0] == ';') continue;
+    if (line.empty()) continue;
+    // Boost's parser refuses these without a line number: refuse them here.
+    if (line[0] == ';') reject_at(path, n, "'" + line.substr(0, 60) + "': comments start with '#'");
     if (line.front() == '[') {
       if (line.back() != ']') reject_at(path, n, "malformed section header '" + line + "': expected [section]");
       section = trim(line.substr(1, line.size() - 2));
+      if (section != line.substr(1, line.size() - 2))
+        reject_at(path, n, "malformed section header '" + line + "': expected [" + section + "], no spaces inside the brackets");
       if (!known_section(section))
         reject_at(path, n, "unknown section [" + section + "]; accepted sections: " + section_list());
       continue;
