@@ -272,6 +272,11 @@ class Reader {
   bool boolean(const std::string& key) const {
     return word<bool>(key, {{"true", true}, {"yes", true}, {"1", true}, {"false", false}, {"no", false}, {"0", false}});
   }
+  // Of two keys checked against each other, the one to name in a message:
+  // `preferred`, unless only `other` was set (a default has no line to show).
+  const char* set_one(const char* preferred, const char* other) const {
+    return is_default(preferred) && !is_default(other) ? other : preferred;
+  }
   [[noreturn]] void fail(const std::string& key, const std::string& why) const {
     const auto& st = at(key);
     reject(st.where, st.value, why);
@@ -413,7 +418,11 @@ Design build_design(const Scenario& s) {
   c.t_max = r.number("conditions.t_max");
   c.t_step = r.positive("conditions.t_step");
   if (c.t_min <= -kelvin_offset) r.fail("conditions.t_min", "must be above absolute zero (-273.15 degC)");
-  if (!(c.t_max > c.t_min)) r.fail("conditions.t_max", "must be above conditions.t_min (" + s.get("conditions.t_min").value + ")");
+  if (!(c.t_max > c.t_min)) {
+    if (r.set_one("conditions.t_max", "conditions.t_min") == std::string("conditions.t_min"))
+      r.fail("conditions.t_min", "must be below conditions.t_max (" + s.get("conditions.t_max").value + ")");
+    r.fail("conditions.t_max", "must be above conditions.t_min (" + s.get("conditions.t_min").value + ")");
+  }
   const double count = std::floor((c.t_max - c.t_min) / c.t_step + 1e-9) + 2;
   if (count > 100001)
     r.fail("conditions.t_step", "gives " + std::to_string(static_cast<long long>(count)) +
@@ -468,10 +477,15 @@ Design build_design(const Scenario& s) {
   q.window_max = r.number("requirement.window_max");
   q.max_error = r.positive("requirement.max_error");
   q.yield = r.number("requirement.yield");
-  if (!(q.window_max > q.window_min)) r.fail("requirement.window_max", "must be above requirement.window_min");
-  if (q.window_min < c.t_min || q.window_max > c.t_max)
-    r.fail(q.window_min < c.t_min ? "requirement.window_min" : "requirement.window_max",
-           "the window must lie within conditions.t_min..t_max");
+  if (!(q.window_max > q.window_min))
+    r.fail(r.set_one("requirement.window_max", "requirement.window_min"),
+           "requirement.window_max must be above requirement.window_min");
+  if (q.window_min < c.t_min)
+    r.fail(r.set_one("requirement.window_min", "conditions.t_min"),
+           "requirement.window_min must not be below conditions.t_min (" + s.get("conditions.t_min").value + ")");
+  if (q.window_max > c.t_max)
+    r.fail(r.set_one("requirement.window_max", "conditions.t_max"),
+           "requirement.window_max must not be above conditions.t_max (" + s.get("conditions.t_max").value + ")");
   if (!(q.yield > 0.0 && q.yield <= 1.0)) r.fail("requirement.yield", "must be a fraction in (0, 100 %]");
   q.basis = r.word<Requirement::Basis>("requirement.basis", {{"worst-case", Requirement::Basis::worst_case},
                                                              {"linear", Requirement::Basis::linear},
