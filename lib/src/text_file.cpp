@@ -24,6 +24,9 @@ std::string read_text_file(const std::string& path) {
   buffer << in.rdbuf();
   if (in.bad()) reject_at(path, 0, "cannot read: input/output error");
   std::string text = buffer.str();
+  // A UTF-8 byte-order mark (spreadsheets and some editors write one) is not
+  // text: left in, it hid a scenario's first line and a table's first point.
+  if (text.starts_with("\xEF\xBB\xBF")) text.erase(0, 3);
   if (text.find('\0') != std::string::npos) reject_at(path, 0, "is not a text file (it contains NUL bytes)");
   if (text.find_first_not_of(" \t\r\n") == std::string::npos) reject_at(path, 0, "is empty");
   return text;
