@@ -10,6 +10,18 @@ namespace thermargin {
 
 std::optional<double> LookupTable::temperature(double code) const {
   if (stored.size() < 2) return std::nullopt;
+  if (!codes.empty()) {
+    // Spaced in temperature: the interval is found by a binary search.
+    if (!(code >= static_cast<double>(codes.front()) && code <= static_cast<double>(codes.back()))) return std::nullopt;
+    auto it = std::upper_bound(codes.begin(), codes.end(), code,
+                               [](double c, std::int64_t node) { return c < static_cast<double>(node); });
+    std::size_t k = static_cast<std::size_t>(it - codes.begin()) - 1;
+    if (k == codes.size() - 1) --k;
+    const double c0 = static_cast<double>(codes[k]), c1 = static_cast<double>(codes[k + 1]);
+    const double f = (code - c0) / (c1 - c0);
+    const double a = static_cast<double>(stored[k]), b = static_cast<double>(stored[k + 1]);
+    return (a + f * (b - a)) * unit;
+  }
   const double pos = (code - static_cast<double>(first_code)) / static_cast<double>(step);
   const double last = static_cast<double>(stored.size() - 1);
   if (!(pos >= 0.0 && pos <= last)) return std::nullopt;
@@ -63,6 +75,15 @@ std::optional<double> Firmware::exact_temperature(double code) const {
   return *t - kelvin_offset;
 }
 
+std::optional<double> Firmware::exact_code(double t_celsius) const {
+  const auto l = nominal_ln_resistance(d_->sensor, t_celsius + kelvin_offset);
+  if (!l) return std::nullopt;
+  // The firmware's own model forward: the lead resistance it assumes and its
+  // nominal parts, so that exact_temperature(exact_code(t)) == t.
+  const double rb = branch_resistance(std::exp(*l), d_->firmware.lead_compensation, d_->divider.r_parallel);
+  return divider_ratio(d_->divider.placement, d_->divider.r_fixed, rb) / ratio_scale_ * full_scale_;
+}
+
 std::optional<double> Firmware::temperature(double code) const {
   if (conversion_ == Conversion::table) return table_.temperature(code);
   if (conversion_ == Conversion::exact) return exact_temperature(code);
@@ -80,10 +101,7 @@ double Firmware::round_output(double t) const {
   return std::floor(t / res + 0.5) * res;
 }
 
-LookupTable build_lookup_table(const Design& d, const Firmware& exact, int points, double unit) {
-  // The ideal codes of the nominal divider (no self-heating, no leakage) at
-  // the ends of the range, widened by 5 % of that span at each end so that a
-  // unit at the edge of its tolerance still reads inside the table.
+CodeSpan range_codes(const Design& d) {
   const double span_codes = d.adc_span();
   const double v_ratio = d.supply.ratiometric ? 1.0 : d.supply.v_excitation / d.supply.v_reference;
   double lo = span_codes, hi = 0.0;
@@ -101,22 +119,72 @@ LookupTable build_lookup_table(const Design& d, const Firmware& exact, int point
     lo = std::min(lo, c);
     hi = std::max(hi, c);
   }
-  const double margin = 0.05 * (hi - lo);
+  return {lo, hi};
+}
+
+LookupTable build_lookup_table(const Design& d, const Firmware& exact, int points, double unit, TableSpacing spacing) {
+  // The ideal codes of the nominal divider (no self-heating, no leakage) at
+  // the ends of the range, widened by 5 % of that span at each end so that a
+  // unit at the edge of its tolerance still reads inside the table.
+  const CodeSpan range = range_codes(d);
+  const double span_codes = d.adc_span();
+  const double margin = 0.05 * (range.high - range.low);
+  auto solves = [&](std::int64_t c) { return exact.exact_temperature(static_cast<double>(c)).has_value(); };
   LookupTable table;
   table.unit = unit;
-  std::int64_t first_code = std::max<std::int64_t>(static_cast<std::int64_t>(std::floor(lo - margin)), 1);
-  const std::int64_t last_wanted = std::min<std::int64_t>(static_cast<std::int64_t>(std::ceil(hi + margin)),
-                                                          static_cast<std::int64_t>(span_codes) - 2);
+  std::int64_t first_code = std::max<std::int64_t>(static_cast<std::int64_t>(std::floor(range.low - margin)), 1);
+  std::int64_t last_wanted = std::min<std::int64_t>(static_cast<std::int64_t>(std::ceil(range.high + margin)),
+                                                    static_cast<std::int64_t>(span_codes) - 2);
   // The margin may reach past the codes with a solution (a table sensor's
-  // ends): the table starts at the first code that has one.
-  while (first_code < last_wanted && !exact.exact_temperature(static_cast<double>(first_code))) ++first_code;
+  // ends): the table starts at the first code that has one and ends at the last.
+  while (first_code < last_wanted && !solves(first_code)) ++first_code;
+  while (last_wanted > first_code && !solves(last_wanted)) --last_wanted;
+  auto store = [&](double t) { return static_cast<std::int64_t>(std::llround(t / unit)); };
+
+  if (spacing == TableSpacing::temperature) {
+    // Codes nearest to equally spaced temperatures, kept strictly increasing
+    // (where the curve is steep, neighbouring temperatures may round to one code).
+    const std::int64_t available = last_wanted - first_code + 1;
+    const std::int64_t n = std::min<std::int64_t>(points, available);
+    if (n < 2) return table;
+    const double t_a = *exact.exact_temperature(static_cast<double>(first_code));
+    const double t_b = *exact.exact_temperature(static_cast<double>(last_wanted));
+    table.first_code = first_code;
+    table.step = 0;
+    for (std::int64_t k = 0; k < n; ++k) {
+      std::int64_t c = first_code;
+      if (k == n - 1) {
+        c = last_wanted;
+      } else if (k > 0) {
+        const auto x = exact.exact_code(t_a + (t_b - t_a) * static_cast<double>(k) / static_cast<double>(n - 1));
+        c = x ? static_cast<std::int64_t>(std::llround(*x)) : first_code;
+        c = std::max(c, table.codes.back() + 1);
+        c = std::min(c, last_wanted - (n - 1 - k));  // room for the points still to come
+      }
+      table.codes.push_back(c);
+      table.stored.push_back(store(*exact.exact_temperature(static_cast<double>(c))));
+    }
+    return table;
+  }
+
   const std::int64_t span = std::max<std::int64_t>(last_wanted - first_code, 1);
-  table.first_code = first_code;
   table.step = std::max<std::int64_t>((span + points - 2) / (points - 1), 1);
+  // The smallest step that reaches the last code usually overshoots it by up
+  // to P − 2 codes; where no solution exists there, the table moves down
+  // (as far as the codes below have one) so that every point converts.
+  const std::int64_t end = first_code + table.step * (points - 1);
+  if (!solves(end)) {
+    std::int64_t top = end;
+    while (top > last_wanted && !solves(top)) --top;
+    std::int64_t moved = first_code - (end - top);
+    while (moved < first_code && (moved < 1 || !solves(moved))) ++moved;
+    first_code = moved;
+  }
+  table.first_code = first_code;
   for (int k = 0; k < points; ++k) {
     const auto t = exact.exact_temperature(static_cast<double>(first_code + table.step * k));
     if (!t) break;  // past the last code with a solution the table ends
-    table.stored.push_back(static_cast<std::int64_t>(std::llround(*t / unit)));
+    table.stored.push_back(store(*t));
   }
   return table;
 }

@@ -8,7 +8,8 @@
 // `exact` (the nominal curve's inverse), `beta`, `steinhart-hart` (by
 // default through the nominal curve at t_min, the middle and t_max) or a
 // lookup `table` of P points equally spaced in code with linear
-// interpolation, stored as integers exactly as `thermargin table` emits it.
+// interpolation, stored as integers exactly as `thermargin table` emits it
+// (that command may also space the points in temperature: lookup_table.hpp).
 #pragma once
 
 #include <cstdint>
@@ -19,14 +20,28 @@
 
 namespace thermargin {
 
-// The lookup table the firmware ships: codes c0 + k·step, k = 0..P−1, and
-// the stored temperatures as integers in units of `unit` kelvin.
+// Where the points of a lookup table sit: equally spaced in code (the
+// firmware finds the interval by one division) or equally spaced in
+// temperature (denser in codes where the curve is flat, found by a search).
+enum class TableSpacing { code, temperature };
+
+// The lookup table the firmware ships: codes c0 + k·step, k = 0..P−1 (or
+// the listed `codes` when spaced in temperature), and the stored
+// temperatures (°C) as integers in units of `unit` kelvin.
 struct LookupTable {
   std::int64_t first_code = 0;
   std::int64_t step = 1;
   double unit = 0.01;  // K per stored count
   std::vector<std::int64_t> stored;
-  std::int64_t last_code() const { return first_code + step * static_cast<std::int64_t>(stored.size() - 1); }
+  // Spaced in temperature: the code of every point, strictly increasing
+  // (first_code and step then describe nothing). Empty: spaced in code.
+  std::vector<std::int64_t> codes;
+  TableSpacing spacing() const { return codes.empty() ? TableSpacing::code : TableSpacing::temperature; }
+  std::size_t size() const { return stored.size(); }
+  std::int64_t code(std::size_t k) const {
+    return codes.empty() ? first_code + step * static_cast<std::int64_t>(k) : codes[k];
+  }
+  std::int64_t last_code() const { return code(stored.size() - 1); }
   // Linear interpolation between stored points; nullopt outside the table.
   std::optional<double> temperature(double code) const;
 };
@@ -50,6 +65,9 @@ class Firmware {
 
   // The exact nominal conversion at a code (the table's source of truth).
   std::optional<double> exact_temperature(double code) const;
+  // Its inverse: the (fractional) code at which exact_temperature gives
+  // t (°C); nullopt where the nominal curve has no value.
+  std::optional<double> exact_code(double t_celsius) const;
 
  private:
   std::optional<double> element_resistance(double code) const;
@@ -62,8 +80,23 @@ class Firmware {
   LookupTable table_;
 };
 
-// Builds the lookup table for a design: P points equally spaced in code over
-// the codes of the nominal chain at t_min..t_max, stored in `unit` K.
-LookupTable build_lookup_table(const Design& d, const Firmware& exact, int points, double unit);
+// The codes the nominal chain reads at the ends of the range (t_min, t_max;
+// a table sensor's range clipped to its table): the ideal divider, without
+// self-heating or leakage, in ascending order and not rounded.
+struct CodeSpan {
+  double low = 0.0, high = 0.0;
+};
+CodeSpan range_codes(const Design& d);
+
+// Builds the lookup table for a design: P points over the codes of the range
+// widened by 5 % of their span at each end, stored in `unit` K. Spaced in
+// code, the step is the smallest that reaches the widened range's last code;
+// a table that would overshoot the last code with a solution is moved down.
+// Spaced in temperature, the points are the codes nearest to P equally
+// spaced temperatures between those at the widened range's ends (always
+// distinct codes). Fewer than P points come back only when the codes with a
+// solution cannot hold P of them.
+LookupTable build_lookup_table(const Design& d, const Firmware& exact, int points, double unit,
+                               TableSpacing spacing = TableSpacing::code);
 
 }  // namespace thermargin

@@ -1,0 +1,245 @@
+// `thermargin fit DATA.csv`: beta and Steinhart–Hart coefficients fitted to
+// resistance–temperature points, their residuals in kelvin, the
+// recommendation and the lines to paste into a scenario file.
+#include <nlohmann/json.hpp>
+#include <cmath>
+#include <cstdio>
+#include <sstream>
+#include <tuple>
+#include <utility>
+
+#include "cli.hpp"
+#include "commands.hpp"
+#include "thermargin/caution.hpp"
+#include "thermargin/fit.hpp"
+#include "thermargin/rt_data.hpp"
+
+namespace thermargin::cli {
+
+namespace {
+
+Where cl(const std::string& key) { return Where{Origin::command_line, "", 0, key}; }
+
+std::string g(const char* f, double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, f, v);
+  return buf;
+}
+
+nlohmann::json num(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+
+// "-40..125" as the fit window; the message names fit.window as the library does.
+std::pair<double, double> parse_window(const std::string& text) {
+  const Where where = cl("fit.window");
+  const std::string accepted = "must be LOW..HIGH in degC with LOW <= HIGH, e.g. --window=-40..125";
+  const auto dots = text.find("..");
+  if (dots == std::string::npos) reject(where, text, accepted);
+  try {
+    const double lo = parse_quantity(text.substr(0, dots), Quantity::temperature, where);
+    const double hi = parse_quantity(text.substr(dots + 2), Quantity::temperature, where);
+    if (!(lo <= hi)) reject(where, text, accepted);
+    return {lo, hi};
+  } catch (const input_error&) {
+    reject(where, text, accepted);
+  }
+}
+
+// "25,85" as a list of temperatures for fit.beta_at or fit.sh_at.
+std::vector<double> parse_temperatures(const std::string& text, const std::string& key, std::size_t count) {
+  const Where where = cl(key);
+  const std::string accepted = "must be " + std::to_string(count) + " temperatures in degC separated by commas, e.g. " +
+                               (count == 2 ? "25,85" : "0,25,50");
+  std::vector<double> out;
+  std::size_t start = 0;
+  try {
+    while (true) {
+      const auto comma = text.find(',', start);
+      out.push_back(parse_quantity(text.substr(start, comma - start), Quantity::temperature, where));
+      if (comma == std::string::npos) break;
+      start = comma + 1;
+    }
+  } catch (const input_error&) {
+    reject(where, text, accepted);
+  }
+  if (out.size() != count) reject(where, text, accepted);
+  return out;
+}
+
+std::string short_label(const ModelFit& f) {
+  const std::string m = f.model == "beta" ? "beta" : f.model == "steinhart-hart" ? "SH" : "SH4";
+  const std::string how = f.method == "two-point" ? "2-pt" : f.method == "three-point" ? "3-pt" : "LS";
+  return m + " " + how;
+}
+
+std::string coefficient_list(const ModelFit& f) {
+  std::string s;
+  for (const auto& c : f.coefficients) s += (s.empty() ? "" : ", ") + c.name + " = " + g("%.7g", c.value);
+  return s;
+}
+
+std::string window_text(const FitResult& r) { return g("%g", r.window_low) + ".." + g("%g", r.window_high) + " degC"; }
+
+nlohmann::json to_json(const FitResult& r, const std::string& snippet) {
+  nlohmann::json j;
+  j["command"] = "fit";
+  j["file"] = r.file;
+  j["units"] = {{"temperature", "degC"}, {"error", "K"}, {"resistance", "ohm"}};
+  j["points_total"] = r.points_total;
+  j["points_in_window"] = r.points_in_window;
+  j["window"] = {{"low", r.window_low}, {"high", r.window_high}};
+  j["weighted"] = r.weighted;
+  j["rows"] = nlohmann::json::array();
+  for (std::size_t i = 0; i < r.fits.size(); ++i) {
+    const auto& f = r.fits[i];
+    nlohmann::json coefficients = nlohmann::json::object(), uncertainties = nlohmann::json::object(),
+                   units = nlohmann::json::object();
+    for (const auto& c : f.coefficients) {
+      coefficients[c.name] = c.value;
+      uncertainties[c.name] = c.uncertainty ? num(*c.uncertainty) : nlohmann::json(nullptr);
+      units[c.name] = c.unit;
+    }
+    nlohmann::json row{{"model", f.model},
+                       {"method", f.method},
+                       {"coefficients", coefficients},
+                       {"uncertainties", uncertainties},
+                       {"coefficient_units", units},
+                       {"through", f.through_celsius},
+                       {"max_residual", f.max_residual},
+                       {"max_residual_at", f.max_residual_at},
+                       {"rms_residual", f.rms_residual},
+                       {"between_assessed", f.between_assessed},
+                       {"between_max_error", f.between_assessed ? num(f.between_max_error) : nlohmann::json(nullptr)},
+                       {"between_max_at", f.between_assessed ? num(f.between_max_at) : nlohmann::json(nullptr)},
+                       {"worst_error", f.worst_error},
+                       {"weighted", f.weighted},
+                       {"dof", f.dof},
+                       {"recommended", r.recommendation.found && r.recommendation.fit == i}};
+    if (f.weighted) row["chi_squared"] = f.chi_squared;
+    row["residuals"] = nlohmann::json::array();
+    for (const auto& p : f.residuals)
+      row["residuals"].push_back(
+          {{"line", p.line}, {"t", p.t_celsius}, {"r", p.r_ohm}, {"in_window", p.in_window}, {"residual", p.residual}});
+    j["rows"].push_back(row);
+  }
+  const auto& rec = r.recommendation;
+  j["recommendation"] = {{"found", rec.found},
+                         {"model", r.fits[rec.fit].model},
+                         {"method", r.fits[rec.fit].method},
+                         {"limit", rec.limit},
+                         {"text", rec.text}};
+  j["snippet"] = snippet;
+  j["caution"] = std::string(caution);
+  return j;
+}
+
+std::string to_csv(const FitResult& r) {
+  std::ostringstream out;
+  out << "# " << caution << "\n";
+  out << "model,method,r25_ohm,beta_K,a,b,c,d,max_residual_K,max_residual_at_degC,rms_residual_K,"
+         "between_max_error_K,between_max_at_degC,worst_error_K,dof,recommended\n";
+  for (std::size_t i = 0; i < r.fits.size(); ++i) {
+    const auto& f = r.fits[i];
+    out << csv_escape(f.model) << "," << csv_escape(f.method);
+    for (const char* name : {"r25", "beta", "a", "b", "c", "d"}) {
+      out << ",";
+      for (const auto& c : f.coefficients)
+        if (c.name == name) out << g("%.10g", c.value);
+    }
+    out << "," << g("%.6g", f.max_residual) << "," << g("%g", f.max_residual_at) << "," << g("%.6g", f.rms_residual)
+        << "," << (f.between_assessed ? g("%.6g", f.between_max_error) : "") << ","
+        << (f.between_assessed ? g("%.6g", f.between_max_at) : "") << "," << g("%.6g", f.worst_error) << "," << f.dof
+        << "," << (r.recommendation.found && r.recommendation.fit == i ? 1 : 0) << "\n";
+  }
+  return out.str();
+}
+
+std::string to_text(const FitResult& r, const std::string& snippet) {
+  std::ostringstream out;
+  const auto& rec = r.recommendation;
+  out << "thermargin fit - " << r.file << ": " << r.points_total << " points, " << r.points_in_window
+      << " inside the window " << window_text(r)
+      << (r.weighted ? "; least squares weighted by the stated uncertainties" : "") << "\n\n";
+  out << (rec.found ? "RECOMMENDATION: " : "NO RECOMMENDATION: ") << rec.text << "\n\n";
+
+  out << "Models (errors in K over the window; 'between' compares with a smooth curve through the data):\n";
+  TextTable m({"model", "method", "max |residual|", "at (degC)", "RMS", "between", "at (degC)", "worst", "coefficients"});
+  for (std::size_t i = 0; i < r.fits.size(); ++i) {
+    const auto& f = r.fits[i];
+    m.add({f.model + (rec.found && rec.fit == i ? " *" : ""), f.method, fixed(f.max_residual, 4),
+           fixed(f.max_residual_at, 2), fixed(f.rms_residual, 4),
+           f.between_assessed ? fixed(f.between_max_error, 4) : "not assessed",
+           f.between_assessed ? fixed(f.between_max_at, 2) : "", fixed(f.worst_error, 4), coefficient_list(f)});
+  }
+  out << m.render();
+  if (rec.found) out << "(* recommended)\n";
+
+  out << "\nCoefficients (standard uncertainty per GUM; none for an exact fit to data without uncertainties):\n";
+  TextTable c({"model", "method", "coefficient", "value", "uncertainty", "unit"});
+  for (const auto& f : r.fits)
+    for (const auto& k : f.coefficients)
+      c.add({f.model, f.method, k.name, g("%.10g", k.value), k.uncertainty ? g("%.3g", *k.uncertainty) : "-", k.unit});
+  out << c.render();
+
+  out << "\nResiduals (model temperature at the point's resistance minus its temperature, K):\n";
+  std::vector<std::string> head{"line", "t (degC)", "R (ohm)", "window"};
+  for (const auto& f : r.fits) head.push_back(short_label(f));
+  TextTable p(head);
+  if (!r.fits.empty()) {
+    for (std::size_t i = 0; i < r.fits.front().residuals.size(); ++i) {
+      const auto& pt = r.fits.front().residuals[i];
+      std::vector<std::string> row{std::to_string(pt.line), g("%g", pt.t_celsius), g("%.7g", pt.r_ohm),
+                                   pt.in_window ? "in" : "outside"};
+      for (const auto& f : r.fits) row.push_back(fixed(f.residuals[i].residual, 4));
+      p.add(row);
+    }
+  }
+  out << p.render();
+
+  out << "\nScenario lines for " << r.fits[rec.fit].model << " (" << r.fits[rec.fit].method << ")"
+      << (rec.found ? "" : ", the closest fit, which misses the limit") << "; merge them into your scenario file:\n\n"
+      << snippet << "\n"
+      << caution << "\n";
+  return out.str();
+}
+
+}  // namespace
+
+int run_fit(int argc, char** argv) {
+  po::options_description own("fit options");
+  own.add_options()("window", po::value<std::string>(), "LOW..HIGH in degC: the points that take part [the whole file]")(
+      "beta-at", po::value<std::string>(), "T1,T2: data temperatures of the two-point beta [25,85 if both present, else the window's ends]")(
+      "sh-at", po::value<std::string>(), "T1,T2,T3: data temperatures of the three-point Steinhart-Hart [ends and middle]")(
+      "limit", po::value<std::string>(), "K: the worst error a recommended model may have [0.1]")(
+      "extended", "also fit the four-term form 1/T = A + B ln R + C ln^2 R + D ln^3 R")(
+      "between-samples", po::value<std::string>(), "points compared inside each interval between data points [32]");
+  if (help_requested("fit", argc, argv, "DATA.csv [options]", own, false)) return 0;
+  const Invocation inv = parse("fit", argc, argv, own, false, false);
+  if (inv.file.empty())
+    reject_at("command line", 0, "fit needs a data file: thermargin fit DATA.csv (columns degC, ohm[, uncertainty])");
+  const auto& vm = inv.vm;
+
+  FitSettings s;
+  if (vm.count("window")) std::tie(s.t_min, s.t_max) = parse_window(vm["window"].as<std::string>());
+  if (vm.count("beta-at")) s.beta_at = parse_temperatures(vm["beta-at"].as<std::string>(), "fit.beta_at", 2);
+  if (vm.count("sh-at")) s.sh_at = parse_temperatures(vm["sh-at"].as<std::string>(), "fit.sh_at", 3);
+  if (vm.count("limit"))
+    s.limit = parse_quantity(vm["limit"].as<std::string>(), Quantity::temperature_difference, cl("fit.limit"));
+  s.extended = vm.count("extended") > 0;
+  if (vm.count("between-samples")) {
+    const std::string text = vm["between-samples"].as<std::string>();
+    const double n = parse_quantity(text, Quantity::integer, cl("fit.between_samples"));
+    if (!(n >= 1.0 && n <= 100000.0)) reject(cl("fit.between_samples"), text, "must be a whole number from 1 to 100000");
+    s.between_samples = static_cast<int>(n);
+  }
+
+  const FitResult result = fit_rt_data(read_rt_data(inv.file), s);
+  const std::string snippet = scenario_snippet(result, result.recommendation.fit);
+  std::string text;
+  if (inv.format == Format::json) text = to_json(result, snippet).dump(2) + "\n";
+  else if (inv.format == Format::csv) text = to_csv(result);
+  else text = to_text(result, snippet);
+  emit(inv, text);
+  return 0;
+}
+
+}  // namespace thermargin::cli
