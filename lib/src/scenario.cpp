@@ -465,6 +465,13 @@ Design build_design(const Scenario& s) {
     if (f.beta <= 0.0) f.beta = b;
     if (f.r25 <= 0.0) f.r25 = std::exp(*l1 + f.beta * (1.0 / t0_kelvin - 1.0 / t1));
   }
+  if (f.conversion == Conversion::steinhart_hart && !f.sh) {
+    // The fit goes through the nominal curve at t_min, the middle and t_max (firmware.cpp).
+    for (double t : {c.t_min, 0.5 * (c.t_min + c.t_max), c.t_max})
+      if (!nominal_ln_resistance(se, t + kelvin_offset))
+        r.fail("firmware.a", "the sensor's curve does not cover t_min, the middle and t_max to fit through; give "
+                             "firmware.a, b and c");
+  }
   if (se.kind == SensorKind::table) {
     if (c.t_min + kelvin_offset < se.table->t_min_kelvin() - 1e-9 || c.t_max + kelvin_offset > se.table->t_max_kelvin() + 1e-9) {
       // Allowed: temperatures outside the table are reported as such. Nothing to refuse.
