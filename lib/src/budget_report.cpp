@@ -327,7 +327,7 @@ std::string verdict_detail(const Design& d, const Budget& b) {
   const auto& v = b.verdict;
   std::string s = v.reason;
   if (v.basis != Requirement::Basis::monte_carlo || b.mc)
-    s += "; margin " + kelvin(v.margin) + (v.margin >= 0 ? " to spare" : " short");
+    s += v.margin >= 0 ? "; margin " + kelvin(v.margin) + " to spare" : "; over the limit by " + kelvin(-v.margin);
   s += ". Verdict basis: " + std::string(to_string(v.basis)) + ", window " + celsius(d.requirement.window_min) +
        " to " + celsius(d.requirement.window_max) + ".";
   return s;

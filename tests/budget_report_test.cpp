@@ -1,0 +1,448 @@
+// Tests of thermargin/budget_report.hpp and of `thermargin budget --report
+// --plots`: the charts hold the budget's own numbers with gaps where a
+// reading saturates; every scenario's page is read back by an outside
+// reader (tests/reference/report_check.py: Python's html.parser and
+// xml.etree) and every plotted series compared with the JSON output of the
+// same run; user text is escaped and spreadsheet formulas neutralised
+// (Python's csv module reads the CSV); and a destination that cannot be
+// written fails with one line, exit status 2 and no partial file.
+#include "thermargin/budget_report.hpp"
+
+#include <gtest/gtest.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "thermargin/chain.hpp"
+#include "thermargin/error.hpp"
+#include "thermargin/scenario.hpp"
+
+namespace thermargin {
+namespace {
+
+namespace fs = std::filesystem;
+
+// Monte Carlo units for the CLI runs: enough for bands and a yield, quick.
+constexpr const char* kUnits = "--montecarlo.units=2000";
+const fs::path kScenarios = fs::path(THERMARGIN_SOURCE_DIR) / "scenarios";
+const std::string kChecker = std::string(THERMARGIN_SOURCE_DIR) + "/tests/reference/report_check.py";
+
+struct TempDir {
+  fs::path path;
+  TempDir() {
+    std::string tmpl = (fs::temp_directory_path() / "thermargin-report-XXXXXX").string();
+    path = ::mkdtemp(tmpl.data());
+  }
+  ~TempDir() {
+    std::error_code ec;
+    fs::remove_all(path, ec);
+  }
+  std::vector<std::string> names(const fs::path& sub = {}) const {
+    std::vector<std::string> v;
+    for (const auto& e : fs::directory_iterator(path / sub)) v.push_back(e.path().filename().string());
+    std::sort(v.begin(), v.end());
+    return v;
+  }
+};
+
+std::string slurp(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+std::string quote(const std::string& s) {
+  std::string q = "'";
+  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return q + "'";
+}
+
+struct Outcome {
+  int status = -1;
+  std::string out, err;
+};
+
+// Runs a shell command with stdout and stderr captured in files under `dir`.
+Outcome run(const std::string& command, const fs::path& dir) {
+  const fs::path out = dir / ".stdout", err = dir / ".stderr";
+  const int raw = std::system((command + " >" + quote(out.string()) + " 2>" + quote(err.string())).c_str());
+  Outcome r;
+  r.status = WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
+  r.out = slurp(out);
+  r.err = slurp(err);
+  fs::remove(out);
+  fs::remove(err);
+  return r;
+}
+
+std::string cli() { return quote(THERMARGIN_CLI); }
+
+Outcome budget(const std::string& args, const fs::path& dir) { return run(cli() + " budget " + args, dir); }
+
+// Reads the page and the JSON with the outside reader; "ok: 4 charts\n" when they agree.
+std::string check_report(const fs::path& html, const fs::path& json, const fs::path& plots = {}) {
+  std::string cmd = std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " " + quote(html.string()) + " " +
+                    quote(json.string());
+  if (!plots.empty()) cmd += " " + quote(plots.string());
+  std::string out;
+  FILE* p = ::popen((cmd + " 2>&1").c_str(), "r");
+  if (!p) return "(popen failed)";
+  char buf[4096];
+  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
+  ::pclose(p);
+  return out;
+}
+
+Budget budget_of(const Design& d) {
+  const Chain chain(d);
+  return run_budget(chain);
+}
+
+Scenario scenario(const std::string& file, const std::vector<std::pair<std::string, std::string>>& overrides) {
+  Scenario s;
+  if (!file.empty()) s.load_file((kScenarios / file).string());
+  for (const auto& [k, v] : overrides) s.set(k, v, Where{Origin::command_line, "", 0, k});
+  return s;
+}
+
+const svg::Series& series(const Figure& f, const std::string& name) {
+  for (const auto& s : f.chart.series)
+    if (s.name == name) return s;
+  ADD_FAILURE() << "no series " << name << " in " << f.file;
+  static const svg::Series none;
+  return none;
+}
+
+// ------------------------------------------------------------------ the charts in the library
+
+TEST(BudgetFigures, AreFourChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
+  const Scenario s = scenario("fermentation_probe.ini", {{"montecarlo.units", "2000"}});
+  const Design d = build_design(s);
+  const Budget b = budget_of(d);
+  const auto figures = budget_figures(d, b);
+  std::vector<std::string> files;
+  for (const auto& f : figures) files.push_back(f.file);
+  EXPECT_EQ(files, (std::vector<std::string>{"error-bands.svg", "contributors.svg", "sensitivity.svg",
+                                             "self-heating.svg"}));
+  const auto& nominal = series(figures[0], "nominal");
+  const auto& wc = series(figures[0], "wc");
+  const auto& self = series(figures[3], "self_heating");
+  ASSERT_EQ(nominal.y.size(), b.points.size());
+  for (std::size_t i = 0; i < b.points.size(); ++i) {
+    const auto& p = b.points[i];
+    ASSERT_EQ(p.nominal.status, Status::ok) << p.t;
+    EXPECT_EQ(nominal.x[i], p.t);
+    EXPECT_EQ(*nominal.y[i], p.nominal.error);
+    EXPECT_EQ(*wc.y[i], p.wc.low);
+    EXPECT_EQ(*wc.y_high[i], p.wc.high);
+    EXPECT_EQ(*self.y[i], p.nominal.self_heating);
+  }
+  // The window strip and the limit lines come from the requirement.
+  EXPECT_EQ(series(figures[0], "window").x, (std::vector<double>{d.requirement.window_min, d.requirement.window_max}));
+  EXPECT_EQ(series(figures[0], "limit").y, svg::values(std::vector<double>{-0.5, 0.5}));
+}
+
+TEST(BudgetFigures, ContributorSharesAreTheSquaredContributionsOverTheCombinedVariance) {
+  // Second route to the same number: the linear budget's terms (|c|·u) and
+  // u_c, as JCGM 100 eq. 10 defines the shares, not the budget's sorted list.
+  const Scenario s = scenario("battery_charge_guard.ini", {});
+  const Design d = build_design(s);
+  const Chain chain(d);
+  const Budget b = run_budget(chain, {.monte_carlo = false, .corners = CornerMethod::automatic, .progress = {}});
+  const auto figures = budget_figures(d, b);
+  constexpr double kShareTolerance = 1e-9;  // percent; two orders of summation
+  int compared = 0;
+  for (const auto& line : figures[1].chart.series) {
+    if (line.name == "others") continue;
+    for (std::size_t i = 0; i < b.points.size(); ++i) {
+      const auto& lp = b.points[i].linear;
+      for (const auto& term : lp.terms)
+        if (term.name == line.name) {
+          EXPECT_NEAR(*line.y[i], 100.0 * term.contribution * term.contribution / (lp.u_c * lp.u_c), kShareTolerance)
+              << line.name << " at " << b.points[i].t;
+          ++compared;
+        }
+    }
+  }
+  EXPECT_GT(compared, 0);
+  // The main curves are the window's ranking, largest first.
+  EXPECT_EQ(figures[1].chart.series.front().name, b.window_contributors.front().name);
+}
+
+TEST(BudgetFigures, SaturatedTemperaturesAreGapsNeverZeros) {
+  // A 10 Ω fixed resistor puts the node within one LSB of the rail once the
+  // NTC exceeds 4096 · 10 Ω (below about −7 °C): the ADC saturates there.
+  const Scenario s = scenario("fermentation_probe.ini", {{"conditions.t_min", "-20"},
+                                                         {"divider.r_fixed", "10"},
+                                                         {"montecarlo.units", "500"}});
+  const Design d = build_design(s);
+  const Budget b = budget_of(d);
+  const auto figures = budget_figures(d, b);
+  std::vector<double> saturated;
+  for (const auto& p : b.points)
+    if (p.nominal.status == Status::saturated) saturated.push_back(p.t);
+  ASSERT_FALSE(saturated.empty()) << "the design was meant to saturate";
+  ASSERT_LT(saturated.size(), b.points.size());
+  for (const auto& f : figures)
+    for (const auto& line : f.chart.series) {
+      if (line.kind != svg::Kind::line && line.kind != svg::Kind::band) continue;
+      for (std::size_t i = 0; i < b.points.size(); ++i)
+        if (b.points[i].nominal.status == Status::saturated) {
+          EXPECT_FALSE(line.y[i].has_value()) << f.file << " " << line.name << " at " << b.points[i].t;
+        }
+    }
+  // Drawn: the saturated temperatures are not in the plotted data at all,
+  // and a hatched strip covers them.
+  const std::string svg = svg::render(figures[0].chart);
+  const auto at = svg.find("data-name=\"nominal\"");
+  ASSERT_NE(at, std::string::npos);
+  const std::string head = svg.substr(at, svg.find('>', at) - at);
+  EXPECT_EQ(head.find("data-x=\"-20 "), std::string::npos) << head.substr(0, 200);
+  const auto& strip = series(figures[0], "unreadable_1");
+  EXPECT_EQ(strip.kind, svg::Kind::span);
+  EXPECT_TRUE(strip.style.hatched);
+  EXPECT_LE(strip.x[0], saturated.front());
+  EXPECT_GE(strip.x[1], saturated.back());
+}
+
+TEST(BudgetReportPage, CarriesTheCautionBeforeAnyChartAndEscapesTheTitle) {
+  Scenario s = scenario("", {{"montecarlo.units", "500"}});
+  s.set("title", "<b>bold</b> & \"quoted\"", Where{Origin::command_line, "", 0, "title"});
+  const Design d = build_design(s);
+  const Budget b = budget_of(d);
+  const std::string html = budget_report_html(d, s, b);
+  const auto caution_at = html.find("CAUTION: this is an engineering estimate");
+  ASSERT_NE(caution_at, std::string::npos);
+  EXPECT_LT(caution_at, html.find("<svg"));
+  EXPECT_EQ(html.find("<b>bold"), std::string::npos);
+  EXPECT_NE(html.find("Design review: &lt;b&gt;bold&lt;/b&gt; &amp; &quot;quoted&quot;"), std::string::npos);
+  EXPECT_EQ(std::count(html.begin(), html.end(), '\0'), 0);
+}
+
+// ------------------------------------------------------------------ every scenario through the CLI
+
+class EveryScenario : public ::testing::TestWithParam<std::string> {};
+
+TEST_P(EveryScenario, ReportIsWellFormedAndPlotsExactlyTheJsonNumbers) {
+  TempDir dir;
+  const std::string file = (kScenarios / GetParam()).string();
+  // --plots into a directory that does not exist yet: it is created.
+  const Outcome r = budget(quote(file) + " " + kUnits + " --format json --output " + quote((dir.path / "b.json").string()) +
+                           " --report " + quote((dir.path / "review.html").string()) + " --plots " +
+                           quote((dir.path / "slides").string()),
+                       dir.path);
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json", dir.path / "slides"), "ok: 4 charts\n");
+}
+
+std::vector<std::string> scenario_files() {
+  std::vector<std::string> v;
+  for (const auto& e : fs::directory_iterator(kScenarios))
+    if (e.path().extension() == ".ini") v.push_back(e.path().filename().string());
+  std::sort(v.begin(), v.end());
+  return v;
+}
+
+INSTANTIATE_TEST_SUITE_P(Scenarios, EveryScenario, ::testing::ValuesIn(scenario_files()),
+                         [](const auto& info) {
+                           std::string n = info.param.substr(0, info.param.size() - 4);
+                           std::replace(n.begin(), n.end(), '-', '_');
+                           return n;
+                         });
+
+TEST(BudgetReportCli, SaturationAndNoMonteCarloStillMatchTheJson) {
+  TempDir dir;
+  const std::string file = quote((kScenarios / "fermentation_probe.ini").string());
+  for (const std::string extra : {" --conditions.t_min=-20 --divider.r_fixed=10", " --no-mc"}) {
+    const Outcome r = budget(file + " " + kUnits + extra + " --format json --output " +
+                             quote((dir.path / "b.json").string()) + " --report " +
+                             quote((dir.path / "review.html").string()),
+                         dir.path);
+    ASSERT_EQ(r.status, 0) << r.err;
+    EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json"), "ok: 4 charts\n") << extra;
+  }
+}
+
+// ------------------------------------------------------------------ user text
+
+TEST(BudgetReportCli, ScenarioTitleWithMarkupAppearsEscaped) {
+  TempDir dir;
+  const std::string title = "<script>alert(\"x\")</script> Tom & Jerry's \"probe\"";
+  std::ofstream(dir.path / "evil.ini") << "title = " << title << "\n";
+  const Outcome r = budget(quote((dir.path / "evil.ini").string()) + " " + kUnits + " --format json --output " +
+                           quote((dir.path / "b.json").string()) + " --report " +
+                           quote((dir.path / "review.html").string()),
+                       dir.path);
+  ASSERT_EQ(r.status, 0) << r.err;
+  const std::string html = slurp(dir.path / "review.html");
+  EXPECT_EQ(html.find("<script"), std::string::npos);
+  EXPECT_NE(html.find("&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt; Tom &amp; Jerry&#39;s &quot;probe&quot;"),
+            std::string::npos);
+  // The outside reader finds the title, unescaped, as the heading (and no script).
+  EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json"), "ok: 4 charts\n");
+}
+
+TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {
+  TempDir dir;
+  std::ofstream(dir.path / "formula.ini") << "title = =HYPERLINK(\"http://example.invalid\",\"x\")\n";
+  std::ofstream(dir.path / "read.py")
+      << "import csv, sys\n"
+         "rows = list(csv.reader(open(sys.argv[1], newline='', encoding='utf-8')))\n"
+         "width = len(rows[0])\n"
+         "assert all(len(r) == width for r in rows), 'ragged rows'\n"
+         "def number(c):\n"
+         "    try:\n"
+         "        float(c); return True\n"
+         "    except ValueError:\n"
+         "        return False\n"
+         "bad = [c for r in rows for c in r if c[:1] in ('=', '+', '-', '@', '\\t', '\\r') and not number(c)]\n"
+         "print(len(rows), len(bad))\n"
+         "for r in rows:\n"
+         "    if r[0] == 'title': print(r[1])\n";
+  const std::string reader = std::string(THERMARGIN_PYTHON) + " " + quote((dir.path / "read.py").string()) + " ";
+  // `check` prints the user's title as a cell: it must come back as text.
+  Outcome r = run(cli() + " check " + quote((dir.path / "formula.ini").string()) + " --format csv --output " +
+                  quote((dir.path / "check.csv").string()),
+              dir.path);
+  ASSERT_EQ(r.status, 0) << r.err;
+  r = run(reader + quote((dir.path / "check.csv").string()), dir.path);
+  std::istringstream lines(r.out);
+  std::string counts, title;
+  std::getline(lines, counts);
+  std::getline(lines, title);
+  EXPECT_EQ(counts.substr(counts.find(' ') + 1), "0") << r.out << r.err;
+  EXPECT_EQ(title, "'=HYPERLINK(\"http://example.invalid\",\"x\")");
+  // The budget's CSV: every row as wide as the header, no cell a formula.
+  r = budget(quote((dir.path / "formula.ini").string()) + " " + kUnits + " --format csv --output " +
+                 quote((dir.path / "b.csv").string()),
+             dir.path);
+  ASSERT_EQ(r.status, 0) << r.err;
+  r = run(reader + quote((dir.path / "b.csv").string()), dir.path);
+  EXPECT_EQ(r.out.substr(r.out.find(' ') + 1, 2), "0\n") << r.out << r.err;
+}
+
+// ------------------------------------------------------------------ destinations that cannot be written
+
+TEST(BudgetReportCli, MissingDirectoryFailsBeforeAnyWorkWithOneLine) {
+  TempDir dir;
+  const fs::path target = dir.path / "missing" / "review.html";
+  const Outcome r = budget(std::string(kUnits) + " --report " + quote(target.string()), dir.path);
+  EXPECT_EQ(r.status, 2);
+  EXPECT_EQ(r.out, "");  // refused before the analysis printed anything
+  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
+  EXPECT_NE(r.err.find("--report = " + target.string() + " (command line): directory"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("does not exist"), std::string::npos) << r.err;
+  EXPECT_TRUE(dir.names().empty());
+}
+
+TEST(BudgetPlotsCli, DirectoryWhoseParentIsMissingIsRefusedAndNothingIsCreated) {
+  TempDir dir;
+  const fs::path target = dir.path / "a" / "b";
+  const Outcome r = budget(std::string(kUnits) + " --plots " + quote(target.string()), dir.path);
+  EXPECT_EQ(r.status, 2);
+  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
+  EXPECT_NE(r.err.find("--plots = " + target.string() + " (command line)"), std::string::npos) << r.err;
+  EXPECT_TRUE(dir.names().empty());
+}
+
+TEST(BudgetPlotsCli, AFileThatCannotBeReplacedLeavesNoPartialSetOfPlots) {
+  // contributors.svg is a directory: found before any file is written, so
+  // neither the other three charts nor a staged file appear.
+  TempDir dir;
+  fs::create_directories(dir.path / "plots" / "contributors.svg");
+  const Outcome r = budget(std::string(kUnits) + " --plots " + quote((dir.path / "plots").string()), dir.path);
+  EXPECT_EQ(r.status, 2);
+  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
+  EXPECT_NE(r.err.find("cannot write contributors.svg"), std::string::npos) << r.err;
+  EXPECT_EQ(dir.names("plots"), std::vector<std::string>{"contributors.svg"});
+}
+
+TEST(BudgetPlots, WriteFailureHalfwayRemovesTheStagedFilesAndTheNewDirectory) {
+  // Library level: the third figure's name is unusable (a name with a slash
+  // into a missing directory), so staging fails after two files were staged.
+  TempDir dir;
+  svg::Chart c;
+  c.title = "t";
+  c.series.push_back(svg::line("y", "y", {0, 1}, {0.0, 1.0}));
+  const std::vector<Figure> figures{{"a.svg", "", c}, {"b.svg", "", c}, {"missing/c.svg", "", c}};
+  const fs::path plots = dir.path / "new";
+  std::string message;
+  try {
+    write_figures("--plots", plots.string(), figures);
+  } catch (const input_error& e) {
+    message = e.what();
+  }
+  EXPECT_NE(message.find("--plots = " + plots.string() + " (command line): cannot write missing/c.svg"),
+            std::string::npos)
+      << message;
+  EXPECT_TRUE(dir.names().empty());  // the directory this call made is gone again
+}
+
+// Runs `command` as an unprivileged user when the tests run as root, since
+// root writes through a file's read-only mode. `dir` is opened up for them.
+std::string unprivileged(const std::string& command, const fs::path& dir) {
+  if (::geteuid() != 0) return command;
+  fs::permissions(dir, fs::perms::all);
+  return "setpriv --reuid=65534 --regid=65534 --clear-groups " + command;
+}
+
+TEST(BudgetReportCli, ReadOnlyReportKeepsItsContentsAndNoTemporaryIsLeft) {
+  TempDir dir;
+  const fs::path target = dir.path / "review.html";
+  std::ofstream(target) << "old";
+  fs::permissions(target, fs::perms(0444));
+  const Outcome r = run(unprivileged(cli() + " budget " + kUnits + " --report " + quote(target.string()), dir.path),
+                    dir.path);
+  EXPECT_EQ(r.status, 2) << r.err;
+  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
+  EXPECT_NE(r.err.find(target.string()), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("read-only"), std::string::npos) << r.err;
+  EXPECT_EQ(slurp(target), "old");
+  EXPECT_EQ(dir.names(), std::vector<std::string>{"review.html"});
+}
+
+TEST(BudgetPlotsCli, ReadOnlyChartKeepsItsContentsAndNoOtherChartIsWritten) {
+  TempDir dir;
+  const fs::path plots = dir.path / "plots";
+  fs::create_directory(plots);
+  std::ofstream(plots / "sensitivity.svg") << "old";
+  fs::permissions(plots / "sensitivity.svg", fs::perms(0444));
+  if (::geteuid() == 0) fs::permissions(plots, fs::perms::all);
+  const Outcome r = run(unprivileged(cli() + " budget " + kUnits + " --plots " + quote(plots.string()), dir.path),
+                    dir.path);
+  EXPECT_EQ(r.status, 2) << r.err;
+  EXPECT_NE(r.err.find("cannot write sensitivity.svg: the file is read-only"), std::string::npos) << r.err;
+  EXPECT_EQ(slurp(plots / "sensitivity.svg"), "old");
+  EXPECT_EQ(dir.names("plots"), std::vector<std::string>{"sensitivity.svg"});
+}
+
+TEST(BudgetReportPaths, AreRefusedWithTheOptionThePathAndWhatWouldBeAccepted) {
+  TempDir dir;
+  auto message = [](auto f) {
+    try {
+      f();
+    } catch (const input_error& e) {
+      return std::string(e.what());
+    }
+    return std::string("(no error)");
+  };
+  EXPECT_EQ(message([&] { check_report_path("--report", dir.path.string()); }),
+            "--report = " + dir.path.string() + " (command line): is a directory; give a file name such as review.html");
+  std::ofstream(dir.path / "file") << "x";
+  EXPECT_EQ(message([&] { check_plots_directory("--plots", (dir.path / "file").string()); }),
+            "--plots = " + (dir.path / "file").string() + " (command line): is a file, not a directory");
+  EXPECT_EQ(message([&] { check_plots_directory("--plots", (dir.path / "new").string()); }), "(no error)");
+  EXPECT_EQ(message([&] { check_report_path("--report", "review.html"); }), "(no error)");
+}
+
+}  // namespace
+}  // namespace thermargin
