@@ -1,0 +1,225 @@
+// Checks of the command-line program as a user meets it (interface.md):
+// bad input is one line on stderr naming the file, the line and the key and
+// what would be accepted, the exit status is 2, and --output leaves no file
+// behind; good input exits 0 with the documented JSON fields; points that
+// cannot be read carry a status, never a number.
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
+
+#include "thermargin/scenario.hpp"
+
+namespace thermargin {
+namespace {
+
+namespace fs = std::filesystem;
+
+const fs::path source_dir(THERMARGIN_SOURCE_DIR);
+const std::string chain_data = (source_dir / "tests/data/chain").string();
+
+struct Outcome {
+  int status = -1;
+  std::string out, err;
+};
+
+std::string slurp(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+class Cli : public ::testing::Test {
+ protected:
+  void SetUp() override {
+    dir_ = fs::temp_directory_path() /
+           ("thermargin_cli_" + std::to_string(::getpid()) + "_" +
+            ::testing::UnitTest::GetInstance()->current_test_info()->name());
+    fs::remove_all(dir_);
+    fs::create_directories(dir_);
+    fs::create_directories(dir_ / "work");
+  }
+  void TearDown() override { fs::remove_all(dir_); }
+
+  // Runs `thermargin ARGS` in the scratch directory's work/ folder, stdout
+  // and stderr captured beside it (so that work/ holds only what the program wrote).
+  Outcome run(const std::string& args) {
+    const std::string command = "cd '" + (dir_ / "work").string() + "' && '" + THERMARGIN_CLI + "' " + args + " >'" +
+                                (dir_ / "stdout").string() + "' 2>'" + (dir_ / "stderr").string() + "'";
+    const int rc = std::system(command.c_str());
+    Outcome r;
+    r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
+    r.out = slurp(dir_ / "stdout");
+    r.err = slurp(dir_ / "stderr");
+    return r;
+  }
+  void write(const std::string& name, const std::string& text) { std::ofstream(dir_ / "work" / name) << text; }
+  std::vector<std::string> work_files() const {
+    std::vector<std::string> names;
+    for (const auto& e : fs::directory_iterator(dir_ / "work")) names.push_back(e.path().filename().string());
+    std::sort(names.begin(), names.end());
+    return names;
+  }
+  fs::path dir_;
+};
+
+struct BadInput {
+  const char* what;
+  std::string ini;
+  std::string line;  // "bad.ini:N" the message must name
+  std::string key;   // the key (or section) it must name
+};
+
+std::vector<BadInput> bad_inputs() {
+  return {
+      {"negative resistance", "# fixed resistor\n[divider]\nr_fixed = -10k\n", "bad.ini:3", "divider.r_fixed"},
+      {"zero resistance", "[sensor]\nr25 = 0\n", "bad.ini:2", "sensor.r25"},
+      {"zero RTD resistance", "[sensor]\nmodel = rtd\nr0 = 0R\n", "bad.ini:3", "sensor.r0"},
+      {"tolerance of 100 %", "[sensor]\nr25_tol = 100%\n", "bad.ini:2", "sensor.r25_tol"},
+      {"tolerance over 100 %", "[divider]\nr_fixed_tol = 150 %\n", "bad.ini:2", "divider.r_fixed_tol"},
+      {"0 bits", "[adc]\nbits = 0\n", "bad.ini:2", "adc.bits"},
+      {"33 bits", "[adc]\nbits = 33\n", "bad.ini:2", "adc.bits"},
+      {"unknown model", "[sensor]\nmodel = ptc\n", "bad.ini:2", "sensor.model"},
+      {"unknown key", "[adc]\nresolution = 12\n", "bad.ini:2", "adc.resolution"},
+      {"unknown section", "title = x\n[adcs]\nbits = 12\n", "bad.ini:2", "[adcs]"},
+      {"malformed number", "[supply]\nv_excitation = 3,3V\n", "bad.ini:2", "supply.v_excitation"},
+      {"missing table", "[sensor]\nmodel = table\ntable_file = missing.csv\n", "bad.ini:3", "sensor.table_file"},
+      {"binary table", "[sensor]\nmodel = table\ntable_file = " + chain_data + "/bad_binary.csv\n", "bad.ini:3",
+       "sensor.table_file"},
+      {"non-monotonic table", "[sensor]\nmodel = table\ntable_file = " + chain_data + "/bad_nonmonotonic.csv\n",
+       "bad.ini:3", "bad_nonmonotonic.csv:5"},
+      {"table of three points", "[sensor]\nmodel = table\ntable_file = " + chain_data + "/bad_three_points.csv\n",
+       "bad.ini:3", "sensor.table_file"},
+      {"t_min equal to t_max", "[conditions]\nt_min = 40\nt_max = 40\n", "bad.ini:3", "conditions.t_max"},
+      {"t_min above the default t_max", "[conditions]\nt_min = 95\n", "bad.ini:2", "conditions.t_min"},
+  };
+}
+
+TEST_F(Cli, BadInputIsOneLineNamingFileLineAndKeyExitTwoAndNoOutputFile) {
+  for (const BadInput& b : bad_inputs()) {
+    SCOPED_TRACE(b.what);
+    write("bad.ini", b.ini);
+    for (const char* command : {"check bad.ini --output result.txt", "budget bad.ini --format json --output result.json"}) {
+      const Outcome r = run(command);
+      EXPECT_EQ(r.status, 2) << command;
+      ASSERT_FALSE(r.err.empty()) << command;
+      EXPECT_EQ(r.err.find('\n'), r.err.size() - 1) << "exactly one line: " << r.err;
+      EXPECT_NE(r.err.find(b.line), std::string::npos) << r.err;
+      EXPECT_NE(r.err.find(b.key), std::string::npos) << r.err;
+      EXPECT_TRUE(r.out.empty()) << r.out;
+      EXPECT_EQ(work_files(), std::vector<std::string>{"bad.ini"}) << "nothing written beside the input";
+    }
+  }
+}
+
+TEST_F(Cli, BadCommandLineValueNamesTheOptionAndTheCommandLine) {
+  const Outcome r = run("check --adc.bits=40 --output result.txt");
+  EXPECT_EQ(r.status, 2);
+  EXPECT_EQ(r.err, "thermargin: adc.bits = 40 (command line): must be a whole number from 1 to 32\n");
+  EXPECT_TRUE(work_files().empty());
+}
+
+TEST_F(Cli, UnreadableScenarioIsOneLine) {
+  const Outcome r = run("check missing.ini");
+  EXPECT_EQ(r.status, 2);
+  EXPECT_EQ(r.err, "thermargin: missing.ini: cannot open: no such file\n");
+}
+
+TEST_F(Cli, CheckPrintsEveryKeyWithItsValueUnitAndOrigin) {
+  const std::string file = (source_dir / "scenarios/default.ini").string();
+  const Outcome r = run("check '" + file + "' --format csv --divider.r_fixed=4k7");
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_TRUE(r.err.empty()) << r.err;
+  std::istringstream in(r.out);
+  std::string line;
+  std::getline(in, line);
+  EXPECT_EQ(line, "key,value,unit,origin");
+  std::size_t rows = 0;
+  while (std::getline(in, line)) ++rows;
+  EXPECT_EQ(rows, scenario_schema().size());
+  EXPECT_NE(r.out.find("divider.r_fixed,4k7,ohm,command line\n"), std::string::npos);
+  EXPECT_NE(r.out.find("sensor.r25,10k,ohm," + file + ":"), std::string::npos);
+}
+
+TEST_F(Cli, BudgetJsonCarriesTheInterfaceFields) {
+  const Outcome r = run("budget --format json --output budget.json --montecarlo.units=2000");
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_TRUE(r.out.empty());
+  EXPECT_TRUE(r.err.empty()) << "no progress output when stderr is not a terminal: " << r.err;
+  ASSERT_EQ(work_files(), std::vector<std::string>{"budget.json"});
+  const auto j = nlohmann::json::parse(slurp(dir_ / "work/budget.json"));
+  EXPECT_EQ(j["command"], "budget");
+  EXPECT_EQ(j["units"]["temperature"], "degC");
+  EXPECT_EQ(j["units"]["error"], "K");
+  ASSERT_EQ(j["points"].size(), 201u);  // -20..80 °C in 0.5 K steps
+  EXPECT_EQ(j["points"][0]["t"], -20.0);
+  for (const auto& p : j["points"])
+    for (const char* field : {"t", "code", "sensitivity", "self_heating", "nominal"}) EXPECT_TRUE(p.contains(field)) << field;
+  EXPECT_TRUE(j["window"]["verdict"] == "pass" || j["window"]["verdict"] == "fail");
+  EXPECT_TRUE(j.contains("caution"));
+}
+
+TEST_F(Cli, SaturatedPointsAreFlaggedAndCarryNoError) {
+  // interface.md: points that saturate the ADC carry "saturated": true and no
+  // error fields. 10k/10k from 3.3 V into a 1.0 V reference saturates while
+  // the NTC is above 4.35 kΩ, below about 45 °C.
+  const Outcome r = run("budget --format json --supply.ratiometric=false --supply.v_reference=1.0V "
+                    "--montecarlo.units=2000");
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto j = nlohmann::json::parse(r.out);
+  int saturated = 0, read = 0;
+  for (const auto& p : j["points"]) {
+    if (p.value("saturated", false)) {
+      ++saturated;
+      for (const char* field : {"nominal", "wc_low", "wc_high", "rss_low", "rss_high", "mc_low", "mc_high"})
+        EXPECT_FALSE(p.contains(field)) << p["t"] << " " << field;
+      EXPECT_LT(p["t"].get<double>(), 46.0);
+    } else if (p.contains("nominal")) {
+      ++read;
+      EXPECT_GT(p["t"].get<double>(), 44.0);
+    }
+  }
+  EXPECT_GT(saturated, 100);
+  EXPECT_GT(read, 50);
+}
+
+TEST_F(Cli, RunawayPointsCarryTheStatusAndNoNumber) {
+  const Outcome r = run("budget --format json --sensor.r25=100 --divider.r_fixed=1 --supply.v_excitation=50V "
+                    "--sensor.dissipation=0.1mW/K --montecarlo.units=2000");
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto j = nlohmann::json::parse(r.out);
+  for (const auto& p : j["points"]) {
+    EXPECT_EQ(p["status"], "thermal-runaway") << p["t"];
+    EXPECT_FALSE(p.contains("nominal")) << p["t"];
+    EXPECT_FALSE(p.contains("self_heating")) << p["t"];
+  }
+}
+
+TEST_F(Cli, EveryShippedScenarioRunsThroughCheckAndBudget) {
+  // The same as the ctest entries scenario.*, here so that the unit test
+  // program alone shows a broken scenario.
+  for (const auto& e : fs::directory_iterator(source_dir / "scenarios")) {
+    if (e.path().extension() != ".ini") continue;
+    SCOPED_TRACE(e.path().filename().string());
+    const Outcome check = run("check '" + e.path().string() + "'");
+    EXPECT_EQ(check.status, 0) << check.err;
+    const Outcome budget = run("budget '" + e.path().string() + "' --format json --montecarlo.units=2000");
+    EXPECT_EQ(budget.status, 0) << budget.err;
+    EXPECT_TRUE(budget.err.empty()) << budget.err;
+    const auto j = nlohmann::json::parse(budget.out);
+    EXPECT_FALSE(j["points"].empty());
+  }
+}
+
+}  // namespace
+}  // namespace thermargin

@@ -1,0 +1,267 @@
+// Checks of scenarios (scenario.hpp, interface.md): scenarios/default.ini is
+// the built-in default design key for key; files record each key's line;
+// the command line overrides a file; malformed files are refused with file
+// and line; checks between two keys name the one that was set; every
+// shipped scenario builds and explains itself; the demo R–T table follows
+// the Steinhart–Hart curve its comment states.
+#include "thermargin/scenario.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <regex>
+#include <set>
+#include <sstream>
+#include <string>
+
+#include <gtest/gtest.h>
+#include <unistd.h>
+
+#include "thermargin/ntc.hpp"
+#include "thermargin/rt_data.hpp"
+#include "thermargin/text_file.hpp"
+
+namespace thermargin {
+namespace {
+
+namespace fs = std::filesystem;
+
+const fs::path source_dir(THERMARGIN_SOURCE_DIR);
+
+bool is_override(const std::string& key) { return key.ends_with("_dist") || key.ends_with("_gap"); }
+
+// A scratch directory per test, removed afterwards.
+class ScenarioFile : public ::testing::Test {
+ protected:
+  void SetUp() override {
+    dir_ = fs::temp_directory_path() /
+           ("thermargin_scenario_" + std::to_string(::getpid()) + "_" +
+            ::testing::UnitTest::GetInstance()->current_test_info()->name());
+    fs::create_directories(dir_);
+  }
+  void TearDown() override { fs::remove_all(dir_); }
+  std::string write(const std::string& name, const std::string& text) {
+    const fs::path p = dir_ / name;
+    std::ofstream(p) << text;
+    return p.string();
+  }
+  // The message of the input_error loading and building `text` raises.
+  std::string refusal(const std::string& text) {
+    const std::string path = write("bad.ini", text);
+    try {
+      Scenario s;
+      s.load_file(path);
+      build_design(s);
+    } catch (const input_error& e) {
+      return e.what();
+    }
+    return "";
+  }
+  fs::path dir_;
+};
+
+TEST(DefaultScenario, FileHoldsTheBuiltInDesignKeyForKey) {
+  // interface.md: scenarios/default.ini holds the same values as the built-in
+  // default, and a test keeps the two identical.
+  const Scenario built_in;
+  Scenario file;
+  file.load_file((source_dir / "scenarios/default.ini").string());
+  for (const auto& k : scenario_schema()) {
+    EXPECT_EQ(file.get(k.key).value, built_in.get(k.key).value) << k.key;
+    // Every key the file can show, it does show (only the table file, which
+    // the default design has none of, and the per-input overrides are absent).
+    if (!is_override(k.key) && k.key != "sensor.table_file")
+      EXPECT_EQ(file.get(k.key).where.kind, Origin::file) << k.key << " is missing from default.ini";
+  }
+  // Resolved, the two are the same design.
+  const Design a = build_design(built_in), b = build_design(file);
+  EXPECT_EQ(a.title, b.title);
+  EXPECT_EQ(a.inputs.size(), b.inputs.size());
+  for (std::size_t i = 0; i < a.inputs.size() && i < b.inputs.size(); ++i) {
+    EXPECT_EQ(a.inputs[i].source, b.inputs[i].source);
+    EXPECT_EQ(a.inputs[i].bound, b.inputs[i].bound);
+  }
+}
+
+TEST(Schema, EveryToleranceSourceIsAKey) {
+  for (int i = 0; i < source_count; ++i) EXPECT_NE(find_key(info(static_cast<Source>(i)).key), nullptr) << i;
+  for (int i = 0; i < reading_source_count; ++i)
+    EXPECT_NE(find_key(info(static_cast<ReadingSource>(i)).key), nullptr) << i;
+}
+
+TEST_F(ScenarioFile, ToIniWritesAFileThatReadsBackTheSame) {
+  const Scenario built_in;
+  Scenario back;
+  back.load_file(write("saved.ini", to_ini(built_in, true)));
+  for (const auto& k : scenario_schema()) EXPECT_EQ(back.get(k.key).value, built_in.get(k.key).value) << k.key;
+}
+
+TEST_F(ScenarioFile, RecordsTheFileAndLineOfEveryKey) {
+  const std::string path = write("lines.ini",
+                                 "# a comment\n"
+                                 "title = Lines\n"
+                                 "\n"
+                                 "[divider]\n"
+                                 "r_fixed = 4k7   # inline comment\n"
+                                 "[adc]\n"
+                                 "bits = 10\n");
+  Scenario s;
+  s.load_file(path);
+  EXPECT_EQ(s.get("divider.r_fixed").value, "4k7");
+  EXPECT_EQ(s.get("divider.r_fixed").where.line, 5);
+  EXPECT_EQ(s.get("divider.r_fixed").where.origin(), path + ":5");
+  EXPECT_EQ(s.get("adc.bits").where.line, 7);
+  EXPECT_EQ(s.get("title").where.line, 2);
+  EXPECT_EQ(s.get("adc.offset").where.kind, Origin::built_in);
+  EXPECT_EQ(build_design(s).divider.r_fixed, 4.7e3);
+}
+
+TEST_F(ScenarioFile, CommandLineOverridesTheFile) {
+  Scenario s;
+  s.load_file(write("o.ini", "[divider]\nr_fixed = 4k7\n"));
+  s.set("divider.r_fixed", "2k2", Where{Origin::command_line, "", 0, "divider.r_fixed"});
+  EXPECT_EQ(build_design(s).divider.r_fixed, 2.2e3);
+  EXPECT_EQ(s.get("divider.r_fixed").where.origin(), "command line");
+}
+
+TEST_F(ScenarioFile, ToleratesAByteOrderMarkAndWindowsLineEnds) {
+  Scenario s;
+  s.load_file(write("bom.ini", "\xEF\xBB\xBFtitle = BOM\r\n[sensor]\r\nr25 = 4k7\r\n"));
+  EXPECT_EQ(s.get("title").value, "BOM");
+  EXPECT_EQ(s.get("sensor.r25").where.line, 3);
+  EXPECT_EQ(build_design(s).sensor.r25, 4.7e3);
+}
+
+TEST_F(ScenarioFile, RefusesMalformedFilesWithFileAndLine) {
+  EXPECT_NE(refusal("[sensors]\n").find("bad.ini:1: unknown section [sensors]"), std::string::npos);
+  EXPECT_NE(refusal("[sensor]\nr26 = 1k\n").find("bad.ini:2: unknown key 'sensor.r26'"), std::string::npos);
+  EXPECT_NE(refusal("r25 = 1k\n").find("bad.ini:1: unknown key 'r25'"), std::string::npos);
+  EXPECT_NE(refusal("[sensor]\nr25 10k\n").find("bad.ini:2: expected 'key = value'"), std::string::npos);
+  EXPECT_NE(refusal("[sensor]\nr25 = 1k\nr25 = 2k\n").find("bad.ini:3: key 'sensor.r25' is set twice"), std::string::npos);
+  EXPECT_NE(refusal("[sensor\n").find("bad.ini:1: malformed section header"), std::string::npos);
+  EXPECT_NE(refusal("[ sensor ]\n").find("bad.ini:1: malformed section header"), std::string::npos);
+  EXPECT_NE(refusal("; old-style comment\n").find("bad.ini:1:"), std::string::npos);
+  EXPECT_NE(refusal("").find("is empty"), std::string::npos);
+}
+
+TEST_F(ScenarioFile, RefusesBadValuesNamingKeyFileLineAndWhatIsAccepted) {
+  // style.md: "divider.r_fixed = -10k (scenario.ini:12): must be > 0".
+  const std::string at = " (" + (dir_ / "bad.ini").string() + ":2): ";
+  EXPECT_EQ(refusal("[divider]\nr_fixed = -10k\n"), "divider.r_fixed = -10k" + at + "must be > 0");
+  EXPECT_EQ(refusal("[sensor]\nr25 = 0\n"), "sensor.r25 = 0" + at + "must be > 0");
+  EXPECT_EQ(refusal("[divider]\nr_fixed_tol = 100%\n"),
+            "divider.r_fixed_tol = 100%" + at + "must be a tolerance from 0 up to (not including) 100 %");
+  EXPECT_EQ(refusal("[adc]\nbits = 33\n"), "adc.bits = 33" + at + "must be a whole number from 1 to 32");
+  EXPECT_EQ(refusal("[adc]\nbits = 0\n"), "adc.bits = 0" + at + "must be a whole number from 1 to 32");
+  EXPECT_EQ(refusal("[sensor]\nmodel = pt100\n"),
+            "sensor.model = pt100" + at + "must be one of: beta | steinhart-hart | table | rtd");
+  EXPECT_EQ(refusal("[divider]\nr_fixed = 10kk\n"),
+            "divider.r_fixed = 10kk" + at + "expected a resistance such as 10k, 4k7, 2.2M, 470R or 10kohm");
+}
+
+TEST_F(ScenarioFile, ChecksBetweenTwoKeysNameTheOneThatWasSet) {
+  // Only t_min is in the file: the refusal points at its line, not at the
+  // default t_max.
+  const std::string t_min = refusal("[conditions]\nt_min = 90\n");
+  EXPECT_NE(t_min.find("conditions.t_min = 90 (" + (dir_ / "bad.ini").string() + ":2)"), std::string::npos) << t_min;
+  const std::string t_max = refusal("[conditions]\nt_max = -30\n");
+  EXPECT_NE(t_max.find("conditions.t_max = -30"), std::string::npos) << t_max;
+  const std::string both = refusal("[conditions]\nt_min = 50\nt_max = 50\n");
+  EXPECT_NE(both.find("conditions.t_max = 50"), std::string::npos) << both;
+  const std::string window = refusal("[conditions]\nt_min = 10\n");  // the default window starts at 0
+  EXPECT_NE(window.find("conditions.t_min = 10"), std::string::npos) << window;
+}
+
+TEST_F(ScenarioFile, TableFileIsFoundBesideTheScenario) {
+  fs::copy_file(source_dir / "tests/data/chain/ntc10k_sh_5K.csv", dir_ / "probe.csv");
+  Scenario s;
+  s.load_file(write("t.ini", "[sensor]\nmodel = table\ntable_file = probe.csv\n"));
+  const Design d = build_design(s);
+  ASSERT_TRUE(d.sensor.table);
+  EXPECT_EQ(d.sensor.table->t_min_kelvin(), -40 + kelvin_offset);
+}
+
+TEST_F(ScenarioFile, TableToleranceNeeds25CInTheTable) {
+  // The NTC spread is defined about 25 °C (model.md §1): a table without it
+  // cannot carry an R25 or beta tolerance.
+  std::ofstream(dir_ / "cold.csv") << "t,r\n-40,336097\n-30,177000\n-20,97070\n-10,55330\n0,32650\n";
+  const std::string message = refusal("[sensor]\nmodel = table\ntable_file = cold.csv\n"
+                                      "[conditions]\nt_min = -40\nt_max = 0\n"
+                                      "[requirement]\nwindow_min = -40\nwindow_max = 0\n");
+  EXPECT_NE(message.find("sensor.r25_tol"), std::string::npos) << message;
+  EXPECT_NE(message.find("25 degC"), std::string::npos) << message;
+  EXPECT_EQ(refusal("[sensor]\nmodel = table\ntable_file = cold.csv\nr25_tol = 0\nbeta_tol = 0\n"
+                    "[conditions]\nt_min = -40\nt_max = 0\n"
+                    "[requirement]\nwindow_min = -40\nwindow_max = 0\n"
+                    "[firmware]\nconversion = exact\n"),
+            "");
+}
+
+TEST_F(ScenarioFile, FittedConversionsNeedTheCurveAtTheirFitPoints) {
+  // docs/model.md §6: the default beta goes through t_min and t_max, the
+  // default Steinhart–Hart through t_min, the middle and t_max; a table
+  // sensor that misses them is refused rather than left unable to convert.
+  const std::string table = (source_dir / "tests/data/chain/ntc10k_sh_0_50.csv").string();
+  const std::string beta = refusal("[sensor]\nmodel = table\ntable_file = " + table + "\n[firmware]\nconversion = beta\n");
+  EXPECT_NE(beta.find("firmware.beta"), std::string::npos) << beta;
+  const std::string sh =
+      refusal("[sensor]\nmodel = table\ntable_file = " + table + "\n[firmware]\nconversion = steinhart-hart\n");
+  EXPECT_NE(sh.find("firmware.a"), std::string::npos) << sh;
+  EXPECT_EQ(refusal("[sensor]\nmodel = table\ntable_file = " + table +
+                    "\n[firmware]\nconversion = steinhart-hart\n[conditions]\nt_min = 0\nt_max = 50\n"
+                    "[requirement]\nwindow_max = 50\n"),
+            "");
+}
+
+// --- the shipped scenarios --------------------------------------------------
+
+std::vector<fs::path> shipped_scenarios() {
+  std::vector<fs::path> out;
+  for (const auto& e : fs::directory_iterator(source_dir / "scenarios"))
+    if (e.path().extension() == ".ini" && e.path().filename() != "default.ini") out.push_back(e.path());
+  std::sort(out.begin(), out.end());
+  return out;
+}
+
+TEST(ShippedScenarios, AtLeastFourBesidesTheDefault) { EXPECT_GE(shipped_scenarios().size(), 4u); }
+
+TEST(ShippedScenarios, EveryOneBuildsHasATitleAndExplainsItself) {
+  const std::string docs = read_text_file((source_dir / "docs/scenarios.md").string());
+  for (const fs::path& p : shipped_scenarios()) {
+    SCOPED_TRACE(p.filename().string());
+    Scenario s;
+    s.load_file(p.string());
+    const Design d = build_design(s);
+    EXPECT_EQ(s.get("title").where.kind, Origin::file);
+    EXPECT_NE(d.title, Scenario().get("title").value);
+    const std::string text = read_text_file(p.string());
+    int comments = 0;
+    for (std::size_t at = text.find("\n#"); at != std::string::npos; at = text.find("\n#", at + 1)) ++comments;
+    EXPECT_GE(comments, 8) << "explain the design choices in comments";
+    EXPECT_NE(text.find("nvented"), std::string::npos) << "say that the part values are invented";
+    // Every section is written out, nothing left to the default design by accident.
+    for (const char* section : {"[sensor]", "[divider]", "[supply]", "[adc]", "[firmware]", "[conditions]", "[requirement]"})
+      EXPECT_NE(text.find(section), std::string::npos) << section;
+    EXPECT_NE(docs.find(p.filename().string()), std::string::npos) << "docs/scenarios.md describes it";
+  }
+}
+
+TEST(ShippedScenarios, DemoTableFollowsTheSteinhartHartCurveItsCommentStates) {
+  // The CSV says it was generated from 1/T = A + B ln R + C (ln R)³ with the
+  // A, B, C in its comment and printed to 0.1 Ω: every point within 0.05 Ω.
+  const std::string path = (source_dir / "scenarios/incubator_ntc47k.csv").string();
+  const std::string text = read_text_file(path);
+  std::smatch m;
+  ASSERT_TRUE(std::regex_search(text, m, std::regex(R"(A = ([-0-9.e+]+), B = ([-0-9.e+]+), C = ([-0-9.e+]+))")));
+  const SteinhartHart sh{std::stod(m[1]), std::stod(m[2]), std::stod(m[3])};
+  const RtData data = read_rt_data(path);
+  ASSERT_GE(data.points.size(), 10u);
+  constexpr double printed_digits = 0.05 + 1e-6;  // Ω, half the last printed digit (coefficients to 11 digits)
+  for (const auto& p : data.points)
+    EXPECT_NEAR(p.r_ohm, std::exp(ln_resistance(sh, p.t_celsius + kelvin_offset)), printed_digits) << p.t_celsius;
+}
+
+}  // namespace
+}  // namespace thermargin
