@@ -123,7 +123,7 @@ std::optional<CalibrationData> Chain::calibrate(const Deviations& dev, const Rea
     if (r.saturated) return std::nullopt;
     const auto t = convert(r.code, round_output);
     if (!t) return std::nullopt;
-    k.reported[i] = *t;
+    k.reported[i] = *t + shift.output_at_cal[i];
     k.reference[i] = t_cal + at(dev, i == 0 ? Source::calibration_1 : Source::calibration_2);
   }
   if (points == 2 && k.reported[1] == k.reported[0]) return std::nullopt;
@@ -131,7 +131,7 @@ std::optional<CalibrationData> Chain::calibrate(const Deviations& dev, const Rea
 }
 
 Evaluation Chain::finish(const FrontEnd& fe, double t_c, const Reading& r, const CalibrationData* cal,
-                         bool round_output) const {
+                         bool round_output, double output_shift) const {
   Evaluation e;
   e.t_true = t_c;
   e.front = fe;
@@ -150,7 +150,8 @@ Evaluation Chain::finish(const FrontEnd& fe, double t_c, const Reading& r, const
     e.status = Status::calibration_failed;
     return e;
   }
-  e.t_reported = cal ? apply_calibration(c, *cal, *t) : *t;
+  const double converted = *t + output_shift;
+  e.t_reported = cal ? apply_calibration(c, *cal, converted) : converted;
   e.error = e.t_reported - t_c;
   return e;
 }
@@ -165,7 +166,7 @@ Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift
     e.front = fe;
     return e;
   }
-  return finish(fe, t_c, continuous_reading(fe.x_static, shift.at_t, max_code_), cal, round_output);
+  return finish(fe, t_c, continuous_reading(fe.x_static, shift.at_t, max_code_), cal, round_output, shift.output_at_t);
 }
 
 Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift& shift, bool round_output) const {

@@ -82,37 +82,40 @@ LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temper
     lp.centre = prop->centre;
     lp.terms = prop->terms;
     // The reading-level sources: the reading at t and each calibration
-    // reading are independent, so their variances add.
+    // reading are independent, so their variances add; the output rounding
+    // applies to each converted reading in the same way.
     const Deviations zero{};
-    double slope_sq = 0.0;  // Σ (∂error/∂shift)² over the readings, K²/LSB²
-    bool ok = true;
-    for (int r = 0; r <= cal_points && ok; ++r) {
-      constexpr double h = 1e-3;  // LSB
-      ReadingShift up = centre_shift, down = centre_shift;
-      (r == 0 ? up.at_t : up.at_cal[r - 1]) += h;
-      (r == 0 ? down.at_t : down.at_cal[r - 1]) -= h;
-      const auto a = model(zero, up), b = model(zero, down);
-      if (!a || !b) {
-        ok = false;
-        break;
+    auto slope_over_readings = [&](bool output) -> std::optional<double> {
+      double sum_sq = 0.0;
+      for (int r = 0; r <= cal_points; ++r) {
+        constexpr double h = 1e-3;  // LSB, or K for the output
+        ReadingShift up = centre_shift, down = centre_shift;
+        double& u_ref = output ? (r == 0 ? up.output_at_t : up.output_at_cal[r - 1]) : (r == 0 ? up.at_t : up.at_cal[r - 1]);
+        double& d_ref = output ? (r == 0 ? down.output_at_t : down.output_at_cal[r - 1]) : (r == 0 ? down.at_t : down.at_cal[r - 1]);
+        u_ref += h;
+        d_ref -= h;
+        const auto a = model(zero, up), b = model(zero, down);
+        if (!a || !b) return std::nullopt;
+        const double c = (*a - *b) / (2 * h);
+        sum_sq += c * c;
       }
-      const double c = (*a - *b) / (2 * h);
-      slope_sq += c * c;
-    }
-    if (!ok) {
+      return std::sqrt(sum_sq);
+    };
+    const auto slope = slope_over_readings(false);
+    const auto output_slope = slope_over_readings(true);
+    if (!slope || !output_slope) {
       lp.status = failure == Status::ok ? Status::no_solution : failure;
       out.points.push_back(std::move(lp));
       continue;
     }
-    const double slope = std::sqrt(slope_sq);
     auto reading_term = [&](ReadingSource s, double sensitivity, double u) {
       BudgetTerm term{std::string(info(s).name), std::string(info(s).label), sensitivity, u,
                       std::fabs(sensitivity) * u};
       lp.terms.push_back(std::move(term));
     };
-    reading_term(ReadingSource::quantization, slope, 1.0 / std::sqrt(12.0));
-    reading_term(ReadingSource::noise, slope, d.adc.noise / std::sqrt(static_cast<double>(d.adc.averaging)));
-    reading_term(ReadingSource::resolution, 1.0, d.firmware.resolution / std::sqrt(12.0));
+    reading_term(ReadingSource::quantization, *slope, 1.0 / std::sqrt(12.0));
+    reading_term(ReadingSource::noise, *slope, d.adc.noise / std::sqrt(static_cast<double>(d.adc.averaging)));
+    reading_term(ReadingSource::resolution, *output_slope, d.firmware.resolution / std::sqrt(12.0));
     double var = 0.0;
     for (const auto& term : lp.terms) var += term.contribution * term.contribution;
     lp.u_c = std::sqrt(var);

@@ -634,18 +634,59 @@ double McPoint::saturated_share() const {
   return n ? static_cast<double>(saturated) / static_cast<double>(n) : 0.0;
 }
 
-Deviations draw_unit(const Design& d, std::uint64_t unit) {
+Deviations draw_unit(const std::vector<ToleranceInput>& inputs, double sigma_per_tol, std::uint64_t seed,
+                     std::uint64_t unit) {
   Deviations dev{};
-  const Philox4x32Key key = philox_key(d.montecarlo.seed);
-  for (const auto& in : d.inputs) {
-    if (in.source == Source::board_temperature) continue;
+  const Philox4x32Key key = philox_key(seed);
+  for (const auto& in : inputs) {
+    if (in.source == Source::board_temperature) continue;  // drawn per reading
     const auto w = philox4x32_10({static_cast<std::uint32_t>(unit), static_cast<std::uint32_t>(unit >> 32), unit_stream,
                                   static_cast<std::uint32_t>(in.source)},
                                  key);
     dev[static_cast<std::size_t>(in.source)] =
-        draw_deviation(in, d.montecarlo.sigma_per_tol, unit_double(w[0], w[1]), unit_double(w[2], w[3]));
+        draw_deviation(in, sigma_per_tol, unit_double(w[0], w[1]), unit_double(w[2], w[3]));
   }
   return dev;
+}
+
+Deviations draw_unit(const Design& d, std::uint64_t unit) {
+  return draw_unit(d.inputs, d.montecarlo.sigma_per_tol, d.montecarlo.seed, unit);
+}
+
+McPoint monte_carlo_model(const std::function<double(const Deviations&)>& model,
+                          const std::vector<ToleranceInput>& inputs, double sigma_per_tol, std::uint64_t seed,
+                          std::uint64_t units, double coverage) {
+  // The same draws, histogram, pilot range and interval code as the chain's
+  // engine, for a model given as a function (JCGM 101 §9 test cases).
+  const std::vector<double> one{0.0};
+  std::vector<Range> ranges(1);
+  double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+  for (std::uint64_t u = 0; u < std::min(units, pilot_units); ++u) {
+    const double y = model(draw_unit(inputs, sigma_per_tol, seed, u));
+    lo = std::min(lo, y);
+    hi = std::max(hi, y);
+  }
+  if (lo <= hi) ranges[0] = {lo - std::max(0.5 * (hi - lo), 1e-6), (hi - lo) + 2 * std::max(0.5 * (hi - lo), 1e-6)};
+  Accumulator acc(1);
+  const double inv_width = histogram_bins / ranges[0].width;
+  for (std::uint64_t u = 0; u < units; u += block_size) {
+    double s1 = 0.0, s2 = 0.0;
+    const std::uint64_t end = std::min(units, u + block_size);
+    for (std::uint64_t k = u; k < end; ++k) {
+      const double y = model(draw_unit(inputs, sigma_per_tol, seed, k));
+      acc.valid[0]++;
+      s1 += y;
+      s2 += y * y;
+      const double pos = (y - ranges[0].lo) * inv_width;
+      if (pos < 0.0) acc.below[0].push_back(y);
+      else if (pos >= histogram_bins) acc.above[0].push_back(y);
+      else acc.hist[static_cast<std::size_t>(pos)]++;
+    }
+    acc.sum[0] += static_cast<long long>(std::floor(s1 * fixed_point_scale + 0.5));
+    acc.sumsq[0] += static_cast<long long>(std::floor(s2 * fixed_point_scale + 0.5));
+  }
+  acc.units = units;
+  return summarise(acc, one, ranges, coverage).front();
 }
 
 ReadingDraw draw_reading(const Design& d, std::uint64_t unit, std::uint32_t reading) {

@@ -20,60 +20,144 @@ int calibration_points(const Design& d) {
   return d.firmware.calibration == Calibration::none ? 0 : d.firmware.calibration == Calibration::offset ? 1 : 2;
 }
 
-// The calibrations a unit at one corner can receive: every combination of
-// its calibration readings at the ends of their intervals.
+// The reading-level intervals: the reading in LSB and the output rounding in
+// K, at the measured temperature and at each calibration point. The error is
+// monotone in each, so only their ends matter.
+struct Intervals {
+  ReadingInterval reading;
+  double rounding;  // ± K
+};
+
+// Every calibration one corner's unit can receive: each calibration reading
+// at either end of its reading interval and of its rounding interval.
+// nullopt entries are calibrations that failed (saturation, no conversion).
 std::vector<std::optional<CalibrationData>> corner_calibrations(const Chain& chain, const Deviations& dev,
-                                                                const ReadingInterval& q) {
-  const int n = calibration_points(chain.design());
+                                                                const Intervals& iv, Status& failure) {
+  const Design& d = chain.design();
+  const int n = calibration_points(d);
   std::vector<std::optional<CalibrationData>> out;
   if (n == 0) return out;
-  for (int mask = 0; mask < (1 << n); ++mask) {
-    ReadingShift s;
-    for (int i = 0; i < n; ++i) s.at_cal[i] = (mask >> i & 1) ? q.hi : q.lo;
-    out.push_back(chain.calibrate(dev, s, false));
+  // The two ends of each calibration point's converted temperature.
+  double ends[2][4];
+  int count[2] = {0, 0};
+  for (int i = 0; i < n; ++i) {
+    const double t_cal = d.firmware.calibration_at[static_cast<std::size_t>(i)];
+    const FrontEnd fe = chain.front_end(dev, t_cal);
+    if (fe.status != Status::ok) {
+      failure = fe.status;
+      out.push_back(std::nullopt);
+      return out;
+    }
+    for (double shift : {iv.reading.lo, iv.reading.hi}) {
+      const Reading r = continuous_reading(fe.x_static, shift, chain.max_code());
+      const auto t = r.saturated ? std::nullopt : chain.convert(r.code, false);
+      if (!t) {
+        failure = r.saturated ? Status::saturated : Status::no_solution;
+        out.push_back(std::nullopt);
+        return out;
+      }
+      for (double rounding : {-iv.rounding, iv.rounding}) ends[i][count[i]++] = *t + rounding;
+    }
   }
+  const double ref0 = d.firmware.calibration_at[0] + dev[static_cast<std::size_t>(Source::calibration_1)];
+  const double ref1 = n > 1 ? d.firmware.calibration_at[1] + dev[static_cast<std::size_t>(Source::calibration_2)] : 0.0;
+  for (int a = 0; a < count[0]; ++a)
+    for (int b = 0; b < (n > 1 ? count[1] : 1); ++b) {
+      CalibrationData k;
+      k.reported[0] = ends[0][a];
+      k.reference[0] = ref0;
+      if (n > 1) {
+        k.reported[1] = ends[1][b];
+        k.reference[1] = ref1;
+        if (k.reported[1] == k.reported[0]) {
+          failure = Status::calibration_failed;
+          out.push_back(std::nullopt);
+          continue;
+        }
+      }
+      out.push_back(k);
+    }
   return out;
 }
 
-// Folds one corner's errors at temperature t into the point.
-void visit_corner(const Chain& chain, const Deviations& dev, double t, const ReadingInterval& q,
-                  const std::vector<std::optional<CalibrationData>>& cals, WorstCasePoint& p) {
+// The lowest and highest error of one corner at temperature t.
+struct CornerRange {
+  bool ok = false;
+  Status failure = Status::ok;
+  double low = 0.0, high = 0.0;
+};
+
+CornerRange corner_range(const Chain& chain, const Deviations& dev, double t, const Intervals& iv,
+                         const std::vector<std::optional<CalibrationData>>& cals, Status cal_failure) {
+  CornerRange c;
   const FrontEnd fe = chain.front_end(dev, t);
-  auto fail = [&](Status s) {
-    ++p.failed_corners;
-    if (p.failure == Status::ok) p.failure = s;
-  };
-  if (fe.status != Status::ok) return fail(fe.status);
-  const bool calibrated = chain.design().firmware.calibration != Calibration::none;
-  for (double shift : {q.lo, q.hi}) {
+  if (fe.status != Status::ok) {
+    c.failure = fe.status;
+    return c;
+  }
+  const Calibration method = chain.design().firmware.calibration;
+  bool first = true;
+  for (double shift : {iv.reading.lo, iv.reading.hi}) {
     const Reading r = continuous_reading(fe.x_static, shift, chain.max_code());
-    if (r.saturated) return fail(Status::saturated);
-    const auto tr = chain.convert(r.code, false);
-    if (!tr) return fail(Status::no_solution);
-    if (!calibrated) {
-      const double e = *tr - t;
-      p.low = p.any_ok ? std::min(p.low, e) : e;
-      p.high = p.any_ok ? std::max(p.high, e) : e;
-      p.any_ok = true;
-      continue;
+    if (r.saturated) {
+      c.failure = Status::saturated;
+      return c;
     }
-    for (const auto& k : cals) {
-      if (!k) return fail(Status::calibration_failed);
-      const double e = apply_calibration(chain.design().firmware.calibration, *k, *tr) - t;
-      p.low = p.any_ok ? std::min(p.low, e) : e;
-      p.high = p.any_ok ? std::max(p.high, e) : e;
-      p.any_ok = true;
+    const auto tr = chain.convert(r.code, false);
+    if (!tr) {
+      c.failure = Status::no_solution;
+      return c;
+    }
+    for (double rounding : {-iv.rounding, iv.rounding}) {
+      const double converted = *tr + rounding;
+      auto fold = [&](double e) {
+        c.low = first ? e : std::min(c.low, e);
+        c.high = first ? e : std::max(c.high, e);
+        first = false;
+      };
+      if (method == Calibration::none) {
+        fold(converted - t);
+        continue;
+      }
+      for (const auto& k : cals) {
+        if (!k) {
+          c.failure = cal_failure == Status::ok ? Status::calibration_failed : cal_failure;
+          return c;
+        }
+        fold(apply_calibration(method, *k, converted) - t);
+      }
     }
   }
+  c.ok = true;
+  return c;
 }
 
-// Each source's own half-width at t.
-std::vector<double> own_half_widths(const Chain& chain, double t, const ReadingInterval& q) {
+CornerRange evaluate_corner(const Chain& chain, const Deviations& dev, double t, const Intervals& iv) {
+  Status cal_failure = Status::ok;
+  const auto cals = corner_calibrations(chain, dev, iv, cal_failure);
+  return corner_range(chain, dev, t, iv, cals, cal_failure);
+}
+
+void fold(WorstCasePoint& p, const CornerRange& c) {
+  if (!c.ok) {
+    ++p.failed_corners;
+    if (p.failure == Status::ok) p.failure = c.failure;
+    return;
+  }
+  p.low = p.any_ok ? std::min(p.low, c.low) : c.low;
+  p.high = p.any_ok ? std::max(p.high, c.high) : c.high;
+  p.any_ok = true;
+}
+
+// Each source's own half-width at t: that source alone at its bound, or the
+// reading-level source alone at its interval ends, everything else central.
+std::vector<double> own_half_widths(const Chain& chain, double t, const Intervals& iv) {
   const Design& d = chain.design();
   std::vector<double> out;
-  const double mid_shift = 0.5 * (q.lo + q.hi);
+  const int n = calibration_points(d);
+  const double mid = 0.5 * (iv.reading.lo + iv.reading.hi);
   ReadingShift centre;
-  centre.at_t = centre.at_cal[0] = centre.at_cal[1] = mid_shift;
+  centre.at_t = centre.at_cal[0] = centre.at_cal[1] = mid;
   const Deviations zero{};
   const Evaluation e0 = chain.evaluate(zero, t, centre, false);
   auto deviation = [&](const Deviations& dev, const ReadingShift& s) {
@@ -89,23 +173,74 @@ std::vector<double> own_half_widths(const Chain& chain, double t, const ReadingI
     }
     out.push_back(w);
   }
-  // Quantisation and noise: the reading (and calibration readings) at the
-  // ends of their own parts of the interval.
-  const double noise = d.montecarlo.noise_k * d.adc.noise / std::sqrt(static_cast<double>(d.adc.averaging));
-  const double quant_half = 0.5;
-  for (double half : {quant_half, noise}) {
+  // Every sign combination over the readings (at t and each calibration point).
+  auto reading_level = [&](auto apply) {
     double w = 0.0;
-    const int n = calibration_points(d);
     for (int mask = 0; mask < (1 << (n + 1)); ++mask) {
       ReadingShift s = centre;
-      s.at_t += (mask & 1) ? half : -half;
-      for (int i = 0; i < n; ++i) s.at_cal[i] += (mask >> (i + 1) & 1) ? half : -half;
+      for (int r = 0; r <= n; ++r) apply(s, r, (mask >> r & 1) ? 1.0 : -1.0);
       w = std::max(w, deviation(zero, s));
     }
-    out.push_back(w);
-  }
-  out.push_back(0.5 * d.firmware.resolution);
+    return w;
+  };
+  const double noise = d.montecarlo.noise_k * d.adc.noise / std::sqrt(static_cast<double>(d.adc.averaging));
+  const double quant_half = 0.5;  // the quantiser's interval is 1 LSB wide for round and floor
+  out.push_back(reading_level([&](ReadingShift& s, int r, double sign) { (r == 0 ? s.at_t : s.at_cal[r - 1]) += sign * quant_half; }));
+  out.push_back(reading_level([&](ReadingShift& s, int r, double sign) { (r == 0 ? s.at_t : s.at_cal[r - 1]) += sign * noise; }));
+  out.push_back(reading_level([&](ReadingShift& s, int r, double sign) {
+    (r == 0 ? s.output_at_t : s.output_at_cal[r - 1]) += sign * iv.rounding;
+  }));
   return out;
+}
+
+// Sensitivity-directed corners refined by a local search: starting from the
+// corner the signs of the sensitivities point to, flip any input (or pair of
+// inputs) whose flip moves the error further, until none does. Exact for a
+// monotone model; the pair flips also find the extremes of products such as
+// tempco × board temperature, whose sensitivities vanish at the nominal
+// point and whose two local extremes single flips cannot leave.
+CornerRange directed_extreme(const Chain& chain, double t, const Intervals& iv, const LinearPoint& lp, bool upper) {
+  const Design& d = chain.design();
+  const std::size_t n = d.inputs.size();
+  std::vector<double> sign(n);
+  for (std::size_t k = 0; k < n; ++k) {
+    const double c = lp.status == Status::ok ? lp.terms[k].sensitivity : 1.0;
+    sign[k] = (c >= 0.0) == upper ? 1.0 : -1.0;
+  }
+  auto corner = [&]() {
+    Deviations dev{};
+    for (std::size_t k = 0; k < n; ++k) dev[static_cast<std::size_t>(d.inputs[k].source)] = sign[k] * d.inputs[k].bound;
+    return dev;
+  };
+  CornerRange best = evaluate_corner(chain, corner(), t, iv);
+  auto better = [&](const CornerRange& a, const CornerRange& b) {  // a better than b?
+    if (!a.ok) return false;
+    if (!b.ok) return true;
+    return upper ? a.high > b.high : a.low < b.low;
+  };
+  auto try_flip = [&](std::size_t a, std::size_t b) {  // b == n: a single flip
+    sign[a] = -sign[a];
+    if (b < n) sign[b] = -sign[b];
+    const CornerRange trial = evaluate_corner(chain, corner(), t, iv);
+    if (better(trial, best)) {
+      best = trial;
+      return true;
+    }
+    sign[a] = -sign[a];
+    if (b < n) sign[b] = -sign[b];
+    return false;
+  };
+  // Single flips until none helps, then pairs (a product of two inputs has
+  // two local extremes that single flips cannot leave), and again.
+  for (int pass = 0; pass < 16; ++pass) {
+    bool improved = false;
+    for (std::size_t k = 0; k < n; ++k) improved |= try_flip(k, n);
+    if (improved) continue;
+    for (std::size_t a = 0; a < n && !improved; ++a)
+      for (std::size_t b = a + 1; b < n && !improved; ++b) improved = try_flip(a, b);
+    if (!improved) break;
+  }
+  return best;
 }
 
 }  // namespace
@@ -116,48 +251,39 @@ WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures
   wc.active_inputs = static_cast<int>(d.inputs.size());
   wc.directed = method == CornerMethod::directed ||
                 (method == CornerMethod::automatic && wc.active_inputs > max_enumerated_inputs);
-  const ReadingInterval q = reading_interval(d);
+  const Intervals iv{reading_interval(d), 0.5 * d.firmware.resolution};
   const std::size_t nt = temperatures.size();
   wc.points.resize(nt);
   for (std::size_t i = 0; i < nt; ++i) {
     wc.points[i].t = temperatures[i];
-    wc.points[i].own_half_width = own_half_widths(chain, temperatures[i], q);
+    wc.points[i].own_half_width = own_half_widths(chain, temperatures[i], iv);
   }
   const int n = wc.active_inputs;
   if (!wc.directed) {
     wc.corners = 1LL << n;
     for (long long mask = 0; mask < wc.corners; ++mask) {
       Deviations dev{};
-      for (int k = 0; k < n; ++k)
-        dev[static_cast<std::size_t>(d.inputs[static_cast<std::size_t>(k)].source)] =
-            (mask >> k & 1) ? d.inputs[static_cast<std::size_t>(k)].bound : -d.inputs[static_cast<std::size_t>(k)].bound;
-      const auto cals = corner_calibrations(chain, dev, q);
-      for (std::size_t i = 0; i < nt; ++i) visit_corner(chain, dev, temperatures[i], q, cals, wc.points[i]);
+      for (int k = 0; k < n; ++k) {
+        const auto& in = d.inputs[static_cast<std::size_t>(k)];
+        dev[static_cast<std::size_t>(in.source)] = (mask >> k & 1) ? in.bound : -in.bound;
+      }
+      Status cal_failure = Status::ok;
+      const auto cals = corner_calibrations(chain, dev, iv, cal_failure);
+      for (std::size_t i = 0; i < nt; ++i) fold(wc.points[i], corner_range(chain, dev, temperatures[i], iv, cals, cal_failure));
     }
   } else {
     wc.corners = 2;
     const LinearBudget lb = linear_budget(chain, temperatures);
     for (std::size_t i = 0; i < nt; ++i) {
-      const LinearPoint& lp = lb.points[i];
-      if (lp.status != Status::ok) {
-        wc.points[i].failure = lp.status;
-        wc.points[i].failed_corners = 2;
-        continue;
-      }
-      for (double direction : {-1.0, 1.0}) {
-        Deviations dev{};
-        for (int k = 0; k < n; ++k) {
-          const auto& in = d.inputs[static_cast<std::size_t>(k)];
-          const double c = lp.terms[static_cast<std::size_t>(k)].sensitivity;
-          dev[static_cast<std::size_t>(in.source)] = (c * direction >= 0.0 ? 1.0 : -1.0) * in.bound;
-        }
-        visit_corner(chain, dev, temperatures[i], q, corner_calibrations(chain, dev, q), wc.points[i]);
+      const CornerRange lo = directed_extreme(chain, temperatures[i], iv, lb.points[i], false);
+      const CornerRange hi = directed_extreme(chain, temperatures[i], iv, lb.points[i], true);
+      fold(wc.points[i], lo);
+      fold(wc.points[i], hi);
+      if (lo.ok && hi.ok) {
+        wc.points[i].low = lo.low;
+        wc.points[i].high = hi.high;
       }
     }
-  }
-  for (auto& p : wc.points) {
-    p.low -= 0.5 * d.firmware.resolution;
-    p.high += 0.5 * d.firmware.resolution;
   }
   return wc;
 }

@@ -45,11 +45,15 @@ struct Evaluation {
   double error = 0.0;       // K, reported − true
 };
 
-// Shifts added to continuous readings, in LSB: at the measured temperature
-// and at the (up to two) calibration points.
+// Shifts of continuous readings: in LSB on the reading (quantisation,
+// noise) at the measured temperature and at the (up to two) calibration
+// points; in K on each converted temperature (the output rounding, which the
+// firmware applies to every reading before calibration, model.md §6).
 struct ReadingShift {
   double at_t = 0.0;
   double at_cal[2] = {0.0, 0.0};
+  double output_at_t = 0.0;
+  double output_at_cal[2] = {0.0, 0.0};
 };
 
 class Chain {
@@ -80,7 +84,7 @@ class Chain {
 
   // From a reading (however obtained) to the evaluation's tail.
   Evaluation finish(const FrontEnd& fe, double t_celsius, const Reading& r, const CalibrationData* cal,
-                    bool round_output) const;
+                    bool round_output, double output_shift = 0.0) const;
 
  private:
   const Design* d_;

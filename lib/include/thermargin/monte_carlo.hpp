@@ -86,6 +86,15 @@ Interval clopper_pearson(std::uint64_t k, std::uint64_t n, double alpha = 0.05);
 
 // One unit's deviations, drawn from its counter-based stream.
 Deviations draw_unit(const Design& d, std::uint64_t unit);
+Deviations draw_unit(const std::vector<ToleranceInput>& inputs, double sigma_per_tol, std::uint64_t seed,
+                     std::uint64_t unit);
+
+// The engine's sampling and interval code applied to a model given as a
+// function of the deviations (for the JCGM 101 §9 test cases): the coverage
+// interval, median, mean and standard deviation of `units` draws.
+McPoint monte_carlo_model(const std::function<double(const Deviations&)>& model,
+                          const std::vector<ToleranceInput>& inputs, double sigma_per_tol, std::uint64_t seed,
+                          std::uint64_t units, double coverage);
 
 // The M noise values (LSB) and the board-temperature uniform of one reading;
 // `reading` is the temperature index, or calibration_reading(i).

@@ -1,0 +1,332 @@
+// The Monte Carlo engine: JCGM 101 §9.2 through its sampling and interval
+// code, the distributions, the kernel against the scalar chain, bands
+// against worst case and linear budget, yield against a closed form, and
+// reproducibility.
+#include "thermargin/monte_carlo.hpp"
+
+#include <boost/math/distributions/normal.hpp>
+#include <cmath>
+#include <cstdio>
+#include <memory>
+#include <numeric>
+
+#include <gtest/gtest.h>
+
+#include "engine_fixture.hpp"
+#include "thermargin/linear_budget.hpp"
+#include "thermargin/random.hpp"
+#include "thermargin/worst_case.hpp"
+
+namespace thermargin {
+namespace {
+
+using testing::design_with;
+using testing::ideal;
+using testing::Overrides;
+
+// --- Counter-based generator -------------------------------------------------
+
+TEST(Philox, MatchesRandom123KnownAnswerVectors) {
+  // Random123 tests/kat_vectors, "philox4x32 10" lines (counter, key, output).
+  EXPECT_EQ(philox4x32_10({0, 0, 0, 0}, {0, 0}), (Philox4x32Counter{0x6627e8d5, 0xe169c58d, 0xbc57ac4c, 0x9b00dbd8}));
+  EXPECT_EQ(philox4x32_10({0xffffffff, 0xffffffff, 0xffffffff, 0xffffffff}, {0xffffffff, 0xffffffff}),
+            (Philox4x32Counter{0x408f276d, 0x41c83b0e, 0xa20bc7c6, 0x6d5451fd}));
+  EXPECT_EQ(philox4x32_10({0x243f6a88, 0x85a308d3, 0x13198a2e, 0x03707344}, {0xa4093822, 0x299f31d0}),
+            (Philox4x32Counter{0xd16cfe09, 0x94fdcceb, 0x5001e420, 0x24126ea1}));
+}
+
+// --- JCGM 101 §9.2: Y = X1 + X2 + X3 + X4 -----------------------------------------
+
+constexpr Source slot[4] = {Source::r25, Source::beta, Source::r_fixed, Source::adc_offset};
+double additive(const Deviations& d) {
+  double y = 0.0;
+  for (Source s : slot) y += d[static_cast<std::size_t>(s)];
+  return y;
+}
+std::vector<ToleranceInput> four(Distribution dist, double bound) {
+  std::vector<ToleranceInput> in;
+  for (Source s : slot) in.push_back({s, bound, dist, 0.0});
+  return in;
+}
+constexpr std::uint64_t trials = 1000000;
+// With 10⁶ trials the endpoint scatter is about 0.005 (§9.2.3) and 0.01
+// (§9.2.4): ±0.02 and ±0.04 are safe (reference-values.md).
+constexpr double scatter = 0.02, scatter_dominant = 0.04;
+
+TEST(MonteCarloJcgm101, NormalInputsGiveTheNormalInterval) {
+  const McPoint p = monte_carlo_model(additive, four(Distribution::normal, 3.0), 3.0, 1, trials, 0.95);
+  EXPECT_NEAR(p.low, -3.919928, scatter);  // §9.2.2, exact ±3.919928
+  EXPECT_NEAR(p.high, 3.919928, scatter);
+  EXPECT_NEAR(p.stddev, 2.0, 0.01);
+  // The linear budget agrees: validated (JCGM 101 §8).
+  const double lpu = coverage_factor(0.95) * 2.0;
+  EXPECT_TRUE(linear_validated(-lpu, lpu, p.low, p.high, numerical_tolerance(2.0)));
+}
+
+TEST(MonteCarloJcgm101, RectangularInputsGiveTheNarrowerInterval) {
+  const McPoint p = monte_carlo_model(additive, four(Distribution::uniform, std::sqrt(3.0)), 3.0, 2, trials, 0.95);
+  EXPECT_NEAR(p.low, -3.879407, scatter);  // §9.2.3, Monte Carlo ±3.88 (exact ±3.879407)
+  EXPECT_NEAR(p.high, 3.879407, scatter);
+}
+
+TEST(MonteCarloJcgm101, OneDominantRectangularInputIsNotValidatedByTheLinearBudget) {
+  auto in = four(Distribution::uniform, std::sqrt(3.0));
+  in[3].bound = 10.0 * std::sqrt(3.0);
+  const McPoint p = monte_carlo_model(additive, in, 3.0, 3, trials, 0.95);
+  EXPECT_NEAR(p.low, -17.015814, scatter_dominant);  // §9.2.4, Monte Carlo ±17.0 (exact 17.015814)
+  EXPECT_NEAR(p.high, 17.015814, scatter_dominant);
+  const double lpu = 19.891462;  // law of propagation, §9.2.4
+  EXPECT_FALSE(linear_validated(-lpu, lpu, p.low, p.high, numerical_tolerance(std::sqrt(103.0))));
+}
+
+TEST(MonteCarloJcgm101, NumericalToleranceFollowsSection79) {
+  // δ = ½·10^l for u written c·10^l with two significant digits.
+  EXPECT_DOUBLE_EQ(numerical_tolerance(2.0), 0.05);
+  EXPECT_DOUBLE_EQ(numerical_tolerance(10.149), 0.5);
+  EXPECT_DOUBLE_EQ(numerical_tolerance(0.0234), 0.0005);
+}
+
+// --- Distributions --------------------------------------------------------------
+
+struct Moments {
+  double mean, var;
+  std::vector<double> sorted;
+};
+Moments sample(const ToleranceInput& in, std::uint64_t n) {
+  Moments m{0, 0, {}};
+  for (std::uint64_t u = 0; u < n; ++u)
+    m.sorted.push_back(draw_unit({in}, 3.0, 7, u)[static_cast<std::size_t>(in.source)]);
+  m.mean = std::accumulate(m.sorted.begin(), m.sorted.end(), 0.0) / static_cast<double>(n);
+  for (double x : m.sorted) m.var += (x - m.mean) * (x - m.mean) / static_cast<double>(n - 1);
+  std::sort(m.sorted.begin(), m.sorted.end());
+  return m;
+}
+
+TEST(Distributions, SampleMomentsAndQuantilesMatchClosedForms) {
+  constexpr std::uint64_t n = 200000;
+  const double a = 1.0;
+  // Closed forms: normal σ = a/3; uniform a²/3 (GUM §4.3.7); triangular a²/6
+  // (GUM §4.3.9). Tolerances from the sample size: 5 standard errors.
+  struct Case {
+    Distribution d;
+    double var;
+  } cases[] = {{Distribution::normal, a * a / 9}, {Distribution::uniform, a * a / 3}, {Distribution::triangular, a * a / 6}};
+  for (const auto& c : cases) {
+    const Moments m = sample({Source::r25, a, c.d, 0.0}, n);
+    const double se_mean = std::sqrt(c.var / n);
+    EXPECT_NEAR(m.mean, 0.0, 5 * se_mean) << to_string(c.d);
+    EXPECT_NEAR(m.var, c.var, 5 * c.var * std::sqrt(2.0 / n) * 1.5) << to_string(c.d);
+  }
+  // Quantiles of the normal against Boost.Math's quantile function.
+  const Moments m = sample({Source::r25, a, Distribution::normal, 0.0}, n);
+  const boost::math::normal_distribution<> nd(0.0, a / 3);
+  for (double p : {0.01, 0.1, 0.5, 0.9, 0.99}) {
+    const double q = m.sorted[static_cast<std::size_t>(p * n)];
+    const double density = boost::math::pdf(nd, boost::math::quantile(nd, p));
+    const double se = std::sqrt(p * (1 - p) / n) / density;  // asymptotic s.e. of a sample quantile
+    EXPECT_NEAR(q, boost::math::quantile(nd, p), 5 * se) << p;
+  }
+  // Uniform quantiles are linear: the median and the 10 % point.
+  const Moments u = sample({Source::r25, a, Distribution::uniform, 0.0}, n);
+  EXPECT_NEAR(u.sorted[n / 10], -0.8, 0.01);
+  EXPECT_NEAR(u.sorted[n / 2], 0.0, 0.01);
+}
+
+TEST(Distributions, GappedNeverDrawsInsideItsGapAndStaysInItsBound) {
+  const ToleranceInput in{Source::r25, 0.05, Distribution::gapped, 0.01};
+  const Moments m = sample(in, 100000);
+  for (double x : m.sorted) {
+    EXPECT_GE(std::fabs(x), 0.01);
+    EXPECT_LE(std::fabs(x), 0.05);
+  }
+  EXPECT_NEAR(std::sqrt(m.var), standard_uncertainty(in, 3.0), 0.01 * standard_uncertainty(in, 3.0));
+}
+
+// --- The kernel against the scalar chain -------------------------------------------
+
+TEST(MonteCarloKernel, AgreesWithTheScalarChainOnEveryScenario) {
+  for (const auto& file : testing::scenario_files()) {
+    const Design d = design_with({}, file);
+    const Chain chain(d);
+    const auto all = d.conditions.temperatures();
+    std::vector<double> temps;
+    for (std::size_t i = 0; i < all.size(); i += 17) temps.push_back(all[i]);
+    std::vector<double> errors;
+    const std::uint64_t first = 512;
+    simulate_block(chain, temps, first, 64, errors);
+    for (std::size_t ti = 0; ti < temps.size(); ++ti)
+      for (int u = 0; u < 64; u += 7) {
+        // simulate_reading numbers readings by their index in the sweep.
+        const Evaluation e = simulate_reading(chain, first + static_cast<std::uint64_t>(u), static_cast<std::uint32_t>(ti), temps[ti]);
+        const double k = errors[static_cast<std::size_t>(u) + ti * 64];
+        if (e.status != Status::ok) {
+          EXPECT_TRUE(std::isnan(k)) << file << " t=" << temps[ti] << " unit " << u;
+        } else {
+          EXPECT_NEAR(k, e.error, 1e-6) << file << " t=" << temps[ti] << " unit " << u;
+        }
+      }
+  }
+}
+
+// --- Bands against the other engines -------------------------------------------------
+
+TEST(MonteCarloBands, LieInsideTheWorstCaseBandWithoutNoiseOnEveryScenario) {
+  for (const auto& file : testing::scenario_files()) {
+    const Design d = design_with({{"adc.noise", "0"}}, file);
+    const Chain chain(d);
+    const auto temps = d.conditions.temperatures();
+    const WorstCase wc = worst_case(chain, temps);
+    McOptions o;
+    o.units = 4000;
+    const McResult mc = monte_carlo(chain, temps, o);
+    for (std::size_t i = 0; i < temps.size(); ++i) {
+      const McPoint& p = mc.points[i];
+      if (p.valid == 0 || wc.points[i].failed_corners > 0 || !wc.points[i].any_ok) continue;
+      // A normal input is untruncated: a draw beyond 3σ can leave the box, so
+      // the check uses the coverage interval, which stays inside.
+      EXPECT_GE(p.low, wc.points[i].low - 1e-9) << file << " at " << temps[i];
+      EXPECT_LE(p.high, wc.points[i].high + 1e-9) << file << " at " << temps[i];
+    }
+  }
+}
+
+TEST(MonteCarloBands, ConvergeToTheLinearBandForSmallNormalTolerances) {
+  const Design d = design_with(ideal({{"sensor.r25_tol", "0.1%"},
+                                                   {"sensor.beta_tol", "0.1%"},
+                                                   {"divider.r_fixed_tol", "0.1%"},
+                                                   {"montecarlo.coverage", "95%"}}));
+  const Chain chain(d);
+  const std::vector<double> temps{-10.0, 30.0, 70.0};
+  const LinearBudget lb = linear_budget(chain, temps);
+  McOptions o;
+  o.units = 200000;
+  const McResult mc = monte_carlo(chain, temps, o);
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    const double half = 0.5 * (lb.points[i].high - lb.points[i].low);
+    EXPECT_NEAR(mc.points[i].low, lb.points[i].low, 0.02 * half) << temps[i];
+    EXPECT_NEAR(mc.points[i].high, lb.points[i].high, 0.02 * half) << temps[i];
+  }
+}
+
+// --- Yield against a closed form ---------------------------------------------------------
+
+TEST(MonteCarloYield, UniformFixedResistorAloneMatchesTheClosedForm) {
+  // Only a uniform ±a fixed-resistor tolerance: the firmware infers R/(1 + δ),
+  // so 1/T_est = 1/T − ln(1 + δ)/B (beta equation). |error| grows with T, so a
+  // unit passes iff it passes at the window's top: ln(1 + δ) between
+  // B(1/T − 1/(T − L)) and B(1/T − 1/(T + L)). Yield = that δ-interval's
+  // share of [−a, a].
+  const double a = 0.02, limit = 0.5, b = 3950.0, t = 60.0 + kelvin_offset;
+  const Design d = design_with(ideal({{"divider.r_fixed_tol", "2%"},
+                                                   {"montecarlo.distribution", "uniform"},
+                                                   {"requirement.max_error", "0.5"},
+                                                   {"requirement.window_min", "0"},
+                                                   {"requirement.window_max", "60"}}));
+  const double d_lo = std::exp(b * (1.0 / t - 1.0 / (t - limit))) - 1.0;
+  const double d_hi = std::exp(b * (1.0 / t - 1.0 / (t + limit))) - 1.0;
+  const double expected = (std::min(d_hi, a) - std::max(d_lo, -a)) / (2 * a);
+  const Chain chain(d);
+  McOptions o;
+  o.units = 100000;
+  const McResult mc = monte_carlo(chain, d.conditions.temperatures(), o);
+  const double se = std::sqrt(expected * (1 - expected) / 100000.0);
+  EXPECT_NEAR(mc.summary.yield, expected, 5 * se);
+  EXPECT_LE(mc.summary.yield_low, mc.summary.yield);
+  EXPECT_GE(mc.summary.yield_high, mc.summary.yield);
+}
+
+TEST(MonteCarloYield, ClopperPearsonMatchesScipysBetaQuantiles) {
+  // Clopper & Pearson (1934): [B(α/2; k, n−k+1), B(1−α/2; k+1, n−k)],
+  // computed independently with scipy.stats.beta.ppf.
+  const std::string cmd = std::string(THERMARGIN_PYTHON) +
+                          " -c \"from scipy.stats import beta; k,n=95,100;"
+                          "print(repr(beta.ppf(0.025,k,n-k+1)), repr(beta.ppf(0.975,k+1,n-k)))\"";
+  std::unique_ptr<FILE, int (*)(FILE*)> pipe(popen(cmd.c_str(), "r"), pclose);
+  ASSERT_TRUE(pipe);
+  double lo = 0, hi = 0;
+  ASSERT_EQ(std::fscanf(pipe.get(), "%lf %lf", &lo, &hi), 2);
+  const Interval i = clopper_pearson(95, 100, 0.05);
+  EXPECT_NEAR(i.low, lo, 1e-9);
+  EXPECT_NEAR(i.high, hi, 1e-9);
+  EXPECT_EQ(clopper_pearson(100, 100, 0.05).high, 1.0);
+}
+
+// --- Reproducibility ---------------------------------------------------------------------
+
+TEST(MonteCarloReproducibility, ResultsDependOnlyOnSeedAndUnits) {
+  const Design d = design_with({});
+  const Chain chain(d);
+  const auto temps = d.conditions.temperatures();
+  auto run = [&](int threads) {
+    McOptions o;
+    o.units = 3000;
+    o.threads = threads;
+    return monte_carlo(chain, temps, o);
+  };
+  const McResult one = run(1), two = run(2), eight = run(8);
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    EXPECT_EQ(one.points[i].low, two.points[i].low);
+    EXPECT_EQ(one.points[i].high, eight.points[i].high);
+    EXPECT_EQ(one.points[i].mean, eight.points[i].mean);
+    EXPECT_EQ(one.points[i].stddev, two.points[i].stddev);
+  }
+  EXPECT_EQ(one.summary.good_units, eight.summary.good_units);
+}
+
+}  // namespace
+}  // namespace thermargin
+
+namespace thermargin {
+namespace {
+
+TEST(MonteCarloSecondOpinion, AgreesWithAnIndependentNumpySimulation) {
+  // The default design (beta NTC, self-heating, board range, ADC errors and
+  // noise), simulated independently with NumPy (tests/reference/
+  // mc_second_opinion.py). Agreement within the statistical scatter of two
+  // runs of 50 000 units: means to 6 standard errors, standard deviations
+  // to 3 %, the yield to 6 binomial standard errors.
+  const Design d = testing::design_with({{"requirement.max_error", "0.5"}, {"conditions.t_step", "5"}});
+  const Chain chain(d);
+  const auto temps = d.conditions.temperatures();
+  constexpr std::uint64_t n = 50000;
+  McOptions o;
+  o.units = n;
+  const McResult mc = monte_carlo(chain, temps, o);
+
+  char args[2048];
+  std::snprintf(args, sizeof args,
+                " units=%llu seed=5 sigma_per_tol=%g r25=%.17g r25_tol=%.17g beta=%.17g beta_tol=%.17g rf=%.17g"
+                " rf_tol=%.17g rf_tempco=%.17g diss=%.17g diss_tol=%.17g offset=%.17g gain=%.17g inl=%.17g"
+                " noise=%.17g bits=%d v_exc=%.17g board_min=%.17g board_max=%.17g resolution=%.17g t_min=%.17g"
+                " t_max=%.17g t_step=%.17g coverage=%.17g window_min=%.17g window_max=%.17g limit=%.17g",
+                static_cast<unsigned long long>(n), d.montecarlo.sigma_per_tol, d.sensor.r25, d.sensor.r25_tol,
+                d.sensor.beta, d.sensor.beta_tol, d.divider.r_fixed, d.divider.r_fixed_tol, d.divider.r_fixed_tempco,
+                d.sensor.dissipation, d.sensor.dissipation_tol, d.adc.offset, d.adc.gain_error, d.adc.inl, d.adc.noise,
+                d.adc.bits, d.supply.v_excitation, d.conditions.board.min, d.conditions.board.max,
+                d.firmware.resolution, d.conditions.t_min, d.conditions.t_max, d.conditions.t_step,
+                d.montecarlo.coverage, d.requirement.window_min, d.requirement.window_max, d.requirement.max_error);
+  const std::string cmd = std::string(THERMARGIN_PYTHON) + " " + THERMARGIN_SOURCE_DIR +
+                          "/tests/reference/mc_second_opinion.py" + args;
+  std::unique_ptr<FILE, int (*)(FILE*)> pipe(popen(cmd.c_str(), "r"), pclose);
+  ASSERT_TRUE(pipe);
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    double t, mean, sd, lo, hi;
+    ASSERT_EQ(std::fscanf(pipe.get(), "%lf %lf %lf %lf %lf", &t, &mean, &sd, &lo, &hi), 5);
+    ASSERT_NEAR(t, temps[i], 1e-9);
+    const McPoint& p = mc.points[i];
+    const double se = sd * std::sqrt(2.0 / n);
+    EXPECT_NEAR(p.mean, mean, 6 * se) << t;
+    EXPECT_NEAR(p.stddev, sd, 0.03 * sd) << t;
+    // Endpoints of a 99.73 % interval of a 0.1 K-rounded output: the same
+    // rounding step, or the next.
+    EXPECT_NEAR(p.low, lo, d.firmware.resolution + 0.02) << t;
+    EXPECT_NEAR(p.high, hi, d.firmware.resolution + 0.02) << t;
+  }
+  double y = 0.0;
+  ASSERT_EQ(std::fscanf(pipe.get(), " yield %lf", &y), 1);
+  const double se = std::sqrt(y * (1 - y) / n);
+  EXPECT_NEAR(mc.summary.yield, y, 6 * std::max(se, 1.0 / n) * std::sqrt(2.0));
+}
+
+}  // namespace
+}  // namespace thermargin
