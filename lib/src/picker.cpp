@@ -1,0 +1,927 @@
+#include "thermargin/picker.hpp"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <cstdio>
+#include <exception>
+#include <limits>
+#include <map>
+#include <memory>
+#include <mutex>
+#include <numeric>
+#include <set>
+#include <thread>
+#include <tuple>
+
+#include <boost/math/tools/minima.hpp>
+
+#include "thermargin/divider.hpp"
+#include "thermargin/linear_budget.hpp"
+#include "thermargin/monte_carlo.hpp"
+#include "thermargin/nominal.hpp"
+#include "thermargin/sensor.hpp"
+#include "thermargin/worst_case.hpp"
+
+namespace thermargin {
+
+namespace {
+
+constexpr double inf = std::numeric_limits<double>::infinity();
+// Full evaluations are done in batches of this many candidates whatever the
+// thread count, so the work done (and every number reported) does not
+// depend on the machine.
+constexpr std::size_t full_batch = 8;
+// Brent stops when ln R is known to 2^(1−bits)·|ln R|: about 3e-4 (0.03 %
+// in R) for kilohms, a fortieth of the 1.2 % step of E192.
+constexpr int brent_bits = 16;
+constexpr std::uintmax_t brent_max_iterations = 60;
+// Stands for an unreadable window inside Brent's arithmetic (which needs
+// finite values to fit its parabolas).
+constexpr double brent_penalty = 1e30;
+// Temperatures at which a worst-case bound is tightened by the full
+// enumeration before a candidate is evaluated in full.
+constexpr std::size_t probe_count = 3;
+// Candidates of the reduced pair search refined around this many pairs.
+constexpr std::size_t pair_refine_count = 3;
+constexpr double window_slack = 1e-9;  // °C, as budget.cpp decides window membership
+
+Where option(const char* name) { return Where{Origin::command_line, "", 0, name}; }
+
+std::string number_text(double v) {
+  char buf[40];
+  std::snprintf(buf, sizeof buf, "%.17g", v);
+  return buf;
+}
+
+std::string ohms(double v) { return format_quantity(v, Quantity::resistance, 4); }
+
+template <class F>
+void parallel_for(std::size_t n, int threads, F&& f) {
+  const std::size_t workers = std::min<std::size_t>(n, static_cast<std::size_t>(std::max(threads, 1)));
+  if (workers <= 1) {
+    for (std::size_t i = 0; i < n; ++i) f(i);
+    return;
+  }
+  std::atomic<std::size_t> next{0};
+  std::exception_ptr error;
+  std::mutex error_mutex;
+  auto work = [&] {
+    for (std::size_t i; (i = next.fetch_add(1)) < n;) {
+      try {
+        f(i);
+      } catch (...) {
+        const std::lock_guard<std::mutex> lock(error_mutex);
+        if (!error) error = std::current_exception();
+      }
+    }
+  };
+  std::vector<std::thread> pool;
+  for (std::size_t w = 1; w < workers; ++w) pool.emplace_back(work);
+  work();
+  for (auto& t : pool) t.join();
+  if (error) std::rethrow_exception(error);
+}
+
+struct Candidate {
+  double r_fixed = 0.0;
+  std::optional<double> r_parallel;
+  bool operator<(const Candidate& o) const {
+    return std::make_pair(r_fixed, r_parallel.value_or(inf)) < std::make_pair(o.r_fixed, o.r_parallel.value_or(inf));
+  }
+};
+
+struct Context {
+  Scenario base;  // the grade applied
+  Design design;  // the base design, validated once
+  PickOptions options;
+  bool pair = false;
+  int threads = 1;
+  std::vector<double> window;  // the analysed temperatures inside the requirement window
+  std::vector<double> range;   // every analysed temperature
+  std::uint64_t mc_objective_units = 0, mc_verify_units = 0;
+  std::vector<double> values;  // the r_fixed candidates, ascending
+};
+
+// A candidate's design and its chain (which points into the design).
+struct Built {
+  Design design;
+  Chain chain;
+  explicit Built(Design d) : design(std::move(d)), chain(design) {}
+  Built(const Built&) = delete;
+  Built& operator=(const Built&) = delete;
+};
+
+std::unique_ptr<Built> build(const Context& ctx, const Candidate& c) {
+  Scenario s = ctx.base;
+  const Where w = option("candidate");
+  s.set("divider.r_fixed", number_text(c.r_fixed), w);
+  if (ctx.pair) {
+    s.set("divider.r_parallel", c.r_parallel ? number_text(*c.r_parallel) : "none", w);
+    if (!c.r_parallel) s.set("divider.r_parallel_tol", "0", w);
+  }
+  return std::make_unique<Built>(build_design(s));
+}
+
+// The nominal chain over the range and the window: what the constraints
+// and the sensitivity objective read.
+struct NominalProfile {
+  Status range_status = Status::ok;   // thermal runaway anywhere in the range
+  Status window_status = Status::ok;  // the nominal reading in the window
+  double min_sensitivity = 0.0, max_self_heating = 0.0, max_current = 0.0, max_power = 0.0, span = 0.0;
+};
+
+NominalProfile nominal_profile(const Built& b, const Context& ctx) {
+  const Design& d = b.design;
+  NominalProfile n;
+  const Deviations zero{};
+  for (double t : ctx.range) {
+    const FrontEnd fe = b.chain.front_end(zero, t);
+    if (fe.status == Status::runaway && n.range_status == Status::ok) n.range_status = Status::runaway;
+    if (fe.status != Status::ok) continue;
+    n.max_self_heating = std::max(n.max_self_heating, fe.rise);
+    // The current through the fixed resistor is the divider's current; with
+    // every deviation zero there is no leakage and V_exc is nominal.
+    const double v_fixed = d.divider.placement == Placement::low ? d.supply.v_excitation - fe.v_node : fe.v_node;
+    n.max_current = std::max(n.max_current, v_fixed / d.divider.r_fixed);
+  }
+  n.max_power = d.supply.v_excitation * n.max_current;
+  double lo = inf, hi = -inf, smin = inf;
+  for (double t : ctx.window) {
+    const NominalPoint p = nominal_point(b.chain, t);
+    if (p.status != Status::ok) {
+      if (n.window_status == Status::ok) n.window_status = p.status;
+      continue;
+    }
+    smin = std::min(smin, std::fabs(p.sensitivity));
+    lo = std::min(lo, p.code);
+    hi = std::max(hi, p.code);
+  }
+  n.min_sensitivity = std::isfinite(smin) ? smin : 0.0;
+  n.span = hi > lo ? (hi - lo) / d.adc_span() : 0.0;
+  return n;
+}
+
+std::vector<std::string> violated(const PickConstraints& c, const NominalProfile& n) {
+  std::vector<std::string> out;
+  if (c.max_self_heating && n.max_self_heating > *c.max_self_heating) out.emplace_back("max-self-heating");
+  if (c.max_current && n.max_current > *c.max_current) out.emplace_back("max-current");
+  if (c.max_power && n.max_power > *c.max_power) out.emplace_back("max-power");
+  if (c.min_span && n.span < *c.min_span) out.emplace_back("min-span");
+  if (c.min_sensitivity && n.min_sensitivity < *c.min_sensitivity) out.emplace_back("min-sensitivity");
+  return out;
+}
+
+// The largest |error| of a band over the window, or the first status that
+// stopped it.
+struct WindowBand {
+  Status status = Status::ok;
+  double max_abs = 0.0;
+};
+
+// Worst case over the window, the temperatures split between threads (each
+// temperature's corners are independent of the others, so the result does
+// not depend on the split).
+WindowBand worst_case_band(const Chain& chain, const std::vector<double>& temps, CornerMethod method, int threads) {
+  const std::size_t parts = std::max<std::size_t>(1, std::min<std::size_t>(temps.size(), static_cast<std::size_t>(std::max(threads, 1))));
+  std::vector<WorstCase> results(parts);
+  parallel_for(parts, threads, [&](std::size_t i) {
+    const std::vector<double> part(temps.begin() + static_cast<std::ptrdiff_t>(i * temps.size() / parts),
+                                   temps.begin() + static_cast<std::ptrdiff_t>((i + 1) * temps.size() / parts));
+    results[i] = worst_case(chain, part, method);
+  });
+  WindowBand b;
+  for (const auto& r : results)
+    for (const auto& p : r.points) {
+      if (p.failed_corners > 0 || !p.any_ok) {
+        if (b.status == Status::ok) b.status = p.failure == Status::ok ? Status::no_solution : p.failure;
+        continue;
+      }
+      b.max_abs = std::max({b.max_abs, std::fabs(p.low), std::fabs(p.high)});
+    }
+  return b;
+}
+
+struct LinearWindow {
+  WindowBand band;
+  std::string dominant;
+};
+
+// The linear band over the window and its dominant source: the largest
+// summed variance over the window's points, as budget.cpp ranks them.
+LinearWindow linear_window(const LinearBudget& lb) {
+  LinearWindow w;
+  std::map<std::string, double> variance;
+  for (const auto& p : lb.points) {
+    if (p.status != Status::ok) {
+      if (w.band.status == Status::ok) w.band.status = p.status;
+      continue;
+    }
+    w.band.max_abs = std::max({w.band.max_abs, std::fabs(p.low), std::fabs(p.high)});
+    for (const auto& t : p.terms) variance[t.name] += t.contribution * t.contribution;
+  }
+  double largest = 0.0;
+  for (const auto& [name, v] : variance)
+    if (v > largest) {
+      largest = v;
+      w.dominant = name;
+    }
+  return w;
+}
+
+McCheck mc_window(const Chain& chain, const std::vector<double>& temps, std::uint64_t units, int threads) {
+  McOptions mo;
+  mo.units = units;
+  mo.threads = std::max(threads, 1);
+  const McResult r = monte_carlo(chain, temps, mo);
+  McCheck c;
+  c.units = r.summary.units;
+  for (const auto& p : r.points) c.readable = c.readable && p.saturated == 0 && p.failed == 0 && p.valid > 0;
+  c.max_abs = r.summary.max_abs;
+  c.yield = r.summary.yield;
+  c.yield_low = r.summary.yield_low;
+  c.yield_high = r.summary.yield_high;
+  return c;
+}
+
+// A lower bound of the worst case over the window: at each temperature the
+// two corners a linear model calls extreme (each input at the bound the sign
+// of its sensitivity points to, as worst_case.hpp directs them), each read
+// at both ends of the reading interval, calibration readings at the same
+// end. These are units the full enumeration visits too, so
+//   max |error| here + ½ resolution ≤ the full worst case,
+// and a reading they cannot convert fails the full enumeration as well.
+// Where the linear budget could not be formed no corner is known: the
+// bound stays 0 there (the full enumeration decides).
+struct DirectedBound {
+  double value = 0.0;           // K
+  Status status = Status::ok;   // first failure at a visited corner
+  std::vector<double> at;       // K, the bound at each temperature (0 where unknown)
+};
+
+DirectedBound directed_bound(const Chain& chain, const std::vector<double>& temps, const LinearBudget& lb) {
+  const Design& d = chain.design();
+  const ReadingInterval q = reading_interval(d);
+  DirectedBound b;
+  b.at.assign(temps.size(), 0.0);
+  double largest = -inf;
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    const LinearPoint& lp = lb.points[i];
+    if (lp.status != Status::ok) continue;
+    for (double direction : {-1.0, 1.0}) {
+      Deviations dev{};
+      for (std::size_t k = 0; k < d.inputs.size(); ++k) {
+        const ToleranceInput& in = d.inputs[k];
+        dev[static_cast<std::size_t>(in.source)] = (lp.terms[k].sensitivity * direction >= 0.0 ? 1.0 : -1.0) * in.bound;
+      }
+      for (double shift : {q.lo, q.hi}) {
+        ReadingShift rs;
+        rs.at_t = rs.at_cal[0] = rs.at_cal[1] = shift;
+        const Evaluation e = chain.evaluate(dev, temps[i], rs, false);
+        if (e.status != Status::ok) {
+          if (b.status == Status::ok) b.status = e.status;
+          continue;
+        }
+        largest = std::max(largest, std::fabs(e.error));
+        b.at[i] = std::max(b.at[i], std::fabs(e.error) + 0.5 * d.firmware.resolution);
+      }
+    }
+  }
+  b.value = std::isfinite(largest) ? largest + 0.5 * d.firmware.resolution : 0.0;
+  return b;
+}
+
+// One candidate through the ranking.
+struct State {
+  Candidate c;
+  std::unique_ptr<Built> built;
+  PickRow row;
+  std::vector<std::string> constraints;  // violated constraints (nominal)
+  bool exact = false;         // score is the full objective
+  double score = inf;         // objective in minimisation form (−LSB/K for sensitivity); inf: unreadable
+  // Worst case before the full evaluation: a lower bound of score, from the
+  // directed corners, then tightened by the full enumeration at the
+  // temperatures where the directed bound is largest (`probes`).
+  double bound = 0.0;
+  std::vector<double> probes;  // °C; emptied once used
+  bool certain_unreadable = false;
+};
+
+void set_status(State& s, Status st) {
+  if (s.row.status == Status::ok) s.row.status = st;
+}
+
+void finish_row(State& s) {
+  s.row.rejected_by.clear();
+  if (s.row.status != Status::ok) s.row.rejected_by.emplace_back(to_string(s.row.status));
+  s.row.rejected_by.insert(s.row.rejected_by.end(), s.constraints.begin(), s.constraints.end());
+}
+
+void set_score(State& s, Objective o, double value) {
+  const bool ok = s.row.status == Status::ok;
+  s.score = ok ? (maximised(o) ? -value : value) : inf;
+  s.row.objective = ok ? value : 0.0;
+  s.exact = true;
+}
+
+using Key = std::tuple<int, double, double, double>;
+
+Key exact_key(const State& s, bool objective_only) {
+  const bool rejected = !objective_only && !s.row.rejected_by.empty();
+  return {rejected ? 1 : 0, s.score, s.c.r_fixed, s.c.r_parallel.value_or(inf)};
+}
+
+Key bound_key(const State& s, bool objective_only) {
+  if (s.exact) return exact_key(s, objective_only);
+  const bool rejected = !objective_only && (!s.constraints.empty() || s.certain_unreadable);
+  return {rejected ? 1 : 0, s.certain_unreadable ? inf : s.bound, s.c.r_fixed, s.c.r_parallel.value_or(inf)};
+}
+
+// The first pass over a candidate: its nominal profile and constraints, and
+// the objective itself, except the worst case, which gets its lower bound.
+void screen(State& s, const Context& ctx) {
+  s.built = build(ctx, s.c);
+  const Chain& chain = s.built->chain;
+  PickRow& row = s.row;
+  row.r_fixed = s.c.r_fixed;
+  row.r_parallel = s.built->design.divider.r_parallel;
+  row.series = coarsest_series(s.c.r_fixed);
+  const NominalProfile n = nominal_profile(*s.built, ctx);
+  row.min_sensitivity = n.min_sensitivity;
+  row.max_self_heating = n.max_self_heating;
+  row.max_current = n.max_current;
+  row.max_power = n.max_power;
+  row.span = n.span;
+  s.constraints = violated(ctx.options.constraints, n);
+  if (n.range_status != Status::ok) set_status(s, n.range_status);
+
+  const Objective o = ctx.options.objective;
+  if (o == Objective::sensitivity) {
+    if (n.window_status != Status::ok) set_status(s, n.window_status);
+    set_score(s, o, n.min_sensitivity);
+    finish_row(s);
+    return;
+  }
+  // The linear budget is cheap and gives every row its band and dominant
+  // source; for the worst case it also tells whether the directed corners
+  // below were evaluated (they are, where the budget could be formed).
+  const LinearBudget lb = linear_budget(chain, ctx.window);
+  const LinearWindow lin = linear_window(lb);
+  if (lin.band.status == Status::ok) row.rss_max_abs = lin.band.max_abs;
+  row.dominant = lin.dominant;
+  if (o == Objective::linear) {
+    if (lin.band.status != Status::ok) set_status(s, lin.band.status);
+    set_score(s, o, lin.band.max_abs);
+    finish_row(s);
+    return;
+  }
+  if (o == Objective::monte_carlo) {
+    const McCheck mc = mc_window(chain, ctx.window, ctx.mc_objective_units, 1);
+    if (!mc.readable) set_status(s, Status::saturated);
+    row.mc_max_abs = mc.max_abs;
+    set_score(s, o, mc.max_abs);
+    finish_row(s);
+    return;
+  }
+  // Worst case: a lower bound first (the full enumeration only where the
+  // bound says a candidate could reach the top).
+  const DirectedBound b = directed_bound(chain, ctx.window, lb);
+  s.bound = b.value;
+  std::vector<std::size_t> by_bound(b.at.size());
+  std::iota(by_bound.begin(), by_bound.end(), std::size_t{0});
+  std::stable_sort(by_bound.begin(), by_bound.end(), [&](std::size_t x, std::size_t y) { return b.at[x] > b.at[y]; });
+  for (std::size_t k = 0; k < std::min(probe_count, by_bound.size()); ++k) s.probes.push_back(ctx.window[by_bound[k]]);
+  if (b.status != Status::ok) {
+    s.certain_unreadable = true;
+    set_status(s, b.status);
+  }
+  if (s.row.status != Status::ok) {
+    // Runaway or a certain unreadable window: nothing to evaluate in full.
+    s.score = inf;
+    s.exact = true;
+  }
+  finish_row(s);
+}
+
+// Tightens the bound of a screened candidate: the full enumeration at the
+// probe temperatures is part of the full worst case, so its largest |error|
+// is a lower bound too (and a failure there a certain one).
+void probe(State& s) {
+  const WindowBand wc = worst_case_band(s.built->chain, s.probes, CornerMethod::automatic, 1);
+  s.probes.clear();
+  if (wc.status != Status::ok) {
+    s.certain_unreadable = true;
+    set_status(s, wc.status);
+    s.score = inf;
+    s.exact = true;
+    finish_row(s);
+    return;
+  }
+  s.bound = std::max(s.bound, wc.max_abs);
+}
+
+// The full worst case of a screened candidate.
+void evaluate_in_full(State& s, const Context& ctx, int threads) {
+  const WindowBand wc = worst_case_band(s.built->chain, ctx.window, CornerMethod::automatic, threads);
+  if (wc.status != Status::ok) set_status(s, wc.status);
+  else s.row.wc_max_abs = wc.max_abs;
+  set_score(s, Objective::worst_case, wc.max_abs);
+  finish_row(s);
+}
+
+// Best-first branch and bound: the n best keys become known exactly. Each
+// round sorts the candidates by their key (exact, or a lower bound) and
+// refines the most promising ones a step (probe temperatures, then the full
+// enumeration) until the first n in that order are all exact: every other
+// candidate's true key is at least its bound, so behind them. Keys with
+// `objective_only` ignore the constraints. Returns the full evaluations done.
+std::size_t settle(std::vector<State>& st, std::size_t n, bool objective_only, const Context& ctx) {
+  std::vector<std::size_t> order(st.size());
+  std::size_t evaluated = 0;
+  for (;;) {
+    std::iota(order.begin(), order.end(), std::size_t{0});
+    std::sort(order.begin(), order.end(),
+              [&](std::size_t a, std::size_t b) { return bound_key(st[a], objective_only) < bound_key(st[b], objective_only); });
+    std::vector<std::size_t> batch;
+    for (std::size_t k = 0; k < order.size() && batch.size() < full_batch; ++k)
+      if (!st[order[k]].exact) batch.push_back(order[k]);
+    // Done when the first n are exact.
+    bool settled = true;
+    for (std::size_t k = 0; k < std::min(n, order.size()); ++k) settled = settled && st[order[k]].exact;
+    if (settled || batch.empty()) break;
+    std::vector<char> in_full(batch.size(), 0);
+    parallel_for(batch.size(), ctx.threads, [&](std::size_t i) {
+      State& s = st[batch[i]];
+      if (!s.probes.empty()) {
+        probe(s);
+      } else {
+        evaluate_in_full(s, ctx, 1);
+        in_full[i] = 1;
+      }
+    });
+    evaluated += static_cast<std::size_t>(std::count(in_full.begin(), in_full.end(), 1));
+  }
+  return evaluated;
+}
+
+// The objective at one candidate, evaluated in full on its own (Brent, the
+// guidance neighbours, objective_at): the threads split its temperatures.
+struct Scored {
+  Status status = Status::ok;
+  double value = 0.0;  // objective unit
+  double score = inf;  // minimisation form; inf when unreadable
+};
+
+Scored score_candidate(const Context& ctx, const Candidate& c) {
+  const auto b = build(ctx, c);
+  const NominalProfile n = nominal_profile(*b, ctx);
+  Scored r;
+  r.status = n.range_status;
+  const Objective o = ctx.options.objective;
+  switch (o) {
+    case Objective::sensitivity:
+      if (r.status == Status::ok) r.status = n.window_status;
+      r.value = n.min_sensitivity;
+      break;
+    case Objective::linear: {
+      const LinearWindow w = linear_window(linear_budget(b->chain, ctx.window));
+      if (r.status == Status::ok) r.status = w.band.status;
+      r.value = w.band.max_abs;
+      break;
+    }
+    case Objective::monte_carlo: {
+      const McCheck mc = mc_window(b->chain, ctx.window, ctx.mc_objective_units, ctx.threads);
+      if (r.status == Status::ok && !mc.readable) r.status = Status::saturated;
+      r.value = mc.max_abs;
+      break;
+    }
+    case Objective::worst_case: {
+      const WindowBand wc = worst_case_band(b->chain, ctx.window, CornerMethod::automatic, ctx.threads);
+      if (r.status == Status::ok) r.status = wc.status;
+      r.value = wc.max_abs;
+      break;
+    }
+  }
+  r.score = r.status == Status::ok ? (maximised(o) ? -r.value : r.value) : inf;
+  return r;
+}
+
+std::uint64_t default_units(const Design& d, std::uint64_t requested, std::uint64_t cap) {
+  if (requested > 0) return requested;
+  return d.montecarlo.units == 0 ? cap : std::min(d.montecarlo.units, cap);
+}
+
+void check_options(const PickOptions& o) {
+  if (o.values.empty()) {
+    if (!(o.range_low > 0.0 && o.range_high > o.range_low && std::isfinite(o.range_high)))
+      reject(option("--range"), ohms(o.range_low) + ".." + ohms(o.range_high),
+             "must be LOW..HIGH with 0 < LOW < HIGH, in ohms (engineering notation, e.g. 1k..1M)");
+  } else {
+    for (double v : o.values)
+      if (!(v > 0.0 && std::isfinite(v))) reject(option("--values"), number_text(v), "every value must be a resistance > 0");
+  }
+  if (o.top < 1) reject(option("--top"), std::to_string(o.top), "must be a whole number >= 1");
+  if (o.verify < 0) reject(option("--verify"), std::to_string(o.verify), "must be a whole number >= 0");
+  if (o.tolerance && !(*o.tolerance >= 0.0 && *o.tolerance < 1.0))
+    reject(option("--grade"), number_text(*o.tolerance), "the tolerance must be from 0 up to (not including) 100 %");
+  if (o.tempco && !(*o.tempco >= 0.0 && *o.tempco < 0.01))
+    reject(option("--grade"), number_text(*o.tempco), "the tempco must be from 0 up to (not including) 10000 ppm/K");
+  const auto positive = [](const std::optional<double>& v, const char* name, const char* unit) {
+    if (v && !(*v > 0.0 && std::isfinite(*v))) reject(option(name), number_text(*v), std::string("must be > 0 ") + unit);
+  };
+  positive(o.constraints.max_self_heating, "--max-self-heating", "(K)");
+  positive(o.constraints.max_current, "--max-current", "(A)");
+  positive(o.constraints.max_power, "--max-power", "(W)");
+  positive(o.constraints.min_span, "--min-span", "(a fraction of the ADC span, up to 1)");
+  positive(o.constraints.min_sensitivity, "--min-sensitivity", "(LSB/K)");
+  if (o.constraints.min_span && *o.constraints.min_span > 1.0)
+    reject(option("--min-span"), number_text(*o.constraints.min_span), "must be a fraction of the ADC span, at most 1 (100 %)");
+}
+
+Context make_context(const Scenario& scenario, const PickOptions& options) {
+  check_options(options);
+  Context ctx;
+  ctx.options = options;
+  ctx.base = scenario;
+  ctx.pair = options.parallel;
+  {
+    // Validate the scenario as given before changing it, so that its own
+    // mistakes are reported against its own keys.
+    const Design given = build_design(scenario);
+    const Where grade = option("--grade");
+    if (options.tolerance) ctx.base.set("divider.r_fixed_tol", number_text(*options.tolerance), grade);
+    if (options.tempco) ctx.base.set("divider.r_fixed_tempco", number_text(*options.tempco), grade);
+    if (options.parallel) {
+      // The parallel resistor's tolerance: the grade's, else the scenario's,
+      // else (no parallel resistor in the scenario) the fixed resistor's.
+      const double tol = options.tolerance ? *options.tolerance
+                         : given.divider.r_parallel ? given.divider.r_parallel_tol
+                                                    : given.divider.r_fixed_tol;
+      ctx.base.set("divider.r_parallel", "1k", grade);  // a placeholder; every candidate sets its own
+      ctx.base.set("divider.r_parallel_tol", number_text(tol), grade);
+    }
+  }
+  ctx.design = build_design(ctx.base);
+  const Design& d = ctx.design;
+  ctx.range = d.conditions.temperatures();
+  for (double t : ctx.range)
+    if (t >= d.requirement.window_min - window_slack && t <= d.requirement.window_max + window_slack) ctx.window.push_back(t);
+  int threads = options.threads >= 0 ? options.threads : d.montecarlo.threads;
+  if (threads == 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  ctx.threads = threads;
+  ctx.mc_objective_units = default_units(d, options.mc_units, mc_objective_cap);
+  ctx.mc_verify_units = default_units(d, options.mc_units, mc_verify_cap);
+  if (options.values.empty()) {
+    ctx.values = series_values(options.series, options.range_low, options.range_high);
+    if (ctx.values.empty())
+      reject(option("--range"), ohms(options.range_low) + ".." + ohms(options.range_high),
+             "holds no " + std::string(to_string(options.series)) + " value; widen the range or choose a finer series");
+  } else {
+    ctx.values = options.values;
+    std::sort(ctx.values.begin(), ctx.values.end());
+    ctx.values.erase(std::unique(ctx.values.begin(), ctx.values.end()), ctx.values.end());
+  }
+  return ctx;
+}
+
+// The pairs of the reduced search: a coarse grid (the E12 values among the
+// candidates), then every candidate pair within one coarse step of the best
+// coarse pairs.
+std::vector<Candidate> coarse_pairs(const std::vector<double>& coarse) {
+  std::vector<Candidate> out;
+  for (double rf : coarse) {
+    out.push_back({rf, std::nullopt});
+    for (double rp : coarse) out.push_back({rf, rp});
+  }
+  return out;
+}
+
+// The candidates within one coarse step of x on the coarse grid.
+std::vector<double> around(const std::vector<double>& values, const std::vector<double>& coarse, double x) {
+  const auto it = std::lower_bound(coarse.begin(), coarse.end(), x);
+  const double lo = it == coarse.begin() ? values.front() : *(it - 1);
+  const double hi = (it == coarse.end() || it + 1 == coarse.end()) ? values.back() : *(it + 1);
+  std::vector<double> out;
+  for (double v : values)
+    if (v >= lo && v <= hi) out.push_back(v);
+  return out;
+}
+
+std::vector<State> screen_all(const std::vector<Candidate>& cands, const Context& ctx,
+                              const std::function<void(double)>& progress, std::size_t progress_total) {
+  std::vector<State> st(cands.size());
+  std::atomic<std::size_t> done{0};
+  std::mutex m;
+  parallel_for(cands.size(), ctx.threads, [&](std::size_t i) {
+    st[i].c = cands[i];
+    screen(st[i], ctx);
+    const std::size_t k = ++done;
+    if (progress) {
+      const std::lock_guard<std::mutex> lock(m);
+      progress(static_cast<double>(k) / static_cast<double>(std::max<std::size_t>(progress_total, 1)));
+    }
+  });
+  return st;
+}
+
+// The candidates either side of x: the series neighbours, or the nearest
+// given values.
+std::pair<std::optional<double>, std::optional<double>> neighbours(const Context& ctx, double x) {
+  if (ctx.options.values.empty()) {
+    const SeriesBracket b = series_bracket(ctx.options.series, x);
+    return {b.below, b.above};
+  }
+  std::optional<double> below, above;
+  for (double v : ctx.values) {
+    if (v <= x * (1.0 + 1e-12)) below = v;
+    if (v >= x * (1.0 - 1e-12) && !above) above = v;
+  }
+  return {below, above};
+}
+
+}  // namespace
+
+std::string_view to_string(Objective o) {
+  switch (o) {
+    case Objective::worst_case: return "worst-case";
+    case Objective::linear: return "linear";
+    case Objective::monte_carlo: return "monte-carlo";
+    case Objective::sensitivity: return "sensitivity";
+  }
+  return "worst-case";
+}
+
+std::optional<Objective> objective_from_name(std::string_view name) {
+  for (Objective o : {Objective::worst_case, Objective::linear, Objective::monte_carlo, Objective::sensitivity})
+    if (name == to_string(o)) return o;
+  return std::nullopt;
+}
+
+std::string_view objective_names() { return "worst-case | linear | monte-carlo | sensitivity"; }
+
+std::optional<double> linearising_resistor(double r1, double r2, double r3) {
+  const double den = r1 + r3 - 2.0 * r2;
+  const double num = r1 * r2 + r2 * r3 - 2.0 * r1 * r3;
+  if (den == 0.0) return std::nullopt;
+  const double r = num / den;
+  if (!(r > 0.0) || !std::isfinite(r)) return std::nullopt;
+  return r;
+}
+
+std::optional<double> nominal_branch_resistance(const Design& d, double t_celsius) {
+  const auto l = nominal_ln_resistance(d.sensor, t_celsius + kelvin_offset);
+  if (!l) return std::nullopt;
+  return branch_resistance(std::exp(*l), d.sensor.lead_resistance, d.divider.r_parallel);
+}
+
+PickResult pick(const Scenario& scenario, const PickOptions& options) {
+  const Context ctx = make_context(scenario, options);
+  const PickOptions& o = ctx.options;
+  PickResult result;
+  result.objective = o.objective;
+  result.pair_search = ctx.pair;
+  result.tolerance = ctx.design.divider.r_fixed_tol;
+  result.tempco = ctx.design.divider.r_fixed_tempco;
+  result.window_min = ctx.design.requirement.window_min;
+  result.window_max = ctx.design.requirement.window_max;
+  result.mc_objective_units = o.objective == Objective::monte_carlo ? ctx.mc_objective_units : 0;
+  result.mc_verify_units = o.verify > 0 ? ctx.mc_verify_units : 0;
+  result.candidates_label = o.values.empty() ? std::string(to_string(o.series)) + ", " + ohms(o.range_low) + ".." + ohms(o.range_high)
+                                             : std::to_string(ctx.values.size()) + " given value" + (ctx.values.size() == 1 ? "" : "s");
+  const std::size_t wanted = static_cast<std::size_t>(std::max(o.top, 2));
+
+  // Progress: the screening pass, then the full evaluations (worst case).
+  std::function<void(double)> screen_progress;
+  if (o.progress) screen_progress = [&](double f) { o.progress(0.8 * std::min(f, 1.0)); };
+
+  std::vector<State> st;
+  if (!ctx.pair) {
+    std::vector<Candidate> cands;
+    for (double v : ctx.values) cands.push_back({v, ctx.design.divider.r_parallel});
+    st = screen_all(cands, ctx, screen_progress, cands.size());
+    result.evaluated_in_full = settle(st, wanted, false, ctx);
+  } else if (ctx.values.size() <= full_pair_search_limit) {
+    std::vector<Candidate> cands;
+    for (double rf : ctx.values) {
+      cands.push_back({rf, std::nullopt});
+      for (double rp : ctx.values) cands.push_back({rf, rp});
+    }
+    st = screen_all(cands, ctx, screen_progress, cands.size());
+    result.evaluated_in_full = settle(st, wanted, false, ctx);
+  } else {
+    result.reduced_pair_search = true;
+    std::vector<double> coarse;
+    for (double v : ctx.values)
+      if (const auto s = coarsest_series(v); s && *s == Series::e12) coarse.push_back(v);
+    if (coarse.size() < 2) coarse = {ctx.values.front(), ctx.values.back()};
+    const std::vector<Candidate> first = coarse_pairs(coarse);
+    st = screen_all(first, ctx, screen_progress, 2 * first.size());
+    result.evaluated_in_full = settle(st, pair_refine_count, false, ctx);
+    std::vector<std::size_t> idx;
+    for (std::size_t i = 0; i < st.size(); ++i)
+      if (st[i].exact) idx.push_back(i);
+    std::sort(idx.begin(), idx.end(), [&](std::size_t a, std::size_t b) { return exact_key(st[a], false) < exact_key(st[b], false); });
+    std::set<Candidate> seen(first.begin(), first.end());
+    std::vector<Candidate> refine;
+    for (std::size_t k = 0; k < std::min(pair_refine_count, idx.size()); ++k) {
+      const Candidate& best = st[idx[k]].c;
+      const std::vector<double> rfs = around(ctx.values, coarse, best.r_fixed);
+      // "none" sits beyond the largest value: its neighbours are the top of the list.
+      std::vector<double> rps = best.r_parallel ? around(ctx.values, coarse, *best.r_parallel)
+                                                : around(ctx.values, coarse, ctx.values.back());
+      std::vector<std::optional<double>> parallels(rps.begin(), rps.end());
+      if (!best.r_parallel) parallels.push_back(std::nullopt);
+      for (double rf : rfs)
+        for (const auto& rp : parallels) {
+          const Candidate c{rf, rp};
+          if (seen.insert(c).second) refine.push_back(c);
+        }
+    }
+    std::vector<State> more = screen_all(refine, ctx, nullptr, refine.size());
+    for (auto& s : more) st.push_back(std::move(s));
+    result.evaluated_in_full += settle(st, wanted, false, ctx);
+  }
+  result.candidates = st.size();
+
+  // The ranking: feasible first by objective, then the rejected ones.
+  std::vector<std::size_t> idx;
+  for (std::size_t i = 0; i < st.size(); ++i)
+    if (st[i].exact) idx.push_back(i);
+  std::sort(idx.begin(), idx.end(), [&](std::size_t a, std::size_t b) { return exact_key(st[a], false) < exact_key(st[b], false); });
+  for (const auto& s : st) result.within_constraints += s.constraints.empty();
+  const std::size_t shown = std::min<std::size_t>(static_cast<std::size_t>(o.top), idx.size());
+  const std::size_t runner = std::min<std::size_t>(2, idx.size());
+  const std::size_t keep = std::max(shown, runner);
+
+  // Fill the figures the objective did not need, for the rows shown.
+  parallel_for(keep, ctx.threads, [&](std::size_t k) {
+    State& s = st[idx[k]];
+    if (!s.row.wc_max_abs && o.objective != Objective::worst_case) {
+      const WindowBand wc = worst_case_band(s.built->chain, ctx.window, CornerMethod::automatic, 1);
+      if (wc.status == Status::ok) s.row.wc_max_abs = wc.max_abs;
+    }
+  });
+  for (std::size_t k = 0; k < keep; ++k) result.rows.push_back(st[idx[k]].row);
+  if (result.rows.size() >= 2 && std::isfinite(st[idx[0]].score) && std::isfinite(st[idx[1]].score))
+    result.margin = st[idx[1]].score - st[idx[0]].score;
+
+  // Monte Carlo re-check of the top rows.
+  const std::size_t verify = std::min<std::size_t>(static_cast<std::size_t>(o.verify), result.rows.size());
+  for (std::size_t k = 0; k < verify; ++k) {
+    result.rows[k].verify = mc_window(st[idx[k]].built->chain, ctx.window, ctx.mc_verify_units, ctx.threads);
+  }
+  result.rows.resize(shown);
+
+  if (o.guidance && !idx.empty()) {
+    Guidance& g = result.guidance;
+    const Design& d = ctx.design;
+    const std::optional<double> rp = st[idx[0]].c.r_parallel;
+    Design at_rp = d;
+    at_rp.divider.r_parallel = rp;
+    g.t_centre = 0.5 * (d.requirement.window_min + d.requirement.window_max);
+    g.max_sensitivity.r = nominal_branch_resistance(at_rp, g.t_centre);
+    const auto r1 = nominal_branch_resistance(at_rp, d.requirement.window_min);
+    const auto r3 = nominal_branch_resistance(at_rp, d.requirement.window_max);
+    if (r1 && g.max_sensitivity.r && r3) g.linearising.r = linearising_resistor(*r1, *g.max_sensitivity.r, *r3);
+
+    // The best candidate by the objective alone, and Brent between its
+    // neighbours (with the same parallel resistor).
+    result.evaluated_in_full += settle(st, 1, true, ctx);
+    std::size_t best = idx[0];
+    for (std::size_t i = 0; i < st.size(); ++i)
+      if (st[i].exact && exact_key(st[i], true) < exact_key(st[best], true)) best = i;
+    const Candidate& bc = st[best].c;
+    if (std::isfinite(st[best].score)) {
+      std::vector<double> line;
+      for (const auto& s : st)
+        if (s.c.r_parallel == bc.r_parallel) line.push_back(s.c.r_fixed);
+      std::sort(line.begin(), line.end());
+      const auto it = std::lower_bound(line.begin(), line.end(), bc.r_fixed);
+      double lo = it == line.begin() ? (o.values.empty() ? o.range_low : bc.r_fixed) : *(it - 1);
+      double hi = it + 1 == line.end() ? (o.values.empty() ? o.range_high : bc.r_fixed) : *(it + 1);
+      if (hi > lo) {
+        int evaluations = 0;
+        auto f = [&](double x) {
+          ++evaluations;
+          const Scored s = score_candidate(ctx, {std::exp(x), bc.r_parallel});
+          return std::isfinite(s.score) ? s.score : brent_penalty;
+        };
+        std::uintmax_t iterations = brent_max_iterations;
+        const auto [x, fx] = boost::math::tools::brent_find_minima(f, std::log(lo), std::log(hi), brent_bits, iterations);
+        g.evaluations = evaluations;
+        if (fx < brent_penalty) {
+          g.optimum.r = std::exp(x);
+          g.optimum.objective = maximised(o.objective) ? -fx : fx;
+        }
+      }
+    }
+    // Neighbours of each guidance value, with their objective values (from
+    // the ranking where it evaluated them, else evaluated here).
+    std::map<Candidate, std::optional<double>> known;
+    for (const auto& s : st)
+      if (s.exact) known[s.c] = std::isfinite(s.score) ? std::optional<double>(s.row.objective) : std::nullopt;
+    std::vector<std::pair<GuidanceValue*, bool>> values{{&g.optimum, true}, {&g.max_sensitivity, false}, {&g.linearising, false}};
+    std::vector<Candidate> missing;
+    for (auto& [gv, with_objective] : values) {
+      if (!gv->r) continue;
+      std::tie(gv->below, gv->above) = neighbours(ctx, *gv->r);
+      for (const auto& n : {gv->below, gv->above})
+        if (n && !known.count({*n, bc.r_parallel})) missing.push_back({*n, bc.r_parallel});
+    }
+    std::sort(missing.begin(), missing.end());
+    missing.erase(std::unique(missing.begin(), missing.end(),
+                              [](const Candidate& a, const Candidate& b) { return !(a < b) && !(b < a); }),
+                  missing.end());
+    std::vector<Scored> scored(missing.size());
+    // One candidate at a time with every thread on its temperatures.
+    for (std::size_t i = 0; i < missing.size(); ++i) scored[i] = score_candidate(ctx, missing[i]);
+    for (std::size_t i = 0; i < missing.size(); ++i)
+      known[missing[i]] = std::isfinite(scored[i].score) ? std::optional<double>(scored[i].value) : std::nullopt;
+    for (auto& [gv, with_objective] : values) {
+      if (gv->below) gv->below_objective = known[{*gv->below, bc.r_parallel}];
+      if (gv->above) gv->above_objective = known[{*gv->above, bc.r_parallel}];
+    }
+  }
+  if (o.progress) o.progress(1.0);
+  return result;
+}
+
+double best_fixed_resistor(const Scenario& scenario, const PickOptions& options) {
+  PickOptions o = options;
+  o.top = 1;
+  o.verify = 0;
+  o.guidance = false;
+  return pick(scenario, o).winner().r_fixed;
+}
+
+std::optional<double> objective_at(const Scenario& scenario, const PickOptions& options, double r_fixed) {
+  if (!(r_fixed > 0.0)) reject(option("r_fixed"), number_text(r_fixed), "must be a resistance > 0");
+  PickOptions o = options;
+  o.parallel = false;
+  const Context ctx = make_context(scenario, o);
+  const Scored s = score_candidate(ctx, {r_fixed, ctx.design.divider.r_parallel});
+  if (!std::isfinite(s.score)) return std::nullopt;
+  return s.value;
+}
+
+// --- Command-line readers -------------------------------------------------
+
+ResistanceRange parse_range(std::string_view text, const Where& where) {
+  const auto dots = text.find("..");
+  if (dots == std::string_view::npos)
+    reject(where, text, "must be LOW..HIGH in ohms, engineering notation (e.g. 1k..1M)");
+  ResistanceRange r;
+  r.low = parse_quantity(text.substr(0, dots), Quantity::resistance, where);
+  r.high = parse_quantity(text.substr(dots + 2), Quantity::resistance, where);
+  if (!(r.low > 0.0 && r.high > r.low)) reject(where, text, "must be LOW..HIGH with 0 < LOW < HIGH (e.g. 1k..1M)");
+  return r;
+}
+
+std::vector<double> parse_values(std::string_view text, const Where& where) {
+  std::vector<double> out;
+  std::size_t start = 0;
+  for (;;) {
+    const auto comma = text.find(',', start);
+    const std::string_view item = text.substr(start, comma == std::string_view::npos ? std::string_view::npos : comma - start);
+    const double v = parse_quantity(item, Quantity::resistance, where);
+    if (!(v > 0.0)) reject(where, text, "every value must be a resistance > 0 (e.g. 4k7,10k,22k)");
+    out.push_back(v);
+    if (comma == std::string_view::npos) break;
+    start = comma + 1;
+  }
+  return out;
+}
+
+Series parse_series(std::string_view text, const Where& where) {
+  const auto s = series_from_name(text);
+  if (!s) reject(where, text, "must be one of: " + std::string(series_names()));
+  return *s;
+}
+
+Objective parse_objective(std::string_view text, const Where& where) {
+  const auto o = objective_from_name(text);
+  if (!o) reject(where, text, "must be one of: " + std::string(objective_names()));
+  return *o;
+}
+
+Grade parse_grade(std::string_view text, const Where& where) {
+  Grade g;
+  const auto comma = text.find(',');
+  g.tolerance = parse_quantity(text.substr(0, comma), Quantity::ratio, where);
+  if (!(g.tolerance >= 0.0 && g.tolerance < 1.0))
+    reject(where, text, "the tolerance must be from 0 up to (not including) 100 % (e.g. 0.1% or 0.1%,25ppm)");
+  if (comma != std::string_view::npos) {
+    g.tempco = parse_quantity(text.substr(comma + 1), Quantity::tempco, where);
+    if (!(*g.tempco >= 0.0 && *g.tempco < 0.01))
+      reject(where, text, "the tempco must be from 0 up to (not including) 10000 ppm/K (e.g. 0.1%,25ppm)");
+  }
+  return g;
+}
+
+double parse_limit(std::string_view text, Quantity q, const Where& where) {
+  const double v = parse_quantity(text, q, where);
+  if (!(v > 0.0)) reject(where, text, "must be > 0");
+  return v;
+}
+
+}  // namespace thermargin
