@@ -149,6 +149,10 @@ TEST(BudgetFigures, AreFourChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
   // The window strip and the limit lines come from the requirement.
   EXPECT_EQ(series(figures[0], "window").x, (std::vector<double>{d.requirement.window_min, d.requirement.window_max}));
   EXPECT_EQ(series(figures[0], "limit").y, svg::values(std::vector<double>{-0.5, 0.5}));
+  // The bands fit within ±0.6 K here, so the limit lines sit inside the plot, not on its frame.
+  ASSERT_TRUE(figures[0].chart.y.min && figures[0].chart.y.max);
+  EXPECT_LT(*figures[0].chart.y.min, -0.5);
+  EXPECT_GT(*figures[0].chart.y.max, 0.5);
 }
 
 TEST(BudgetFigures, ContributorSharesAreTheSquaredContributionsOverTheCombinedVariance) {

@@ -233,6 +233,18 @@ Figure error_figure(const Design& d, const Budget& b) {
                                  return p.nominal.error;
                                }),
                                slot(0)));
+  // Keep the limit lines inside the plot, clear of its frame, whenever the
+  // bands allow; bands beyond them take the automatic range, so they show.
+  const double limit = d.requirement.max_error, room = 1.2 * limit;
+  bool inside = true;
+  for (const auto& s : c.series)
+    if (s.kind == svg::Kind::line || s.kind == svg::Kind::band)
+      for (const auto* v : {&s.y, &s.y_high})
+        for (const auto& y : *v) inside = inside && (!y || std::fabs(*y) <= room);
+  if (inside && limit > 0.0) {
+    c.y.min = -room;
+    c.y.max = room;
+  }
   return {"error-bands.svg",
           "Error bands across the range. The requirement is met where every band stays between the limit lines "
           "inside the window.",
