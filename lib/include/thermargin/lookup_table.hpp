@@ -6,7 +6,8 @@
 // header or CSV. Between its points the firmware interpolates linearly; the
 // error of that secant on a smooth curve is at most h²·max|f''|/8 over an
 // interval of width h (the linear-interpolation error bound of numerical
-// analysis texts, e.g. Burden & Faires, Numerical Analysis, §3.1), plus the
+// analysis texts such as Burden & Faires, Numerical Analysis, ch. 3; cited
+// from memory), plus the
 // rounding of the stored integers (half a storage unit). The error reported
 // here is not that bound but the measured difference at each code.
 // docs/table.md describes the construction, the search and the report.
