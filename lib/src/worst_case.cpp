@@ -2,7 +2,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <atomic>
 #include <limits>
+#include <thread>
 
 #include "thermargin/linear_budget.hpp"
 
@@ -140,8 +142,10 @@ CornerRange evaluate_corner(const Chain& chain, const Deviations& dev, double t,
 
 void fold(WorstCasePoint& p, const CornerRange& c) {
   if (!c.ok) {
+    // The lowest status code is kept, so the report does not depend on the
+    // order in which corners were visited.
     ++p.failed_corners;
-    if (p.failure == Status::ok) p.failure = c.failure;
+    if (p.failure == Status::ok || c.failure < p.failure) p.failure = c.failure;
     return;
   }
   p.low = p.any_ok ? std::min(p.low, c.low) : c.low;
@@ -261,16 +265,46 @@ WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures
   const int n = wc.active_inputs;
   if (!wc.directed) {
     wc.corners = 1LL << n;
-    for (long long mask = 0; mask < wc.corners; ++mask) {
-      Deviations dev{};
-      for (int k = 0; k < n; ++k) {
-        const auto& in = d.inputs[static_cast<std::size_t>(k)];
-        dev[static_cast<std::size_t>(in.source)] = (mask >> k & 1) ? in.bound : -in.bound;
+    // Threads over corners, each folding into its own points; min and max
+    // are exact, so the merge does not depend on how corners were shared.
+    int threads = d.montecarlo.threads > 0 ? d.montecarlo.threads
+                                           : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+    threads = static_cast<int>(std::min<long long>(threads, std::max<long long>(1, wc.corners / 64)));
+    std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
+    std::atomic<long long> next{0};
+    auto work = [&](std::size_t w) {
+      constexpr long long chunk = 16;
+      for (;;) {
+        const long long begin = next.fetch_add(chunk);
+        if (begin >= wc.corners) break;
+        for (long long mask = begin; mask < std::min(begin + chunk, wc.corners); ++mask) {
+          Deviations dev{};
+          for (int k = 0; k < n; ++k) {
+            const auto& in = d.inputs[static_cast<std::size_t>(k)];
+            dev[static_cast<std::size_t>(in.source)] = (mask >> k & 1) ? in.bound : -in.bound;
+          }
+          Status cal_failure = Status::ok;
+          const auto cals = corner_calibrations(chain, dev, iv, cal_failure);
+          for (std::size_t i = 0; i < nt; ++i)
+            fold(partial[w][i], corner_range(chain, dev, temperatures[i], iv, cals, cal_failure));
+        }
       }
-      Status cal_failure = Status::ok;
-      const auto cals = corner_calibrations(chain, dev, iv, cal_failure);
-      for (std::size_t i = 0; i < nt; ++i) fold(wc.points[i], corner_range(chain, dev, temperatures[i], iv, cals, cal_failure));
-    }
+    };
+    std::vector<std::thread> pool;
+    for (std::size_t w = 1; w < partial.size(); ++w) pool.emplace_back(work, w);
+    work(0);
+    for (auto& th : pool) th.join();
+    for (const auto& part : partial)
+      for (std::size_t i = 0; i < nt; ++i) {
+        WorstCasePoint& p = wc.points[i];
+        const WorstCasePoint& q = part[i];
+        p.failed_corners += q.failed_corners;
+        if (q.failure != Status::ok && (p.failure == Status::ok || q.failure < p.failure)) p.failure = q.failure;
+        if (!q.any_ok) continue;
+        p.low = p.any_ok ? std::min(p.low, q.low) : q.low;
+        p.high = p.any_ok ? std::max(p.high, q.high) : q.high;
+        p.any_ok = true;
+      }
   } else {
     wc.corners = 2;
     const LinearBudget lb = linear_budget(chain, temperatures);

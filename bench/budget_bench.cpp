@@ -1,0 +1,53 @@
+// Deterministic engines on 201 temperatures: the worst case (every corner
+// of 12 active inputs, 4096 corners) and the linear budget, and a whole
+// `budget` without Monte Carlo on the built-in default design.
+#include <benchmark/benchmark.h>
+
+#include "thermargin/budget.hpp"
+#include "thermargin/scenario.hpp"
+
+namespace {
+
+using namespace thermargin;
+
+Design twelve_inputs() {
+  // The default design (9 active inputs) plus leakage, a parallel resistor's
+  // tolerance and an offset calibration's reference: 12.
+  Scenario s;
+  const Where w{Origin::command_line, "", 0, ""};
+  s.set("adc.leakage", "20n", w);
+  s.set("divider.r_parallel", "100k", w);
+  s.set("divider.r_parallel_tol", "1%", w);
+  s.set("firmware.calibration", "offset", w);
+  s.set("firmware.calibration_at", "25", w);
+  return build_design(s);
+}
+
+void BM_WorstCaseTwelveInputs(benchmark::State& state) {
+  const Design d = twelve_inputs();
+  const Chain chain(d);
+  const auto temps = d.conditions.temperatures();
+  for (auto _ : state) benchmark::DoNotOptimize(worst_case(chain, temps).points.data());
+  state.counters["inputs"] = static_cast<double>(d.inputs.size());
+  state.counters["temperatures"] = static_cast<double>(temps.size());
+}
+BENCHMARK(BM_WorstCaseTwelveInputs)->Unit(benchmark::kMillisecond);
+
+void BM_LinearBudgetTwelveInputs(benchmark::State& state) {
+  const Design d = twelve_inputs();
+  const Chain chain(d);
+  const auto temps = d.conditions.temperatures();
+  for (auto _ : state) benchmark::DoNotOptimize(linear_budget(chain, temps).points.data());
+}
+BENCHMARK(BM_LinearBudgetTwelveInputs)->Unit(benchmark::kMillisecond);
+
+void BM_BudgetDefaultDesignWithoutMonteCarlo(benchmark::State& state) {
+  const Design d = build_design(Scenario());
+  const Chain chain(d);
+  BudgetOptions o;
+  o.monte_carlo = false;
+  for (auto _ : state) benchmark::DoNotOptimize(run_budget(chain, o).points.data());
+}
+BENCHMARK(BM_BudgetDefaultDesignWithoutMonteCarlo)->Unit(benchmark::kMillisecond);
+
+}  // namespace
