@@ -760,6 +760,11 @@ PickResult pick(const Scenario& scenario, const PickOptions& options) {
       const WindowBand wc = worst_case_band(s.built->chain, ctx.window, CornerMethod::automatic, 1);
       if (wc.status == Status::ok) s.row.wc_max_abs = wc.max_abs;
     }
+    if (!s.row.rss_max_abs && s.row.dominant.empty()) {
+      const LinearWindow lin = linear_window(linear_budget(s.built->chain, ctx.window));
+      if (lin.band.status == Status::ok) s.row.rss_max_abs = lin.band.max_abs;
+      s.row.dominant = lin.dominant;
+    }
   });
   for (std::size_t k = 0; k < keep; ++k) result.rows.push_back(st[idx[k]].row);
   if (result.rows.size() >= 2 && std::isfinite(st[idx[0]].score) && std::isfinite(st[idx[1]].score))
