@@ -21,6 +21,7 @@ void usage(std::ostream& out) {
          "                  the contributors and the verdict against the requirement\n"
          "  fit DATA.csv    fit beta and Steinhart-Hart coefficients to R-T points; residuals, recommendation, scenario lines\n"
          "  table [FILE]    the firmware's lookup table (C header or CSV) with its interpolation error and size\n"
+         "  pick [FILE]     rank preferred fixed-resistor values (E12..E192) by worst case, band or sensitivity\n"
          "  check [FILE]    read and validate a scenario; print every resolved value, its unit and origin\n\n"
          "With no FILE the built-in default design is analysed (scenarios/default.ini holds the same values).\n"
          "Every scenario key is also an option: --divider.r_fixed=4k7 overrides the file.\n"
@@ -45,6 +46,7 @@ int main(int argc, char** argv) {
     if (command == "check") return thermargin::cli::run_check(argc - 1, argv + 1);
     if (command == "fit") return thermargin::cli::run_fit(argc - 1, argv + 1);
     if (command == "table") return thermargin::cli::run_table(argc - 1, argv + 1);
+    if (command == "pick") return thermargin::cli::run_pick(argc - 1, argv + 1);
     std::cerr << "thermargin: unknown command '" << command << "'; accepted: budget, check, fit, table (see thermargin --help)\n";
     return 2;
   } catch (const thermargin::input_error& e) {
