@@ -88,7 +88,7 @@ std::string cli() { return quote(THERMARGIN_CLI); }
 
 Outcome budget(const std::string& args, const fs::path& dir) { return run(cli() + " budget " + args, dir); }
 
-// Reads the page and the JSON with the outside reader; "ok: 4 charts\n" when they agree.
+// Reads the page and the JSON with the outside reader; "ok: 5 charts\n" when they agree.
 std::string check_report(const fs::path& html, const fs::path& json, const fs::path& plots = {}) {
   std::string cmd = std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " " + quote(html.string()) + " " +
                     quote(json.string());
@@ -124,7 +124,7 @@ const svg::Series& series(const Figure& f, const std::string& name) {
 
 // ------------------------------------------------------------------ the charts in the library
 
-TEST(BudgetFigures, AreFourChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
+TEST(BudgetFigures, AreFiveChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
   const Scenario s = scenario("fermentation_probe.ini", {{"montecarlo.units", "2000"}});
   const Design d = build_design(s);
   const Budget b = budget_of(d);
@@ -132,10 +132,12 @@ TEST(BudgetFigures, AreFourChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
   std::vector<std::string> files;
   for (const auto& f : figures) files.push_back(f.file);
   EXPECT_EQ(files, (std::vector<std::string>{"error-bands.svg", "contributors.svg", "sensitivity.svg",
-                                             "self-heating.svg"}));
+                                             "lsb-size.svg", "self-heating.svg"}));
   const auto& nominal = series(figures[0], "nominal");
   const auto& wc = series(figures[0], "wc");
-  const auto& self = series(figures[3], "self_heating");
+  const auto& sensitivity = series(figures[2], "abs_sensitivity");
+  const auto& lsb = series(figures[3], "lsb_in_k");
+  const auto& self = series(figures[4], "self_heating");
   ASSERT_EQ(nominal.y.size(), b.points.size());
   for (std::size_t i = 0; i < b.points.size(); ++i) {
     const auto& p = b.points[i];
@@ -145,6 +147,8 @@ TEST(BudgetFigures, AreFourChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
     EXPECT_EQ(*wc.y[i], p.wc.low);
     EXPECT_EQ(*wc.y_high[i], p.wc.high);
     EXPECT_EQ(*self.y[i], p.nominal.self_heating);
+    EXPECT_EQ(*sensitivity.y[i], std::fabs(p.nominal.sensitivity));
+    EXPECT_EQ(*lsb.y[i], p.nominal.lsb_in_k);
   }
   // The window strip and the limit lines come from the requirement.
   EXPECT_EQ(series(figures[0], "window").x, (std::vector<double>{d.requirement.window_min, d.requirement.window_max}));
@@ -245,7 +249,7 @@ TEST_P(EveryScenario, ReportIsWellFormedAndPlotsExactlyTheJsonNumbers) {
                            quote((dir.path / "slides").string()),
                        dir.path);
   ASSERT_EQ(r.status, 0) << r.err;
-  EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json", dir.path / "slides"), "ok: 4 charts\n");
+  EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json", dir.path / "slides"), "ok: 5 charts\n");
 }
 
 std::vector<std::string> scenario_files() {
@@ -272,7 +276,7 @@ TEST(BudgetReportCli, SaturationAndNoMonteCarloStillMatchTheJson) {
                              quote((dir.path / "review.html").string()),
                          dir.path);
     ASSERT_EQ(r.status, 0) << r.err;
-    EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json"), "ok: 4 charts\n") << extra;
+    EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json"), "ok: 5 charts\n") << extra;
   }
 }
 
@@ -292,7 +296,7 @@ TEST(BudgetReportCli, ScenarioTitleWithMarkupAppearsEscaped) {
   EXPECT_NE(html.find("&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt; Tom &amp; Jerry&#39;s &quot;probe&quot;"),
             std::string::npos);
   // The outside reader finds the title, unescaped, as the heading (and no script).
-  EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json"), "ok: 4 charts\n");
+  EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json"), "ok: 5 charts\n");
 }
 
 TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {

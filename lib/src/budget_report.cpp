@@ -283,22 +283,43 @@ Figure contributor_figure(const Budget& b) {
           std::move(c)};
 }
 
+// Two linear charts rather than one on a log axis: svg_chart draws a log10
+// y axis with a linear mapping, so on it the two curves would be misplaced.
 Figure sensitivity_figure(const Design& d, const Budget& b) {
   const auto t = temperatures(b);
   svg::Chart c;
-  c.title = "ADC sensitivity and the temperature size of one LSB";
+  c.title = "ADC sensitivity";
   c.x = kTemperatureAxis;
-  c.y = axis("LSB per K  \u00b7  K per LSB (log)", svg::Scale::log10);
-  c.description = "ADC counts per kelvin of the nominal chain, and its reciprocal: the temperature step of one count.";
+  c.y = axis("|Sensitivity| (LSB/K)");
+  c.y.min = 0.0;
+  c.description = "ADC counts per kelvin of the nominal chain.";
+  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
   // The magnitude: the sign only says which way the code runs (falling for
-  // an NTC at the low side), and a log axis needs positive values.
-  c.series.push_back(svg::line("abs_sensitivity", "|Sensitivity| (LSB/K)", t,
+  // an NTC at the low side of the divider).
+  c.series.push_back(svg::line("abs_sensitivity", "|Sensitivity|", t,
                                column(b, [](const BudgetPoint& p) -> std::optional<double> {
                                  if (!nominal_ok(p) || p.nominal.sensitivity == 0.0) return std::nullopt;
                                  return std::fabs(p.nominal.sensitivity);
                                }),
                                slot(0)));
-  c.series.push_back(svg::line("lsb_in_k", "Size of 1 LSB (K)", t,
+  bool falling = false;
+  for (const auto& p : b.points) falling = falling || (nominal_ok(p) && p.nominal.sensitivity < 0.0);
+  return {"sensitivity.svg",
+          std::string("Counts per kelvin: the higher, the finer the ADC sees the temperature") +
+              (falling ? "; the code falls as the temperature rises." : "."),
+          std::move(c)};
+}
+
+Figure lsb_figure(const Design& d, const Budget& b) {
+  const auto t = temperatures(b);
+  svg::Chart c;
+  c.title = "Temperature size of one LSB";
+  c.x = kTemperatureAxis;
+  c.y = axis("1 LSB (K)");
+  c.y.min = 0.0;
+  c.description = "The temperature step of one ADC count (the reciprocal of the sensitivity).";
+  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
+  c.series.push_back(svg::line("lsb_in_k", "Size of 1 LSB", t,
                                column(b, [](const BudgetPoint& p) -> std::optional<double> {
                                  if (!nominal_ok(p) || !std::isfinite(p.nominal.lsb_in_k)) return std::nullopt;
                                  return p.nominal.lsb_in_k;
@@ -307,11 +328,8 @@ Figure sensitivity_figure(const Design& d, const Budget& b) {
   if (d.firmware.resolution > 0.0)
     c.series.push_back(
         svg::reference("resolution", "output resolution " + kelvin(d.firmware.resolution, 4), {d.firmware.resolution}));
-  bool falling = false;
-  for (const auto& p : b.points) falling = falling || (nominal_ok(p) && p.nominal.sensitivity < 0.0);
-  return {"sensitivity.svg",
-          std::string("Counts per kelvin (higher is better) and the kelvin one count stands for (lower is better)") +
-              (falling ? "; the code falls as the temperature rises." : "."),
+  return {"lsb-size.svg",
+          "The kelvin one count stands for: the smallest step the reading can take before averaging and rounding.",
           std::move(c)};
 }
 
@@ -449,6 +467,7 @@ std::vector<Figure> budget_figures(const Design& design, const Budget& budget) {
   f.push_back(error_figure(design, budget));
   f.push_back(contributor_figure(budget));
   f.push_back(sensitivity_figure(design, budget));
+  f.push_back(lsb_figure(design, budget));
   f.push_back(self_heating_figure(design, budget));
   return f;
 }
@@ -501,8 +520,9 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
 
   doc.heading("Sensitivity");
   doc.chart(figures[2].chart, "Figure 3. " + figures[2].caption);
-  doc.heading("Self-heating");
   doc.chart(figures[3].chart, "Figure 4. " + figures[3].caption);
+  doc.heading("Self-heating");
+  doc.chart(figures[4].chart, "Figure 5. " + figures[4].caption);
 
   status_block(doc, b);
   inputs_block(doc, d, scenario);

@@ -13,7 +13,8 @@ with xml.etree, then compares every plotted series with the numbers of
                 exactly over the temperatures that cannot be read
   contributors  each main source's share 100 * contribution^2 / u_c^2 (%),
                 sources ranked as in window.contributors, "others" the rest
-  sensitivity   |sensitivity| and lsb_in_k
+  sensitivity   |sensitivity|
+  lsb-size      lsb_in_k
   self-heating  self_heating
 
 A value is expected exactly where the JSON has the number and nowhere else,
@@ -36,7 +37,7 @@ SVG = "{http://www.w3.org/2000/svg}"
 REL_TOL = 2e-8   # the page writes %.9g; JSON holds full doubles
 ABS_TOL = 1e-12
 VOID = {"area", "base", "br", "col", "embed", "hr", "img", "input", "link", "meta", "source", "track", "wbr"}
-EXPECTED_FILES = ["error-bands.svg", "contributors.svg", "sensitivity.svg", "self-heating.svg"]
+EXPECTED_FILES = ["error-bands.svg", "contributors.svg", "sensitivity.svg", "lsb-size.svg", "self-heating.svg"]
 
 
 def fail(message):
@@ -222,17 +223,20 @@ def check_contributor_chart(svg, j):
 
 
 def check_sensitivity_chart(svg, j):
-    s = series_map(svg)
-    check_line(s, "abs_sensitivity", j["points"],
+    check_line(series_map(svg), "abs_sensitivity", j["points"],
                lambda p: abs(p["sensitivity"]) if "sensitivity" in p and p["sensitivity"] != 0 else None)
-    check_line(s, "lsb_in_k", j["points"], lambda p: p.get("lsb_in_k"))
+
+
+def check_lsb_chart(svg, j):
+    check_line(series_map(svg), "lsb_in_k", j["points"], lambda p: p.get("lsb_in_k"))
 
 
 def check_self_heating_chart(svg, j):
     check_line(series_map(svg), "self_heating", j["points"], lambda p: p.get("self_heating"))
 
 
-CHECKS = [check_error_chart, check_contributor_chart, check_sensitivity_chart, check_self_heating_chart]
+CHECKS = [check_error_chart, check_contributor_chart, check_sensitivity_chart, check_lsb_chart,
+          check_self_heating_chart]
 
 
 def svg_elements(html):

@@ -34,11 +34,11 @@ struct Figure {
 };
 
 // The budget's charts, in report order: error-bands.svg, contributors.svg,
-// sensitivity.svg, self-heating.svg. Series names (data-name) follow the
-// JSON fields: nominal; wc, rss, mc (bands of wc_low/wc_high, ...); mc_median;
+// sensitivity.svg, lsb-size.svg, self-heating.svg. Series names (data-name)
+// follow the JSON fields: nominal; wc, rss, mc (bands of wc_low/wc_high,
+// ...); limit (the ±max_error lines), window, unreadable_N (hatched strips);
 // the contributors' share lines by source name ("others" for the rest);
-// abs_sensitivity (|sensitivity|), lsb_in_k;
-// self_heating.
+// abs_sensitivity (|sensitivity|); lsb_in_k and resolution; self_heating.
 std::vector<Figure> budget_figures(const Design& design, const Budget& budget);
 
 // The whole HTML page. `scenario` supplies every resolved value with its
