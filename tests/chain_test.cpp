@@ -30,6 +30,8 @@ using Keys = std::vector<std::pair<std::string, std::string>>;
 constexpr double round_trip_tolerance = 1e-9;  // K (model.md §2's solver tolerance; the chain is exact)
 constexpr double voltage_tolerance = 1e-12;    // V, rounding of a few operations on volts
 constexpr double code_relative_tolerance = 1e-13;
+constexpr double lsb_tolerance = 1e-12;   // LSB, a few roundings of numbers near 1000
+constexpr double grid_tolerance = 1e-9;   // K, distance of a rounded output from its grid
 
 Design design_from(const Keys& keys) {
   Scenario s;
@@ -247,7 +249,7 @@ TEST(Adc, StaticTransferHasGainOffsetAndAMidScaleBow) {
   EXPECT_EQ(adc_static(0.0, span, 0.0, 0.0, 1.5), 0.0);
   EXPECT_EQ(adc_static(span, span, 0.0, 0.0, 1.5), span);
   EXPECT_EQ(adc_static(span / 2, span, 0.0, 0.0, 1.5), span / 2 + 1.5);
-  EXPECT_NEAR(adc_static(1000.0, span, 0.002, -2.0, 0.0), 1000.0 * 1.002 - 2.0, 1e-12);
+  EXPECT_NEAR(adc_static(1000.0, span, 0.002, -2.0, 0.0), 1000.0 * 1.002 - 2.0, lsb_tolerance);
 }
 
 TEST(Adc, QuantiserRoundsHalfUpOrTruncates) {
@@ -382,11 +384,11 @@ TEST(Calibration, OutputIsRoundedBeforeTheCalibrationIsApplied) {
   dev[at(Source::calibration_1)] = 0.03;
   const auto k = chain.calibrate(dev, {}, true);
   ASSERT_TRUE(k);
-  EXPECT_NEAR(std::remainder(k->reported[0], 0.5), 0.0, 1e-12);  // the calibration reading was rounded
+  EXPECT_NEAR(std::remainder(k->reported[0], 0.5), 0.0, grid_tolerance);  // the calibration reading was rounded
   const double shift = k->reference[0] - k->reported[0];
   for (double t = -20.0; t <= 80.0; t += 3.7) {
     const double reported = chain.evaluate(dev, t, {}, true).t_reported;
-    EXPECT_NEAR(std::remainder(reported - shift, 0.5), 0.0, 1e-9) << t;
+    EXPECT_NEAR(std::remainder(reported - shift, 0.5), 0.0, grid_tolerance) << t;
   }
 }
 

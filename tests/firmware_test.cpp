@@ -23,6 +23,9 @@ namespace {
 using Keys = std::vector<std::pair<std::string, std::string>>;
 
 constexpr double exact_tolerance = 1e-9;  // K: the same arithmetic in another order
+constexpr double coefficient_tolerance = 1e-15;  // 1/K, Steinhart–Hart coefficients near 1e-4
+constexpr double relative_tolerance = 1e-12;     // one value computed two ways
+constexpr double output_tolerance = 1e-12;       // K, rounding and storage arithmetic on numbers near 20
 
 Design design_from(const Keys& keys) {
   Scenario s;
@@ -108,8 +111,8 @@ TEST(FirmwareConversion, SteinhartHartFittedToABetaCurveIsTheBetaCurve) {
   // C = 0, so the three-point fit reproduces it everywhere.
   const Design d = design_from(ideal({{"firmware.conversion", "steinhart-hart"}}));
   const Firmware fw(d);
-  EXPECT_NEAR(fw.steinhart_hart().b, 1 / 3950.0, 1e-15);
-  EXPECT_NEAR(fw.steinhart_hart().c, 0.0, 1e-15);
+  EXPECT_NEAR(fw.steinhart_hart().b, 1 / 3950.0, coefficient_tolerance);
+  EXPECT_NEAR(fw.steinhart_hart().c, 0.0, coefficient_tolerance);
   const Chain chain(d);
   for (double t = -20.0; t <= 80.0; t += 2.5) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, exact_tolerance) << t;
 }
@@ -123,7 +126,7 @@ TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRang
   const SteinhartHart sh{1.129148e-3, 2.34125e-4, 8.76741e-8};
   const double t1 = kelvin_offset, t2 = 60 + kelvin_offset;
   const double b = (ln_resistance(sh, t1) - ln_resistance(sh, t2)) / (1 / t1 - 1 / t2);
-  EXPECT_NEAR(d.firmware.beta / b, 1.0, 1e-12);
+  EXPECT_NEAR(d.firmware.beta / b, 1.0, relative_tolerance);
   const Chain chain(d);
   EXPECT_NEAR(chain.evaluate(nominal_deviations(), 0.0).error, 0.0, exact_tolerance);
   EXPECT_NEAR(chain.evaluate(nominal_deviations(), 60.0).error, 0.0, exact_tolerance);
@@ -131,12 +134,13 @@ TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRang
 }
 
 TEST(FirmwareConversion, OutputRoundingIsHalfUpToTheResolution) {
+  // docs/model.md §6 step 4: ⌊t/r + ½⌋·r, the same half-up rule as the quantiser (model.md §5).
   const Design d = design_from({{"firmware.resolution", "0.1"}});
   const Firmware fw(d);
-  EXPECT_NEAR(fw.round_output(21.34), 21.3, 1e-12);
-  EXPECT_NEAR(fw.round_output(21.36), 21.4, 1e-12);
-  EXPECT_NEAR(fw.round_output(21.25), 21.3, 1e-12);  // half up
-  EXPECT_NEAR(fw.round_output(-4.25), -4.2, 1e-12);  // half up below zero too
+  EXPECT_NEAR(fw.round_output(21.34), 21.3, output_tolerance);
+  EXPECT_NEAR(fw.round_output(21.36), 21.4, output_tolerance);
+  EXPECT_NEAR(fw.round_output(21.25), 21.3, output_tolerance);  // half up
+  EXPECT_NEAR(fw.round_output(-4.25), -4.2, output_tolerance);  // half up below zero too
   const Design none = design_from({{"firmware.resolution", "0"}});
   EXPECT_EQ(Firmware(none).round_output(21.3456), 21.3456);
 }
@@ -169,7 +173,7 @@ TEST(FirmwareLookupTable, StoresTheExactConversionAsIntegersOfTheUnit) {
   for (std::size_t k = 0; k < table.stored.size(); ++k) {
     const double code = static_cast<double>(table.first_code + table.step * static_cast<std::int64_t>(k));
     EXPECT_EQ(table.stored[k], std::llround(*fw.exact_temperature(code) / 0.01)) << k;
-    EXPECT_NEAR(*fw.temperature(code), static_cast<double>(table.stored[k]) * 0.01, 1e-12) << k;
+    EXPECT_NEAR(*fw.temperature(code), static_cast<double>(table.stored[k]) * 0.01, output_tolerance) << k;
   }
 }
 
@@ -181,7 +185,7 @@ TEST(FirmwareLookupTable, InterpolatesLinearlyBetweenStoredPoints) {
     const double c0 = static_cast<double>(table.first_code + table.step * static_cast<std::int64_t>(k));
     const double a = static_cast<double>(table.stored[k]) * table.unit, b = static_cast<double>(table.stored[k + 1]) * table.unit;
     const double quarter = c0 + 0.25 * static_cast<double>(table.step);
-    EXPECT_NEAR(*fw.temperature(quarter), a + 0.25 * (b - a), 1e-12) << k;
+    EXPECT_NEAR(*fw.temperature(quarter), a + 0.25 * (b - a), output_tolerance) << k;
   }
   EXPECT_FALSE(fw.temperature(static_cast<double>(table.first_code) - 0.5));
   EXPECT_FALSE(fw.temperature(static_cast<double>(table.last_code()) + 0.5));

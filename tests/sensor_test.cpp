@@ -20,6 +20,7 @@ namespace {
 constexpr double ln_r_tolerance = 1e-12;        // ln R: a few roundings of numbers near 10
 constexpr double round_trip_tolerance = 1e-9;   // K
 constexpr double slope_relative_tolerance = 1e-7;  // central difference, h = 1e-3 K
+constexpr double pt1000_digits = 1e-9;           // Ω: 1385.055 is exact (R0·(1 + 100 A + 10⁴ B))
 
 Design design_from(const std::vector<std::pair<std::string, std::string>>& keys) {
   Scenario s;
@@ -65,7 +66,7 @@ TEST(SensorCurve, SlopeAgreesWithCentralDifferenceForEveryModel) {
 TEST(SensorCurve, RtdModelIsTheCallendarVanDusenCurveOfItsR0) {
   // IEC 60751: a Pt1000 is ten times a Pt100; 1385.055 Ω at 100 °C (A + 100 B exact).
   const Design d = every_model()[3];
-  EXPECT_NEAR(std::exp(*nominal_ln_resistance(d.sensor, tk(100.0))), 1385.055, 1e-9);
+  EXPECT_NEAR(std::exp(*nominal_ln_resistance(d.sensor, tk(100.0))), 1385.055, pt1000_digits);
 }
 
 TEST(NtcSpread, BetaModelIsExactlyR25TimesOnePlusDeltaRAndBetaTimesOnePlusDeltaBeta) {
