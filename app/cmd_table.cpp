@@ -27,7 +27,7 @@ std::string to_json(const Design& d, const TableResult& r) {
   nlohmann::json j;
   j["command"] = "table";
   j["title"] = d.title;
-  j["units"] = {{"temperature", "degC"}, {"error", "K"}, {"stored", "K per count"}};
+  j["units"] = {{"temperature", "degC"}, {"error", "K"}, {"stored", "counts of unit K"}};
   j["spacing"] = t.spacing() == TableSpacing::code ? "code" : "temperature";
   j["points"] = t.size();
   j["first_code"] = t.code(0);
