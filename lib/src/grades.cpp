@@ -1,0 +1,620 @@
+#include "thermargin/grades.hpp"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <cstdio>
+#include <exception>
+#include <filesystem>
+#include <limits>
+#include <map>
+#include <mutex>
+#include <thread>
+
+#include "thermargin/budget.hpp"
+#include "thermargin/linear_budget.hpp"
+#include "thermargin/series.hpp"
+
+namespace thermargin {
+
+namespace {
+
+constexpr double window_slack = 1e-9;  // °C, as budget.cpp decides window membership
+constexpr double equal_cost = 1e-9;    // relative: sums of decimal prices that are the same amount
+
+Where option(const char* name) { return Where{Origin::command_line, "", 0, name}; }
+
+std::string num(const char* format, double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, format, v);
+  return buf;
+}
+
+// Exact text of a value set on the design (the re-picked resistor), read
+// back by the number parser to the same double.
+std::string exact_text(double v) { return num("%.17g", v); }
+
+void apply(Scenario& s, const GradeOption& o) {
+  for (const auto& st : o.settings) s.set(st.key, st.value, st.where);
+}
+
+Scenario combination_scenario(const Scenario& base, const Catalogue& cat, const std::vector<int>& choice) {
+  Scenario s = base;
+  for (std::size_t k = 0; k < cat.slots.size(); ++k) apply(s, cat.slots[k].options[static_cast<std::size_t>(choice[k])]);
+  return s;
+}
+
+// Combination number i in catalogue order: the last slot varies fastest.
+std::vector<int> choice_of(const Catalogue& cat, std::size_t i) {
+  std::vector<int> c(cat.slots.size());
+  for (std::size_t k = cat.slots.size(); k-- > 0;) {
+    const std::size_t n = cat.slots[k].options.size();
+    c[k] = static_cast<int>(i % n);
+    i /= n;
+  }
+  return c;
+}
+
+std::string choice_label(const Catalogue& cat, const std::vector<int>& choice) {
+  std::string out;
+  for (std::size_t k = 0; k < cat.slots.size(); ++k)
+    out += (k ? ", " : "") + cat.slots[k].name + " = " + cat.slots[k].options[static_cast<std::size_t>(choice[k])].grade;
+  return out;
+}
+
+// Two texts of one key that mean the same value: equal text, or equal numbers
+// once read with the key's quantity, or the same file.
+bool same_value(const std::string& key, const Setting& current, const std::string& candidate) {
+  if (current.value == candidate) return true;
+  namespace fs = std::filesystem;
+  if (key.ends_with("_file")) {
+    fs::path a(current.value);
+    if (a.is_relative() && current.where.kind == Origin::file) a = fs::path(current.where.file).parent_path() / a;
+    std::error_code e1, e2;
+    const auto ca = fs::weakly_canonical(a, e1), cb = fs::weakly_canonical(fs::path(candidate), e2);
+    return !e1 && !e2 && ca == cb;
+  }
+  const KeySpec* spec = find_key(key);
+  try {
+    const Where w;
+    const double x = parse_quantity(current.value, spec->quantity, w);
+    const double y = parse_quantity(candidate, spec->quantity, w);
+    return std::fabs(x - y) <= 1e-12 * std::max(std::fabs(x), std::fabs(y));
+  } catch (const input_error&) {
+    return false;  // words that differ
+  }
+}
+
+// --- Re-pick ---------------------------------------------------------------
+
+// The fixed resistor a combination gets: the picker (its objective, its
+// exact branch and bound) over a window of series values around the anchor,
+// moved while the winner sits at the window's edge, so the value returned
+// has at least re_pick_half_width series values either side that lose to
+// it. When no value in the window can be read, the whole list is searched.
+struct RePick {
+  std::vector<double> values;  // the candidate list (series in range, or given), ascending
+  std::size_t anchor = 0;      // index of the scenario's own pick
+};
+
+std::size_t nearest_index(const std::vector<double>& values, double r) {
+  std::size_t best = 0;
+  for (std::size_t i = 1; i < values.size(); ++i)
+    if (std::fabs(std::log(values[i] / r)) < std::fabs(std::log(values[best] / r))) best = i;
+  return best;
+}
+
+double re_pick(const Scenario& s, const PickOptions& base, const RePick& rp) {
+  const std::size_t n = rp.values.size();
+  const std::size_t h = static_cast<std::size_t>(re_pick_half_width);
+  PickOptions o = base;
+  o.top = 1;
+  o.verify = 0;
+  o.guidance = false;
+  o.threads = 1;
+  o.progress = nullptr;
+  std::size_t centre = rp.anchor;
+  for (std::size_t round = 0; round <= n; ++round) {
+    const std::size_t lo = centre > h ? centre - h : 0, hi = std::min(n - 1, centre + h);
+    o.values.assign(rp.values.begin() + static_cast<std::ptrdiff_t>(lo), rp.values.begin() + static_cast<std::ptrdiff_t>(hi) + 1);
+    const PickResult r = pick(s, o);
+    if (!r.winner().feasible()) break;  // nothing readable here: search everything
+    const std::size_t w = nearest_index(rp.values, r.winner().r_fixed);
+    if ((w == lo && lo > 0) || (w == hi && hi + 1 < n)) {
+      centre = w;
+      continue;
+    }
+    return r.winner().r_fixed;
+  }
+  o.values = rp.values;
+  return pick(s, o).winner().r_fixed;
+}
+
+// --- One combination -------------------------------------------------------
+
+struct Figures {  // what the engines say about one distinct design
+  std::optional<double> r_fixed;
+  Status status = Status::ok;
+  double status_at = 0.0;
+  std::optional<double> wc_max_abs, rss_max_abs;
+  double wc_max_at = 0.0;
+  bool mc_run = false;
+  std::string mc_skipped;
+  std::optional<McSummary> mc;
+  bool mc_unreadable = false;  // some Monte Carlo reading in the window did not convert
+  Requirement requirement;
+};
+
+Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick* rp) {
+  Figures f;
+  if (options.re_pick) {
+    f.r_fixed = re_pick(s, options.pick, *rp);
+    s.set("divider.r_fixed", exact_text(*f.r_fixed), option("--re-pick"));
+  }
+  Design d = build_design(s);
+  d.montecarlo.threads = 1;  // threads are spread over combinations instead
+  f.requirement = d.requirement;
+  const Chain chain(d);
+  std::vector<double> window;
+  for (double t : d.conditions.temperatures())
+    if (t >= d.requirement.window_min - window_slack && t <= d.requirement.window_max + window_slack) window.push_back(t);
+
+  const WorstCase wc = worst_case(chain, window, options.corners);
+  const LinearBudget lb = linear_budget(chain, window);
+  bool wc_ok = true, lin_ok = true;
+  double wc_max = 0.0, lin_max = 0.0;
+  for (std::size_t i = 0; i < window.size(); ++i) {
+    const WorstCasePoint& p = wc.points[i];
+    if (p.failed_corners > 0 || !p.any_ok) {
+      if (f.status == Status::ok) {
+        f.status = p.failed_corners > 0 ? p.failure : Status::no_solution;
+        f.status_at = window[i];
+      }
+      wc_ok = false;
+    } else {
+      const double m = std::max(std::fabs(p.low), std::fabs(p.high));
+      if (m > wc_max) {
+        wc_max = m;
+        f.wc_max_at = window[i];
+      }
+    }
+    const LinearPoint& l = lb.points[i];
+    if (l.status != Status::ok) {
+      if (f.status == Status::ok) {
+        f.status = l.status;
+        f.status_at = window[i];
+      }
+      lin_ok = false;
+    } else {
+      lin_max = std::max(lin_max, std::max(std::fabs(l.low), std::fabs(l.high)));
+    }
+  }
+  if (wc_ok) f.wc_max_abs = wc_max;
+  if (lin_ok) f.rss_max_abs = lin_max;
+
+  // Monte Carlo where it can matter (the screening rule in grades.hpp).
+  const Requirement& q = d.requirement;
+  McOptions mo;
+  mo.threads = 1;
+  const bool full = options.mc_all || options.by == ErrorMeasure::monte_carlo;
+  if (!full && q.basis != Requirement::Basis::monte_carlo) {
+    const bool wc_basis = q.basis == Requirement::Basis::worst_case;
+    const auto& e = wc_basis ? f.wc_max_abs : f.rss_max_abs;
+    if (!e) {
+      f.mc_skipped = "not run: some reading in the window cannot be converted";
+      return f;
+    }
+    if (*e > q.max_error) {
+      f.mc_skipped = std::string("not run: the ") + (wc_basis ? "worst case" : "linear band") +
+                     " is over the limit, so no yield can meet the requirement";
+      return f;
+    }
+  }
+  if (!full && q.basis == Requirement::Basis::monte_carlo && options.units > mc_pilot_units) {
+    mo.units = mc_pilot_units;
+    const McSummary pilot = monte_carlo(chain, window, mo).summary;
+    const Interval ci = clopper_pearson(pilot.good_units, pilot.units, 2.0 * mc_pilot_alpha);
+    if (ci.high < q.yield) {
+      f.mc = pilot;
+      f.mc_skipped = "stopped after a pilot of " + std::to_string(pilot.units) + " units: the yield is below " +
+                     num("%.3f", 100.0 * ci.high) + " % at 99.9 % confidence";
+      return f;
+    }
+  }
+  mo.units = options.units;
+  const McResult mc = monte_carlo(chain, window, mo);
+  f.mc = mc.summary;
+  f.mc_run = true;
+  for (const auto& p : mc.points) f.mc_unreadable = f.mc_unreadable || p.saturated + p.failed > 0;
+  return f;
+}
+
+std::string verdict_of(const GradeRow& r, const Requirement& q) {
+  const bool mc_basis = q.basis == Requirement::Basis::monte_carlo;
+  if (!mc_basis && r.status != Status::ok)
+    return "cannot be read in the window: " + std::string(describe(r.status)) + " at " + num("%.2f", r.status_at) + " degC";
+  if (!r.within_limit) {
+    const bool wc = q.basis == Requirement::Basis::worst_case;
+    return std::string(wc ? "worst case " : "linear band ") + num("%.3f", wc ? *r.wc_max_abs : *r.rss_max_abs) +
+           " K over the limit of " + num("%.3f", q.max_error) + " K";
+  }
+  if (!r.mc) return "no yield (" + r.mc_skipped + ")";
+  if (!r.mc_run) return "yield below the required " + num("%.2f", 100.0 * q.yield) + " % (" + r.mc_skipped + ")";
+  if (r.mc->yield < q.yield)
+    return "yield " + num("%.2f", 100.0 * r.mc->yield) + " % below the required " + num("%.2f", 100.0 * q.yield) + " %";
+  return "meets the requirement";
+}
+
+// --- The paragraph ---------------------------------------------------------
+
+std::string settings_text(const GradeOption& o) {
+  std::string out;
+  for (const auto& s : o.settings) out += (out.empty() ? "" : ", ") + s.key + " = " + s.value;
+  return out.empty() ? "no change to the scenario" : out;
+}
+
+std::string summary_of(const GradesResult& g, const Catalogue& cat, const Scenario& scenario) {
+  const auto& q = g.requirement;
+  std::string req = "+/-" + num("%.3f", q.max_error) + " K over " + num("%.2f", q.window_min) + ".." +
+                    num("%.2f", q.window_max) + " degC (" + std::string(to_string(q.basis)) + " basis) with a yield of at least " +
+                    num("%.2f", 100.0 * q.yield) + " %";
+  if (!g.recommendation) {
+    std::string out = "No combination meets the requirement (" + req + ").";
+    std::optional<std::size_t> best;
+    for (std::size_t i = 0; i < g.rows.size(); ++i)
+      if (g.rows[i].error && (!best || *g.rows[i].error < *g.rows[best.value()].error)) best = i;
+    if (best)
+      out += " The most accurate combination is " + g.choice_text(g.rows[*best]) + ": " + std::string(to_string(g.by)) +
+             " error " + num("%.3f", *g.rows[*best].error) + " K at " + money(g.rows[*best].unit_cost) + " per unit.";
+    return out;
+  }
+  const GradeRow& rec = g.rows[*g.recommendation];
+  std::string out = "Recommended: " + g.choice_text(rec) + " at " + money(rec.unit_cost) + " per unit";
+  if (rec.cost_per_good_unit) out += " (" + money(*rec.cost_per_good_unit) + " per good unit)";
+  out += ", the cheapest combination that meets " + req + ".";
+  if (rec.r_fixed)
+    out += " Its fixed resistor is re-picked: " + format_quantity(*rec.r_fixed, Quantity::resistance, 4) +
+           " (the scenario has " + scenario.get("divider.r_fixed").value + ").";
+  if (!g.current_row) {
+    std::string missing;
+    for (std::size_t k = 0; k < g.current.size(); ++k)
+      if (!g.current[k]) missing += (missing.empty() ? "'" : ", '") + cat.slots[k].name + "'";
+    out += " The scenario's current parts are not all in the catalogue (no option of slot " + missing +
+           " has the scenario's values), so no saving is computed. The recommendation sets: ";
+    for (std::size_t k = 0; k < cat.slots.size(); ++k)
+      out += (k ? "; " : "") + cat.slots[k].name + ": " +
+             settings_text(cat.slots[k].options[static_cast<std::size_t>(rec.choice[k])]);
+    return out + ".";
+  }
+  const GradeRow& cur = g.rows[*g.current_row];
+  if (*g.current_row == *g.recommendation)
+    return out + " These are the scenario's current parts: nothing to change.";
+  std::string changes, kept;
+  for (std::size_t k = 0; k < cat.slots.size(); ++k) {
+    const auto& slot = cat.slots[k];
+    if (cur.choice[k] == rec.choice[k]) {
+      kept += (kept.empty() ? "" : ", ") + slot.name;
+      continue;
+    }
+    changes += (changes.empty() ? "" : "; ") + slot.name + " " + slot.options[static_cast<std::size_t>(cur.choice[k])].grade +
+               " -> " + slot.options[static_cast<std::size_t>(rec.choice[k])].grade;
+  }
+  out += " Against the scenario's current parts (" + g.choice_text(cur) + ") it changes " + changes;
+  if (!kept.empty()) out += " and keeps " + kept;
+  const bool by_good = g.reject_cost && rec.cost_per_good_unit && cur.cost_per_good_unit;
+  const double delta = by_good ? *cur.cost_per_good_unit - *rec.cost_per_good_unit : cur.unit_cost - rec.unit_cost;
+  const std::string per = by_good ? " per good unit" : " per unit";
+  if (std::fabs(delta) <= equal_cost * std::max(1.0, std::fabs(cur.unit_cost))) {
+    out += "; the cost is the same";
+  } else {
+    out += delta > 0 ? "; it saves " + money(delta) + per : "; it costs " + money(-delta) + " more" + per;
+    if (g.volume) out += " (" + money(std::fabs(delta) * *g.volume) + " over " + num("%.0f", *g.volume) + " units)";
+  }
+  out += ". The current parts " + std::string(cur.meets_requirement ? "meet the requirement too." : "do not: " + cur.verdict + ".");
+  return out;
+}
+
+}  // namespace
+
+std::string_view to_string(ErrorMeasure m) {
+  switch (m) {
+    case ErrorMeasure::worst_case: return "worst-case";
+    case ErrorMeasure::linear: return "linear";
+    case ErrorMeasure::monte_carlo: return "monte-carlo";
+  }
+  return "worst-case";
+}
+
+ErrorMeasure parse_error_measure(std::string_view text, const Where& where) {
+  if (text == "worst-case") return ErrorMeasure::worst_case;
+  if (text == "linear") return ErrorMeasure::linear;
+  if (text == "monte-carlo") return ErrorMeasure::monte_carlo;
+  reject(where, text, "must be one of: worst-case | linear | monte-carlo");
+}
+
+std::string money(double v) {
+  std::string s = num("%.4f", v);
+  while (s.size() > 3 && s.back() == '0' && s[s.size() - 3] != '.') s.pop_back();
+  if (s == "-0.00") s = "0.00";
+  return s;
+}
+
+std::optional<double> cost_per_good_unit(double unit_cost, double yield, double reject_cost) {
+  if (!(yield > 0.0)) return std::nullopt;
+  return unit_cost / yield + reject_cost * (1.0 - yield) / yield;
+}
+
+std::vector<bool> pareto_front(const std::vector<double>& cost, const std::vector<std::optional<double>>& error) {
+  const std::size_t n = cost.size();
+  std::vector<bool> on(n, false);
+  std::vector<std::size_t> order;
+  for (std::size_t i = 0; i < n; ++i)
+    if (error[i]) order.push_back(i);
+  std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    return cost[a] != cost[b] ? cost[a] < cost[b] : *error[a] < *error[b];
+  });
+  // Groups of equal cost, cheapest first: a point is on the front when no
+  // cheaper point is as accurate and none of its own cost is more accurate.
+  double best_cheaper = std::numeric_limits<double>::infinity();
+  for (std::size_t g = 0; g < order.size();) {
+    std::size_t end = g + 1;
+    const double c = cost[order[g]];
+    while (end < order.size() && cost[order[end]] - c <= equal_cost * std::max(1.0, std::fabs(c))) ++end;
+    double gm = *error[order[g]];
+    for (std::size_t k = g; k < end; ++k) gm = std::min(gm, *error[order[k]]);
+    for (std::size_t k = g; k < end; ++k) {
+      const double e = *error[order[k]];
+      on[order[k]] = e < best_cheaper && e == gm;
+    }
+    best_cheaper = std::min(best_cheaper, gm);
+    g = end;
+  }
+  return on;
+}
+
+std::string GradesResult::choice_text(const GradeRow& r) const {
+  std::string out;
+  for (std::size_t k = 0; k < slots.size(); ++k)
+    out += (k ? ", " : "") + slots[k] + " = " + grades[k][static_cast<std::size_t>(r.choice[k])];
+  return out;
+}
+
+std::optional<double> GradesResult::ranking_cost(const GradeRow& r) const {
+  if (!reject_cost) return r.unit_cost;
+  return r.cost_per_good_unit;
+}
+
+void validate_grades(const Scenario& scenario, const Catalogue& cat, const GradesOptions& options) {
+  if (options.volume && !(*options.volume >= 1.0 && std::isfinite(*options.volume)))
+    reject(option("--volume"), num("%g", *options.volume), "must be a number of units >= 1");
+  if (options.reject_cost && !(*options.reject_cost >= 0.0 && std::isfinite(*options.reject_cost)))
+    reject(option("--reject-cost"), num("%g", *options.reject_cost), "must be a cost >= 0 per failed unit");
+  if (options.units < 1) reject(option("--units"), "0", "must be a whole number of units >= 1");
+  if (cat.has_setup_costs() && !options.volume) {
+    for (const auto& s : cat.slots)
+      for (const auto& o : s.options)
+        if (o.setup_cost > 0.0)
+          reject(option("--volume"), "",
+                 "the catalogue has setup costs (" + cat.file + ":" + std::to_string(o.line) +
+                     "); give the production volume they are spread over, e.g. --volume 10000");
+  }
+  if (options.re_pick)
+    for (const auto& s : cat.slots)
+      for (const auto& o : s.options)
+        for (const auto& st : o.settings)
+          if (st.key == "divider.r_fixed")
+            reject(Where{Origin::catalogue, cat.file, st.where.line, cat.column_label(cat.columns.settings)},
+                   st.key + "=" + st.value,
+                   "--re-pick chooses divider.r_fixed for every combination; grade the resistor's tolerance "
+                   "(divider.r_fixed_tol) instead, or drop --re-pick");
+
+  // The scenario alone, then each option alone (so that a bad value is
+  // reported against the one option that wrote it), then every combination.
+  (void)build_design(scenario);
+  for (const auto& slot : cat.slots)
+    for (const auto& o : slot.options) {
+      Scenario s = scenario;
+      try {
+        apply(s, o);
+        (void)build_design(s);
+      } catch (const input_error& e) {
+        throw input_error(std::string(e.what()) + " [set in " + cat.column_label(cat.columns.settings) + " by grade '" +
+                          o.grade + "' of slot '" + slot.name + "']");
+      }
+    }
+  if (cat.slots.size() > 1) {
+    const std::size_t n = cat.combinations();
+    for (std::size_t i = 0; i < n; ++i) {
+      const auto choice = choice_of(cat, i);
+      try {
+        (void)build_design(combination_scenario(scenario, cat, choice));
+      } catch (const input_error& e) {
+        reject_at(cat.file, 0, "the combination " + choice_label(cat, choice) + " is not a valid design: " + e.what());
+      }
+    }
+  }
+}
+
+GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, const GradesOptions& options) {
+  validate_grades(scenario, cat, options);
+  const Design base = build_design(scenario);
+  GradesResult g;
+  g.by = options.by;
+  g.requirement = base.requirement;
+  g.volume = options.volume;
+  g.reject_cost = options.reject_cost;
+  g.units = options.units;
+  for (const auto& s : cat.slots) {
+    g.slots.push_back(s.name);
+    std::vector<std::string> names;
+    for (const auto& o : s.options) names.push_back(o.grade);
+    g.grades.push_back(std::move(names));
+  }
+
+  // Re-pick: the candidate list and the scenario's own pick as the anchor
+  // (checks the pick options before any work, too).
+  RePick rp;
+  if (options.re_pick) {
+    PickOptions o = options.pick;
+    o.top = 1;
+    o.verify = 0;
+    o.guidance = false;
+    o.progress = nullptr;
+    rp.values = o.values.empty() ? series_values(o.series, o.range_low, o.range_high) : o.values;
+    std::sort(rp.values.begin(), rp.values.end());
+    rp.values.erase(std::unique(rp.values.begin(), rp.values.end()), rp.values.end());
+    const PickResult anchor = pick(scenario, o);
+    g.anchor_r_fixed = anchor.winner().r_fixed;
+    rp.anchor = nearest_index(rp.values, *g.anchor_r_fixed);
+  }
+
+  // Distinct designs: combinations whose settings are the same (a slot
+  // that only changes the price) are evaluated once.
+  const std::size_t n = cat.combinations();
+  std::vector<std::size_t> design_of(n);
+  std::vector<std::size_t> first_of;  // combination index of each distinct design
+  {
+    std::map<std::string, std::size_t> seen;
+    for (std::size_t i = 0; i < n; ++i) {
+      const auto choice = choice_of(cat, i);
+      std::map<std::string, std::string> settings;
+      for (std::size_t k = 0; k < cat.slots.size(); ++k)
+        for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(choice[k])].settings) settings[st.key] = st.value;
+      std::string key;
+      for (const auto& [k, v] : settings) key += k + '\x1f' + v + '\x1e';
+      const auto [it, fresh] = seen.emplace(key, first_of.size());
+      if (fresh) first_of.push_back(i);
+      design_of[i] = it->second;
+    }
+  }
+
+  // Threads over distinct designs; each result lands in its own slot.
+  std::vector<Figures> figures(first_of.size());
+  int threads = options.threads >= 0 ? options.threads : base.montecarlo.threads;
+  if (threads == 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  threads = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(std::max(threads, 1)), first_of.size()));
+  std::atomic<std::size_t> next{0}, done{0};
+  std::mutex m;
+  std::vector<std::exception_ptr> errors(first_of.size());
+  auto work = [&] {
+    for (;;) {
+      const std::size_t j = next.fetch_add(1);
+      if (j >= first_of.size()) break;
+      try {
+        figures[j] = evaluate_design(combination_scenario(scenario, cat, choice_of(cat, first_of[j])), options,
+                                     options.re_pick ? &rp : nullptr);
+      } catch (...) {
+        errors[j] = std::current_exception();
+      }
+      const std::size_t k = ++done;
+      if (options.progress) {
+        const std::lock_guard<std::mutex> lock(m);
+        options.progress(static_cast<double>(k) / static_cast<double>(first_of.size()));
+      }
+    }
+  };
+  std::vector<std::thread> pool;
+  for (int t = 1; t < threads; ++t) pool.emplace_back(work);
+  work();
+  for (auto& t : pool) t.join();
+  for (const auto& e : errors)  // the first in catalogue order, whatever the threads did
+    if (e) std::rethrow_exception(e);
+
+  // Rows: cost, figures, the requirement.
+  g.rows.resize(n);
+  for (std::size_t i = 0; i < n; ++i) {
+    GradeRow& r = g.rows[i];
+    const Figures& f = figures[design_of[i]];
+    r.index = i;
+    r.choice = choice_of(cat, i);
+    double setup = 0.0;
+    for (std::size_t k = 0; k < cat.slots.size(); ++k) {
+      const auto& o = cat.slots[k].options[static_cast<std::size_t>(r.choice[k])];
+      r.unit_cost += o.unit_cost;
+      setup += o.setup_cost;
+    }
+    r.setup_per_unit = options.volume ? setup / *options.volume : 0.0;
+    r.unit_cost += r.setup_per_unit;
+    r.r_fixed = f.r_fixed;
+    r.status = f.status;
+    r.status_at = f.status_at;
+    r.wc_max_abs = f.wc_max_abs;
+    r.wc_max_at = f.wc_max_at;
+    r.rss_max_abs = f.rss_max_abs;
+    r.mc_run = f.mc_run;
+    r.mc_skipped = f.mc_skipped;
+    r.mc = f.mc;
+    if (r.mc_run && options.reject_cost) r.cost_per_good_unit = cost_per_good_unit(r.unit_cost, r.mc->yield, *options.reject_cost);
+    switch (options.by) {
+      case ErrorMeasure::worst_case: r.error = r.wc_max_abs; break;
+      case ErrorMeasure::linear: r.error = r.rss_max_abs; break;
+      case ErrorMeasure::monte_carlo:
+        // Bands of the readings that converted would understate the error
+        // where some did not: no figure then.
+        if (r.mc_run && !f.mc_unreadable) r.error = r.mc->max_abs;
+        break;
+    }
+    const Requirement& q = f.requirement;
+    switch (q.basis) {
+      case Requirement::Basis::worst_case: r.within_limit = r.wc_max_abs && *r.wc_max_abs <= q.max_error; break;
+      case Requirement::Basis::linear: r.within_limit = r.rss_max_abs && *r.rss_max_abs <= q.max_error; break;
+      case Requirement::Basis::monte_carlo: r.within_limit = true; break;
+    }
+    r.meets_requirement = r.within_limit && r.mc_run && r.mc->yield >= q.yield &&
+                          (q.basis == Requirement::Basis::monte_carlo || r.status == Status::ok);
+    r.verdict = verdict_of(r, q);
+    if (r.mc_run) ++g.mc_full;
+    else if (r.mc) ++g.mc_pilot_only;
+  }
+
+  // Cheapest first; equal costs by error (none last), then catalogue order.
+  std::stable_sort(g.rows.begin(), g.rows.end(), [](const GradeRow& a, const GradeRow& b) {
+    if (a.unit_cost != b.unit_cost) return a.unit_cost < b.unit_cost;
+    if (a.error.has_value() != b.error.has_value()) return a.error.has_value();
+    if (a.error && *a.error != *b.error) return *a.error < *b.error;
+    return a.index < b.index;
+  });
+
+  std::vector<double> cost;
+  std::vector<std::optional<double>> err;
+  for (const auto& r : g.rows) {
+    cost.push_back(r.unit_cost);
+    err.push_back(r.error);
+  }
+  const auto on = pareto_front(cost, err);
+  for (std::size_t i = 0; i < g.rows.size(); ++i) {
+    g.rows[i].on_front = on[i];
+    if (on[i]) g.front.push_back(i);
+  }
+
+  for (std::size_t i = 0; i < g.rows.size(); ++i) {
+    const GradeRow& r = g.rows[i];
+    if (!r.meets_requirement || !g.ranking_cost(r)) continue;
+    if (!g.recommendation) {
+      g.recommendation = i;
+      continue;
+    }
+    const GradeRow& b = g.rows[*g.recommendation];
+    const double cr = *g.ranking_cost(r), cb = *g.ranking_cost(b);
+    if (cb - cr > equal_cost * std::max(1.0, std::fabs(cb))) g.recommendation = i;
+  }
+
+  // The scenario's current parts.
+  g.current.resize(cat.slots.size());
+  for (std::size_t k = 0; k < cat.slots.size(); ++k)
+    for (std::size_t o = 0; o < cat.slots[k].options.size() && !g.current[k]; ++o) {
+      bool all = true;
+      for (const auto& st : cat.slots[k].options[o].settings) all = all && same_value(st.key, scenario.get(st.key), st.value);
+      if (all) g.current[k] = static_cast<int>(o);
+    }
+  if (std::all_of(g.current.begin(), g.current.end(), [](const auto& c) { return c.has_value(); }))
+    for (std::size_t i = 0; i < g.rows.size(); ++i) {
+      bool same = true;
+      for (std::size_t k = 0; k < cat.slots.size(); ++k) same = same && g.rows[i].choice[k] == *g.current[k];
+      if (same) g.current_row = i;
+    }
+  g.summary = summary_of(g, cat, scenario);
+  return g;
+}
+
+}  // namespace thermargin
