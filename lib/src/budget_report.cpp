@@ -23,83 +23,14 @@ namespace {
 
 namespace fs = std::filesystem;
 
-using Block = report::Block;
+using report::Page;
+using report::Table;
 
-// A table: the fields of thermargin::Table (html_report.hpp).
-struct Table {
-  std::string caption;
-  std::vector<std::string> header;
-  std::vector<std::vector<std::string>> rows;
-  std::vector<bool> numeric;
-};
-
-// The page in reading order, built like HtmlDocument (see report_page.hpp for why not directly).
-class Page {
- public:
-  Page& heading(std::string text) { return add(Block::Kind::heading, std::move(text)); }
-  Page& paragraph(std::string text) { return add(Block::Kind::paragraph, std::move(text)); }
-  Page& verdict(bool pass, std::string detail) {
-    return add(pass ? Block::Kind::pass : Block::Kind::fail, std::move(detail));
-  }
-  Page& caution(std::string_view text) { return add(Block::Kind::caution, std::string(text)); }
-  Page& chart(const svg::Chart& chart, std::string caption) {
-    add(Block::Kind::chart, std::move(caption));
-    blocks_.back().chart = chart;
-    return *this;
-  }
-  Page& table(Table t) {
-    add(Block::Kind::table, {});
-    Block& b = blocks_.back();
-    b.caption = std::move(t.caption);
-    b.header = std::move(t.header);
-    b.rows = std::move(t.rows);
-    b.numeric = std::move(t.numeric);
-    return *this;
-  }
-  const std::vector<Block>& blocks() const { return blocks_; }
-
- private:
-  Page& add(Block::Kind kind, std::string text) {
-    Block b;
-    b.kind = kind;
-    b.text = std::move(text);
-    blocks_.push_back(std::move(b));
-    return *this;
-  }
-  std::vector<Block> blocks_;
-};
-
-// ---------------------------------------------------------------- numbers as text
-
-// A figure for a person: fixed decimals, a true minus sign, never "nan" or "-0.000".
-std::string num(double v, int decimals) {
-  if (!std::isfinite(v)) return "n/a";
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  std::string s = buf;
-  if (s.front() == '-') {
-    if (s.find_first_not_of("-0.") == std::string::npos) return s.substr(1);
-    return "\u2212" + s.substr(1);
-  }
-  return s;
-}
-
-std::string pct(double fraction, int decimals) { return num(100.0 * fraction, decimals) + " %"; }
-
-std::string kelvin(double v, int decimals = 3) { return num(v, decimals) + " K"; }
-std::string celsius(double v) { return num(v, 2) + " \u00b0C"; }
-
-// A share as a bar of block characters (eighths), so the ranking reads at a
-// glance in the table itself, on screen and on paper, without a chart.
-std::string bar(double fraction, int width = 24) {
-  const double eighths = std::clamp(fraction, 0.0, 1.0) * width * 8.0;
-  const auto n = static_cast<long>(std::lround(eighths));
-  static const char* const partial[] = {"", "\u258f", "\u258e", "\u258d", "\u258c", "\u258b", "\u258a", "\u2589"};
-  std::string s;
-  for (long i = 0; i < n / 8; ++i) s += "\u2588";
-  s += partial[n % 8];
-  return s;
-}
+using report::bar;
+using report::celsius;
+using report::kelvin;
+using report::num;
+using report::pct;
 
 // ---------------------------------------------------------------- which points have which curves
 
@@ -425,35 +356,6 @@ void status_block(Page& doc, const Budget& b) {
   doc.table({.caption = {}, .header = {"t (\u00b0C)", "In window", "What happens"}, .rows = rows, .numeric = {}});
 }
 
-void inputs_block(Page& doc, const Design& d, const Scenario& s) {
-  doc.heading("Every resolved input");
-  doc.paragraph(std::to_string(d.inputs.size()) +
-                " toleranced inputs are active. Values as given (the built-in default where no file or option set "
-                "one), with their unit and where they came from, as `thermargin check` prints them.");
-  std::string section;
-  Table t;
-  auto flush = [&] {
-    if (!t.rows.empty()) doc.table(t);
-    t = Table{};
-  };
-  for (const auto& k : scenario_schema()) {
-    const auto& v = s.get(k.key);
-    if ((k.key.ends_with("_dist") || k.key.ends_with("_gap")) && v.where.kind == Origin::built_in) continue;
-    const auto dot = k.key.find('.');
-    const std::string sec = dot == std::string::npos ? "(top)" : k.key.substr(0, dot);
-    if (sec != section || t.header.empty()) {
-      flush();
-      section = sec;
-      t.caption = "[" + sec + "]";
-      t.header = {"Key", "Value", "Unit", "Origin"};
-      t.numeric = {false, false, false, false};
-    }
-    t.rows.push_back({k.key, v.value.empty() ? "(none)" : v.value, std::string(unit_symbol(k.quantity)),
-                      v.where.origin()});
-  }
-  flush();
-}
-
 // ---------------------------------------------------------------- files
 
 [[noreturn]] void refuse(const std::string& option, const std::string& path, const std::string& reason) {
@@ -525,7 +427,7 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
   doc.chart(figures[4].chart, "Figure 5. " + figures[4].caption);
 
   status_block(doc, b);
-  inputs_block(doc, d, scenario);
+  report::inputs(doc, d, scenario);
   doc.caution(caution);
   return report::render_page("Design review: " + d.title, doc.blocks());
 }

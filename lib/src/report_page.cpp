@@ -3,7 +3,9 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
+#include <cmath>
 #include <cstdio>
 #include <cstring>
 #include <filesystem>
@@ -12,6 +14,63 @@
 #include "thermargin/html_report.hpp"
 
 namespace thermargin::report {
+
+// A figure for a person: fixed decimals, a true minus sign, never "nan" or "-0.000".
+std::string num(double v, int decimals) {
+  if (!std::isfinite(v)) return "n/a";
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string s = buf;
+  if (s.front() == '-') {
+    if (s.find_first_not_of("-0.") == std::string::npos) return s.substr(1);
+    return "\u2212" + s.substr(1);
+  }
+  return s;
+}
+
+std::string pct(double fraction, int decimals) { return num(100.0 * fraction, decimals) + " %"; }
+
+std::string kelvin(double v, int decimals) { return num(v, decimals) + " K"; }
+std::string celsius(double v) { return num(v, 2) + " \u00b0C"; }
+
+std::string bar(double fraction, int width) {
+  const double eighths = std::clamp(fraction, 0.0, 1.0) * width * 8.0;
+  const auto n = static_cast<long>(std::lround(eighths));
+  static const char* const partial[] = {"", "\u258f", "\u258e", "\u258d", "\u258c", "\u258b", "\u258a", "\u2589"};
+  std::string s;
+  for (long i = 0; i < n / 8; ++i) s += "\u2588";
+  s += partial[n % 8];
+  return s;
+}
+
+void inputs(Page& doc, const Design& d, const Scenario& s) {
+  doc.heading("Every resolved input");
+  doc.paragraph(std::to_string(d.inputs.size()) +
+                " toleranced inputs are active. Values as given (the built-in default where no file or option set "
+                "one), with their unit and where they came from, as `thermargin check` prints them.");
+  std::string section;
+  Table t;
+  auto flush = [&] {
+    if (!t.rows.empty()) doc.table(t);
+    t = Table{};
+  };
+  for (const auto& k : scenario_schema()) {
+    const auto& v = s.get(k.key);
+    if ((k.key.ends_with("_dist") || k.key.ends_with("_gap")) && v.where.kind == Origin::built_in) continue;
+    const auto dot = k.key.find('.');
+    const std::string sec = dot == std::string::npos ? "(top)" : k.key.substr(0, dot);
+    if (sec != section || t.header.empty()) {
+      flush();
+      section = sec;
+      t.caption = "[" + sec + "]";
+      t.header = {"Key", "Value", "Unit", "Origin"};
+      t.numeric = {false, false, false, false};
+    }
+    t.rows.push_back({k.key, v.value.empty() ? "(none)" : v.value, std::string(unit_symbol(k.quantity)),
+                      v.where.origin()});
+  }
+  flush();
+}
 
 std::string render_page(const std::string& title, const std::vector<Block>& blocks) {
   HtmlDocument doc(title);

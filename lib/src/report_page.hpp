@@ -1,5 +1,7 @@
-// Internal to the library: a report page as plain blocks, laid out with
-// HtmlDocument, and SVG files written all or none.
+// Internal to the library: what the reports (budget_report.cpp,
+// pick_report.cpp) share. A report page as plain blocks, laid out with
+// HtmlDocument; the table of resolved inputs every report ends with; figures
+// as text for a person; and SVG files written all or none.
 //
 // Why it exists: html_report.hpp's `enum class Verdict` (the banner) and
 // budget.hpp's `struct Verdict` (the budget's verdict) share one name in
@@ -14,6 +16,8 @@
 #include <string_view>
 #include <vector>
 
+#include "thermargin/design.hpp"
+#include "thermargin/scenario.hpp"
 #include "thermargin/svg_chart.hpp"
 
 namespace thermargin::report {
@@ -30,6 +34,63 @@ struct Block {
   // chart
   svg::Chart chart;
 };
+
+// A table: the fields of thermargin::Table (html_report.hpp).
+struct Table {
+  std::string caption;
+  std::vector<std::string> header;
+  std::vector<std::vector<std::string>> rows;
+  std::vector<bool> numeric;
+};
+
+// The page in reading order, built like HtmlDocument.
+class Page {
+ public:
+  Page& heading(std::string text) { return add(Block::Kind::heading, std::move(text)); }
+  Page& paragraph(std::string text) { return add(Block::Kind::paragraph, std::move(text)); }
+  Page& verdict(bool pass, std::string detail) {
+    return add(pass ? Block::Kind::pass : Block::Kind::fail, std::move(detail));
+  }
+  Page& caution(std::string_view text) { return add(Block::Kind::caution, std::string(text)); }
+  Page& chart(const svg::Chart& chart, std::string caption) {
+    add(Block::Kind::chart, std::move(caption));
+    blocks_.back().chart = chart;
+    return *this;
+  }
+  Page& table(Table t) {
+    add(Block::Kind::table, {});
+    Block& b = blocks_.back();
+    b.caption = std::move(t.caption);
+    b.header = std::move(t.header);
+    b.rows = std::move(t.rows);
+    b.numeric = std::move(t.numeric);
+    return *this;
+  }
+  const std::vector<Block>& blocks() const { return blocks_; }
+
+ private:
+  Page& add(Block::Kind kind, std::string text) {
+    Block b;
+    b.kind = kind;
+    b.text = std::move(text);
+    blocks_.push_back(std::move(b));
+    return *this;
+  }
+  std::vector<Block> blocks_;
+};
+
+// "Every resolved input": one table per section with value, unit and origin,
+// as `thermargin check` prints them (Monte Carlo overrides only when set).
+void inputs(Page& page, const Design& d, const Scenario& s);
+
+// Figures for a person: fixed decimals, a true minus sign, never "nan" or "-0.000".
+std::string num(double v, int decimals);
+std::string pct(double fraction, int decimals);   // "12.50 %"
+std::string kelvin(double v, int decimals = 3);   // "0.478 K"
+std::string celsius(double v);                    // "40.00 °C"
+// A share as a bar of block characters (eighths), so a ranking reads at a
+// glance in the table itself, on screen and on paper.
+std::string bar(double fraction, int width = 24);
 
 // The blocks as one self-contained HTML page (HtmlDocument), titled `title`.
 std::string render_page(const std::string& title, const std::vector<Block>& blocks);
