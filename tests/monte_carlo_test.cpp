@@ -330,3 +330,31 @@ TEST(MonteCarloSecondOpinion, AgreesWithAnIndependentNumpySimulation) {
 
 }  // namespace
 }  // namespace thermargin
+
+namespace thermargin {
+namespace {
+
+TEST(MonteCarloKernel, RunawayIsAStatusNeverAnError) {
+  // 50 V into a 100 Ω NTC with 0.1 mW/K (the chain's runaway case): every
+  // reading fails, none becomes a band or a yield.
+  const Design d = testing::design_with({{"sensor.r25", "100"},
+                                         {"divider.r_fixed", "100"},
+                                         {"supply.v_excitation", "50V"},
+                                         {"sensor.dissipation", "0.1mW/K"}});
+  const Chain chain(d);
+  const std::vector<double> temps{-20.0, 25.0, 80.0};
+  std::vector<double> errors;
+  simulate_block(chain, temps, 0, 32, errors);
+  for (double e : errors) EXPECT_TRUE(std::isnan(e));
+  McOptions o;
+  o.units = 1000;
+  const McResult mc = monte_carlo(chain, temps, o);
+  for (const auto& p : mc.points) {
+    EXPECT_EQ(p.valid, 0u);
+    EXPECT_EQ(p.failed, 1000u);
+  }
+  EXPECT_EQ(mc.summary.good_units, 0u);
+}
+
+}  // namespace
+}  // namespace thermargin

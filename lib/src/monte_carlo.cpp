@@ -367,6 +367,22 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
     }
   }
 
+  // A unit heated by more than 1 K is handed to the scalar chain, which
+  // checks the loop gain at the true temperature for runaway (chain.cpp):
+  // a loop gain of 1 needs a rise of at least 1/|d ln R/dT|, tens of kelvin
+  // for any NTC, so this is rare and costs nothing in ordinary designs.
+  if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
+    for (int u = 0; u < block_size; ++u) {
+      if (!(te[u] - t_k > 1.0) && status[u] != static_cast<std::uint8_t>(Status::runaway)) continue;
+      Deviations unit{};
+      for (int k = 0; k < source_count; ++k) unit[static_cast<std::size_t>(k)] = dv[k][u];
+      if (board.kind == BoardKind::range) unit[static_cast<std::size_t>(Source::board_temperature)] = tb[u] - board.middle();
+      const FrontEnd fe = c.chain->front_end(unit, t);
+      status[u] = static_cast<std::uint8_t>(fe.status);
+      xs[u] = fe.status == Status::ok ? fe.x_static : 0.0;
+    }
+  }
+
   // Samples: noise, quantiser, clamping; the reading is the sum of M samples.
   alignas(64) double sum[block_size], noise[block_size], sat[block_size];
   std::fill(std::begin(sum), std::end(sum), 0.0);
@@ -386,24 +402,26 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
       sum[u] += std::clamp(v, 0.0, max_code);
     }
   }
-  for (int u = 0; u < block_size; ++u) {
-    if (status[u] == 0 && sat[u] != 0.0) status[u] = static_cast<std::uint8_t>(Status::saturated);
-    if (status[u] != 0) {
-      reported[u] = 0.0;
-      continue;
+  constexpr auto saturated = static_cast<std::uint8_t>(Status::saturated);
+  constexpr auto no_solution = static_cast<std::uint8_t>(Status::no_solution);
+  if (c.table_conversion) {
+    // Branch-free so that it vectorises (the table lookup is a gather).
+    const double* table = c.conversion.data();
+    for (int u = 0; u < block_size; ++u) {
+      std::uint8_t st = status[u];
+      st = (st == 0 && sat[u] != 0.0) ? saturated : st;
+      const double tr = table[static_cast<std::size_t>(sum[u])];
+      st = (st == 0 && tr != tr) ? no_solution : st;  // NaN: no conversion
+      reported[u] = st == 0 ? tr : 0.0;
+      status[u] = st;
     }
-    double tr;
-    if (c.table_conversion) {
-      tr = c.conversion[static_cast<std::size_t>(sum[u])];
-    } else {
-      const auto v = c.chain->convert(sum[u] / c.m, true);
-      tr = v ? *v : std::numeric_limits<double>::quiet_NaN();
+  } else {
+    for (int u = 0; u < block_size; ++u) {
+      if (status[u] == 0 && sat[u] != 0.0) status[u] = saturated;
+      const auto v = status[u] == 0 ? c.chain->convert(sum[u] / c.m, true) : std::nullopt;
+      if (status[u] == 0 && !v) status[u] = no_solution;
+      reported[u] = v ? *v : 0.0;
     }
-    if (std::isnan(tr)) {
-      status[u] = static_cast<std::uint8_t>(Status::no_solution);
-      tr = 0.0;
-    }
-    reported[u] = tr;
   }
   std::copy(std::begin(status), std::end(status), status_out);
 }
@@ -745,9 +763,9 @@ Evaluation simulate_reading(const Chain& chain, std::uint64_t unit, std::uint32_
   return one(t, t_index, (n > 0 && cal_ok) ? &k : nullptr);
 }
 
-void simulate_block(const Chain& chain, const std::vector<double>& temperatures, std::uint64_t first_unit, int count,
-                    std::vector<double>& errors) {
-  const RunConstants c = make_constants(chain);
+namespace {
+void simulate_block_with(const RunConstants& c, const std::vector<double>& temperatures, std::uint64_t first_unit,
+                         int count, std::vector<double>& errors) {
   BlockUnits b;
   draw_block(c, b, first_unit, count);
   if (c.cal_points > 0) calibrate_block(c, b);
@@ -758,6 +776,12 @@ void simulate_block(const Chain& chain, const std::vector<double>& temperatures,
     errors_block(c, b, temperatures[ti], static_cast<std::uint32_t>(ti), err, status);
     for (int u = 0; u < count; ++u) errors[static_cast<std::size_t>(u) + ti * static_cast<std::size_t>(count)] = err[u];
   }
+}
+}  // namespace
+
+void simulate_block(const Chain& chain, const std::vector<double>& temperatures, std::uint64_t first_unit, int count,
+                    std::vector<double>& errors) {
+  simulate_block_with(make_constants(chain), temperatures, first_unit, count, errors);
 }
 
 double numerical_tolerance(double u, int significant) {
@@ -801,7 +825,7 @@ McResult monte_carlo(const Chain& chain, const std::vector<double>& temperatures
     std::vector<double> errs;
     for (std::uint64_t f = 0; f < n; f += block_size) {
       const int count = static_cast<int>(std::min<std::uint64_t>(block_size, n - f));
-      simulate_block(chain, temperatures, f, count, errs);
+      simulate_block_with(c, temperatures, f, count, errs);
       for (std::size_t ti = 0; ti < nt; ++ti)
         for (int u = 0; u < count; ++u) {
           const double e = errs[static_cast<std::size_t>(u) + ti * static_cast<std::size_t>(count)];
