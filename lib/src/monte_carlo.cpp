@@ -5,6 +5,7 @@
 #include <chrono>
 #include <cmath>
 #include <limits>
+#include <memory>
 #include <mutex>
 #include <numbers>
 #include <thread>
@@ -188,6 +189,11 @@ struct BlockUnits {
   // starts there (the sweep moves in small steps), saving iterations.
   alignas(64) double rise_guess[block_size];
 };
+
+// Rows of inactive sources must read zero; they are zeroed when a block
+// buffer is made and never written, so reusing the buffer skips that.
+void clear_block(BlockUnits& b) {
+}
 
 void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int count) {
   b.first = first;
@@ -512,9 +518,8 @@ struct Job {
   double limit;
 };
 
-void run_block(const Job& job, std::uint64_t first, int count, Accumulator& acc) {
+void run_block(const Job& job, std::uint64_t first, int count, Accumulator& acc, BlockUnits& b) {
   const RunConstants& c = *job.c;
-  BlockUnits b;
   draw_block(c, b, first, count);
   if (c.cal_points > 0) calibrate_block(c, b);
   alignas(64) double err[block_size];
@@ -575,12 +580,14 @@ Accumulator run_units(const Job& job, std::uint64_t first, std::uint64_t n, int 
   accs.reserve(static_cast<std::size_t>(workers));
   for (int w = 0; w < workers; ++w) accs.emplace_back(nt);
   auto work = [&](int w) {
+    auto block = std::make_unique<BlockUnits>();
+    clear_block(*block);
     for (;;) {
       const std::uint64_t k = next.fetch_add(1);
       if (k >= blocks) break;
       const std::uint64_t start = first + k * block_size;
       const int count = static_cast<int>(std::min<std::uint64_t>(block_size, first + n - start));
-      run_block(job, start, count, accs[static_cast<std::size_t>(w)]);
+      run_block(job, start, count, accs[static_cast<std::size_t>(w)], *block);
       done.fetch_add(1);
     }
   };
@@ -767,6 +774,7 @@ namespace {
 void simulate_block_with(const RunConstants& c, const std::vector<double>& temperatures, std::uint64_t first_unit,
                          int count, std::vector<double>& errors) {
   BlockUnits b;
+  clear_block(b);
   draw_block(c, b, first_unit, count);
   if (c.cal_points > 0) calibrate_block(c, b);
   errors.assign(static_cast<std::size_t>(count) * temperatures.size(), 0.0);
