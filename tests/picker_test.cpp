@@ -1,0 +1,573 @@
+// Checks of the fixed-resistor picker (picker.hpp) and `thermargin pick`.
+//
+// Second opinions: the engines themselves run on every candidate by brute
+// force (run_budget, monte_carlo: no pruning, no picker code); SciPy's
+// bounded scalar minimiser on a re-implementation of the worst-case
+// objective from model.md (tests/reference/pick_worst_case.py, Debian's
+// /usr/bin/python3); the textbook maximum-sensitivity condition R_f = R(Tm),
+// derived below; and the three-point linearisation of Pallàs-Areny &
+// Webster (Sensors and Signal Conditioning, eq. 2.37, from a secondary
+// source per reference-values.md), checked by the property it is built on.
+#include "thermargin/picker.hpp"
+
+#include <nlohmann/json.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <limits>
+#include <sstream>
+#include <string>
+#include <tuple>
+#include <vector>
+
+#include <gtest/gtest.h>
+#include <unistd.h>
+
+#include "thermargin/budget.hpp"
+#include "thermargin/caution.hpp"
+#include "thermargin/ntc.hpp"
+
+namespace thermargin {
+namespace {
+
+// Two implementations of the same worst case (the picker's full enumeration
+// and run_budget's) run the same engine on the same temperatures: equal to
+// rounding.
+constexpr double same_engine_tolerance = 1e-12;  // K
+// The C++ chain and the NumPy re-implementation evaluate the same closed
+// forms in a different order.
+constexpr double reimplementation_tolerance = 1e-9;  // K
+// Brent (Boost, 16 bits on ln R: 2^-15·|ln R| ≈ 2.6e-4 at 5 kΩ) against
+// SciPy's bounded minimiser (xatol 1e-9): the optimum's ln R.
+constexpr double optimum_ln_tolerance = 1e-3;
+constexpr double optimum_value_tolerance = 1e-6;  // K, the objective there
+constexpr double ratio_tolerance = 1e-12;         // relative, equally spaced ratios
+// A window of ±0.01 K around Tm moves R(T) by ±0.044 % (d ln R/dT ≈ −4.3 %/K
+// at 30 °C for B = 3950 K), and Brent stops at 0.03 %.
+constexpr double max_sensitivity_tolerance = 1e-3;  // relative
+// The ADC sensitivity is a central difference over ±0.01 K (nominal.hpp).
+constexpr double sensitivity_tolerance = 1e-4;  // relative
+
+const std::string source_dir = THERMARGIN_SOURCE_DIR;
+
+Scenario scenario_with(const std::vector<std::pair<std::string, std::string>>& overrides, const std::string& file = "") {
+  Scenario s;
+  if (!file.empty()) s.load_file(file);
+  for (const auto& [k, v] : overrides) s.set(k, v, Where{Origin::command_line, "", 0, k});
+  return s;
+}
+
+std::string text(double v) {
+  std::ostringstream o;
+  o.precision(17);
+  o << v;
+  return o.str();
+}
+
+// --- Brute force: every candidate through the budget, no picker code -------
+
+struct Truth {
+  double r = 0.0;
+  bool readable = true;  // every worst-case corner in the window converted
+  double wc = 0.0, rss = 0.0, min_sensitivity = 0.0, max_current = 0.0;
+};
+
+Truth budget_of(const Scenario& base, double r_fixed, const std::vector<std::pair<std::string, std::string>>& extra = {}) {
+  Scenario s = base;
+  s.set("divider.r_fixed", text(r_fixed), Where{Origin::command_line, "", 0, "divider.r_fixed"});
+  for (const auto& [k, v] : extra) s.set(k, v, Where{Origin::command_line, "", 0, k});
+  const Design d = build_design(s);
+  const Chain chain(d);
+  BudgetOptions bo;
+  bo.monte_carlo = false;
+  const Budget b = run_budget(chain, bo);
+  Truth t;
+  t.r = r_fixed;
+  t.wc = b.wc_max_abs;
+  t.rss = b.rss_max_abs;
+  t.min_sensitivity = std::numeric_limits<double>::infinity();
+  for (const auto& p : b.points) {
+    if (p.nominal.status == Status::ok) {
+      const double v_fixed = d.divider.placement == Placement::low ? d.supply.v_excitation - p.nominal.v_node : p.nominal.v_node;
+      t.max_current = std::max(t.max_current, v_fixed / d.divider.r_fixed);
+    }
+    if (!p.in_window) continue;
+    if (p.wc.failed_corners > 0 || !p.wc.any_ok) t.readable = false;
+    t.min_sensitivity = std::min(t.min_sensitivity, std::fabs(p.nominal.sensitivity));
+  }
+  return t;
+}
+
+std::vector<Truth> ranked_by_worst_case(std::vector<Truth> v) {
+  std::sort(v.begin(), v.end(), [](const Truth& a, const Truth& b) {
+    if (a.readable != b.readable) return a.readable;
+    return a.wc != b.wc ? a.wc < b.wc : a.r < b.r;
+  });
+  return v;
+}
+
+std::vector<double> window_temperatures(const Design& d) {
+  std::vector<double> w;
+  for (double t : d.conditions.temperatures())
+    if (t >= d.requirement.window_min - 1e-9 && t <= d.requirement.window_max + 1e-9) w.push_back(t);
+  return w;
+}
+
+double r_fixed_of(const Scenario& s) { return build_design(s).divider.r_fixed; }
+
+// --- The analytic values ----------------------------------------------------
+
+// Beta curve (IEC 60539-1 definition of B): R(T) = R25·exp(B(1/T − 1/T0)).
+double beta_r(double r25, double beta, double t_celsius) {
+  return r25 * std::exp(beta * (1.0 / (t_celsius + 273.15) - 1.0 / 298.15));
+}
+
+TEST(Picker, LinearisingResistorMapsEquallySpacedTemperaturesToEquallySpacedRatios) {
+  for (const auto& [t1, t2, t3] : {std::tuple{0.0, 30.0, 60.0}, std::tuple{-30.0, -10.0, 10.0}, std::tuple{35.0, 37.5, 40.0}}) {
+    const double r1 = beta_r(10e3, 3950, t1), r2 = beta_r(10e3, 3950, t2), r3 = beta_r(10e3, 3950, t3);
+    const auto r = linearising_resistor(r1, r2, r3);
+    ASSERT_TRUE(r) << t1;
+    // Low placement: ρ = R_i/(R + R_i); high placement: 1 − that, so one
+    // value serves both.
+    const double p1 = r1 / (*r + r1), p2 = r2 / (*r + r2), p3 = r3 / (*r + r3);
+    EXPECT_NEAR((p1 - p2) / (p2 - p3), 1.0, ratio_tolerance) << t1 << ".." << t3;
+  }
+}
+
+TEST(Picker, LinearisingResistorHasNoPositiveValueForANearlyStraightRtd) {
+  // A Pt100 is slightly concave (IEC 60751: B < 0), so R1 + R3 < 2R2 and the
+  // three-point value is negative: no fixed resistor straightens it.
+  // Callendar–Van Dusen above 0 °C with the IEC 60751 coefficients, by hand.
+  const double a = 3.9083e-3, b = -5.775e-7;
+  auto pt100 = [&](double t) { return 100.0 * (1 + a * t + b * t * t); };
+  EXPECT_FALSE(linearising_resistor(pt100(0), pt100(50), pt100(100)));
+  EXPECT_FALSE(linearising_resistor(1.0, 2.0, 3.0));  // already straight: no finite value
+}
+
+// Derivation (the textbook result of reference-values.md): with the sensor
+// branch R(T) at the bottom of the divider, ρ = R/(R_f + R), so
+//   dρ/dT = R_f·R'/(R_f + R)²   and   ∂(dρ/dT)/∂R_f = R'·(R − R_f)/(R_f + R)³,
+// which vanishes only at R_f = R and changes sign there: |dρ/dT| at Tm is
+// largest for R_f = R(Tm), where it is |R'|/(4R) = B/(4T²) for the beta
+// curve (R'/R = −B/T²). In ADC counts: 2^N·B/(4T²) LSB/K.
+TEST(Picker, MaximumSensitivityValueIsTheSensorResistanceAtTheWindowCentre) {
+  const Scenario s = scenario_with({{"sensor.dissipation", "0"},
+                                    {"conditions.t_min", "29"},
+                                    {"conditions.t_max", "31"},
+                                    {"conditions.t_step", "0.01"},
+                                    {"requirement.window_min", "29.99"},
+                                    {"requirement.window_max", "30.01"}});
+  PickOptions o;
+  o.objective = Objective::sensitivity;
+  o.series = Series::e192;
+  o.range_low = 5e3;
+  o.range_high = 12e3;
+  const PickResult r = pick(s, o);
+  const double r_tm = beta_r(10e3, 3950, 30.0);
+  ASSERT_TRUE(r.guidance.max_sensitivity.r);
+  EXPECT_NEAR(*r.guidance.max_sensitivity.r / r_tm, 1.0, 1e-12);
+  ASSERT_TRUE(r.guidance.optimum.r);
+  EXPECT_NEAR(*r.guidance.optimum.r / r_tm, 1.0, max_sensitivity_tolerance);
+  ASSERT_TRUE(r.guidance.optimum.objective);
+  const double peak = 4096.0 * 3950.0 / (4.0 * 303.15 * 303.15);
+  EXPECT_NEAR(*r.guidance.optimum.objective / peak, 1.0, sensitivity_tolerance);
+  // The winner is one of the E192 values either side of R(Tm).
+  const SeriesBracket b = series_bracket(Series::e192, r_tm);
+  EXPECT_TRUE(r.winner().r_fixed == b.below || r.winner().r_fixed == b.above) << r.winner().r_fixed;
+}
+
+// --- The ranking against brute force ---------------------------------------
+
+TEST(Picker, WinnerEqualsABruteForceBudgetOfEveryCandidateOnEveryScenario) {
+  std::vector<std::string> files;
+  for (const auto& e : std::filesystem::directory_iterator(source_dir + "/scenarios"))
+    if (e.path().extension() == ".ini") files.push_back(e.path().string());
+  std::sort(files.begin(), files.end());
+  ASSERT_GE(files.size(), 5u);
+  for (const auto& file : files) {
+    SCOPED_TRACE(file);
+    const Scenario s = scenario_with({}, file);
+    const double r0 = r_fixed_of(s);
+    PickOptions o;
+    o.series = Series::e24;
+    o.range_low = r0 / 1.35;
+    o.range_high = r0 * 1.35;
+    o.top = 2;  // the rest is pruned by the bounds: exactly what is tested
+    o.guidance = false;
+    const PickResult got = pick(s, o);
+    std::vector<Truth> all;
+    for (double v : series_values(Series::e24, o.range_low, o.range_high)) all.push_back(budget_of(s, v));
+    ASSERT_GE(all.size(), 4u);
+    const auto want = ranked_by_worst_case(all);
+    ASSERT_EQ(got.rows.size(), 2u);
+    for (std::size_t k = 0; k < 2; ++k) {
+      EXPECT_EQ(got.rows[k].r_fixed, want[k].r) << "rank " << k + 1;
+      EXPECT_EQ(got.rows[k].feasible(), want[k].readable);
+      if (want[k].readable) {
+        ASSERT_TRUE(got.rows[k].wc_max_abs);
+        EXPECT_NEAR(*got.rows[k].wc_max_abs, want[k].wc, same_engine_tolerance);
+        ASSERT_TRUE(got.rows[k].rss_max_abs);
+        EXPECT_NEAR(*got.rows[k].rss_max_abs, want[k].rss, same_engine_tolerance);
+      }
+    }
+    EXPECT_EQ(best_fixed_resistor(s, o), want[0].r);
+  }
+}
+
+TEST(Picker, ConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestFeasible) {
+  const Scenario s;
+  PickOptions o;
+  o.series = Series::e24;
+  o.range_low = 5e3;
+  o.range_high = 30e3;
+  o.guidance = false;
+  o.top = 30;  // every candidate, to check the order of all of them
+  const PickResult free = pick(s, o);
+  const PickRow unconstrained = free.winner();
+  // A limit just below the winner's current excludes it (and every smaller value).
+  o.constraints.max_current = 0.99 * unconstrained.max_current;
+  const PickResult held = pick(s, o);
+
+  std::vector<Truth> all;
+  for (double v : series_values(Series::e24, o.range_low, o.range_high)) all.push_back(budget_of(s, v));
+  ASSERT_EQ(held.rows.size(), all.size());
+  std::vector<Truth> feasible;
+  for (const auto& t : all)
+    if (t.max_current <= *o.constraints.max_current) feasible.push_back(t);
+  ASSERT_FALSE(feasible.empty());
+  ASSERT_LT(feasible.size(), all.size());
+  const Truth best = ranked_by_worst_case(feasible).front();
+  EXPECT_NE(held.winner().r_fixed, unconstrained.r_fixed);
+  EXPECT_EQ(held.winner().r_fixed, best.r);
+  EXPECT_NEAR(*held.winner().wc_max_abs, best.wc, same_engine_tolerance);
+  EXPECT_TRUE(held.winner().feasible());
+  // Feasible rows first, in order of worst case; the old winner among the
+  // rejected ones, rejected by the current limit.
+  bool rejected_seen = false;
+  double previous = 0.0;
+  for (const auto& row : held.rows) {
+    if (!row.feasible()) {
+      rejected_seen = true;
+      EXPECT_EQ(row.rejected_by, std::vector<std::string>{"max-current"}) << row.r_fixed;
+      EXPECT_GT(row.max_current, *o.constraints.max_current);
+      continue;
+    }
+    EXPECT_FALSE(rejected_seen) << "feasible " << row.r_fixed << " after a rejected row";
+    EXPECT_GE(row.objective, previous);
+    previous = row.objective;
+  }
+  const auto old = std::find_if(held.rows.begin(), held.rows.end(), [&](const PickRow& r) { return r.r_fixed == unconstrained.r_fixed; });
+  ASSERT_NE(old, held.rows.end());
+  EXPECT_FALSE(old->feasible());
+  EXPECT_EQ(held.within_constraints, feasible.size());
+}
+
+TEST(Picker, LinearAndSensitivityObjectivesRankByTheirEngines) {
+  const Scenario s;
+  PickOptions o;
+  o.series = Series::e12;
+  o.range_low = 3e3;
+  o.range_high = 40e3;
+  o.guidance = false;
+  o.top = 1;
+  std::vector<Truth> all;
+  for (double v : series_values(Series::e12, o.range_low, o.range_high)) all.push_back(budget_of(s, v));
+  const auto by_rss = std::min_element(all.begin(), all.end(), [](const Truth& a, const Truth& b) { return a.rss < b.rss; });
+  const auto by_sensitivity = std::max_element(all.begin(), all.end(), [](const Truth& a, const Truth& b) {
+    return a.min_sensitivity < b.min_sensitivity;
+  });
+  o.objective = Objective::linear;
+  const PickResult lin = pick(s, o);
+  EXPECT_EQ(lin.winner().r_fixed, by_rss->r);
+  EXPECT_NEAR(lin.winner().objective, by_rss->rss, same_engine_tolerance);
+  o.objective = Objective::sensitivity;
+  const PickResult sens = pick(s, o);
+  EXPECT_EQ(sens.winner().r_fixed, by_sensitivity->r);
+  EXPECT_NEAR(sens.winner().objective, by_sensitivity->min_sensitivity, same_engine_tolerance);
+}
+
+TEST(Picker, MonteCarloObjectiveRanksByTheEngineBandWithTheSameDraws) {
+  const Scenario s;
+  PickOptions o;
+  o.values = {10e3, 13e3, 16e3};
+  o.objective = Objective::monte_carlo;
+  o.mc_units = 2000;
+  o.guidance = false;
+  o.top = 3;
+  const PickResult got = pick(s, o);
+  std::vector<std::pair<double, double>> truth;  // band, r
+  for (double v : o.values) {
+    Scenario c = s;
+    c.set("divider.r_fixed", text(v), Where{});
+    const Design d = build_design(c);
+    const Chain chain(d);
+    McOptions mo;
+    mo.units = 2000;
+    truth.push_back({monte_carlo(chain, window_temperatures(d), mo).summary.max_abs, v});
+  }
+  std::sort(truth.begin(), truth.end());
+  ASSERT_EQ(got.rows.size(), 3u);
+  for (std::size_t k = 0; k < 3; ++k) {
+    EXPECT_EQ(got.rows[k].r_fixed, truth[k].second);
+    ASSERT_TRUE(got.rows[k].mc_max_abs);
+    EXPECT_EQ(*got.rows[k].mc_max_abs, truth[k].first);  // deterministic in (seed, units)
+  }
+  EXPECT_EQ(got.mc_objective_units, 2000u);
+}
+
+TEST(Picker, PairSearchEqualsBruteForceOverEveryPairAndNone) {
+  const Scenario s;
+  PickOptions o;
+  o.values = {10e3, 13e3, 22e3, 47e3};
+  o.parallel = true;
+  o.guidance = false;
+  o.top = 2;
+  const PickResult got = pick(s, o);
+  EXPECT_TRUE(got.pair_search);
+  EXPECT_FALSE(got.reduced_pair_search);
+  EXPECT_EQ(got.candidates, 4u * 5u);
+  struct Pair {
+    double wc;
+    double rf;
+    double rp;  // inf: none
+  };
+  std::vector<Pair> truth;
+  const double none = std::numeric_limits<double>::infinity();
+  for (double rf : o.values) {
+    // docs/pick.md: without --grade and without a parallel resistor in the
+    // scenario, the parallel resistor has the fixed resistor's tolerance.
+    truth.push_back({budget_of(s, rf).wc, rf, none});
+    for (double rp : o.values) {
+      const Truth t = budget_of(s, rf, {{"divider.r_parallel", text(rp)}, {"divider.r_parallel_tol", "1%"}});
+      truth.push_back({t.wc, rf, rp});
+    }
+  }
+  std::sort(truth.begin(), truth.end(), [](const Pair& a, const Pair& b) { return a.wc < b.wc; });
+  for (std::size_t k = 0; k < 2; ++k) {
+    EXPECT_EQ(got.rows[k].r_fixed, truth[k].rf) << k;
+    EXPECT_EQ(got.rows[k].r_parallel.value_or(none), truth[k].rp) << k;
+    EXPECT_NEAR(*got.rows[k].wc_max_abs, truth[k].wc, same_engine_tolerance);
+  }
+}
+
+TEST(Picker, RankingDoesNotDependOnTheThreadCount) {
+  const Scenario s;
+  PickOptions o;
+  o.range_low = 5e3;
+  o.range_high = 30e3;
+  o.top = 5;
+  o.threads = 1;
+  const PickResult one = pick(s, o);
+  o.threads = 2;
+  const PickResult two = pick(s, o);
+  ASSERT_EQ(one.rows.size(), two.rows.size());
+  for (std::size_t k = 0; k < one.rows.size(); ++k) {
+    EXPECT_EQ(one.rows[k].r_fixed, two.rows[k].r_fixed);
+    EXPECT_EQ(one.rows[k].objective, two.rows[k].objective);
+    EXPECT_EQ(one.rows[k].rss_max_abs, two.rows[k].rss_max_abs);
+  }
+  EXPECT_EQ(one.evaluated_in_full, two.evaluated_in_full);
+  EXPECT_EQ(one.guidance.optimum.r, two.guidance.optimum.r);
+}
+
+TEST(Picker, GradeOverridesTheScenarioTolerance) {
+  const Scenario s;
+  PickOptions o;
+  o.values = {12e3, 15e3};
+  o.tolerance = 0.001;
+  o.tempco = 25e-6;
+  o.guidance = false;
+  const PickResult got = pick(s, o);
+  EXPECT_EQ(got.tolerance, 0.001);
+  EXPECT_EQ(got.tempco, 25e-6);
+  const Truth t = budget_of(s, got.winner().r_fixed, {{"divider.r_fixed_tol", "0.1%"}, {"divider.r_fixed_tempco", "25ppm"}});
+  EXPECT_NEAR(*got.winner().wc_max_abs, t.wc, same_engine_tolerance);
+}
+
+// --- The continuous optimum against SciPy ----------------------------------
+
+TEST(Picker, ContinuousOptimumAgreesWithScipyOnAReimplementedObjective) {
+  // The simple design pick_worst_case.py re-implements: no self-heating,
+  // board at 25 °C, no noise, no output rounding, beta conversion.
+  const Scenario s = scenario_with({{"sensor.dissipation", "0"},
+                                    {"adc.noise", "0"},
+                                    {"firmware.resolution", "0"},
+                                    {"conditions.t_min", "0"},
+                                    {"conditions.t_max", "60"},
+                                    {"conditions.t_step", "1"},
+                                    {"conditions.board", "25"}});
+  PickOptions o;
+  o.range_low = 3e3;
+  o.range_high = 40e3;
+  o.top = 3;
+  const PickResult got = pick(s, o);
+  ASSERT_TRUE(got.guidance.optimum.r);
+  std::ostringstream cmd;
+  cmd.precision(17);
+  cmd << THERMARGIN_PYTHON << " " << source_dir << "/tests/reference/pick_worst_case.py"
+      << " 10000 3950 0.01 0.01 0.01 2 0.002 1 12 0 60 1 " << o.range_low << " " << o.range_high << " 10000 13700 "
+      << *got.guidance.optimum.r;
+  FILE* pipe = popen(cmd.str().c_str(), "r");
+  ASSERT_NE(pipe, nullptr);
+  std::string out;
+  char buf[512];
+  while (std::fgets(buf, sizeof buf, pipe)) out += buf;
+  ASSERT_EQ(pclose(pipe), 0) << cmd.str();
+  const auto j = nlohmann::json::parse(out);
+  const double r_scipy = j["r"], f_scipy = j["objective"];
+  // The two implementations of the objective agree where both are evaluated.
+  const std::vector<double> at{10000.0, 13700.0, *got.guidance.optimum.r};
+  for (std::size_t k = 0; k < at.size(); ++k) {
+    const auto mine = objective_at(s, o, at[k]);
+    ASSERT_TRUE(mine);
+    EXPECT_NEAR(*mine, j["at"][k].get<double>(), reimplementation_tolerance) << at[k];
+  }
+  // And their minimisers find the same optimum.
+  EXPECT_NEAR(std::log(*got.guidance.optimum.r / r_scipy), 0.0, optimum_ln_tolerance);
+  EXPECT_NEAR(*got.guidance.optimum.objective, f_scipy, optimum_value_tolerance);
+  // The series values either side bracket it and are E96 members.
+  const GuidanceValue& g = got.guidance.optimum;
+  ASSERT_TRUE(g.below && g.above);
+  EXPECT_LE(*g.below, *g.r);
+  EXPECT_GE(*g.above, *g.r);
+  EXPECT_EQ(coarsest_series(*g.below).has_value(), true);
+  EXPECT_GE(*g.below_objective, *g.objective - optimum_value_tolerance);
+  EXPECT_GE(*g.above_objective, *g.objective - optimum_value_tolerance);
+}
+
+// --- Bad options -----------------------------------------------------------
+
+TEST(Picker, BadOptionsAreRejectedBeforeAnyWork) {
+  const Scenario s;
+  PickOptions o;
+  o.range_low = 10e3;
+  o.range_high = 1e3;
+  EXPECT_THROW(pick(s, o), input_error);
+  o = {};
+  o.top = 0;
+  EXPECT_THROW(pick(s, o), input_error);
+  o = {};
+  o.constraints.max_self_heating = -0.1;
+  EXPECT_THROW(pick(s, o), input_error);
+  o = {};
+  o.series = Series::e12;
+  o.range_low = 1.01e3;
+  o.range_high = 1.019e3;  // no E12 value inside
+  EXPECT_THROW(pick(s, o), input_error);
+  EXPECT_THROW(parse_range("1M..1k", Where{}), input_error);
+  EXPECT_THROW(parse_series("e7", Where{}), input_error);
+  EXPECT_THROW(parse_objective("fastest", Where{}), input_error);
+  EXPECT_THROW(parse_limit("-1m", Quantity::current, Where{}), input_error);
+  EXPECT_EQ(parse_values("4k7,10k,22k", Where{}), (std::vector<double>{4700.0, 10e3, 22e3}));
+  const Grade g = parse_grade("0.1%,25ppm", Where{});
+  EXPECT_DOUBLE_EQ(g.tolerance, 0.001);
+  EXPECT_DOUBLE_EQ(*g.tempco, 25e-6);
+}
+
+// --- The command line --------------------------------------------------------
+
+struct CliRun {
+  int status = -1;
+  std::string out, err;
+};
+
+CliRun run_cli(const std::string& args) {
+  const auto dir = std::filesystem::temp_directory_path() / ("thermargin_pick_test_" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  const auto err_file = dir / "stderr.txt";
+  const std::string command = std::string(THERMARGIN_CLI) + " pick " + args + " 2>" + err_file.string();
+  CliRun r;
+  FILE* pipe = popen(command.c_str(), "r");
+  if (!pipe) return r;
+  char buf[4096];
+  while (std::size_t n = std::fread(buf, 1, sizeof buf, pipe)) r.out.append(buf, n);
+  const int status = pclose(pipe);
+  r.status = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+  std::ifstream in(err_file);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  r.err = ss.str();
+  std::filesystem::remove_all(dir);
+  return r;
+}
+
+TEST(PickCli, JsonHasTheInterfaceFieldsBestFirstAndTheWinner) {
+  const CliRun r = run_cli("--series e24 --range 8k..20k --top 3 --format json");
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto j = nlohmann::json::parse(r.out);
+  EXPECT_EQ(j["command"], "pick");
+  EXPECT_EQ(j["caution"], std::string(caution));
+  ASSERT_EQ(j["rows"].size(), 3u);
+  for (const auto& row : j["rows"])
+    for (const char* key : {"r_fixed", "wc_max_abs", "rss_max_abs", "min_sensitivity", "max_self_heating", "max_current", "rejected_by"})
+      EXPECT_TRUE(row.contains(key)) << key;
+  EXPECT_EQ(j["winner"], j["rows"][0]);
+  EXPECT_TRUE(j["rows"][0]["rejected_by"].is_null());
+  EXPECT_LE(j["rows"][0]["wc_max_abs"].get<double>(), j["rows"][1]["wc_max_abs"].get<double>());
+  // The command line and the library agree.
+  PickOptions o;
+  o.series = Series::e24;
+  o.range_low = 8e3;
+  o.range_high = 20e3;
+  o.top = 3;
+  o.guidance = false;
+  EXPECT_EQ(j["winner"]["r_fixed"].get<double>(), pick(Scenario{}, o).winner().r_fixed);
+}
+
+TEST(PickCli, TextLeadsWithTheVerdictAndCsvCarriesTheCaution) {
+  const CliRun txt = run_cli("--series e12 --range 5k..30k --top 3 --verify 2 --mc-units 2000");
+  ASSERT_EQ(txt.status, 0) << txt.err;
+  std::istringstream lines(txt.out);
+  std::string first, blank, verdict;
+  std::getline(lines, first);
+  std::getline(lines, blank);
+  std::getline(lines, verdict);
+  EXPECT_EQ(first.rfind("thermargin pick - ", 0), 0u);
+  EXPECT_EQ(verdict.rfind("Best: ", 0), 0u) << verdict;
+  EXPECT_NE(txt.out.find("verify MC (K)"), std::string::npos);
+  EXPECT_NE(txt.out.find(std::string(caution)), std::string::npos);
+  const CliRun csv = run_cli("--series e12 --range 5k..30k --top 3 --format csv --no-guidance");
+  ASSERT_EQ(csv.status, 0) << csv.err;
+  EXPECT_EQ(csv.out.rfind("# " + std::string(caution), 0), 0u);
+  EXPECT_EQ(std::count(csv.out.begin(), csv.out.end(), '\n'), 5);  // caution, header, 3 rows
+}
+
+TEST(PickCli, VerifyAddsAMonteCarloBandAndYieldToTheTopRows) {
+  const CliRun r = run_cli("--series e12 --range 5k..30k --top 3 --verify 2 --mc-units 3000 --no-guidance --format json");
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto j = nlohmann::json::parse(r.out);
+  ASSERT_EQ(j["rows"].size(), 3u);
+  for (int k = 0; k < 2; ++k) {
+    const auto& v = j["rows"][k]["verify"];
+    EXPECT_EQ(v["units"], 3000);
+    EXPECT_GE(v["yield"].get<double>(), v["yield_low"].get<double>());
+    EXPECT_LE(v["yield"].get<double>(), v["yield_high"].get<double>());
+    EXPECT_GT(v["mc_max_abs"].get<double>(), 0.0);
+  }
+  EXPECT_FALSE(j["rows"][2].contains("verify"));
+}
+
+TEST(PickCli, BadInputIsOneLineNamingTheOptionAndExitStatusTwo) {
+  for (const auto& [args, option] : std::vector<std::pair<std::string, std::string>>{
+           {"--range 10k..1k", "--range"},
+           {"--range 1k..1k", "--range"},
+           {"--series e7", "--series"},
+           {"--objective fastest", "--objective"},
+           {"--max-current -1m", "--max-current"},
+           {"--max-self-heating -0.1", "--max-self-heating"},
+           {"--min-span 0", "--min-span"},
+           {"--values 4k7,10k --range 1k..2k", "--range"},
+           {"--top 0", "--top"}}) {
+    const CliRun r = run_cli(args);
+    EXPECT_EQ(r.status, 2) << args;
+    EXPECT_TRUE(r.out.empty()) << args;
+    EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << args << ": " << r.err;
+    EXPECT_NE(r.err.find(option), std::string::npos) << r.err;
+  }
+}
+
+}  // namespace
+}  // namespace thermargin
