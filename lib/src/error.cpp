@@ -2,6 +2,21 @@
 
 namespace thermargin {
 
+std::string one_line(std::string_view message) {
+  static constexpr char hex[] = "0123456789abcdef";
+  std::string line;
+  line.reserve(message.size());
+  for (const char ch : message) {
+    const auto u = static_cast<unsigned char>(ch);
+    if (ch == '\n') line += "\\n";
+    else if (ch == '\r') line += "\\r";
+    else if (ch == '\t') line += ' ';
+    else if (u < 0x20 || u == 0x7f) line += std::string("\\x") + hex[u >> 4] + hex[u & 15];
+    else line += ch;
+  }
+  return line;
+}
+
 std::string Where::origin() const {
   switch (kind) {
     case Origin::built_in: return "default";

@@ -24,9 +24,15 @@ struct Where {
   std::string origin() const;  // "scenario.ini:12", "command line", "default"
 };
 
+// The message as one printable line: a line break or another control
+// character that came in with the user's text (a quoted catalogue field, a
+// command-line argument) is written as an escape (`\n`, `\x1b`), so the
+// CLI's message stays one line and cannot drive the terminal.
+std::string one_line(std::string_view message);
+
 class input_error : public std::runtime_error {
  public:
-  explicit input_error(const std::string& message) : std::runtime_error(message) {}
+  explicit input_error(const std::string& message) : std::runtime_error(one_line(message)) {}
 };
 
 // Rejects a value: "divider.r_fixed = -10k (scenario.ini:12): must be > 0".
