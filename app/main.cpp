@@ -50,7 +50,7 @@ int main(int argc, char** argv) {
     if (command == "table") return thermargin::cli::run_table(argc - 1, argv + 1);
     if (command == "pick") return thermargin::cli::run_pick(argc - 1, argv + 1);
     if (command == "grades") return thermargin::cli::run_grades(argc - 1, argv + 1);
-    std::cerr << "thermargin: unknown command '" << command << "'; accepted: budget, check, fit, grades, table (see thermargin --help)\n";
+    std::cerr << "thermargin: unknown command '" << command << "'; accepted: budget, check, fit, grades, pick, table (see thermargin --help)\n";
     return 2;
   } catch (const thermargin::input_error& e) {
     std::cerr << "thermargin: " << e.what() << "\n";
