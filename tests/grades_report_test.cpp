@@ -1,0 +1,124 @@
+// Tests of thermargin/grades_report.hpp: the grades page and chart built
+// from evaluate_grades() in process, read back by an outside reader
+// (tests/reference/report_choice_check.py: Python's html.parser and
+// xml.etree) and held against `thermargin grades --format json` run with
+// the same catalogue on the same scenario, with and without a combination
+// that meets the requirement; grade names from the catalogue are user text.
+#include "thermargin/grades_report.hpp"
+
+#include <gtest/gtest.h>
+#include <unistd.h>
+
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+#include <string>
+
+namespace thermargin {
+namespace {
+
+namespace fs = std::filesystem;
+
+const std::string kScenario = std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/fermentation_probe.ini";
+const std::string kChecker = std::string(THERMARGIN_SOURCE_DIR) + "/tests/reference/report_choice_check.py";
+constexpr std::uint64_t kUnits = 2000;  // Monte Carlo units per combination: quick, enough for a yield
+
+// Three slots, twelve combinations; invented prices. One grade name carries
+// markup and an ampersand, as a user's catalogue may.
+constexpr const char* kCatalogue =
+    "slot,grade,unit_cost,settings,notes\n"
+    "thermistor,1%,0.10,sensor.r25_tol=1%;sensor.beta_tol=1%,loose\n"
+    "thermistor,0.5%,0.18,sensor.r25_tol=0.5%;sensor.beta_tol=0.5%,\n"
+    "thermistor,<b>0.2%</b> & co,0.45,sensor.r25_tol=0.2%;sensor.beta_tol=0.3%,\n"
+    "resistor,1%,0.002,divider.r_fixed_tol=1%;divider.r_fixed_tempco=100ppm,\n"
+    "resistor,0.1%,0.02,divider.r_fixed_tol=0.1%;divider.r_fixed_tempco=25ppm,\n"
+    "adc,internal,0,adc.gain_error=0.1%;adc.offset=1;adc.inl=1,\n"
+    "adc,external,1.20,adc.gain_error=0.02%;adc.offset=0.5;adc.inl=0.5,\n";
+
+struct TempDir {
+  fs::path path;
+  TempDir() {
+    std::string tmpl = (fs::temp_directory_path() / "thermargin-grades-report-XXXXXX").string();
+    path = ::mkdtemp(tmpl.data());
+  }
+  ~TempDir() {
+    std::error_code ec;
+    fs::remove_all(path, ec);
+  }
+};
+
+std::string quote(const std::string& s) {
+  std::string q = "'";
+  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return q + "'";
+}
+
+std::string output_of(const std::string& command) {
+  std::string out;
+  FILE* p = ::popen((command + " 2>&1").c_str(), "r");
+  if (!p) return "(popen failed)";
+  char buf[4096];
+  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
+  const int status = ::pclose(p);
+  if (status != 0) out += "(exit " + std::to_string(status) + ")";
+  return out;
+}
+
+std::string slurp(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+// `max_error` overrides the requirement ("" keeps the scenario's 0.5 K).
+// `cli_extra` goes to the CLI only, to show that the reader notices two different runs.
+std::string cli_and_report_agree(const TempDir& dir, const std::string& max_error, const std::string& cli_extra = "") {
+  const fs::path cat = dir.path / "grades.csv", json = dir.path / "grades.json", html = dir.path / "grades.html",
+                 plots = dir.path / "plots";
+  std::ofstream(cat) << kCatalogue;
+  const std::string over = max_error.empty() ? "" : " --requirement.max_error=" + max_error;
+  const std::string ran = output_of(quote(THERMARGIN_CLI) + " grades " + quote(kScenario) + over + " --catalogue " +
+                                    quote(cat.string()) + " --units " + std::to_string(kUnits) +
+                                    " --format json --output " + quote(json.string()) + cli_extra);
+  if (!ran.empty()) return "CLI: " + ran;
+  Scenario s;
+  s.load_file(kScenario);
+  if (!max_error.empty())
+    s.set("requirement.max_error", max_error, Where{Origin::command_line, "", 0, "requirement.max_error"});
+  const Design d = build_design(s);
+  const Catalogue c = read_catalogue(cat.string());
+  GradesOptions o;
+  o.units = kUnits;
+  const GradesResult g = evaluate_grades(s, c, o);
+  write_report(html.string(), grades_report_html(d, s, c, g, kScenario));
+  write_figures("--plots", plots.string(), grades_figures(g));
+  return output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " grades " + quote(html.string()) + " " +
+                   quote(json.string()) + " " + quote(plots.string()));
+}
+
+TEST(GradesReport, ChartAndTableMatchTheGradesJsonWithARecommendation) {
+  TempDir dir;
+  EXPECT_EQ(cli_and_report_agree(dir, ""), "ok: 1 chart\n");
+  const std::string html = slurp(dir.path / "grades.html");
+  EXPECT_EQ(html.find("<b>0.2%"), std::string::npos);
+  EXPECT_NE(html.find("&lt;b&gt;0.2%&lt;/b&gt; &amp; co"), std::string::npos);
+  EXPECT_NE(html.find("class=\"verdict pass\""), std::string::npos);
+}
+
+TEST(GradesReport, NoCombinationMeetingTheRequirementIsAFailWithNothingRinged) {
+  TempDir dir;
+  EXPECT_EQ(cli_and_report_agree(dir, "0.1"), "ok: 1 chart\n");
+  EXPECT_NE(slurp(dir.path / "grades.html").find("class=\"verdict fail\""), std::string::npos);
+}
+
+TEST(GradesReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
+  // The CLI measures error by the linear band, the page by the worst case.
+  TempDir dir;
+  const std::string out = cli_and_report_agree(dir, "", " --by linear");
+  EXPECT_EQ(out.rfind("FAIL: ", 0), 0u) << out;
+}
+
+}  // namespace
+}  // namespace thermargin

@@ -1,0 +1,148 @@
+// Tests of thermargin/pick_report.hpp: the pick page and chart built from
+// pick() in process, read back by an outside reader
+// (tests/reference/report_choice_check.py: Python's html.parser and
+// xml.etree) and held against `thermargin pick --format json` run with the
+// same options on the same scenario; candidates whose window cannot be read
+// are gaps and lie, with those a constraint rules out, in hatched regions.
+#include "thermargin/pick_report.hpp"
+
+#include <gtest/gtest.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cstdio>
+#include <filesystem>
+#include <string>
+#include <vector>
+
+namespace thermargin {
+namespace {
+
+namespace fs = std::filesystem;
+
+const std::string kScenario = std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/fermentation_probe.ini";
+const std::string kChecker = std::string(THERMARGIN_SOURCE_DIR) + "/tests/reference/report_choice_check.py";
+// Ohm values from far too small (the ADC saturates: 1 and 10 ohm against a
+// 10 kohm NTC) to far too large, and a self-heating limit that rules out the
+// low ones: every kind of row a pick chart has.
+const std::string kValues = "1,10,1k,4k7,10k,12k,22k,47k,100k";
+// Fewer for the pair search, which tries every pair (and "none" in parallel).
+const std::string kPairValues = "1,4k7,12k,47k";
+constexpr double kMaxSelfHeating = 0.06;  // K
+constexpr double kLimit = 0.5;            // K, the scenario's requirement.max_error
+
+struct TempDir {
+  fs::path path;
+  TempDir() {
+    std::string tmpl = (fs::temp_directory_path() / "thermargin-pick-report-XXXXXX").string();
+    path = ::mkdtemp(tmpl.data());
+  }
+  ~TempDir() {
+    std::error_code ec;
+    fs::remove_all(path, ec);
+  }
+};
+
+std::string quote(const std::string& s) {
+  std::string q = "'";
+  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return q + "'";
+}
+
+std::string output_of(const std::string& command) {
+  std::string out;
+  FILE* p = ::popen((command + " 2>&1").c_str(), "r");
+  if (!p) return "(popen failed)";
+  char buf[4096];
+  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
+  const int status = ::pclose(p);
+  if (status != 0) out += "(exit " + std::to_string(status) + ")";
+  return out;
+}
+
+PickOptions options(bool parallel) {
+  PickOptions o;
+  o.values = parse_values(parallel ? kPairValues : kValues, Where{Origin::command_line, "", 0, "--values"});
+  o.constraints.max_self_heating = kMaxSelfHeating;
+  o.parallel = parallel;
+  o.top = 100;
+  return o;
+}
+
+Scenario scenario() {
+  Scenario s;
+  s.load_file(kScenario);
+  return s;
+}
+
+// The same pick through the CLI (JSON) and in process (report), compared by the outside reader.
+// `cli_extra` goes to the CLI only, to show that the reader notices two different runs.
+std::string cli_and_report_agree(bool parallel, const TempDir& dir, const std::string& cli_extra = "") {
+  const fs::path json = dir.path / "pick.json", html = dir.path / "pick.html", plots = dir.path / "plots";
+  const std::string cli = quote(THERMARGIN_CLI) + " pick " + quote(kScenario) + " --values " + (parallel ? kPairValues : kValues) +
+                          " --max-self-heating 0.06 --top 100" + (parallel ? " --parallel" : "") + cli_extra +
+                          " --format json --output " + quote(json.string());
+  const std::string ran = output_of(cli);
+  if (!ran.empty()) return "CLI: " + ran;
+  const Scenario s = scenario();
+  const Design d = build_design(s);
+  const PickOptions o = options(parallel);
+  const PickResult r = pick(s, o);
+  write_report(html.string(), pick_report_html(d, s, r, o, kScenario));
+  write_figures("--plots", plots.string(), pick_figures(d, r));
+  return output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " pick " + quote(html.string()) + " " +
+                   quote(json.string()) + " " + std::to_string(kLimit) + " " + quote(plots.string()));
+}
+
+TEST(PickReport, ChartAndTablesMatchThePickJson) {
+  TempDir dir;
+  EXPECT_EQ(cli_and_report_agree(false, dir), "ok: 1 chart\n");
+}
+
+TEST(PickReport, PairSearchMatchesThePickJsonToo) {
+  TempDir dir;
+  EXPECT_EQ(cli_and_report_agree(true, dir), "ok: 1 chart\n");
+}
+
+TEST(PickReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
+  // A smaller current limit on the CLI rules out more values than the page
+  // shows as ruled out.
+  TempDir dir;
+  const std::string out = cli_and_report_agree(false, dir, " --max-current 150u");
+  EXPECT_EQ(out.rfind("FAIL: ", 0), 0u) << out;
+}
+
+TEST(PickFigures, UnreadableCandidatesAreGapsInsideTheRuledOutRegion) {
+  const Scenario s = scenario();
+  const Design d = build_design(s);
+  const PickResult r = pick(s, options(false));
+  const auto f = pick_figures(d, r);
+  ASSERT_EQ(f.size(), 1u);
+  EXPECT_EQ(f[0].file, "pick-candidates.svg");
+  EXPECT_EQ(f[0].chart.x.scale, svg::Scale::log10);
+  const svg::Series* curve = nullptr;
+  std::vector<const svg::Series*> strips;
+  for (const auto& series : f[0].chart.series) {
+    if (series.name == "objective") curve = &series;
+    if (series.name.starts_with("excluded_")) strips.push_back(&series);
+  }
+  ASSERT_NE(curve, nullptr);
+  ASSERT_FALSE(strips.empty());
+  int unreadable = 0;
+  for (std::size_t i = 0; i < curve->x.size(); ++i) {
+    const double ohm = curve->x[i];
+    const auto row = std::find_if(r.rows.begin(), r.rows.end(), [&](const PickRow& w) { return w.r_fixed == ohm; });
+    ASSERT_NE(row, r.rows.end());
+    if (row->status != Status::ok) {
+      ++unreadable;
+      EXPECT_FALSE(curve->y[i].has_value()) << ohm;  // a gap, never a zero
+    }
+    bool inside = false;
+    for (const auto* sp : strips) inside = inside || (sp->x[0] <= ohm && ohm <= sp->x[1]);
+    EXPECT_EQ(inside, !row->feasible()) << ohm;
+  }
+  EXPECT_GE(unreadable, 1) << "1 ohm against a 10 kohm NTC was meant to saturate";
+}
+
+}  // namespace
+}  // namespace thermargin
