@@ -31,7 +31,7 @@ constexpr double inf = std::numeric_limits<double>::infinity();
 // Full evaluations are done in batches of this many candidates whatever the
 // thread count, so the work done (and every number reported) does not
 // depend on the machine.
-constexpr std::size_t full_batch = 8;
+constexpr std::size_t full_batch = 4;
 // Brent stops when ln R is known to 2^(1−bits)·|ln R|: about 3e-4 (0.03 %
 // in R) for kilohms, a fortieth of the 1.2 % step of E192.
 constexpr int brent_bits = 16;
@@ -246,13 +246,18 @@ McCheck mc_window(const Chain& chain, const std::vector<double>& temps, std::uin
 
 // A lower bound of the worst case over the window: at each temperature the
 // two corners a linear model calls extreme (each input at the bound the sign
-// of its sensitivity points to, as worst_case.hpp directs them), each read
-// at both ends of the reading interval, calibration readings at the same
-// end. These are units the full enumeration visits too, so
-//   max |error| here + ½ resolution ≤ the full worst case,
-// and a reading they cannot convert fails the full enumeration as well.
-// Where the linear budget could not be formed no corner is known: the
-// bound stays 0 there (the full enumeration decides).
+// of its sensitivity points to), each read at both ends of the reading
+// interval, calibration readings at the same end, outputs not rounded.
+// These are corners of the box the full enumeration visits, and the error
+// is monotone in each output rounding (worst_case.hpp), so an unrounded
+// value lies between the enumeration's extremes: |error| here is a lower
+// bound of the full worst case. Without calibration, or with an offset
+// calibration, the rounding at t moves the error by ±½ resolution (or more)
+// on its own, so that much is added; a two-point calibration scales it by
+// its gain, so nothing is added there. A reading these corners cannot
+// convert fails the full enumeration as well. Where the linear budget could
+// not be formed no corner is known: the bound stays 0 there (the full
+// enumeration decides).
 struct DirectedBound {
   double value = 0.0;           // K
   Status status = Status::ok;   // first failure at a visited corner
@@ -262,6 +267,7 @@ struct DirectedBound {
 DirectedBound directed_bound(const Chain& chain, const std::vector<double>& temps, const LinearBudget& lb) {
   const Design& d = chain.design();
   const ReadingInterval q = reading_interval(d);
+  const double rounding = d.firmware.calibration == Calibration::two_point ? 0.0 : 0.5 * d.firmware.resolution;
   DirectedBound b;
   b.at.assign(temps.size(), 0.0);
   double largest = -inf;
@@ -283,11 +289,11 @@ DirectedBound directed_bound(const Chain& chain, const std::vector<double>& temp
           continue;
         }
         largest = std::max(largest, std::fabs(e.error));
-        b.at[i] = std::max(b.at[i], std::fabs(e.error) + 0.5 * d.firmware.resolution);
+        b.at[i] = std::max(b.at[i], std::fabs(e.error) + rounding);
       }
     }
   }
-  b.value = std::isfinite(largest) ? largest + 0.5 * d.firmware.resolution : 0.0;
+  b.value = std::isfinite(largest) ? largest + rounding : 0.0;
   return b;
 }
 
@@ -544,10 +550,12 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
   ctx.options = options;
   ctx.base = scenario;
   ctx.pair = options.parallel;
+  int given_threads = 0;
   {
     // Validate the scenario as given before changing it, so that its own
     // mistakes are reported against its own keys.
     const Design given = build_design(scenario);
+    given_threads = given.montecarlo.threads;
     const Where grade = option("--grade");
     if (options.tolerance) ctx.base.set("divider.r_fixed_tol", number_text(*options.tolerance), grade);
     if (options.tempco) ctx.base.set("divider.r_fixed_tempco", number_text(*options.tempco), grade);
@@ -561,12 +569,15 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
       ctx.base.set("divider.r_parallel_tol", number_text(tol), grade);
     }
   }
+  // The engines run single-threaded inside the picker, which spreads
+  // candidates (or temperatures) over the threads itself.
+  ctx.base.set("montecarlo.threads", "1", option("pick"));
   ctx.design = build_design(ctx.base);
   const Design& d = ctx.design;
   ctx.range = d.conditions.temperatures();
   for (double t : ctx.range)
     if (t >= d.requirement.window_min - window_slack && t <= d.requirement.window_max + window_slack) ctx.window.push_back(t);
-  int threads = options.threads >= 0 ? options.threads : d.montecarlo.threads;
+  int threads = options.threads >= 0 ? options.threads : given_threads;
   if (threads == 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   ctx.threads = threads;
   ctx.mc_objective_units = default_units(d, options.mc_units, mc_objective_cap);
