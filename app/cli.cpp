@@ -16,13 +16,13 @@ namespace thermargin::cli {
 
 namespace {
 
-po::options_description common_options(bool takes_scenario, bool has_report) {
+po::options_description common_options(bool has_report, bool has_verdict) {
   po::options_description o("Common options");
   o.add_options()("help,h", "show this help")("format", po::value<std::string>()->default_value("text"),
                                                 "text | csv | json")(
       "output,o", po::value<std::string>(), "write to FILE instead of standard output (whole or not at all)");
   if (has_report) o.add_options()("report", po::value<std::string>(), "also write a self-contained HTML report to FILE");
-  if (takes_scenario) o.add_options()("strict", "exit with status 3 when the verdict fails");
+  if (has_verdict) o.add_options()("strict", "exit with status 3 when the verdict fails");
   return o;
 }
 
@@ -45,13 +45,13 @@ po::options_description hidden_key_options() {
 }  // namespace
 
 bool help_requested(const std::string& command, int argc, char** argv, const std::string& usage,
-                    const po::options_description& own, bool takes_scenario) {
+                    const po::options_description& own, bool takes_scenario, bool has_report, bool has_verdict) {
   for (int i = 1; i < argc; ++i) {
     const std::string a = argv[i];
     if (a == "--help" || a == "-h") {
       std::cout << "Usage: thermargin " << command << " " << usage << "\n\n";
       if (!own.options().empty()) std::cout << own << "\n";
-      std::cout << common_options(takes_scenario, true) << "\n";
+      std::cout << common_options(has_report, has_verdict) << "\n";
       if (takes_scenario) std::cout << key_options() << "\n";
       std::cout << caution << "\n";
       return true;
@@ -61,11 +61,11 @@ bool help_requested(const std::string& command, int argc, char** argv, const std
 }
 
 Invocation parse(const std::string& command, int argc, char** argv, const po::options_description& own,
-                 bool takes_scenario, bool has_report) {
+                 bool takes_scenario, bool has_report, bool has_verdict) {
   Invocation inv;
   inv.command = command;
   po::options_description all;
-  all.add(common_options(takes_scenario, has_report)).add(own);
+  all.add(common_options(has_report, has_verdict)).add(own);
   if (takes_scenario) all.add(key_options()).add(hidden_key_options());
   po::options_description positional_holder;
   positional_holder.add_options()("input-file", po::value<std::vector<std::string>>());

@@ -28,15 +28,17 @@ struct Invocation {
 };
 
 // Parses argv for `command`: the scenario file (if the command takes one),
-// every scenario key as --section.key=value, --format, --output, --report,
-// --strict and the command's own options. Throws input_error on bad input.
+// every scenario key as --section.key=value, --format, --output, --report
+// (commands with a report), --strict (commands with a verdict) and the
+// command's own options. Throws input_error on bad input.
 Invocation parse(const std::string& command, int argc, char** argv, const po::options_description& own,
-                 bool takes_scenario, bool has_report);
+                 bool takes_scenario, bool has_report, bool has_verdict = false);
 
 // Prints --help for a command: usage, own options, the common options and
 // the caution. Returns true when help was asked for (and printed).
 bool help_requested(const std::string& command, int argc, char** argv, const std::string& usage,
-                    const po::options_description& own, bool takes_scenario);
+                    const po::options_description& own, bool takes_scenario, bool has_report,
+                    bool has_verdict = false);
 
 // Writes the command's output to --output (atomically) or stdout.
 void emit(const Invocation& inv, const std::string& text);

@@ -223,8 +223,8 @@ int run_budget(int argc, char** argv) {
       "worst-case corners: auto | enumerate | directed")(
       "plots", po::value<std::string>(),
       "also write the report's charts as standalone SVG files into DIR (created when its parent exists)");
-  if (help_requested("budget", argc, argv, "[FILE] [options]", own, true)) return 0;
-  const Invocation inv = parse("budget", argc, argv, own, true, true);
+  if (help_requested("budget", argc, argv, "[FILE] [options]", own, true, true, true)) return 0;
+  const Invocation inv = parse("budget", argc, argv, own, true, true, true);
   const Design design = build_design(inv.scenario);
   BudgetOptions options;
   options.monte_carlo = inv.vm.count("no-mc") == 0;

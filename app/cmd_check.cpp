@@ -12,7 +12,7 @@ namespace thermargin::cli {
 
 int run_check(int argc, char** argv) {
   po::options_description own("check options");
-  if (help_requested("check", argc, argv, "[FILE] [options]", own, true)) return 0;
+  if (help_requested("check", argc, argv, "[FILE] [options]", own, true, false)) return 0;
   const Invocation inv = parse("check", argc, argv, own, true, false);
   const Design design = build_design(inv.scenario);  // validates everything
 

@@ -212,7 +212,7 @@ int run_fit(int argc, char** argv) {
       "limit", po::value<std::string>(), "K: the worst error a recommended model may have [0.1]")(
       "extended", "also fit the four-term form 1/T = A + B ln R + C ln^2 R + D ln^3 R")(
       "between-samples", po::value<std::string>(), "points compared inside each interval between data points [32]");
-  if (help_requested("fit", argc, argv, "DATA.csv [options]", own, false)) return 0;
+  if (help_requested("fit", argc, argv, "DATA.csv [options]", own, false, false)) return 0;
   const Invocation inv = parse("fit", argc, argv, own, false, false);
   if (inv.file.empty())
     reject_at("command line", 0, "fit needs a data file: thermargin fit DATA.csv (columns degC, ohm[, uncertainty])");

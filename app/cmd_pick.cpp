@@ -313,7 +313,7 @@ int run_pick(int argc, char** argv) {
       "mc-units", po::value<std::string>(), "Monte Carlo units per candidate (default: montecarlo.units, at most 2000 for "
                                             "the objective, 10000 for --verify)")(
       "no-guidance", "skip the continuous optimum and the analytic values");
-  if (help_requested("pick", argc, argv, "[FILE] [options]", own, true)) return 0;
+  if (help_requested("pick", argc, argv, "[FILE] [options]", own, true, false)) return 0;
   const Invocation inv = parse("pick", argc, argv, own, true, false);
   const po::variables_map& vm = inv.vm;
 

@@ -94,12 +94,13 @@ int run_table(int argc, char** argv) {
   own.add_options()("points", po::value<std::string>(), "points in the table, >= 2 [the scenario's firmware.table_points]")(
       "unit", po::value<std::string>(), "storage unit in K, e.g. 0.01 or 0.1 [the scenario's firmware.table_unit]")(
       "type", po::value<std::string>()->default_value("int16"), "C type of the stored values: int16 | int32")(
-      "spacing", po::value<std::string>()->default_value("code"),
-      "code (equal code steps, found by a division) | temperature (equal temperature steps, found by a search)")(
+      "spacing", po::value<std::string>(),
+      "code (equal code steps, found by a division) | temperature (equal temperature steps, found by a search) "
+      "[the scenario's firmware.table_spacing]")(
       "max-error", po::value<std::string>(), "K: choose the smallest number of points within this error (overrides --points)")(
       "emit", po::value<std::string>(), "write the table itself: c (a C99 header) | csv; without it, the report in --format")(
       "prefix", po::value<std::string>()->default_value("thermargin_lut"), "name prefix of the C header's arrays and macros");
-  if (help_requested("table", argc, argv, "[FILE] [options]", own, true)) return 0;
+  if (help_requested("table", argc, argv, "[FILE] [options]", own, true, false)) return 0;
   const Invocation inv = parse("table", argc, argv, own, true, false);
   const Design design = build_design(inv.scenario);
   const auto& vm = inv.vm;
@@ -127,7 +128,8 @@ int run_table(int argc, char** argv) {
   else if (type == "int32") s.type = StorageType::int32;
   else reject(cl("table.type"), type, "must be one of: int16 | int32");
   if (!vm["type"].defaulted()) s.type_where = cl("table.type");
-  const std::string spacing = vm["spacing"].as<std::string>();
+  const std::string spacing = vm.count("spacing") ? vm["spacing"].as<std::string>()
+                                                  : (design.firmware.table_spacing == TableSpacing::code ? "code" : "temperature");
   if (spacing == "code") s.spacing = TableSpacing::code;
   else if (spacing == "temperature") s.spacing = TableSpacing::temperature;
   else reject(cl("table.spacing"), spacing, "must be one of: code | temperature");

@@ -56,7 +56,7 @@ Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion)
   if (conversion_ == Conversion::table) {
     Firmware exact = *this;
     exact.conversion_ = Conversion::exact;
-    table_ = build_lookup_table(d, exact, d.firmware.table_points, d.firmware.table_unit);
+    table_ = build_lookup_table(d, exact, d.firmware.table_points, d.firmware.table_unit, d.firmware.table_spacing);
   }
 }
 

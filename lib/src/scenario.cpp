@@ -68,7 +68,8 @@ std::vector<KeySpec> make_schema() {
       {"firmware.b", Q::plain, "fit", "Steinhart-Hart B; fit = through the nominal curve"},
       {"firmware.c", Q::plain, "fit", "Steinhart-Hart C; fit = through the nominal curve"},
       {"firmware.table_points", Q::integer, "33", "lookup-table points, equally spaced in code"},
-      {"firmware.table_unit", Q::temperature_difference, "0.01", "lookup-table storage unit in K"},
+      {"firmware.table_unit", Q::temperature_difference, "0.01", "lookup-table storage unit in K, 0.0001..1"},
+      {"firmware.table_spacing", Q::plain, "code", "lookup-table points equally spaced in: code | temperature"},
       {"firmware.lead_compensation", Q::resistance, "0", "lead resistance the firmware subtracts"},
       {"firmware.resolution", Q::temperature_difference, "0.1", "output resolution in K; 0 = none"},
       {"firmware.calibration", Q::plain, "none", "none | offset | two-point"},
@@ -405,6 +406,9 @@ Design build_design(const Scenario& s) {
   }
   f.table_points = static_cast<int>(r.integer("firmware.table_points", 2, 65536));
   f.table_unit = r.positive("firmware.table_unit");
+  if (f.table_unit < 1e-4 || f.table_unit > 1.0) r.fail("firmware.table_unit", "must be from 0.0001 K to 1 K");
+  f.table_spacing = r.word<TableSpacing>("firmware.table_spacing",
+                                         {{"code", TableSpacing::code}, {"temperature", TableSpacing::temperature}});
   f.lead_compensation = r.non_negative("firmware.lead_compensation");
   f.resolution = r.non_negative("firmware.resolution");
   f.calibration = r.word<Calibration>("firmware.calibration", {{"none", Calibration::none},

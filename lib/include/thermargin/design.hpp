@@ -25,6 +25,7 @@ enum class Quantizer { round, floor };
 enum class FullScale { pow2, pow2_minus_1 };
 enum class Conversion { exact, beta, steinhart_hart, table };
 enum class Calibration { none, offset, two_point };
+enum class TableSpacing { code, temperature };  // how lookup-table points are placed
 enum class BoardKind { sensor, fixed, range };
 
 struct SensorSettings {
@@ -79,6 +80,7 @@ struct FirmwareSettings {
   std::optional<SteinhartHart> sh;   // for steinhart-hart; none: fitted to the nominal curve
   int table_points = 33;             // for conversion = table
   double table_unit = 0.01;          // K per stored count in the lookup table
+  TableSpacing table_spacing = TableSpacing::code;  // points equally spaced in code or in temperature
   double lead_compensation = 0.0;    // Ω subtracted from the inverted branch
   double resolution = 0.1;           // K; 0 = no rounding
   Calibration calibration = Calibration::none;

@@ -23,7 +23,6 @@ namespace thermargin {
 // Where the points of a lookup table sit: equally spaced in code (the
 // firmware finds the interval by one division) or equally spaced in
 // temperature (denser in codes where the curve is flat, found by a search).
-enum class TableSpacing { code, temperature };
 
 // The lookup table the firmware ships: codes c0 + k·step, k = 0..P−1 (or
 // the listed `codes` when spaced in temperature), and the stored
