@@ -113,22 +113,21 @@ std::string grades_report_html(const Design& d, const Scenario& scenario, const 
   t.caption = "Every combination, cheapest first (F on the front, M meets the requirement, R recommended)";
   t.header = {"#"};
   for (const auto& s : g.slots) t.header.push_back(s);
-  t.header.insert(t.header.end(), {"Unit cost", "Worst case (K)", "Linear (K)", "MC band (K)", "Yield", "95 % interval",
-                                   "", "Verdict"});
+  // The Monte Carlo band and each row's verdict in words are in the CLI's
+  // tables and JSON; with them this table would not fit a printed page.
+  t.header.insert(t.header.end(), {"Unit cost", "Worst case (K)", "Linear (K)", "Yield", "95 % interval", ""});
   t.numeric.assign(t.header.size(), false);
-  for (std::size_t k = 1 + g.slots.size(); k < 1 + g.slots.size() + 6; ++k) t.numeric[k] = true;
+  for (std::size_t k = 1 + g.slots.size(); k < 1 + g.slots.size() + 5; ++k) t.numeric[k] = true;
   t.numeric[0] = true;
   for (std::size_t i = 0; i < g.rows.size(); ++i) {
     const GradeRow& r = g.rows[i];
     std::vector<std::string> row{std::to_string(i + 1)};
     for (std::size_t k = 0; k < g.slots.size(); ++k) row.push_back(g.grades[k][static_cast<std::size_t>(r.choice[k])]);
     row.insert(row.end(), {money(r.unit_cost), opt_k(r.wc_max_abs), opt_k(r.rss_max_abs),
-                           r.mc ? num(r.mc->max_abs, 3) : "\u2013",
-                           r.mc ? pct(r.mc->yield, 2) + (r.mc_run ? "" : " (pilot)") : "\u2013",
-                           r.mc ? pct(r.mc->yield_low, 2) + " \u2013 " + pct(r.mc->yield_high, 2) : "",
+                           r.mc ? pct(r.mc->yield, 2) + (r.mc_run ? "" : " pilot") : "\u2013",
+                           r.mc ? num(100 * r.mc->yield_low, 2) + "\u2013" + num(100 * r.mc->yield_high, 2) + " %" : "",
                            std::string(r.on_front ? "F" : "") + (r.meets_requirement ? "M" : "") +
-                               (g.recommendation == i ? "R" : ""),
-                           r.verdict});
+                               (g.recommendation == i ? "R" : "")});
     t.rows.push_back(std::move(row));
   }
   doc.table(std::move(t));

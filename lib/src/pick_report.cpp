@@ -136,11 +136,27 @@ std::vector<Figure> pick_figures(const Design& design, const PickResult& res) {
   if (!res.rows.empty() && plotted(res.winner()))
     c.series.push_back(svg::annotation("winner", (res.winner().feasible() ? "best: " : "least bad: ") + ohms(res.winner().r_fixed),
                                        res.winner().r_fixed, *plotted(res.winner())));
+  // Far-off values (a resistor a hundred times too small) would flatten the
+  // region that matters; the axis stops at a few times the limit and the
+  // caption says so. Clipped points stay in the chart's data.
+  std::string clipped;
+  if (!maximised(res.objective)) {
+    double top = 0.0, best = 0.0;
+    for (const auto& row : res.rows)
+      if (auto v = plotted(row)) top = std::max(top, *v);
+    if (!res.rows.empty() && plotted(res.winner())) best = *plotted(res.winner());
+    const double cap = std::max(2.5 * design.requirement.max_error, 1.5 * best);
+    if (top > cap && cap > 0.0) {
+      c.y.min = 0.0;
+      c.y.max = cap;
+      clipped = " Values above " + kelvin(cap) + " are off the top of the chart.";
+    }
+  }
   std::vector<Figure> f;
   f.push_back({"pick-candidates.svg",
                "The ranked candidates: " + objective_phrase(res.objective) +
                    (maximised(res.objective) ? " (higher is better)" : " (lower is better)") +
-                   " against the resistor's value on a log axis; hatched values are ruled out.",
+                   " against the resistor's value on a log axis; hatched values are ruled out." + clipped,
                std::move(c)});
   return f;
 }
@@ -197,19 +213,20 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
   t.caption = "Ranking, best first";
   t.header = {"#", "R fixed"};
   if (res.pair_search) t.header.push_back("R parallel");
-  t.header.insert(t.header.end(), {"Series", "Worst case (K)", "Linear (K)"});
+  // The columns a reviewer compares; series and dominant source are in the
+  // CLI's tables (a wider table would not fit a printed page).
+  t.header.insert(t.header.end(), {"Worst case (K)", "Linear (K)"});
   if (res.objective == Objective::monte_carlo) t.header.push_back("MC band (K)");
-  t.header.insert(t.header.end(),
-                  {"Min LSB/K", "Self-heating (K)", "Current", "ADC span", "Dominant", "Ruled out by"});
+  t.header.insert(t.header.end(), {"Min LSB/K", "Self-heating (K)", "Current", "ADC span", "Ruled out by"});
   auto opt = [](const std::optional<double>& v) { return v ? num(*v, 4) : std::string("n/a"); };
   for (std::size_t i = 0; i < res.rows.size(); ++i) {
     const PickRow& w = res.rows[i];
     std::vector<std::string> row{std::to_string(i + 1), ohms(w.r_fixed)};
     if (res.pair_search) row.push_back(w.r_parallel ? ohms(*w.r_parallel) : "none");
-    row.insert(row.end(), {w.series ? std::string(to_string(*w.series)) : "\u2013", opt(w.wc_max_abs), opt(w.rss_max_abs)});
+    row.insert(row.end(), {opt(w.wc_max_abs), opt(w.rss_max_abs)});
     if (res.objective == Objective::monte_carlo) row.push_back(opt(w.mc_max_abs));
     row.insert(row.end(), {num(w.min_sensitivity, 2), num(w.max_self_heating, 4),
-                           format_quantity(w.max_current, Quantity::current, 3), pct(w.span, 1), w.dominant,
+                           format_quantity(w.max_current, Quantity::current, 3), pct(w.span, 1),
                            join(w.rejected_by, ", ")});
     t.rows.push_back(std::move(row));
   }

@@ -62,7 +62,7 @@ void inputs(Page& doc, const Design& d, const Scenario& s) {
     if (sec != section || t.header.empty()) {
       flush();
       section = sec;
-      t.caption = "[" + sec + "]";
+      t.caption = sec == "(top)" ? std::string("Top level") : "[" + sec + "]";
       t.header = {"Key", "Value", "Unit", "Origin"};
       t.numeric = {false, false, false, false};
     }
