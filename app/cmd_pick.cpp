@@ -201,10 +201,11 @@ std::string to_csv(const PickResult& r) {
   return out.str();
 }
 
-std::string guidance_text(const char* what, const GuidanceValue& v, const PickResult& r, const PickOptions& o) {
+std::string guidance_text(const char* what, const GuidanceValue& v, const PickResult& r, const PickOptions& o,
+                          const char* missing) {
   std::ostringstream out;
   out << "  " << what << ": ";
-  if (!v.r) return out.str() + "no positive value (the curve is too straight over the window)\n";
+  if (!v.r) return out.str() + missing + "\n";
   out << ohms(*v.r);
   if (v.objective) out << ", " << objective_phrase(r.objective) << " " << objective_value(r.objective, *v.objective);
   const std::string nb = o.values.empty() ? std::string(to_string(o.series)) + " values" : "given values";
@@ -271,13 +272,14 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
     const Guidance& g = r.guidance;
     out << "\nGuidance (the objective alone; the constraints are not applied here):\n";
     out << guidance_text(("Continuous optimum (Brent on ln R, " + std::to_string(g.evaluations) + " evaluations)").c_str(),
-                         g.optimum, r, o);
+                         g.optimum, r, o, "none: no candidate can read the window");
     out << guidance_text(("Largest sensitivity at the window centre, R = R(" + fixed(g.t_centre, 1) + " degC)").c_str(),
-                         g.max_sensitivity, r, o);
+                         g.max_sensitivity, r, o, "none: the sensor curve does not reach the window centre");
     out << guidance_text(("Three-point linearisation through " + fixed(r.window_min, 1) + ", " + fixed(g.t_centre, 1) + ", " +
                           fixed(r.window_max, 1) + " degC")
                              .c_str(),
-                         g.linearising, r, o);
+                         g.linearising, r, o,
+                         "no positive value: the curve is straight or bends the other way (R1 + R3 <= 2 R2)");
   }
   out << "\n" << caution << "\n";
   return out.str();

@@ -14,11 +14,12 @@
 // violates one after every candidate that does not.
 //
 // The worst-case ranking is exact but does not enumerate every corner of
-// every candidate: two corners directed by the sensitivities are a subset of
-// all corners, so their error is a lower bound of the full worst case;
-// candidates are evaluated in full in the order of that bound until no
-// bound can beat the N-th best full result (branch and bound; the top N are
-// exactly what a full enumeration of every candidate would give).
+// every candidate: the two corners directed by the sensitivities are among
+// all corners, so their error is a lower bound of the full worst case, and
+// so is the full enumeration at a few temperatures. Candidates are refined
+// best first (bound, then those temperatures, then the whole window) until
+// the first N are exact and no bound can beat them (branch and bound; the
+// top N are exactly what a full enumeration of every candidate would give).
 //
 // Beside the ranking, analytic guidance: the continuous optimum of the
 // objective (Brent's method, Boost.Math brent_find_minima, on ln R between
