@@ -226,8 +226,10 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
       << r.candidates << " candidate" << (r.candidates == 1 ? "" : "s") << " (" << r.candidates_label
       << (r.pair_search ? ", fixed and parallel resistor pairs" : "") << (r.reduced_pair_search ? ", reduced pair search" : "")
       << "), " << r.within_constraints << " within the constraints";
-  if (r.objective == Objective::worst_case)
-    out << "; " << r.evaluated_in_full << " enumerated in full, the rest bounded below by directed corners";
+  if (r.objective == Objective::worst_case) {
+    out << "; " << r.evaluated_in_full << " enumerated in full";
+    if (r.evaluated_in_full < r.candidates) out << ", the rest bounded below by directed corners";
+  }
   out << ".\n";
   if (r.mc_objective_units) out << "Monte Carlo objective: " << r.mc_objective_units << " units per candidate, the same draws for each.\n";
   out << "Fixed resistor: " << grade_text(r, o) << ". Constraints: " << constraints_text(o.constraints) << ".\n\n";
@@ -272,7 +274,7 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
     const Guidance& g = r.guidance;
     out << "\nGuidance (the objective alone; the constraints are not applied here):\n";
     out << guidance_text(("Continuous optimum (Brent on ln R, " + std::to_string(g.evaluations) + " evaluations)").c_str(),
-                         g.optimum, r, o, "none: no candidate can read the window");
+                         g.optimum, r, o, "not searched: a single candidate, or none that can read the window");
     out << guidance_text(("Largest sensitivity at the window centre, R = R(" + fixed(g.t_centre, 1) + " degC)").c_str(),
                          g.max_sensitivity, r, o, "none: the sensor curve does not reach the window centre");
     out << guidance_text(("Three-point linearisation through " + fixed(r.window_min, 1) + ", " + fixed(g.t_centre, 1) + ", " +
