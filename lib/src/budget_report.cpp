@@ -1,15 +1,12 @@
 #include "thermargin/budget_report.hpp"
 
 #include <sys/stat.h>
-#include <unistd.h>
 
 #include <algorithm>
 #include <cerrno>
 #include <cmath>
-#include <cstdio>
 #include <cstring>
 #include <filesystem>
-#include <map>
 #include <optional>
 
 #include "report_page.hpp"
