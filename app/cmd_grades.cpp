@@ -34,7 +34,6 @@ nlohmann::ordered_json row_json(const GradesResult& g, const GradeRow& r) {
   nlohmann::ordered_json j{{"choice", choice}, {"unit_cost", r.unit_cost}, {"setup_per_unit", r.setup_per_unit}};
   if (r.r_fixed) j["r_fixed"] = *r.r_fixed;
   j["wc_max_abs"] = opt(r.wc_max_abs);
-  j["wc_max_at"] = r.wc_max_abs ? nlohmann::ordered_json(r.wc_max_at) : nlohmann::ordered_json(nullptr);
   j["rss_max_abs"] = opt(r.rss_max_abs);
   if (r.status != Status::ok) {
     j["status"] = std::string(to_string(r.status));
@@ -235,8 +234,8 @@ int run_grades(int argc, char** argv) {
       "range", po::value<std::string>()->default_value("1k..1M"), "--re-pick: candidate values LOW..HIGH in ohms")(
       "pick-objective", po::value<std::string>()->default_value("worst-case"),
       "--re-pick: worst-case | linear | monte-carlo | sensitivity");
-  if (help_requested("grades", argc, argv, "[FILE] --catalogue CATALOGUE.csv [options]", own, true)) return 0;
-  const Invocation inv = parse("grades", argc, argv, own, true, false);
+  if (help_requested("grades", argc, argv, "[FILE] --catalogue CATALOGUE.csv [options]", own, true, false, true)) return 0;
+  const Invocation inv = parse("grades", argc, argv, own, true, false, true);
   const po::variables_map& vm = inv.vm;
   if (!vm.count("catalogue"))
     throw input_error("--catalogue (command line): missing; give the CSV of part grades, e.g. --catalogue parts.csv");

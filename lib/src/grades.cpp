@@ -1,9 +1,10 @@
 #include "thermargin/grades.hpp"
 
 #include <algorithm>
-#include <atomic>
+#include <condition_variable>
 #include <cmath>
 #include <cstdio>
+#include <deque>
 #include <exception>
 #include <filesystem>
 #include <limits>
@@ -104,8 +105,8 @@ std::size_t nearest_index(const std::vector<double>& values, double r) {
   return best;
 }
 
-double re_pick(const Scenario& s, const PickOptions& base, const RePick& rp) {
-  const std::size_t n = rp.values.size();
+PickRow re_pick(const Scenario& s, const PickOptions& base, const std::vector<double>& values, std::size_t anchor) {
+  const std::size_t n = values.size();
   const std::size_t h = static_cast<std::size_t>(re_pick_half_width);
   PickOptions o = base;
   o.top = 1;
@@ -113,21 +114,21 @@ double re_pick(const Scenario& s, const PickOptions& base, const RePick& rp) {
   o.guidance = false;
   o.threads = 1;
   o.progress = nullptr;
-  std::size_t centre = rp.anchor;
+  std::size_t centre = anchor;
   for (std::size_t round = 0; round <= n; ++round) {
     const std::size_t lo = centre > h ? centre - h : 0, hi = std::min(n - 1, centre + h);
-    o.values.assign(rp.values.begin() + static_cast<std::ptrdiff_t>(lo), rp.values.begin() + static_cast<std::ptrdiff_t>(hi) + 1);
-    const PickResult r = pick(s, o);
+    o.values.assign(values.begin() + static_cast<std::ptrdiff_t>(lo), values.begin() + static_cast<std::ptrdiff_t>(hi) + 1);
+    PickResult r = pick(s, o);
     if (!r.winner().feasible()) break;  // nothing readable here: search everything
-    const std::size_t w = nearest_index(rp.values, r.winner().r_fixed);
+    const std::size_t w = nearest_index(values, r.winner().r_fixed);
     if ((w == lo && lo > 0) || (w == hi && hi + 1 < n)) {
       centre = w;
       continue;
     }
-    return r.winner().r_fixed;
+    return r.rows.front();
   }
-  o.values = rp.values;
-  return pick(s, o).winner().r_fixed;
+  o.values = values;
+  return pick(s, o).rows.front();
 }
 
 // --- One combination -------------------------------------------------------
@@ -137,7 +138,6 @@ struct Figures {  // what the engines say about one distinct design
   Status status = Status::ok;
   double status_at = 0.0;
   std::optional<double> wc_max_abs, rss_max_abs;
-  double wc_max_at = 0.0;
   bool mc_run = false;
   std::string mc_skipped;
   std::optional<McSummary> mc;
@@ -145,11 +145,21 @@ struct Figures {  // what the engines say about one distinct design
   Requirement requirement;
 };
 
-Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick* rp) {
+Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& rp, std::size_t anchor) {
   Figures f;
+  // The picker has just evaluated the winning design over the same window
+  // (the winner's worst case in full, every candidate's linear band): its
+  // figures are taken rather than computed again, the worst case being the
+  // costliest engine here.
+  std::optional<double> picked_wc, picked_rss;
   if (options.re_pick) {
-    f.r_fixed = re_pick(s, options.pick, *rp);
-    s.set("divider.r_fixed", exact_text(*f.r_fixed), option("--re-pick"));
+    const PickRow w = re_pick(s, options.pick, rp.values, anchor);
+    f.r_fixed = w.r_fixed;
+    s.set("divider.r_fixed", exact_text(w.r_fixed), option("--re-pick"));
+    if (w.status == Status::ok) {
+      if (options.corners == CornerMethod::automatic) picked_wc = w.wc_max_abs;
+      picked_rss = w.rss_max_abs;
+    }
   }
   Design d = build_design(s);
   d.montecarlo.threads = 1;  // threads are spread over combinations instead
@@ -158,39 +168,45 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick* 
   std::vector<double> window;
   for (double t : d.conditions.temperatures())
     if (t >= d.requirement.window_min - window_slack && t <= d.requirement.window_max + window_slack) window.push_back(t);
+  // The first window temperature an engine cannot read.
+  auto unreadable = [&](Status st, std::size_t i) {
+    if (f.status != Status::ok) return;
+    f.status = st;
+    f.status_at = window[i];
+  };
 
-  const WorstCase wc = worst_case(chain, window, options.corners);
-  const LinearBudget lb = linear_budget(chain, window);
-  bool wc_ok = true, lin_ok = true;
-  double wc_max = 0.0, lin_max = 0.0;
-  for (std::size_t i = 0; i < window.size(); ++i) {
-    const WorstCasePoint& p = wc.points[i];
-    if (p.failed_corners > 0 || !p.any_ok) {
-      if (f.status == Status::ok) {
-        f.status = p.failed_corners > 0 ? p.failure : Status::no_solution;
-        f.status_at = window[i];
-      }
-      wc_ok = false;
-    } else {
-      const double m = std::max(std::fabs(p.low), std::fabs(p.high));
-      if (m > wc_max) {
-        wc_max = m;
-        f.wc_max_at = window[i];
+  f.wc_max_abs = picked_wc;
+  if (!picked_wc) {
+    const WorstCase wc = worst_case(chain, window, options.corners);
+    double m = 0.0;
+    bool ok = true;
+    for (std::size_t i = 0; i < window.size(); ++i) {
+      const WorstCasePoint& p = wc.points[i];
+      if (p.failed_corners > 0 || !p.any_ok) {
+        unreadable(p.failed_corners > 0 ? p.failure : Status::no_solution, i);
+        ok = false;
+      } else {
+        m = std::max(m, std::max(std::fabs(p.low), std::fabs(p.high)));
       }
     }
-    const LinearPoint& l = lb.points[i];
-    if (l.status != Status::ok) {
-      if (f.status == Status::ok) {
-        f.status = l.status;
-        f.status_at = window[i];
-      }
-      lin_ok = false;
-    } else {
-      lin_max = std::max(lin_max, std::max(std::fabs(l.low), std::fabs(l.high)));
-    }
+    if (ok) f.wc_max_abs = m;
   }
-  if (wc_ok) f.wc_max_abs = wc_max;
-  if (lin_ok) f.rss_max_abs = lin_max;
+  f.rss_max_abs = picked_rss;
+  if (!picked_rss) {
+    const LinearBudget lb = linear_budget(chain, window);
+    double m = 0.0;
+    bool ok = true;
+    for (std::size_t i = 0; i < window.size(); ++i) {
+      const LinearPoint& l = lb.points[i];
+      if (l.status != Status::ok) {
+        unreadable(l.status, i);
+        ok = false;
+      } else {
+        m = std::max(m, std::max(std::fabs(l.low), std::fabs(l.high)));
+      }
+    }
+    if (ok) f.rss_max_abs = m;
+  }
 
   // Monte Carlo where it can matter (the screening rule in grades.hpp).
   const Requirement& q = d.requirement;
@@ -469,48 +485,87 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
   }
 
   // Distinct designs: combinations whose settings are the same (a slot
-  // that only changes the price) are evaluated once.
+  // that only changes the price) are evaluated once. Not with a re-pick,
+  // where each combination's search starts from its parent's winner (below).
   const std::size_t n = cat.combinations();
   std::vector<std::size_t> design_of(n);
   std::vector<std::size_t> first_of;  // combination index of each distinct design
   {
     std::map<std::string, std::size_t> seen;
     for (std::size_t i = 0; i < n; ++i) {
-      const auto choice = choice_of(cat, i);
-      std::map<std::string, std::string> settings;
-      for (std::size_t k = 0; k < cat.slots.size(); ++k)
-        for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(choice[k])].settings) settings[st.key] = st.value;
-      std::string key;
-      for (const auto& [k, v] : settings) key += k + '\x1f' + v + '\x1e';
+      std::string key = std::to_string(i);
+      if (!options.re_pick) {
+        const auto choice = choice_of(cat, i);
+        std::map<std::string, std::string> settings;
+        for (std::size_t k = 0; k < cat.slots.size(); ++k)
+          for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(choice[k])].settings) settings[st.key] = st.value;
+        key.clear();
+        for (const auto& [k, v] : settings) key += k + '\x1f' + v + '\x1e';
+      }
       const auto [it, fresh] = seen.emplace(key, first_of.size());
       if (fresh) first_of.push_back(i);
       design_of[i] = it->second;
     }
   }
 
-  // Threads over distinct designs; each result lands in its own slot.
+  // The tasks, one per distinct design. Without a re-pick all are ready at
+  // once. With one they form a tree over the grid of choices: the parent of
+  // a combination is the same choice with its last grade that is not the
+  // slot's first taken one step back, and its resistor search starts at the
+  // parent's winner (neighbouring grades move the best resistor little, so
+  // the search rarely has to move). The tree is fixed by the catalogue, so
+  // the anchors, and the results, do not depend on the threads.
+  std::vector<std::size_t> stride(cat.slots.size(), 1);
+  for (std::size_t k = cat.slots.size(); k-- > 1;) stride[k - 1] = stride[k] * cat.slots[k].options.size();
+  auto children = [&](std::size_t i) {
+    std::vector<std::size_t> out;
+    if (!options.re_pick) return out;
+    const auto c = choice_of(cat, i);
+    std::size_t from = 0;
+    for (std::size_t k = 0; k < c.size(); ++k)
+      if (c[k] > 0) from = k;
+    for (std::size_t k = from; k < c.size(); ++k)
+      if (static_cast<std::size_t>(c[k]) + 1 < cat.slots[k].options.size()) out.push_back(i + stride[k]);
+    return out;
+  };
   std::vector<Figures> figures(first_of.size());
+  std::vector<std::size_t> anchor(first_of.size(), rp.anchor);
+  std::vector<std::exception_ptr> errors(first_of.size());
+  std::deque<std::size_t> ready;
+  if (options.re_pick) ready.push_back(0);
+  else
+    for (std::size_t j = 0; j < first_of.size(); ++j) ready.push_back(j);
   int threads = options.threads >= 0 ? options.threads : base.montecarlo.threads;
   if (threads == 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   threads = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(std::max(threads, 1)), first_of.size()));
-  std::atomic<std::size_t> next{0}, done{0};
   std::mutex m;
-  std::vector<std::exception_ptr> errors(first_of.size());
+  std::condition_variable cv;
+  std::size_t running = 0, done = 0;
   auto work = [&] {
+    std::unique_lock<std::mutex> lock(m);
     for (;;) {
-      const std::size_t j = next.fetch_add(1);
-      if (j >= first_of.size()) break;
+      cv.wait(lock, [&] { return !ready.empty() || running == 0; });
+      if (ready.empty()) return;  // nothing queued and nothing running: finished
+      const std::size_t j = ready.front();
+      ready.pop_front();
+      ++running;
+      lock.unlock();
+      std::vector<std::size_t> next;
       try {
-        figures[j] = evaluate_design(combination_scenario(scenario, cat, choice_of(cat, first_of[j])), options,
-                                     options.re_pick ? &rp : nullptr);
+        figures[j] = evaluate_design(combination_scenario(scenario, cat, choice_of(cat, first_of[j])), options, rp, anchor[j]);
+        next = children(first_of[j]);  // with a re-pick, designs are combinations: j == first_of[j]
       } catch (...) {
         errors[j] = std::current_exception();
       }
-      const std::size_t k = ++done;
-      if (options.progress) {
-        const std::lock_guard<std::mutex> lock(m);
-        options.progress(static_cast<double>(k) / static_cast<double>(first_of.size()));
+      lock.lock();
+      --running;
+      for (std::size_t c : next) {
+        anchor[c] = nearest_index(rp.values, *figures[j].r_fixed);
+        ready.push_back(c);
       }
+      ++done;
+      if (options.progress) options.progress(static_cast<double>(done) / static_cast<double>(first_of.size()));
+      cv.notify_all();
     }
   };
   std::vector<std::thread> pool;
@@ -539,7 +594,6 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
     r.status = f.status;
     r.status_at = f.status_at;
     r.wc_max_abs = f.wc_max_abs;
-    r.wc_max_at = f.wc_max_at;
     r.rss_max_abs = f.rss_max_abs;
     r.mc_run = f.mc_run;
     r.mc_skipped = f.mc_skipped;

@@ -98,7 +98,6 @@ struct GradeRow {
   Status status = Status::ok;
   double status_at = 0.0;  // °C, the first window temperature with the status
   std::optional<double> wc_max_abs, rss_max_abs;  // K
-  double wc_max_at = 0.0;
 
   bool mc_run = false;
   std::string mc_skipped;  // why Monte Carlo did not run in full (empty when it did)
