@@ -37,7 +37,7 @@ Invocation parse(const std::string& command, int argc, char** argv, const po::op
 // Prints --help for a command: usage, own options, the common options and
 // the caution. Returns true when help was asked for (and printed).
 bool help_requested(const std::string& command, int argc, char** argv, const std::string& usage,
-                    const po::options_description& own, bool takes_scenario, bool has_report,
+                    const po::options_description& own, bool takes_scenario, bool has_report = false,
                     bool has_verdict = false);
 
 // Writes the command's output to --output (atomically) or stdout.
