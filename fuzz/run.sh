@@ -1,8 +1,10 @@
 #!/usr/bin/env bash
 # Runs every libFuzzer target for a bounded time, each from a seed corpus
 # built here: the example designs in scenarios/, the R-T tables and fit data
-# in tests/data/, the committed seeds in fuzz/seeds/ (among them every input
-# that once crashed a reader), and engineering-notation numbers.
+# in tests/data/, the committed seeds in fuzz/seeds/ and engineering-notation
+# numbers; every input that once made a target fail is kept in
+# fuzz/regressions/TARGET/ and replayed by each run (and is a case of
+# tests/bad_input_test.cpp).
 #
 #   bash fuzz/run.sh BUILD_DIR [SECONDS_PER_TARGET]
 #
@@ -51,11 +53,13 @@ for target in fuzz_number fuzz_scenario fuzz_rt_table fuzz_fit fuzz_catalogue; d
   mkdir -p "$corpus" "$work/seeds/$target"
   dict=()
   [ -f "fuzz/$target.dict" ] && dict=(-dict="fuzz/$target.dict")
+  # Inputs that once found something are replayed first, every run.
+  mkdir -p "fuzz/regressions/$target"
   log=$work/$target.log
   start=$SECONDS
   if "$bin/$target" "${dict[@]}" -max_total_time="$seconds" -timeout=20 -rss_limit_mb=2560 -max_len=8192 \
        -print_final_stats=1 -artifact_prefix="$work/artifacts/$target-" \
-       "$corpus" "$work/seeds/$target" >"$log" 2>&1; then
+       "$corpus" "$work/seeds/$target" "fuzz/regressions/$target" >"$log" 2>&1; then
     runs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$log")
     echo "$target: ${runs:-?} inputs in $((SECONDS - start)) s, no finding"
   else

@@ -5,7 +5,9 @@ set -euo pipefail
 THERMARGIN_PACKAGES=(g++ cmake ninja-build libboost-dev libboost-program-options-dev libboost-math-dev
   libeigen3-dev nlohmann-json3-dev libgtest-dev libbenchmark-dev python3-scipy python3-numpy)
 if [ "${THERMARGIN_TEST_EXTRAS:-0}" = 1 ]; then
-  THERMARGIN_PACKAGES+=(clang libclang-rt-14-dev chromium)
+  # clang and its runtime for the libFuzzer targets, llvm for symbolised
+  # sanitizer reports, ccache to reuse objects across the four builds' runs.
+  THERMARGIN_PACKAGES+=(clang libclang-rt-14-dev llvm chromium ccache)
 fi
 missing=()
 for p in "${THERMARGIN_PACKAGES[@]}"; do

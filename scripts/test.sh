@@ -1,9 +1,107 @@
 #!/usr/bin/env bash
 # Builds thermargin with its tests (installing missing Debian packages
-# first) and runs the whole test suite with CTest.
+# first) and runs the whole test suite with CTest; then the hardening steps:
+#
+#   1. build/       Release build, every test (ctest)
+#   2. build-asan/  every test again under AddressSanitizer + UndefinedBehaviorSanitizer
+#   3. build-tsan/  the Monte Carlo and worst-case engines' tests, and the CLI
+#                   runs across thread counts, under ThreadSanitizer
+#   4. build-fuzz/  each libFuzzer target for THERMARGIN_FUZZ_SECONDS (default 40)
+#
+# A failing step stops the script with a non-zero status. THERMARGIN_QUICK=1
+# runs step 1 only. Build directories are reused, and ccache (when present)
+# keeps compiled objects between runs.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 THERMARGIN_TEST_EXTRAS=1 bash scripts/deps.sh
-cmake -S . -B build -G Ninja -DCMAKE_BUILD_TYPE=Release -DTHERMARGIN_TESTS=ON -DTHERMARGIN_BENCHMARKS=ON >/dev/null
-cmake --build build -j "$(nproc)"
-ctest --test-dir build --output-on-failure -j "$(nproc)"
+jobs=$(( $(nproc) < 2 ? $(nproc) : 2 ))
+fuzz_seconds=${THERMARGIN_FUZZ_SECONDS:-40}
+launcher=()
+if command -v ccache >/dev/null; then
+  launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache)
+  # Objects are shared between checkouts in other folders (CI clones afresh).
+  export CCACHE_BASEDIR=$PWD CCACHE_NOHASHDIR=1
+fi
+started=$SECONDS
+summary=()
+
+# Runs a step, printing its name before and its time after.
+step() {
+  local name=$1 t0=$SECONDS
+  shift
+  echo "=== $name"
+  "$@"
+  summary+=("$name: passed in $((SECONDS - t0)) s")
+  echo "=== $name: passed in $((SECONDS - t0)) s"
+}
+
+configure() {  # configure DIR [cmake options...]
+  local dir=$1
+  shift
+  cmake -S . -B "$dir" -G Ninja "${launcher[@]}" "$@" >/dev/null
+}
+
+# The bad-input catalogue prints its count; ctest keeps every test's output in LastTest.log.
+catalogue_line() {
+  grep -h -m1 "^bad-input catalogue:" "$1/Testing/Temporary/LastTest.log" ||
+    { echo "the bad-input catalogue did not run" >&2; return 1; }
+}
+
+release() {
+  configure build -DCMAKE_BUILD_TYPE=Release -DTHERMARGIN_TESTS=ON -DTHERMARGIN_BENCHMARKS=ON
+  cmake --build build -j "$jobs"
+  ctest --test-dir build --output-on-failure -j "$jobs"
+  catalogue_line build
+}
+
+# Sanitizer reports end the program (-fno-sanitize-recover=all), so a test
+# that meets one fails; the CLI the tests start is built the same way.
+export ASAN_OPTIONS=detect_leaks=1:strict_string_checks=1
+export UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1
+export TSAN_OPTIONS=halt_on_error=1:second_deadlock_stack=1
+
+asan() {
+  configure build-asan -DCMAKE_BUILD_TYPE=RelWithDebInfo -DTHERMARGIN_SANITIZE=address,undefined \
+    -DTHERMARGIN_NATIVE=OFF -DTHERMARGIN_TESTS=ON -DTHERMARGIN_BENCHMARKS=OFF
+  cmake --build build-asan -j "$jobs"
+  ctest --test-dir build-asan --output-on-failure -j "$jobs"
+  catalogue_line build-asan
+}
+
+# The threaded engines under ThreadSanitizer: the library and the CLI built
+# with -fsanitize=thread, and only the tests that thread them compiled
+# against it (saving a third build of the whole test program).
+tsan_tests=(monte_carlo_test worst_case_test budget_cli_test determinism_test)
+tsan() {
+  configure build-tsan -DCMAKE_BUILD_TYPE=RelWithDebInfo -DTHERMARGIN_SANITIZE=thread \
+    -DTHERMARGIN_NATIVE=OFF -DTHERMARGIN_TESTS=OFF -DTHERMARGIN_BENCHMARKS=OFF
+  cmake --build build-tsan -j "$jobs"
+  local out=build-tsan/engine_tests
+  local cxx=(c++ -std=c++20 -O2 -g -fsanitize=thread -fno-sanitize-recover=all -fno-omit-frame-pointer
+    -Ilib/include -Itests -I/usr/include/eigen3 "-DTHERMARGIN_SOURCE_DIR=\"$PWD\""
+    "-DTHERMARGIN_CLI=\"$PWD/build-tsan/thermargin\"" "-DTHERMARGIN_PYTHON=\"/usr/bin/python3\"")
+  [ ${#launcher[@]} -eq 0 ] || cxx=(ccache "${cxx[@]}")
+  mkdir -p "$out"
+  printf '%s\n' "${tsan_tests[@]}" | xargs -P "$jobs" -I{} "${cxx[@]}" -c tests/{}.cpp -o "$out/{}.o"
+  local objects=("${tsan_tests[@]/#/$out/}")
+  "${cxx[@]}" "${objects[@]/%/.o}" build-tsan/lib/libthermargin.a -lboost_program_options \
+    -lgtest -lgtest_main -pthread -o "$out/engine_tests"
+  "$out/engine_tests" --gtest_brief=1
+}
+
+fuzz() {
+  CC=clang CXX=clang++ configure build-fuzz -DCMAKE_BUILD_TYPE=RelWithDebInfo -DTHERMARGIN_FUZZ=ON \
+    -DTHERMARGIN_SANITIZE=address,undefined -DTHERMARGIN_TESTS=OFF -DTHERMARGIN_BENCHMARKS=OFF
+  cmake --build build-fuzz -j "$jobs" --target fuzz_targets
+  bash fuzz/run.sh build-fuzz "$fuzz_seconds"
+}
+
+step "release build and every test" release
+if [ "${THERMARGIN_QUICK:-0}" != 1 ]; then
+  step "AddressSanitizer + UndefinedBehaviorSanitizer, every test" asan
+  step "ThreadSanitizer, Monte Carlo and worst-case engines" tsan
+  step "libFuzzer targets, ${fuzz_seconds} s each" fuzz
+fi
+echo
+printf '%s\n' "${summary[@]}"
+echo "test.sh: ${#summary[@]} steps passed in $((SECONDS - started)) s"
