@@ -89,13 +89,10 @@ std::string to_json(const Design& d, const Catalogue& cat, const GradesResult& g
     current[g.slots[k]] = g.current[k] ? nlohmann::ordered_json(g.grades[k][static_cast<std::size_t>(*g.current[k])])
                                        : nlohmann::ordered_json(nullptr);
   j["current"] = current;
-  if (g.recommendation && g.current_row) {
-    const GradeRow& rec = g.rows[*g.recommendation];
-    const GradeRow& cur = g.rows[*g.current_row];
-    j["saving_per_unit"] = cur.unit_cost - rec.unit_cost;
-    j["saving_over_volume"] = g.volume ? nlohmann::ordered_json((cur.unit_cost - rec.unit_cost) * *g.volume)
-                                       : nlohmann::ordered_json(nullptr);
-  }
+  j["saving"] = opt(g.saving);
+  j["saving_basis"] = g.saving ? nlohmann::ordered_json(g.saving_per_good_unit ? "per good unit" : "per unit")
+                               : nlohmann::ordered_json(nullptr);
+  j["saving_over_volume"] = g.saving && g.volume ? nlohmann::ordered_json(*g.saving * *g.volume) : nlohmann::ordered_json(nullptr);
   j["summary"] = g.summary;
   j["caution"] = std::string(caution);
   return j.dump(2) + "\n";

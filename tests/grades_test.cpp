@@ -420,6 +420,9 @@ TEST(Grades, TheSummarySaysWhatTheRecommendationChangesAndWhatItCosts) {
   ASSERT_TRUE(g.current_row && g.recommendation);
   EXPECT_EQ(g.choice_text(g.rows[*g.current_row]), "r25 = 1%, beta = 1%, resistor = 1%");
   // 0.43 recommended against 0.16 now: 0.27 more per unit, 2700 over 10 000 units (by hand).
+  ASSERT_TRUE(g.saving);
+  EXPECT_NEAR(*g.saving, -0.27, kCostTolerance);
+  EXPECT_FALSE(g.saving_per_good_unit);
   EXPECT_NE(g.summary.find("it changes beta 1% -> 0.2%; resistor 1% -> 0.1% and keeps r25; it costs 0.27 more per unit "
                            "(2700.00 over 10000 units)"),
             std::string::npos)
@@ -624,6 +627,33 @@ TEST(GradesCli, TextLeadsWithTheRecommendationAndCsvCarriesTheCaution) {
   EXPECT_EQ(std::count(csv.out.begin(), csv.out.end(), '\n'), 2 + 8);
   // --strict: 3 when nothing meets the requirement.
   EXPECT_EQ(cli("--catalogue " + quote(cat) + as_options(ideal({{"requirement.max_error", "0.1"}})) + " --units 200 --strict", dir).status, 3);
+}
+
+TEST(GradesCli, EveryShippedCatalogueRunsAgainstTheDesignItIsNamedAfter) {
+  // scenarios/<design>_catalogue.csv beside scenarios/<design>.ini: run so
+  // that none goes stale, with invented prices said so in the file.
+  int found = 0;
+  for (const auto& e : fs::directory_iterator(std::string(THERMARGIN_SOURCE_DIR) + "/scenarios")) {
+    const std::string name = e.path().filename().string();
+    if (!name.ends_with("_catalogue.csv")) continue;
+    SCOPED_TRACE(name);
+    ++found;
+    const fs::path design = e.path().parent_path() / (name.substr(0, name.size() - std::string("_catalogue.csv").size()) + ".ini");
+    ASSERT_TRUE(fs::exists(design));
+    std::ostringstream text;
+    text << std::ifstream(e.path()).rdbuf();
+    EXPECT_NE(text.str().find("INVENTED"), std::string::npos);
+    TempDir dir;
+    const Outcome r = cli(quote(design.string()) + " --catalogue " + quote(e.path().string()) +
+                              " --volume 5000 --units 500 --format json",
+                          dir);
+    ASSERT_EQ(r.status, 0) << r.err;
+    const auto j = nlohmann::json::parse(r.out);
+    EXPECT_EQ(j["command"], "grades");
+    EXPECT_FALSE(j["rows"].empty());
+    EXPECT_FALSE(j["front"].empty());
+  }
+  EXPECT_GE(found, 1);
 }
 
 }  // namespace

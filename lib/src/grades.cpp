@@ -317,9 +317,8 @@ std::string summary_of(const GradesResult& g, const Catalogue& cat, const Scenar
   }
   out += " Against the scenario's current parts (" + g.choice_text(cur) + ") it changes " + changes;
   if (!kept.empty()) out += " and keeps " + kept;
-  const bool by_good = g.reject_cost && rec.cost_per_good_unit && cur.cost_per_good_unit;
-  const double delta = by_good ? *cur.cost_per_good_unit - *rec.cost_per_good_unit : cur.unit_cost - rec.unit_cost;
-  const std::string per = by_good ? " per good unit" : " per unit";
+  const double delta = *g.saving;
+  const std::string per = g.saving_per_good_unit ? " per good unit" : " per unit";
   if (std::fabs(delta) <= equal_cost * std::max(1.0, std::fabs(cur.unit_cost))) {
     out += "; the cost is the same";
   } else {
@@ -667,6 +666,12 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
       for (std::size_t k = 0; k < cat.slots.size(); ++k) same = same && g.rows[i].choice[k] == *g.current[k];
       if (same) g.current_row = i;
     }
+  if (g.recommendation && g.current_row) {
+    const GradeRow& rec = g.rows[*g.recommendation];
+    const GradeRow& cur = g.rows[*g.current_row];
+    g.saving_per_good_unit = g.reject_cost && rec.cost_per_good_unit && cur.cost_per_good_unit;
+    g.saving = g.saving_per_good_unit ? *cur.cost_per_good_unit - *rec.cost_per_good_unit : cur.unit_cost - rec.unit_cost;
+  }
   g.summary = summary_of(g, cat, scenario);
   return g;
 }

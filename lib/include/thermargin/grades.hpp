@@ -127,6 +127,11 @@ struct GradesResult {
   // equals the scenario's value (none: no option matches).
   std::vector<std::optional<int>> current;
   std::optional<std::size_t> current_row;  // index into rows when every slot matched
+  // What the recommendation saves against the current parts (negative: costs
+  // more), per good unit when a reject cost is given and both have a yield,
+  // else per unit built; none without a current row or a recommendation.
+  std::optional<double> saving;
+  bool saving_per_good_unit = false;
   std::string summary;  // what the recommendation changes and saves, one paragraph
 
   std::string choice_text(const GradeRow& r) const;  // "thermistor = 1%, adc = ext"
