@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <filesystem>
 #include <set>
 #include <sstream>
@@ -427,10 +428,19 @@ Design build_design(const Scenario& s) {
       r.fail("conditions.t_min", "must be below conditions.t_max (" + s.get("conditions.t_max").value + ")");
     r.fail("conditions.t_max", "must be above conditions.t_min (" + s.get("conditions.t_min").value + ")");
   }
-  const double count = std::floor((c.t_max - c.t_min) / c.t_step + 1e-9) + 2;
-  if (count > 100001)
-    r.fail("conditions.t_step", "gives " + std::to_string(static_cast<long long>(count)) +
-                                    " temperatures; at most 100001 are analysed");
+  {
+    // As many temperatures as Conditions::temperatures() makes: every step
+    // from t_min, then t_max when the last step falls short of it. Counted in
+    // double: a tiny step gives more than a long long holds.
+    const double steps = std::floor((c.t_max - c.t_min) / c.t_step + 1e-9);
+    const bool t_max_added = c.t_max - (c.t_min + steps * c.t_step) > 1e-9 * std::max(1.0, std::fabs(c.t_max));
+    const double count = steps + 1 + (t_max_added ? 1 : 0);
+    if (count > 100001) {
+      char text[32];
+      std::snprintf(text, sizeof text, count < 1e15 ? "%.0f" : "%.3g", count);
+      r.fail("conditions.t_step", std::string("gives ") + text + " temperatures; at most 100001 are analysed");
+    }
+  }
   {
     const auto& b = s.get("conditions.board");
     if (b.value == "sensor") {
