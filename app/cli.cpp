@@ -42,6 +42,17 @@ po::options_description hidden_key_options() {
   return o;
 }
 
+// The destination of --output, checked when the options are read and again
+// when writing, so that no long run ends in "cannot write".
+void check_output(const std::string& output) {
+  namespace fs = std::filesystem;
+  const fs::path target(output);
+  const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  std::error_code ec;
+  if (!fs::is_directory(dir, ec)) throw input_error("--output = " + output + " (command line): the directory does not exist");
+  if (fs::is_directory(target, ec)) throw input_error("--output = " + output + " (command line): is a directory");
+}
+
 }  // namespace
 
 bool help_requested(const std::string& command, int argc, char** argv, const std::string& usage,
@@ -90,7 +101,10 @@ Invocation parse(const std::string& command, int argc, char** argv, const po::op
   else if (fmt == "csv") inv.format = Format::csv;
   else if (fmt == "json") inv.format = Format::json;
   else throw input_error("--format = " + fmt + " (command line): must be one of: text | csv | json");
-  if (inv.vm.count("output")) inv.output = inv.vm["output"].as<std::string>();
+  if (inv.vm.count("output")) {
+    inv.output = inv.vm["output"].as<std::string>();
+    check_output(inv.output);
+  }
   if (inv.vm.count("report")) inv.report = inv.vm["report"].as<std::string>();
   inv.strict = inv.vm.count("strict") > 0;
   if (takes_scenario) {
@@ -114,8 +128,7 @@ void emit(const Invocation& inv, const std::string& text) {
   const fs::path target(inv.output);
   const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
   std::error_code ec;
-  if (!fs::is_directory(dir, ec)) throw input_error("--output = " + inv.output + " (command line): the directory does not exist");
-  if (fs::is_directory(target, ec)) throw input_error("--output = " + inv.output + " (command line): is a directory");
+  check_output(inv.output);
   const fs::path tmp = dir / ("." + target.filename().string() + ".tmp" + std::to_string(::getpid()));
   {
     std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
