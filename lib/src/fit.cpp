@@ -474,6 +474,14 @@ FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
     sh_points = {window.front(), best, window.back()};
   }
 
+  // The search between points is the fit's cost; a large file with many
+  // samples per interval would run for hours, so it is refused before it starts.
+  const double comparisons = static_cast<double>(window.size() - 1) * settings.between_samples;
+  if (comparisons > max_between_comparisons)
+    reject({Origin::command_line, "", 0, "fit.between_samples"}, std::to_string(settings.between_samples),
+           std::to_string(window.size() - 1) + " intervals between the points in the window x " +
+               std::to_string(settings.between_samples) + " samples = " + fmt("%.3g", comparisons) +
+               " comparisons per model; at most " + fmt("%.3g", max_between_comparisons) + ": fewer samples or a narrower window");
   const Interpolation in = make_interpolation(pts, in_window);
   const bool w = data.has_uncertainty;
   const int n = settings.between_samples;

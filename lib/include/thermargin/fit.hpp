@@ -63,6 +63,11 @@ struct FitSettings {
   int between_samples = 32;
 };
 
+// The most samples between points (intervals in the window × between_samples)
+// one fit compares per model: about a minute of one core. Beyond, fit_rt_data
+// refuses with the count before any work.
+inline constexpr double max_between_comparisons = 5e8;
+
 // One coefficient of a fitted model.
 struct FitCoefficient {
   std::string name;   // "r25", "beta"; "a", "b", "c" (and "d" for the four-term form)
