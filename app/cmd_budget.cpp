@@ -93,6 +93,7 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
                    {"reason", v.reason},
                    {"wc_method", b.wc_directed ? "directed corners" : "full enumeration"},
                    {"wc_corners", b.wc_corners},
+                   {"status_points", b.status_points},
                    {"k_p", b.k_p}};
   if (b.mc) {
     w["mc_max_abs"] = b.mc->max_abs;
@@ -235,6 +236,7 @@ int run_budget(int argc, char** argv) {
   if (options.corners == CornerMethod::enumerate && design.inputs.size() > 24)
     throw input_error("--corners = enumerate (command line): " + std::to_string(design.inputs.size()) +
                       " active inputs would give too many corners; at most 24 are enumerated");
+  require_feasible(design, inv.scenario, options);
   if (::isatty(STDERR_FILENO)) {
     options.progress = [](double f) {
       std::fprintf(stderr, "\rMonte Carlo %5.1f %%", 100.0 * std::min(f, 1.0));

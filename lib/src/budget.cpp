@@ -2,7 +2,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <map>
+#include <string>
 
 namespace thermargin {
 
@@ -32,7 +34,58 @@ std::vector<Contributor> point_contributors(const LinearPoint& lp, const WorstCa
   return out;
 }
 
+// "2.01e+11", "about 1.1 hours": sizes and times for the refusal messages.
+std::string count_text(double n) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, n < 1e6 ? "%.0f" : "%.3g", n);
+  return buf;
+}
+
+std::string duration_text(double seconds) {
+  char buf[64];
+  if (seconds < 5400) std::snprintf(buf, sizeof buf, "about %.0f minutes", seconds / 60);
+  else if (seconds < 2 * 86400) std::snprintf(buf, sizeof buf, "about %.1f hours", seconds / 3600);
+  else std::snprintf(buf, sizeof buf, "about %.0f days", seconds / 86400);
+  return buf;
+}
+
 }  // namespace
+
+void require_feasible(const Design& d, const Scenario& s, const BudgetOptions& options) {
+  const double temperatures = static_cast<double>(d.conditions.temperatures().size());
+  const std::string per_core = " of one core";
+  if (options.monte_carlo) {
+    const bool automatic = d.montecarlo.units == 0;
+    const double units = static_cast<double>(automatic ? d.montecarlo.max_units : d.montecarlo.units);
+    const double samples = units * temperatures * d.adc.averaging;
+    if (samples > max_monte_carlo_samples) {
+      const std::string key = automatic ? "montecarlo.max_units" : "montecarlo.units";
+      const Setting& at = s.get(key);
+      Where where = at.where;
+      where.key = key;
+      reject(where, at.value,
+             (automatic ? "auto may run up to " : "") + count_text(units) + " units x " + count_text(temperatures) +
+                 " temperatures x " + std::to_string(d.adc.averaging) + " sample(s) per reading = " + count_text(samples) +
+                 " simulated ADC samples, " + duration_text(samples / monte_carlo_samples_per_second) + per_core +
+                 "; at most " + count_text(max_monte_carlo_samples) + " are simulated: fewer units" +
+                 (automatic ? " (a lower montecarlo.max_units)" : " (or auto)") +
+                 ", a coarser conditions.t_step or a narrower t_min..t_max, or budget --no-mc");
+    }
+  }
+  // The automatic choice enumerates at most 2^16 corners, within the limit at
+  // the most temperatures conditions.t_step allows; an enumeration asked for may not be.
+  const int inputs = static_cast<int>(d.inputs.size());
+  if (options.corners == CornerMethod::enumerate) {
+    const double evaluations = std::ldexp(1.0, inputs) * temperatures;
+    if (evaluations > max_worst_case_evaluations)
+      reject(Where{Origin::command_line, "", 0, "--corners"}, "enumerate",
+             std::to_string(inputs) + " active inputs give 2^" + std::to_string(inputs) + " corners x " +
+                 count_text(temperatures) + " temperatures = " + count_text(evaluations) + " chain evaluations, " +
+                 duration_text(evaluations / worst_case_evaluations_per_second) + per_core + "; at most " +
+                 count_text(max_worst_case_evaluations) +
+                 " are enumerated: --corners=directed, a coarser conditions.t_step or a narrower t_min..t_max");
+  }
+}
 
 Budget run_budget(const Chain& chain, const BudgetOptions& options) {
   const Design& d = chain.design();

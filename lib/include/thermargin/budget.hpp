@@ -15,6 +15,7 @@
 #include "thermargin/linear_budget.hpp"
 #include "thermargin/monte_carlo.hpp"
 #include "thermargin/nominal.hpp"
+#include "thermargin/scenario.hpp"
 #include "thermargin/worst_case.hpp"
 
 namespace thermargin {
@@ -65,6 +66,21 @@ struct BudgetOptions {
 };
 
 Budget run_budget(const Chain& chain, const BudgetOptions& options = {});
+
+// What the budget's engines may be asked to do in one run. Beyond, the run
+// would take hours (the Monte Carlo engine simulates about 50 million ADC
+// samples a second on one core of the development machine, the worst case
+// about 2.5 million corner evaluations; docs/refusals.md).
+inline constexpr double max_monte_carlo_samples = 2e11;      // units x temperatures x samples per reading
+inline constexpr double max_worst_case_evaluations = 1e10;   // corners x temperatures
+inline constexpr double monte_carlo_samples_per_second = 5e7;
+inline constexpr double worst_case_evaluations_per_second = 2.5e6;
+
+// Refuses, before any work, a run beyond those limits with its size and a
+// time estimate: the Monte Carlo request names montecarlo.units (or
+// montecarlo.max_units, the cap of auto) where the scenario set it, an
+// enumeration of every corner names --corners.
+void require_feasible(const Design& design, const Scenario& scenario, const BudgetOptions& options);
 
 std::string_view to_string(Requirement::Basis b);
 
