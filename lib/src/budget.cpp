@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <limits>
 #include <map>
 #include <string>
 
@@ -151,6 +152,14 @@ Budget run_budget(const Chain& chain, const BudgetOptions& options) {
     }
     b.points.push_back(std::move(p));
   }
+  // An engine that could read no temperature of the window has no largest
+  // error there: not a number (printed as n/a, null in JSON), never 0 K.
+  const double none = std::numeric_limits<double>::quiet_NaN();
+  if (first_wc) b.wc_max_abs = b.wc_max_at = none;
+  if (first_rss) b.rss_max_abs = b.rss_max_at = none;
+  if (b.mc && std::none_of(b.points.begin(), b.points.end(),
+                           [](const BudgetPoint& p) { return p.in_window && p.mc && p.mc->valid > 0; }))
+    b.mc->max_abs = b.mc->max_abs_at = none;
   for (auto& [name, c] : window) {
     c.share = window_var > 0.0 ? c.share / window_var : 0.0;
     b.window_contributors.push_back(c);
