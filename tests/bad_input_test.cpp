@@ -20,6 +20,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <cmath>
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
@@ -214,6 +215,8 @@ std::vector<Case> combinations() {
       scenario("t_min above t_max", "[conditions]\nt_min = 95\n", {"conditions.t_min = 95", "bad.ini:2", "below conditions.t_max (80)"}),
       scenario("a step giving a hundred million temperatures", "[conditions]\nt_step = 1u\n",
                {"conditions.t_step = 1u", "bad.ini:2", "temperatures; at most 100001 are analysed"}),
+      scenario("a step too small to count in a long long", "[conditions]\nt_step = 1e-300\n",
+               {"conditions.t_step = 1e-300", "bad.ini:2", "gives 1e+302 temperatures; at most 100001"}),
       scenario("a gap without the gapped distribution", "[sensor]\nr25_tol_gap = 0.5%\n",
                {"sensor.r25_tol_gap = 0.5%", "bad.ini:2", "needs the gapped distribution"}),
       scenario("a gap as wide as the tolerance", "[sensor]\nr25_tol_dist = gapped\nr25_tol_gap = 2%\n",
@@ -271,6 +274,9 @@ std::vector<Case> tables() {
       table_file("an uncertainty on some lines only", "0,33.6k,1%\n25,10k\n50,3.6k\n85,1.07k\n",
                  {"table.csv:2", "column 3 (uncertainty) is missing here", "on every line or none"}),
       table_file("a binary table", "0,33.6k\n\0\0\0\n"s, {"table.csv", "not a text file"}),
+      // Found by fuzz_rt_table and fuzz_fit: a carriage return inside a field split the message.
+      table_file("a carriage return inside a value", "0,33.6k\n25,1\r0k\n50,3.6k\n85,1.07k\n",
+                 {"column 2 (resistance) = 1\\r0k (table.csv:2)", "expected a resistance"}),
       option("a table not covering 25 degC with tolerances", "check bad.ini",
              {"sensor.r25_tol = 1% (default)", "tolerances are defined at 25 degC", "or set the tolerances to 0"},
              {file("bad.ini", "[sensor]\nmodel = table\ntable_file = t.csv\n[conditions]\nt_min = 30\n[requirement]\nwindow_min = 30\n"),
@@ -303,6 +309,16 @@ std::vector<Case> fit() {
              {file("data.csv", good_fit_data)}),
       option("fit with no samples between points", "fit data.csv --between-samples=0",
              {"fit.between_samples = 0 (command line)", "from 1 to 100000"}, {file("data.csv", good_fit_data)}),
+      option("a fit that would compare for hours", "fit many.csv --between-samples=100000",
+             {"fit.between_samples = 100000 (command line)", "20000 intervals", "at most 5e+08"},
+             {file("many.csv", [] {
+                std::string csv;  // a beta curve every 10 mK: 20 001 points
+                for (int i = 0; i <= 20000; ++i) {
+                  const double t = -40.0 + 0.01 * i;
+                  csv += std::to_string(t) + "," + std::to_string(1e4 * std::exp(3950.0 * (1.0 / (t + 273.15) - 1.0 / 298.15))) + "\n";
+                }
+                return csv;
+              }())}),
       option("the four-term fit in a window of two points", "fit data.csv --extended --window=0..25",
              {"data.csv:3", "inside the fit window 0..25 degC", "needs at least 4"}, {file("data.csv", good_fit_data)}),
   };
@@ -366,6 +382,9 @@ std::vector<Case> options() {
              {"adc.bits = 40 (command line)", "a whole number from 1 to 32"}),
       option("a key option with a line break", "check '--adc.bits=1\n2'",
              {"adc.bits = 1\\n2 (command line)", "expected a whole number"}),
+      // Found by fuzz_number: a line break inside a value (fuzz/regressions/fuzz_number).
+      option("a key option with a unit, a line break and a number", "check '--adc.offset=/K\n1e-3'",
+             {"adc.offset = /K\\n1e-3 (command line)", "expected a number of ADC counts"}),
       option("budget in XML", "budget --format=xml", {"--format = xml (command line)", "text | csv | json"}),
       option("budget with an unknown corner method", "budget --corners=all",
              {"--corners = all (command line)", "auto | enumerate | directed"}),
