@@ -5,7 +5,6 @@
 // budget_cli_test.cpp; here are pick (its Monte Carlo objective and
 // --verify) and grades (its screened Monte Carlo per combination). A
 // different seed must change the draws, so the comparison can fail.
-#include <sys/wait.h>
 #include <unistd.h>
 
 #include <cstdio>
@@ -16,28 +15,15 @@
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
+#include "cli_run.hpp"
+
 namespace thermargin {
 namespace {
 
 namespace fs = std::filesystem;
 
-struct Outcome {
-  int status = -1;
-  std::string out;
-};
-
-Outcome thermargin(const std::string& args) {
-  const std::string cmd = std::string("'") + THERMARGIN_CLI + "' " + args + " 2>/dev/null </dev/null";
-  Outcome r;
-  FILE* pipe = popen(cmd.c_str(), "r");
-  if (!pipe) return r;
-  char buf[65536];
-  std::size_t n;
-  while ((n = std::fread(buf, 1, sizeof buf, pipe)) > 0) r.out.append(buf, n);
-  const int rc = pclose(pipe);
-  r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-  return r;
-}
+using Outcome = testing::CliOutcome;
+Outcome thermargin(const std::string& args) { return testing::run_cli(args); }
 
 // Runs `args` with 1, 2 and 8 threads and once more with 2; all four outputs
 // must be the same bytes. Returns the output.

@@ -9,7 +9,6 @@
 // no printed number anywhere is nan or inf. A request beyond what the
 // machine can do in reasonable time is refused up front with exit 2 and the
 // count it would have produced.
-#include <sys/wait.h>
 
 #include <cstdio>
 #include <regex>
@@ -20,6 +19,8 @@
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
+#include "cli_run.hpp"
+
 #include "thermargin/budget.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/scenario.hpp"
@@ -29,28 +30,8 @@ namespace {
 
 const std::string source_dir = THERMARGIN_SOURCE_DIR;
 
-struct Outcome {
-  int status = -1;
-  std::string out, err;
-};
-
-Outcome thermargin(const std::string& args) {
-  const std::string err_file = ::testing::TempDir() + "thermargin_limits_stderr";
-  const std::string cmd = std::string("'") + THERMARGIN_CLI + "' " + args + " 2>'" + err_file + "' </dev/null";
-  Outcome r;
-  FILE* pipe = popen(cmd.c_str(), "r");
-  if (!pipe) return r;
-  char buf[65536];
-  std::size_t n;
-  while ((n = std::fread(buf, 1, sizeof buf, pipe)) > 0) r.out.append(buf, n);
-  const int rc = pclose(pipe);
-  r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-  if (FILE* e = std::fopen(err_file.c_str(), "r")) {
-    while ((n = std::fread(buf, 1, sizeof buf, e)) > 0) r.err.append(buf, n);
-    std::fclose(e);
-  }
-  return r;
-}
+using Outcome = testing::CliOutcome;
+Outcome thermargin(const std::string& args) { return testing::run_cli(args); }
 
 // A number that is not one, as C's printf, JSON libraries or a person would write it.
 bool prints_non_finite(const std::string& text) {
