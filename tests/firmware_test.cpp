@@ -157,7 +157,8 @@ TEST(FirmwareLookupTable, SpansTheRangeCodesWithAFivePercentMarginEachSide) {
   // docs/model.md: the codes of t_min and t_max, widened by 5 % of their span
   // at each end, within [1, 2^N − 2].
   const Design d = design_from({{"firmware.conversion", "table"}, {"firmware.table_points", "33"}});
-  const LookupTable& table = Firmware(d).table();
+  const Firmware fw(d);  // the table lives in the firmware object
+  const LookupTable& table = fw.table();
   const double lo = ideal_code(d, d.conditions.t_max), hi = ideal_code(d, d.conditions.t_min);
   const double margin = 0.05 * (hi - lo);
   EXPECT_EQ(table.first_code, static_cast<std::int64_t>(std::floor(lo - margin)));
