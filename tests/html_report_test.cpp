@@ -258,7 +258,7 @@ svg::Chart small_chart(const std::string& name) {
 
 HtmlDocument sample_document() {
   HtmlDocument doc("Design review <default> & \"friends\"");
-  doc.verdict(Verdict::fail, "worst case 0.61 K exceeds \u00b10.5 K")
+  doc.verdict(Badge::fail, "worst case 0.61 K exceeds \u00b10.5 K")
       .heading("Error across the range")
       .paragraph("Errors are reported minus true, in kelvin.")
       .chart(small_chart("nominal"), "Figure 1. Error bands <all>")
@@ -286,7 +286,7 @@ TEST(HtmlDocument, IsSelfContainedWithAPrintStyleSheet) {
 
 TEST(HtmlDocument, VerdictsCarryTheirResultInWordsAndNumericColumnsAlignRight) {
   HtmlDocument pass("p");
-  pass.verdict(Verdict::pass, "within limits");
+  pass.verdict(Badge::pass, "within limits");
   std::string p = pass.str();
   EXPECT_NE(p.find("class=\"verdict pass\""), std::string::npos);
   EXPECT_NE(p.find("PASS"), std::string::npos);

@@ -1,15 +1,16 @@
 #include "thermargin/budget_report.hpp"
 
 #include <sys/stat.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cerrno>
 #include <cmath>
+#include <cstdio>
 #include <cstring>
 #include <filesystem>
 #include <optional>
 
-#include "report_page.hpp"
 #include "thermargin/caution.hpp"
 #include "thermargin/error.hpp"
 #include "thermargin/monte_carlo.hpp"
@@ -19,9 +20,6 @@ namespace thermargin {
 namespace {
 
 namespace fs = std::filesystem;
-
-using report::Page;
-using report::Table;
 
 using report::bar;
 using report::celsius;
@@ -312,7 +310,7 @@ Table margin_table(const Design& d, const Budget& b) {
   return t;
 }
 
-void yield_block(Page& doc, const Design& d, const Budget& b) {
+void yield_block(HtmlDocument& doc, const Design& d, const Budget& b) {
   doc.heading("Production yield");
   if (!b.mc) {
     doc.paragraph("Monte Carlo was not run (--no-mc), so there is no yield estimate.");
@@ -335,7 +333,7 @@ void yield_block(Page& doc, const Design& d, const Budget& b) {
              .numeric = {}});
 }
 
-void status_block(Page& doc, const Budget& b) {
+void status_block(HtmlDocument& doc, const Budget& b) {
   std::vector<std::vector<std::string>> rows;
   for (const auto& p : b.points) {
     if (!unreadable(p)) continue;
@@ -359,6 +357,66 @@ void status_block(Page& doc, const Budget& b) {
   reject(Where{Origin::command_line, "", 0, option}, path, reason);
 }
 
+struct NamedText {
+  std::string name, text;
+};
+
+// Writes dir/<name> for every file, all or none: each is first written whole
+// under a hidden staging name beside its target, and only when all are
+// staged are they renamed into place. On a failure the staged files, and
+// `dir` if `created_dir` says the caller made it, are removed, and
+// input_error says "<option> = <dir> (command line): cannot write <name>: <reason>".
+void write_files(const std::string& option, const std::string& dir, const std::vector<NamedText>& files,
+                 bool created_dir) {
+  std::vector<fs::path> staged;
+  auto clean_up = [&] {
+    std::error_code ec;
+    for (const auto& s : staged) fs::remove(s, ec);
+    if (created_dir) fs::remove(dir, ec);
+  };
+  // A target that is a directory (or otherwise cannot be replaced) is found
+  // before anything is written, so the renames below do not fail half way.
+  for (const auto& f : files) {
+    const fs::path target = fs::path(dir) / f.name;
+    struct stat st {};
+    if (::lstat(target.c_str(), &st) == 0) {
+      if (S_ISDIR(st.st_mode)) {
+        clean_up();
+        refuse(option, dir, "cannot write " + f.name + ": it is a directory");
+      }
+      if (S_ISREG(st.st_mode) && ::access(target.c_str(), W_OK) != 0) {
+        clean_up();
+        refuse(option, dir, "cannot write " + f.name + ": the file is read-only");
+      }
+    }
+  }
+  for (const auto& f : files) {
+    const fs::path stage = fs::path(dir) / ("." + f.name + ".staged-" + std::to_string(::getpid()));
+    try {
+      write_file_atomically(stage.string(), f.text);
+    } catch (const input_error& e) {
+      clean_up();
+      const std::string why = e.what();
+      const std::string marker = "cannot write: ";
+      const auto at = why.find(marker);
+      refuse(option, dir,
+             "cannot write " + f.name + (at == std::string::npos ? std::string() : ": " + why.substr(at + marker.size())));
+    }
+    staged.push_back(stage);
+  }
+  for (std::size_t i = 0; i < files.size(); ++i) {
+    const fs::path target = fs::path(dir) / files[i].name;
+    if (::rename(staged[i].c_str(), target.c_str()) != 0) {
+      const int err = errno;
+      // Earlier renames already put complete files in place; the rest of the
+      // staged files are removed so that no stray file is left.
+      std::error_code ec;
+      for (std::size_t k = i; k < staged.size(); ++k) fs::remove(staged[k], ec);
+      refuse(option, dir, "cannot write " + files[i].name + ": " + std::strerror(err));
+    }
+  }
+}
+
 }  // namespace
 
 std::vector<Figure> budget_figures(const Design& design, const Budget& budget) {
@@ -373,14 +431,14 @@ std::vector<Figure> budget_figures(const Design& design, const Budget& budget) {
 
 std::string budget_report_html(const Design& d, const Scenario& scenario, const Budget& b, const std::string& source) {
   const auto figures = budget_figures(d, b);
-  Page doc;
+  HtmlDocument doc("Design review: " + d.title);
   doc.paragraph("thermargin " + std::string(version) + " budget of " +
                 (source.empty() ? std::string("the built-in default design") : "scenario " + source) + ": " +
                 std::to_string(b.points.size()) + " temperatures from " + celsius(d.conditions.t_min) + " to " +
                 celsius(d.conditions.t_max) + "; requirement \u00b1" + kelvin(d.requirement.max_error) + " from " +
                 celsius(d.requirement.window_min) + " to " + celsius(d.requirement.window_max) + " with a yield of " +
                 pct(d.requirement.yield, 2) + ". Errors are reported minus true temperature, in kelvin.");
-  doc.verdict(b.verdict.pass, verdict_detail(d, b));
+  doc.verdict(b.verdict.pass ? Badge::pass : Badge::fail, verdict_detail(d, b));
   doc.caution(caution);
   doc.table(margin_table(d, b));
   if (!b.window_contributors.empty() && b.window_contributors.front().share > 0.0)
@@ -424,9 +482,38 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
   doc.chart(figures[4].chart, "Figure 5. " + figures[4].caption);
 
   status_block(doc, b);
-  report::inputs(doc, d, scenario);
+  add_resolved_inputs(doc, d, scenario);
   doc.caution(caution);
-  return report::render_page("Design review: " + d.title, doc.blocks());
+  return doc.str();
+}
+
+void add_resolved_inputs(HtmlDocument& doc, const Design& d, const Scenario& s) {
+  doc.heading("Every resolved input");
+  doc.paragraph(std::to_string(d.inputs.size()) +
+                " toleranced inputs are active. Values as given (the built-in default where no file or option set "
+                "one), with their unit and where they came from, as `thermargin check` prints them.");
+  std::string section;
+  Table t;
+  auto flush = [&] {
+    if (!t.rows.empty()) doc.table(t);
+    t = Table{};
+  };
+  for (const auto& k : scenario_schema()) {
+    const auto& v = s.get(k.key);
+    if ((k.key.ends_with("_dist") || k.key.ends_with("_gap")) && v.where.kind == Origin::built_in) continue;
+    const auto dot = k.key.find('.');
+    const std::string sec = dot == std::string::npos ? "(top)" : k.key.substr(0, dot);
+    if (sec != section || t.header.empty()) {
+      flush();
+      section = sec;
+      t.caption = sec == "(top)" ? std::string("Top level") : "[" + sec + "]";
+      t.header = {"Key", "Value", "Unit", "Origin"};
+      t.numeric = {false, false, false, false};
+    }
+    t.rows.push_back({k.key, v.value.empty() ? "(none)" : v.value, std::string(unit_symbol(k.quantity)),
+                      v.where.origin()});
+  }
+  flush();
 }
 
 void check_report_path(const std::string& option, const std::string& path) {
@@ -449,12 +536,12 @@ void check_plots_directory(const std::string& option, const std::string& dir) {
            "directory " + parent.string() + " does not exist; the plots directory is created only inside an existing one");
 }
 
-void write_report(const std::string& path, std::string_view html) { report::write_file(path, html); }
+void write_report(const std::string& path, std::string_view html) { write_file_atomically(path, html); }
 
 void write_figures(const std::string& option, const std::string& dir, const std::vector<Figure>& figures) {
   check_plots_directory(option, dir);
   // Render everything first: nothing touches the disk until every file's text exists.
-  std::vector<report::NamedText> files;
+  std::vector<NamedText> files;
   for (const auto& f : figures) files.push_back({f.file, svg::render_document(f.chart)});
   bool created = false;
   std::error_code ec;
@@ -462,7 +549,7 @@ void write_figures(const std::string& option, const std::string& dir, const std:
     if (::mkdir(dir.c_str(), 0777) != 0) refuse(option, dir, std::string("cannot create it: ") + std::strerror(errno));
     created = true;
   }
-  report::write_files(option, dir, files, created);
+  write_files(option, dir, files, created);
 }
 
 }  // namespace thermargin

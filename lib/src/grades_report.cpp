@@ -4,7 +4,6 @@
 #include <cmath>
 #include <optional>
 
-#include "report_page.hpp"
 #include "thermargin/caution.hpp"
 
 namespace thermargin {
@@ -13,9 +12,7 @@ namespace {
 
 using report::kelvin;
 using report::num;
-using report::Page;
 using report::pct;
-using report::Table;
 
 std::string measure_phrase(ErrorMeasure m) {
   switch (m) {
@@ -85,7 +82,7 @@ std::string grades_report_html(const Design& d, const Scenario& scenario, const 
                                const std::string& source) {
   const auto figures = grades_figures(g);
   const auto& q = g.requirement;
-  Page doc;
+  HtmlDocument doc("Part grades: " + d.title);
   std::string intro = "thermargin " + std::string(version) + " grades for " +
                       (source.empty() ? std::string("the built-in default design") : "scenario " + source) +
                       " with catalogue " + cat.file + ": " + std::to_string(g.slots.size()) + " slot(s), " +
@@ -97,11 +94,11 @@ std::string grades_report_html(const Design& d, const Scenario& scenario, const 
   doc.paragraph(intro);
   if (g.recommendation) {
     const GradeRow& r = g.rows[*g.recommendation];
-    doc.verdict(true, "Recommended: " + g.choice_text(r) + " at " + money(r.unit_cost) + " per unit \u2014 " +
+    doc.verdict(Badge::pass, "Recommended: " + g.choice_text(r) + " at " + money(r.unit_cost) + " per unit \u2014 " +
                           (r.wc_max_abs ? "worst case " + kelvin(*r.wc_max_abs) : std::string("worst case n/a")) +
                           (r.mc ? ", yield " + pct(r.mc->yield, 3) : std::string()) + ".");
   } else {
-    doc.verdict(false, "No combination in the catalogue meets the requirement.");
+    doc.verdict(Badge::fail, "No combination in the catalogue meets the requirement.");
   }
   doc.caution(caution);
   if (!g.summary.empty()) doc.paragraph(g.summary);
@@ -131,9 +128,9 @@ std::string grades_report_html(const Design& d, const Scenario& scenario, const 
     t.rows.push_back(std::move(row));
   }
   doc.table(std::move(t));
-  report::inputs(doc, d, scenario);
+  add_resolved_inputs(doc, d, scenario);
   doc.caution(caution);
-  return report::render_page("Part grades: " + d.title, doc.blocks());
+  return doc.str();
 }
 
 }  // namespace thermargin

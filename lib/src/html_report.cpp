@@ -8,6 +8,8 @@
 #include <atomic>
 #include <cerrno>
 #include <climits>
+#include <cmath>
+#include <cstdio>
 #include <cstdlib>
 #include <cstring>
 #include <filesystem>
@@ -278,9 +280,9 @@ HtmlDocument& HtmlDocument::paragraph(std::string_view text) {
   return *this;
 }
 
-HtmlDocument& HtmlDocument::verdict(Verdict verdict, std::string_view detail) {
+HtmlDocument& HtmlDocument::verdict(Badge badge, std::string_view detail) {
   // The word and the symbol carry the result; colour and border only repeat it.
-  bool pass = verdict == Verdict::pass;
+  bool pass = badge == Badge::pass;
   body_ += std::string("<div class=\"verdict ") + (pass ? "pass" : "fail") + "\" role=\"status\"><span class=\"mark\">" +
            (pass ? "\u2714 PASS" : "\u2718 FAIL") + "</span> " + html_escape(detail) + "</div>\n";
   return *this;
@@ -352,5 +354,38 @@ std::string HtmlDocument::str() const {
   out += "</body>\n</html>\n";
   return out;
 }
+
+// ---------------------------------------------------------------- figures for a person
+
+namespace report {
+
+std::string num(double v, int decimals) {
+  if (!std::isfinite(v)) return "n/a";
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string s = buf;
+  if (s.front() == '-') {
+    if (s.find_first_not_of("-0.") == std::string::npos) return s.substr(1);
+    return "\u2212" + s.substr(1);
+  }
+  return s;
+}
+
+std::string pct(double fraction, int decimals) { return num(100.0 * fraction, decimals) + " %"; }
+
+std::string kelvin(double v, int decimals) { return num(v, decimals) + " K"; }
+std::string celsius(double v) { return num(v, 2) + " \u00b0C"; }
+
+std::string bar(double fraction, int width) {
+  const double eighths = std::clamp(fraction, 0.0, 1.0) * width * 8.0;
+  const auto n = static_cast<long>(std::lround(eighths));
+  static const char* const partial[] = {"", "\u258f", "\u258e", "\u258d", "\u258c", "\u258b", "\u258a", "\u2589"};
+  std::string s;
+  for (long i = 0; i < n / 8; ++i) s += "\u2588";
+  s += partial[n % 8];
+  return s;
+}
+
+}  // namespace report
 
 }  // namespace thermargin

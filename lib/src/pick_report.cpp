@@ -5,7 +5,6 @@
 #include <numeric>
 #include <optional>
 
-#include "report_page.hpp"
 #include "thermargin/caution.hpp"
 
 namespace thermargin {
@@ -14,9 +13,7 @@ namespace {
 
 using report::kelvin;
 using report::num;
-using report::Page;
 using report::pct;
-using report::Table;
 
 std::string ohms(double r) { return format_quantity(r, Quantity::resistance, 4); }
 
@@ -164,7 +161,7 @@ std::vector<Figure> pick_figures(const Design& design, const PickResult& res) {
 std::string pick_report_html(const Design& d, const Scenario& scenario, const PickResult& res, const PickOptions& o,
                              const std::string& source) {
   const auto figures = pick_figures(d, res);
-  Page doc;
+  HtmlDocument doc("Resistor pick: " + d.title);
   doc.paragraph("thermargin " + std::string(version) + " pick for " +
                 (source.empty() ? std::string("the built-in default design") : "scenario " + source) + ": " +
                 std::to_string(res.candidates) + " candidates (" + res.candidates_label +
@@ -174,7 +171,7 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
                 " meet every constraint. Fixed-resistor grade " + format_quantity(res.tolerance, Quantity::ratio, 3) +
                 ", " + format_quantity(res.tempco, Quantity::tempco, 3) + ".");
   if (res.rows.empty()) {
-    doc.verdict(false, "No candidate was ranked.");
+    doc.verdict(Badge::fail, "No candidate was ranked.");
   } else {
     const PickRow& w = res.winner();
     const bool readable = plotted(w).has_value();
@@ -194,7 +191,7 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
                                                          : "; outside the requirement of \u00b1" + kelvin(d.requirement.max_error);
       detail += ".";
     }
-    doc.verdict(meets, detail);
+    doc.verdict(meets ? Badge::pass : Badge::fail, detail);
   }
   doc.caution(caution);
 
@@ -252,9 +249,9 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
     add("Three-point linearisation", gd.linearising);
     doc.table(std::move(g));
   }
-  report::inputs(doc, d, scenario);
+  add_resolved_inputs(doc, d, scenario);
   doc.caution(caution);
-  return report::render_page("Resistor pick: " + d.title, doc.blocks());
+  return doc.str();
 }
 
 }  // namespace thermargin

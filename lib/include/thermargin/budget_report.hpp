@@ -21,6 +21,7 @@
 #include <vector>
 
 #include "thermargin/budget.hpp"
+#include "thermargin/html_report.hpp"
 #include "thermargin/scenario.hpp"
 #include "thermargin/svg_chart.hpp"
 
@@ -47,6 +48,11 @@ std::vector<Figure> budget_figures(const Design& design, const Budget& budget);
 std::string budget_report_html(const Design& design, const Scenario& scenario, const Budget& budget,
                                const std::string& source = {});
 
+// Appends "Every resolved input", the section every report page ends with:
+// one table per scenario section with each key's value, unit and origin, as
+// `thermargin check` prints them (distribution and gap keys only when set).
+void add_resolved_inputs(HtmlDocument& page, const Design& design, const Scenario& scenario);
+
 // Refuses a --report or --plots destination before any work is done, so a
 // long analysis never ends in "cannot write". `option` names the option in
 // the message: "--report = out/review.html (command line): directory out does
@@ -55,8 +61,7 @@ std::string budget_report_html(const Design& design, const Scenario& scenario, c
 void check_report_path(const std::string& option, const std::string& path);
 void check_plots_directory(const std::string& option, const std::string& dir);
 
-// Writes the report whole or not at all (write_file_atomically in
-// html_report.hpp, which this header cannot include: see lib/src/report_page.hpp).
+// Writes the report whole or not at all (write_file_atomically).
 void write_report(const std::string& path, std::string_view html);
 
 // Writes each figure as dir/<file> (render_document), all or none: every file

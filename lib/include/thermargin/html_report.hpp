@@ -1,5 +1,6 @@
 // Writing reports: a self-contained HTML document builder, CSV cells that are
-// safe to open in a spreadsheet, and atomic file output.
+// safe to open in a spreadsheet, atomic file output, and figures formatted
+// for a person.
 //
 // Presentation only, no physics. The HTML document carries its own style
 // sheet (screen and print: margins that fit both A4 and US Letter, charts and
@@ -44,7 +45,9 @@ std::string csv_cell(std::string_view text);
 //   write_file_atomically("out/report.html", doc.str());
 void write_file_atomically(const std::string& path, std::string_view contents);
 
-enum class Verdict { pass, fail };
+// The result a verdict banner shows. (budget.hpp's `Verdict` is the budget's
+// whole verdict: basis, margin, reason; this is only its pass or fail.)
+enum class Badge { pass, fail };
 
 // A table of preformatted cells. Columns whose cells all start like a number
 // ("-1.25", "10k", "±0.3 K") are right-aligned unless `numeric` says otherwise.
@@ -58,7 +61,7 @@ struct Table {
 // Builds one HTML page; every method appends a block and returns *this.
 //
 //   HtmlDocument doc("Budget: default design");
-//   doc.verdict(Verdict::pass, "worst case 0.41 K within ±0.5 K")
+//   doc.verdict(Badge::pass, "worst case 0.41 K within ±0.5 K")
 //      .heading("Error across the range").chart(chart, "Figure 1. Error bands");
 //   write_file_atomically("report.html", doc.str());
 class HtmlDocument {
@@ -67,7 +70,7 @@ class HtmlDocument {
 
   HtmlDocument& heading(std::string_view text, int level = 2);   // level 2..6; 1 is the title
   HtmlDocument& paragraph(std::string_view text);
-  HtmlDocument& verdict(Verdict verdict, std::string_view detail);
+  HtmlDocument& verdict(Badge badge, std::string_view detail);
   HtmlDocument& table(const Table& table);
   HtmlDocument& chart(const svg::Chart& chart, std::string_view caption = {});
   HtmlDocument& caution(std::string_view text);
@@ -79,5 +82,17 @@ class HtmlDocument {
   std::string title_;
   std::string body_;
 };
+
+// Figures for a person, as the report pages print them: fixed decimals, a
+// true minus sign (U+2212), never "nan" or "-0.000".
+namespace report {
+std::string num(double v, int decimals);          // num(-0.4781, 3) == "−0.478"; NaN gives "n/a"
+std::string pct(double fraction, int decimals);   // pct(0.125, 2) == "12.50 %"
+std::string kelvin(double v, int decimals = 3);   // "0.478 K"
+std::string celsius(double v);                    // "40.00 °C"
+// A share in [0, 1] as a bar of block characters (in eighths), so a ranking
+// reads at a glance in a table cell, on screen and on paper.
+std::string bar(double fraction, int width = 24);
+}  // namespace report
 
 }  // namespace thermargin
