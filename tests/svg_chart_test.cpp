@@ -278,6 +278,95 @@ TEST(SvgChart, LogAxisTreatsNonPositiveValuesAsGaps) {
   EXPECT_EQ(series_attr(svg, "wc", "data-runs"), "1");
 }
 
+// Pixel position (cx or cy) of each drawn point marker of the chart, by its data value.
+std::vector<std::pair<double, double>> marker_pixels(const std::string& svg, const char* coordinate) {
+  std::regex marker(std::string("class=\"point\" data-x=\"([^\"]*)\" data-y=\"([^\"]*)\" cx=\"([^\"]*)\" cy=\"([^\"]*)\""));
+  const bool want_y = std::string(coordinate) == "cy";
+  std::vector<std::pair<double, double>> out;
+  for (auto it = std::sregex_iterator(svg.begin(), svg.end(), marker); it != std::sregex_iterator(); ++it)
+    out.emplace_back(std::stod((*it)[want_y ? 2 : 1].str()), std::stod((*it)[want_y ? 4 : 3].str()));
+  return out;
+}
+
+// The y pixel of each tick on the y axis (a horizontal mark left of the plot), by its value.
+std::vector<std::pair<double, double>> y_tick_pixels(const std::string& svg) {
+  std::regex tick("class=\"tick\" data-value=\"([^\"]*)\" d=\"M([^,]*),([^L]*)L([^,]*),([^\"]*)\"");
+  std::vector<std::pair<double, double>> out;
+  for (auto it = std::sregex_iterator(svg.begin(), svg.end(), tick); it != std::sregex_iterator(); ++it)
+    if ((*it)[3].str() == (*it)[5].str()) out.emplace_back(std::stod((*it)[1].str()), std::stod((*it)[3].str()));
+  return out;
+}
+
+// Pixels are written with two decimals; a recomputed distance may differ by two roundings.
+constexpr double kPixelSlack = 0.011;
+
+TEST(SvgChart, LogYAxisPutsEachDecadeTheSameHeightAndTwoAtItsLogTen) {
+  // Graph-paper log scale (common practice): equal ratios are equal
+  // distances, so 1, 10 and 100 are equally spaced and 2 sits log10(2) =
+  // 0.30103 of a decade above 1 (the value from a table of logarithms).
+  Chart c = base_chart();
+  c.y.scale = Scale::log10;
+  c.y.label = "Error (K)";
+  c.series.push_back(points("p", "p", {0, 1, 2, 3}, {1.0, 2.0, 10.0, 100.0}));
+  const std::string svg = render(c);
+  const auto px = marker_pixels(svg, "cy");
+  ASSERT_EQ(px.size(), 4u) << svg;
+  const double y1 = px[0].second, y2 = px[1].second, y10 = px[2].second, y100 = px[3].second;
+  EXPECT_GT(y1, y10);  // SVG y grows downwards: larger values are higher up
+  EXPECT_NEAR(y1 - y10, y10 - y100, kPixelSlack);
+  EXPECT_NEAR((y1 - y2) / (y1 - y10), 0.30103, kPixelSlack / (y1 - y10) + 5e-6);
+  // The axis: decades labelled, 2 and 5 between them, each tick at the height of its value.
+  const auto ticks = y_tick_pixels(svg);
+  std::vector<double> at;
+  for (const auto& [v, y] : ticks) at.push_back(v);
+  EXPECT_EQ(at, (std::vector<double>{1, 2, 5, 10, 20, 50, 100}));
+  for (const auto& [v, y] : ticks) {
+    if (v == 1) EXPECT_NEAR(y, y1, kPixelSlack);
+    if (v == 2) EXPECT_NEAR(y, y2, kPixelSlack);
+    if (v == 10) EXPECT_NEAR(y, y10, kPixelSlack);
+    if (v == 100) EXPECT_NEAR(y, y100, kPixelSlack);
+  }
+  // The x axis of the pick chart is log too: the same spacing across.
+  Chart r = base_chart();
+  r.x.scale = Scale::log10;
+  r.series.push_back(points("p", "p", {1e3, 1e4, 1e5}, {0.1, 0.2, 0.3}));
+  const auto rx = marker_pixels(render(r), "cx");
+  ASSERT_EQ(rx.size(), 3u);
+  EXPECT_NEAR(rx[1].second - rx[0].second, rx[2].second - rx[1].second, kPixelSlack);
+}
+
+TEST(SvgChart, NonPositiveValuesOnALogYAxisAreGapsAndStayOutOfItsRange) {
+  Chart c = base_chart();
+  c.y.scale = Scale::log10;
+  c.series.push_back(line("err", "Error", {0, 1, 2, 3, 4, 5}, {1.0, -3.0, 0.0, 10.0, 100.0, kNaN}));
+  c.series.push_back(band("wc", "Worst case", {0, 1, 2}, {0.5, -1.0, 2.0}, {3.0, 4.0, 6.0}));
+  c.series.push_back(points("pts", "Points", {0, 1}, {-2.0, 20.0}));
+  c.series.push_back(reference("limit", "limit", {0.0, 50.0}));
+  c.series.push_back(annotation("note", "zero", 1, 0.0));
+  const std::string svg = render(c);
+  // 1 | gap (-3, 0) | 10, 100: two runs, and nothing of the gap is listed or drawn
+  EXPECT_EQ(numbers(series_attr(svg, "err", "data-y")), (std::vector<double>{1, 10, 100}));
+  EXPECT_EQ(series_attr(svg, "err", "data-runs"), "2");
+  EXPECT_EQ(count(svg, "class=\"segment\""), 2u);
+  EXPECT_EQ(numbers(series_attr(svg, "wc", "data-x")), (std::vector<double>{0, 2}));
+  EXPECT_EQ(series_attr(svg, "wc", "data-runs"), "2");
+  EXPECT_EQ(numbers(series_attr(svg, "pts", "data-y")), (std::vector<double>{20}));
+  EXPECT_EQ(numbers(series_attr(svg, "limit", "data-y")), (std::vector<double>{50}));
+  EXPECT_EQ(series_attr(svg, "note", "data-y"), "(no such attribute)");
+  // The range is that of the drawn values, 0.5 .. 100, not widened down to
+  // (or thrown off by) the values <= 0.
+  const auto ticks = y_tick_pixels(svg);
+  ASSERT_FALSE(ticks.empty());
+  EXPECT_EQ(ticks.front().first, 0.5);
+  EXPECT_EQ(ticks.back().first, 100.0);
+  // Every drawn coordinate lies inside the chart.
+  std::regex coord("(?:cx|cy)=\"([^\"]*)\"");
+  for (auto it = std::sregex_iterator(svg.begin(), svg.end(), coord); it != std::sregex_iterator(); ++it) {
+    const double v = std::stod((*it)[1].str());
+    EXPECT_TRUE(v >= 0 && v <= 720) << (*it).str();
+  }
+}
+
 TEST(SvgChart, DataAttributesGiveBackTheInputToNineSignificantDigits) {
   std::mt19937_64 rng(7);
   std::uniform_real_distribution<double> exponent(-12, 12), mantissa(-10, 10);

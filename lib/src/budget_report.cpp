@@ -209,8 +209,9 @@ Figure contributor_figure(const Budget& b) {
           std::move(c)};
 }
 
-// Two linear charts rather than one on a log axis: svg_chart draws a log10
-// y axis with a linear mapping, so on it the two curves would be misplaced.
+// Two charts rather than one: the sensitivity and the size of one LSB are
+// reciprocals in different units (LSB/K and K), which one y axis cannot
+// label; each reads directly from a linear axis that starts at zero.
 Figure sensitivity_figure(const Design& d, const Budget& b) {
   const auto t = temperatures(b);
   svg::Chart c;

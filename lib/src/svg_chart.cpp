@@ -511,17 +511,19 @@ class Renderer {
   Rect plot_{};
   std::vector<Resolved> style_;
 
-  double X(double v) const {
-    if (c_.x.scale == Scale::log10) {
+  // Where a value sits between an axis's ends, 0 at min and 1 at max: in
+  // log10 v on a log axis (NaN for v <= 0, which has no place there), in v
+  // on a linear one (halved first, so that a span near the double limits
+  // does not overflow).
+  static double fraction(double v, Scale scale, const AxisPlan& p) {
+    if (scale == Scale::log10) {
       if (!(v > 0)) return kNaN;
-      return plot_.x0 + (std::log10(v) - std::log10(xp_.min)) / (std::log10(xp_.max) - std::log10(xp_.min)) *
-                            (plot_.x1 - plot_.x0);
+      return (std::log10(v) - std::log10(p.min)) / (std::log10(p.max) - std::log10(p.min));
     }
-    return plot_.x0 + (v / 2 - xp_.min / 2) / (xp_.max / 2 - xp_.min / 2) * (plot_.x1 - plot_.x0);
+    return (v / 2 - p.min / 2) / (p.max / 2 - p.min / 2);
   }
-  double Y(double v) const {
-    return plot_.y1 - (v / 2 - yp_.min / 2) / (yp_.max / 2 - yp_.min / 2) * (plot_.y1 - plot_.y0);
-  }
+  double X(double v) const { return plot_.x0 + fraction(v, c_.x.scale, xp_) * (plot_.x1 - plot_.x0); }
+  double Y(double v) const { return plot_.y1 - fraction(v, c_.y.scale, yp_) * (plot_.y1 - plot_.y0); }
   Pt P(double x, double y) const { return {X(x), Y(y)}; }
 
   void resolve_styles();
@@ -632,7 +634,7 @@ std::string Renderer::draw_line(const Series& s, const Resolved& st, std::string
   std::vector<std::vector<std::size_t>> runs(1);
   for (std::size_t i = 0; i < s.x.size(); ++i) {
     auto y = value_at(s.y, i);
-    if (y && plottable(s.x[i], c_.x.scale)) {
+    if (y && plottable(s.x[i], c_.x.scale) && plottable(*y, c_.y.scale)) {
       Pt p = P(s.x[i], *y);
       if (std::isfinite(p.x) && std::isfinite(p.y)) {
         runs.back().push_back(i);
@@ -690,7 +692,7 @@ std::string Renderer::draw_band(const Series& s, const Resolved& st, std::string
   std::vector<std::vector<std::size_t>> runs(1);
   for (std::size_t i = 0; i < s.x.size(); ++i) {
     auto lo = value_at(s.y, i), hi = value_at(s.y_high, i);
-    if (lo && hi && plottable(s.x[i], c_.x.scale)) {
+    if (lo && hi && plottable(s.x[i], c_.x.scale) && plottable(*lo, c_.y.scale) && plottable(*hi, c_.y.scale)) {
       Pt a = P(s.x[i], *lo), b = P(s.x[i], *hi);
       if (std::isfinite(a.x) && std::isfinite(a.y) && std::isfinite(b.y)) {
         runs.back().push_back(i);
@@ -744,7 +746,7 @@ std::string Renderer::draw_points(const Series& s, const Resolved& st, std::stri
   std::string out;
   for (std::size_t i = 0; i < s.x.size(); ++i) {
     auto y = value_at(s.y, i);
-    if (!y || !plottable(s.x[i], c_.x.scale)) continue;
+    if (!y || !plottable(s.x[i], c_.x.scale) || !plottable(*y, c_.y.scale)) continue;
     Pt p = P(s.x[i], *y);
     if (!std::isfinite(p.x) || !std::isfinite(p.y)) continue;
     ax.push_back(s.x[i]);
@@ -761,7 +763,7 @@ std::string Renderer::draw_reference(const Series& s, std::string& data) const {
   std::string out;
   std::optional<double> top_y;
   for (const auto& v : s.y) {
-    if (!v || !std::isfinite(*v)) continue;
+    if (!v || !plottable(*v, c_.y.scale)) continue;
     levels.push_back(*v);
     double y = Y(*v);
     if (!std::isfinite(y) || y < plot_.y0 - 0.5 || y > plot_.y1 + 0.5) continue;
@@ -804,7 +806,7 @@ std::string Renderer::draw_span(const Series& s, const Resolved&, std::string& d
 
 std::string Renderer::draw_annotation(const Series& s, std::string& data) const {
   auto y = value_at(s.y, 0);
-  if (!y || !plottable(s.x[0], c_.x.scale)) return {};
+  if (!y || !plottable(s.x[0], c_.x.scale) || !plottable(*y, c_.y.scale)) return {};
   data = attr("data-x", g9(s.x[0])) + attr("data-y", g9(*y));
   Pt p = P(s.x[0], *y);
   if (!std::isfinite(p.x) || !std::isfinite(p.y) || !plot_.contains(p)) return {};
@@ -861,31 +863,45 @@ std::string Renderer::run() {
     lo = std::isnan(lo) ? v : std::min(lo, v);
     hi = std::isnan(hi) ? v : std::max(hi, v);
   };
-  Scale xs = c_.x.scale;
+  // A y value counts only where it is drawn: on a log axis a value <= 0 is
+  // a gap, so it must not stretch the range (or, alone, empty it). An x
+  // with no y still counts, so a curve's gaps stay inside the x range.
+  const Scale xs = c_.x.scale, ys = c_.y.scale;
+  auto take_y = [&](const std::optional<double>& v) {
+    if (v && plottable(*v, ys)) take(ylo, yhi, *v);
+  };
   for (const Series& s : c_.series) {
     switch (s.kind) {
       case Kind::line:
       case Kind::points:
+        for (std::size_t i = 0; i < s.x.size(); ++i) {
+          if (!plottable(s.x[i], xs)) continue;
+          take(xlo, xhi, s.x[i]);
+          take_y(value_at(s.y, i));
+        }
+        break;
       case Kind::band:
         for (std::size_t i = 0; i < s.x.size(); ++i) {
           if (!plottable(s.x[i], xs)) continue;
           take(xlo, xhi, s.x[i]);
-          if (auto v = value_at(s.y, i)) take(ylo, yhi, *v);
-          if (auto v = value_at(s.y_high, i)) take(ylo, yhi, *v);
+          auto lo = value_at(s.y, i), hi = value_at(s.y_high, i);
+          if (lo && hi && plottable(*lo, ys) && plottable(*hi, ys)) {  // a band point is drawn only whole
+            take(ylo, yhi, *lo);
+            take(ylo, yhi, *hi);
+          }
         }
         break;
       case Kind::reference:
-        for (std::size_t i = 0; i < s.y.size(); ++i)
-          if (auto v = value_at(s.y, i)) take(ylo, yhi, *v);
+        for (std::size_t i = 0; i < s.y.size(); ++i) take_y(value_at(s.y, i));
         break;
       case Kind::span:
         for (double v : s.x)
           if (plottable(v, xs)) take(xlo, xhi, v);
         break;
       case Kind::annotation:
-        if (plottable(s.x[0], xs)) {
+        if (plottable(s.x[0], xs) && value_at(s.y, 0) && plottable(*value_at(s.y, 0), ys)) {
           take(xlo, xhi, s.x[0]);
-          if (auto v = value_at(s.y, 0)) take(ylo, yhi, *v);
+          take_y(value_at(s.y, 0));
         }
         break;
     }
@@ -939,7 +955,7 @@ std::string Renderer::run() {
            attr("stroke", colour) + attr("stroke-width", w) + "/>";
   };
   for (const Tick& t : xp_.ticks) o += vline(X(t.value), t.major ? "#dcdcdc" : "#eeeeee", 1.0);
-  for (const Tick& t : yp_.ticks) o += hline(Y(t.value), "#dcdcdc", 1.0);
+  for (const Tick& t : yp_.ticks) o += hline(Y(t.value), t.major ? "#dcdcdc" : "#eeeeee", 1.0);
   if (c_.y.scale == Scale::linear && yp_.min < 0 && yp_.max > 0) o += hline(Y(0), "#8a8a8a", 1.0);
   o += "</g>\n";
 
@@ -962,9 +978,9 @@ std::string Renderer::run() {
     if (!t.label.empty()) o += text_element(x, plot_.y1 + 6 + kTickSize, "middle", kTickSize, t.label);
   }
   for (const Tick& t : yp_.ticks) {
-    double y = Y(t.value);
+    double y = Y(t.value), len = t.major ? 5 : 3;
     o += "<path class=\"tick\"" + attr("data-value", g9(t.value)) +
-         attr("d", segment(plot_.x0 - 5, y, plot_.x0, y)) + attr("stroke", kInk) +
+         attr("d", segment(plot_.x0 - len, y, plot_.x0, y)) + attr("stroke", kInk) +
          "/>";
     if (!t.label.empty()) o += text_element(plot_.x0 - 8, y, "end", kTickSize, t.label, attr("dy", "0.35em"));
   }

@@ -21,8 +21,11 @@
 //   points  data-x data-y, and each marker (class="point") its own data-x data-y
 //   reference data-y (the levels); span data-x0 data-x1 (an infinite end is
 //   left out); annotation data-x data-y.
-// Only points with a value (and x > 0 on a log axis) are listed; points
-// beyond forced axis limits are listed but clipped from the drawing.
+// Only points with a value are listed, and on a log axis only those whose
+// coordinate on it is > 0 (a value <= 0 there is a gap: it breaks the line
+// and counts in no axis range); points beyond forced axis limits are listed
+// but clipped from the drawing. A log axis maps log10 of the value linearly
+// onto its length, so 1, 10 and 100 sit equally far apart.
 #pragma once
 
 #include <optional>
