@@ -9,6 +9,7 @@
 
 #include <unistd.h>
 
+#include "thermargin/budget_report.hpp"  // check_report_path, check_plots_directory
 #include "thermargin/caution.hpp"
 #include "thermargin/error.hpp"
 
@@ -21,7 +22,10 @@ po::options_description common_options(bool has_report, bool has_verdict) {
   o.add_options()("help,h", "show this help")("format", po::value<std::string>()->default_value("text"),
                                                 "text | csv | json")(
       "output,o", po::value<std::string>(), "write to FILE instead of standard output (whole or not at all)");
-  if (has_report) o.add_options()("report", po::value<std::string>(), "also write a self-contained HTML report to FILE");
+  if (has_report)
+    o.add_options()("report", po::value<std::string>(), "also write a self-contained HTML report to FILE")(
+        "plots", po::value<std::string>(),
+        "also write the report's charts as standalone SVG files into DIR (created when its parent exists)");
   if (has_verdict) o.add_options()("strict", "exit with status 3 when the verdict fails");
   return o;
 }
@@ -105,7 +109,14 @@ Invocation parse(const std::string& command, int argc, char** argv, const po::op
     inv.output = inv.vm["output"].as<std::string>();
     check_output(inv.output);
   }
-  if (inv.vm.count("report")) inv.report = inv.vm["report"].as<std::string>();
+  if (inv.vm.count("report")) {
+    inv.report = inv.vm["report"].as<std::string>();
+    check_report_path("--report", inv.report);
+  }
+  if (inv.vm.count("plots")) {
+    inv.plots = inv.vm["plots"].as<std::string>();
+    check_plots_directory("--plots", inv.plots);
+  }
   inv.strict = inv.vm.count("strict") > 0;
   if (takes_scenario) {
     if (!inv.file.empty()) inv.scenario.load_file(inv.file);

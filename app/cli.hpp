@@ -21,7 +21,8 @@ struct Invocation {
   std::string file;  // the positional input file (scenario, data), may be empty
   Format format = Format::text;
   std::string output;  // empty: stdout
-  std::string report;  // --report FILE.html
+  std::string report;  // --report FILE.html (empty: not asked for)
+  std::string plots;   // --plots DIR (empty: not asked for)
   bool strict = false;
   Scenario scenario;
   po::variables_map vm;  // the command's own options
@@ -29,8 +30,10 @@ struct Invocation {
 
 // Parses argv for `command`: the scenario file (if the command takes one),
 // every scenario key as --section.key=value, --format, --output, --report
-// (commands with a report), --strict (commands with a verdict) and the
-// command's own options. Throws input_error on bad input.
+// and --plots (commands with a report), --strict (commands with a verdict)
+// and the command's own options. Throws input_error on bad input, and on a
+// destination that cannot be written (--output, --report, --plots), so that
+// no analysis ends in "cannot write".
 Invocation parse(const std::string& command, int argc, char** argv, const po::options_description& own,
                  bool takes_scenario, bool has_report, bool has_verdict = false);
 

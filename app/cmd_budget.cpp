@@ -221,9 +221,7 @@ int run_budget(int argc, char** argv) {
   po::options_description own("budget options");
   own.add_options()("no-mc", "skip the Monte Carlo engine")(
       "corners", po::value<std::string>()->default_value("auto"),
-      "worst-case corners: auto | enumerate | directed")(
-      "plots", po::value<std::string>(),
-      "also write the report's charts as standalone SVG files into DIR (created when its parent exists)");
+      "worst-case corners: auto | enumerate | directed");
   if (help_requested("budget", argc, argv, "[FILE] [options]", own, true, true, true)) return 0;
   const Invocation inv = parse("budget", argc, argv, own, true, true, true);
   const Design design = build_design(inv.scenario);
@@ -243,10 +241,6 @@ int run_budget(int argc, char** argv) {
       std::fflush(stderr);
     };
   }
-  // Destinations are checked before the analysis, so long work never ends in "cannot write".
-  const std::string plots = inv.vm.count("plots") ? inv.vm["plots"].as<std::string>() : std::string();
-  if (!inv.report.empty()) check_report_path("--report", inv.report);
-  if (inv.vm.count("plots")) check_plots_directory("--plots", plots);
   const Chain chain(design);
   const Budget budget = run_budget(chain, options);
   if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
@@ -256,7 +250,7 @@ int run_budget(int argc, char** argv) {
   else if (inv.format == Format::csv) text = to_csv(budget);
   else text = to_text(design, budget);
   if (!inv.report.empty()) write_report(inv.report, budget_report_html(design, inv.scenario, budget, inv.file));
-  if (inv.vm.count("plots")) write_figures("--plots", plots, budget_figures(design, budget));
+  if (!inv.plots.empty()) write_figures("--plots", inv.plots, budget_figures(design, budget));
   emit(inv, text);
   return (inv.strict && !budget.verdict.pass) ? 3 : 0;
 }

@@ -13,6 +13,7 @@
 #include "thermargin/caution.hpp"
 #include "thermargin/budget.hpp"  // to_string(Requirement::Basis)
 #include "thermargin/grades.hpp"
+#include "thermargin/grades_report.hpp"
 
 namespace thermargin::cli {
 
@@ -231,8 +232,8 @@ int run_grades(int argc, char** argv) {
       "range", po::value<std::string>()->default_value("1k..1M"), "--re-pick: candidate values LOW..HIGH in ohms")(
       "pick-objective", po::value<std::string>()->default_value("worst-case"),
       "--re-pick: worst-case | linear | monte-carlo | sensitivity");
-  if (help_requested("grades", argc, argv, "[FILE] --catalogue CATALOGUE.csv [options]", own, true, false, true)) return 0;
-  const Invocation inv = parse("grades", argc, argv, own, true, false, true);
+  if (help_requested("grades", argc, argv, "[FILE] --catalogue CATALOGUE.csv [options]", own, true, true, true)) return 0;
+  const Invocation inv = parse("grades", argc, argv, own, true, true, true);
   const po::variables_map& vm = inv.vm;
   if (!vm.count("catalogue"))
     throw input_error("--catalogue (command line): missing; give the CSV of part grades, e.g. --catalogue parts.csv");
@@ -275,6 +276,8 @@ int run_grades(int argc, char** argv) {
   if (inv.format == Format::json) text = to_json(design, cat, g);
   else if (inv.format == Format::csv) text = to_csv(g);
   else text = to_text(design, cat, g);
+  if (!inv.report.empty()) write_report(inv.report, grades_report_html(design, inv.scenario, cat, g, inv.file));
+  if (!inv.plots.empty()) write_figures("--plots", inv.plots, grades_figures(g));
   emit(inv, text);
   return (inv.strict && !g.recommendation) ? 3 : 0;
 }

@@ -11,6 +11,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/caution.hpp"
+#include "thermargin/pick_report.hpp"
 #include "thermargin/picker.hpp"
 
 namespace thermargin::cli {
@@ -317,8 +318,8 @@ int run_pick(int argc, char** argv) {
       "mc-units", po::value<std::string>(), "Monte Carlo units per candidate (default: montecarlo.units, at most 2000 for "
                                             "the objective, 10000 for --verify)")(
       "no-guidance", "skip the continuous optimum and the analytic values");
-  if (help_requested("pick", argc, argv, "[FILE] [options]", own, true, false)) return 0;
-  const Invocation inv = parse("pick", argc, argv, own, true, false);
+  if (help_requested("pick", argc, argv, "[FILE] [options]", own, true, true)) return 0;
+  const Invocation inv = parse("pick", argc, argv, own, true, true);
   const po::variables_map& vm = inv.vm;
 
   PickOptions o;
@@ -385,6 +386,8 @@ int run_pick(int argc, char** argv) {
   if (inv.format == Format::json) text = to_json(design, result, o);
   else if (inv.format == Format::csv) text = to_csv(result);
   else text = to_text(design, result, o);
+  if (!inv.report.empty()) write_report(inv.report, pick_report_html(design, inv.scenario, result, o, inv.file));
+  if (!inv.plots.empty()) write_figures("--plots", inv.plots, pick_figures(design, result));
   emit(inv, text);
   return 0;
 }

@@ -21,6 +21,7 @@
 #include <string>
 #include <vector>
 
+#include "cli_run.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/error.hpp"
 #include "thermargin/scenario.hpp"
@@ -395,13 +396,7 @@ TEST(BudgetPlots, WriteFailureHalfwayRemovesTheStagedFilesAndTheNewDirectory) {
   EXPECT_TRUE(dir.names().empty());  // the directory this call made is gone again
 }
 
-// Runs `command` as an unprivileged user when the tests run as root, since
-// root writes through a file's read-only mode. `dir` is opened up for them.
-std::string unprivileged(const std::string& command, const fs::path& dir) {
-  if (::geteuid() != 0) return command;
-  fs::permissions(dir, fs::perms::all);
-  return "setpriv --reuid=65534 --regid=65534 --clear-groups " + command;
-}
+using testing::unprivileged;
 
 TEST(BudgetReportCli, ReadOnlyReportKeepsItsContentsAndNoTemporaryIsLeft) {
   TempDir dir;

@@ -1,19 +1,28 @@
-// Tests of thermargin/grades_report.hpp: the grades page and chart built
-// from evaluate_grades() in process, read back by an outside reader
+// Tests of thermargin/grades_report.hpp and of `thermargin grades --report
+// --plots`: the grades page and chart, built from evaluate_grades() in
+// process and by the CLI, read back by an outside reader
 // (tests/reference/report_choice_check.py: Python's html.parser and
 // xml.etree) and held against `thermargin grades --format json` run with
 // the same catalogue on the same scenario, with and without a combination
-// that meets the requirement; grade names from the catalogue are user text.
+// that meets the requirement; grade names from the catalogue are user text;
+// a destination that cannot be written fails with one line, exit status 2
+// and nothing written.
 #include "thermargin/grades_report.hpp"
 
 #include <gtest/gtest.h>
 #include <unistd.h>
 
+#include <nlohmann/json.hpp>
+
+#include <algorithm>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
 #include <string>
+#include <vector>
+
+#include "cli_run.hpp"
 
 namespace thermargin {
 namespace {
@@ -118,6 +127,39 @@ TEST(GradesReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
   TempDir dir;
   const std::string out = cli_and_report_agree(dir, "", " --by linear");
   EXPECT_EQ(out.rfind("FAIL: ", 0), 0u) << out;
+}
+
+// ------------------------------------------------------------------ through the CLI
+
+// The fermentation probe with its demo catalogue (36 combinations, one grade
+// with a setup cost, hence --volume); few Monte Carlo units and temperatures
+// every 5 K keep the run short.
+const std::string kCliGrades = quote(kScenario) + " --catalogue " +
+                               quote(std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/fermentation_probe_catalogue.csv") +
+                               " --volume 5000 --units 500 --conditions.t_step=5";
+
+TEST(GradesReportCli, FermentationProbeReportAndPlotsHoldTheNumbersOfTheSameRunsJson) {
+  TempDir dir;
+  const fs::path json = dir.path / "grades.json", html = dir.path / "grades.html", plots = dir.path / "slides";
+  // --plots into a directory that does not exist yet: it is created.
+  const auto r = testing::run_cli("grades " + kCliGrades + " --format json --output " + quote(json.string()) +
+                                  " --report " + quote(html.string()) + " --plots " + quote(plots.string()));
+  ASSERT_EQ(r.status, 0) << r.err;
+  // The run has what the chart must show: a front of several combinations
+  // and a recommendation.
+  const auto j = nlohmann::json::parse(slurp(json));
+  EXPECT_EQ(j["combinations"], 36);
+  EXPECT_GE(j["front"].size(), 2u);
+  EXPECT_FALSE(j["recommendation"].is_null());
+  EXPECT_EQ(output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " grades " + quote(html.string()) + " " +
+                      quote(json.string()) + " " + quote(plots.string())),
+            "ok: 1 chart\n");
+}
+
+TEST(GradesReportCli, ADestinationThatCannotBeWrittenIsRefusedBeforeAnyWorkWithOneLine) {
+  // A missing directory, a read-only file, a plots directory two levels
+  // down, a plots path that is a file.
+  testing::expect_unwritable_report_destinations_refused("grades " + kCliGrades);
 }
 
 }  // namespace

@@ -1,19 +1,25 @@
-// Tests of thermargin/pick_report.hpp: the pick page and chart built from
-// pick() in process, read back by an outside reader
-// (tests/reference/report_choice_check.py: Python's html.parser and
-// xml.etree) and held against `thermargin pick --format json` run with the
-// same options on the same scenario; candidates whose window cannot be read
-// are gaps and lie, with those a constraint rules out, in hatched regions.
+// Tests of thermargin/pick_report.hpp and of `thermargin pick --report
+// --plots`: the pick page and chart, built from pick() in process and by the
+// CLI, read back by an outside reader (tests/reference/report_choice_check.py:
+// Python's html.parser and xml.etree) and held against `thermargin pick
+// --format json` run with the same options on the same scenario; candidates
+// whose window cannot be read are gaps and lie, with those a constraint rules
+// out, in hatched regions; the value axis is logarithmic; a destination that
+// cannot be written fails with one line, exit status 2 and nothing written.
 #include "thermargin/pick_report.hpp"
 
 #include <gtest/gtest.h>
 #include <unistd.h>
+
+#include <nlohmann/json.hpp>
 
 #include <algorithm>
 #include <cstdio>
 #include <filesystem>
 #include <string>
 #include <vector>
+
+#include "cli_run.hpp"
 
 namespace thermargin {
 namespace {
@@ -142,6 +148,42 @@ TEST(PickFigures, UnreadableCandidatesAreGapsInsideTheRuledOutRegion) {
     EXPECT_EQ(inside, !row->feasible()) << ohm;
   }
   EXPECT_GE(unreadable, 1) << "1 ohm against a 10 kohm NTC was meant to saturate";
+}
+
+// ------------------------------------------------------------------ through the CLI
+
+// The fermentation probe over E12 from 1 kohm to 1 Mohm (37 values), every
+// row kept, with the self-heating limit that rules out 1 to 10 kohm (the
+// bead dissipates more with a smaller fixed resistor); temperatures every
+// 5 K keep the run short.
+const std::string kCliPick = quote(kScenario) + " --series e12 --range 1k..1M --max-self-heating 0.06 --top 100" +
+                             " --conditions.t_step=5";
+
+TEST(PickReportCli, FermentationProbeReportAndPlotsHoldTheNumbersOfTheSameRunsJson) {
+  TempDir dir;
+  const fs::path json = dir.path / "pick.json", html = dir.path / "pick.html", plots = dir.path / "slides";
+  // --plots into a directory that does not exist yet: it is created.
+  const auto r = testing::run_cli("pick " + kCliPick + " --format json --output " + quote(json.string()) + " --report " +
+                                  quote(html.string()) + " --plots " + quote(plots.string()));
+  ASSERT_EQ(r.status, 0) << r.err;
+  // The run has what the chart must show: ruled-out values (a hatched
+  // region), values within the limit, and a winner among them.
+  const auto j = nlohmann::json::parse(testing::slurp(json));
+  ASSERT_EQ(j["rows"].size(), 37u);
+  std::size_t ruled_out = 0;
+  for (const auto& row : j["rows"]) ruled_out += !row["violations"].empty();
+  EXPECT_GT(ruled_out, 0u);
+  EXPECT_LT(ruled_out, j["rows"].size());
+  EXPECT_TRUE(j["winner"]["violations"].empty());
+  EXPECT_EQ(output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " pick " + quote(html.string()) + " " +
+                      quote(json.string()) + " " + std::to_string(kLimit) + " " + quote(plots.string())),
+            "ok: 1 chart\n");
+}
+
+TEST(PickReportCli, ADestinationThatCannotBeWrittenIsRefusedBeforeAnyWorkWithOneLine) {
+  // A missing directory, a read-only file, a plots directory two levels
+  // down, a plots path that is a file.
+  testing::expect_unwritable_report_destinations_refused("pick " + kCliPick);
 }
 
 }  // namespace

@@ -524,6 +524,16 @@ void check_report_path(const std::string& option, const std::string& path) {
   const fs::path parent = fs::path(path).parent_path();
   if (!parent.empty() && !fs::is_directory(parent, ec))
     refuse(option, path, "directory " + parent.string() + " does not exist; give a file in an existing directory");
+  // What write_file_atomically would refuse at the end, found now. (Root
+  // passes these checks whatever the modes; the write itself still says.)
+  // A device or pipe (/dev/stdout) is written in place; a file is replaced
+  // through a temporary file beside it.
+  struct stat st {};
+  const bool exists = ::stat(path.c_str(), &st) == 0;
+  if (exists && !S_ISREG(st.st_mode)) return;
+  if (exists && ::access(path.c_str(), W_OK) != 0) refuse(option, path, "the file is read-only");
+  const std::string dir = parent.empty() ? std::string(".") : parent.string();
+  if (::access(dir.c_str(), W_OK) != 0) refuse(option, path, "cannot write in directory " + dir);
 }
 
 void check_plots_directory(const std::string& option, const std::string& dir) {

@@ -17,7 +17,10 @@ JSON output of `thermargin pick` / `thermargin grades --format json`:
           with a violation inside a hatched strip and no other row inside
           one (single-resistor searches); the limit line at LIMIT_K (the
           scenario's max_error, which the pick JSON does not carry); the
-          ranking table's "Ruled out by" column.
+          ranking table's "Ruled out by" column. The value axis is read as
+          a log axis: every drawn point's horizontal pixel and every tick's
+          lie on one straight line against log10 of the value (equal ratios
+          at equal distances), with a tick at each decade in the range.
   grades  meets / misses points: (unit_cost, error) by meets_requirement, in
           row order; the front line through the "front" rows in order; the
           recommendation ringed; the limit line at requirement.max_error;
@@ -29,7 +32,9 @@ With PLOTS_DIR, the standalone SVG file must hold the same series. Prints
 used. Run with Debian's interpreter (/usr/bin/python3).
 """
 import json
+import math
 import os
+import re
 import sys
 import xml.etree.ElementTree as ET
 
@@ -81,6 +86,37 @@ def check_annotation(s, name, at):
     same_list(name, [float(g.get("data-x")), float(g.get("data-y"))], list(at))
 
 
+PIXEL_SLACK = 0.011   # pixels are written with two decimals
+
+
+def check_log_x(svg):
+    """The x axis of the chart is log10: pixel = a + b * log10(value) for every
+    point marker and every x tick, the decades in range among the ticks."""
+    marks = [(float(e.get("data-x")), float(e.get("cx"))) for e in svg.iter()
+             if e.get("class") == "point" and e.get("cx") is not None]
+    ticks = []
+    for e in svg.iter(SVG + "path"):
+        if e.get("class") != "tick":
+            continue
+        m = re.fullmatch(r"M([-\d.]+),([-\d.]+)L([-\d.]+),([-\d.]+)", e.get("d"))
+        if m and m.group(1) == m.group(3):   # vertical: a tick on the x axis
+            ticks.append((float(e.get("data-value")), float(m.group(1))))
+    # The line through the two farthest-apart values, so that no pixel is
+    # extrapolated from it (each pixel is rounded to 0.01).
+    lo, hi = min(marks + ticks, default=None), max(marks + ticks, default=None)
+    if lo is None or hi[0] == lo[0]:
+        return   # one value or none: nothing to read an axis from
+    b = (hi[1] - lo[1]) / (math.log10(hi[0]) - math.log10(lo[0]))
+    a = lo[1] - b * math.log10(lo[0])
+    for value, pixel in marks + ticks:
+        if abs(a + b * math.log10(value) - pixel) > 2 * PIXEL_SLACK:
+            fail("x axis is not log10: %g ohm at pixel %g, expected %g" % (value, pixel, a + b * math.log10(value)))
+    values = [v for v, _ in ticks]
+    for e in range(math.ceil(math.log10(min(values))), math.floor(math.log10(max(values))) + 1):
+        if not any(math.isclose(v, 10.0 ** e, rel_tol=1e-9) for v in values):
+            fail("no tick at the decade %g" % 10.0 ** e)
+
+
 def table_with(page, first_header):
     for t in page.tables:
         if t and t[0][:len(first_header)] == first_header:
@@ -110,6 +146,7 @@ def check_pick(page, svg, j, limit):
                   [r["objective"] for r in by_value if r["objective"] is not None])
         if int(g.get("data-runs")) != runs([r["objective"] is not None for r in by_value]):
             fail("objective: %s runs drawn" % g.get("data-runs"))
+        check_log_x(svg)
         strips = [(float(v.get("data-x0")), float(v.get("data-x1"))) for n, v in s.items()
                   if n.startswith("excluded_")]
         for r in rows:

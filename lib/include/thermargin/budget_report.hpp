@@ -56,8 +56,9 @@ void add_resolved_inputs(HtmlDocument& page, const Design& design, const Scenari
 // Refuses a --report or --plots destination before any work is done, so a
 // long analysis never ends in "cannot write". `option` names the option in
 // the message: "--report = out/review.html (command line): directory out does
-// not exist". A report needs its directory to exist; a plots directory may be
-// missing as long as its parent exists (write_figures creates it).
+// not exist". A report needs its directory to exist, and a file it replaces
+// must be writable; a plots directory may be missing as long as its parent
+// exists (write_figures creates it).
 void check_report_path(const std::string& option, const std::string& path);
 void check_plots_directory(const std::string& option, const std::string& dir);
 
