@@ -367,6 +367,29 @@ TEST(SvgChart, NonPositiveValuesOnALogYAxisAreGapsAndStayOutOfItsRange) {
   }
 }
 
+TEST(SvgChart, AnAnnotationNextToAReferenceLabelMovesItsTextBelowThePoint) {
+  // The pick chart's winner just under the limit line, at the right of the
+  // plot: written above the point, its label would run into the limit's.
+  auto chart = [](const std::string& limit_label) {
+    Chart c = base_chart();
+    c.x.scale = Scale::log10;
+    c.y.min = 0.0;
+    c.y.max = 1.25;
+    c.series.push_back(reference("limit", limit_label, {0.5}));
+    c.series.push_back(annotation("winner", "best: 20 kohm", 2e4, 0.45));
+    c.series.push_back(points("p", "p", {1e3, 1e5}, {0.9, 0.6}));
+    return render(c);
+  };
+  auto text_below_ring = [](const std::string& svg) {
+    std::smatch ring, text;
+    EXPECT_TRUE(std::regex_search(svg, ring, std::regex("class=\"ring\" cx=\"[^\"]*\" cy=\"([^\"]*)\"")));
+    EXPECT_TRUE(std::regex_search(svg, text, std::regex("<text x=\"[^\"]*\" y=\"([^\"]*)\"[^>]*>best: 20 kohm<")));
+    return std::stod(text[1].str()) > std::stod(ring[1].str());
+  };
+  EXPECT_FALSE(text_below_ring(chart("")));  // nothing in the way: above, as usual
+  EXPECT_TRUE(text_below_ring(chart("requirement \u00b10.500 K")));
+}
+
 TEST(SvgChart, DataAttributesGiveBackTheInputToNineSignificantDigits) {
   std::mt19937_64 rng(7);
   std::uniform_real_distribution<double> exponent(-12, 12), mantissa(-10, 10);

@@ -536,6 +536,7 @@ class Renderer {
   std::string draw_reference(const Series& s, std::string& data) const;
   std::string draw_span(const Series& s, const Resolved& st, std::string& data) const;
   std::string draw_annotation(const Series& s, std::string& data) const;
+  std::optional<Rect> reference_label_box(const Series& s) const;
 };
 
 void Renderer::resolve_styles() {
@@ -758,10 +759,24 @@ std::string Renderer::draw_points(const Series& s, const Resolved& st, std::stri
   return out;
 }
 
+// Where a reference's label goes: right-aligned just above its topmost drawn line.
+std::optional<Rect> Renderer::reference_label_box(const Series& s) const {
+  if (s.kind != Kind::reference || s.label.empty()) return std::nullopt;
+  std::optional<double> top;
+  for (const auto& v : s.y) {
+    if (!v || !plottable(*v, c_.y.scale)) continue;
+    double y = Y(*v);
+    if (!std::isfinite(y) || y < plot_.y0 - 0.5 || y > plot_.y1 + 0.5) continue;
+    if (!top || y < *top) top = y;
+  }
+  if (!top) return std::nullopt;
+  const double right = plot_.x1 - 4, baseline = *top - 4;
+  return Rect{right - text_width(s.label, kTickSize), baseline - kTickSize, right, baseline + 3};
+}
+
 std::string Renderer::draw_reference(const Series& s, std::string& data) const {
   std::vector<double> levels;
   std::string out;
-  std::optional<double> top_y;
   for (const auto& v : s.y) {
     if (!v || !plottable(*v, c_.y.scale)) continue;
     levels.push_back(*v);
@@ -770,11 +785,9 @@ std::string Renderer::draw_reference(const Series& s, std::string& data) const {
     out += "<path class=\"level\"" + attr("data-y", g9(*v)) +
            attr("d", segment(plot_.x0, y, plot_.x1, y)) +
            attr("stroke", "#3a3a3a") + attr("stroke-width", 1.25) + attr("stroke-dasharray", "10 3 2 3") + "/>";
-    if (!top_y || y < *top_y) top_y = y;
   }
-  if (top_y && !s.label.empty())
-    out += text_element(plot_.x1 - 4, *top_y - 4, "end", kTickSize, s.label,
-                        std::string(kHalo) + attr("fill", "#3a3a3a"));
+  if (auto box = reference_label_box(s))
+    out += text_element(box->x1, box->y1 - 3, "end", kTickSize, s.label, std::string(kHalo) + attr("fill", "#3a3a3a"));
   data = attr("data-y", list_g9(levels));
   return out;
 }
@@ -817,6 +830,28 @@ std::string Renderer::draw_annotation(const Series& s, std::string& data) const 
   double w = text_width(s.label, kLegendSize);
   bool left = p.x + 14 + w > plot_.x1 - 2;
   bool below = p.y - 16 - kLegendSize < plot_.y0;
+  // The text's box for a placement, to keep it off the references' labels
+  // (a winner near the limit line would write over "requirement ±0.5 K").
+  auto text_box = [&](bool l, bool b) {
+    double ax = l ? p.x - 12 : p.x + 12, ay = b ? p.y + 12 : p.y - 12;
+    double x = l ? ax - 2 - w : ax + 2, base = b ? ay + kLegendSize : ay - 2;
+    return Rect{x, base - kLegendSize, x + w, base + 3};
+  };
+  auto clashes = [&](const Rect& r) {
+    for (const Series& other : c_.series)
+      if (auto box = reference_label_box(other))
+        if (r.x0 < box->x1 && box->x0 < r.x1 && r.y0 < box->y1 && box->y0 < r.y1) return true;
+    return false;
+  };
+  if (clashes(text_box(left, below))) {
+    for (auto [l, b] : {std::pair{left, !below}, std::pair{!left, below}, std::pair{!left, !below}}) {
+      const Rect r = text_box(l, b);
+      if (r.x0 >= plot_.x0 && r.x1 <= plot_.x1 && r.y0 >= plot_.y0 && r.y1 <= plot_.y1 && !clashes(r)) {
+        left = l, below = b;
+        break;
+      }
+    }
+  }
   Pt anchor{left ? p.x - 12 : p.x + 12, below ? p.y + 12 : p.y - 12};
   Pt edge{p.x + (left ? -5.7 : 5.7), p.y + (below ? 5.7 : -5.7)};
   out += "<path" + attr("d", segment(edge.x, edge.y, anchor.x, anchor.y)) +
