@@ -27,19 +27,22 @@ void BM_MonteCarloDefaultDesign(benchmark::State& state) {
 BENCHMARK(BM_MonteCarloDefaultDesign)
     ->Args({100000, 1})
     ->Args({100000, 2})
+    ->Args({1000000, 1})
+    ->Args({1000000, 2})
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime();
 
 void BM_MonteCarloBlockKernel(benchmark::State& state) {
   // One block of 256 units across the sweep: the kernel without threads,
-  // pilot or statistics.
+  // pilot, per-run set-up or statistics (draws, calibration and readings).
   const Design design = build_design(Scenario());
   const Chain chain(design);
+  const BlockKernel kernel(chain);
   const auto temps = design.conditions.temperatures();
   std::vector<double> errors;
   std::uint64_t first = 0;
   for (auto _ : state) {
-    simulate_block(chain, temps, first, 256, errors);
+    kernel.simulate(temps, first, 256, errors);
     first += 256;
     benchmark::DoNotOptimize(errors.data());
   }

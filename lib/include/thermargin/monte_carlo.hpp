@@ -23,6 +23,7 @@
 
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <optional>
 #include <vector>
 
@@ -114,5 +115,22 @@ Evaluation simulate_reading(const Chain& chain, std::uint64_t unit, std::uint32_
 // NaN marking readings without a value.
 void simulate_block(const Chain& chain, const std::vector<double>& temperatures, std::uint64_t first_unit,
                     int count, std::vector<double>& errors);
+
+// The same, with the per-run set-up (the firmware's conversion of every
+// possible reading, the design's constants) done once in the constructor, as
+// the engine does: what remains is the kernel's own cost per block.
+class BlockKernel {
+ public:
+  explicit BlockKernel(const Chain& chain);
+  ~BlockKernel();
+  BlockKernel(const BlockKernel&) = delete;
+  BlockKernel& operator=(const BlockKernel&) = delete;
+  void simulate(const std::vector<double>& temperatures, std::uint64_t first_unit, int count,
+                std::vector<double>& errors) const;
+
+ private:
+  struct Constants;
+  std::unique_ptr<Constants> constants_;
+};
 
 }  // namespace thermargin
