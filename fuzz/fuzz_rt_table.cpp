@@ -1,6 +1,7 @@
 // libFuzzer target: the R-T table reader (parse_rt_data) and the table
 // sensor built from it (RtTable). Inside the table every lookup is a finite
 // number within the table's span; outside, no value.
+#include <cmath>
 #include <cstdint>
 #include <string>
 
@@ -32,6 +33,9 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
         }
       }
     }
-    if (table.ln_resistance(lo - 1.0) || table.ln_resistance(hi + 1.0)) fuzz::finding("a value outside the table");
+    // Just outside each end (the next double: a table may end so far out,
+    // 5e21 degC say, that hi + 1 K rounds back to hi).
+    const double below = std::nextafter(lo, -HUGE_VAL), above = std::nextafter(hi, HUGE_VAL);
+    if (table.ln_resistance(below) || table.ln_resistance(above)) fuzz::finding("a value outside the table");
   });
 }

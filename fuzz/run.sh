@@ -47,25 +47,41 @@ while IFS= read -r value; do
   n=$((n + 1))
 done <"$work/numbers"
 
-status=0
-for target in fuzz_number fuzz_scenario fuzz_rt_table fuzz_fit fuzz_catalogue; do
-  corpus=$work/corpus/$target
+# One target: its run, then one line (or the log's tail on a finding).
+run_target() {
+  local target=$1 corpus=$work/corpus/$1 log=$work/$1.log start=$SECONDS dict=()
   mkdir -p "$corpus" "$work/seeds/$target"
-  dict=()
   [ -f "fuzz/$target.dict" ] && dict=(-dict="fuzz/$target.dict")
   # Inputs that once found something are replayed first, every run.
   mkdir -p "fuzz/regressions/$target"
-  log=$work/$target.log
-  start=$SECONDS
   if "$bin/$target" "${dict[@]}" -max_total_time="$seconds" -timeout=20 -rss_limit_mb=2560 -max_len=8192 \
        -print_final_stats=1 -artifact_prefix="$work/artifacts/$target-" \
        "$corpus" "$work/seeds/$target" "fuzz/regressions/$target" >"$log" 2>&1; then
+    local runs
     runs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$log")
     echo "$target: ${runs:-?} inputs in $((SECONDS - start)) s, no finding"
   else
-    status=1
     echo "$target: FINDING after $((SECONDS - start)) s; input kept in $work/artifacts/$target-*; end of the log:"
     tail -n 40 "$log"
+    return 1
   fi
+}
+
+# The targets run side by side, as many at a time as there are cores (at
+# most THERMARGIN_FUZZ_JOBS); each is one process on one core.
+jobs=${THERMARGIN_FUZZ_JOBS:-$(nproc)}
+status=0
+running=0
+for target in fuzz_number fuzz_scenario fuzz_rt_table fuzz_fit fuzz_catalogue; do
+  if [ "$running" -ge "$jobs" ]; then
+    wait -n || status=1
+    running=$((running - 1))
+  fi
+  run_target "$target" &
+  running=$((running + 1))
+done
+while [ "$running" -gt 0 ]; do
+  wait -n || status=1
+  running=$((running - 1))
 done
 exit $status

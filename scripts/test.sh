@@ -6,7 +6,8 @@
 #   2. build-asan/  every test again under AddressSanitizer + UndefinedBehaviorSanitizer
 #   3. build-tsan/  the Monte Carlo and worst-case engines' tests, and the CLI
 #                   runs across thread counts, under ThreadSanitizer
-#   4. build-fuzz/  each libFuzzer target for THERMARGIN_FUZZ_SECONDS (default 40)
+#   4. build-fuzz/  each libFuzzer target for THERMARGIN_FUZZ_SECONDS (default 20), as many
+#                   side by side as there are cores
 #
 # A failing step stops the script with a non-zero status. THERMARGIN_QUICK=1
 # runs step 1 only. Build directories are reused, and ccache (when present)
@@ -15,7 +16,7 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 THERMARGIN_TEST_EXTRAS=1 bash scripts/deps.sh
 jobs=$(( $(nproc) < 2 ? $(nproc) : 2 ))
-fuzz_seconds=${THERMARGIN_FUZZ_SECONDS:-40}
+fuzz_seconds=${THERMARGIN_FUZZ_SECONDS:-20}
 launcher=()
 if command -v ccache >/dev/null; then
   launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache)
@@ -93,7 +94,7 @@ fuzz() {
   CC=clang CXX=clang++ configure build-fuzz -DCMAKE_BUILD_TYPE=RelWithDebInfo -DTHERMARGIN_FUZZ=ON \
     -DTHERMARGIN_SANITIZE=address,undefined -DTHERMARGIN_TESTS=OFF -DTHERMARGIN_BENCHMARKS=OFF
   cmake --build build-fuzz -j "$jobs" --target fuzz_targets
-  bash fuzz/run.sh build-fuzz "$fuzz_seconds"
+  THERMARGIN_FUZZ_JOBS=$jobs bash fuzz/run.sh build-fuzz "$fuzz_seconds"
 }
 
 step "release build and every test" release

@@ -17,7 +17,6 @@
 // root, who reads through permissions). Crashes the fuzz targets found
 // (fuzz/) are kept here as cases too.
 #include <sys/stat.h>
-#include <sys/wait.h>
 #include <unistd.h>
 
 #include <cmath>
@@ -32,6 +31,8 @@
 #include <vector>
 
 #include <gtest/gtest.h>
+
+#include "cli_run.hpp"
 
 namespace thermargin {
 namespace {
@@ -294,6 +295,10 @@ std::vector<Case> fit() {
       fit_data("fit data of two points", "0,32.65k\n25,10k\n", {"data.csv:2", "only 2 data point(s)", "needs at least 3"}),
       fit_data("fit data with a temperature twice", "0,32.65k\n25,10k\n25,9.9k\n50,3.6k\n",
                {"data.csv:3", "duplicate temperature"}),
+      // Found by fuzz_fit: a resistance of 1e308 ohm overflowed the least-squares beta fit into NaN coefficients.
+      fit_data("fit data with a resistance hundreds of decades off",
+               "10,1e308,2.9\n25,10k,0.29\n50,3.6k,0.29\n85,1.1k,0.29\n100,680,0.03\n",
+               {"data.csv:1", "no finite coefficients", "1e+308 ohm at 10 degC", "mistyped value"}),
       fit_data("fit data with resistance rising", "0,32.65k\n25,10k\n50,11k\n85,1.1k\n",
                {"data.csv:3", "strictly monotonically"}),
       fit_data("fit data with the uncertainty on one line", "0,32.65k\n25,10k,0.1%\n50,3.6k\n85,1.1k\n",
@@ -447,26 +452,12 @@ std::vector<Case> all_cases() {
   return all;
 }
 
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
 // Every path under `root`, relative to it, directories too.
 std::set<std::string> tree(const fs::path& root) {
   std::set<std::string> names;
   for (const auto& e : fs::recursive_directory_iterator(root, fs::directory_options::skip_permission_denied))
     names.insert(fs::relative(e.path(), root).string());
   return names;
-}
-
-// Quotes a word for the shell.
-std::string quoted(const std::string& s) {
-  std::string q = "'";
-  for (char ch : s) q += ch == '\'' ? std::string("'\\''") : std::string(1, ch);
-  return q + "'";
 }
 
 class BadInput : public ::testing::Test {
@@ -506,11 +497,8 @@ class BadInput : public ::testing::Test {
     }
     std::string args = c.args;
     if (args.find("--output") == std::string::npos) args += " --output out.txt";
-    const std::string command = "cd " + quoted(work.string()) + " && " + quoted(THERMARGIN_CLI) + " " + args + " >" +
-                                quoted((dir / "stdout").string()) + " 2>" + quoted((dir / "stderr").string()) + " </dev/null";
-    const int rc = std::system(command.c_str());
-    const int status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-    const std::string out = slurp(dir / "stdout"), err = slurp(dir / "stderr");
+    const auto [status, out, err] =
+        testing::run_shell("cd " + testing::shell_quote(work.string()) + " && " + testing::cli_command(args));
 
     std::vector<std::string> wrong;
     if (status != 2) wrong.push_back("exit status " + std::to_string(status) + ", expected 2");

@@ -409,6 +409,34 @@ std::optional<SteinhartHart> steinhart_hart(const ModelFit& f) {
   return SteinhartHart{f.value("a"), f.value("b"), f.value("c")};
 }
 
+namespace {
+
+// A fit whose coefficients or figures overflow (resistances spanning
+// hundreds of decades, a mistyped exponent) is not a result: the data is
+// refused at the point furthest from the others in ln R, the likely typo.
+void require_finite(const ModelFit& f, const RtData& data, const std::vector<Point>& pts,
+                    const std::vector<std::size_t>& window) {
+  bool finite = std::isfinite(f.max_residual) && std::isfinite(f.rms_residual) && std::isfinite(f.worst_error) &&
+                std::isfinite(f.between_max_error);
+  for (const auto& c : f.coefficients) finite = finite && std::isfinite(c.value) && (!c.uncertainty || std::isfinite(*c.uncertainty));
+  for (const auto& r : f.residuals) finite = finite && std::isfinite(r.residual);
+  if (finite) return;
+  std::vector<double> ln_r;
+  for (std::size_t i : window) ln_r.push_back(pts[i].ln_r);
+  std::nth_element(ln_r.begin(), ln_r.begin() + static_cast<std::ptrdiff_t>(ln_r.size() / 2), ln_r.end());
+  const double median = ln_r[ln_r.size() / 2];
+  std::size_t worst = window.front();
+  for (std::size_t i : window)
+    if (std::abs(pts[i].ln_r - median) > std::abs(pts[worst].ln_r - median)) worst = i;
+  const RtPoint& p = data.points[worst];
+  reject_at(data.file, p.line,
+            "the " + describe(f) + " fit of this data has no finite coefficients (" + fmt("%g", p.r_ohm) + " ohm at " +
+                fmt("%g", p.t_celsius) +
+                " degC is the resistance furthest from the others): check the data for a mistyped value");
+}
+
+}  // namespace
+
 FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
   check_settings(settings);
   require_monotonic(data);
@@ -491,6 +519,7 @@ FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
   result.fits.push_back(make_fit(Kind::sh3, "least-squares", pts, data, in_window, window, w, in, n));
   if (settings.extended)
     result.fits.push_back(make_fit(Kind::sh4, "least-squares", pts, data, in_window, window, w, in, n));
+  for (const auto& f : result.fits) require_finite(f, data, pts, window);
   result.recommendation = recommend(result, settings);
   return result;
 }
