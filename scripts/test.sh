@@ -6,7 +6,7 @@
 #   2. build-asan/  every test again under AddressSanitizer + UndefinedBehaviorSanitizer
 #   3. build-tsan/  the Monte Carlo and worst-case engines' tests, and the CLI
 #                   runs across thread counts, under ThreadSanitizer
-#   4. build-fuzz/  each libFuzzer target for THERMARGIN_FUZZ_SECONDS (default 20), as many
+#   4. build-fuzz/  each libFuzzer target for THERMARGIN_FUZZ_SECONDS (default 60), as many
 #                   side by side as there are cores
 #
 # A failing step stops the script with a non-zero status. THERMARGIN_QUICK=1
@@ -16,7 +16,7 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 THERMARGIN_TEST_EXTRAS=1 bash scripts/deps.sh
 jobs=$(( $(nproc) < 2 ? $(nproc) : 2 ))
-fuzz_seconds=${THERMARGIN_FUZZ_SECONDS:-20}
+fuzz_seconds=${THERMARGIN_FUZZ_SECONDS:-60}
 launcher=()
 if command -v ccache >/dev/null; then
   launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache)
