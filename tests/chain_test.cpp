@@ -141,6 +141,45 @@ TEST(ChainRoundTrip, RatiometricReadingDoesNotDependOnTheSupplyVoltage) {
 
 // --- the unit spread through the chain --------------------------------------
 
+TEST(ChainStages, TheFrontEndIsItsAnalogStageThenTheAdcStageToTheBit) {
+  // The worst case computes the analog stage once for all corners of the
+  // ADC's gain, offset and INL: that stage must not read them, and the two
+  // stages must give front_end's numbers exactly.
+  const std::vector<Source> adc_sources{Source::adc_gain, Source::adc_offset, Source::adc_inl};
+  unsigned state = 12345;  // a fixed sequence of corners (linear congruential)
+  auto next_sign = [&] {
+    state = state * 1103515245u + 12345u;
+    return (state >> 16 & 1) ? 1.0 : -1.0;
+  };
+  int compared = 0;
+  for (const auto& m : every_model()) {
+    Keys keys = m.keys;
+    keys.insert(keys.end(), {{"divider.r_parallel", m.r_parallel}, {"adc.leakage", "10n"}, {"conditions.board", "0..50"}});
+    const Design d = design_from(keys);
+    const Chain chain(d);
+    ASSERT_GE(d.inputs.size(), 6u) << m.name;
+    const double step = (d.conditions.t_max - d.conditions.t_min) / 10.0;
+    for (double t = d.conditions.t_min; t <= d.conditions.t_max + 1e-9; t += step)
+      for (int corner = 0; corner < 8; ++corner) {
+        Deviations dev{};
+        for (const auto& in : d.inputs) dev[at(in.source)] = next_sign() * in.bound;
+        Deviations analog_only = dev;
+        for (Source s : adc_sources) analog_only[at(s)] = 0.0;
+        const FrontEnd whole = chain.front_end(dev, t);
+        const FrontEnd analog = chain.analog_front_end(analog_only, t);
+        const FrontEnd staged = chain.adc_stage(analog, dev);
+        EXPECT_EQ(staged.status, whole.status) << m.name << " at " << t;
+        EXPECT_EQ(staged.t_element, whole.t_element) << m.name << " at " << t;
+        EXPECT_EQ(staged.rise, whole.rise) << m.name << " at " << t;
+        EXPECT_EQ(staged.v_node, whole.v_node) << m.name << " at " << t;
+        EXPECT_EQ(staged.x_ideal, whole.x_ideal) << m.name << " at " << t;
+        EXPECT_EQ(staged.x_static, whole.x_static) << m.name << " at " << t;
+        ++compared;
+      }
+  }
+  EXPECT_GE(compared, 300);
+}
+
 TEST(ChainSpread, RtdClassFactorMovesTheReadingByExactlyTheClassBound) {
   // model.md §1: R_unit(t) = R_nom(t + k·bound(t)); the exact conversion
   // reads that unit at t + k·bound(t). IEC 60751 class B: 0.30 + 0.005|t|.

@@ -477,6 +477,45 @@ TEST(Grades, RePickGivesThePickersWinnerOverTheWholeSeriesAndTheEnginesFigures) 
   }
 }
 
+TEST(Grades, RePickFollowsAWinnerThatMovesFarBetweenNeighbouringCombinations) {
+  // A thermistor slot that changes R25 tenfold moves the best resistor
+  // several times over (some 60 E96 steps, where a window of 8 either side
+  // would have to move many times) between a combination and its parent in
+  // the re-pick's tree; each combination's resistor must still be the one the
+  // picker finds over the whole series (best_fixed_resistor: pick() over
+  // every E96 value, checked against a brute-force worst case in
+  // picker_test.cpp).
+  const Scenario base;
+  const Catalogue cat = parse_catalogue(
+      "slot,grade,unit_cost,settings\n"
+      "thermistor,10k,0.10,sensor.r25=10k\n"
+      "thermistor,100k,0.12,sensor.r25=100k\n"
+      "resistor,1%,0.002,divider.r_fixed_tol=1%\n"
+      "resistor,0.1%,0.03,divider.r_fixed_tol=0.1%;divider.r_fixed_tempco=25ppm\n",
+      "decade.csv");
+  GradesOptions o = quick();
+  o.re_pick = true;
+  o.pick.series = Series::e96;
+  o.pick.range_low = 1e3;
+  o.pick.range_high = 1e6;
+  const GradesResult g = evaluate_grades(base, cat, o);
+  ASSERT_EQ(g.rows.size(), 4u);
+  double smallest = 1e9, largest = 0.0;
+  for (const auto& r : g.rows) {
+    SCOPED_TRACE(g.choice_text(r));
+    Scenario s = base;
+    for (std::size_t k = 0; k < cat.slots.size(); ++k)
+      for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(r.choice[k])].settings) s.set(st.key, st.value, st.where);
+    PickOptions whole = o.pick;
+    whole.threads = 1;
+    ASSERT_TRUE(r.r_fixed);
+    EXPECT_EQ(*r.r_fixed, best_fixed_resistor(s, whole));
+    smallest = std::min(smallest, *r.r_fixed);
+    largest = std::max(largest, *r.r_fixed);
+  }
+  EXPECT_GT(largest / smallest, 4.0);  // the winners did move that far
+}
+
 TEST(Grades, RePickRefusesACatalogueThatGradesTheFixedResistorValue) {
   GradesOptions o = quick();
   o.re_pick = true;

@@ -387,6 +387,77 @@ TEST(Picker, PairSearchEqualsBruteForceOverEveryPairAndNone) {
   }
 }
 
+// Every figure of two rows, to the bit: the search from a start value and
+// the ranking of the whole list compute each candidate the same way.
+void expect_same_row(const PickRow& got, const PickRow& want) {
+  EXPECT_EQ(got.r_fixed, want.r_fixed);
+  EXPECT_EQ(got.r_parallel, want.r_parallel);
+  EXPECT_EQ(got.series, want.series);
+  EXPECT_EQ(got.status, want.status);
+  EXPECT_EQ(got.objective, want.objective);
+  EXPECT_EQ(got.wc_max_abs, want.wc_max_abs);
+  EXPECT_EQ(got.rss_max_abs, want.rss_max_abs);
+  EXPECT_EQ(got.min_sensitivity, want.min_sensitivity);
+  EXPECT_EQ(got.max_self_heating, want.max_self_heating);
+  EXPECT_EQ(got.max_current, want.max_current);
+  EXPECT_EQ(got.span, want.span);
+  EXPECT_EQ(got.dominant, want.dominant);
+  EXPECT_EQ(got.rejected_by, want.rejected_by);
+}
+
+TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerOverTheWholeSeries) {
+  // pick_winner() screens only the candidates its bounds cannot rule out;
+  // its row must be the one pick() ranks first over the whole list (which
+  // the test above holds against a brute-force worst case of every
+  // candidate), whatever the start: the ends of the list, the scenario's
+  // own value, the winner itself. Every scenario in scenarios/, the default
+  // design with each calibration, with a limit that rules out the
+  // unconstrained winner, with readings no candidate can convert, and an
+  // objective the search hands to pick().
+  struct Case {
+    std::string label;
+    Scenario s;
+    PickOptions o;
+  };
+  PickOptions e24;
+  e24.series = Series::e24;
+  e24.range_low = 1e3;
+  e24.range_high = 1e6;
+  e24.top = 1;
+  e24.guidance = false;
+  e24.threads = 1;
+  std::vector<Case> cases;
+  for (const auto& e : std::filesystem::directory_iterator(source_dir + "/scenarios"))
+    if (e.path().extension() == ".ini") cases.push_back({e.path().filename().string(), scenario_with({}, e.path().string()), e24});
+  std::sort(cases.begin(), cases.end(), [](const Case& a, const Case& b) { return a.label < b.label; });
+  cases.push_back({"offset calibration", scenario_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}), e24});
+  cases.push_back({"two-point calibration",
+                   scenario_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"}}), e24});
+  const PickRow free = pick(Scenario{}, e24).winner();
+  PickOptions limited = e24;
+  limited.constraints.max_current = 0.99 * free.max_current;
+  cases.push_back({"current limit", Scenario{}, limited});
+  cases.push_back({"nothing readable", scenario_with({{"adc.offset", "2000"}}), e24});
+  PickOptions linear = e24;
+  linear.objective = Objective::linear;
+  cases.push_back({"linear objective", Scenario{}, linear});
+  ASSERT_GE(cases.size(), 10u);
+  for (const auto& c : cases) {
+    SCOPED_TRACE(c.label);
+    const PickRow want = pick(c.s, c.o).winner();
+    if (c.label == "nothing readable") EXPECT_FALSE(want.feasible());  // else the case tests nothing
+    if (c.label == "current limit") {  // the best feasible, not the unconstrained winner
+      EXPECT_TRUE(want.feasible());
+      EXPECT_NE(want.r_fixed, free.r_fixed);
+    }
+    const std::vector<double> values = series_values(Series::e24, e24.range_low, e24.range_high);
+    for (double start : {values.front(), values.back(), r_fixed_of(c.s), want.r_fixed, 3.3e5}) {
+      SCOPED_TRACE("from " + text(start));
+      expect_same_row(pick_winner(c.s, c.o, start), want);
+    }
+  }
+}
+
 TEST(Picker, RankingDoesNotDependOnTheThreadCount) {
   const Scenario s;
   PickOptions o;

@@ -4,6 +4,8 @@
 #include "thermargin/worst_case.hpp"
 
 #include <cmath>
+#include <string>
+#include <vector>
 
 #include <gtest/gtest.h>
 
@@ -116,6 +118,96 @@ TEST(WorstCase, ReadingIntervalFollowsTheQuantiserAndNoise) {
   q = reading_interval(d);
   EXPECT_DOUBLE_EQ(q.lo, -1.0);
   EXPECT_DOUBLE_EQ(q.hi, 0.0);
+}
+
+// The worst case by its definition (model.md §7), with no worst-case code:
+// every corner of the box through Chain::evaluate, with every reading (at t
+// and at each calibration point) at either end of its interval and every
+// converted temperature at either end of its rounding. A corner fails when
+// any of those readings does.
+struct ByDefinition {
+  double low = 0.0, high = 0.0;
+  bool any_ok = false;
+  int failed_corners = 0;
+};
+
+ByDefinition every_corner(const Chain& chain, double t) {
+  const Design& d = chain.design();
+  const ReadingInterval q = reading_interval(d);
+  const double rounding = 0.5 * d.firmware.resolution;
+  const int readings = 1 + (d.firmware.calibration == Calibration::none ? 0 : d.firmware.calibration == Calibration::offset ? 1 : 2);
+  const long long corners = 1LL << d.inputs.size();
+  ByDefinition out;
+  for (long long mask = 0; mask < corners; ++mask) {
+    Deviations dev{};
+    for (std::size_t k = 0; k < d.inputs.size(); ++k)
+      dev[static_cast<std::size_t>(d.inputs[k].source)] = (mask >> k & 1) ? d.inputs[k].bound : -d.inputs[k].bound;
+    double low = 0.0, high = 0.0;
+    bool failed = false;
+    for (int ends = 0; ends < (1 << (2 * readings)) && !failed; ++ends) {
+      ReadingShift s;
+      for (int r = 0; r < readings; ++r) {
+        const double shift = (ends >> (2 * r) & 1) ? q.hi : q.lo;
+        const double output = (ends >> (2 * r + 1) & 1) ? rounding : -rounding;
+        (r == 0 ? s.at_t : s.at_cal[r - 1]) = shift;
+        (r == 0 ? s.output_at_t : s.output_at_cal[r - 1]) = output;
+      }
+      const Evaluation e = chain.evaluate(dev, t, s, false);
+      if (e.status != Status::ok) {
+        failed = true;
+        break;
+      }
+      low = ends == 0 ? e.error : std::min(low, e.error);
+      high = ends == 0 ? e.error : std::max(high, e.error);
+    }
+    if (failed) {
+      ++out.failed_corners;
+      continue;
+    }
+    out.low = out.any_ok ? std::min(out.low, low) : low;
+    out.high = out.any_ok ? std::max(out.high, high) : high;
+    out.any_ok = true;
+  }
+  return out;
+}
+
+TEST(WorstCase, EnumerationIsEveryCornerThroughTheChainOnEveryScenarioAndCalibration) {
+  // The enumeration shares the sensor's part of the front end between the
+  // corners of the ADC's gain, offset and INL, and each corner's calibration
+  // between the temperatures; by definition it is every corner evaluated on
+  // its own. Both fold the same numbers, so they agree to the bit.
+  std::vector<Design> designs;
+  for (const auto& file : testing::scenario_files()) designs.push_back(design_with({}, file));
+  designs.push_back(design_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}));
+  designs.push_back(design_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"},
+                                 {"firmware.calibration_uncertainty", "0.05"}}));
+  designs.push_back(design_with({{"supply.ratiometric", "false"}, {"supply.v_reference", "3.0"},
+                                 {"supply.v_reference_tol", "0.5%"}, {"adc.leakage", "20n"}}));
+  designs.push_back(design_with({{"adc.offset", "1500"}}));  // corners that saturate
+  int compared = 0, with_failures = 0;
+  for (std::size_t k = 0; k < designs.size(); ++k) {
+    const Design& d = designs[k];
+    SCOPED_TRACE("design " + std::to_string(k) + ": " + d.title);
+    if (d.inputs.size() > 12) continue;  // 2^12 corners × up to 64 reading ends is enough here
+    const Chain chain(d);
+    const auto all = d.conditions.temperatures();
+    const std::vector<double> temps{all.front(), all[all.size() / 3], all[all.size() / 2], all.back()};
+    const WorstCase wc = worst_case(chain, temps, CornerMethod::enumerate);
+    for (std::size_t i = 0; i < temps.size(); ++i) {
+      SCOPED_TRACE(temps[i]);
+      const ByDefinition want = every_corner(chain, temps[i]);
+      EXPECT_EQ(wc.points[i].failed_corners, want.failed_corners);
+      ASSERT_EQ(wc.points[i].any_ok, want.any_ok);
+      if (want.any_ok) {
+        EXPECT_EQ(wc.points[i].low, want.low);
+        EXPECT_EQ(wc.points[i].high, want.high);
+      }
+      ++compared;
+      with_failures += want.failed_corners > 0;
+    }
+  }
+  EXPECT_GE(compared, 30);
+  EXPECT_GT(with_failures, 0);  // the saturating design exercises the failures
 }
 
 }  // namespace

@@ -39,7 +39,15 @@ namespace {
 double at(const Deviations& d, Source s) { return d[static_cast<std::size_t>(s)]; }
 }  // namespace
 
-FrontEnd Chain::front_end(const Deviations& dev, double t_c) const {
+FrontEnd Chain::front_end(const Deviations& dev, double t_c) const { return adc_stage(analog_front_end(dev, t_c), dev); }
+
+FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& dev) const {
+  if (fe.status != Status::ok) return fe;
+  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset), at(dev, Source::adc_inl));
+  return fe;
+}
+
+FrontEnd Chain::analog_front_end(const Deviations& dev, double t_c) const {
   const Design& d = *d_;
   FrontEnd fe;
   const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class));
@@ -75,7 +83,8 @@ FrontEnd Chain::front_end(const Deviations& dev, double t_c) const {
       fe.rise = *r0;
       return fe;
     }
-    const SelfHeating sh = solve_self_heating(t_true_k, rise_at);
+    // The iteration starts at the true temperature, whose rise is r0 already.
+    const SelfHeating sh = solve_self_heating(t_true_k, [&](double t) { return t == t_true_k ? r0 : rise_at(t); });
     if (sh.outcome == SelfHeating::Outcome::out_of_range) {
       fe.status = Status::out_of_table;
       return fe;
@@ -99,8 +108,6 @@ FrontEnd Chain::front_end(const Deviations& dev, double t_c) const {
   const double rb = branch_resistance(r_element, r_lead, r_par);
   fe.v_node = node_voltage(d.divider.placement, supply.v_excitation, r_fixed, rb, at(dev, Source::adc_leakage));
   fe.x_ideal = fe.v_node / supply.v_reference * span_;
-  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset),
-                           at(dev, Source::adc_inl));
   return fe;
 }
 

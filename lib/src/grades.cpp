@@ -88,11 +88,14 @@ bool same_value(const std::string& key, const Setting& current, const std::strin
 
 // --- Re-pick ---------------------------------------------------------------
 
-// The fixed resistor a combination gets: the picker (its objective, its
-// exact branch and bound) over a window of series values around the anchor,
-// moved while the winner sits at the window's edge, so the value returned
-// has at least re_pick_half_width series values either side that lose to
-// it. When no value in the window can be read, the whole list is searched.
+// The fixed resistor a combination gets. With the worst-case objective, the
+// picker's winner over the whole list, searched from the anchor
+// (pick_winner(): the same row pick() ranks first; the anchor changes only
+// the work). With another objective, the picker (its objective, its exact
+// branch and bound) over a window of series values around the anchor, moved
+// while the winner sits at the window's edge, so the value returned has at
+// least re_pick_half_width series values either side that lose to it; when
+// no value in the window can be read, the whole list is searched.
 struct RePick {
   std::vector<double> values;  // the candidate list (series in range, or given), ascending
   std::size_t anchor = 0;      // index of the scenario's own pick
@@ -114,6 +117,7 @@ PickRow re_pick(const Scenario& s, const PickOptions& base, const std::vector<do
   o.guidance = false;
   o.threads = 1;
   o.progress = nullptr;
+  if (o.objective == Objective::worst_case) return pick_winner(s, o, values[anchor]);
   std::size_t centre = anchor;
   for (std::size_t round = 0; round <= n; ++round) {
     const std::size_t lo = centre > h ? centre - h : 0, hi = std::min(n - 1, centre + h);
@@ -478,8 +482,7 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
     rp.values = o.values.empty() ? series_values(o.series, o.range_low, o.range_high) : o.values;
     std::sort(rp.values.begin(), rp.values.end());
     rp.values.erase(std::unique(rp.values.begin(), rp.values.end()), rp.values.end());
-    const PickResult anchor = pick(scenario, o);
-    g.anchor_r_fixed = anchor.winner().r_fixed;
+    g.anchor_r_fixed = pick_winner(scenario, o, base.divider.r_fixed).r_fixed;
     rp.anchor = nearest_index(rp.values, *g.anchor_r_fixed);
   }
 

@@ -28,7 +28,8 @@ namespace thermargin {
 namespace {
 
 constexpr double inf = std::numeric_limits<double>::infinity();
-// Full evaluations are done in batches of this many candidates whatever the
+// Refinements of the worst case (settle) and candidates screened per round
+// (pick_winner) go in batches of at most this many candidates whatever the
 // thread count, so the work done (and every number reported) does not
 // depend on the machine.
 constexpr std::size_t full_batch = 4;
@@ -113,6 +114,16 @@ struct Built {
 };
 
 std::unique_ptr<Built> build(const Context& ctx, const Candidate& c) {
+  if (!ctx.pair) {
+    // build_design reads divider.r_fixed in one place, into the divider's
+    // value (checked > 0, as check_options has), and number_text gives it
+    // back to the bit: the validated base design with the value set is the
+    // design the scenario with that key set builds, without reading every
+    // key (and a table sensor's file) again for each candidate.
+    Design d = ctx.design;
+    d.divider.r_fixed = c.r_fixed;
+    return std::make_unique<Built>(std::move(d));
+  }
   Scenario s = ctx.base;
   const Where w = option("candidate");
   s.set("divider.r_fixed", number_text(c.r_fixed), w);
@@ -188,7 +199,7 @@ WindowBand worst_case_band(const Chain& chain, const std::vector<double>& temps,
   parallel_for(parts, threads, [&](std::size_t i) {
     const std::vector<double> part(temps.begin() + static_cast<std::ptrdiff_t>(i * temps.size() / parts),
                                    temps.begin() + static_cast<std::ptrdiff_t>((i + 1) * temps.size() / parts));
-    results[i] = worst_case(chain, part, method);
+    results[i] = worst_case(chain, part, method, false);
   });
   WindowBand b;
   for (const auto& r : results)
@@ -264,10 +275,38 @@ struct DirectedBound {
   std::vector<double> at;       // K, the bound at each temperature (0 where unknown)
 };
 
+// The corner a linear model calls extreme in `direction` (+1 up, −1 down).
+Deviations directed_corner(const Design& d, const LinearPoint& lp, double direction) {
+  Deviations dev{};
+  for (std::size_t k = 0; k < d.inputs.size(); ++k) {
+    const ToleranceInput& in = d.inputs[k];
+    dev[static_cast<std::size_t>(in.source)] = (lp.terms[k].sensitivity * direction >= 0.0 ? 1.0 : -1.0) * in.bound;
+  }
+  return dev;
+}
+
+// What the bound adds to an unrounded |error| for the output rounding.
+double bound_rounding(const Design& d) {
+  return d.firmware.calibration == Calibration::two_point ? 0.0 : 0.5 * d.firmware.resolution;
+}
+
+// The unrounded error at one corner with every reading at one end of the
+// reading interval; none (and `failure` set) where the chain fails.
+std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, double shift, Status& failure) {
+  ReadingShift rs;
+  rs.at_t = rs.at_cal[0] = rs.at_cal[1] = shift;
+  const Evaluation e = chain.evaluate(dev, t, rs, false);
+  if (e.status != Status::ok) {
+    if (failure == Status::ok) failure = e.status;
+    return std::nullopt;
+  }
+  return e.error;
+}
+
 DirectedBound directed_bound(const Chain& chain, const std::vector<double>& temps, const LinearBudget& lb) {
   const Design& d = chain.design();
   const ReadingInterval q = reading_interval(d);
-  const double rounding = d.firmware.calibration == Calibration::two_point ? 0.0 : 0.5 * d.firmware.resolution;
+  const double rounding = bound_rounding(d);
   DirectedBound b;
   b.at.assign(temps.size(), 0.0);
   double largest = -inf;
@@ -275,21 +314,12 @@ DirectedBound directed_bound(const Chain& chain, const std::vector<double>& temp
     const LinearPoint& lp = lb.points[i];
     if (lp.status != Status::ok) continue;
     for (double direction : {-1.0, 1.0}) {
-      Deviations dev{};
-      for (std::size_t k = 0; k < d.inputs.size(); ++k) {
-        const ToleranceInput& in = d.inputs[k];
-        dev[static_cast<std::size_t>(in.source)] = (lp.terms[k].sensitivity * direction >= 0.0 ? 1.0 : -1.0) * in.bound;
-      }
+      const Deviations dev = directed_corner(d, lp, direction);
       for (double shift : {q.lo, q.hi}) {
-        ReadingShift rs;
-        rs.at_t = rs.at_cal[0] = rs.at_cal[1] = shift;
-        const Evaluation e = chain.evaluate(dev, temps[i], rs, false);
-        if (e.status != Status::ok) {
-          if (b.status == Status::ok) b.status = e.status;
-          continue;
-        }
-        largest = std::max(largest, std::fabs(e.error));
-        b.at[i] = std::max(b.at[i], std::fabs(e.error) + rounding);
+        const auto e = corner_error(chain, dev, temps[i], shift, b.status);
+        if (!e) continue;
+        largest = std::max(largest, std::fabs(*e));
+        b.at[i] = std::max(b.at[i], std::fabs(*e) + rounding);
       }
     }
   }
@@ -306,10 +336,12 @@ struct State {
   bool exact = false;         // score is the full objective
   double score = inf;         // objective in minimisation form (−LSB/K for sensitivity); inf: unreadable
   // Worst case before the full evaluation: a lower bound of score, from the
-  // directed corners, then tightened by the full enumeration at the
-  // temperatures where the directed bound is largest (`probes`).
+  // directed corners, then tightened by the full enumeration at more and
+  // more of the window's temperatures (refine()).
   double bound = 0.0;
-  std::vector<double> probes;  // °C; emptied once used
+  std::vector<double> pending;  // °C, not yet enumerated, in the order they will be
+  double enumerated = 0.0;      // K, the largest |error| the enumeration has found so far
+  std::vector<double> directed_at;  // K, the directed bound at each window temperature
   bool certain_unreadable = false;
 };
 
@@ -343,10 +375,43 @@ Key bound_key(const State& s, bool objective_only) {
   return {rejected ? 1 : 0, s.certain_unreadable ? inf : s.bound, s.c.r_fixed, s.c.r_parallel.value_or(inf)};
 }
 
+// Where the screen forms a worst-case candidate's lower bound: by default at
+// every window temperature (with the linear budget every row shows); in
+// pick_winner's search at a few (the row's linear figures are then filled
+// for the winner only, by complete_row).
+struct Focus {
+  std::vector<double> temps;  // °C, where the bound is formed
+  std::vector<double> rest;   // °C, the other window temperatures, in the order to enumerate them
+};
+
+// The worst case's lower bound from the directed corners at `temps` (with
+// their linear budget), and the order in which refine() enumerates: those
+// temperatures, largest bound first, then `rest`.
+void bound_worst_case(State& s, const std::vector<double>& temps, const LinearBudget& lb, const std::vector<double>& rest) {
+  const DirectedBound b = directed_bound(s.built->chain, temps, lb);
+  s.bound = b.value;
+  std::vector<std::size_t> by_bound(b.at.size());
+  std::iota(by_bound.begin(), by_bound.end(), std::size_t{0});
+  std::stable_sort(by_bound.begin(), by_bound.end(), [&](std::size_t x, std::size_t y) { return b.at[x] > b.at[y]; });
+  for (std::size_t k : by_bound) s.pending.push_back(temps[k]);
+  s.pending.insert(s.pending.end(), rest.begin(), rest.end());
+  s.directed_at = b.at;
+  if (b.status != Status::ok) {
+    s.certain_unreadable = true;
+    set_status(s, b.status);
+  }
+  if (s.row.status != Status::ok) {
+    // Runaway or a certain unreadable window: nothing to evaluate in full.
+    s.score = inf;
+    s.exact = true;
+  }
+  finish_row(s);
+}
+
 // The first pass over a candidate: its nominal profile and constraints, and
 // the objective itself, except the worst case, which gets its lower bound.
-void screen(State& s, const Context& ctx) {
-  s.built = build(ctx, s.c);
+void screen(State& s, const Context& ctx, const Focus* focus = nullptr) {
+  if (!s.built) s.built = build(ctx, s.c);
   const Chain& chain = s.built->chain;
   PickRow& row = s.row;
   row.r_fixed = s.c.r_fixed;
@@ -366,6 +431,10 @@ void screen(State& s, const Context& ctx) {
     if (n.window_status != Status::ok) set_status(s, n.window_status);
     set_score(s, o, n.min_sensitivity);
     finish_row(s);
+    return;
+  }
+  if (o == Objective::worst_case && focus) {
+    bound_worst_case(s, focus->temps, linear_budget(chain, focus->temps), focus->rest);
     return;
   }
   // The linear budget is cheap and gives every row its band and dominant
@@ -391,39 +460,7 @@ void screen(State& s, const Context& ctx) {
   }
   // Worst case: a lower bound first (the full enumeration only where the
   // bound says a candidate could reach the top).
-  const DirectedBound b = directed_bound(chain, ctx.window, lb);
-  s.bound = b.value;
-  std::vector<std::size_t> by_bound(b.at.size());
-  std::iota(by_bound.begin(), by_bound.end(), std::size_t{0});
-  std::stable_sort(by_bound.begin(), by_bound.end(), [&](std::size_t x, std::size_t y) { return b.at[x] > b.at[y]; });
-  for (std::size_t k = 0; k < std::min(probe_count, by_bound.size()); ++k) s.probes.push_back(ctx.window[by_bound[k]]);
-  if (b.status != Status::ok) {
-    s.certain_unreadable = true;
-    set_status(s, b.status);
-  }
-  if (s.row.status != Status::ok) {
-    // Runaway or a certain unreadable window: nothing to evaluate in full.
-    s.score = inf;
-    s.exact = true;
-  }
-  finish_row(s);
-}
-
-// Tightens the bound of a screened candidate: the full enumeration at the
-// probe temperatures is part of the full worst case, so its largest |error|
-// is a lower bound too (and a failure there a certain one).
-void probe(State& s) {
-  const WindowBand wc = worst_case_band(s.built->chain, s.probes, CornerMethod::automatic, 1);
-  s.probes.clear();
-  if (wc.status != Status::ok) {
-    s.certain_unreadable = true;
-    set_status(s, wc.status);
-    s.score = inf;
-    s.exact = true;
-    finish_row(s);
-    return;
-  }
-  s.bound = std::max(s.bound, wc.max_abs);
+  bound_worst_case(s, ctx.window, lb, {});
 }
 
 // The full worst case of a screened candidate.
@@ -435,12 +472,53 @@ void evaluate_in_full(State& s, const Context& ctx, int threads) {
   finish_row(s);
 }
 
+// One step of a screened candidate towards its full worst case: the full
+// enumeration at its next pending temperatures — first the probe_count where
+// its directed bound is largest (the probes), then each step as many as are
+// done. Each temperature's corners do not depend on the other temperatures,
+// so the enumeration at some of them is part of the full worst case: its
+// largest |error| is a lower bound (and a failure there a certain one), and
+// once every window temperature is done it is the full worst case, the same
+// number worst_case_band gives over the whole window. A failure past the
+// probes is reported as the full evaluation reports it (the first window
+// temperature that fails). Returns whether the candidate is now enumerated
+// in full.
+bool refine(State& s, const Context& ctx) {
+  const std::size_t done = ctx.window.size() - s.pending.size();
+  const auto take = static_cast<std::ptrdiff_t>(std::min(s.pending.size(), std::max(probe_count, done)));
+  const std::vector<double> temps(s.pending.begin(), s.pending.begin() + take);
+  s.pending.erase(s.pending.begin(), s.pending.begin() + take);
+  const WindowBand wc = worst_case_band(s.built->chain, temps, CornerMethod::automatic, 1);
+  if (wc.status != Status::ok) {
+    s.pending.clear();
+    if (done > 0) {
+      evaluate_in_full(s, ctx, 1);
+      return true;
+    }
+    s.certain_unreadable = true;
+    set_status(s, wc.status);
+    s.score = inf;
+    s.exact = true;
+    finish_row(s);
+    return false;
+  }
+  s.enumerated = std::max(s.enumerated, wc.max_abs);
+  s.bound = std::max(s.bound, s.enumerated);
+  if (!s.pending.empty()) return false;
+  s.row.wc_max_abs = s.enumerated;
+  set_score(s, Objective::worst_case, s.enumerated);
+  finish_row(s);
+  return true;
+}
+
 // Best-first branch and bound: the n best keys become known exactly. Each
 // round sorts the candidates by their key (exact, or a lower bound) and
-// refines the most promising ones a step (probe temperatures, then the full
-// enumeration) until the first n in that order are all exact: every other
-// candidate's true key is at least its bound, so behind them. Keys with
-// `objective_only` ignore the constraints. Returns the full evaluations done.
+// refines the most promising ones a step (refine(): the enumeration at more
+// of the window's temperatures) until the first n in that order are all
+// exact: every other candidate's true key is at least its bound, so behind
+// them. A candidate that cannot win is mostly left after a few temperatures.
+// Keys with `objective_only` ignore the constraints. Returns the candidates
+// enumerated in full.
 std::size_t settle(std::vector<State>& st, std::size_t n, bool objective_only, const Context& ctx) {
   std::vector<std::size_t> order(st.size());
   std::size_t evaluated = 0;
@@ -448,23 +526,15 @@ std::size_t settle(std::vector<State>& st, std::size_t n, bool objective_only, c
     std::iota(order.begin(), order.end(), std::size_t{0});
     std::sort(order.begin(), order.end(),
               [&](std::size_t a, std::size_t b) { return bound_key(st[a], objective_only) < bound_key(st[b], objective_only); });
+    // Only the first n can block: a candidate behind them is refined when
+    // the ones before it are exact or have fallen behind it. Done when the
+    // first n are exact.
     std::vector<std::size_t> batch;
-    for (std::size_t k = 0; k < order.size() && batch.size() < full_batch; ++k)
+    for (std::size_t k = 0; k < std::min(n, order.size()) && batch.size() < full_batch; ++k)
       if (!st[order[k]].exact) batch.push_back(order[k]);
-    // Done when the first n are exact.
-    bool settled = true;
-    for (std::size_t k = 0; k < std::min(n, order.size()); ++k) settled = settled && st[order[k]].exact;
-    if (settled || batch.empty()) break;
+    if (batch.empty()) break;
     std::vector<char> in_full(batch.size(), 0);
-    parallel_for(batch.size(), ctx.threads, [&](std::size_t i) {
-      State& s = st[batch[i]];
-      if (!s.probes.empty()) {
-        probe(s);
-      } else {
-        evaluate_in_full(s, ctx, 1);
-        in_full[i] = 1;
-      }
-    });
+    parallel_for(batch.size(), ctx.threads, [&](std::size_t i) { in_full[i] = refine(st[batch[i]], ctx) ? 1 : 0; });
     evaluated += static_cast<std::size_t>(std::count(in_full.begin(), in_full.end(), 1));
   }
   return evaluated;
@@ -650,6 +720,100 @@ std::pair<std::optional<double>, std::optional<double>> neighbours(const Context
   return {below, above};
 }
 
+// The figures a shown row has that its objective did not need.
+void complete_row(State& s, const Context& ctx) {
+  if (!s.row.wc_max_abs && ctx.options.objective != Objective::worst_case) {
+    const WindowBand wc = worst_case_band(s.built->chain, ctx.window, CornerMethod::automatic, 1);
+    if (wc.status == Status::ok) s.row.wc_max_abs = wc.max_abs;
+  }
+  if (!s.row.rss_max_abs && s.row.dominant.empty()) {
+    const LinearWindow lin = linear_window(linear_budget(s.built->chain, ctx.window));
+    if (lin.band.status == Status::ok) s.row.rss_max_abs = lin.band.max_abs;
+    s.row.dominant = lin.dominant;
+  }
+}
+
+// --- The winner searched from a start value ----------------------------------
+
+// The search's focus, from the start value's full screen: the window
+// temperatures where its directed bound is largest and the window's ends;
+// the other temperatures follow by its directed bound, largest first.
+Focus focus_of(const State& start, const Context& ctx) {
+  std::vector<std::size_t> by_bound(start.directed_at.size());
+  std::iota(by_bound.begin(), by_bound.end(), std::size_t{0});
+  std::stable_sort(by_bound.begin(), by_bound.end(),
+                   [&](std::size_t x, std::size_t y) { return start.directed_at[x] > start.directed_at[y]; });
+  std::vector<char> in(ctx.window.size(), 0);
+  for (std::size_t k = 0; k < std::min(probe_count, by_bound.size()); ++k) in[by_bound[k]] = 1;
+  if (!ctx.window.empty()) in.front() = in.back() = 1;
+  Focus f;
+  for (std::size_t i = 0; i < ctx.window.size(); ++i)
+    if (in[i]) f.temps.push_back(ctx.window[i]);
+  for (std::size_t i : by_bound)
+    if (!in[i]) f.rest.push_back(ctx.window[i]);
+  return f;
+}
+
+// Corners of the incumbent's box, each with its temperature, repeated on a
+// candidate not yet screened: the two directed corners at each focus
+// temperature.
+struct Witness {
+  double t = 0.0;
+  Deviations corner{};
+};
+
+std::vector<Witness> witnesses_of(const State& w, const Focus& f) {
+  const LinearBudget lb = linear_budget(w.built->chain, f.temps);
+  std::vector<Witness> out;
+  for (std::size_t i = 0; i < f.temps.size(); ++i) {
+    if (lb.points[i].status != Status::ok) continue;
+    for (double direction : {1.0, -1.0}) out.push_back({f.temps[i], directed_corner(w.built->design, lb.points[i], direction)});
+  }
+  return out;
+}
+
+// What the witnesses say of a candidate's worst case: each is a corner the
+// full enumeration visits, read at both ends of the reading interval with
+// the output unrounded, so |error| plus the rounding directed_bound adds is
+// a lower bound of the candidate's worst case (the argument of
+// directed_bound); a reading one of them cannot convert fails the
+// enumeration too, so the candidate cannot be read in its window.
+struct WitnessBound {
+  double value = 0.0;  // K
+  bool unreadable = false;
+};
+
+// Stops as soon as the bound passes `enough`.
+void witness_bound(const Chain& chain, const std::vector<Witness>& ws, double enough, WitnessBound& b) {
+  const Design& d = chain.design();
+  const ReadingInterval q = reading_interval(d);
+  const double rounding = bound_rounding(d);
+  for (const Witness& w : ws)
+    for (double shift : {q.lo, q.hi}) {
+      Status failure = Status::ok;
+      const auto e = corner_error(chain, w.corner, w.t, shift, failure);
+      if (!e) {
+        b.unreadable = true;
+        return;
+      }
+      b.value = std::max(b.value, std::fabs(*e) + rounding);
+      if (b.value > enough) return;
+    }
+}
+
+// Relative margin by which a witness bound must pass the incumbent's worst
+// case to rule a candidate out: the bound adds the rounding to |error| where
+// the enumeration rounds before it subtracts, which may differ in the last
+// bits; a candidate that close is screened and enumerated instead.
+constexpr double witness_margin = 1e-9;
+
+std::size_t best_exact(const std::vector<State>& st) {
+  std::size_t best = st.size();
+  for (std::size_t i = 0; i < st.size(); ++i)
+    if (st[i].exact && (best == st.size() || exact_key(st[i], false) < exact_key(st[best], false))) best = i;
+  return best;
+}
+
 }  // namespace
 
 std::string_view to_string(Objective o) {
@@ -765,18 +929,7 @@ PickResult pick(const Scenario& scenario, const PickOptions& options) {
   const std::size_t keep = std::max(shown, runner);
 
   // Fill the figures the objective did not need, for the rows shown.
-  parallel_for(keep, ctx.threads, [&](std::size_t k) {
-    State& s = st[idx[k]];
-    if (!s.row.wc_max_abs && o.objective != Objective::worst_case) {
-      const WindowBand wc = worst_case_band(s.built->chain, ctx.window, CornerMethod::automatic, 1);
-      if (wc.status == Status::ok) s.row.wc_max_abs = wc.max_abs;
-    }
-    if (!s.row.rss_max_abs && s.row.dominant.empty()) {
-      const LinearWindow lin = linear_window(linear_budget(s.built->chain, ctx.window));
-      if (lin.band.status == Status::ok) s.row.rss_max_abs = lin.band.max_abs;
-      s.row.dominant = lin.dominant;
-    }
-  });
+  parallel_for(keep, ctx.threads, [&](std::size_t k) { complete_row(st[idx[k]], ctx); });
   for (std::size_t k = 0; k < keep; ++k) result.rows.push_back(st[idx[k]].row);
   if (result.rows.size() >= 2 && std::isfinite(st[idx[0]].score) && std::isfinite(st[idx[1]].score))
     result.margin = st[idx[1]].score - st[idx[0]].score;
@@ -868,6 +1021,83 @@ double best_fixed_resistor(const Scenario& scenario, const PickOptions& options)
   o.verify = 0;
   o.guidance = false;
   return pick(scenario, o).winner().r_fixed;
+}
+
+PickRow pick_winner(const Scenario& scenario, const PickOptions& options, double start) {
+  if (!(start > 0.0 && std::isfinite(start))) reject(option("start"), number_text(start), "must be a resistance > 0");
+  PickOptions o = options;
+  o.top = 1;
+  o.verify = 0;
+  o.guidance = false;
+  o.progress = nullptr;
+  const Context ctx = make_context(scenario, o);
+  const bool enumerated = static_cast<int>(ctx.design.inputs.size()) <= max_enumerated_inputs;
+  if (ctx.pair || o.objective != Objective::worst_case || !enumerated) return pick(scenario, o).rows.front();
+
+  const std::vector<double>& values = ctx.values;
+  const std::size_t n = values.size();
+  std::vector<std::unique_ptr<Built>> built(n);
+  std::vector<char> screened(n, 0), ruled_out(n, 0);
+  std::vector<WitnessBound> bounds(n);
+  std::vector<State> st;
+  auto admit = [&](const std::vector<std::size_t>& idx, const Focus* f) {
+    std::vector<State> more(idx.size());
+    parallel_for(idx.size(), ctx.threads, [&](std::size_t k) {
+      State& s = more[k];
+      s.c = {values[idx[k]], ctx.design.divider.r_parallel};
+      s.built = std::move(built[idx[k]]);
+      screen(s, ctx, f);
+    });
+    for (std::size_t k = 0; k < idx.size(); ++k) {
+      screened[idx[k]] = 1;
+      st.push_back(std::move(more[k]));
+    }
+  };
+
+  // The start value, screened in full (its directed bound over the window
+  // chooses the focus), then rounds: witnesses repeated on every candidate
+  // not yet screened or ruled out, the few with the smallest bound screened
+  // at the focus, the winner so far from a branch and bound over the
+  // screened ones, and its witnesses for the next round, until no
+  // candidate remains.
+  std::size_t first = 0;
+  for (std::size_t i = 1; i < n; ++i)
+    if (std::fabs(std::log(values[i] / start)) < std::fabs(std::log(values[first] / start))) first = i;
+  admit({first}, nullptr);
+  const Focus focus = focus_of(st.front(), ctx);
+  // Until a candidate is exact the bounds only rank (and an unreadable
+  // corner rules out: an unreadable candidate ranks after any readable one).
+  double enough = inf;
+  std::vector<Witness> ws = witnesses_of(st.front(), focus);
+  for (;;) {
+    std::vector<std::size_t> open;
+    for (std::size_t i = 0; i < n; ++i)
+      if (!screened[i] && !ruled_out[i]) open.push_back(i);
+    parallel_for(open.size(), ctx.threads, [&](std::size_t k) {
+      const std::size_t i = open[k];
+      if (!built[i]) built[i] = build(ctx, {values[i], ctx.design.divider.r_parallel});
+      witness_bound(built[i]->chain, ws, enough, bounds[i]);
+      ruled_out[i] = bounds[i].unreadable || bounds[i].value > enough;
+    });
+    std::vector<std::size_t> next;
+    for (std::size_t i : open)
+      if (!ruled_out[i]) next.push_back(i);
+    if (next.empty()) break;
+    std::stable_sort(next.begin(), next.end(), [&](std::size_t a, std::size_t b) { return bounds[a].value < bounds[b].value; });
+    next.resize(std::min(next.size(), full_batch));
+    admit(next, &focus);
+    settle(st, 1, false, ctx);
+    const State& w = st[best_exact(st)];
+    // No readable candidate yet: any readable one would win, no bound helps.
+    if (!w.row.feasible()) return pick(scenario, o).rows.front();
+    enough = w.score + witness_margin * std::fabs(w.score);
+    ws = witnesses_of(w, focus);
+  }
+  settle(st, 1, false, ctx);
+  if (!st[best_exact(st)].row.feasible()) return pick(scenario, o).rows.front();
+  State& winner = st[best_exact(st)];
+  complete_row(winner, ctx);
+  return winner.row;
 }
 
 std::optional<double> objective_at(const Scenario& scenario, const PickOptions& options, double r_fixed) {

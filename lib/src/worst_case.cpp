@@ -30,10 +30,26 @@ struct Intervals {
   double rounding;  // ± K
 };
 
+// The analog stage of a corner's front end at each calibration point (the
+// part its ADC deviations do not change).
+struct CalibrationFrontEnds {
+  FrontEnd at[2];
+};
+
+CalibrationFrontEnds calibration_front_ends(const Chain& chain, const Deviations& dev) {
+  const Design& d = chain.design();
+  CalibrationFrontEnds c;
+  for (int i = 0; i < calibration_points(d); ++i)
+    c.at[i] = chain.analog_front_end(dev, d.firmware.calibration_at[static_cast<std::size_t>(i)]);
+  return c;
+}
+
 // Every calibration one corner's unit can receive: each calibration reading
 // at either end of its reading interval and of its rounding interval.
 // nullopt entries are calibrations that failed (saturation, no conversion).
+// `analog`: calibration_front_ends of the corner (of its analog deviations).
 std::vector<std::optional<CalibrationData>> corner_calibrations(const Chain& chain, const Deviations& dev,
+                                                                const CalibrationFrontEnds& analog,
                                                                 const Intervals& iv, Status& failure) {
   const Design& d = chain.design();
   const int n = calibration_points(d);
@@ -43,8 +59,7 @@ std::vector<std::optional<CalibrationData>> corner_calibrations(const Chain& cha
   double ends[2][4];
   int count[2] = {0, 0};
   for (int i = 0; i < n; ++i) {
-    const double t_cal = d.firmware.calibration_at[static_cast<std::size_t>(i)];
-    const FrontEnd fe = chain.front_end(dev, t_cal);
+    const FrontEnd fe = chain.adc_stage(analog.at[i], dev);
     if (fe.status != Status::ok) {
       failure = fe.status;
       out.push_back(std::nullopt);
@@ -89,10 +104,10 @@ struct CornerRange {
   double low = 0.0, high = 0.0;
 };
 
-CornerRange corner_range(const Chain& chain, const Deviations& dev, double t, const Intervals& iv,
+// `fe`: the corner's front end at t.
+CornerRange corner_range(const Chain& chain, const FrontEnd& fe, double t, const Intervals& iv,
                          const std::vector<std::optional<CalibrationData>>& cals, Status cal_failure) {
   CornerRange c;
-  const FrontEnd fe = chain.front_end(dev, t);
   if (fe.status != Status::ok) {
     c.failure = fe.status;
     return c;
@@ -136,8 +151,8 @@ CornerRange corner_range(const Chain& chain, const Deviations& dev, double t, co
 
 CornerRange evaluate_corner(const Chain& chain, const Deviations& dev, double t, const Intervals& iv) {
   Status cal_failure = Status::ok;
-  const auto cals = corner_calibrations(chain, dev, iv, cal_failure);
-  return corner_range(chain, dev, t, iv, cals, cal_failure);
+  const auto cals = corner_calibrations(chain, dev, calibration_front_ends(chain, dev), iv, cal_failure);
+  return corner_range(chain, chain.front_end(dev, t), t, iv, cals, cal_failure);
 }
 
 void fold(WorstCasePoint& p, const CornerRange& c) {
@@ -249,7 +264,7 @@ CornerRange directed_extreme(const Chain& chain, double t, const Intervals& iv, 
 
 }  // namespace
 
-WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures, CornerMethod method) {
+WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures, CornerMethod method, bool half_widths) {
   const Design& d = chain.design();
   WorstCase wc;
   wc.active_inputs = static_cast<int>(d.inputs.size());
@@ -260,33 +275,48 @@ WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures
   wc.points.resize(nt);
   for (std::size_t i = 0; i < nt; ++i) {
     wc.points[i].t = temperatures[i];
-    wc.points[i].own_half_width = own_half_widths(chain, temperatures[i], iv);
+    if (half_widths) wc.points[i].own_half_width = own_half_widths(chain, temperatures[i], iv);
   }
   const int n = wc.active_inputs;
   if (!wc.directed) {
     wc.corners = 1LL << n;
-    // Threads over corners, each folding into its own points; min and max
-    // are exact, so the merge does not depend on how corners were shared.
+    // The corners as every combination of the analog inputs' signs with
+    // every combination of the ADC's (gain, offset, INL): the analog stage
+    // of the front end, the costly part (the sensor, its self-heating), is
+    // computed once for all ADC corners that share it.
+    std::vector<std::size_t> analog, adc;  // indices into d.inputs
+    for (std::size_t k = 0; k < d.inputs.size(); ++k) {
+      const Source src = d.inputs[k].source;
+      (src == Source::adc_gain || src == Source::adc_offset || src == Source::adc_inl ? adc : analog).push_back(k);
+    }
+    const long long analog_corners = 1LL << analog.size(), adc_corners = 1LL << adc.size();
+    auto set_signs = [&](Deviations& dev, const std::vector<std::size_t>& which, long long mask) {
+      for (std::size_t b = 0; b < which.size(); ++b) {
+        const auto& in = d.inputs[which[b]];
+        dev[static_cast<std::size_t>(in.source)] = (mask >> b & 1) ? in.bound : -in.bound;
+      }
+    };
+    // Threads over analog corners, each folding into its own points; min and
+    // max are exact, so the merge does not depend on how corners were shared
+    // or visited.
     int threads = d.montecarlo.threads > 0 ? d.montecarlo.threads
                                            : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
-    threads = static_cast<int>(std::min<long long>(threads, std::max<long long>(1, wc.corners / 64)));
+    threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), analog_corners}));
     std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
     std::atomic<long long> next{0};
     auto work = [&](std::size_t w) {
-      constexpr long long chunk = 16;
-      for (;;) {
-        const long long begin = next.fetch_add(chunk);
-        if (begin >= wc.corners) break;
-        for (long long mask = begin; mask < std::min(begin + chunk, wc.corners); ++mask) {
-          Deviations dev{};
-          for (int k = 0; k < n; ++k) {
-            const auto& in = d.inputs[static_cast<std::size_t>(k)];
-            dev[static_cast<std::size_t>(in.source)] = (mask >> k & 1) ? in.bound : -in.bound;
-          }
+      std::vector<FrontEnd> at_t(nt);
+      for (long long a; (a = next.fetch_add(1)) < analog_corners;) {
+        Deviations dev{};
+        set_signs(dev, analog, a);
+        for (std::size_t i = 0; i < nt; ++i) at_t[i] = chain.analog_front_end(dev, temperatures[i]);
+        const CalibrationFrontEnds at_cal = calibration_front_ends(chain, dev);
+        for (long long m = 0; m < adc_corners; ++m) {
+          set_signs(dev, adc, m);
           Status cal_failure = Status::ok;
-          const auto cals = corner_calibrations(chain, dev, iv, cal_failure);
+          const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
           for (std::size_t i = 0; i < nt; ++i)
-            fold(partial[w][i], corner_range(chain, dev, temperatures[i], iv, cals, cal_failure));
+            fold(partial[w][i], corner_range(chain, chain.adc_stage(at_t[i], dev), temperatures[i], iv, cals, cal_failure));
         }
       }
     };

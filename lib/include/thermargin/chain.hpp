@@ -66,6 +66,13 @@ class Chain {
 
   // Sensor, self-heating, divider, supply and the ADC's static transfer.
   FrontEnd front_end(const Deviations& dev, double t_celsius) const;
+  // The same in two stages: up to the ideal ADC input (x_ideal; x_static
+  // left 0), which the ADC's gain, offset and INL deviations do not change,
+  // then the ADC's static transfer (a failed front end passes unchanged).
+  // front_end(dev, t) is adc_stage(analog_front_end(dev, t), dev), to the
+  // bit: the worst case reuses one analog stage for every ADC corner.
+  FrontEnd analog_front_end(const Deviations& dev, double t_celsius) const;
+  FrontEnd adc_stage(FrontEnd fe, const Deviations& dev) const;
 
   // Firmware steps 1–4 for a reading: temperature before calibration.
   std::optional<double> convert(double code, bool round_output) const;

@@ -16,8 +16,9 @@
 // The worst-case ranking is exact but does not enumerate every corner of
 // every candidate: the two corners directed by the sensitivities are among
 // all corners, so their error is a lower bound of the full worst case, and
-// so is the full enumeration at a few temperatures. Candidates are refined
-// best first (bound, then those temperatures, then the whole window) until
+// so is the full enumeration at some of the temperatures. Candidates are
+// refined best first (bound, then the enumeration at the three temperatures
+// where the bound is largest, then at more and more of the window) until
 // the first N are exact and no bound can beat them (branch and bound; the
 // top N are exactly what a full enumeration of every candidate would give).
 //
@@ -177,6 +178,19 @@ PickResult pick(const Scenario& scenario, const PickOptions& options);
 // The winning fixed resistor (Ω) for a scenario: pick() with top = 1, no
 // guidance and no verification. For other engines (grades --re-pick).
 double best_fixed_resistor(const Scenario& scenario, const PickOptions& options);
+
+// The row pick() ranks first (top = 1, no guidance, no verification),
+// searched outward from `start` (Ω; a guess such as a similar design's
+// winner; the answer does not depend on it, only the work does). With the
+// worst-case objective, every corner enumerated and no pair, it screens only
+// candidates that might win: the start value and its neighbours, the winner
+// so far from their branch and bound, then a few corners of that winner's
+// box (witnesses) evaluated on every other candidate — each a lower bound of
+// that candidate's worst case — and the most promising candidates the
+// bounds do not rule out, until every candidate is screened or ruled out.
+// It returns the same row as pick() over the whole list. Otherwise it is
+// pick() over the whole list. For other engines (grades --re-pick).
+PickRow pick_winner(const Scenario& scenario, const PickOptions& options, double start);
 
 // The three-point linearising resistor for branch resistances R1, R2, R3 at
 // three equally spaced temperatures; none when no positive value exists.

@@ -44,8 +44,10 @@ struct WorstCase {
 
 enum class CornerMethod { automatic, enumerate, directed };
 
+// `half_widths` false leaves own_half_width empty (for callers that read
+// only the band: the picker's ranking).
 WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures,
-                     CornerMethod method = CornerMethod::automatic);
+                     CornerMethod method = CornerMethod::automatic, bool half_widths = true);
 
 // The reading interval [lo, hi] in LSB: quantiser plus ± k_noise·σ/√M.
 struct ReadingInterval {
