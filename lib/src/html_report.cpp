@@ -333,7 +333,7 @@ HtmlDocument& HtmlDocument::chart(const svg::Chart& chart, std::string_view capt
 }
 
 HtmlDocument& HtmlDocument::caution(std::string_view text) {
-  body_ += "<div class=\"caution\" role=\"note\"><span class=\"mark\">\u26a0 Caution:</span> " + html_escape(text) +
+  body_ += "<div class=\"caution\" role=\"note\"><span class=\"mark\" aria-hidden=\"true\">\u26a0</span> " + html_escape(text) +
            "</div>\n";
   return *this;
 }
