@@ -12,6 +12,7 @@
 
 #include <gtest/gtest.h>
 
+#include "engine_fixture.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/divider.hpp"
 #include "thermargin/scenario.hpp"
@@ -20,26 +21,13 @@
 namespace thermargin {
 namespace {
 
-using Keys = std::vector<std::pair<std::string, std::string>>;
+using testing::design_with;
+using testing::ideal_converter;
 
 constexpr double exact_tolerance = 1e-9;  // K: the same arithmetic in another order
 constexpr double coefficient_tolerance = 1e-15;  // 1/K, Steinhart–Hart coefficients near 1e-4
 constexpr double relative_tolerance = 1e-12;     // one value computed two ways
 constexpr double output_tolerance = 1e-12;       // K, rounding and storage arithmetic on numbers near 20
-
-Design design_from(const Keys& keys) {
-  Scenario s;
-  for (const auto& [k, v] : keys) s.set(k, v, Where{Origin::command_line, "", 0, k});
-  return build_design(s);
-}
-
-Keys ideal(Keys extra) {
-  Keys k = {{"adc.bits", "24"},          {"adc.offset", "0"},          {"adc.gain_error", "0"},
-            {"adc.inl", "0"},            {"adc.noise", "0"},           {"sensor.dissipation", "0"},
-            {"firmware.conversion", "exact"}, {"firmware.resolution", "0"}, {"firmware.full_scale", "pow2"}};
-  k.insert(k.end(), extra.begin(), extra.end());
-  return k;
-}
 
 // The beta equation solved for T (IEC 60539-1), in °C.
 double beta_temperature(double r, double r25, double beta) {
@@ -49,7 +37,7 @@ double beta_temperature(double r, double r25, double beta) {
 TEST(FirmwareConversion, BetaConversionIsTheBetaEquationOfTheInvertedDivider) {
   // A code c of a 12-bit ADC, FS = 2^12: ρ = c/4096, R = R_fixed ρ/(1 − ρ)
   // for the sensor below the node (Ohm's law), T from the beta equation.
-  const Design d = design_from({{"sensor.r25", "10k"}, {"sensor.beta", "3435"}, {"divider.r_fixed", "12k"}});
+  const Design d = design_with({{"sensor.r25", "10k"}, {"sensor.beta", "3435"}, {"divider.r_fixed", "12k"}});
   const Firmware fw(d);
   for (double code : {300.0, 1000.5, 2048.0, 3900.25}) {
     const double rho = code / 4096.0;
@@ -61,7 +49,7 @@ TEST(FirmwareConversion, BetaConversionIsTheBetaEquationOfTheInvertedDivider) {
 TEST(FirmwareConversion, FirmwareBetaMayDifferFromTheSensors) {
   // The firmware uses its own r25/beta: a sensor of B = 3950 read with
   // B = 3900 reads right at 25 °C only.
-  const Design d = design_from(ideal({{"firmware.conversion", "beta"}, {"firmware.beta", "3900"}}));
+  const Design d = design_with(ideal_converter({{"firmware.conversion", "beta"}, {"firmware.beta", "3900"}}));
   const Chain chain(d);
   EXPECT_NEAR(chain.evaluate(nominal_deviations(), 25.0).error, 0.0, exact_tolerance);
   for (double t : {-20.0, 0.0, 60.0, 80.0}) {
@@ -73,7 +61,7 @@ TEST(FirmwareConversion, FirmwareBetaMayDifferFromTheSensors) {
 TEST(FirmwareConversion, FullScaleOfTwoToTheNMinusOneReadsTheRatioLarger) {
   // FS = 2^N − 1 (model.md §6): ρ = c/(2^N − 1) while the ADC's code is
   // V/V_ref·2^N; the systematic error is what the inverted divider makes of it.
-  const Design d = design_from(ideal({{"adc.bits", "12"}, {"firmware.full_scale", "pow2-minus-1"}}));
+  const Design d = design_with(ideal_converter({{"adc.bits", "12"}, {"firmware.full_scale", "pow2-minus-1"}}));
   const Chain chain(d);
   for (double t : {-20.0, 25.0, 80.0}) {
     const double r = 10e3 * std::exp(3950 * (1 / (t + kelvin_offset) - 1 / t0_kelvin));
@@ -87,7 +75,7 @@ TEST(FirmwareConversion, FullScaleOfTwoToTheNMinusOneReadsTheRatioLarger) {
 }
 
 TEST(FirmwareConversion, CodesOutsideTheDividerHaveNoConversion) {
-  const Design d = design_from({{"firmware.full_scale", "pow2-minus-1"}});
+  const Design d = design_with({{"firmware.full_scale", "pow2-minus-1"}});
   const Firmware fw(d);
   EXPECT_FALSE(fw.temperature(0.0));      // ρ = 0: no resistance
   EXPECT_FALSE(fw.temperature(4095.0));   // ρ = 1: an open sensor
@@ -98,9 +86,9 @@ TEST(FirmwareConversion, DefaultSteinhartHartPassesThroughTheCurveAtTheRangeEnds
   // model.md §6: the firmware's own a/b/c default to the Steinhart–Hart
   // curve through the nominal curve at t_min, the middle and t_max. A Pt1000
   // (IEC 60751) is then read exactly there and not quite between.
-  const Design d = design_from(ideal({{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"divider.r_fixed", "1k"},
-                                      {"firmware.conversion", "steinhart-hart"}, {"conditions.t_min", "0"},
-                                      {"conditions.t_max", "250"}}));
+  const Design d = design_with(ideal_converter({{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"divider.r_fixed", "1k"},
+                                                {"firmware.conversion", "steinhart-hart"}, {"conditions.t_min", "0"},
+                                                {"conditions.t_max", "250"}}));
   const Chain chain(d);
   for (double t : {0.0, 125.0, 250.0}) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, exact_tolerance) << t;
   EXPECT_GT(std::fabs(chain.evaluate(nominal_deviations(), 60.0).error), 1e-3);
@@ -109,7 +97,7 @@ TEST(FirmwareConversion, DefaultSteinhartHartPassesThroughTheCurveAtTheRangeEnds
 TEST(FirmwareConversion, SteinhartHartFittedToABetaCurveIsTheBetaCurve) {
   // A beta curve is 1/T = 1/T0 + (ln R − ln R25)/B: Steinhart–Hart with
   // C = 0, so the three-point fit reproduces it everywhere.
-  const Design d = design_from(ideal({{"firmware.conversion", "steinhart-hart"}}));
+  const Design d = design_with(ideal_converter({{"firmware.conversion", "steinhart-hart"}}));
   const Firmware fw(d);
   EXPECT_NEAR(fw.steinhart_hart().b, 1 / 3950.0, coefficient_tolerance);
   EXPECT_NEAR(fw.steinhart_hart().c, 0.0, coefficient_tolerance);
@@ -121,8 +109,8 @@ TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRang
   // For a sensor that is not a beta model, firmware.beta = sensor means the
   // B-value through the nominal curve at t_min and t_max (IEC 60539-1:
   // B = ln(R1/R2)/(1/T1 − 1/T2)), and r25 the value that curve gives at 25 °C.
-  const Design d = design_from(ideal({{"sensor.model", "steinhart-hart"}, {"firmware.conversion", "beta"},
-                                      {"conditions.t_min", "0"}, {"conditions.t_max", "60"}}));
+  const Design d = design_with(ideal_converter({{"sensor.model", "steinhart-hart"}, {"firmware.conversion", "beta"},
+                                                {"conditions.t_min", "0"}, {"conditions.t_max", "60"}}));
   const SteinhartHart sh{1.129148e-3, 2.34125e-4, 8.76741e-8};
   const double t1 = kelvin_offset, t2 = 60 + kelvin_offset;
   const double b = (ln_resistance(sh, t1) - ln_resistance(sh, t2)) / (1 / t1 - 1 / t2);
@@ -135,13 +123,13 @@ TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRang
 
 TEST(FirmwareConversion, OutputRoundingIsHalfUpToTheResolution) {
   // docs/model.md §6 step 4: ⌊t/r + ½⌋·r, the same half-up rule as the quantiser (model.md §5).
-  const Design d = design_from({{"firmware.resolution", "0.1"}});
+  const Design d = design_with({{"firmware.resolution", "0.1"}});
   const Firmware fw(d);
   EXPECT_NEAR(fw.round_output(21.34), 21.3, output_tolerance);
   EXPECT_NEAR(fw.round_output(21.36), 21.4, output_tolerance);
   EXPECT_NEAR(fw.round_output(21.25), 21.3, output_tolerance);  // half up
   EXPECT_NEAR(fw.round_output(-4.25), -4.2, output_tolerance);  // half up below zero too
-  const Design none = design_from({{"firmware.resolution", "0"}});
+  const Design none = design_with({{"firmware.resolution", "0"}});
   EXPECT_EQ(Firmware(none).round_output(21.3456), 21.3456);
 }
 
@@ -156,7 +144,7 @@ double ideal_code(const Design& d, double t) {
 TEST(FirmwareLookupTable, SpansTheRangeCodesWithAFivePercentMarginEachSide) {
   // docs/model.md: the codes of t_min and t_max, widened by 5 % of their span
   // at each end, within [1, 2^N − 2].
-  const Design d = design_from({{"firmware.conversion", "table"}, {"firmware.table_points", "33"}});
+  const Design d = design_with({{"firmware.conversion", "table"}, {"firmware.table_points", "33"}});
   const Firmware fw(d);  // the table lives in the firmware object
   const LookupTable& table = fw.table();
   const double lo = ideal_code(d, d.conditions.t_max), hi = ideal_code(d, d.conditions.t_min);
@@ -168,7 +156,7 @@ TEST(FirmwareLookupTable, SpansTheRangeCodesWithAFivePercentMarginEachSide) {
 }
 
 TEST(FirmwareLookupTable, StoresTheExactConversionAsIntegersOfTheUnit) {
-  const Design d = design_from({{"firmware.conversion", "table"}, {"firmware.table_unit", "0.01"}});
+  const Design d = design_with({{"firmware.conversion", "table"}, {"firmware.table_unit", "0.01"}});
   const Firmware fw(d);
   const LookupTable& table = fw.table();
   for (std::size_t k = 0; k < table.stored.size(); ++k) {
@@ -179,7 +167,7 @@ TEST(FirmwareLookupTable, StoresTheExactConversionAsIntegersOfTheUnit) {
 }
 
 TEST(FirmwareLookupTable, InterpolatesLinearlyBetweenStoredPoints) {
-  const Design d = design_from({{"firmware.conversion", "table"}});
+  const Design d = design_with({{"firmware.conversion", "table"}});
   const Firmware fw(d);
   const LookupTable& table = fw.table();
   for (std::size_t k = 0; k + 1 < table.stored.size(); k += 5) {
@@ -197,8 +185,8 @@ TEST(FirmwareLookupTable, MoreNodesReadCloserToTheExactConversion) {
   // 8 times the nodes make it about 64 times smaller (the node spacing is
   // rounded up to whole codes, so a little less).
   auto worst = [](const char* points) {
-    const Design d = design_from(ideal({{"adc.bits", "12"}, {"firmware.conversion", "table"},
-                                        {"firmware.table_points", points}, {"firmware.table_unit", "0.0001"}}));
+    const Design d = design_with(ideal_converter({{"adc.bits", "12"}, {"firmware.conversion", "table"},
+                                                  {"firmware.table_points", points}, {"firmware.table_unit", "0.0001"}}));
     const Chain chain(d);
     double w = 0.0;
     for (double t = -20.0; t <= 80.0; t += 0.25) w = std::max(w, std::fabs(chain.evaluate(nominal_deviations(), t).error));
@@ -212,14 +200,8 @@ TEST(FirmwareLookupTable, MoreNodesReadCloserToTheExactConversion) {
 TEST(FirmwareLookupTable, ATableSensorWhoseTableEndsAtTheRangeStillGetsALookupTable) {
   // Regression: the 5 % margin reached past the sensor table's ends, the first
   // point had no temperature and the lookup table came out empty.
-  const Design d = design_from(ideal({{"adc.bits", "12"},
-                                      {"sensor.model", "table"},
-                                      {"sensor.table_file", std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/ntc10k_sh_0_50.csv"},
-                                      {"conditions.t_min", "0"},
-                                      {"conditions.t_max", "50"},
-                                      {"requirement.window_min", "0"},
-                                      {"requirement.window_max", "50"},
-                                      {"firmware.conversion", "table"}}));
+  const Design d =
+      design_with(ideal_converter(testing::table_sensor_0_to_50({{"adc.bits", "12"}, {"firmware.conversion", "table"}})));
   const Chain chain(d);
   EXPECT_GE(chain.firmware().table().stored.size(), 30u);
   for (double t = 5.0; t <= 45.0; t += 5.0) {

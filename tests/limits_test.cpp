@@ -20,6 +20,7 @@
 #include <nlohmann/json.hpp>
 
 #include "cli_run.hpp"
+#include "engine_fixture.hpp"
 
 #include "thermargin/budget.hpp"
 #include "thermargin/chain.hpp"
@@ -27,8 +28,6 @@
 
 namespace thermargin {
 namespace {
-
-const std::string source_dir = THERMARGIN_SOURCE_DIR;
 
 using Outcome = testing::CliOutcome;
 Outcome thermargin(const std::string& args) { return testing::run_cli(args); }
@@ -70,7 +69,7 @@ std::vector<Limit> limits() {
        Status::runaway, true},
       // A table from 0 to 50 degC analysed from -20 to 80 degC.
       {"a sensor outside its table",
-       "--sensor.model=table --sensor.table_file=" + source_dir + "/tests/data/chain/ntc10k_sh_0_50.csv" +
+       "--sensor.model=table --sensor.table_file=" + testing::data_path("chain/ntc10k_sh_0_50.csv") +
            " --firmware.conversion=exact --requirement.window_min=10 --requirement.window_max=40" + quick,
        Status::out_of_table, false},
       // The firmware subtracts 1 MOhm of "lead resistance" from a 10k NTC:
@@ -213,9 +212,7 @@ TEST(ResourceLimits, AHugeRangeOrStepIsRefusedWithTheCountItWouldProduce) {
   EXPECT_EQ(wide.status, 2);
   EXPECT_NE(wide.err.find("gives 127001 temperatures; at most 100001"), std::string::npos) << wide.err;
   // The largest range accepted: exactly 100 001 temperatures.
-  Scenario s;
-  s.set("conditions.t_step", "1m", Where{Origin::command_line, "", 0, "conditions.t_step"});
-  EXPECT_EQ(build_design(s).conditions.temperatures().size(), 100001u);
+  EXPECT_EQ(testing::design_with({{"conditions.t_step", "1m"}}).conditions.temperatures().size(), 100001u);
   EXPECT_EQ(thermargin("check --conditions.t_step=1m").status, 0);
 }
 
@@ -226,10 +223,7 @@ namespace thermargin {
 namespace {
 
 Design with_units(const std::string& units, const std::string& averaging = "1") {
-  Scenario s;
-  s.set("montecarlo.units", units, Where{Origin::command_line, "", 0, "montecarlo.units"});
-  s.set("adc.averaging", averaging, Where{Origin::command_line, "", 0, "adc.averaging"});
-  return build_design(s);
+  return testing::design_with({{"montecarlo.units", units}, {"adc.averaging", averaging}});
 }
 
 TEST(ResourceLimits, AMonteCarloRunOfHoursIsRefusedUpFrontWithItsSizeAndEstimate) {

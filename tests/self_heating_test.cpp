@@ -7,7 +7,6 @@
 #include "thermargin/self_heating.hpp"
 
 #include <cmath>
-#include <cstdio>
 #include <optional>
 #include <sstream>
 #include <string>
@@ -16,6 +15,8 @@
 
 #include <gtest/gtest.h>
 
+#include "cli_run.hpp"
+#include "engine_fixture.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/nominal.hpp"
 #include "thermargin/scenario.hpp"
@@ -31,17 +32,8 @@ constexpr double solver_tolerance = 2 * self_heating_tolerance;  // K
 constexpr double scipy_tolerance = 2 * self_heating_tolerance;  // K
 constexpr double addition_tolerance = 1e-12;  // K, one rounding of a sum near 300 K
 
-Design design_from(const std::vector<std::pair<std::string, std::string>>& keys) {
-  Scenario s;
-  for (const auto& [k, v] : keys) s.set(k, v, Where{Origin::command_line, "", 0, k});
-  return build_design(s);
-}
-
-Design design_from_file(const std::string& name) {
-  Scenario s;
-  s.load_file(std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/" + name);
-  return build_design(s);
-}
+using testing::design_with;
+Design design_from_file(const std::string& name) { return design_with({}, testing::scenario_path(name)); }
 
 // --- the solver on rises of known fixed point -------------------------------
 
@@ -90,11 +82,11 @@ double rise_by_hand(const Design& d, double dissipation_deviation, double t_elem
 
 TEST(SelfHeating, RiseEqualsDutyTimesPowerOverDissipation) {
   const std::vector<Design> designs = {
-      design_from({{"divider.r_fixed", "3k3"}, {"supply.v_excitation", "5"}, {"sensor.dissipation", "1mW/K"}}),
-      design_from({{"divider.placement", "high"}, {"divider.r_fixed", "4k7"}, {"sensor.dissipation", "2mW/K"},
+      design_with({{"divider.r_fixed", "3k3"}, {"supply.v_excitation", "5"}, {"sensor.dissipation", "1mW/K"}}),
+      design_with({{"divider.placement", "high"}, {"divider.r_fixed", "4k7"}, {"sensor.dissipation", "2mW/K"},
                    {"divider.duty", "25%"}}),
-      design_from({{"divider.r_parallel", "47k"}, {"sensor.lead_resistance", "15"}, {"sensor.dissipation", "0.5mW/K"}}),
-      design_from({{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"divider.r_fixed", "220"},
+      design_with({{"divider.r_parallel", "47k"}, {"sensor.lead_resistance", "15"}, {"sensor.dissipation", "0.5mW/K"}}),
+      design_with({{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"divider.r_fixed", "220"},
                    {"sensor.dissipation", "3mW/K"}, {"sensor.lead_resistance", "0.8"}})};
   for (const Design& d : designs) {
     const Chain chain(d);
@@ -116,18 +108,12 @@ TEST(SelfHeating, RiseEqualsDutyTimesPowerOverDissipation) {
 std::vector<double> scipy_element_temperatures(const Design& d, const std::vector<double>& temperatures) {
   std::ostringstream command;
   command.precision(17);
-  command << THERMARGIN_PYTHON << " " << THERMARGIN_SOURCE_DIR << "/tests/reference/self_heating.py"
-          << " r25=" << d.sensor.r25 << " beta=" << d.sensor.beta << " r_fixed=" << d.divider.r_fixed
-          << " v_exc=" << d.supply.v_excitation << " duty=" << d.divider.duty << " dissipation=" << d.sensor.dissipation
-          << " lead=" << d.sensor.lead_resistance << " t=";
+  command << testing::reference_command("self_heating.py", "") << "r25=" << d.sensor.r25 << " beta=" << d.sensor.beta
+          << " r_fixed=" << d.divider.r_fixed << " v_exc=" << d.supply.v_excitation << " duty=" << d.divider.duty
+          << " dissipation=" << d.sensor.dissipation << " lead=" << d.sensor.lead_resistance << " t=";
   for (std::size_t i = 0; i < temperatures.size(); ++i) command << (i ? "," : "") << temperatures[i];
   if (d.divider.r_parallel) command << " r_par=" << *d.divider.r_parallel;
-  std::vector<double> values;
-  FILE* pipe = popen(command.str().c_str(), "r");
-  if (!pipe) return values;
-  for (double v; std::fscanf(pipe, "%lf", &v) == 1;) values.push_back(v);
-  EXPECT_EQ(pclose(pipe), 0) << command.str();
-  return values;
+  return testing::numbers_printed_by(command.str());
 }
 
 void expect_agrees_with_scipy(const Design& d) {
@@ -156,7 +142,7 @@ TEST(SelfHeating, AgreesWithScipyBrentqOnTheHighSideBatteryGuard) {
 
 TEST(SelfHeating, AgreesWithScipyBrentqWithLeadsAndAParallelResistor) {
   // An exaggerated divider so that the rise is large (about a kelvin).
-  expect_agrees_with_scipy(design_from({{"divider.r_fixed", "2k2"},
+  expect_agrees_with_scipy(design_with({{"divider.r_fixed", "2k2"},
                                         {"supply.v_excitation", "5V"},
                                         {"sensor.dissipation", "1mW/K"},
                                         {"sensor.lead_resistance", "25"},
@@ -165,7 +151,7 @@ TEST(SelfHeating, AgreesWithScipyBrentqWithLeadsAndAParallelResistor) {
 }
 
 TEST(SelfHeating, ZeroDissipationSwitchesItOff) {
-  const Design d = design_from({{"sensor.dissipation", "0"}});
+  const Design d = design_with({{"sensor.dissipation", "0"}});
   const Chain chain(d);
   for (double t : {-20.0, 25.0, 80.0}) {
     const FrontEnd fe = chain.front_end(nominal_deviations(), t);
@@ -178,7 +164,7 @@ TEST(SelfHeating, AbsurdExcitationIsRunawayNeverANumber) {
   // 50 V into a 100 Ω NTC with 0.1 mW/K: hundreds of watts would be needed
   // to hold the element anywhere near the medium.
   for (const char* r_fixed : {"1", "100"}) {
-    const Design d = design_from({{"sensor.r25", "100"},
+    const Design d = design_with({{"sensor.r25", "100"},
                                   {"divider.r_fixed", r_fixed},
                                   {"supply.v_excitation", "50V"},
                                   {"sensor.dissipation", "0.1mW/K"}});
@@ -196,12 +182,7 @@ TEST(SelfHeating, AbsurdExcitationIsRunawayNeverANumber) {
 TEST(SelfHeating, ElementHeatedPastTheEndOfItsTableIsOutOfTable) {
   // A sensor table that ends at 50 °C: the medium at 50 °C is inside it,
   // the self-heated element is not.
-  const Design d = design_from({{"sensor.model", "table"},
-                                {"sensor.table_file", std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/ntc10k_sh_0_50.csv"},
-                                {"conditions.t_min", "0"},
-                                {"conditions.t_max", "50"},
-                                {"requirement.window_min", "0"},
-                                {"requirement.window_max", "50"}});
+  const Design d = design_with(testing::table_sensor_0_to_50());
   const Chain chain(d);
   EXPECT_EQ(chain.front_end(nominal_deviations(), 49.0).status, Status::ok);
   EXPECT_EQ(chain.front_end(nominal_deviations(), 50.0).status, Status::out_of_table);

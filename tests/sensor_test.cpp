@@ -12,6 +12,7 @@
 
 #include <gtest/gtest.h>
 
+#include "engine_fixture.hpp"
 #include "thermargin/scenario.hpp"
 
 namespace thermargin {
@@ -22,19 +23,15 @@ constexpr double round_trip_tolerance = 1e-9;   // K
 constexpr double slope_relative_tolerance = 1e-7;  // central difference, h = 1e-3 K
 constexpr double pt1000_digits = 1e-9;           // Ω: 1385.055 is exact (R0·(1 + 100 A + 10⁴ B))
 
-Design design_from(const std::vector<std::pair<std::string, std::string>>& keys) {
-  Scenario s;
-  for (const auto& [k, v] : keys) s.set(k, v, Where{Origin::command_line, "", 0, k});
-  return build_design(s);
-}
+using testing::design_with;
 
-const std::string table_file = std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/ntc10k_sh_5K.csv";
+const std::string table_file = testing::data_path("chain/ntc10k_sh_5K.csv");
 
 std::vector<Design> every_model() {
-  return {design_from({{"sensor.model", "beta"}, {"sensor.r25", "4k7"}, {"sensor.beta", "3977"}}),
-          design_from({{"sensor.model", "steinhart-hart"}}),
-          design_from({{"sensor.model", "table"}, {"sensor.table_file", table_file}}),
-          design_from({{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"sensor.rtd_class", "B"}})};
+  return {design_with({{"sensor.model", "beta"}, {"sensor.r25", "4k7"}, {"sensor.beta", "3977"}}),
+          design_with({{"sensor.model", "steinhart-hart"}}),
+          design_with({{"sensor.model", "table"}, {"sensor.table_file", table_file}}),
+          design_with({{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"sensor.rtd_class", "B"}})};
 }
 
 double tk(double celsius) { return celsius + kelvin_offset; }
@@ -71,7 +68,7 @@ TEST(SensorCurve, RtdModelIsTheCallendarVanDusenCurveOfItsR0) {
 
 TEST(NtcSpread, BetaModelIsExactlyR25TimesOnePlusDeltaRAndBetaTimesOnePlusDeltaBeta) {
   // model.md §1: for the beta model the stretch is exactly a new R25 and B.
-  const Design d = design_from({{"sensor.model", "beta"}, {"sensor.r25", "10k"}, {"sensor.beta", "3435"}});
+  const Design d = design_with({{"sensor.model", "beta"}, {"sensor.r25", "10k"}, {"sensor.beta", "3435"}});
   for (const auto& [dr, db] : {std::pair{0.01, 0.0}, {0.0, -0.015}, {-0.05, 0.02}, {0.003, 0.007}}) {
     const SensorUnit unit(d.sensor, dr, db, 0.0);
     const BetaCurve expected{10e3 * (1 + dr), 3435 * (1 + db)};
@@ -135,12 +132,7 @@ TEST(RtdSpread, NtcDeviationsDoNotTouchAnRtd) {
 }
 
 TEST(SensorUnit, TableSensorIsUndefinedOutsideItsTable) {
-  const Design d = design_from({{"sensor.model", "table"},
-                                {"sensor.table_file", std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/ntc10k_sh_0_50.csv"},
-                                {"conditions.t_min", "0"},
-                                {"conditions.t_max", "50"},
-                                {"requirement.window_min", "0"},
-                                {"requirement.window_max", "50"}});
+  const Design d = design_with(testing::table_sensor_0_to_50());
   const SensorUnit unit(d.sensor, 0.01, 0.01, 0.0);
   EXPECT_TRUE(unit.ln_resistance(tk(25.0)));
   EXPECT_FALSE(unit.ln_resistance(tk(50.5)));
