@@ -1,35 +1,19 @@
 // `thermargin budget` as a user runs it: byte-identical output whatever the
 // thread count, different seeds giving different draws, the adaptive run
 // length, the verdict and --strict's exit status.
-#include <sys/wait.h>
-
-#include <cstdio>
-#include <memory>
 #include <string>
 
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
+#include "cli_run.hpp"
+
 namespace thermargin {
 namespace {
 
-struct CliRun {
-  int status;
-  std::string out;
-};
+using CliRun = testing::CliOutcome;
 
-CliRun budget(const std::string& args) {
-  const std::string cmd = std::string(THERMARGIN_CLI) + " budget " + args + " 2>/dev/null";
-  FILE* pipe = popen(cmd.c_str(), "r");
-  CliRun r{-1, {}};
-  if (!pipe) return r;
-  char buf[65536];
-  std::size_t n;
-  while ((n = std::fread(buf, 1, sizeof buf, pipe)) > 0) r.out.append(buf, n);
-  const int rc = pclose(pipe);
-  r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-  return r;
-}
+CliRun budget(const std::string& args) { return testing::run_cli("budget " + args); }
 
 const std::string quick = " --montecarlo.units=3000 --conditions.t_step=2 --format json";
 

@@ -3,11 +3,6 @@
 // what would be accepted, the exit status is 2, and --output leaves no file
 // behind; good input exits 0 with the documented JSON fields; points that
 // cannot be read carry a status, never a number.
-#include <sys/wait.h>
-#include <unistd.h>
-
-#include <algorithm>
-#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
@@ -17,6 +12,7 @@
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
+#include "cli_run.hpp"
 #include "thermargin/scenario.hpp"
 
 namespace thermargin {
@@ -27,50 +23,23 @@ namespace fs = std::filesystem;
 const fs::path source_dir(THERMARGIN_SOURCE_DIR);
 const std::string chain_data = (source_dir / "tests/data/chain").string();
 
-struct Outcome {
-  int status = -1;
-  std::string out, err;
-};
+using Outcome = testing::CliOutcome;
+using testing::slurp;
 
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
+// Each test in a scratch directory of its own.
 class Cli : public ::testing::Test {
  protected:
-  void SetUp() override {
-    dir_ = fs::temp_directory_path() /
-           ("thermargin_cli_" + std::to_string(::getpid()) + "_" +
-            ::testing::UnitTest::GetInstance()->current_test_info()->name());
-    fs::remove_all(dir_);
-    fs::create_directories(dir_);
-    fs::create_directories(dir_ / "work");
-  }
-  void TearDown() override { fs::remove_all(dir_); }
+  void SetUp() override { fs::create_directories(work()); }
+  fs::path work() const { return dir_.path / "work"; }
 
   // Runs `thermargin ARGS` in the scratch directory's work/ folder, stdout
-  // and stderr captured beside it (so that work/ holds only what the program wrote).
+  // and stderr captured outside it (so that work/ holds only what the program wrote).
   Outcome run(const std::string& args) {
-    const std::string command = "cd '" + (dir_ / "work").string() + "' && '" + THERMARGIN_CLI + "' " + args + " >'" +
-                                (dir_ / "stdout").string() + "' 2>'" + (dir_ / "stderr").string() + "'";
-    const int rc = std::system(command.c_str());
-    Outcome r;
-    r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-    r.out = slurp(dir_ / "stdout");
-    r.err = slurp(dir_ / "stderr");
-    return r;
+    return testing::run_shell("cd " + testing::shell_quote(work().string()) + " && " + testing::cli_command(args));
   }
-  void write(const std::string& name, const std::string& text) { std::ofstream(dir_ / "work" / name) << text; }
-  std::vector<std::string> work_files() const {
-    std::vector<std::string> names;
-    for (const auto& e : fs::directory_iterator(dir_ / "work")) names.push_back(e.path().filename().string());
-    std::sort(names.begin(), names.end());
-    return names;
-  }
-  fs::path dir_;
+  void write(const std::string& name, const std::string& text) { std::ofstream(work() / name) << text; }
+  std::vector<std::string> work_files() const { return dir_.names("work"); }
+  testing::ScratchDir dir_;
 };
 
 struct BadInput {
@@ -157,7 +126,7 @@ TEST_F(Cli, BudgetJsonCarriesTheInterfaceFields) {
   EXPECT_TRUE(r.out.empty());
   EXPECT_TRUE(r.err.empty()) << "no progress output when stderr is not a terminal: " << r.err;
   ASSERT_EQ(work_files(), std::vector<std::string>{"budget.json"});
-  const auto j = nlohmann::json::parse(slurp(dir_ / "work/budget.json"));
+  const auto j = nlohmann::json::parse(slurp(work() / "budget.json"));
   EXPECT_EQ(j["command"], "budget");
   EXPECT_EQ(j["units"]["temperature"], "degC");
   EXPECT_EQ(j["units"]["error"], "K");

@@ -22,9 +22,8 @@
 #include <vector>
 
 #include <gtest/gtest.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
+#include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/budget.hpp"
 #include "thermargin/caution.hpp"
@@ -43,47 +42,11 @@ constexpr double kClosedFormTolerance = 1e-4;  // K
 constexpr double kCostTolerance = 1e-12;       // sums of a few decimal prices
 constexpr std::uint64_t kUnits = 2000;         // Monte Carlo units per combination in these tests
 
-struct TempDir {
-  fs::path path;
-  TempDir() {
-    std::string tmpl = (fs::temp_directory_path() / "thermargin-grades-XXXXXX").string();
-    path = ::mkdtemp(tmpl.data());
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path, ec);
-  }
-  std::string write(const std::string& name, const std::string& text) const {
-    std::ofstream(path / name, std::ios::binary) << text;
-    return (path / name).string();
-  }
-};
+using testing::shell_quote;
+using Outcome = testing::CliOutcome;
+using TempDir = testing::ScratchDir;
 
-std::string quote(const std::string& s) {
-  std::string q = "'";
-  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
-
-struct Outcome {
-  int status = -1;
-  std::string out, err;
-};
-
-Outcome run(const std::string& command, const TempDir& dir) {
-  const fs::path out = dir.path / "stdout.txt", err = dir.path / "stderr.txt";
-  const int rc = std::system((command + " >" + quote(out.string()) + " 2>" + quote(err.string())).c_str());
-  Outcome r;
-  r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-  std::ostringstream a, b;
-  a << std::ifstream(out).rdbuf();
-  b << std::ifstream(err).rdbuf();
-  r.out = a.str();
-  r.err = b.str();
-  return r;
-}
-
-Outcome cli(const std::string& args, const TempDir& dir) { return run(quote(THERMARGIN_CLI) + " grades " + args, dir); }
+Outcome cli(const std::string& args) { return testing::run_cli("grades " + args); }
 
 // --- The catalogue whose answer is known by construction --------------------
 //
@@ -442,6 +405,33 @@ TEST(Grades, WithoutACombinationThatMeetsTheRequirementTheSummarySaysSo) {
 
 // --- Re-pick -------------------------------------------------------------------
 
+// quick(), re-picking the fixed resistor over `series` from `low` to `high`.
+GradesOptions re_pick_over(Series series, double low, double high) {
+  GradesOptions o = quick();
+  o.re_pick = true;
+  o.pick.series = series;
+  o.pick.range_low = low;
+  o.pick.range_high = high;
+  return o;
+}
+
+// `base` with the catalogue's settings of a row's combination.
+Scenario scenario_of(const Scenario& base, const Catalogue& cat, const GradeRow& r) {
+  Scenario s = base;
+  for (std::size_t k = 0; k < cat.slots.size(); ++k)
+    for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(r.choice[k])].settings) s.set(st.key, st.value, st.where);
+  return s;
+}
+
+// The row's re-picked resistor is the one the picker finds on its own, on one
+// thread and over the whole series, for the row's design `s`.
+void expect_the_pickers_winner(const GradeRow& r, const Scenario& s, const PickOptions& pick) {
+  PickOptions whole = pick;
+  whole.threads = 1;
+  ASSERT_TRUE(r.r_fixed);
+  EXPECT_EQ(*r.r_fixed, best_fixed_resistor(s, whole));
+}
+
 TEST(Grades, RePickGivesThePickersWinnerOverTheWholeSeriesAndTheEnginesFigures) {
   const Scenario base;
   const Catalogue cat = parse_catalogue(
@@ -451,21 +441,12 @@ TEST(Grades, RePickGivesThePickersWinnerOverTheWholeSeriesAndTheEnginesFigures) 
       "adc,internal,0,adc.bits=12\n"
       "adc,external-16,1.20,adc.bits=16;adc.offset=4;adc.gain_error=0.05%;adc.inl=2;adc.noise=1\n",
       "repick.csv");
-  GradesOptions o = quick();
-  o.re_pick = true;
-  o.pick.series = Series::e24;
-  o.pick.range_low = 1e3;
-  o.pick.range_high = 100e3;
+  const GradesOptions o = re_pick_over(Series::e24, 1e3, 100e3);
   const GradesResult g = evaluate_grades(base, cat, o);
   for (const auto& r : g.rows) {
     SCOPED_TRACE(g.choice_text(r));
-    Scenario s = base;
-    for (std::size_t k = 0; k < cat.slots.size(); ++k)
-      for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(r.choice[k])].settings) s.set(st.key, st.value, st.where);
-    PickOptions whole = o.pick;
-    whole.threads = 1;
-    ASSERT_TRUE(r.r_fixed);
-    EXPECT_EQ(*r.r_fixed, best_fixed_resistor(s, whole));
+    Scenario s = scenario_of(base, cat, r);
+    ASSERT_NO_FATAL_FAILURE(expect_the_pickers_winner(r, s, o.pick));
     // The figures taken over from the picker are the budget's on that design.
     s.set("divider.r_fixed", std::to_string(*r.r_fixed), Where{Origin::command_line, "", 0, "divider.r_fixed"});
     const Design d = build_design(s);
@@ -493,23 +474,14 @@ TEST(Grades, RePickFollowsAWinnerThatMovesFarBetweenNeighbouringCombinations) {
       "resistor,1%,0.002,divider.r_fixed_tol=1%\n"
       "resistor,0.1%,0.03,divider.r_fixed_tol=0.1%;divider.r_fixed_tempco=25ppm\n",
       "decade.csv");
-  GradesOptions o = quick();
-  o.re_pick = true;
-  o.pick.series = Series::e96;
-  o.pick.range_low = 1e3;
-  o.pick.range_high = 1e6;
+  const GradesOptions o = re_pick_over(Series::e96, 1e3, 1e6);
   const GradesResult g = evaluate_grades(base, cat, o);
   ASSERT_EQ(g.rows.size(), 4u);
   double smallest = 1e9, largest = 0.0;
   for (const auto& r : g.rows) {
     SCOPED_TRACE(g.choice_text(r));
-    Scenario s = base;
-    for (std::size_t k = 0; k < cat.slots.size(); ++k)
-      for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(r.choice[k])].settings) s.set(st.key, st.value, st.where);
-    PickOptions whole = o.pick;
-    whole.threads = 1;
-    ASSERT_TRUE(r.r_fixed);
-    EXPECT_EQ(*r.r_fixed, best_fixed_resistor(s, whole));
+    Scenario s = scenario_of(base, cat, r);
+    ASSERT_NO_FATAL_FAILURE(expect_the_pickers_winner(r, s, o.pick));
     smallest = std::min(smallest, *r.r_fixed);
     largest = std::max(largest, *r.r_fixed);
   }
@@ -524,7 +496,7 @@ TEST(Grades, RePickRefusesACatalogueThatGradesTheFixedResistorValue) {
     ADD_FAILURE() << "accepted";
   } catch (const input_error& e) {
     EXPECT_EQ(std::string(e.what()),
-              "column 4 (settings) = divider.r_fixed=10k (r.csv:2): --re-pick chooses divider.r_fixed for every "
+              "settings = divider.r_fixed=10k (r.csv:2:4): --re-pick chooses divider.r_fixed for every "
               "combination; grade the resistor's tolerance (divider.r_fixed_tol) instead, or drop --re-pick");
   }
 }
@@ -540,8 +512,8 @@ TEST(Grades, ASettingWithAnUnusableValueIsRefusedNamingItsLineAndColumn) {
     ADD_FAILURE() << "accepted";
   } catch (const input_error& e) {
     const std::string m = e.what();
-    EXPECT_EQ(m.rfind("sensor.r25_tol = abc (bad.csv:3): ", 0), 0u) << m;
-    EXPECT_NE(m.find("[set in column 4 (settings) by grade 'odd' of slot 'thermistor']"), std::string::npos) << m;
+    EXPECT_EQ(m.rfind("sensor.r25_tol = abc (bad.csv:3:4): ", 0), 0u) << m;
+    EXPECT_NE(m.find("[set by grade 'odd' of slot 'thermistor', bad.csv:3:4]"), std::string::npos) << m;
   }
   // Valid alone, invalid together: the window outside the range.
   const Catalogue pair = parse_catalogue(
@@ -567,19 +539,19 @@ struct Malformed {
 TEST(GradesCli, AMalformedCatalogueIsRefusedWithOneLineAndExitTwoAndNoOutput) {
   const std::string head = "slot,grade,unit_cost,settings\n";
   const std::vector<Malformed> cases{
-      {"unknown column", "slot,grade,price,settings\nx,y,1,\n", "", "column 3 = price (@:1)"},
+      {"unknown column", "slot,grade,price,settings\nx,y,1,\n", "", "header = price (@:1:3)"},
       {"missing column", "slot,grade,settings\nx,y,sensor.r25_tol=1%\n", "", "header = slot,grade,settings (@:1): the required column 'unit_cost' is missing"},
       {"setting naming no key", head + "thermistor,std,0.1,sensor.r25_tolerance=1%\n", "",
-       "column 4 (settings) = sensor.r25_tolerance=1% (@:2): 'sensor.r25_tolerance' names no scenario key"},
-      {"negative cost", head + "thermistor,std,-1,sensor.r25_tol=1%\n", "", "column 3 (unit_cost) = -1 (@:2)"},
+       "settings = sensor.r25_tolerance=1% (@:2:4): 'sensor.r25_tolerance' names no scenario key"},
+      {"negative cost", head + "thermistor,std,-1,sensor.r25_tol=1%\n", "", "unit_cost = -1 (@:2:3)"},
       {"duplicate grade", head + "thermistor,std,0.1,sensor.r25_tol=1%\nthermistor,std,0.2,sensor.r25_tol=2%\n", "",
-       "column 2 (grade) = std (@:3): slot 'thermistor' already has this grade (line 2)"},
+       "grade = std (@:3:2): slot 'thermistor' already has this grade (line 2)"},
       {"unusable value", head + "thermistor,std,0.1,sensor.r25_tol=-1%\n", "",
        "(@:2): must be"},
       {"setup cost without volume", "slot,grade,unit_cost,settings,setup_cost\nthermistor,std,0.1,,50\n", "",
        "--volume = (empty) (command line): the catalogue has setup costs (@:2)"},
       {"re-pick over a graded resistor value", head + "r,10k,0,divider.r_fixed=10k\n", " --re-pick",
-       "column 4 (settings) = divider.r_fixed=10k (@:2)"},
+       "settings = divider.r_fixed=10k (@:2:4)"},
       {"series without re-pick", head + "thermistor,std,0.1,\n", " --series e24", "--series = e24 (command line): applies only with --re-pick"},
       {"bad measure", head + "thermistor,std,0.1,\n", " --by average", "--by = average (command line): must be one of: worst-case | linear | monte-carlo"},
   };
@@ -588,7 +560,8 @@ TEST(GradesCli, AMalformedCatalogueIsRefusedWithOneLineAndExitTwoAndNoOutput) {
     TempDir dir;
     const std::string cat = dir.write("bad.csv", c.csv);
     const fs::path out = dir.path / "out.json";
-    const Outcome r = cli("--catalogue " + quote(cat) + c.extra + " --units 200 --format json --output " + quote(out.string()), dir);
+    const Outcome r =
+        cli("--catalogue " + shell_quote(cat) + c.extra + " --units 200 --format json --output " + shell_quote(out.string()));
     EXPECT_EQ(r.status, 2);
     std::string names = c.names;
     if (const auto at = names.find('@'); at != std::string::npos) names.replace(at, 1, cat);
@@ -597,8 +570,7 @@ TEST(GradesCli, AMalformedCatalogueIsRefusedWithOneLineAndExitTwoAndNoOutput) {
     EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
     EXPECT_FALSE(fs::exists(out));
   }
-  TempDir dir;
-  const Outcome missing = cli("--units 200", dir);
+  const Outcome missing = cli("--units 200");
   EXPECT_EQ(missing.status, 2);
   EXPECT_EQ(missing.err, "thermargin: --catalogue (command line): missing; give the CSV of part grades, e.g. --catalogue parts.csv\n");
 }
@@ -606,7 +578,7 @@ TEST(GradesCli, AMalformedCatalogueIsRefusedWithOneLineAndExitTwoAndNoOutput) {
 // The ideal design of the constructed catalogue as command-line options.
 std::string as_options(const Overrides& o) {
   std::string s;
-  for (const auto& [k, v] : o) s += " --" + k + "=" + quote(v);
+  for (const auto& [k, v] : o) s += " --" + k + "=" + shell_quote(v);
   return s;
 }
 
@@ -623,14 +595,12 @@ TEST(GradesCli, NumPyAgreesOnWorstCaseCostsFrontAndRecommendation) {
                                     "resistor,1%,0.01,divider.r_fixed_tol=1%,\n"
                                     "resistor,0.1%,0.03,\"divider.r_fixed_tol=0.1%\",\n");
   const fs::path json = dir.path / "grades.json";
-  const Outcome r = cli("--catalogue " + quote(cat) + as_options(constructed(60.0)) +
-                        " --volume 2000 --reject-cost 1.5 --mc-all --units 2000 --format json --output " + quote(json.string()),
-                    dir);
+  const Outcome r = cli("--catalogue " + shell_quote(cat) + as_options(constructed(60.0)) +
+                        " --volume 2000 --reject-cost 1.5 --mc-all --units 2000 --format json --output " +
+                        shell_quote(json.string()));
   ASSERT_EQ(r.status, 0) << r.err;
-  const Outcome py = run(std::string(THERMARGIN_PYTHON) + " " +
-                         quote(std::string(THERMARGIN_SOURCE_DIR) + "/tests/reference/grades_second_opinion.py") + " " +
-                         quote(cat) + " " + quote(json.string()) + " 3950 0 60 0.5 2000 1.5",
-                     dir);
+  const Outcome py = testing::run_shell(testing::reference_command(
+      "grades_second_opinion.py", shell_quote(cat) + " " + shell_quote(json.string()) + " 3950 0 60 0.5 2000 1.5"));
   ASSERT_EQ(py.status, 0) << py.err;
   const auto tool = nlohmann::json::parse(std::ifstream(json));
   const auto ref = nlohmann::json::parse(py.out);
@@ -655,24 +625,24 @@ TEST(GradesCli, NumPyAgreesOnWorstCaseCostsFrontAndRecommendation) {
 TEST(GradesCli, TextLeadsWithTheRecommendationAndCsvCarriesTheCaution) {
   TempDir dir;
   const std::string cat = dir.write("c.csv", kConstructed);
-  const Outcome text = cli("--catalogue " + quote(cat) + as_options(constructed(60.0)) + " --units 500", dir);
+  const Outcome text = cli("--catalogue " + shell_quote(cat) + as_options(constructed(60.0)) + " --units 500");
   ASSERT_EQ(text.status, 0) << text.err;
   EXPECT_LT(text.out.find("RECOMMENDATION: r25 = 1%, beta = 0.2%, resistor = 0.1% - 0.43 per unit"),
             text.out.find("Cost/accuracy front"));
   EXPECT_NE(text.out.find(std::string(caution)), std::string::npos);
-  const Outcome csv = cli("--catalogue " + quote(cat) + as_options(constructed(60.0)) + " --units 500 --format csv", dir);
+  const Outcome csv = cli("--catalogue " + shell_quote(cat) + as_options(constructed(60.0)) + " --units 500 --format csv");
   ASSERT_EQ(csv.status, 0) << csv.err;
   EXPECT_EQ(csv.out.rfind("# " + std::string(caution) + "\nr25,beta,resistor,r_fixed_ohm,unit_cost,", 0), 0u);
   EXPECT_EQ(std::count(csv.out.begin(), csv.out.end(), '\n'), 2 + 8);
   // --strict: 3 when nothing meets the requirement.
-  EXPECT_EQ(cli("--catalogue " + quote(cat) + as_options(ideal({{"requirement.max_error", "0.1"}})) + " --units 200 --strict", dir).status, 3);
+  EXPECT_EQ(cli("--catalogue " + shell_quote(cat) + as_options(ideal({{"requirement.max_error", "0.1"}})) + " --units 200 --strict").status, 3);
 }
 
 TEST(GradesCli, EveryShippedCatalogueRunsAgainstTheDesignItIsNamedAfter) {
   // scenarios/<design>_catalogue.csv beside scenarios/<design>.ini: run so
   // that none goes stale, with invented prices said so in the file.
   int found = 0;
-  for (const auto& e : fs::directory_iterator(std::string(THERMARGIN_SOURCE_DIR) + "/scenarios")) {
+  for (const auto& e : fs::directory_iterator(testing::source_path("scenarios"))) {
     const std::string name = e.path().filename().string();
     if (!name.ends_with("_catalogue.csv")) continue;
     SCOPED_TRACE(name);
@@ -682,10 +652,8 @@ TEST(GradesCli, EveryShippedCatalogueRunsAgainstTheDesignItIsNamedAfter) {
     std::ostringstream text;
     text << std::ifstream(e.path()).rdbuf();
     EXPECT_NE(text.str().find("INVENTED"), std::string::npos);
-    TempDir dir;
-    const Outcome r = cli(quote(design.string()) + " --catalogue " + quote(e.path().string()) +
-                              " --volume 5000 --units 500 --format json",
-                          dir);
+    const Outcome r = cli(shell_quote(design.string()) + " --catalogue " + shell_quote(e.path().string()) +
+                              " --volume 5000 --units 500 --format json");
     ASSERT_EQ(r.status, 0) << r.err;
     const auto j = nlohmann::json::parse(r.out);
     EXPECT_EQ(j["command"], "grades");

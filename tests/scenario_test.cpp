@@ -17,8 +17,8 @@
 #include <string>
 
 #include <gtest/gtest.h>
-#include <unistd.h>
 
+#include "cli_run.hpp"
 #include "thermargin/ntc.hpp"
 #include "thermargin/rt_data.hpp"
 #include "thermargin/text_file.hpp"
@@ -35,18 +35,7 @@ bool is_override(const std::string& key) { return key.ends_with("_dist") || key.
 // A scratch directory per test, removed afterwards.
 class ScenarioFile : public ::testing::Test {
  protected:
-  void SetUp() override {
-    dir_ = fs::temp_directory_path() /
-           ("thermargin_scenario_" + std::to_string(::getpid()) + "_" +
-            ::testing::UnitTest::GetInstance()->current_test_info()->name());
-    fs::create_directories(dir_);
-  }
-  void TearDown() override { fs::remove_all(dir_); }
-  std::string write(const std::string& name, const std::string& text) {
-    const fs::path p = dir_ / name;
-    std::ofstream(p) << text;
-    return p.string();
-  }
+  std::string write(const std::string& name, const std::string& text) { return dir_.write(name, text); }
   // The message of the input_error loading and building `text` raises.
   std::string refusal(const std::string& text) {
     const std::string path = write("bad.ini", text);
@@ -59,7 +48,7 @@ class ScenarioFile : public ::testing::Test {
     }
     return "";
   }
-  fs::path dir_;
+  testing::ScratchDir dir_;
 };
 
 TEST(DefaultScenario, FileHoldsTheBuiltInDesignKeyForKey) {
@@ -148,7 +137,7 @@ TEST_F(ScenarioFile, RefusesMalformedFilesWithFileAndLine) {
 
 TEST_F(ScenarioFile, RefusesBadValuesNamingKeyFileLineAndWhatIsAccepted) {
   // style.md: "divider.r_fixed = -10k (scenario.ini:12): must be > 0".
-  const std::string at = " (" + (dir_ / "bad.ini").string() + ":2): ";
+  const std::string at = " (" + (dir_.path / "bad.ini").string() + ":2): ";
   EXPECT_EQ(refusal("[divider]\nr_fixed = -10k\n"), "divider.r_fixed = -10k" + at + "must be > 0");
   EXPECT_EQ(refusal("[sensor]\nr25 = 0\n"), "sensor.r25 = 0" + at + "must be > 0");
   EXPECT_EQ(refusal("[divider]\nr_fixed_tol = 100%\n"),
@@ -165,7 +154,7 @@ TEST_F(ScenarioFile, ChecksBetweenTwoKeysNameTheOneThatWasSet) {
   // Only t_min is in the file: the refusal points at its line, not at the
   // default t_max.
   const std::string t_min = refusal("[conditions]\nt_min = 90\n");
-  EXPECT_NE(t_min.find("conditions.t_min = 90 (" + (dir_ / "bad.ini").string() + ":2)"), std::string::npos) << t_min;
+  EXPECT_NE(t_min.find("conditions.t_min = 90 (" + (dir_.path / "bad.ini").string() + ":2)"), std::string::npos) << t_min;
   const std::string t_max = refusal("[conditions]\nt_max = -30\n");
   EXPECT_NE(t_max.find("conditions.t_max = -30"), std::string::npos) << t_max;
   const std::string both = refusal("[conditions]\nt_min = 50\nt_max = 50\n");
@@ -175,7 +164,7 @@ TEST_F(ScenarioFile, ChecksBetweenTwoKeysNameTheOneThatWasSet) {
 }
 
 TEST_F(ScenarioFile, TableFileIsFoundBesideTheScenario) {
-  fs::copy_file(source_dir / "tests/data/chain/ntc10k_sh_5K.csv", dir_ / "probe.csv");
+  fs::copy_file(source_dir / "tests/data/chain/ntc10k_sh_5K.csv", dir_.path / "probe.csv");
   Scenario s;
   s.load_file(write("t.ini", "[sensor]\nmodel = table\ntable_file = probe.csv\n"));
   const Design d = build_design(s);
@@ -186,7 +175,7 @@ TEST_F(ScenarioFile, TableFileIsFoundBesideTheScenario) {
 TEST_F(ScenarioFile, TableToleranceNeeds25CInTheTable) {
   // The NTC spread is defined about 25 °C (model.md §1): a table without it
   // cannot carry an R25 or beta tolerance.
-  std::ofstream(dir_ / "cold.csv") << "t,r\n-40,336097\n-30,177000\n-20,97070\n-10,55330\n0,32650\n";
+  std::ofstream(dir_.path / "cold.csv") << "t,r\n-40,336097\n-30,177000\n-20,97070\n-10,55330\n0,32650\n";
   const std::string message = refusal("[sensor]\nmodel = table\ntable_file = cold.csv\n"
                                       "[conditions]\nt_min = -40\nt_max = 0\n"
                                       "[requirement]\nwindow_min = -40\nwindow_max = 0\n");
