@@ -14,7 +14,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
@@ -22,6 +21,7 @@
 #include <vector>
 
 #include "cli_run.hpp"
+#include "engine_fixture.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/error.hpp"
 #include "thermargin/scenario.hpp"
@@ -31,76 +31,24 @@ namespace {
 
 namespace fs = std::filesystem;
 
+using testing::cli_command;
+using testing::run_cli;
+using testing::run_shell;
+using testing::shell_quote;
+using testing::slurp;
+using Outcome = testing::CliOutcome;
+using TempDir = testing::ScratchDir;
+
 // Monte Carlo units for the CLI runs: enough for bands and a yield, quick.
 constexpr const char* kUnits = "--montecarlo.units=2000";
-const fs::path kScenarios = fs::path(THERMARGIN_SOURCE_DIR) / "scenarios";
-const std::string kChecker = std::string(THERMARGIN_SOURCE_DIR) + "/tests/reference/report_check.py";
 
-struct TempDir {
-  fs::path path;
-  TempDir() {
-    std::string tmpl = (fs::temp_directory_path() / "thermargin-report-XXXXXX").string();
-    path = ::mkdtemp(tmpl.data());
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path, ec);
-  }
-  std::vector<std::string> names(const fs::path& sub = {}) const {
-    std::vector<std::string> v;
-    for (const auto& e : fs::directory_iterator(path / sub)) v.push_back(e.path().filename().string());
-    std::sort(v.begin(), v.end());
-    return v;
-  }
-};
-
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-std::string quote(const std::string& s) {
-  std::string q = "'";
-  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
-
-struct Outcome {
-  int status = -1;
-  std::string out, err;
-};
-
-// Runs a shell command with stdout and stderr captured in files under `dir`.
-Outcome run(const std::string& command, const fs::path& dir) {
-  const fs::path out = dir / ".stdout", err = dir / ".stderr";
-  const int raw = std::system((command + " >" + quote(out.string()) + " 2>" + quote(err.string())).c_str());
-  Outcome r;
-  r.status = WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
-  r.out = slurp(out);
-  r.err = slurp(err);
-  fs::remove(out);
-  fs::remove(err);
-  return r;
-}
-
-std::string cli() { return quote(THERMARGIN_CLI); }
-
-Outcome budget(const std::string& args, const fs::path& dir) { return run(cli() + " budget " + args, dir); }
+Outcome budget(const std::string& args) { return run_cli("budget " + args); }
 
 // Reads the page and the JSON with the outside reader; "ok: 5 charts\n" when they agree.
 std::string check_report(const fs::path& html, const fs::path& json, const fs::path& plots = {}) {
-  std::string cmd = std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " " + quote(html.string()) + " " +
-                    quote(json.string());
-  if (!plots.empty()) cmd += " " + quote(plots.string());
-  std::string out;
-  FILE* p = ::popen((cmd + " 2>&1").c_str(), "r");
-  if (!p) return "(popen failed)";
-  char buf[4096];
-  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
-  ::pclose(p);
-  return out;
+  std::string args = shell_quote(html.string()) + " " + shell_quote(json.string());
+  if (!plots.empty()) args += " " + shell_quote(plots.string());
+  return testing::reference_output("report_check.py", args);
 }
 
 Budget budget_of(const Design& d) {
@@ -108,11 +56,9 @@ Budget budget_of(const Design& d) {
   return run_budget(chain);
 }
 
-Scenario scenario(const std::string& file, const std::vector<std::pair<std::string, std::string>>& overrides) {
-  Scenario s;
-  if (!file.empty()) s.load_file((kScenarios / file).string());
-  for (const auto& [k, v] : overrides) s.set(k, v, Where{Origin::command_line, "", 0, k});
-  return s;
+// A shipped scenario ("" for the built-in default) with settings from the command line.
+Scenario scenario(const std::string& file, const testing::Overrides& overrides) {
+  return testing::scenario_with(overrides, file.empty() ? "" : testing::scenario_path(file));
 }
 
 const svg::Series& series(const Figure& f, const std::string& name) {
@@ -243,39 +189,29 @@ class EveryScenario : public ::testing::TestWithParam<std::string> {};
 
 TEST_P(EveryScenario, ReportIsWellFormedAndPlotsExactlyTheJsonNumbers) {
   TempDir dir;
-  const std::string file = (kScenarios / GetParam()).string();
+  const std::string file = GetParam();
   // --plots into a directory that does not exist yet: it is created.
-  const Outcome r = budget(quote(file) + " " + kUnits + " --format json --output " + quote((dir.path / "b.json").string()) +
-                           " --report " + quote((dir.path / "review.html").string()) + " --plots " +
-                           quote((dir.path / "slides").string()),
-                       dir.path);
+  const Outcome r = budget(shell_quote(file) + " " + kUnits + " --format json --output " + shell_quote((dir.path / "b.json").string()) +
+                           " --report " + shell_quote((dir.path / "review.html").string()) + " --plots " +
+                           shell_quote((dir.path / "slides").string()));
   ASSERT_EQ(r.status, 0) << r.err;
   EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json", dir.path / "slides"), "ok: 5 charts\n");
 }
 
-std::vector<std::string> scenario_files() {
-  std::vector<std::string> v;
-  for (const auto& e : fs::directory_iterator(kScenarios))
-    if (e.path().extension() == ".ini") v.push_back(e.path().filename().string());
-  std::sort(v.begin(), v.end());
-  return v;
-}
-
-INSTANTIATE_TEST_SUITE_P(Scenarios, EveryScenario, ::testing::ValuesIn(scenario_files()),
+INSTANTIATE_TEST_SUITE_P(Scenarios, EveryScenario, ::testing::ValuesIn(testing::scenario_files()),
                          [](const auto& info) {
-                           std::string n = info.param.substr(0, info.param.size() - 4);
+                           std::string n = fs::path(info.param).stem().string();
                            std::replace(n.begin(), n.end(), '-', '_');
                            return n;
                          });
 
 TEST(BudgetReportCli, SaturationAndNoMonteCarloStillMatchTheJson) {
   TempDir dir;
-  const std::string file = quote((kScenarios / "fermentation_probe.ini").string());
+  const std::string file = shell_quote(testing::scenario_path("fermentation_probe.ini"));
   for (const std::string extra : {" --conditions.t_min=-20 --divider.r_fixed=10", " --no-mc"}) {
     const Outcome r = budget(file + " " + kUnits + extra + " --format json --output " +
-                             quote((dir.path / "b.json").string()) + " --report " +
-                             quote((dir.path / "review.html").string()),
-                         dir.path);
+                             shell_quote((dir.path / "b.json").string()) + " --report " +
+                             shell_quote((dir.path / "review.html").string()));
     ASSERT_EQ(r.status, 0) << r.err;
     EXPECT_EQ(check_report(dir.path / "review.html", dir.path / "b.json"), "ok: 5 charts\n") << extra;
   }
@@ -287,10 +223,9 @@ TEST(BudgetReportCli, ScenarioTitleWithMarkupAppearsEscaped) {
   TempDir dir;
   const std::string title = "<script>alert(\"x\")</script> Tom & Jerry's \"probe\"";
   std::ofstream(dir.path / "evil.ini") << "title = " << title << "\n";
-  const Outcome r = budget(quote((dir.path / "evil.ini").string()) + " " + kUnits + " --format json --output " +
-                           quote((dir.path / "b.json").string()) + " --report " +
-                           quote((dir.path / "review.html").string()),
-                       dir.path);
+  const Outcome r = budget(shell_quote((dir.path / "evil.ini").string()) + " " + kUnits + " --format json --output " +
+                           shell_quote((dir.path / "b.json").string()) + " --report " +
+                           shell_quote((dir.path / "review.html").string()));
   ASSERT_EQ(r.status, 0) << r.err;
   const std::string html = slurp(dir.path / "review.html");
   EXPECT_EQ(html.find("<script"), std::string::npos);
@@ -317,13 +252,12 @@ TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {
          "print(len(rows), len(bad))\n"
          "for r in rows:\n"
          "    if r[0] == 'title': print(r[1])\n";
-  const std::string reader = std::string(THERMARGIN_PYTHON) + " " + quote((dir.path / "read.py").string()) + " ";
+  const std::string reader = std::string(THERMARGIN_PYTHON) + " " + shell_quote((dir.path / "read.py").string()) + " ";
   // `check` prints the user's title as a cell: it must come back as text.
-  Outcome r = run(cli() + " check " + quote((dir.path / "formula.ini").string()) + " --format csv --output " +
-                  quote((dir.path / "check.csv").string()),
-              dir.path);
+  Outcome r = run_cli("check " + shell_quote((dir.path / "formula.ini").string()) + " --format csv --output " +
+                      shell_quote((dir.path / "check.csv").string()));
   ASSERT_EQ(r.status, 0) << r.err;
-  r = run(reader + quote((dir.path / "check.csv").string()), dir.path);
+  r = run_shell(reader + shell_quote((dir.path / "check.csv").string()));
   std::istringstream lines(r.out);
   std::string counts, title;
   std::getline(lines, counts);
@@ -331,11 +265,10 @@ TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {
   EXPECT_EQ(counts.substr(counts.find(' ') + 1), "0") << r.out << r.err;
   EXPECT_EQ(title, "'=HYPERLINK(\"http://example.invalid\",\"x\")");
   // The budget's CSV: every row as wide as the header, no cell a formula.
-  r = budget(quote((dir.path / "formula.ini").string()) + " " + kUnits + " --format csv --output " +
-                 quote((dir.path / "b.csv").string()),
-             dir.path);
+  r = budget(shell_quote((dir.path / "formula.ini").string()) + " " + kUnits + " --format csv --output " +
+                 shell_quote((dir.path / "b.csv").string()));
   ASSERT_EQ(r.status, 0) << r.err;
-  r = run(reader + quote((dir.path / "b.csv").string()), dir.path);
+  r = run_shell(reader + shell_quote((dir.path / "b.csv").string()));
   EXPECT_EQ(r.out.substr(r.out.find(' ') + 1, 2), "0\n") << r.out << r.err;
 }
 
@@ -344,7 +277,7 @@ TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {
 TEST(BudgetReportCli, MissingDirectoryFailsBeforeAnyWorkWithOneLine) {
   TempDir dir;
   const fs::path target = dir.path / "missing" / "review.html";
-  const Outcome r = budget(std::string(kUnits) + " --report " + quote(target.string()), dir.path);
+  const Outcome r = budget(std::string(kUnits) + " --report " + shell_quote(target.string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(r.out, "");  // refused before the analysis printed anything
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
@@ -356,7 +289,7 @@ TEST(BudgetReportCli, MissingDirectoryFailsBeforeAnyWorkWithOneLine) {
 TEST(BudgetPlotsCli, DirectoryWhoseParentIsMissingIsRefusedAndNothingIsCreated) {
   TempDir dir;
   const fs::path target = dir.path / "a" / "b";
-  const Outcome r = budget(std::string(kUnits) + " --plots " + quote(target.string()), dir.path);
+  const Outcome r = budget(std::string(kUnits) + " --plots " + shell_quote(target.string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
   EXPECT_NE(r.err.find("--plots = " + target.string() + " (command line)"), std::string::npos) << r.err;
@@ -368,7 +301,7 @@ TEST(BudgetPlotsCli, AFileThatCannotBeReplacedLeavesNoPartialSetOfPlots) {
   // neither the other three charts nor a staged file appear.
   TempDir dir;
   fs::create_directories(dir.path / "plots" / "contributors.svg");
-  const Outcome r = budget(std::string(kUnits) + " --plots " + quote((dir.path / "plots").string()), dir.path);
+  const Outcome r = budget(std::string(kUnits) + " --plots " + shell_quote((dir.path / "plots").string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
   EXPECT_NE(r.err.find("cannot write contributors.svg"), std::string::npos) << r.err;
@@ -403,8 +336,8 @@ TEST(BudgetReportCli, ReadOnlyReportKeepsItsContentsAndNoTemporaryIsLeft) {
   const fs::path target = dir.path / "review.html";
   std::ofstream(target) << "old";
   fs::permissions(target, fs::perms(0444));
-  const Outcome r = run(unprivileged(cli() + " budget " + kUnits + " --report " + quote(target.string()), dir.path),
-                    dir.path);
+  const Outcome r =
+      run_shell(unprivileged(cli_command("budget " + std::string(kUnits) + " --report " + shell_quote(target.string())), dir.path));
   EXPECT_EQ(r.status, 2) << r.err;
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
   EXPECT_NE(r.err.find(target.string()), std::string::npos) << r.err;
@@ -420,8 +353,8 @@ TEST(BudgetPlotsCli, ReadOnlyChartKeepsItsContentsAndNoOtherChartIsWritten) {
   std::ofstream(plots / "sensitivity.svg") << "old";
   fs::permissions(plots / "sensitivity.svg", fs::perms(0444));
   if (::geteuid() == 0) fs::permissions(plots, fs::perms::all);
-  const Outcome r = run(unprivileged(cli() + " budget " + kUnits + " --plots " + quote(plots.string()), dir.path),
-                    dir.path);
+  const Outcome r =
+      run_shell(unprivileged(cli_command("budget " + std::string(kUnits) + " --plots " + shell_quote(plots.string())), dir.path));
   EXPECT_EQ(r.status, 2) << r.err;
   EXPECT_NE(r.err.find("cannot write sensitivity.svg: the file is read-only"), std::string::npos) << r.err;
   EXPECT_EQ(slurp(plots / "sensitivity.svg"), "old");

@@ -10,12 +10,10 @@
 #include "thermargin/grades_report.hpp"
 
 #include <gtest/gtest.h>
-#include <unistd.h>
 
 #include <nlohmann/json.hpp>
 
 #include <algorithm>
-#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
@@ -23,14 +21,17 @@
 #include <vector>
 
 #include "cli_run.hpp"
+#include "engine_fixture.hpp"
 
 namespace thermargin {
 namespace {
 
 namespace fs = std::filesystem;
 
-const std::string kScenario = std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/fermentation_probe.ini";
-const std::string kChecker = std::string(THERMARGIN_SOURCE_DIR) + "/tests/reference/report_choice_check.py";
+using testing::shell_quote;
+using testing::slurp;
+
+const std::string kScenario = testing::scenario_path("fermentation_probe.ini");
 constexpr std::uint64_t kUnits = 2000;  // Monte Carlo units per combination: quick, enough for a yield
 
 // Three slots, twelve combinations; invented prices. One grade name carries
@@ -45,57 +46,26 @@ constexpr const char* kCatalogue =
     "adc,internal,0,adc.gain_error=0.1%;adc.offset=1;adc.inl=1,\n"
     "adc,external,1.20,adc.gain_error=0.02%;adc.offset=0.5;adc.inl=0.5,\n";
 
-struct TempDir {
-  fs::path path;
-  TempDir() {
-    std::string tmpl = (fs::temp_directory_path() / "thermargin-grades-report-XXXXXX").string();
-    path = ::mkdtemp(tmpl.data());
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path, ec);
-  }
-};
-
-std::string quote(const std::string& s) {
-  std::string q = "'";
-  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
-
-std::string output_of(const std::string& command) {
-  std::string out;
-  FILE* p = ::popen((command + " 2>&1").c_str(), "r");
-  if (!p) return "(popen failed)";
-  char buf[4096];
-  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
-  const int status = ::pclose(p);
-  if (status != 0) out += "(exit " + std::to_string(status) + ")";
-  return out;
-}
-
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
+// What the outside reader (tests/reference/report_choice_check.py) says of
+// the page and the plots against the JSON: "ok: 1 chart\n" when they agree.
+std::string reader_says(const fs::path& html, const fs::path& json, const fs::path& plots) {
+  return testing::reference_output("report_choice_check.py", "grades " + shell_quote(html.string()) + " " +
+                                                                 shell_quote(json.string()) + " " + shell_quote(plots.string()));
 }
 
 // `max_error` overrides the requirement ("" keeps the scenario's 0.5 K).
 // `cli_extra` goes to the CLI only, to show that the reader notices two different runs.
-std::string cli_and_report_agree(const TempDir& dir, const std::string& max_error, const std::string& cli_extra = "") {
+std::string cli_and_report_agree(const testing::ScratchDir& dir, const std::string& max_error, const std::string& cli_extra = "") {
   const fs::path cat = dir.path / "grades.csv", json = dir.path / "grades.json", html = dir.path / "grades.html",
                  plots = dir.path / "plots";
   std::ofstream(cat) << kCatalogue;
   const std::string over = max_error.empty() ? "" : " --requirement.max_error=" + max_error;
-  const std::string ran = output_of(quote(THERMARGIN_CLI) + " grades " + quote(kScenario) + over + " --catalogue " +
-                                    quote(cat.string()) + " --units " + std::to_string(kUnits) +
-                                    " --format json --output " + quote(json.string()) + cli_extra);
+  const std::string ran = testing::cli_output("grades " + shell_quote(kScenario) + over + " --catalogue " +
+                                             shell_quote(cat.string()) + " --units " + std::to_string(kUnits) +
+                                             " --format json --output " + shell_quote(json.string()) + cli_extra);
   if (!ran.empty()) return "CLI: " + ran;
-  Scenario s;
-  s.load_file(kScenario);
-  if (!max_error.empty())
-    s.set("requirement.max_error", max_error, Where{Origin::command_line, "", 0, "requirement.max_error"});
+  const Scenario s = testing::scenario_with(
+      max_error.empty() ? testing::Overrides{} : testing::Overrides{{"requirement.max_error", max_error}}, kScenario);
   const Design d = build_design(s);
   const Catalogue c = read_catalogue(cat.string());
   GradesOptions o;
@@ -103,12 +73,11 @@ std::string cli_and_report_agree(const TempDir& dir, const std::string& max_erro
   const GradesResult g = evaluate_grades(s, c, o);
   write_report(html.string(), grades_report_html(d, s, c, g, kScenario));
   write_figures("--plots", plots.string(), grades_figures(g));
-  return output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " grades " + quote(html.string()) + " " +
-                   quote(json.string()) + " " + quote(plots.string()));
+  return reader_says(html, json, plots);
 }
 
 TEST(GradesReport, ChartAndTableMatchTheGradesJsonWithARecommendation) {
-  TempDir dir;
+  testing::ScratchDir dir;
   EXPECT_EQ(cli_and_report_agree(dir, ""), "ok: 1 chart\n");
   const std::string html = slurp(dir.path / "grades.html");
   EXPECT_EQ(html.find("<b>0.2%"), std::string::npos);
@@ -117,14 +86,14 @@ TEST(GradesReport, ChartAndTableMatchTheGradesJsonWithARecommendation) {
 }
 
 TEST(GradesReport, NoCombinationMeetingTheRequirementIsAFailWithNothingRinged) {
-  TempDir dir;
+  testing::ScratchDir dir;
   EXPECT_EQ(cli_and_report_agree(dir, "0.1"), "ok: 1 chart\n");
   EXPECT_NE(slurp(dir.path / "grades.html").find("class=\"verdict fail\""), std::string::npos);
 }
 
 TEST(GradesReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
   // The CLI measures error by the linear band, the page by the worst case.
-  TempDir dir;
+  testing::ScratchDir dir;
   const std::string out = cli_and_report_agree(dir, "", " --by linear");
   EXPECT_EQ(out.rfind("FAIL: ", 0), 0u) << out;
 }
@@ -134,16 +103,16 @@ TEST(GradesReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
 // The fermentation probe with its demo catalogue (36 combinations, one grade
 // with a setup cost, hence --volume); few Monte Carlo units and temperatures
 // every 5 K keep the run short.
-const std::string kCliGrades = quote(kScenario) + " --catalogue " +
-                               quote(std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/fermentation_probe_catalogue.csv") +
+const std::string kCliGrades = shell_quote(kScenario) + " --catalogue " +
+                               shell_quote(testing::scenario_path("fermentation_probe_catalogue.csv")) +
                                " --volume 5000 --units 500 --conditions.t_step=5";
 
 TEST(GradesReportCli, FermentationProbeReportAndPlotsHoldTheNumbersOfTheSameRunsJson) {
-  TempDir dir;
+  testing::ScratchDir dir;
   const fs::path json = dir.path / "grades.json", html = dir.path / "grades.html", plots = dir.path / "slides";
   // --plots into a directory that does not exist yet: it is created.
-  const auto r = testing::run_cli("grades " + kCliGrades + " --format json --output " + quote(json.string()) +
-                                  " --report " + quote(html.string()) + " --plots " + quote(plots.string()));
+  const auto r = testing::run_cli("grades " + kCliGrades + " --format json --output " + shell_quote(json.string()) +
+                                  " --report " + shell_quote(html.string()) + " --plots " + shell_quote(plots.string()));
   ASSERT_EQ(r.status, 0) << r.err;
   // The run has what the chart must show: a front of several combinations
   // and a recommendation.
@@ -151,9 +120,7 @@ TEST(GradesReportCli, FermentationProbeReportAndPlotsHoldTheNumbersOfTheSameRuns
   EXPECT_EQ(j["combinations"], 36);
   EXPECT_GE(j["front"].size(), 2u);
   EXPECT_FALSE(j["recommendation"].is_null());
-  EXPECT_EQ(output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " grades " + quote(html.string()) + " " +
-                      quote(json.string()) + " " + quote(plots.string())),
-            "ok: 1 chart\n");
+  EXPECT_EQ(reader_says(html, json, plots), "ok: 1 chart\n");
 }
 
 TEST(GradesReportCli, ADestinationThatCannotBeWrittenIsRefusedBeforeAnyWorkWithOneLine) {

@@ -11,13 +11,13 @@
 
 #include <algorithm>
 #include <csignal>
-#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
 #include <string>
 #include <vector>
 
+#include "cli_run.hpp"
 #include "thermargin/error.hpp"
 #include "thermargin/svg_chart.hpp"
 
@@ -26,42 +26,9 @@ namespace {
 
 namespace fs = std::filesystem;
 
-struct TempDir {
-  fs::path path;
-  TempDir() {
-    std::string tmpl = (fs::temp_directory_path() / "thermargin-html-XXXXXX").string();
-    path = ::mkdtemp(tmpl.data());
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::permissions(path, fs::perms::owner_all, fs::perm_options::add, ec);
-    fs::remove_all(path, ec);
-  }
-  std::vector<std::string> names() const {
-    std::vector<std::string> v;
-    for (const auto& e : fs::directory_iterator(path)) v.push_back(e.path().filename().string());
-    std::sort(v.begin(), v.end());
-    return v;
-  }
-};
-
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-std::string run(const std::string& command) {
-  std::string out;
-  FILE* p = ::popen(command.c_str(), "r");
-  if (!p) return "(popen failed)";
-  char buf[4096];
-  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
-  int status = ::pclose(p);
-  if (status != 0) out += "(exit " + std::to_string(status) + ")";
-  return out;
-}
+using testing::output_of;
+using testing::slurp;
+using TempDir = testing::ScratchDir;
 
 // The message of the input_error that `f` throws, or "(no error)".
 template <class F>
@@ -140,7 +107,7 @@ TEST(CsvCell, PythonsCsvReaderGetsTheIntendedFieldsBack) {
          "rows = list(csv.reader(open(sys.argv[1], newline='', encoding='utf-8')))\n"
          "assert len(rows) == 1, rows\n"
          "sys.stdout.write(''.join(f + '\\x1f' for f in rows[0]))\n";
-  EXPECT_EQ(run(std::string(THERMARGIN_PYTHON) + " " + (dir.path / "read.py").string() + " " +
+  EXPECT_EQ(output_of(std::string(THERMARGIN_PYTHON) + " " + (dir.path / "read.py").string() + " " +
                 (dir.path / "row.csv").string()),
             expected);
 }
@@ -313,7 +280,7 @@ TEST(HtmlDocument, PythonXmlParserReadsTheWholeReport) {
          "print(''.join(root.find('.//figcaption').itertext()))\n"
          "print(len(root.findall('.//tbody/tr')))\n"
          "print(len(root.findall('.//script')))\n";
-  std::istringstream out(run(std::string(THERMARGIN_PYTHON) + " " + (dir.path / "read.py").string() + " " +
+  std::istringstream out(output_of(std::string(THERMARGIN_PYTHON) + " " + (dir.path / "read.py").string() + " " +
                              file.string()));
   std::vector<std::string> lines;
   for (std::string l; std::getline(out, l);) lines.push_back(l);

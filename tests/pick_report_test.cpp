@@ -9,25 +9,25 @@
 #include "thermargin/pick_report.hpp"
 
 #include <gtest/gtest.h>
-#include <unistd.h>
 
 #include <nlohmann/json.hpp>
 
 #include <algorithm>
-#include <cstdio>
 #include <filesystem>
 #include <string>
 #include <vector>
 
 #include "cli_run.hpp"
+#include "engine_fixture.hpp"
 
 namespace thermargin {
 namespace {
 
 namespace fs = std::filesystem;
 
-const std::string kScenario = std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/fermentation_probe.ini";
-const std::string kChecker = std::string(THERMARGIN_SOURCE_DIR) + "/tests/reference/report_choice_check.py";
+using testing::shell_quote;
+
+const std::string kScenario = testing::scenario_path("fermentation_probe.ini");
 // Ohm values from far too small (the ADC saturates: 1 and 10 ohm against a
 // 10 kohm NTC) to far too large, and a self-heating limit that rules out the
 // low ones: every kind of row a pick chart has.
@@ -36,35 +36,6 @@ const std::string kValues = "1,10,1k,4k7,10k,12k,22k,47k,100k";
 const std::string kPairValues = "1,4k7,12k,47k";
 constexpr double kMaxSelfHeating = 0.06;  // K
 constexpr double kLimit = 0.5;            // K, the scenario's requirement.max_error
-
-struct TempDir {
-  fs::path path;
-  TempDir() {
-    std::string tmpl = (fs::temp_directory_path() / "thermargin-pick-report-XXXXXX").string();
-    path = ::mkdtemp(tmpl.data());
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path, ec);
-  }
-};
-
-std::string quote(const std::string& s) {
-  std::string q = "'";
-  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
-
-std::string output_of(const std::string& command) {
-  std::string out;
-  FILE* p = ::popen((command + " 2>&1").c_str(), "r");
-  if (!p) return "(popen failed)";
-  char buf[4096];
-  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
-  const int status = ::pclose(p);
-  if (status != 0) out += "(exit " + std::to_string(status) + ")";
-  return out;
-}
 
 PickOptions options(bool parallel) {
   PickOptions o;
@@ -75,20 +46,24 @@ PickOptions options(bool parallel) {
   return o;
 }
 
-Scenario scenario() {
-  Scenario s;
-  s.load_file(kScenario);
-  return s;
+Scenario scenario() { return testing::scenario_with({}, kScenario); }
+
+// What the outside reader (tests/reference/report_choice_check.py) says of
+// the page and the plots against the JSON: "ok: 1 chart\n" when they agree.
+std::string reader_says(const fs::path& html, const fs::path& json, const fs::path& plots) {
+  return testing::reference_output("report_choice_check.py", "pick " + shell_quote(html.string()) + " " +
+                                                                 shell_quote(json.string()) + " " + std::to_string(kLimit) +
+                                                                 " " + shell_quote(plots.string()));
 }
 
 // The same pick through the CLI (JSON) and in process (report), compared by the outside reader.
 // `cli_extra` goes to the CLI only, to show that the reader notices two different runs.
-std::string cli_and_report_agree(bool parallel, const TempDir& dir, const std::string& cli_extra = "") {
+std::string cli_and_report_agree(bool parallel, const testing::ScratchDir& dir, const std::string& cli_extra = "") {
   const fs::path json = dir.path / "pick.json", html = dir.path / "pick.html", plots = dir.path / "plots";
-  const std::string cli = quote(THERMARGIN_CLI) + " pick " + quote(kScenario) + " --values " + (parallel ? kPairValues : kValues) +
-                          " --max-self-heating 0.06 --top 100" + (parallel ? " --parallel" : "") + cli_extra +
-                          " --format json --output " + quote(json.string());
-  const std::string ran = output_of(cli);
+  const std::string ran = testing::cli_output("pick " + shell_quote(kScenario) + " --values " +
+                                             (parallel ? kPairValues : kValues) + " --max-self-heating 0.06 --top 100" +
+                                             (parallel ? " --parallel" : "") + cli_extra + " --format json --output " +
+                                             shell_quote(json.string()));
   if (!ran.empty()) return "CLI: " + ran;
   const Scenario s = scenario();
   const Design d = build_design(s);
@@ -96,24 +71,23 @@ std::string cli_and_report_agree(bool parallel, const TempDir& dir, const std::s
   const PickResult r = pick(s, o);
   write_report(html.string(), pick_report_html(d, s, r, o, kScenario));
   write_figures("--plots", plots.string(), pick_figures(d, r));
-  return output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " pick " + quote(html.string()) + " " +
-                   quote(json.string()) + " " + std::to_string(kLimit) + " " + quote(plots.string()));
+  return reader_says(html, json, plots);
 }
 
 TEST(PickReport, ChartAndTablesMatchThePickJson) {
-  TempDir dir;
+  testing::ScratchDir dir;
   EXPECT_EQ(cli_and_report_agree(false, dir), "ok: 1 chart\n");
 }
 
 TEST(PickReport, PairSearchMatchesThePickJsonToo) {
-  TempDir dir;
+  testing::ScratchDir dir;
   EXPECT_EQ(cli_and_report_agree(true, dir), "ok: 1 chart\n");
 }
 
 TEST(PickReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
   // A smaller current limit on the CLI rules out more values than the page
   // shows as ruled out.
-  TempDir dir;
+  testing::ScratchDir dir;
   const std::string out = cli_and_report_agree(false, dir, " --max-current 150u");
   EXPECT_EQ(out.rfind("FAIL: ", 0), 0u) << out;
 }
@@ -156,15 +130,15 @@ TEST(PickFigures, UnreadableCandidatesAreGapsInsideTheRuledOutRegion) {
 // row kept, with the self-heating limit that rules out 1 to 10 kohm (the
 // bead dissipates more with a smaller fixed resistor); temperatures every
 // 5 K keep the run short.
-const std::string kCliPick = quote(kScenario) + " --series e12 --range 1k..1M --max-self-heating 0.06 --top 100" +
+const std::string kCliPick = shell_quote(kScenario) + " --series e12 --range 1k..1M --max-self-heating 0.06 --top 100" +
                              " --conditions.t_step=5";
 
 TEST(PickReportCli, FermentationProbeReportAndPlotsHoldTheNumbersOfTheSameRunsJson) {
-  TempDir dir;
+  testing::ScratchDir dir;
   const fs::path json = dir.path / "pick.json", html = dir.path / "pick.html", plots = dir.path / "slides";
   // --plots into a directory that does not exist yet: it is created.
-  const auto r = testing::run_cli("pick " + kCliPick + " --format json --output " + quote(json.string()) + " --report " +
-                                  quote(html.string()) + " --plots " + quote(plots.string()));
+  const auto r = testing::run_cli("pick " + kCliPick + " --format json --output " + shell_quote(json.string()) + " --report " +
+                                  shell_quote(html.string()) + " --plots " + shell_quote(plots.string()));
   ASSERT_EQ(r.status, 0) << r.err;
   // The run has what the chart must show: ruled-out values (a hatched
   // region), values within the limit, and a winner among them.
@@ -175,9 +149,7 @@ TEST(PickReportCli, FermentationProbeReportAndPlotsHoldTheNumbersOfTheSameRunsJs
   EXPECT_GT(ruled_out, 0u);
   EXPECT_LT(ruled_out, j["rows"].size());
   EXPECT_TRUE(j["winner"]["violations"].empty());
-  EXPECT_EQ(output_of(std::string(THERMARGIN_PYTHON) + " " + quote(kChecker) + " pick " + quote(html.string()) + " " +
-                      quote(json.string()) + " " + std::to_string(kLimit) + " " + quote(plots.string())),
-            "ok: 1 chart\n");
+  EXPECT_EQ(reader_says(html, json, plots), "ok: 1 chart\n");
 }
 
 TEST(PickReportCli, ADestinationThatCannotBeWrittenIsRefusedBeforeAnyWorkWithOneLine) {

@@ -13,12 +13,14 @@
 #include <unistd.h>
 
 #include <cstdio>
-#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
 #include <string>
 
+#include "cli_run.hpp"
+
+namespace thermargin {
 namespace {
 
 namespace fs = std::filesystem;
@@ -32,53 +34,25 @@ constexpr int kMinColours = 200;
 constexpr double kMinInk = 0.03, kMaxInk = 0.9;  // share of pixels that are not near white
 constexpr double kMinDark = 0.005;                // share of dark pixels: text and lines
 
-struct TempDir {
-  fs::path path;
-  TempDir() {
-    std::string tmpl = (fs::temp_directory_path() / "thermargin-browser-XXXXXX").string();
-    path = ::mkdtemp(tmpl.data());
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path, ec);
-  }
-};
-
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-std::string quote(const std::string& s) {
-  std::string q = "'";
-  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
-
-int shell(const std::string& command) {
-  const int raw = std::system(command.c_str());
-  return WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
-}
+using testing::shell_quote;
+using TempDir = testing::ScratchDir;
 
 // Screenshots `page` into `png`; returns Chromium's log (stderr). A fresh
 // profile directory each time, and every background service off, so the run
 // neither depends on nor touches anything outside `dir`.
 std::string screenshot(const fs::path& page, const fs::path& png, const fs::path& dir) {
-  const fs::path profile = dir / "profile", log = dir / "chromium.log";
+  const fs::path profile = dir / "profile";
   fs::create_directory(profile);
   const std::string cmd =
       "timeout 180 " + std::string(kChromium) +
       " --headless --no-sandbox --disable-gpu --disable-quic --no-first-run --disable-background-networking"
       " --disable-component-update --disable-sync --disable-extensions --hide-scrollbars"
       " --enable-logging=stderr --v=0 --user-data-dir=" +
-      quote(profile.string()) + " --window-size=" + std::to_string(kWidth) + "," + std::to_string(kHeight) +
-      " --screenshot=" + quote(png.string()) + " " + quote("file://" + page.string()) + " >/dev/null 2>" +
-      quote(log.string());
-  const int status = shell(cmd);
-  std::string text = slurp(log);
-  if (status != 0) text += "\n(chromium exit status " + std::to_string(status) + ")";
+      shell_quote(profile.string()) + " --window-size=" + std::to_string(kWidth) + "," + std::to_string(kHeight) +
+      " --screenshot=" + shell_quote(png.string()) + " " + shell_quote("file://" + page.string()) + " >/dev/null";
+  const testing::CliOutcome r = testing::run_shell(cmd);
+  std::string text = r.err;
+  if (r.status != 0) text += "\n(chromium exit status " + std::to_string(r.status) + ")";
   return text;
 }
 
@@ -103,24 +77,19 @@ TEST(ReportInBrowser, OpensWithoutConsoleErrorsAndRendersTheReport) {
   ASSERT_TRUE(have_chromium()) << kNoChromium;
   TempDir dir;
   const fs::path page = dir.path / "review.html", png = dir.path / "shot.png";
-  const std::string scenario = std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/fermentation_probe.ini";
-  ASSERT_EQ(shell(quote(THERMARGIN_CLI) + " budget " + quote(scenario) +
-                  " --montecarlo.units=2000 --output /dev/null --report " + quote(page.string())),
+  const std::string scenario = testing::scenario_path("fermentation_probe.ini");
+  ASSERT_EQ(testing::run_cli("budget " + shell_quote(scenario) + " --montecarlo.units=2000 --output /dev/null --report " +
+                             shell_quote(page.string()))
+                .status,
             0);
   const std::string log = screenshot(page, png, dir.path);
   EXPECT_EQ(console_errors(log), "") << log;
   ASSERT_TRUE(fs::exists(png)) << log;
 
-  FILE* p = ::popen((std::string(THERMARGIN_PYTHON) + " " + quote(std::string(THERMARGIN_SOURCE_DIR) +
-                                                                 "/tests/reference/report_png.py") +
-                     " " + quote(png.string()) + " 2>&1")
-                        .c_str(),
-                    "r");
-  ASSERT_NE(p, nullptr);
+  const std::string read = testing::reference_output("report_png.py", shell_quote(png.string()));
   int width = 0, height = 0, colours = 0;
   double ink = 0, dark = 0;
-  const int fields = std::fscanf(p, "%d %d %d %lf %lf", &width, &height, &colours, &ink, &dark);
-  ::pclose(p);
+  const int fields = std::sscanf(read.c_str(), "%d %d %d %lf %lf", &width, &height, &colours, &ink, &dark);
   ASSERT_EQ(fields, 5) << "report_png.py did not read the screenshot";
   EXPECT_EQ(width, kWidth);
   EXPECT_EQ(height, kHeight);
@@ -142,3 +111,4 @@ TEST(ReportInBrowser, TheConsoleCheckSeesAScriptErrorOnAPageThatHasOne) {
 }
 
 }  // namespace
+}  // namespace thermargin

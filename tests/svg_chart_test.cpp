@@ -6,7 +6,6 @@
 #include "thermargin/svg_chart.hpp"
 
 #include <gtest/gtest.h>
-#include <unistd.h>
 
 #include <array>
 #include <cmath>
@@ -20,6 +19,8 @@
 #include <sstream>
 #include <string>
 #include <vector>
+
+#include "cli_run.hpp"
 
 namespace thermargin::svg {
 namespace {
@@ -493,25 +494,8 @@ TEST(SvgPalette, TheFirstFourSlotsDifferInLightnessAndEverySlotInDashAndMarker) 
 
 // ------------------------------------------------------------ outside view
 
-struct TempDir {
-  std::filesystem::path path;
-  TempDir() {
-    std::string tmpl = (std::filesystem::temp_directory_path() / "thermargin-svg-XXXXXX").string();
-    path = ::mkdtemp(tmpl.data());
-  }
-  ~TempDir() { std::filesystem::remove_all(path); }
-};
-
-std::string run(const std::string& command) {
-  std::string out;
-  FILE* p = ::popen(command.c_str(), "r");
-  if (!p) return "(popen failed)";
-  char buf[4096];
-  while (std::size_t n = std::fread(buf, 1, sizeof buf, p)) out.append(buf, n);
-  int status = ::pclose(p);
-  if (status != 0) out += "(exit " + std::to_string(status) + ")";
-  return out;
-}
+using testing::output_of;
+using TempDir = testing::ScratchDir;
 
 // Parses the file with xml.etree and prints: series count, the names in
 // order, the data-x of "wc_high", how many curve and area points fall
@@ -568,7 +552,7 @@ TEST(SvgChart, PythonXmlParserReadsTheChartAndItsSeries) {
   std::filesystem::path script = dir.path / "inspect.py";
   std::ofstream(script) << kInspect;
 
-  std::istringstream out(run(std::string(THERMARGIN_PYTHON) + " " + script.string() + " " + file.string()));
+  std::istringstream out(output_of(std::string(THERMARGIN_PYTHON) + " " + script.string() + " " + file.string()));
   std::string count, names, wc_x, outside, title;
   std::getline(out, count);
   std::getline(out, names);

@@ -261,10 +261,9 @@ def pct3(x):
     return "%.3f %%" % (100 * x)
 
 
-def main():
-    html_path, json_path = sys.argv[1], sys.argv[2]
+def parse_page(html_path):
+    """The page's source and its Page, every element closed and no script."""
     html = open(html_path, encoding="utf-8").read()
-    j = json.load(open(json_path, encoding="utf-8"))
     page = Page()
     page.feed(html)
     page.close()
@@ -272,6 +271,13 @@ def main():
         fail("unclosed elements at the end: %s" % page.stack)
     if page.scripts:
         fail("the page has a script")
+    return html, page
+
+
+def main():
+    html_path, json_path = sys.argv[1], sys.argv[2]
+    html, page = parse_page(html_path)
+    j = json.load(open(json_path, encoding="utf-8"))
     text = "".join(page.text)
 
     if page.h1.strip() != "Design review: " + j["title"]:

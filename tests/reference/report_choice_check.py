@@ -39,19 +39,12 @@ import sys
 import xml.etree.ElementTree as ET
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from report_check import (SVG, Page, data_of, fail, floats, runs,  # noqa: E402
+from report_check import (SVG, data_of, fail, floats, parse_page, runs,  # noqa: E402
                           same_list, series_map, svg_elements)
 
 
 def read_page(html_path, heading):
-    html = open(html_path, encoding="utf-8").read()
-    page = Page()
-    page.feed(html)
-    page.close()
-    if page.stack:
-        fail("unclosed elements at the end: %s" % page.stack)
-    if page.scripts:
-        fail("the page has a script")
+    html, page = parse_page(html_path)
     if page.h1.strip() != heading:
         fail("heading %r, expected %r" % (page.h1, heading))
     if page.caution_at is None or page.first_figure_at is None or page.caution_at > page.first_figure_at:
