@@ -6,12 +6,9 @@
 // tests/data/fit/ are computed from published equations by generate.py; none
 // is a measurement.
 #include <gtest/gtest.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include <algorithm>
 #include <cmath>
-#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <limits>
@@ -21,6 +18,8 @@
 #include <string>
 #include <vector>
 
+#include "cli_run.hpp"
+#include "fit_data.hpp"
 #include "thermargin/caution.hpp"
 #include "thermargin/fit.hpp"
 #include "thermargin/ntc.hpp"
@@ -30,63 +29,24 @@ namespace thermargin {
 namespace {
 
 namespace fs = std::filesystem;
+using testing::cli_json;
+using testing::CliOutcome;
+using testing::fit_data_file;
+using testing::run_cli;
+using testing::shell_quote;
 
 // IEC 60539-1's B-value computed here and by the library from the same two
 // points: the same closed form, evaluated in a different order.
 constexpr double closed_form_rel = 1e-12;
 
+// A scratch directory for this test program, removed when it ends.
 const fs::path& scratch() {
-  struct Dir {
-    fs::path path;
-    Dir() {
-      path = fs::temp_directory_path() / ("thermargin_fit_cli_test_" + std::to_string(::getpid()));
-      fs::create_directories(path);
-    }
-    ~Dir() {
-      std::error_code ec;
-      fs::remove_all(path, ec);
-    }
-  };
-  static const Dir dir;
+  static const testing::ScratchDir dir;
   return dir.path;
 }
 
-std::string quoted(const std::string& s) {
-  std::string q = "'";
-  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
-
-std::string read(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-struct CliRun {
-  int status = -1;
-  std::string out, err;
-};
-
-CliRun cli(const std::string& args) {
-  const fs::path out = scratch() / "stdout.txt", err = scratch() / "stderr.txt";
-  const std::string command =
-      std::string(THERMARGIN_CLI) + " " + args + " >" + quoted(out.string()) + " 2>" + quoted(err.string());
-  const int rc = std::system(command.c_str());
-  CliRun r;
-  r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-  r.out = read(out);
-  r.err = read(err);
-  return r;
-}
-
-std::string data_file(const std::string& name) { return std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/fit/" + name; }
-
 nlohmann::json fit_json(const std::string& file, const std::string& options) {
-  const CliRun r = cli("fit " + quoted(data_file(file)) + " " + options + " --format json");
-  if (r.status != 0) throw std::runtime_error("thermargin fit failed: " + r.err);
-  return nlohmann::json::parse(r.out);
+  return cli_json("fit " + shell_quote(fit_data_file(file)) + " " + options);
 }
 
 // ---------------------------------------------------------------------------
@@ -116,7 +76,7 @@ class FitCliRows : public ::testing::TestWithParam<RowsCase> {};
 TEST_P(FitCliRows, JsonRowsAreTheLibrarysFits) {
   const RowsCase& c = GetParam();
   const nlohmann::json j = fit_json(c.file, c.options);
-  const FitResult want = fit_rt_data(read_rt_data(data_file(c.file)), c.settings);
+  const FitResult want = fit_rt_data(read_rt_data(fit_data_file(c.file)), c.settings);
 
   EXPECT_EQ(j["command"], "fit");
   EXPECT_EQ(j["caution"].get<std::string>(), std::string(caution));
@@ -170,12 +130,8 @@ INSTANTIATE_TEST_SUITE_P(
 TEST(FitCli, TwoPointBetaIsTheIec60539BValueOfTheFilesPoints) {
   // B = ln(R1/R2) / (1/T1 − 1/T2) (IEC 60539-1) with the file's own points at
   // 25 and 85 °C, the B25/85 of datasheets (common practice).
-  const RtData data = read_rt_data(data_file("sh10k_rounded.csv"));
-  double r25 = 0.0, r85 = 0.0;
-  for (const auto& p : data.points) {
-    if (p.t_celsius == 25.0) r25 = p.r_ohm;
-    if (p.t_celsius == 85.0) r85 = p.r_ohm;
-  }
+  const RtData data = read_rt_data(fit_data_file("sh10k_rounded.csv"));
+  const double r25 = testing::resistance_at(data, 25.0), r85 = testing::resistance_at(data, 85.0);
   ASSERT_GT(r25, 0.0);
   ASSERT_GT(r85, 0.0);
   const double b = std::log(r25 / r85) / (1.0 / (25.0 + kelvin_offset) - 1.0 / (85.0 + kelvin_offset));
@@ -207,7 +163,7 @@ TEST_P(FitCliSnippet, PastedIntoAScenarioPassesCheckWithTheFittedCoefficients) {
   const fs::path scenario = scratch() / (c.name + ".ini");
   std::ofstream(scenario) << "title = Pasted fit (" << c.name << "), invented demo\n\n" << j["snippet"].get<std::string>();
 
-  const CliRun check = cli("check " + quoted(scenario.string()) + " --format json");
+  const CliOutcome check = run_cli("check " + shell_quote(scenario.string()) + " --format json");
   ASSERT_EQ(check.status, 0) << check.err << "\n" << j["snippet"].get<std::string>();
   const nlohmann::json resolved = nlohmann::json::parse(check.out);
   std::map<std::string, std::string> value;
@@ -235,7 +191,7 @@ INSTANTIATE_TEST_SUITE_P(Recommendations, FitCliSnippet,
 // Text and CSV.
 
 TEST(FitCli, TextPutsTheRecommendationFirstAndEndsWithTheSnippetAndTheCaution) {
-  const CliRun r = cli("fit " + quoted(data_file("sh10k_rounded.csv")));
+  const CliOutcome r = run_cli("fit " + shell_quote(fit_data_file("sh10k_rounded.csv")));
   ASSERT_EQ(r.status, 0) << r.err;
   const auto rec = r.out.find("RECOMMENDATION:");
   const auto models = r.out.find("Models (");
@@ -254,7 +210,7 @@ TEST(FitCli, TextPutsTheRecommendationFirstAndEndsWithTheSnippetAndTheCaution) {
 }
 
 TEST(FitCli, CsvHasOneRowPerFitAfterTheCaution) {
-  const CliRun r = cli("fit " + quoted(data_file("sh10k_rounded.csv")) + " --extended --format csv");
+  const CliOutcome r = run_cli("fit " + shell_quote(fit_data_file("sh10k_rounded.csv")) + " --extended --format csv");
   ASSERT_EQ(r.status, 0) << r.err;
   std::istringstream in(r.out);
   std::string line;
@@ -264,7 +220,7 @@ TEST(FitCli, CsvHasOneRowPerFitAfterTheCaution) {
   EXPECT_TRUE(line.starts_with("model,method,r25_ohm,beta_K,a,b,c,d,max_residual_K")) << line;
   std::vector<std::string> rows;
   while (std::getline(in, line)) rows.push_back(line);
-  const FitResult want = fit_rt_data(read_rt_data(data_file("sh10k_rounded.csv")), make(-inf, inf, 0.1, true));
+  const FitResult want = fit_rt_data(read_rt_data(fit_data_file("sh10k_rounded.csv")), make(-inf, inf, 0.1, true));
   ASSERT_EQ(rows.size(), want.fits.size());
   for (std::size_t i = 0; i < rows.size(); ++i)
     EXPECT_TRUE(rows[i].starts_with(want.fits[i].model + "," + want.fits[i].method + ",")) << rows[i];
@@ -273,12 +229,8 @@ TEST(FitCli, CsvHasOneRowPerFitAfterTheCaution) {
 // ---------------------------------------------------------------------------
 // Bad input: one line, exit status 2, no output file.
 
-struct BadCase {
-  std::string name;
-  std::string args;     // after `thermargin fit`
-  std::string message;  // expected in the line
-};
-void PrintTo(const BadCase& c, std::ostream* os) { *os << c.name; }
+// The arguments after `thermargin fit`, DATA/ standing for tests/data/fit/.
+using BadCase = testing::RefusalCase;
 
 class FitCliBadInput : public ::testing::TestWithParam<BadCase> {};
 
@@ -288,21 +240,18 @@ TEST_P(FitCliBadInput, IsOneLineWithStatusTwoAndLeavesNoFile) {
   fs::create_directories(dir);
   std::string args = c.args;
   for (std::size_t i; (i = args.find("DATA/")) != std::string::npos;)
-    args.replace(i, 5, std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/fit/");
-  const CliRun r = cli("fit " + args + " --output " + quoted((dir / "fit.json").string()) + " --format json");
-  EXPECT_EQ(r.status, 2) << r.err;
-  EXPECT_NE(r.err.find(c.message), std::string::npos) << r.err;
-  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
-  EXPECT_TRUE(fs::is_empty(dir)) << "no output and no temporary file";
+    args.replace(i, 5, fit_data_file(""));
+  const CliOutcome r = run_cli("fit " + args + " --output " + shell_quote((dir / "fit.json").string()) + " --format json");
+  testing::expect_refused_in_one_line(r, c.message, dir);
 }
 
 INSTANTIATE_TEST_SUITE_P(
     Data, FitCliBadInput,
     ::testing::Values(BadCase{"too_few_points", "DATA/too_few_points.csv", "too_few_points.csv:4: only 2 data point(s)"},
                       BadCase{"duplicate_temperature", "DATA/bad_duplicate_temperature.csv",
-                              "bad_duplicate_temperature.csv:5: column 1 (temperature): duplicate temperature"},
+                              "bad_duplicate_temperature.csv:5:1: duplicate temperature"},
                       BadCase{"nonmonotonic", "DATA/bad_nonmonotonic.csv",
-                              "bad_nonmonotonic.csv:5: column 2 (resistance): resistance must change strictly monotonically"},
+                              "bad_nonmonotonic.csv:5:2: resistance must change strictly monotonically"},
                       BadCase{"negative", "DATA/bad_negative.csv", "bad_negative.csv:4): must be a resistance > 0"},
                       BadCase{"missing_column", "DATA/bad_missing_column.csv", "bad_missing_column.csv:5: expected 2 or 3 columns"},
                       BadCase{"no_file", "", "fit needs a data file"},

@@ -6,7 +6,6 @@
 #include "thermargin/fit.hpp"
 
 #include <gtest/gtest.h>
-#include <unistd.h>
 
 #include <Eigen/Dense>
 #include <algorithm>
@@ -20,6 +19,8 @@
 #include <tuple>
 #include <vector>
 
+#include "cli_run.hpp"
+#include "fit_data.hpp"
 #include "thermargin/error.hpp"
 #include "thermargin/ntc.hpp"
 #include "thermargin/number.hpp"
@@ -27,6 +28,8 @@
 
 namespace thermargin {
 namespace {
+
+using testing::fit_data_file;
 
 // The widely published 10 kΩ Steinhart–Hart coefficients (common practice).
 constexpr double sh_a = 1.129148e-3;
@@ -48,9 +51,7 @@ constexpr double numpy_u_rel = 1e-9;
 constexpr double numpy_residual_k = 1e-9;
 constexpr double exact_rel = 1e-12;         // closed-form formulas evaluated two ways
 
-std::string data_file(const std::string& name) { return std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/fit/" + name; }
-
-FitResult fit_file(const std::string& name, const FitSettings& s = {}) { return fit_rt_data(read_rt_data(data_file(name)), s); }
+FitResult fit_file(const std::string& name, const FitSettings& s = {}) { return fit_rt_data(read_rt_data(fit_data_file(name)), s); }
 
 const ModelFit& find(const FitResult& r, const std::string& model, const std::string& method) {
   for (const auto& f : r.fits)
@@ -64,20 +65,11 @@ double rel(double got, double want) { return std::abs(got - want) / std::abs(wan
 // Runs a Python script with Debian's interpreter (python3-numpy, python3-scipy)
 // and returns its JSON output.
 nlohmann::json run_python(const std::string& script, const std::string& args) {
-  const auto dir = std::filesystem::temp_directory_path() / ("thermargin_fit_test_" + std::to_string(::getpid()));
-  std::filesystem::create_directories(dir);
-  const auto path = dir / "second_opinion.py";
-  std::ofstream(path) << script;
-  const std::string command = std::string(THERMARGIN_PYTHON) + " " + path.string() + " " + args + " 2>&1";
-  std::string out;
-  FILE* pipe = ::popen(command.c_str(), "r");
-  if (!pipe) throw std::runtime_error("cannot run " + command);
-  char buf[4096];
-  while (std::size_t n = std::fread(buf, 1, sizeof buf, pipe)) out.append(buf, n);
-  const int status = ::pclose(pipe);
-  std::filesystem::remove_all(dir);
-  if (status != 0) throw std::runtime_error(command + " failed:\n" + out);
-  return nlohmann::json::parse(out);
+  const testing::ScratchDir dir;
+  const std::string command = std::string(THERMARGIN_PYTHON) + " " + dir.write("second_opinion.py", script) + " " + args;
+  const testing::CliOutcome r = testing::run_shell(command);
+  if (r.status != 0) throw std::runtime_error(command + " failed:\n" + r.out + r.err);
+  return nlohmann::json::parse(r.out);
 }
 
 // An independent least-squares fit with numpy.linalg.lstsq, following
@@ -144,7 +136,7 @@ void expect_agrees_with_numpy(const std::string& file, const std::string& model,
   const ModelFit& f = find(r, model, "least-squares");
   char window[128];
   std::snprintf(window, sizeof window, " %.17g %.17g", std::max(s.t_min, -1e300), std::min(s.t_max, 1e300));
-  const auto py = run_python(numpy_fit, data_file(file) + " " + model + window);
+  const auto py = run_python(numpy_fit, fit_data_file(file) + " " + model + window);
   const auto& coef = py["coef"];
   ASSERT_EQ(coef.size(), f.coefficients.size());
   for (std::size_t i = 0; i < coef.size(); ++i) {
@@ -200,7 +192,7 @@ void expect_three_point_within_rounding(const std::vector<double>& at, const std
   const ModelFit& f = find(r, "steinhart-hart", "three-point");
   ASSERT_EQ(f.through_celsius, at);
 
-  const RtData data = read_rt_data(data_file("sh10k_reference.csv"));
+  const RtData data = read_rt_data(fit_data_file("sh10k_reference.csv"));
   Eigen::Matrix3d m;
   Eigen::Vector3d shift;
   for (int i = 0; i < 3; ++i) {
@@ -233,7 +225,7 @@ TEST(FitSteinhartHart, ThreePointMatchesTheLibrarysClosedFormThroughThePoints) {
   s.sh_at = {-20, 40, 110};
   const FitResult r = fit_file("sh10k_rounded.csv", s);
   const ModelFit& f = find(r, "steinhart-hart", "three-point");
-  const RtData data = read_rt_data(data_file("sh10k_rounded.csv"));
+  const RtData data = read_rt_data(fit_data_file("sh10k_rounded.csv"));
   double t[3], l[3];
   int k = 0;
   for (const auto& p : data.points)
@@ -301,12 +293,8 @@ TEST(FitSteinhartHart, ExtendedFormRecoversThreeTermCurve) {
 // --------------------------------------------------------------------- beta
 
 TEST(FitBeta, TwoPointEqualsIec60539Definition) {
-  const RtData data = read_rt_data(data_file("sh10k_exact.csv"));
-  double r25 = 0, r85 = 0;
-  for (const auto& p : data.points) {
-    if (p.t_celsius == 25) r25 = p.r_ohm;
-    if (p.t_celsius == 85) r85 = p.r_ohm;
-  }
+  const RtData data = read_rt_data(fit_data_file("sh10k_exact.csv"));
+  const double r25 = testing::resistance_at(data, 25), r85 = testing::resistance_at(data, 85);
   // IEC 60539-1: B = ln(R1/R2) / (1/T1 − 1/T2).
   const double b25_85 = std::log(r25 / r85) / (1 / 298.15 - 1 / 358.15);
   const FitResult r = fit_rt_data(data);
@@ -331,7 +319,7 @@ TEST(FitBeta, TwoPointFallsBackToWindowEnds) {
   const FitResult r = fit_file("sh10k_exact.csv", s);
   const ModelFit& f = find(r, "beta", "two-point");
   EXPECT_EQ(f.through_celsius, (std::vector<double>{0, 60}));
-  const RtData data = read_rt_data(data_file("sh10k_exact.csv"));
+  const RtData data = read_rt_data(fit_data_file("sh10k_exact.csv"));
   double r0 = 0, r60 = 0;
   for (const auto& p : data.points) {
     if (p.t_celsius == 0) r0 = p.r_ohm;
@@ -343,7 +331,7 @@ TEST(FitBeta, TwoPointFallsBackToWindowEnds) {
 }
 
 TEST(FitBeta, TwoPointUncertaintyFollowsGumPropagation) {
-  const RtData data = read_rt_data(data_file("sh10k_rounded_u.csv"));
+  const RtData data = read_rt_data(fit_data_file("sh10k_rounded_u.csv"));
   const FitResult r = fit_rt_data(data);
   const ModelFit& f = find(r, "beta", "two-point");
   const RtPoint* p25 = nullptr;
@@ -383,7 +371,7 @@ TEST(FitBeta, LeastSquaresRecoversABetaCurve) {
 
 TEST(FitData, FileOrderDoesNotMatter) {
   // The same points listed from hot to cold give the same fits.
-  const RtData up = read_rt_data(data_file("sh10k_rounded_u.csv"));
+  const RtData up = read_rt_data(fit_data_file("sh10k_rounded_u.csv"));
   RtData down = up;
   std::reverse(down.points.begin(), down.points.end());
   const FitResult a = fit_rt_data(up);
@@ -447,7 +435,7 @@ TEST(FitBetweenPoints, MatchesScipyPchip) {
       ASSERT_TRUE(f.between_assessed);
       char window[64];
       std::snprintf(window, sizeof window, " 16 %g %g", lo, hi);
-      std::string args = data_file(file) + " " + model + window;
+      std::string args = fit_data_file(file) + " " + model + window;
       for (const auto& c : f.coefficients) {
         char buf[40];
         std::snprintf(buf, sizeof buf, " %.17g", c.value);
@@ -503,7 +491,7 @@ TEST(FitPt100, TableFileMatchesIec60751) {
   const std::vector<std::pair<double, double>> table = {{-200, 18.520}, {-100, 60.256}, {0, 100.000},
                                                         {200, 175.856}, {400, 247.092}, {600, 313.708},
                                                         {850, 390.481}};
-  const RtData data = read_rt_data(data_file("pt100_iec60751.csv"));
+  const RtData data = read_rt_data(fit_data_file("pt100_iec60751.csv"));
   for (const auto& [t, r] : table)
     for (const auto& p : data.points)
       if (p.t_celsius == t) EXPECT_NEAR(p.r_ohm, r, 0.0005 + 1e-9) << t;
@@ -583,7 +571,7 @@ TEST(FitSnippet, FourTermFormFallsBackToTheTable) {
   s.extended = true;
   const FitResult r = fit_file("sh10k_rounded.csv", s);
   const std::string text = scenario_snippet(r, 4);
-  EXPECT_NE(text.find("model = table\ntable_file = " + data_file("sh10k_rounded.csv") + "\n"), std::string::npos) << text;
+  EXPECT_NE(text.find("model = table\ntable_file = " + fit_data_file("sh10k_rounded.csv") + "\n"), std::string::npos) << text;
   EXPECT_NE(text.find("conversion = table\n"), std::string::npos) << text;
 }
 

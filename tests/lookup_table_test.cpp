@@ -8,13 +8,10 @@
 #include "thermargin/lookup_table.hpp"
 
 #include <gtest/gtest.h>
-#include <sys/wait.h>
-#include <unistd.h>
 
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
-#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
@@ -23,6 +20,8 @@
 #include <utility>
 #include <vector>
 
+#include "cli_run.hpp"
+#include "engine_fixture.hpp"
 #include "thermargin/caution.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/firmware.hpp"
@@ -32,6 +31,13 @@ namespace thermargin {
 namespace {
 
 namespace fs = std::filesystem;
+using testing::cli_json;
+using testing::CliOutcome;
+using testing::design_with;
+using testing::Overrides;
+using testing::run_cli;
+using testing::run_shell;
+using testing::shell_quote;
 
 // The same linear interpolation evaluated by two programs (C here, C++ in the
 // library, NumPy's interp) in double precision: they agree to about 1e-13 K
@@ -47,64 +53,23 @@ constexpr double round_trip_k = 1e-9;
 
 // A scratch directory for this test program, removed when it ends.
 const fs::path& scratch() {
-  struct Dir {
-    fs::path path;
-    Dir() {
-      path = fs::temp_directory_path() / ("thermargin_lookup_table_test_" + std::to_string(::getpid()));
-      fs::create_directories(path);
-    }
-    ~Dir() {
-      std::error_code ec;
-      fs::remove_all(path, ec);
-    }
-  };
-  static const Dir dir;
+  static const testing::ScratchDir dir;
   return dir.path;
 }
 
-std::string quoted(const std::string& s) {
-  std::string q = "'";
-  for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-  return q + "'";
-}
+// A shipped scenario's path, "" for the built-in default; and the same as
+// the command's argument.
+std::string scenario_file(const std::string& name) { return name.empty() ? "" : testing::scenario_path(name); }
+std::string scenario_arg(const std::string& name) { return name.empty() ? "" : shell_quote(testing::scenario_path(name)); }
 
-std::string read(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-struct CliRun {
-  int status = -1;
-  std::string out, err;
+// `thermargin table SCENARIO ARGS --format json`, and the design that the
+// same settings (`overrides`) build in process.
+struct TableRun {
+  nlohmann::json json;
+  Design design;
 };
-
-CliRun shell(const std::string& command) {
-  const fs::path out = scratch() / "stdout.txt", err = scratch() / "stderr.txt";
-  const int rc = std::system((command + " >" + quoted(out.string()) + " 2>" + quoted(err.string())).c_str());
-  CliRun r;
-  r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-  r.out = read(out);
-  r.err = read(err);
-  return r;
-}
-
-CliRun cli(const std::string& args) { return shell(std::string(THERMARGIN_CLI) + " " + args); }
-
-nlohmann::json cli_json(const std::string& args) {
-  const CliRun r = cli(args + " --format json");
-  if (r.status != 0) throw std::runtime_error("thermargin " + args + " failed: " + r.err);
-  return nlohmann::json::parse(r.out);
-}
-
-std::string scenario_file(const std::string& name) { return std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/" + name; }
-
-Design design_of(const std::string& file, const std::vector<std::pair<std::string, std::string>>& overrides) {
-  Scenario s;
-  if (!file.empty()) s.load_file(file);
-  for (const auto& [key, value] : overrides) s.set(key, value, Where{Origin::command_line, "", 0, key});
-  return build_design(s);
+TableRun table_run(const std::string& scenario, const std::string& args, const Overrides& overrides) {
+  return {cli_json("table " + scenario_arg(scenario) + " " + args), design_with(overrides, scenario_file(scenario))};
 }
 
 // Linear interpolation over the JSON rows, written here independently of
@@ -126,7 +91,7 @@ std::optional<double> interpolate_rows(const nlohmann::json& rows, double code) 
 struct ChainCase {
   std::string scenario;  // empty: the built-in default
   std::string args;      // the same overrides on the command line
-  std::vector<std::pair<std::string, std::string>> overrides;
+  Overrides overrides;
 };
 void PrintTo(const ChainCase& c, std::ostream* os) { *os << (c.scenario.empty() ? std::string("default") : c.scenario); }
 
@@ -134,9 +99,7 @@ class TableUsedByTheChain : public ::testing::TestWithParam<ChainCase> {};
 
 TEST_P(TableUsedByTheChain, ConvertsEveryCodeAsTheEmittedValuesInterpolate) {
   const ChainCase& c = GetParam();
-  const std::string file = c.scenario.empty() ? "" : scenario_file(c.scenario);
-  const nlohmann::json j = cli_json("table " + (file.empty() ? "" : quoted(file)) + " " + c.args);
-  const Design d = design_of(file, c.overrides);
+  const auto [j, d] = table_run(c.scenario, c.args, c.overrides);
   const Chain chain(d);
   ASSERT_EQ(d.firmware.conversion, Conversion::table);
   EXPECT_TRUE(j["used_by_chain"].get<bool>());
@@ -212,7 +175,7 @@ struct HeaderCase {
   std::string name;
   std::string scenario;
   std::string args;
-  std::vector<std::pair<std::string, std::string>> overrides;
+  Overrides overrides;
   TableSettings settings;  // what the args ask for, for the library's side
 };
 void PrintTo(const HeaderCase& c, std::ostream* os) { *os << c.name; }
@@ -223,24 +186,23 @@ TEST_P(TableCHeader, CompilesAndReproducesTheToolsTemperaturesAtEveryCode) {
   const HeaderCase& c = GetParam();
   const fs::path dir = scratch() / c.name;
   fs::create_directories(dir);
-  const std::string file = c.scenario.empty() ? "" : scenario_file(c.scenario);
-  const CliRun emitted = cli("table " + (file.empty() ? "" : quoted(file)) + " " + c.args + " --emit c --prefix probe_lut --output " +
-                          quoted((dir / "probe_lut.h").string()));
+  const CliOutcome emitted = run_cli("table " + scenario_arg(c.scenario) + " " + c.args +
+                                     " --emit c --prefix probe_lut --output " + shell_quote((dir / "probe_lut.h").string()));
   ASSERT_EQ(emitted.status, 0) << emitted.err;
-  const std::string header = read(dir / "probe_lut.h");
+  const std::string header = testing::slurp(dir / "probe_lut.h");
   EXPECT_NE(header.find(std::string(caution.substr(0, 60))), std::string::npos) << "the caution is in the comment block";
 
   std::ofstream(dir / "main.c") << c_program;
   // Strict flags: firmware projects build with warnings as errors.
-  const CliRun built = shell("cc -std=c99 -Wall -Wextra -Wconversion -pedantic -Werror -I " + quoted(dir.string()) + " -o " +
-                          quoted((dir / "probe").string()) + " " + quoted((dir / "main.c").string()));
+  const CliOutcome built = run_shell("cc -std=c99 -Wall -Wextra -Wconversion -pedantic -Werror -I " + shell_quote(dir.string()) +
+                                     " -o " + shell_quote((dir / "probe").string()) + " " + shell_quote((dir / "main.c").string()));
   ASSERT_EQ(built.status, 0) << built.err << "\n" << header;
-  const CliRun ran = shell(quoted((dir / "probe").string()));
+  const CliOutcome ran = run_shell(shell_quote((dir / "probe").string()));
   ASSERT_EQ(ran.status, 0) << ran.err;
 
   // The tool's temperatures: the chain's conversion when it uses the table,
   // the library's table otherwise.
-  const Design d = design_of(file, c.overrides);
+  const Design d = design_with(c.overrides, scenario_file(c.scenario));
   const Chain chain(d);
   const TableResult tool = make_table(d, c.settings);
   const double unit = tool.table.unit;
@@ -347,8 +309,8 @@ nlohmann::json numpy_errors(const Design& d, const std::vector<nlohmann::json>& 
   for (const auto& t : tables) p["tables"].push_back(t["rows"]);
   std::ofstream(dir / "input.json") << p.dump();
   std::ofstream(dir / "error.py") << numpy_error;
-  const CliRun r = shell(std::string(THERMARGIN_PYTHON) + " " + quoted((dir / "error.py").string()) + " " +
-                      quoted((dir / "input.json").string()));
+  const CliOutcome r = run_shell(std::string(THERMARGIN_PYTHON) + " " + shell_quote((dir / "error.py").string()) + " " +
+                                 shell_quote((dir / "input.json").string()));
   if (r.status != 0) throw std::runtime_error("NumPy second opinion failed: " + r.err);
   return nlohmann::json::parse(r.out);
 }
@@ -357,7 +319,7 @@ struct ErrorCase {
   std::string name;
   std::string scenario;
   std::string args;
-  std::vector<std::pair<std::string, std::string>> overrides;
+  Overrides overrides;
 };
 void PrintTo(const ErrorCase& c, std::ostream* os) { *os << c.name; }
 
@@ -365,9 +327,7 @@ class TableError : public ::testing::TestWithParam<ErrorCase> {};
 
 TEST_P(TableError, AgreesWithNumPyInterpolationOfTheExactBetaInversion) {
   const ErrorCase& c = GetParam();
-  const std::string file = c.scenario.empty() ? "" : scenario_file(c.scenario);
-  const nlohmann::json j = cli_json("table " + (file.empty() ? "" : quoted(file)) + " " + c.args);
-  const Design d = design_of(file, c.overrides);
+  const auto [j, d] = table_run(c.scenario, c.args, c.overrides);
   ASSERT_EQ(d.sensor.kind, SensorKind::beta);
   const nlohmann::json py = numpy_errors(d, {j}).at(0);
   EXPECT_EQ(j["range_codes"]["first"].get<std::int64_t>(), py["first"].get<std::int64_t>());
@@ -405,7 +365,7 @@ class TableMaxError : public ::testing::TestWithParam<LimitCase> {};
 
 TEST_P(TableMaxError, ReturnsTheSmallestPointCountAndOneFewerFails) {
   const LimitCase& c = GetParam();
-  const std::string base = "table " + (c.scenario.empty() ? "" : quoted(scenario_file(c.scenario))) + " " + c.args;
+  const std::string base = "table " + scenario_arg(c.scenario) + " " + c.args;
   char limit[32];
   std::snprintf(limit, sizeof limit, "%g", c.limit);
   const nlohmann::json chosen = cli_json(base + " --max-error " + limit);
@@ -422,9 +382,7 @@ TEST_P(TableMaxError, ReturnsTheSmallestPointCountAndOneFewerFails) {
   EXPECT_EQ(chosen["one_fewer"]["max_abs"].get<double>(), fewer["max_interpolation_error"].get<double>());
 
   // And NumPy agrees on both sides of the limit.
-  Scenario s;
-  if (!c.scenario.empty()) s.load_file(scenario_file(c.scenario));
-  const Design d = build_design(s);
+  const Design d = design_with({}, scenario_file(c.scenario));
   const nlohmann::json py = numpy_errors(d, {at_p, fewer});
   EXPECT_LE(py[0]["max"].get<double>(), c.limit + same_double_k);
   EXPECT_GT(py[1]["max"].get<double>(), c.limit - same_double_k);
@@ -439,7 +397,7 @@ INSTANTIATE_TEST_SUITE_P(Limits, TableMaxError,
 
 TEST(TableMaxError, ALimitBelowTheStorageRoundingIsRefused) {
   const fs::path out = scratch() / "unreachable.h";
-  const CliRun r = cli("table --max-error 0.001 --emit c --output " + quoted(out.string()));
+  const CliOutcome r = run_cli("table --max-error 0.001 --emit c --output " + shell_quote(out.string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_NE(r.err.find("table.max_error = 0.001 K (command line): cannot be met"), std::string::npos) << r.err;
   EXPECT_FALSE(fs::exists(out));
@@ -449,7 +407,7 @@ TEST(TableMaxError, ALimitBelowTheStorageRoundingIsRefused) {
 // The library's pieces.
 
 TEST(TableSpacing, TemperaturePointsAreTheCodesNearestEquallySpacedTemperatures) {
-  const Design d = design_of("", {});
+  const Design d = design_with({});
   const Firmware fw(d);
   const LookupTable t = build_lookup_table(d, fw, 30, 0.01, TableSpacing::temperature);
   ASSERT_EQ(t.size(), 30u);
@@ -471,7 +429,7 @@ TEST(TableSpacing, ExactCodeInvertsTheExactConversionForEverySensorModel) {
   const std::vector<std::string> files{"", "fermentation_probe.ini", "hot_plate_pt1000.ini", "incubator.ini",
                                        "battery_charge_guard.ini", "cold_store_logger.ini"};
   for (const auto& f : files) {
-    const Design d = design_of(f.empty() ? "" : scenario_file(f), {});
+    const Design d = design_with({}, scenario_file(f));
     const Firmware fw(d);
     for (double t = d.conditions.t_min; t <= d.conditions.t_max; t += 0.5 * (d.conditions.t_max - d.conditions.t_min) / 7) {
       const auto code = fw.exact_code(t);
@@ -484,7 +442,7 @@ TEST(TableSpacing, ExactCodeInvertsTheExactConversionForEverySensorModel) {
 }
 
 TEST(TableSize, CountsTheStoredValuesAndTheCodesWhenSpacedInTemperature) {
-  const Design d = design_of("", {});
+  const Design d = design_with({});
   TableSettings s = settings(21, 0.01, TableSpacing::code, StorageType::int16);
   EXPECT_EQ(make_table(d, s).bytes(), 21u * sizeof(std::int16_t));
   s.type = StorageType::int32;
@@ -502,13 +460,13 @@ TEST(TableOutput, EveryFormatCarriesTheCautionAndTheSameRows) {
   EXPECT_EQ(j["caution"].get<std::string>(), std::string(caution));
   for (const std::string args : {"table --points 9", "table --points 9 --format csv", "table --points 9 --emit csv",
                                  "table --points 9 --emit c"}) {
-    const CliRun r = cli(args);
+    const CliOutcome r = run_cli(args);
     ASSERT_EQ(r.status, 0) << args << ": " << r.err;
     EXPECT_NE(r.out.find(std::string(caution.substr(0, 40))), std::string::npos) << args;
   }
   // The emitted CSV, read as the data files of this project are (`#` comments),
   // holds the JSON rows.
-  const CliRun csv = cli("table --points 9 --emit csv");
+  const CliOutcome csv = run_cli("table --points 9 --emit csv");
   std::istringstream in(csv.out);
   std::string line;
   std::vector<std::string> data;
@@ -531,12 +489,8 @@ TEST(TableOutput, EveryFormatCarriesTheCautionAndTheSameRows) {
 // ---------------------------------------------------------------------------
 // Bad input: one line naming the setting, exit status 2, no output file.
 
-struct BadCase {
-  std::string name;
-  std::string args;
-  std::string message;  // expected in the one line
-};
-void PrintTo(const BadCase& c, std::ostream* os) { *os << c.name; }
+// The arguments after `thermargin table`.
+using BadCase = testing::RefusalCase;
 
 class TableBadInput : public ::testing::TestWithParam<BadCase> {};
 
@@ -545,11 +499,8 @@ TEST_P(TableBadInput, IsOneLineWithStatusTwoAndLeavesNoFile) {
   const fs::path dir = scratch() / ("bad_" + c.name);
   fs::create_directories(dir);
   const fs::path out = dir / "lut.h";
-  const CliRun r = cli("table " + c.args + " --output " + quoted(out.string()));
-  EXPECT_EQ(r.status, 2) << r.err;
-  EXPECT_NE(r.err.find(c.message), std::string::npos) << r.err;
-  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
-  EXPECT_TRUE(fs::is_empty(dir)) << "no output and no temporary file";
+  const CliOutcome r = run_cli("table " + c.args + " --output " + shell_quote(out.string()));
+  testing::expect_refused_in_one_line(r, c.message, dir);
 }
 
 INSTANTIATE_TEST_SUITE_P(
