@@ -49,12 +49,12 @@ TEST(CsvRecords, CrlfBlankLinesAndCommentsAreNotRecords) {
 
 TEST(CsvRecords, MalformedQuotingIsRefusedWithItsLine) {
   EXPECT_EQ(refusal("slot,grade\nx,\"open\n"),
-            "cat.csv:2: column 2: a quoted field is never closed; add the closing double quote");
+            "cat.csv:2:2: a quoted field is never closed; add the closing double quote");
   EXPECT_EQ(refusal("slot,grade\nx,ab\"c\n"),
-            "cat.csv:2: column 2: a double quote inside an unquoted field; quote the whole field and write each quote "
+            "cat.csv:2:2: a double quote inside an unquoted field; quote the whole field and write each quote "
             "inside it twice (\"\"), as RFC 4180 does");
   EXPECT_EQ(refusal("slot,grade\nx,\"ab\"c\n"),
-            "cat.csv:2: column 2: text after a closing double quote; quote the whole field and write each quote inside "
+            "cat.csv:2:2: text after a closing double quote; quote the whole field and write each quote inside "
             "it twice (\"\")");
 }
 
@@ -93,7 +93,9 @@ TEST(Catalogue, ColumnsInAnyOrderSlotsInFileOrder) {
   EXPECT_EQ(tight.settings[1].where.file, "dir/cat.csv");
   EXPECT_EQ(tight.settings[1].where.kind, Origin::catalogue);
   EXPECT_TRUE(c.slots[2].options[0].settings.empty());  // keeps the scenario's parts
-  EXPECT_EQ(c.column_label(3), "column 3 (settings)");
+  EXPECT_EQ(c.column_name(3), "settings");
+  EXPECT_EQ(tight.settings[1].where.column, 3);
+  EXPECT_EQ(tight.settings[1].where.origin(), "dir/cat.csv:4:3");
 }
 
 TEST(Catalogue, ReadsAFileWithAByteOrderMarkAndResolvesFilesBesideIt) {
@@ -116,39 +118,39 @@ TEST(Catalogue, ReadsAFileWithAByteOrderMarkAndResolvesFilesBesideIt) {
 TEST(Catalogue, EveryRefusalNamesFileLineAndColumn) {
   const std::string head = "slot,grade,unit_cost,settings\n";
   EXPECT_EQ(refusal("slot,grade,price,settings\nx,y,1,\n"),
-            "column 3 = price (cat.csv:1): unknown column; the columns are slot, grade, unit_cost, settings (required) "
+            "header = price (cat.csv:1:3): unknown column; the columns are slot, grade, unit_cost, settings (required) "
             "and notes, setup_cost (optional)");
   EXPECT_EQ(refusal("slot,grade,unit_cost\nx,y,1\n"),
             "header = slot,grade,unit_cost (cat.csv:1): the required column 'settings' is missing; the columns are "
             "slot, grade, unit_cost, settings (required) and notes, setup_cost (optional)");
   EXPECT_EQ(refusal("slot,grade,unit_cost,settings,Slot\n"),
-            "column 5 = slot (cat.csv:1): the column is already column 1; each column appears once");
+            "header = slot (cat.csv:1:5): the column is already column 1; each column appears once");
   EXPECT_EQ(refusal(head + "thermistor,std,-0.10,sensor.r25_tol=1%\n"),
-            "column 3 (unit_cost) = -0.10 (cat.csv:2): a cost cannot be negative; expected a cost as a plain decimal "
+            "unit_cost = -0.10 (cat.csv:2:3): a cost cannot be negative; expected a cost as a plain decimal "
             "number >= 0 in the catalogue's currency, without a currency sign or thousands separator, e.g. 0.35");
   EXPECT_EQ(refusal(head + "thermistor,std,0.1,sensor.r25_tol=1%\nthermistor,std,0.2,sensor.r25_tol=0.5%\n"),
-            "column 2 (grade) = std (cat.csv:3): slot 'thermistor' already has this grade (line 2); each grade of a "
+            "grade = std (cat.csv:3:2): slot 'thermistor' already has this grade (line 2); each grade of a "
             "slot is named once");
   EXPECT_EQ(refusal(head + "thermistor,std,0.1,sensor.r25_toll=1%\n"),
-            "column 4 (settings) = sensor.r25_toll=1% (cat.csv:2): 'sensor.r25_toll' names no scenario key; "
+            "settings = sensor.r25_toll=1% (cat.csv:2:4): 'sensor.r25_toll' names no scenario key; "
             "`thermargin check --help` lists them (section.key, e.g. sensor.r25_tol)");
   EXPECT_EQ(refusal(head + "thermistor,std,0.1,sensor.r25_tol 1%\n"),
-            "column 4 (settings) = sensor.r25_tol 1% (cat.csv:2): a setting is key=value, e.g. sensor.r25_tol=1%; "
+            "settings = sensor.r25_tol 1% (cat.csv:2:4): a setting is key=value, e.g. sensor.r25_tol=1%; "
             "settings are separated by ';'");
   EXPECT_EQ(refusal(head + "thermistor,std,0.1,sensor.r25_tol=1%;sensor.r25_tol=2%\n"),
-            "column 4 (settings) = sensor.r25_tol=2% (cat.csv:2): 'sensor.r25_tol' is set twice in this option");
+            "settings = sensor.r25_tol=2% (cat.csv:2:4): 'sensor.r25_tol' is set twice in this option");
   EXPECT_EQ(refusal(head + "thermistor,std,0.1,sensor.r25_tol=1%\nsorted,a,0.1,sensor.r25_tol=0.5%\n"),
-            "column 4 (settings) = sensor.r25_tol=0.5% (cat.csv:3): 'sensor.r25_tol' is already graded by slot "
+            "settings = sensor.r25_tol=0.5% (cat.csv:3:4): 'sensor.r25_tol' is already graded by slot "
             "'thermistor' (line 2); a key belongs to one slot, or two slots would decide it together");
   EXPECT_EQ(refusal(head + "thermistor,std,0.1\n"),
-            "cat.csv:2: column 4: the row has 3 fields and the header 4; every row has one field per column (an empty "
+            "cat.csv:2:4: the row has 3 fields and the header 4; every row has one field per column (an empty "
             "field is written as nothing between two commas)");
-  EXPECT_EQ(refusal(head + ",std,0.1,\n"), "column 1 (slot) = (empty) (cat.csv:2): every row names its slot");
-  EXPECT_EQ(refusal(head + "thermistor, ,0.1,\n"), "column 2 (grade) = (empty) (cat.csv:2): every row names its grade");
+  EXPECT_EQ(refusal(head + ",std,0.1,\n"), "slot = (empty) (cat.csv:2:1): every row names its slot");
+  EXPECT_EQ(refusal(head + "thermistor, ,0.1,\n"), "grade = (empty) (cat.csv:2:2): every row names its grade");
   EXPECT_EQ(refusal(head), "cat.csv: the catalogue has a header but no options; add one row per grade");
   // A spreadsheet in a locale with decimal commas writes "0,10" in quotes:
   // the reader asks for a decimal point rather than guessing.
-  EXPECT_NE(refusal(head + "thermistor,std,\"0,10\",\n").find("column 3 (unit_cost) = 0,10 (cat.csv:2)"), std::string::npos);
+  EXPECT_NE(refusal(head + "thermistor,std,\"0,10\",\n").find("unit_cost = 0,10 (cat.csv:2:3)"), std::string::npos);
   EXPECT_NE(refusal(head + "thermistor,std,$0.10,\n").find("without a currency sign"), std::string::npos);
 }
 

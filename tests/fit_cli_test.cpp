@@ -252,7 +252,7 @@ INSTANTIATE_TEST_SUITE_P(
                               "bad_duplicate_temperature.csv:5:1: duplicate temperature"},
                       BadCase{"nonmonotonic", "DATA/bad_nonmonotonic.csv",
                               "bad_nonmonotonic.csv:5:2: resistance must change strictly monotonically"},
-                      BadCase{"negative", "DATA/bad_negative.csv", "bad_negative.csv:4): must be a resistance > 0"},
+                      BadCase{"negative", "DATA/bad_negative.csv", "bad_negative.csv:4:2): must be a resistance > 0"},
                       BadCase{"missing_column", "DATA/bad_missing_column.csv", "bad_missing_column.csv:5: expected 2 or 3 columns"},
                       BadCase{"no_file", "", "fit needs a data file"},
                       BadCase{"missing_file", "DATA/no_such_file.csv", "no_such_file.csv"},

@@ -200,7 +200,7 @@ TEST(Grades, SetupCostsAreSpreadOverTheVolumeAndAVolumeIsRequired) {
     ADD_FAILURE() << "a setup cost without a volume was accepted";
   } catch (const input_error& e) {
     EXPECT_EQ(std::string(e.what()),
-              "--volume = (empty) (command line): the catalogue has setup costs (setup.csv:3); give the production "
+              "--volume = (empty) (command line): the catalogue has setup costs (setup.csv:3:6); give the production "
               "volume they are spread over, e.g. --volume 10000");
   }
   o.volume = 2000.0;
@@ -547,9 +547,9 @@ TEST(GradesCli, AMalformedCatalogueIsRefusedWithOneLineAndExitTwoAndNoOutput) {
       {"duplicate grade", head + "thermistor,std,0.1,sensor.r25_tol=1%\nthermistor,std,0.2,sensor.r25_tol=2%\n", "",
        "grade = std (@:3:2): slot 'thermistor' already has this grade (line 2)"},
       {"unusable value", head + "thermistor,std,0.1,sensor.r25_tol=-1%\n", "",
-       "(@:2): must be"},
+       "(@:2:4): must be"},
       {"setup cost without volume", "slot,grade,unit_cost,settings,setup_cost\nthermistor,std,0.1,,50\n", "",
-       "--volume = (empty) (command line): the catalogue has setup costs (@:2)"},
+       "--volume = (empty) (command line): the catalogue has setup costs (@:2:5)"},
       {"re-pick over a graded resistor value", head + "r,10k,0,divider.r_fixed=10k\n", " --re-pick",
        "settings = divider.r_fixed=10k (@:2:4)"},
       {"series without re-pick", head + "thermistor,std,0.1,\n", " --series e24", "--series = e24 (command line): applies only with --re-pick"},

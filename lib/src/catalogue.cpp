@@ -28,15 +28,17 @@ std::string lower(std::string s) {
   return s;
 }
 
-[[noreturn]] void refuse(const std::string& file, int line, const std::string& column, const std::string& value,
-                         const std::string& why) {
-  reject(Where{Origin::catalogue, file, line, column}, value, why);
+// "<what> = <value> (<file>:<line>:<column>): <why>", `what` the column's
+// name (or "header").
+[[noreturn]] void refuse(const std::string& file, int line, int column, const std::string& what,
+                         const std::string& value, const std::string& why) {
+  reject(Where{Origin::catalogue, file, line, what, column}, value, why);
 }
 
 // A cost: a plain decimal number in the catalogue's currency. SI prefixes are
 // not read here (a price of "1m" is more likely a typo than a milli-unit),
 // nor currency symbols or decimal commas, which spreadsheets add by locale.
-double read_cost(const std::string& text, const std::string& file, int line, const std::string& column) {
+double read_cost(const std::string& text, const std::string& file, int line, int column, const std::string& what) {
   const std::string t = trim(text);
   double v = 0.0;
   const char* end = t.data() + t.size();
@@ -44,8 +46,8 @@ double read_cost(const std::string& text, const std::string& file, int line, con
   const std::string accepted =
       "expected a cost as a plain decimal number >= 0 in the catalogue's currency, without a currency sign "
       "or thousands separator, e.g. 0.35";
-  if (t.empty() || ec != std::errc() || ptr != end || !std::isfinite(v)) refuse(file, line, column, t, accepted);
-  if (v < 0.0) refuse(file, line, column, t, "a cost cannot be negative; " + accepted);
+  if (t.empty() || ec != std::errc() || ptr != end || !std::isfinite(v)) refuse(file, line, column, what, t, accepted);
+  if (v < 0.0) refuse(file, line, column, what, t, "a cost cannot be negative; " + accepted);
   return v;
 }
 
@@ -68,12 +70,12 @@ bool Catalogue::has_setup_costs() const {
   return false;
 }
 
-std::string Catalogue::column_label(int column) const {
+std::string Catalogue::column_name(int column) const {
   const std::pair<int, const char*> names[] = {{columns.slot, "slot"},         {columns.grade, "grade"},
                                                {columns.unit_cost, "unit_cost"}, {columns.settings, "settings"},
                                                {columns.notes, "notes"},       {columns.setup_cost, "setup_cost"}};
   for (const auto& [c, name] : names)
-    if (c == column && c > 0) return "column " + std::to_string(c) + " (" + name + ")";
+    if (c == column && c > 0) return name;
   return "column " + std::to_string(column);
 }
 
@@ -112,9 +114,9 @@ std::vector<std::vector<CsvField>> parse_csv_records(const std::string& text, co
     const char c = text[i];
     if (c == '"') {
       if (!trim(field.text).empty() || field.quoted)
-        reject_at(name, line, "column " + std::to_string(record.size() + 1) +
-                                  ": a double quote inside an unquoted field; quote the whole field and write "
-                                  "each quote inside it twice (\"\"), as RFC 4180 does");
+        reject_at(name, line, static_cast<int>(record.size() + 1),
+                  "a double quote inside an unquoted field; quote the whole field and write each quote inside it "
+                  "twice (\"\"), as RFC 4180 does");
       field.quoted = true;
       field.text.clear();  // spaces before the opening quote are not part of the field
       const int opened = line;
@@ -139,14 +141,14 @@ std::vector<std::vector<CsvField>> parse_csv_records(const std::string& text, co
         field.text += text[i++];
       }
       if (!closed)
-        reject_at(name, opened, "column " + std::to_string(record.size() + 1) +
-                                    ": a quoted field is never closed; add the closing double quote");
+        reject_at(name, opened, static_cast<int>(record.size() + 1),
+                  "a quoted field is never closed; add the closing double quote");
       // Only spaces may follow the closing quote before the separator.
       while (i < n && (text[i] == ' ' || text[i] == '\t')) ++i;
       if (i < n && text[i] != ',' && text[i] != '\n' && text[i] != '\r')
-        reject_at(name, line, "column " + std::to_string(record.size() + 1) +
-                                  ": text after a closing double quote; quote the whole field and write each quote "
-                                  "inside it twice (\"\")");
+        reject_at(name, line, static_cast<int>(record.size() + 1),
+                  "text after a closing double quote; quote the whole field and write each quote inside it twice "
+                  "(\"\")");
       continue;
     }
     if (c == ',') {
@@ -184,20 +186,20 @@ Catalogue parse_catalogue(const std::string& text, const std::string& name) {
   const std::string accepted_columns = "the columns are slot, grade, unit_cost, settings (required) and notes, "
                                        "setup_cost (optional)";
   for (std::size_t c = 0; c < head.size(); ++c) {
-    const std::string col = "column " + std::to_string(c + 1);
+    const int col = static_cast<int>(c + 1);
     const std::string h = lower(trim(head[c].text));
     const auto it = known.find(h);
-    if (it == known.end()) refuse(name, header_line, col, trim(head[c].text), "unknown column; " + accepted_columns);
+    if (it == known.end()) refuse(name, header_line, col, "header", trim(head[c].text), "unknown column; " + accepted_columns);
     if (*it->second != 0)
-      refuse(name, header_line, col, h, "the column is already column " + std::to_string(*it->second) +
-                                            "; each column appears once");
+      refuse(name, header_line, col, "header", h,
+             "the column is already column " + std::to_string(*it->second) + "; each column appears once");
     *it->second = static_cast<int>(c + 1);
   }
   std::string header_text;
   for (const auto& h : head) header_text += (header_text.empty() ? "" : ",") + trim(h.text);
   for (const char* required : {"slot", "grade", "unit_cost", "settings"})
     if (*known.at(required) == 0)
-      refuse(name, header_line, "header", header_text,
+      refuse(name, header_line, 0, "header", header_text,
              std::string("the required column '") + required + "' is missing; " + accepted_columns);
 
   namespace fs = std::filesystem;
@@ -207,29 +209,28 @@ Catalogue parse_catalogue(const std::string& text, const std::string& name) {
     const auto& rec = records[r];
     const int line = rec.front().line;
     if (rec.size() != head.size())
-      reject_at(name, line, "column " + std::to_string(std::min(rec.size(), head.size()) + 1) + ": the row has " +
-                                std::to_string(rec.size()) + " fields and the header " + std::to_string(head.size()) +
-                                "; every row has one field per column (an empty field is written as nothing "
-                                "between two commas)");
+      reject_at(name, line, static_cast<int>(std::min(rec.size(), head.size()) + 1),
+                "the row has " + std::to_string(rec.size()) + " fields and the header " + std::to_string(head.size()) +
+                    "; every row has one field per column (an empty field is written as nothing between two commas)");
     auto field = [&](int column) { return column > 0 ? trim(rec[column - 1].text) : std::string(); };
     auto field_line = [&](int column) { return rec[column - 1].line; };
 
     const std::string slot = field(cat.columns.slot);
-    if (slot.empty()) refuse(name, line, cat.column_label(cat.columns.slot), "", "every row names its slot");
+    if (slot.empty()) refuse(name, line, cat.columns.slot, "slot", "", "every row names its slot");
     GradeOption opt;
     opt.line = line;
     opt.grade = field(cat.columns.grade);
-    if (opt.grade.empty()) refuse(name, line, cat.column_label(cat.columns.grade), "", "every row names its grade");
+    if (opt.grade.empty()) refuse(name, line, cat.columns.grade, "grade", "", "every row names its grade");
     opt.unit_cost = read_cost(field(cat.columns.unit_cost), name, field_line(cat.columns.unit_cost),
-                              cat.column_label(cat.columns.unit_cost));
+                              cat.columns.unit_cost, "unit_cost");
     if (cat.columns.setup_cost > 0 && !field(cat.columns.setup_cost).empty())
       opt.setup_cost = read_cost(field(cat.columns.setup_cost), name, field_line(cat.columns.setup_cost),
-                                 cat.column_label(cat.columns.setup_cost));
+                                 cat.columns.setup_cost, "setup_cost");
     opt.notes = field(cat.columns.notes);
 
     // Settings: key=value items separated by ';'.
-    const std::string settings_col = cat.column_label(cat.columns.settings);
-    const int settings_line = field_line(cat.columns.settings);
+    const int settings_col = cat.columns.settings;
+    const int settings_line = field_line(settings_col);
     std::set<std::string> keys;
     const std::string all = rec[cat.columns.settings - 1].text;
     std::size_t begin = 0;
@@ -241,25 +242,25 @@ Catalogue parse_catalogue(const std::string& text, const std::string& name) {
       if (item.empty()) continue;  // "a=1;" and an option that keeps the scenario's parts
       const auto eq = item.find('=');
       if (eq == std::string::npos)
-        refuse(name, settings_line, settings_col, item,
+        refuse(name, settings_line, settings_col, "settings", item,
                "a setting is key=value, e.g. sensor.r25_tol=1%; settings are separated by ';'");
       GradeSetting s;
       s.key = trim(item.substr(0, eq));
       s.value = trim(item.substr(eq + 1));
       if (!find_key(s.key))
-        refuse(name, settings_line, settings_col, item,
+        refuse(name, settings_line, settings_col, "settings", item,
                "'" + s.key + "' names no scenario key; `thermargin check --help` lists them (section.key, e.g. "
                "sensor.r25_tol)");
       if (!keys.insert(s.key).second)
-        refuse(name, settings_line, settings_col, item, "'" + s.key + "' is set twice in this option");
+        refuse(name, settings_line, settings_col, "settings", item, "'" + s.key + "' is set twice in this option");
       // A file named by a grade is read relative to the catalogue, as a
       // scenario's table file is read relative to the scenario.
       if (s.key.ends_with("_file") && !s.value.empty() && fs::path(s.value).is_relative())
         s.value = (dir / s.value).string();
-      s.where = Where{Origin::catalogue, name, settings_line, s.key};
+      s.where = Where{Origin::catalogue, name, settings_line, s.key, settings_col};
       const auto [owner, fresh] = key_owner.emplace(s.key, std::make_pair(slot, line));
       if (!fresh && owner->second.first != slot)
-        refuse(name, settings_line, settings_col, item,
+        refuse(name, settings_line, settings_col, "settings", item,
                "'" + s.key + "' is already graded by slot '" + owner->second.first + "' (line " +
                    std::to_string(owner->second.second) +
                    "); a key belongs to one slot, or two slots would decide it together");
@@ -273,7 +274,7 @@ Catalogue parse_catalogue(const std::string& text, const std::string& name) {
     }
     for (const auto& other : slot_it->options)
       if (other.grade == opt.grade)
-        refuse(name, field_line(cat.columns.grade), cat.column_label(cat.columns.grade), opt.grade,
+        refuse(name, field_line(cat.columns.grade), cat.columns.grade, "grade", opt.grade,
                "slot '" + slot + "' already has this grade (line " + std::to_string(other.line) +
                    "); each grade of a slot is named once");
     slot_it->options.push_back(std::move(opt));

@@ -24,7 +24,10 @@ std::string Where::origin() const {
     case Origin::file:
     case Origin::catalogue: break;
   }
-  return line > 0 ? file + ":" + std::to_string(line) : file;
+  if (line <= 0) return file;
+  std::string at = file + ":" + std::to_string(line);
+  if (column > 0) at += ":" + std::to_string(column);
+  return at;
 }
 
 void reject(const Where& where, std::string_view value, std::string_view accepted) {
@@ -36,9 +39,10 @@ void reject(const Where& where, std::string_view value, std::string_view accepte
   throw input_error(message);
 }
 
-void reject_at(const std::string& file, int line, std::string_view message) {
-  std::string text = file;
-  if (line > 0) text += ":" + std::to_string(line);
+void reject_at(const std::string& file, int line, std::string_view message) { reject_at(file, line, 0, message); }
+
+void reject_at(const std::string& file, int line, int column, std::string_view message) {
+  std::string text = Where{Origin::file, file, line, "", column}.origin();
   text += ": ";
   text += message;
   throw input_error(text);

@@ -414,7 +414,8 @@ void validate_grades(const Scenario& scenario, const Catalogue& cat, const Grade
       for (const auto& o : s.options)
         if (o.setup_cost > 0.0)
           reject(option("--volume"), "",
-                 "the catalogue has setup costs (" + cat.file + ":" + std::to_string(o.line) +
+                 "the catalogue has setup costs (" +
+                     Where{Origin::catalogue, cat.file, o.line, "", cat.columns.setup_cost}.origin() +
                      "); give the production volume they are spread over, e.g. --volume 10000");
   }
   if (options.re_pick)
@@ -422,7 +423,7 @@ void validate_grades(const Scenario& scenario, const Catalogue& cat, const Grade
       for (const auto& o : s.options)
         for (const auto& st : o.settings)
           if (st.key == "divider.r_fixed")
-            reject(Where{Origin::catalogue, cat.file, st.where.line, cat.column_label(cat.columns.settings)},
+            reject(Where{Origin::catalogue, cat.file, st.where.line, cat.column_name(cat.columns.settings), cat.columns.settings},
                    st.key + "=" + st.value,
                    "--re-pick chooses divider.r_fixed for every combination; grade the resistor's tolerance "
                    "(divider.r_fixed_tol) instead, or drop --re-pick");
@@ -437,8 +438,10 @@ void validate_grades(const Scenario& scenario, const Catalogue& cat, const Grade
         apply(s, o);
         (void)build_design(s);
       } catch (const input_error& e) {
-        throw input_error(std::string(e.what()) + " [set in " + cat.column_label(cat.columns.settings) + " by grade '" +
-                          o.grade + "' of slot '" + slot.name + "']");
+        const int line = o.settings.empty() ? o.line : o.settings.front().where.line;
+        const Where settings{Origin::catalogue, cat.file, line, "", cat.columns.settings};
+        throw input_error(std::string(e.what()) + " [set by grade '" + o.grade + "' of slot '" + slot.name + "', " +
+                          settings.origin() + "]");
       }
     }
   if (cat.slots.size() > 1) {

@@ -57,16 +57,18 @@ RtData parse_rt_data(const std::string& text, const std::string& name) {
       reject_at(name, line_no,
                 "expected 2 or 3 columns: temperature (degC), resistance (ohm), optional uncertainty (ohm or %); found " +
                     std::to_string(fields.size()));
-    Where w{Origin::file, name, line_no, "column 1 (temperature)"};
+    Where w{Origin::file, name, line_no, "temperature", 1};
     RtPoint p{};
     p.line = line_no;
     p.t_celsius = parse_quantity(fields[0], Quantity::temperature, w);
     if (p.t_celsius <= -kelvin_offset) reject(w, fields[0], "must be above absolute zero (-273.15 degC)");
-    w.key = "column 2 (resistance)";
+    w.key = "resistance";
+    w.column = 2;
     p.r_ohm = parse_quantity(fields[1], Quantity::resistance, w);
     if (!(p.r_ohm > 0.0)) reject(w, fields[1], "must be a resistance > 0");
     if (fields.size() == 3) {
-      w.key = "column 3 (uncertainty)";
+      w.key = "uncertainty";
+      w.column = 3;
       const bool relative = fields[2].find('%') != std::string::npos;
       const double u = parse_quantity(fields[2], relative ? Quantity::ratio : Quantity::resistance, w);
       if (!(u > 0.0)) reject(w, fields[2], "must be an uncertainty > 0, in ohm or %");
@@ -77,7 +79,7 @@ RtData parse_rt_data(const std::string& text, const std::string& name) {
   }
   for (const auto& p : data.points)
     if (data.has_uncertainty && p.u_ohm == 0.0)
-      reject_at(name, p.line, "column 3 (uncertainty) is missing here but given on other lines; give it on every line or none");
+      reject_at(name, p.line, 3, "the uncertainty is missing here but given on other lines; give it on every line or none");
   return data;
 }
 
@@ -90,13 +92,12 @@ void require_monotonic(const RtData& data) {
   const bool r_up = p[1].r_ohm > p[0].r_ohm;
   for (std::size_t i = 1; i < p.size(); ++i) {
     if (p[i].t_celsius == p[i - 1].t_celsius)
-      reject_at(data.file, p[i].line, "column 1 (temperature): duplicate temperature; each temperature may appear once");
+      reject_at(data.file, p[i].line, 1, "duplicate temperature; each temperature may appear once");
     if ((p[i].t_celsius > p[i - 1].t_celsius) != t_up)
-      reject_at(data.file, p[i].line,
-                "column 1 (temperature): temperatures must be strictly increasing (or strictly decreasing) down the file");
+      reject_at(data.file, p[i].line, 1,
+                "temperatures must be strictly increasing (or strictly decreasing) down the file");
     if (p[i].r_ohm == p[i - 1].r_ohm || (p[i].r_ohm > p[i - 1].r_ohm) != r_up)
-      reject_at(data.file, p[i].line,
-                "column 2 (resistance): resistance must change strictly monotonically with temperature");
+      reject_at(data.file, p[i].line, 2, "resistance must change strictly monotonically with temperature");
   }
 }
 

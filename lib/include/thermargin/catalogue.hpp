@@ -34,7 +34,7 @@ namespace thermargin {
 struct GradeSetting {
   std::string key;    // "sensor.r25_tol"
   std::string value;  // as written ("3%"); a relative *_file path is made relative to the catalogue
-  Where where;        // Origin::catalogue, the catalogue file and the row's line
+  Where where;        // Origin::catalogue, the catalogue file, the row's line and the settings column
 };
 
 // One purchasable option for one slot.
@@ -66,8 +66,9 @@ struct Catalogue {
   // One option per slot: the product of the slots' option counts (saturating at SIZE_MAX).
   std::size_t combinations() const;
   bool has_setup_costs() const;
-  // "column 4 (settings)", for messages.
-  std::string column_label(int column) const;
+  // The name of a 1-based column ("settings"), for messages, which give
+  // its number in the location (parts.csv:3:4).
+  std::string column_name(int column) const;
 };
 
 // The most combinations one catalogue may describe: beyond, the evaluation

@@ -15,13 +15,15 @@ namespace thermargin {
 
 enum class Origin { built_in, file, command_line, catalogue };
 
-// Where a value came from: a file and line, the command line, or a default.
+// Where a value came from: a file, line and column, the command line, or a
+// default.
 struct Where {
   Origin kind = Origin::built_in;
   std::string file;  // the file for Origin::file and Origin::catalogue
   int line = 0;      // 1-based line in that file; 0 when unknown
-  std::string key;   // "divider.r_fixed", or "column 2" for a data file
-  std::string origin() const;  // "scenario.ini:12", "command line", "default"
+  std::string key;   // "divider.r_fixed", or a data file's column name ("resistance")
+  int column = 0;    // 1-based column (field) of a data file's row; 0 when none
+  std::string origin() const;  // "scenario.ini:12", "parts.csv:3:4", "command line", "default"
 };
 
 // The message as one printable line: a line break or another control
@@ -39,7 +41,9 @@ class input_error : public std::runtime_error {
 [[noreturn]] void reject(const Where& where, std::string_view value, std::string_view accepted);
 
 // Rejects something that is not one value (a missing file, a malformed line):
-// "table.csv:7: expected two numbers, temperature in °C and resistance in Ω".
+// "table.csv:7: expected two numbers, temperature in °C and resistance in Ω",
+// or at one column (field) of a data file's line: "parts.csv:3:2: ...".
 [[noreturn]] void reject_at(const std::string& file, int line, std::string_view message);
+[[noreturn]] void reject_at(const std::string& file, int line, int column, std::string_view message);
 
 }  // namespace thermargin
