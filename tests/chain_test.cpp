@@ -18,6 +18,7 @@
 
 #include <gtest/gtest.h>
 
+#include "engine_fixture.hpp"
 #include "thermargin/adc.hpp"
 #include "thermargin/scenario.hpp"
 #include "thermargin/sensor.hpp"
@@ -25,7 +26,8 @@
 namespace thermargin {
 namespace {
 
-using Keys = std::vector<std::pair<std::string, std::string>>;
+using Keys = testing::Overrides;
+using testing::design_with;
 
 constexpr double round_trip_tolerance = 1e-9;  // K (model.md §2's solver tolerance; the chain is exact)
 constexpr double voltage_tolerance = 1e-12;    // V, rounding of a few operations on volts
@@ -33,25 +35,13 @@ constexpr double code_relative_tolerance = 1e-13;
 constexpr double lsb_tolerance = 1e-12;   // LSB, a few roundings of numbers near 1000
 constexpr double grid_tolerance = 1e-9;   // K, distance of a rounded output from its grid
 
-Design design_from(const Keys& keys) {
-  Scenario s;
-  for (const auto& [k, v] : keys) s.set(k, v, Where{Origin::command_line, "", 0, k});
-  return build_design(s);
-}
-
-// An ideal converter and firmware: what is left is the chain's algebra.
-Keys ideal(Keys extra) {
-  Keys k = {{"adc.bits", "24"},          {"adc.offset", "0"},          {"adc.gain_error", "0"},
-            {"adc.inl", "0"},            {"adc.noise", "0"},           {"sensor.dissipation", "0"},
-            {"firmware.conversion", "exact"}, {"firmware.resolution", "0"}, {"firmware.full_scale", "pow2"}};
-  k.insert(k.end(), extra.begin(), extra.end());
-  return k;
-}
+// An ideal converter and firmware (engine_fixture.hpp): what is left is the chain's algebra.
+Keys ideal(const Keys& extra) { return testing::ideal_converter(extra); }
 
 std::size_t at(Source s) { return static_cast<std::size_t>(s); }
 
-const std::string table_5k = std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/ntc10k_sh_5K.csv";
-const std::string table_0_50 = std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/ntc10k_sh_0_50.csv";
+const std::string table_5k = testing::data_path("chain/ntc10k_sh_5K.csv");
+const std::string table_0_50 = testing::data_path("chain/ntc10k_sh_0_50.csv");
 
 struct Model {
   const char* name;
@@ -95,7 +85,7 @@ TEST(ChainRoundTrip, ExactConversionReturnsTheTrueTemperatureForEveryModelPlacem
                              {"divider.r_parallel", r_parallel},
                              {"sensor.lead_resistance", lead},
                              {"firmware.lead_compensation", lead}});
-          const Design d = design_from(k);
+          const Design d = design_with(k);
           expect_round_trip(d, std::string(m.name) + " " + placement + " r_par=" + r_parallel + " lead=" + lead);
         }
       }
@@ -105,9 +95,9 @@ TEST(ChainRoundTrip, ExactConversionReturnsTheTrueTemperatureForEveryModelPlacem
 
 TEST(ChainRoundTrip, SteinhartHartConversionOfASteinhartHartSensorIsExact) {
   // Fitted through the nominal curve (the default) and given explicitly.
-  expect_round_trip(design_from(ideal({{"sensor.model", "steinhart-hart"}, {"firmware.conversion", "steinhart-hart"}})),
+  expect_round_trip(design_with(ideal({{"sensor.model", "steinhart-hart"}, {"firmware.conversion", "steinhart-hart"}})),
                     "fitted");
-  expect_round_trip(design_from(ideal({{"sensor.model", "steinhart-hart"},
+  expect_round_trip(design_with(ideal({{"sensor.model", "steinhart-hart"},
                                        {"firmware.conversion", "steinhart-hart"},
                                        {"firmware.a", "1.129148e-3"},
                                        {"firmware.b", "2.34125e-4"},
@@ -117,22 +107,22 @@ TEST(ChainRoundTrip, SteinhartHartConversionOfASteinhartHartSensorIsExact) {
 }
 
 TEST(ChainRoundTrip, BetaConversionOfABetaSensorIsExact) {
-  expect_round_trip(design_from(ideal({{"sensor.beta", "3435"}, {"firmware.conversion", "beta"}})), "low");
-  expect_round_trip(design_from(ideal({{"sensor.r25", "47k"}, {"divider.r_fixed", "47k"}, {"firmware.conversion", "beta"},
+  expect_round_trip(design_with(ideal({{"sensor.beta", "3435"}, {"firmware.conversion", "beta"}})), "low");
+  expect_round_trip(design_with(ideal({{"sensor.r25", "47k"}, {"divider.r_fixed", "47k"}, {"firmware.conversion", "beta"},
                                        {"divider.placement", "high"}, {"divider.r_parallel", "220k"}})),
                     "high with shunt");
 }
 
 TEST(ChainRoundTrip, AbsoluteReferenceIsExactWithNominalVoltages) {
   // The firmware scales the ratio by V_ref,nom/V_exc,nom (model.md §6 step 1).
-  expect_round_trip(design_from(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
+  expect_round_trip(design_with(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
                                        {"supply.v_reference", "3.0V"}})),
                     "absolute");
 }
 
 TEST(ChainRoundTrip, RatiometricReadingDoesNotDependOnTheSupplyVoltage) {
-  const Design a = design_from(ideal({{"supply.v_excitation", "3.3V"}}));
-  const Design b = design_from(ideal({{"supply.v_excitation", "5V"}}));
+  const Design a = design_with(ideal({{"supply.v_excitation", "3.3V"}}));
+  const Design b = design_with(ideal({{"supply.v_excitation", "5V"}}));
   const Chain ca(a), cb(b);
   for (double t : {-20.0, 25.0, 80.0})
     EXPECT_NEAR(ca.front_end(nominal_deviations(), t).x_static / cb.front_end(nominal_deviations(), t).x_static, 1.0,
@@ -155,7 +145,7 @@ TEST(ChainStages, TheFrontEndIsItsAnalogStageThenTheAdcStageToTheBit) {
   for (const auto& m : every_model()) {
     Keys keys = m.keys;
     keys.insert(keys.end(), {{"divider.r_parallel", m.r_parallel}, {"adc.leakage", "10n"}, {"conditions.board", "0..50"}});
-    const Design d = design_from(keys);
+    const Design d = design_with(keys);
     const Chain chain(d);
     ASSERT_GE(d.inputs.size(), 6u) << m.name;
     const double step = (d.conditions.t_max - d.conditions.t_min) / 10.0;
@@ -183,7 +173,7 @@ TEST(ChainStages, TheFrontEndIsItsAnalogStageThenTheAdcStageToTheBit) {
 TEST(ChainSpread, RtdClassFactorMovesTheReadingByExactlyTheClassBound) {
   // model.md §1: R_unit(t) = R_nom(t + k·bound(t)); the exact conversion
   // reads that unit at t + k·bound(t). IEC 60751 class B: 0.30 + 0.005|t|.
-  const Design d = design_from(ideal({{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"divider.r_fixed", "100"},
+  const Design d = design_with(ideal({{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"divider.r_fixed", "100"},
                                       {"sensor.rtd_class", "B"}, {"conditions.t_min", "-50"}, {"conditions.t_max", "400"}}));
   const Chain chain(d);
   for (double k : {-1.0, 1.0}) {
@@ -199,7 +189,7 @@ TEST(ChainSpread, R25AndBetaDeviationsMoveTheReadingAsTheBetaEquationSays) {
   // has resistance R at T, which the nominal curve reads at T_rep with
   // 1/T_rep = 1/T0 + (ln R/R25)/B = 1/T0 + [ln(1 + δR) + B'(1/T − 1/T0)]/B.
   const double beta = 3950.0;
-  const Design d = design_from(ideal({}));
+  const Design d = design_with(ideal({}));
   const Chain chain(d);
   for (const auto& [dr, db] : {std::pair{0.01, 0.0}, {0.0, 0.01}, {-0.02, 0.015}}) {
     Deviations dev{};
@@ -218,7 +208,7 @@ TEST(ChainSpread, R25AndBetaDeviationsMoveTheReadingAsTheBetaEquationSays) {
 TEST(Divider, NodeVoltageWithLeakageMatchesNodalAnalysis) {
   // Kirchhoff's current law at the node: (V_exc − V)/R_top = V/R_bottom + I_leak.
   for (const char* placement : {"low", "high"}) {
-    const Design d = design_from(ideal({{"divider.placement", placement}, {"adc.leakage", "1u"}}));
+    const Design d = design_with(ideal({{"divider.placement", placement}, {"adc.leakage", "1u"}}));
     const Chain chain(d);
     for (double leak : {-1e-6, 0.0, 1e-6}) {
       Deviations dev{};
@@ -238,7 +228,7 @@ TEST(Divider, FixedResistorTempcoActsAtTheBoardTemperature) {
   // model.md §3: R_fixed·(1 + δ)(1 + α(T_b − 25 °C)). A tempco deviation α
   // equals a tolerance deviation α·(T_b − 25).
   for (const char* board : {"40", "sensor"}) {
-    const Design d = design_from(ideal({{"conditions.board", board}}));
+    const Design d = design_with(ideal({{"conditions.board", board}}));
     const Chain chain(d);
     for (double t : {-20.0, 25.0, 60.0}) {
       const double t_board = std::string(board) == "sensor" ? t : 40.0;
@@ -253,8 +243,8 @@ TEST(Divider, FixedResistorTempcoActsAtTheBoardTemperature) {
 TEST(Divider, BoardRangeDeviationIsMeasuredFromItsMiddle) {
   // A board range 10..40 °C sits at 25 °C nominally; a deviation of +15 K
   // puts it at 40 °C.
-  const Design range = design_from(ideal({{"conditions.board", "10..40"}}));
-  const Design fixed = design_from(ideal({{"conditions.board", "40"}}));
+  const Design range = design_with(ideal({{"conditions.board", "10..40"}}));
+  const Design fixed = design_with(ideal({{"conditions.board", "40"}}));
   const Chain a(range), b(fixed);
   Deviations dev{};
   dev[at(Source::r_fixed_tempco)] = 100e-6;
@@ -268,7 +258,7 @@ TEST(Divider, BoardRangeDeviationIsMeasuredFromItsMiddle) {
 TEST(Supply, AbsoluteExcitationAndReferenceScaleTheCode) {
   // x = V/V_ref·2^N (model.md §5) with V ∝ V_exc: +1 % on the excitation is
   // +1 % on the code, +1 % on the reference is the code divided by 1.01.
-  const Design d = design_from(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
+  const Design d = design_with(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
                                       {"supply.v_reference", "3.0V"}, {"conditions.board", "45"}}));
   const Chain chain(d);
   const double nominal = chain.front_end(nominal_deviations(), 30.0).x_static;
@@ -330,7 +320,7 @@ TEST(ChainStatus, ContinuousReadingSaturatesOutsideZeroToTheTopCode) {
 TEST(ChainStatus, NodeAboveTheReferenceIsSaturated) {
   // 10k/10k from 3.3 V into a 1.0 V reference: 1.65 V at 25 °C is off scale,
   // 0.37 V at 80 °C is not.
-  const Design d = design_from({{"supply.ratiometric", "false"}, {"supply.v_reference", "1.0V"}});
+  const Design d = design_with({{"supply.ratiometric", "false"}, {"supply.v_reference", "1.0V"}});
   const Chain chain(d);
   const Evaluation hot = chain.evaluate(nominal_deviations(), 80.0);
   const Evaluation warm = chain.evaluate(nominal_deviations(), 25.0);
@@ -340,7 +330,7 @@ TEST(ChainStatus, NodeAboveTheReferenceIsSaturated) {
 }
 
 TEST(ChainStatus, AReadingShiftedOffScaleIsSaturated) {
-  const Design d = design_from({});
+  const Design d = design_with({});
   const Chain chain(d);
   ReadingShift down, up;
   down.at_t = -1e6;
@@ -350,7 +340,7 @@ TEST(ChainStatus, AReadingShiftedOffScaleIsSaturated) {
 }
 
 TEST(ChainStatus, SensorOutsideItsTableIsOutOfTable) {
-  const Design d = design_from(ideal({{"sensor.model", "table"}, {"sensor.table_file", table_0_50},
+  const Design d = design_with(ideal({{"sensor.model", "table"}, {"sensor.table_file", table_0_50},
                                       {"conditions.t_min", "0"}, {"conditions.t_max", "60"}}));
   const Chain chain(d);
   EXPECT_EQ(chain.evaluate(nominal_deviations(), 50.0).status, Status::ok);
@@ -372,8 +362,8 @@ Deviations a_poor_unit() {
 
 TEST(Calibration, OffsetLeavesOnlyTheReferenceErrorAtTheCalibrationPoint) {
   // calibration.hpp: the unit's error at t_cal becomes the reference's error e.
-  const Design none = design_from(ideal({}));
-  const Design offset = design_from(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
+  const Design none = design_with(ideal({}));
+  const Design offset = design_with(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
                                            {"firmware.calibration_uncertainty", "0.1"}}));
   const Chain raw(none), calibrated(offset);
   Deviations dev = a_poor_unit();
@@ -387,7 +377,7 @@ TEST(Calibration, OffsetLeavesOnlyTheReferenceErrorAtTheCalibrationPoint) {
 }
 
 TEST(Calibration, TwoPointLeavesOnlyTheReferenceErrorsAtBothPoints) {
-  const Design d = design_from(ideal({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "0,60"},
+  const Design d = design_with(ideal({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "0,60"},
                                       {"firmware.calibration_uncertainty", "0.1"}}));
   const Chain chain(d);
   Deviations dev = a_poor_unit();
@@ -400,7 +390,7 @@ TEST(Calibration, TwoPointLeavesOnlyTheReferenceErrorsAtBothPoints) {
 TEST(Calibration, CalibratesTheSameUnitAtTheSameBoardCorner) {
   // The calibration reading sees every deviation of the unit, the board's
   // included: the error at t_cal is the reference's whatever the board does.
-  const Design d = design_from(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
+  const Design d = design_with(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
                                       {"divider.r_fixed_tempco", "200ppm"}}));
   const Chain chain(d);
   for (double board : {-15.0, 0.0, 15.0}) {
@@ -416,7 +406,7 @@ TEST(Calibration, OutputIsRoundedBeforeTheCalibrationIsApplied) {
   // reported value is a multiple of the resolution shifted by
   // (reference − rounded reading at t_cal): with a reference error of
   // 0.03 K, reported − 0.03 − 25 + round(reading at 25) is a multiple of 0.5.
-  const Design d = design_from(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
+  const Design d = design_with(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
                                       {"firmware.resolution", "0.5"}}));
   const Chain chain(d);
   Deviations dev = a_poor_unit();

@@ -14,7 +14,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <limits>
@@ -24,8 +23,9 @@
 #include <vector>
 
 #include <gtest/gtest.h>
-#include <unistd.h>
 
+#include "cli_run.hpp"
+#include "engine_fixture.hpp"
 #include "thermargin/budget.hpp"
 #include "thermargin/caution.hpp"
 #include "thermargin/worst_case.hpp"
@@ -52,14 +52,7 @@ constexpr double max_sensitivity_tolerance = 1e-3;  // relative
 // The ADC sensitivity is a central difference over ±0.01 K (nominal.hpp).
 constexpr double sensitivity_tolerance = 1e-4;  // relative
 
-const std::string source_dir = THERMARGIN_SOURCE_DIR;
-
-Scenario scenario_with(const std::vector<std::pair<std::string, std::string>>& overrides, const std::string& file = "") {
-  Scenario s;
-  if (!file.empty()) s.load_file(file);
-  for (const auto& [k, v] : overrides) s.set(k, v, Where{Origin::command_line, "", 0, k});
-  return s;
-}
+using testing::scenario_with;
 
 std::string text(double v) {
   std::ostringstream o;
@@ -198,10 +191,7 @@ Truth worst_case_of(const Scenario& base, double r_fixed) {
 }
 
 TEST(Picker, WinnerEqualsABruteForceWorstCaseOfEveryCandidateOnEveryScenario) {
-  std::vector<std::string> files;
-  for (const auto& e : std::filesystem::directory_iterator(source_dir + "/scenarios"))
-    if (e.path().extension() == ".ini") files.push_back(e.path().string());
-  std::sort(files.begin(), files.end());
+  const std::vector<std::string> files = testing::scenario_files();
   ASSERT_GE(files.size(), 5u);
   for (const auto& file : files) {
     SCOPED_TRACE(file);
@@ -235,7 +225,7 @@ TEST(Picker, WinnerEqualsABruteForceWorstCaseOfEveryCandidateOnEveryScenario) {
 TEST(Picker, WinnerAndItsFiguresEqualTheBudgetOfThatDesign) {
   // The whole budget (every engine but Monte Carlo, the full range) of the
   // winning design reports the same window figures as the picker's row.
-  const Scenario s = scenario_with({}, source_dir + "/scenarios/fermentation_probe.ini");
+  const Scenario s = scenario_with({}, testing::scenario_path("fermentation_probe.ini"));
   PickOptions o;
   o.series = Series::e24;
   o.range_low = 5e3;
@@ -427,9 +417,8 @@ TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerOverTheWholeSeries) {
   e24.guidance = false;
   e24.threads = 1;
   std::vector<Case> cases;
-  for (const auto& e : std::filesystem::directory_iterator(source_dir + "/scenarios"))
-    if (e.path().extension() == ".ini") cases.push_back({e.path().filename().string(), scenario_with({}, e.path().string()), e24});
-  std::sort(cases.begin(), cases.end(), [](const Case& a, const Case& b) { return a.label < b.label; });
+  for (const auto& file : testing::scenario_files())
+    cases.push_back({std::filesystem::path(file).filename().string(), scenario_with({}, file), e24});
   cases.push_back({"offset calibration", scenario_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}), e24});
   cases.push_back({"two-point calibration",
                    scenario_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"}}), e24});
@@ -512,16 +501,11 @@ TEST(Picker, ContinuousOptimumAgreesWithScipyOnAReimplementedObjective) {
   ASSERT_TRUE(got.guidance.optimum.r);
   std::ostringstream cmd;
   cmd.precision(17);
-  cmd << THERMARGIN_PYTHON << " " << source_dir << "/tests/reference/pick_worst_case.py"
-      << " 10000 3950 0.01 0.01 0.01 2 0.002 1 12 0 60 1 " << o.range_low << " " << o.range_high << " 10000 13700 "
-      << *got.guidance.optimum.r;
-  FILE* pipe = popen(cmd.str().c_str(), "r");
-  ASSERT_NE(pipe, nullptr);
-  std::string out;
-  char buf[512];
-  while (std::fgets(buf, sizeof buf, pipe)) out += buf;
-  ASSERT_EQ(pclose(pipe), 0) << cmd.str();
-  const auto j = nlohmann::json::parse(out);
+  cmd << testing::reference_command("pick_worst_case.py", "") << "10000 3950 0.01 0.01 0.01 2 0.002 1 12 0 60 1 "
+      << o.range_low << " " << o.range_high << " 10000 13700 " << *got.guidance.optimum.r;
+  const testing::CliOutcome py = testing::run_shell(cmd.str());
+  ASSERT_EQ(py.status, 0) << cmd.str() << "\n" << py.err;
+  const auto j = nlohmann::json::parse(py.out);
   const double r_scipy = j["r"], f_scipy = j["objective"];
   // The two implementations of the objective agree where both are evaluated.
   const std::vector<double> at{10000.0, 13700.0, *got.guidance.optimum.r};
@@ -574,30 +558,9 @@ TEST(Picker, BadOptionsAreRejectedBeforeAnyWork) {
 
 // --- The command line --------------------------------------------------------
 
-struct CliRun {
-  int status = -1;
-  std::string out, err;
-};
+using CliRun = testing::CliOutcome;
 
-CliRun run_cli(const std::string& args) {
-  const auto dir = std::filesystem::temp_directory_path() / ("thermargin_pick_test_" + std::to_string(::getpid()));
-  std::filesystem::create_directories(dir);
-  const auto err_file = dir / "stderr.txt";
-  const std::string command = std::string(THERMARGIN_CLI) + " pick " + args + " 2>" + err_file.string();
-  CliRun r;
-  FILE* pipe = popen(command.c_str(), "r");
-  if (!pipe) return r;
-  char buf[4096];
-  while (std::size_t n = std::fread(buf, 1, sizeof buf, pipe)) r.out.append(buf, n);
-  const int status = pclose(pipe);
-  r.status = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  std::ifstream in(err_file);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  r.err = ss.str();
-  std::filesystem::remove_all(dir);
-  return r;
-}
+CliRun run_cli(const std::string& args) { return testing::run_cli("pick " + args); }
 
 TEST(PickCli, JsonHasTheInterfaceFieldsBestFirstAndTheWinner) {
   const CliRun r = run_cli("--series e24 --range 8k..20k --top 3 --format json");
