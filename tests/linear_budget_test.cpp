@@ -10,24 +10,15 @@
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
+#include "jcgm101_additive.hpp"
 #include "thermargin/budget.hpp"
 
 namespace thermargin {
 namespace {
 
 // Y = X1 + X2 + X3 + X4 (JCGM 101:2008 §9.2), the Xi on four source slots.
-constexpr Source slot[4] = {Source::r25, Source::beta, Source::r_fixed, Source::adc_offset};
-std::optional<double> additive(const Deviations& d) {
-  double y = 0.0;
-  for (Source s : slot) y += d[static_cast<std::size_t>(s)];
-  return y;
-}
-
-std::vector<ToleranceInput> four(Distribution dist, double bound) {
-  std::vector<ToleranceInput> in;
-  for (Source s : slot) in.push_back({s, bound, dist, 0.0});
-  return in;
-}
+using testing::additive;
+using testing::four;
 
 TEST(LinearBudget, AdditiveModelOfNormalInputsMatchesJcgm101Section922) {
   // Each Xi ~ N(0, 1) (a ±3 bound at sigma_per_tol = 3): u(y) = 2 and the 95 %

@@ -13,6 +13,7 @@
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
+#include "jcgm101_additive.hpp"
 #include "thermargin/linear_budget.hpp"
 #include "thermargin/random.hpp"
 #include "thermargin/worst_case.hpp"
@@ -37,17 +38,8 @@ TEST(Philox, MatchesRandom123KnownAnswerVectors) {
 
 // --- JCGM 101 §9.2: Y = X1 + X2 + X3 + X4 -----------------------------------------
 
-constexpr Source slot[4] = {Source::r25, Source::beta, Source::r_fixed, Source::adc_offset};
-double additive(const Deviations& d) {
-  double y = 0.0;
-  for (Source s : slot) y += d[static_cast<std::size_t>(s)];
-  return y;
-}
-std::vector<ToleranceInput> four(Distribution dist, double bound) {
-  std::vector<ToleranceInput> in;
-  for (Source s : slot) in.push_back({s, bound, dist, 0.0});
-  return in;
-}
+using testing::additive;
+using testing::four;
 constexpr std::uint64_t trials = 1000000;
 // With 10⁶ trials the endpoint scatter is about 0.005 (§9.2.3) and 0.01
 // (§9.2.4): ±0.02 and ±0.04 are safe (reference-values.md).
@@ -144,6 +136,26 @@ TEST(Distributions, GappedNeverDrawsInsideItsGapAndStaysInItsBound) {
 
 // --- The kernel against the scalar chain -------------------------------------------
 
+// The kernel's block of `units` units from `first` at `temps`, every
+// `stride`-th unit compared with the scalar chain's reading: the same error,
+// or NaN where the chain has a status instead of a number.
+void expect_kernel_matches_the_scalar_chain(const Chain& chain, const std::vector<double>& temps, std::uint64_t first,
+                                            int units, int stride, const std::string& label) {
+  std::vector<double> errors;
+  simulate_block(chain, temps, first, units, errors);
+  for (std::size_t ti = 0; ti < temps.size(); ++ti)
+    for (int u = 0; u < units; u += stride) {
+      // simulate_reading numbers readings by their index in the sweep.
+      const Evaluation e = simulate_reading(chain, first + static_cast<std::uint64_t>(u), static_cast<std::uint32_t>(ti), temps[ti]);
+      const double k = errors[static_cast<std::size_t>(u) + ti * static_cast<std::size_t>(units)];
+      if (e.status != Status::ok) {
+        EXPECT_TRUE(std::isnan(k)) << label << " t=" << temps[ti] << " unit " << u;
+      } else {
+        EXPECT_NEAR(k, e.error, 1e-6) << label << " t=" << temps[ti] << " unit " << u;
+      }
+    }
+}
+
 TEST(MonteCarloKernel, AgreesWithTheScalarChainOnEveryScenario) {
   for (const auto& file : testing::scenario_files()) {
     const Design d = design_with({}, file);
@@ -151,20 +163,7 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainOnEveryScenario) {
     const auto all = d.conditions.temperatures();
     std::vector<double> temps;
     for (std::size_t i = 0; i < all.size(); i += 17) temps.push_back(all[i]);
-    std::vector<double> errors;
-    const std::uint64_t first = 512;
-    simulate_block(chain, temps, first, 64, errors);
-    for (std::size_t ti = 0; ti < temps.size(); ++ti)
-      for (int u = 0; u < 64; u += 7) {
-        // simulate_reading numbers readings by their index in the sweep.
-        const Evaluation e = simulate_reading(chain, first + static_cast<std::uint64_t>(u), static_cast<std::uint32_t>(ti), temps[ti]);
-        const double k = errors[static_cast<std::size_t>(u) + ti * 64];
-        if (e.status != Status::ok) {
-          EXPECT_TRUE(std::isnan(k)) << file << " t=" << temps[ti] << " unit " << u;
-        } else {
-          EXPECT_NEAR(k, e.error, 1e-6) << file << " t=" << temps[ti] << " unit " << u;
-        }
-      }
+    expect_kernel_matches_the_scalar_chain(chain, temps, 512, 64, 7, file);
   }
 }
 
@@ -177,19 +176,7 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainUnderStrongSelfHeating) {
   for (const char* diss : {"0.5mW/K", "0.15mW/K"}) {
     const Design d = design_with({{"sensor.dissipation", diss}, {"conditions.t_step", "7"}});
     const Chain chain(d);
-    const auto temps = d.conditions.temperatures();
-    std::vector<double> errors;
-    simulate_block(chain, temps, 0, 48, errors);
-    for (std::size_t ti = 0; ti < temps.size(); ++ti)
-      for (int u = 0; u < 48; u += 5) {
-        const Evaluation e = simulate_reading(chain, static_cast<std::uint64_t>(u), static_cast<std::uint32_t>(ti), temps[ti]);
-        const double k = errors[static_cast<std::size_t>(u) + ti * 48];
-        if (e.status != Status::ok) {
-          EXPECT_TRUE(std::isnan(k)) << diss << " t=" << temps[ti] << " unit " << u;
-        } else {
-          EXPECT_NEAR(k, e.error, 1e-6) << diss << " t=" << temps[ti] << " unit " << u;
-        }
-      }
+    expect_kernel_matches_the_scalar_chain(chain, d.conditions.temperatures(), 0, 48, 5, diss);
   }
 }
 
