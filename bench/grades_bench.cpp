@@ -31,12 +31,18 @@ constexpr const char* kCatalogue =
     "averaging,16,0.03,adc.averaging=16\n"
     "averaging,64,0.08,adc.averaging=64\n";
 
-void BM_Grades256RePickE96Yield1e4(benchmark::State& state) {
-  const Scenario scenario;
-  const Catalogue cat = parse_catalogue(kCatalogue, "bench.csv");
+// 10^4 Monte Carlo units per combination on the benchmark's thread count.
+GradesOptions yield_1e4(const benchmark::State& state) {
   GradesOptions o;
   o.units = 10000;
   o.threads = static_cast<int>(state.range(0));
+  return o;
+}
+
+void BM_Grades256RePickE96Yield1e4(benchmark::State& state) {
+  const Scenario scenario;
+  const Catalogue cat = parse_catalogue(kCatalogue, "bench.csv");
+  GradesOptions o = yield_1e4(state);
   o.re_pick = true;
   o.pick.series = Series::e96;
   o.pick.range_low = 1e3;
@@ -56,9 +62,7 @@ BENCHMARK(BM_Grades256RePickE96Yield1e4)->Arg(2)->Iterations(1)->Unit(benchmark:
 void BM_Grades256Yield1e4(benchmark::State& state) {
   const Scenario scenario;
   const Catalogue cat = parse_catalogue(kCatalogue, "bench.csv");
-  GradesOptions o;
-  o.units = 10000;
-  o.threads = static_cast<int>(state.range(0));
+  const GradesOptions o = yield_1e4(state);
   for (auto _ : state) {
     const GradesResult g = evaluate_grades(scenario, cat, o);
     benchmark::DoNotOptimize(g.rows.data());

@@ -9,13 +9,13 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 #include <sstream>
 #include <string>
 #include <vector>
 
 #include <gtest/gtest.h>
 
+#include "cli_run.hpp"
 #include "thermargin/error.hpp"
 #include "thermargin/ntc.hpp"
 #include "thermargin/rt_data.hpp"
@@ -23,7 +23,7 @@
 namespace thermargin {
 namespace {
 
-const std::string data_dir = std::string(THERMARGIN_SOURCE_DIR) + "/tests/data/chain/";
+const std::string data_dir = testing::data_path("chain/");
 
 // Two implementations of the same interpolant agree to rounding: the cubic
 // is evaluated in a different order in each.
@@ -42,18 +42,7 @@ RtTable load(const std::string& name) { return RtTable(read_rt_data(data_dir + n
 
 // Runs a reference script and returns the numbers it prints, one a line.
 std::vector<double> run_python(const std::string& arguments) {
-  const std::string command = std::string(THERMARGIN_PYTHON) + " " + THERMARGIN_SOURCE_DIR + "/tests/reference/" + arguments;
-  FILE* pipe = popen(command.c_str(), "r");
-  if (!pipe) return {};
-  std::string out;
-  char buffer[256];
-  while (std::fgets(buffer, sizeof buffer, pipe)) out += buffer;
-  const int status = pclose(pipe);
-  EXPECT_EQ(status, 0) << command;
-  std::vector<double> values;
-  std::istringstream in(out);
-  for (double v; in >> v;) values.push_back(v);
-  return values;
+  return testing::numbers_printed_by(std::string(THERMARGIN_PYTHON) + " " + testing::reference_script(arguments));
 }
 
 void expect_agrees_with_scipy(const std::string& table_name) {

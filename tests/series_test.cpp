@@ -7,12 +7,13 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 #include <sstream>
 #include <string>
 #include <vector>
 
 #include <gtest/gtest.h>
+
+#include "cli_run.hpp"
 
 namespace thermargin {
 namespace {
@@ -24,16 +25,7 @@ std::vector<int> numpy_figures(int n) {
   std::ostringstream cmd;
   cmd << THERMARGIN_PYTHON << " -c \"import numpy as np; print(*np.round(100*10**(np.arange(" << n
       << ")/" << n << ")).astype(int))\"";
-  FILE* pipe = popen(cmd.str().c_str(), "r");
-  std::vector<int> out;
-  if (!pipe) return out;
-  std::string text;
-  char buf[512];
-  while (std::fgets(buf, sizeof buf, pipe)) text += buf;
-  EXPECT_EQ(pclose(pipe), 0) << cmd.str();
-  std::istringstream in(text);
-  for (int v; in >> v;) out.push_back(v);
-  return out;
+  return testing::numbers_printed_by<int>(cmd.str());
 }
 
 TEST(Series, E24IsThePublishedListWithItsHistoricalValues) {
