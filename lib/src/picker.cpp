@@ -1088,7 +1088,8 @@ PickRow pick_winner(const Scenario& scenario, const PickOptions& options, double
     admit(next, &focus);
     settle(st, 1, false, ctx);
     const State& w = st[best_exact(st)];
-    // No readable candidate yet: any readable one would win, no bound helps.
+    // No feasible candidate yet (readable, within the limits): any feasible
+    // one would win, whatever its bound.
     if (!w.row.feasible()) return pick(scenario, o).rows.front();
     enough = w.score + witness_margin * std::fabs(w.score);
     ws = witnesses_of(w, focus);

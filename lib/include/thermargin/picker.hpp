@@ -183,13 +183,16 @@ double best_fixed_resistor(const Scenario& scenario, const PickOptions& options)
 // searched outward from `start` (Ω; a guess such as a similar design's
 // winner; the answer does not depend on it, only the work does). With the
 // worst-case objective, every corner enumerated and no pair, it screens only
-// candidates that might win: the start value and its neighbours, the winner
-// so far from their branch and bound, then a few corners of that winner's
-// box (witnesses) evaluated on every other candidate — each a lower bound of
-// that candidate's worst case — and the most promising candidates the
-// bounds do not rule out, until every candidate is screened or ruled out.
-// It returns the same row as pick() over the whole list. Otherwise it is
-// pick() over the whole list. For other engines (grades --re-pick).
+// candidates that might win: the start value; then, in rounds, a few
+// corners of the best candidate so far (witnesses, at the temperatures where
+// the start's bound is largest and the window's ends) evaluated on every
+// candidate not yet screened — each a lower bound of that candidate's worst
+// case, which rules it out once it passes the best worst case so far — and
+// the few with the smallest bounds that remain screened at those
+// temperatures and joined to the branch and bound, until every candidate is
+// screened or ruled out. It returns the same row as pick() over the whole
+// list. Otherwise (or when no screened candidate is feasible) it is pick()
+// over the whole list. For other engines (grades --re-pick).
 PickRow pick_winner(const Scenario& scenario, const PickOptions& options, double start);
 
 // The three-point linearising resistor for branch resistances R1, R2, R3 at
