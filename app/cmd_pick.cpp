@@ -229,7 +229,8 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
       << "), " << r.within_constraints << " within the constraints";
   if (r.objective == Objective::worst_case) {
     out << "; " << r.evaluated_in_full << " enumerated in full";
-    if (r.evaluated_in_full < r.candidates) out << ", the rest bounded below by directed corners";
+    if (r.evaluated_in_full < r.candidates)
+      out << ", the rest bounded below by directed corners or stopped once a partial enumeration could not win";
   }
   out << ".\n";
   if (r.mc_objective_units) out << "Monte Carlo objective: " << r.mc_objective_units << " units per candidate, the same draws for each.\n";
