@@ -62,8 +62,11 @@ export UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1
 export TSAN_OPTIONS=halt_on_error=1:second_deadlock_stack=1
 
 asan() {
-  configure build-asan -DCMAKE_BUILD_TYPE=RelWithDebInfo -DTHERMARGIN_SANITIZE=address,undefined \
-    -DTHERMARGIN_NATIVE=OFF -DTHERMARGIN_TESTS=ON -DTHERMARGIN_BENCHMARKS=OFF
+  # -O1, as the sanitizer's own guide suggests: most of this step is
+  # compiling the whole test program a second time, and -O1 compiles it
+  # markedly faster than -O2 while the tests still run at a fair speed.
+  configure build-asan -DCMAKE_BUILD_TYPE=RelWithDebInfo "-DCMAKE_CXX_FLAGS_RELWITHDEBINFO=-O1 -DNDEBUG" \
+    -DTHERMARGIN_SANITIZE=address,undefined -DTHERMARGIN_NATIVE=OFF -DTHERMARGIN_TESTS=ON -DTHERMARGIN_BENCHMARKS=OFF
   cmake --build build-asan -j "$jobs"
   ctest --test-dir build-asan --output-on-failure -j "$jobs"
   catalogue_line build-asan
