@@ -1,0 +1,55 @@
+// What would help: the requirement window's worst case and linear band with
+// one error source improved at a time, everything else as designed.
+//
+// The contributor table says which sources are large; this says how much
+// the design gains by buying the better part. For the sources that lead the
+// window's contributor table by share of the variance or by their own
+// worst-case half-width, each is re-run through the worst-case and linear
+// engines over the window's temperatures twice: with its bound halved (the
+// next better grade, roughly) and with it removed (an ideal part: the
+// ceiling of what improving it can give). Reading-level sources change
+// their settings instead: ADC noise (adc.noise), output rounding
+// (firmware.resolution). Quantisation is left out: a finer ADC changes
+// every error given in LSB too, which is a different design, not one part.
+//
+// Without the source the worst case visits half the corners, so the run
+// costs about 1.5 worst-case runs over the window per source tried. Where
+// the window's enumeration would exceed `max_evaluations`, the what-if uses
+// directed corners and says so.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "thermargin/budget.hpp"
+
+namespace thermargin {
+
+struct WhatIfFigures {
+  double wc_max_abs = 0.0;   // K, largest |worst-case error| in the window
+  double rss_max_abs = 0.0;  // K, largest |linear band end| in the window
+  bool readable = true;      // every window temperature could be read at every corner
+};
+
+struct WhatIfRow {
+  std::string name, label;  // the source (sources.hpp names)
+  std::string key;          // the scenario key that sets it
+  WhatIfFigures halved, removed;
+};
+
+struct WhatIf {
+  WhatIfFigures as_designed;  // the same engines over the same window, nothing changed
+  bool directed = false;      // corners directed by sensitivities
+  std::vector<WhatIfRow> rows;  // most helpful first (by the verdict's basis, removed then halved)
+};
+
+struct WhatIfOptions {
+  int sources = 4;                 // leaders tried by share and by half-width each (union)
+  double max_evaluations = 2e7;    // chain evaluations per worst-case run before directing corners
+};
+
+// `budget` is run_budget(chain)'s result: its window contributor table
+// chooses the sources tried.
+WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& options = {});
+
+}  // namespace thermargin

@@ -1,0 +1,127 @@
+#include "thermargin/what_if.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <set>
+
+namespace thermargin {
+
+namespace {
+
+enum class Change { halve, remove };
+
+std::vector<double> window_temperatures(const Design& d) {
+  std::vector<double> out;
+  for (double t : d.conditions.temperatures())
+    if (t >= d.requirement.window_min - 1e-9 && t <= d.requirement.window_max + 1e-9) out.push_back(t);
+  return out;
+}
+
+WhatIfFigures figures(const Design& d, const std::vector<double>& temps, CornerMethod method) {
+  const Chain chain(d);
+  const WorstCase wc = worst_case(chain, temps, method, false);
+  const LinearBudget lb = linear_budget(chain, temps);
+  WhatIfFigures f;
+  for (const auto& p : wc.points) {
+    if (!p.any_ok || p.failed_corners > 0) f.readable = false;
+    if (p.any_ok) f.wc_max_abs = std::max({f.wc_max_abs, std::fabs(p.low), std::fabs(p.high)});
+  }
+  for (const auto& p : lb.points) {
+    if (p.status != Status::ok) {
+      f.readable = false;
+      continue;
+    }
+    f.rss_max_abs = std::max({f.rss_max_abs, std::fabs(p.low), std::fabs(p.high)});
+  }
+  return f;
+}
+
+// The design with one source improved; false when `name` is not a source
+// this analysis can change.
+bool improve(Design& d, const std::string& name, Change change) {
+  const double factor = change == Change::halve ? 0.5 : 0.0;
+  if (name == info(ReadingSource::noise).name) {
+    d.adc.noise *= factor;
+    return true;
+  }
+  if (name == info(ReadingSource::resolution).name) {
+    d.firmware.resolution *= factor;
+    return true;
+  }
+  for (auto it = d.inputs.begin(); it != d.inputs.end(); ++it) {
+    if (info(it->source).name != name) continue;
+    if (change == Change::remove) {
+      d.inputs.erase(it);
+    } else {
+      it->bound *= factor;
+      it->gap *= factor;
+    }
+    return true;
+  }
+  return false;
+}
+
+std::string key_of(const std::string& name) {
+  for (int s = 0; s < source_count; ++s)
+    if (info(static_cast<Source>(s)).name == name) return std::string(info(static_cast<Source>(s)).key);
+  for (int s = 0; s < reading_source_count; ++s)
+    if (info(static_cast<ReadingSource>(s)).name == name) return std::string(info(static_cast<ReadingSource>(s)).key);
+  return {};
+}
+
+double basis_figure(const WhatIfFigures& f, Requirement::Basis basis) {
+  return basis == Requirement::Basis::linear ? f.rss_max_abs : f.wc_max_abs;
+}
+
+}  // namespace
+
+WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& options) {
+  const Design& d = chain.design();
+  const auto temps = window_temperatures(d);
+  WhatIf out;
+  if (temps.empty()) return out;
+  const int n = static_cast<int>(d.inputs.size());
+  const double enumeration = std::ldexp(1.0, n) * static_cast<double>(temps.size());
+  out.directed = n > max_enumerated_inputs || enumeration > options.max_evaluations;
+  const CornerMethod method = out.directed ? CornerMethod::directed : CornerMethod::enumerate;
+  out.as_designed = figures(d, temps, method);
+
+  // The leaders by share and by own half-width, in that order, once each.
+  std::vector<const Contributor*> by_width;
+  for (const auto& c : budget.window_contributors) by_width.push_back(&c);
+  std::stable_sort(by_width.begin(), by_width.end(),
+                   [](const Contributor* a, const Contributor* b) { return a->half_width > b->half_width; });
+  std::vector<const Contributor*> tried;
+  std::set<std::string> seen;
+  auto take = [&](auto first, auto last) {
+    int taken = 0;
+    for (auto it = first; it != last && taken < options.sources; ++it) {
+      const Contributor& c = **it;
+      if (c.name == info(ReadingSource::quantization).name || (c.share <= 0.0 && c.half_width <= 0.0)) continue;
+      ++taken;
+      if (seen.insert(c.name).second) tried.push_back(&c);
+    }
+  };
+  std::vector<const Contributor*> by_share;
+  for (const auto& c : budget.window_contributors) by_share.push_back(&c);
+  take(by_share.begin(), by_share.end());
+  take(by_width.begin(), by_width.end());
+
+  for (const Contributor* c : tried) {
+    WhatIfRow row{c->name, c->label, key_of(c->name), {}, {}};
+    Design halved = d, removed = d;
+    if (!improve(halved, c->name, Change::halve) || !improve(removed, c->name, Change::remove)) continue;
+    row.halved = figures(halved, temps, method);
+    row.removed = figures(removed, temps, method);
+    out.rows.push_back(std::move(row));
+  }
+  const auto basis = d.requirement.basis;
+  std::stable_sort(out.rows.begin(), out.rows.end(), [&](const WhatIfRow& a, const WhatIfRow& b) {
+    const double ra = basis_figure(a.removed, basis), rb = basis_figure(b.removed, basis);
+    if (ra != rb) return ra < rb;
+    return basis_figure(a.halved, basis) < basis_figure(b.halved, basis);
+  });
+  return out;
+}
+
+}  // namespace thermargin
