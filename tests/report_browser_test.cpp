@@ -1,5 +1,5 @@
-// A real browser opens the design-review report: Debian's headless
-// Chromium loads a `thermargin budget --report` page with console logging on
+// A real browser opens the design-review reports: Debian's headless
+// Chromium loads each `thermargin budget|pick|grades --report` page with console logging on
 // and takes a screenshot. The page must load without a console error (an
 // uncaught script error or a Content-Security-Policy refusal would mean the
 // page is not self-contained), and the screenshot, decoded by
@@ -73,15 +73,13 @@ constexpr const char* kNoChromium =
     "Debian's chromium is not installed (/usr/bin/chromium); install it with "
     "THERMARGIN_TEST_EXTRAS=1 bash scripts/deps.sh, as CI does";
 
-TEST(ReportInBrowser, OpensWithoutConsoleErrorsAndRendersTheReport) {
+// Writes the page of `command ... --report PAGE`, opens it in Chromium and
+// checks the console and the screenshot.
+void expect_rendered(const std::string& command) {
   ASSERT_TRUE(have_chromium()) << kNoChromium;
   TempDir dir;
   const fs::path page = dir.path / "review.html", png = dir.path / "shot.png";
-  const std::string scenario = testing::scenario_path("fermentation_probe.ini");
-  ASSERT_EQ(testing::run_cli("budget " + shell_quote(scenario) + " --montecarlo.units=2000 --output /dev/null --report " +
-                             shell_quote(page.string()))
-                .status,
-            0);
+  ASSERT_EQ(testing::run_cli(command + " --output /dev/null --report " + shell_quote(page.string())).status, 0) << command;
   const std::string log = screenshot(page, png, dir.path);
   EXPECT_EQ(console_errors(log), "") << log;
   ASSERT_TRUE(fs::exists(png)) << log;
@@ -93,10 +91,25 @@ TEST(ReportInBrowser, OpensWithoutConsoleErrorsAndRendersTheReport) {
   ASSERT_EQ(fields, 5) << "report_png.py did not read the screenshot";
   EXPECT_EQ(width, kWidth);
   EXPECT_EQ(height, kHeight);
-  EXPECT_GE(colours, kMinColours);
-  EXPECT_GE(ink, kMinInk);
-  EXPECT_LE(ink, kMaxInk);
-  EXPECT_GE(dark, kMinDark);
+  EXPECT_GE(colours, kMinColours) << command;
+  EXPECT_GE(ink, kMinInk) << command;
+  EXPECT_LE(ink, kMaxInk) << command;
+  EXPECT_GE(dark, kMinDark) << command;
+}
+
+std::string fermentation() { return shell_quote(testing::scenario_path("fermentation_probe.ini")); }
+
+TEST(ReportInBrowser, BudgetPageOpensWithoutConsoleErrorsAndRenders) {
+  expect_rendered("budget " + fermentation() + " --montecarlo.units=2000");
+}
+
+TEST(ReportInBrowser, PickPageOpensWithoutConsoleErrorsAndRenders) {
+  expect_rendered("pick " + fermentation() + " --series e24 --range 1k..100k");
+}
+
+TEST(ReportInBrowser, GradesPageOpensWithoutConsoleErrorsAndRenders) {
+  expect_rendered("grades " + fermentation() + " --catalogue " +
+                  shell_quote(testing::scenario_path("fermentation_probe_catalogue.csv")) + " --units 2000 --volume 5000");
 }
 
 TEST(ReportInBrowser, TheConsoleCheckSeesAScriptErrorOnAPageThatHasOne) {
