@@ -107,9 +107,11 @@ TEST_P(TableUsedByTheChain, ConvertsEveryCodeAsTheEmittedValuesInterpolate) {
   const LookupTable& t = chain.firmware().table();
   const auto& rows = j["rows"];
   ASSERT_EQ(rows.size(), t.size());
-  EXPECT_EQ(j["first_code"].get<std::int64_t>(), t.first_code);
-  EXPECT_EQ(j["step"].get<std::int64_t>(), t.step);
-  for (std::size_t k = 0; k < t.size(); ++k) EXPECT_EQ(rows[k]["stored"].get<std::int64_t>(), t.stored[k]) << "point " << k;
+  EXPECT_EQ(j["spacing"], t.spacing() == TableSpacing::code ? "code" : "temperature");
+  for (std::size_t k = 0; k < t.size(); ++k) {
+    EXPECT_EQ(rows[k]["code"].get<std::int64_t>(), t.code(k)) << "point " << k;
+    EXPECT_EQ(rows[k]["stored"].get<std::int64_t>(), t.stored[k]) << "point " << k;
+  }
 
   const auto first = rows.front()["code"].get<std::int64_t>(), last = rows.back()["code"].get<std::int64_t>();
   for (std::int64_t code = first; code <= last; ++code) {
@@ -128,7 +130,27 @@ INSTANTIATE_TEST_SUITE_P(
     ::testing::Values(ChainCase{"", "--firmware.conversion=table", {{"firmware.conversion", "table"}}},
                       ChainCase{"battery_charge_guard.ini", "", {}},
                       ChainCase{"", "--firmware.conversion=table --firmware.table_points=17 --firmware.table_unit=0.1",
-                                {{"firmware.conversion", "table"}, {"firmware.table_points", "17"}, {"firmware.table_unit", "0.1"}}}));
+                                {{"firmware.conversion", "table"}, {"firmware.table_points", "17"}, {"firmware.table_unit", "0.1"}}},
+                      // Spaced in temperature: the firmware searches the listed codes.
+                      ChainCase{"incubator.ini", "--firmware.conversion=table --firmware.table_spacing=temperature",
+                                {{"firmware.conversion", "table"}, {"firmware.table_spacing", "temperature"}}},
+                      ChainCase{"", "--firmware.conversion=table --firmware.table_spacing=temperature --firmware.table_points=12",
+                                {{"firmware.conversion", "table"}, {"firmware.table_spacing", "temperature"},
+                                 {"firmware.table_points", "12"}}}));
+
+TEST(TableUsedByTheChain, OnlyWhenTheChainsTableIsTheSame) {
+  // The scenario converts with 33 points spaced in code: another count, unit
+  // or spacing is a different table, which the budget does not analyse.
+  const std::string base = "table --firmware.conversion=table ";
+  EXPECT_TRUE(cli_json(base)["used_by_chain"].get<bool>());
+  EXPECT_FALSE(cli_json(base + "--points 20")["used_by_chain"].get<bool>());
+  EXPECT_FALSE(cli_json(base + "--unit 0.1")["used_by_chain"].get<bool>());
+  EXPECT_FALSE(cli_json(base + "--spacing temperature")["used_by_chain"].get<bool>());
+  EXPECT_TRUE(cli_json(base + "--firmware.table_spacing=temperature")["used_by_chain"].get<bool>());
+  EXPECT_FALSE(cli_json("table")["used_by_chain"].get<bool>());  // the scenario converts exactly
+  const CliOutcome r = run_cli(base + "--spacing temperature");
+  EXPECT_NE(r.out.find("firmware.table_spacing = temperature"), std::string::npos) << r.out;
+}
 
 // ---------------------------------------------------------------------------
 // The C header compiles and reproduces the tool's temperatures.
@@ -191,6 +213,10 @@ TEST_P(TableCHeader, CompilesAndReproducesTheToolsTemperaturesAtEveryCode) {
   ASSERT_EQ(emitted.status, 0) << emitted.err;
   const std::string header = testing::slurp(dir / "probe_lut.h");
   EXPECT_NE(header.find(std::string(caution.substr(0, 60))), std::string::npos) << "the caution is in the comment block";
+  // The comment opens with the scenario's title, a comment end in it defused.
+  std::string title = design_with(c.overrides, scenario_file(c.scenario)).title;
+  for (std::size_t i; (i = title.find("*/")) != std::string::npos;) title.replace(i, 2, "* /");
+  EXPECT_TRUE(header.starts_with("/* " + title + "\n")) << header.substr(0, 200);
 
   std::ofstream(dir / "main.c") << c_program;
   // Strict flags: firmware projects build with warnings as errors.
@@ -253,7 +279,13 @@ INSTANTIATE_TEST_SUITE_P(
                    settings(20, 0.1, TableSpacing::temperature, StorageType::int32)},
         HeaderCase{"hot_plate_rtd_code_int32", "hot_plate_pt1000.ini", "--type int32 --points 40",
                    {},
-                   settings(40, 0.01, TableSpacing::code, StorageType::int32)}),
+                   settings(40, 0.01, TableSpacing::code, StorageType::int32)},
+        // The scenario's firmware converts with this table spaced in temperature:
+        // the header's search is compared with the chain's conversion.
+        HeaderCase{"incubator_temperature_chain", "incubator.ini",
+                   "--firmware.conversion=table --firmware.table_spacing=temperature",
+                   {{"firmware.conversion", "table"}, {"firmware.table_spacing", "temperature"}},
+                   settings(33, 0.01, TableSpacing::temperature, StorageType::int16)}),
     [](const auto& info) { return info.param.name; });
 
 // ---------------------------------------------------------------------------

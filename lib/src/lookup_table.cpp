@@ -153,6 +153,12 @@ std::string wrap(const std::string& text, const std::string& lead, std::size_t w
   return out;
 }
 
+// Two tables the firmware would store alike: the same points and integers.
+bool same_table(const LookupTable& a, const LookupTable& b) {
+  return a.unit == b.unit && a.stored == b.stored && a.codes == b.codes &&
+         (!a.codes.empty() || (a.first_code == b.first_code && a.step == b.step));
+}
+
 }  // namespace
 
 std::string_view to_string(StorageType t) { return t == StorageType::int16 ? "int16" : "int32"; }
@@ -267,8 +273,7 @@ TableResult make_table(const Design& d, const TableSettings& s) {
     auto& m = r.interval_max[interval_of(r.table, ex.code[i])];
     m = std::max(m.value_or(0.0), std::abs(*v - ex.t[i]));
   }
-  r.used_by_chain = d.firmware.conversion == Conversion::table && s.spacing == TableSpacing::code &&
-                    static_cast<int>(r.table.size()) == d.firmware.table_points && s.unit == d.firmware.table_unit;
+  r.used_by_chain = fw.conversion() == Conversion::table && same_table(fw.table(), r.table);
   return r;
 }
 
@@ -291,12 +296,10 @@ std::string table_summary(const Design& d, const TableResult& r) {
   }
   if (r.used_by_chain) {
     out << "The scenario's firmware converts with this very table (conversion = table): `thermargin budget` analyses it.\n";
-  } else if (t.spacing() == TableSpacing::temperature) {
-    out << "The chain's `table` conversion is spaced in code, so `thermargin budget` cannot analyse this table yet; "
-           "its error is the one above.\n";
   } else {
     out << "To analyse this table in `thermargin budget`, set firmware.conversion = table, firmware.table_points = "
-        << t.size() << ", firmware.table_unit = " << unit_text(t.unit) << ".\n";
+        << t.size() << ", firmware.table_unit = " << unit_text(t.unit) << ", firmware.table_spacing = "
+        << (t.spacing() == TableSpacing::code ? "code" : "temperature") << ".\n";
   }
   return out.str();
 }

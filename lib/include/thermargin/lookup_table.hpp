@@ -84,7 +84,7 @@ struct TableResult {
   std::optional<double> limit;
   std::optional<InterpolationError> one_fewer;
   // The table is the one the scenario's firmware converts with (conversion =
-  // table with the same points and unit, spaced in code).
+  // table, and the chain's table has the same codes, unit and stored integers).
   bool used_by_chain = false;
 
   std::string_view stored_type() const { return type == StorageType::int16 ? "int16_t" : "int32_t"; }
