@@ -77,6 +77,13 @@ std::string coefficient_list(const ModelFit& f) {
   return s;
 }
 
+// "two-point 25/85": the method, and for a point method the data temperatures it passes through.
+std::string method_label(const ModelFit& f) {
+  std::string s = f.method;
+  for (std::size_t i = 0; i < f.through_celsius.size(); ++i) s += (i ? "/" : " ") + g("%g", f.through_celsius[i]);
+  return s;
+}
+
 std::string window_text(const FitResult& r) { return g("%g", r.window_low) + ".." + g("%g", r.window_high) + " degC"; }
 
 nlohmann::json to_json(const FitResult& r, const std::string& snippet) {
@@ -165,7 +172,7 @@ std::string to_text(const FitResult& r, const std::string& snippet) {
   TextTable m({"model", "method", "max |residual|", "at (degC)", "RMS", "between", "at (degC)", "worst", "coefficients"});
   for (std::size_t i = 0; i < r.fits.size(); ++i) {
     const auto& f = r.fits[i];
-    m.add({f.model + (rec.found && rec.fit == i ? " *" : ""), f.method, fixed(f.max_residual, 4),
+    m.add({f.model + (rec.found && rec.fit == i ? " *" : ""), method_label(f), fixed(f.max_residual, 4),
            fixed(f.max_residual_at, 2), fixed(f.rms_residual, 4),
            f.between_assessed ? fixed(f.between_max_error, 4) : "not assessed",
            f.between_assessed ? fixed(f.between_max_at, 2) : "", fixed(f.worst_error, 4), coefficient_list(f)});
@@ -179,6 +186,15 @@ std::string to_text(const FitResult& r, const std::string& snippet) {
     for (const auto& k : f.coefficients)
       c.add({f.model, f.method, k.name, g("%.10g", k.value), k.uncertainty ? g("%.3g", *k.uncertainty) : "-", k.unit});
   out << c.render();
+  if (r.weighted) {
+    out << "\nWeighted least squares: chi-squared of the residuals in units of the stated uncertainties, against the\n"
+           "degrees of freedom (about equal: the model explains the data within their uncertainties; far above: it\n"
+           "does not, or the uncertainties are too small, and the coefficient uncertainties above are then too small):\n";
+    TextTable x({"model", "method", "chi-squared", "dof"});
+    for (const auto& f : r.fits)
+      if (f.method == "least-squares") x.add({f.model, f.method, g("%.4g", f.chi_squared), std::to_string(f.dof)});
+    out << x.render();
+  }
 
   out << "\nResiduals (model temperature at the point's resistance minus its temperature, K):\n";
   std::vector<std::string> head{"line", "t (degC)", "R (ohm)", "window"};
@@ -196,7 +212,9 @@ std::string to_text(const FitResult& r, const std::string& snippet) {
   out << p.render();
 
   out << "\nScenario lines for " << r.fits[rec.fit].model << " (" << r.fits[rec.fit].method << ")"
-      << (rec.found ? "" : ", the closest fit, which misses the limit") << "; merge them into your scenario file:\n\n"
+      << (rec.found ? "; merge them into your scenario file:\n\n"
+                    : ", the closest fit; it misses the limit, so merge them into a scenario only if that error is "
+                      "acceptable:\n\n")
       << snippet << "\n"
       << caution << "\n";
   return out.str();

@@ -209,6 +209,30 @@ TEST(FitCli, TextPutsTheRecommendationFirstAndEndsWithTheSnippetAndTheCaution) {
   EXPECT_LT(snippet, warning);
 }
 
+TEST(FitCli, TextNamesThePointsOfThePointMethodsAndTheChiSquaredOfWeightedFits) {
+  const CliOutcome r = run_cli("fit " + shell_quote(fit_data_file("sh10k_rounded_u.csv")) + " --sh-at=0,50,100");
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_NE(r.out.find("two-point 25/85 "), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("three-point 0/50/100 "), std::string::npos) << r.out;
+  // χ² of each weighted least-squares fit as the library computes it (itself checked against NumPy in fit_test.cpp).
+  const FitResult want = fit_rt_data(read_rt_data(fit_data_file("sh10k_rounded_u.csv")));
+  const auto table = r.out.find("chi-squared");
+  ASSERT_NE(table, std::string::npos) << r.out;
+  for (const auto& f : want.fits) {
+    if (f.method != "least-squares") continue;
+    char figure[64];
+    std::snprintf(figure, sizeof figure, "%.4g", f.chi_squared);
+    const auto row = r.out.find(f.model + " ", r.out.find("\n" + f.model, table));
+    ASSERT_NE(row, std::string::npos) << f.model;
+    const std::string line = r.out.substr(row, r.out.find('\n', row) - row);
+    EXPECT_NE(line.find(figure), std::string::npos) << line;
+    EXPECT_NE(line.find(" " + std::to_string(f.dof)), std::string::npos) << line;
+  }
+  // Without uncertainties there is no χ² to show.
+  const CliOutcome plain = run_cli("fit " + shell_quote(fit_data_file("sh10k_rounded.csv")));
+  EXPECT_EQ(plain.out.find("chi-squared"), std::string::npos);
+}
+
 TEST(FitCli, CsvHasOneRowPerFitAfterTheCaution) {
   const CliOutcome r = run_cli("fit " + shell_quote(fit_data_file("sh10k_rounded.csv")) + " --extended --format csv");
   ASSERT_EQ(r.status, 0) << r.err;
@@ -253,6 +277,8 @@ INSTANTIATE_TEST_SUITE_P(
                       BadCase{"nonmonotonic", "DATA/bad_nonmonotonic.csv",
                               "bad_nonmonotonic.csv:5:2: resistance must change strictly monotonically"},
                       BadCase{"negative", "DATA/bad_negative.csv", "bad_negative.csv:4:2): must be a resistance > 0"},
+                      BadCase{"negative_uncertainty", "DATA/bad_negative_uncertainty.csv",
+                              "bad_negative_uncertainty.csv:5:3): must be an uncertainty > 0, in ohm or %"},
                       BadCase{"missing_column", "DATA/bad_missing_column.csv", "bad_missing_column.csv:5: expected 2 or 3 columns"},
                       BadCase{"no_file", "", "fit needs a data file"},
                       BadCase{"missing_file", "DATA/no_such_file.csv", "no_such_file.csv"},

@@ -566,6 +566,17 @@ TEST(FitSnippet, CarriesTheCoefficientsToTenDigits) {
   }
 }
 
+TEST(FitSnippet, SaysWhenTheFitMissesTheLimit) {
+  // A Pt100 table (IEC 60751) is no NTC: the closest fit's lines carry the warning.
+  const FitResult pt = fit_file("pt100_iec60751.csv");
+  ASSERT_FALSE(pt.recommendation.found);
+  EXPECT_NE(scenario_snippet(pt, pt.recommendation.fit).find("# This fit misses the limit of 0.1 K"), std::string::npos);
+  const FitResult ntc = fit_file("sh10k_rounded.csv");
+  ASSERT_TRUE(ntc.recommendation.found);
+  EXPECT_EQ(scenario_snippet(ntc, ntc.recommendation.fit).find("misses the limit"), std::string::npos);
+  EXPECT_NE(scenario_snippet(ntc, 0).find("misses the limit"), std::string::npos);  // the two-point beta is off by kelvins
+}
+
 TEST(FitSnippet, FourTermFormFallsBackToTheTable) {
   FitSettings s;
   s.extended = true;
@@ -588,6 +599,44 @@ TEST(FitData, TooFewPointsNameTheFileAndLine) {
   ext.t_min = 0;
   ext.t_max = 10;
   expect_input_error([&] { fit_file("sh10k_exact.csv", ext); }, {"sh10k_exact.csv:14", "at least 4"});
+}
+
+TEST(FitData, PercentUncertaintyIsRelativeToTheResistance) {
+  // The third column in % is the relative standard uncertainty u(R)/R
+  // (JCGM 100:2008 §5.1.6, from memory): the same file written in % gives the
+  // same weighted fits as in ohm, and differs from fitting with the
+  // percentages read as ohms (which would weigh the points otherwise).
+  const RtData in_ohm = read_rt_data(fit_data_file("sh10k_rounded_u.csv"));
+  std::string percent = "t,R,u\n", as_ohm = "t,R,u\n";
+  for (const auto& p : in_ohm.points) {
+    char line[128];
+    std::snprintf(line, sizeof line, "%g,%.17g,%.17g", p.t_celsius, p.r_ohm, 100.0 * p.u_ohm / p.r_ohm);
+    percent += std::string(line) + "%\n";
+    as_ohm += std::string(line) + "\n";
+  }
+  const RtData in_percent = parse_rt_data(percent, "percent.csv");
+  ASSERT_TRUE(in_percent.has_uncertainty);
+  for (std::size_t i = 0; i < in_ohm.points.size(); ++i)
+    EXPECT_LT(rel(in_percent.points[i].u_ohm, in_ohm.points[i].u_ohm), exact_rel) << in_ohm.points[i].line;
+  const FitResult a = fit_rt_data(in_ohm), b = fit_rt_data(in_percent), wrong = fit_rt_data(parse_rt_data(as_ohm, "ohm.csv"));
+  ASSERT_EQ(a.fits.size(), b.fits.size());
+  for (std::size_t i = 0; i < a.fits.size(); ++i)
+    for (std::size_t j = 0; j < a.fits[i].coefficients.size(); ++j) {
+      EXPECT_LT(rel(b.fits[i].coefficients[j].value, a.fits[i].coefficients[j].value), 1e-12) << a.fits[i].model;
+      EXPECT_LT(rel(b.fits[i].coefficients[j].uncertainty.value(), a.fits[i].coefficients[j].uncertainty.value()), 1e-9)
+          << a.fits[i].model;
+    }
+  const ModelFit& sh = find(a, "steinhart-hart", "least-squares");
+  EXPECT_GT(rel(find(wrong, "steinhart-hart", "least-squares").coefficients[0].uncertainty.value(),
+                sh.coefficients[0].uncertainty.value()),
+            0.5);
+}
+
+TEST(FitData, NegativeOrZeroUncertaintyIsRejected) {
+  expect_input_error([] { fit_file("bad_negative_uncertainty.csv"); },
+                     {"uncertainty = -0.5% (", "bad_negative_uncertainty.csv:5:3", "> 0"});
+  expect_input_error([] { fit_rt_data(parse_rt_data("0,32650,1\n25,10000,0\n50,3601,1\n", "zero.csv")); },
+                     {"uncertainty = 0 (zero.csv:2:3)", "> 0"});
 }
 
 TEST(FitData, DuplicateTemperatureIsRejected) {

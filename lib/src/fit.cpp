@@ -529,6 +529,9 @@ std::string scenario_snippet(const FitResult& result, std::size_t index) {
   std::string text = "# thermargin fit of " + result.file + ": " + describe(f) + ", largest error " +
                      fmt("%.3g", f.worst_error) + " K over " + fmt("%g", result.window_low) + ".." +
                      fmt("%g", result.window_high) + " degC\n";
+  if (!(f.worst_error <= result.recommendation.limit))
+    text += "# This fit misses the limit of " + fmt("%g", result.recommendation.limit) +
+            " K: use it only if that error is acceptable.\n";
   std::string coefficients;
   for (const auto& c : f.coefficients) coefficients += c.name + " = " + fmt("%.10g", c.value) + "\n";
   if (f.model == "steinhart-hart-4") {
