@@ -105,5 +105,8 @@ write("bad_negative.csv", ["Deliberate defect for a test: the resistance on line
        ["75", few[3][1]]])
 write("bad_missing_column.csv", ["Deliberate defect for a test: line 5 has no resistance."],
       [["temperature_degC", "resistance_ohm"], ["0", few[0][1]], ["25", few[1][1]], ["50"], ["75", few[3][1]]])
+write("bad_negative_uncertainty.csv", ["Deliberate defect for a test: the uncertainty on line 5 is negative."],
+      [["temperature_degC", "resistance_ohm", "u"], ["0", few[0][1], "0.5%"], ["25", few[1][1], "0.5%"],
+       ["50", few[2][1], "-0.5%"], ["75", few[3][1], "0.5%"]])
 write("too_few_points.csv", ["Deliberate defect for a test: two points, fewer than Steinhart-Hart needs."],
       [["temperature_degC", "resistance_ohm"], ["0", few[0][1]], ["50", few[2][1]]])
