@@ -28,6 +28,7 @@
 #include "engine_fixture.hpp"
 #include "thermargin/budget.hpp"
 #include "thermargin/caution.hpp"
+#include "thermargin/linear_budget.hpp"
 #include "thermargin/worst_case.hpp"
 #include "thermargin/ntc.hpp"
 
@@ -220,6 +221,71 @@ TEST(Picker, WinnerEqualsABruteForceWorstCaseOfEveryCandidateOnEveryScenario) {
     }
     EXPECT_EQ(best_fixed_resistor(s, o), want[0].r);
   }
+}
+
+// Every toleranced input of model.md active at once (an NTC with a parallel
+// resistor, an absolute supply, leakage, a two-point calibration, a board
+// range): 17 inputs, one more than the worst case enumerates, so the engine
+// searches from the two sensitivity-directed corners (worst_case.hpp).
+testing::Overrides every_input_active() {
+  return {{"divider.r_parallel", "100k"},        {"divider.r_parallel_tol", "1%"},
+          {"supply.ratiometric", "false"},       {"supply.v_reference", "3.3V"},
+          {"supply.v_excitation_tol", "1%"},
+          {"supply.v_excitation_tempco", "50ppm"}, {"supply.v_reference_tol", "0.5%"},
+          {"supply.v_reference_tempco", "50ppm"}, {"adc.leakage", "50n"},
+          {"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"}};
+}
+
+TEST(Picker, WithMoreThanSixteenInputsTheRankingEqualsTheDirectedWorstCaseOfEveryCandidate) {
+  // Small fixed resistors put the cold end of the window near full scale:
+  // the directed corner that pushes the code up saturates there, and the
+  // engine's search leaves it for a corner it can read. The picker's screen
+  // must not call such a candidate unreadable (budget reads it), nor bound
+  // it above what the search finds.
+  const Scenario s = scenario_with(every_input_active());
+  ASSERT_GT(static_cast<int>(build_design(s).inputs.size()), max_enumerated_inputs);
+  PickOptions o;
+  o.values = {100, 150, 200, 300, 470, 680, 1e3, 1.5e3, 2.2e3, 3.3e3, 4.7e3, 6.8e3, 10e3};
+  o.guidance = false;
+  o.top = static_cast<int>(o.values.size());
+  const PickResult got = pick(s, o);
+  std::vector<Truth> all;
+  for (double v : o.values) all.push_back(worst_case_of(s, v));
+  const auto want = ranked_by_worst_case(all);
+  ASSERT_EQ(got.rows.size(), want.size());
+  for (std::size_t k = 0; k < want.size(); ++k) {
+    SCOPED_TRACE("rank " + std::to_string(k + 1));
+    EXPECT_EQ(got.rows[k].r_fixed, want[k].r);
+    EXPECT_EQ(got.rows[k].feasible(), want[k].readable);
+    if (want[k].readable) {
+      ASSERT_TRUE(got.rows[k].wc_max_abs);
+      EXPECT_NEAR(*got.rows[k].wc_max_abs, want[k].wc, same_engine_tolerance);
+    }
+  }
+  // The case tests what it says: some candidate's directed start corner
+  // cannot be read at some window temperature, yet the engine reads the
+  // window of that candidate.
+  int recovered = 0;
+  for (const Truth& t : all) {
+    if (!t.readable) continue;
+    Scenario c = s;
+    c.set("divider.r_fixed", text(t.r), Where{});
+    const Design d = build_design(c);
+    const Chain chain(d);
+    const std::vector<double> w = window_temperatures(d);
+    const LinearBudget lb = linear_budget(chain, w);
+    bool start_fails = false;
+    for (std::size_t i = 0; i < w.size() && !start_fails; ++i)
+      for (bool upper : {false, true}) {
+        Deviations dev{};
+        for (std::size_t k = 0; k < d.inputs.size(); ++k)
+          dev[static_cast<std::size_t>(d.inputs[k].source)] =
+              ((lb.points[i].terms[k].sensitivity >= 0.0) == upper ? 1.0 : -1.0) * d.inputs[k].bound;
+        if (chain.evaluate(dev, w[i], ReadingShift{}, false).status != Status::ok) start_fails = true;
+      }
+    recovered += start_fails;
+  }
+  EXPECT_GE(recovered, 1);
 }
 
 TEST(Picker, WinnerAndItsFiguresEqualTheBudgetOfThatDesign) {

@@ -259,28 +259,42 @@ McCheck mc_window(const Chain& chain, const std::vector<double>& temps, std::uin
 // two corners a linear model calls extreme (each input at the bound the sign
 // of its sensitivity points to), each read at both ends of the reading
 // interval, calibration readings at the same end, outputs not rounded.
-// These are corners of the box the full enumeration visits, and the error
-// is monotone in each output rounding (worst_case.hpp), so an unrounded
-// value lies between the enumeration's extremes: |error| here is a lower
-// bound of the full worst case. Without calibration, or with an offset
-// calibration, the rounding at t moves the error by ±½ resolution (or more)
-// on its own, so that much is added; a two-point calibration scales it by
-// its gain, so nothing is added there. A reading these corners cannot
-// convert fails the full enumeration as well. Where the linear budget could
-// not be formed no corner is known: the bound stays 0 there (the full
-// enumeration decides).
+//
+// Up to max_enumerated_inputs these are corners of the box the full
+// enumeration visits, and the error is monotone in each output rounding
+// (worst_case.hpp), so an unrounded value lies between the enumeration's
+// extremes: |error| here is a lower bound of the full worst case. Without
+// calibration, or with an offset calibration, the rounding at t moves the
+// error by ±½ resolution (or more) on its own, so that much is added; a
+// two-point calibration scales it by its gain, so nothing is added there. A
+// reading these corners cannot convert fails the full enumeration as well.
+//
+// Beyond, the worst case is the engine's directed search, which starts from
+// exactly these two corners and leaves a start only for a corner further out
+// in its own direction — or, when the start cannot be read, for any corner
+// it can read. So only the upward corner's largest error bounds the upper
+// extreme from below and only the downward corner's smallest error the lower
+// one, and a corner that cannot be read bounds nothing and proves nothing:
+// the search may recover from it (the budget then reads the window).
+//
+// Where the linear budget could not be formed no corner is known: the bound
+// stays 0 there (the full evaluation decides).
 struct DirectedBound {
   double value = 0.0;           // K
-  Status status = Status::ok;   // first failure at a visited corner
+  Status status = Status::ok;   // first failure at a visited corner (enumerated designs only)
   std::vector<double> at;       // K, the bound at each temperature (0 where unknown)
 };
 
-// The corner a linear model calls extreme in `direction` (+1 up, −1 down).
+bool corners_directed(const Design& d) { return static_cast<int>(d.inputs.size()) > max_enumerated_inputs; }
+
+// The corner a linear model calls extreme in `direction` (+1 up, −1 down):
+// the start of the worst-case engine's directed search (a zero sensitivity
+// takes +bound going up and −bound going down, as there).
 Deviations directed_corner(const Design& d, const LinearPoint& lp, double direction) {
   Deviations dev{};
   for (std::size_t k = 0; k < d.inputs.size(); ++k) {
     const ToleranceInput& in = d.inputs[k];
-    dev[static_cast<std::size_t>(in.source)] = (lp.terms[k].sensitivity * direction >= 0.0 ? 1.0 : -1.0) * in.bound;
+    dev[static_cast<std::size_t>(in.source)] = ((lp.terms[k].sensitivity >= 0.0) == (direction > 0.0) ? 1.0 : -1.0) * in.bound;
   }
   return dev;
 }
@@ -290,11 +304,9 @@ double bound_rounding(const Design& d) {
   return d.firmware.calibration == Calibration::two_point ? 0.0 : 0.5 * d.firmware.resolution;
 }
 
-// The unrounded error at one corner with every reading at one end of the
-// reading interval; none (and `failure` set) where the chain fails.
-std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, double shift, Status& failure) {
-  ReadingShift rs;
-  rs.at_t = rs.at_cal[0] = rs.at_cal[1] = shift;
+// The unrounded error at one corner with the readings shifted by `rs`;
+// none (and `failure` set) where the chain fails.
+std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, const ReadingShift& rs, Status& failure) {
   const Evaluation e = chain.evaluate(dev, t, rs, false);
   if (e.status != Status::ok) {
     if (failure == Status::ok) failure = e.status;
@@ -303,27 +315,69 @@ std::optional<double> corner_error(const Chain& chain, const Deviations& dev, do
   return e.error;
 }
 
+// Every reading at one end of the reading interval.
+std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, double shift, Status& failure) {
+  ReadingShift rs;
+  rs.at_t = rs.at_cal[0] = rs.at_cal[1] = shift;
+  return corner_error(chain, dev, t, rs, failure);
+}
+
+// The reading shifts at which a directed design's start corner is read:
+// the reading at t at either end of its interval, and each calibration
+// reading independently at either end of its own, as the engine reads a
+// corner (it fails the corner when any of them fails).
+std::vector<ReadingShift> engine_shifts(const Design& d, const ReadingInterval& q) {
+  const int cal_points = d.firmware.calibration == Calibration::two_point ? 2 : d.firmware.calibration == Calibration::offset ? 1 : 0;
+  std::vector<ReadingShift> out;
+  for (double at_t : {q.lo, q.hi})
+    for (int mask = 0; mask < (1 << cal_points); ++mask) {
+      ReadingShift rs;
+      rs.at_t = at_t;
+      for (int k = 0; k < 2; ++k) rs.at_cal[k] = (k < cal_points && (mask >> k & 1)) ? q.hi : q.lo;
+      out.push_back(rs);
+    }
+  return out;
+}
+
 DirectedBound directed_bound(const Chain& chain, const std::vector<double>& temps, const LinearBudget& lb) {
   const Design& d = chain.design();
   const ReadingInterval q = reading_interval(d);
   const double rounding = bound_rounding(d);
+  const bool directed = corners_directed(d);
+  std::vector<ReadingShift> shifts;
+  if (directed) shifts = engine_shifts(d, q);
+  else
+    for (double shift : {q.lo, q.hi}) {
+      ReadingShift rs;
+      rs.at_t = rs.at_cal[0] = rs.at_cal[1] = shift;
+      shifts.push_back(rs);
+    }
   DirectedBound b;
   b.at.assign(temps.size(), 0.0);
-  double largest = -inf;
   for (std::size_t i = 0; i < temps.size(); ++i) {
     const LinearPoint& lp = lb.points[i];
     if (lp.status != Status::ok) continue;
     for (double direction : {-1.0, 1.0}) {
       const Deviations dev = directed_corner(d, lp, direction);
-      for (double shift : {q.lo, q.hi}) {
-        const auto e = corner_error(chain, dev, temps[i], shift, b.status);
+      Status failure = Status::ok;
+      double highest = -inf, lowest = inf;
+      for (const ReadingShift& rs : shifts) {
+        const auto e = corner_error(chain, dev, temps[i], rs, failure);
         if (!e) continue;
-        largest = std::max(largest, std::fabs(*e));
-        b.at[i] = std::max(b.at[i], std::fabs(*e) + rounding);
+        highest = std::max(highest, *e);
+        lowest = std::min(lowest, *e);
       }
+      if (directed) {
+        // The engine reads a corner in full or not at all.
+        if (failure != Status::ok) continue;
+        b.at[i] = std::max(b.at[i], direction > 0.0 ? highest + rounding : rounding - lowest);
+        continue;
+      }
+      if (failure != Status::ok && b.status == Status::ok) b.status = failure;
+      if (highest >= lowest) b.at[i] = std::max(b.at[i], std::max(std::fabs(highest), std::fabs(lowest)) + rounding);
     }
   }
-  b.value = std::isfinite(largest) ? largest + rounding : 0.0;
+  for (double v : b.at) b.value = std::max(b.value, v);
   return b;
 }
 
