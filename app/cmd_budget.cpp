@@ -1,6 +1,8 @@
 // `thermargin budget`: error bands across the range, the contributors and
 // the verdict against the requirement.
 #include <nlohmann/json.hpp>
+#include <algorithm>
+#include <cmath>
 #include <cstdio>
 #include <iostream>
 #include <sstream>
@@ -60,6 +62,12 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
       nlohmann::json contributions = nlohmann::json::object();
       for (const auto& t : p.linear.terms) contributions[t.name] = t.contribution;
       r["contributions"] = contributions;
+      // The contributor table at this temperature: share of u_c² and the
+      // source's own worst-case half-width, largest share first.
+      nlohmann::json table = nlohmann::json::array();
+      for (const auto& c : p.contributors)
+        table.push_back({{"source", c.name}, {"share", c.share}, {"half_width", c.half_width}});
+      r["contributors"] = table;
     }
     if (p.mc) {
       if (p.mc->valid > 0) {
@@ -88,10 +96,14 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
                    {"dominant", b.window_contributors.empty() ? "" : b.window_contributors.front().name},
                    {"verdict", v.pass ? "pass" : "fail"},
                    {"basis", std::string(to_string(v.basis))},
-                   {"margin", v.margin},
-                   {"worst_at", v.worst_at},
+                   {"worst_abs_error", num(v.worst_abs_error)},
+                   {"margin", num(v.margin)},
+                   {"worst_at", num(v.worst_at)},
                    {"reason", v.reason},
                    {"wc_method", b.wc_directed ? "directed corners" : "full enumeration"},
+                   {"wc_method_detail", corner_method_text(b)},
+                   {"active_inputs", b.active_inputs},
+                   {"max_enumerated_inputs", max_enumerated_inputs},
                    {"wc_corners", b.wc_corners},
                    {"status_points", b.status_points},
                    {"k_p", b.k_p}};
@@ -105,6 +117,12 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
     w["mc_adaptive"] = b.mc->adaptive;
     w["mc_converged"] = b.mc->converged;
   }
+  w["weakest_sensitivity"] = nullptr;
+  if (b.weakest.found)
+    w["weakest_sensitivity"] = {{"t", b.weakest.t},
+                                {"lsb_per_k", b.weakest.lsb_per_k},
+                                {"mv_per_k", b.weakest.mv_per_k},
+                                {"lsb_in_k", num(b.weakest.lsb_in_k)}};
   w["contributors"] = nlohmann::json::array();
   for (const auto& c : b.window_contributors)
     w["contributors"].push_back({{"source", c.name}, {"label", c.label}, {"share", c.share}, {"half_width", c.half_width}});
@@ -113,14 +131,32 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
   return j;
 }
 
+// The share and own half-width of a source at one point; nullptr when the
+// point has no linear budget.
+const Contributor* contributor_at(const BudgetPoint& p, const std::string& name) {
+  for (const auto& c : p.contributors)
+    if (c.name == name) return &c;
+  return nullptr;
+}
+
 std::string to_csv(const Budget& b) {
   std::ostringstream out;
-  out << "t_degC,in_window,status,code_LSB,sensitivity_LSB_per_K,sensitivity_mV_per_K,lsb_K,self_heating_K,nominal_K,"
-         "wc_low_K,wc_high_K,rss_low_K,rss_high_K,mc_low_K,mc_high_K,mc_median_K,mc_saturated_share,dominant\n";
+  std::vector<std::string> head{"t_degC", "in_window", "status", "code_LSB", "sensitivity_LSB_per_K",
+                                "sensitivity_mV_per_K", "lsb_K", "self_heating_K", "nominal_K", "wc_low_K", "wc_high_K",
+                                "rss_low_K", "rss_high_K", "mc_low_K", "mc_high_K", "mc_median_K", "mc_saturated_share",
+                                "dominant"};
+  // The contributor table per temperature: each source's share of u_c² and
+  // its own worst-case half-width, in the order of the window's ranking.
+  for (const auto& c : b.window_contributors) {
+    head.push_back("share_" + c.name);
+    head.push_back("half_width_" + c.name + "_K");
+  }
+  for (std::size_t i = 0; i < head.size(); ++i) out << (i ? "," : "") << head[i];
+  out << "\n";
   for (const auto& p : b.points) {
     out << fixed(p.t, 3) << "," << (p.in_window ? 1 : 0) << ",";
     if (!point_ok(p)) {
-      out << to_string(p.nominal.status) << ",,,,,,,,,,,,,,,\n";
+      out << to_string(p.nominal.status) << std::string(head.size() - 3, ',') << "\n";
       continue;
     }
     out << (p.wc.failed_corners ? std::string(to_string(p.wc.failure)) : std::string("ok")) << ","
@@ -132,9 +168,22 @@ std::string to_csv(const Budget& b) {
     const bool mc = p.mc && p.mc->valid > 0;
     out << (mc ? fixed(p.mc->low, 5) : "") << "," << (mc ? fixed(p.mc->high, 5) : "") << ","
         << (mc ? fixed(p.mc->median, 5) : "") << "," << (p.mc ? fixed(p.mc->saturated_share(), 6) : "") << ",";
-    out << csv_escape(p.contributors.empty() ? "" : p.contributors.front().name) << "\n";
+    out << csv_escape(p.contributors.empty() ? "" : p.contributors.front().name);
+    for (const auto& w : b.window_contributors) {
+      const Contributor* c = contributor_at(p, w.name);
+      out << "," << (c ? fixed(c->share, 6) : "") << "," << (c ? fixed(c->half_width, 6) : "");
+    }
+    out << "\n";
   }
   return out.str();
+}
+
+// A source in the text's contributor tables: every active input, and a
+// reading-level source (quantisation, noise, rounding) that contributes.
+bool shown_contributor(const Design& d, const Contributor& k) {
+  if (k.share > 0.0 || k.half_width > 0.0) return true;
+  return std::any_of(d.inputs.begin(), d.inputs.end(),
+                     [&](const ToleranceInput& in) { return info(in.source).name == k.name; });
 }
 
 std::string to_text(const Design& d, const Budget& b) {
@@ -145,11 +194,26 @@ std::string to_text(const Design& d, const Budget& b) {
   if (v.basis != Requirement::Basis::monte_carlo || b.mc) out << " (margin " << fixed(v.margin, 3) << " K)";
   out << "\n";
   out << "Window " << fixed(d.requirement.window_min, 2) << " .. " << fixed(d.requirement.window_max, 2)
-      << " degC, limit +/-" << fixed(d.requirement.max_error, 3) << " K, verdict basis " << to_string(v.basis) << "\n\n";
+      << " degC, limit +/-" << fixed(d.requirement.max_error, 3) << " K, verdict basis " << to_string(v.basis)
+      << " (requirement.basis)";
+  if (v.basis != Requirement::Basis::monte_carlo && std::isfinite(v.worst_at))
+    out << ", smallest margin at " << fixed(v.worst_at, 2) << " degC";
+  out << "\n";
+  // What a reviewer asks next: which parts to blame, and where the ADC sees least.
+  std::string dominant;
+  for (std::size_t i = 0; i < b.window_contributors.size() && i < 3; ++i) {
+    const auto& c = b.window_contributors[i];
+    if (!(c.share > 0.0)) break;
+    dominant += (i ? ", " : "") + c.label + " " + pct(c.share, 1);
+  }
+  if (!dominant.empty()) out << "Dominant contributors over the window (share of the combined variance): " << dominant << "\n";
+  if (b.weakest.found)
+    out << "Weakest ADC sensitivity in the window: " << fixed(b.weakest.lsb_per_k, 2) << " LSB/K ("
+        << fixed(b.weakest.mv_per_k, 3) << " mV/K) at " << fixed(b.weakest.t, 2) << " degC, where 1 LSB = "
+        << fixed(b.weakest.lsb_in_k, 4) << " K\n";
+  out << "\n";
   TextTable s({"engine", "max |error| in window", "at", "notes"});
-  s.add({"worst case", fixed(b.wc_max_abs, 3) + " K", fixed(b.wc_max_at, 2) + " degC",
-         std::to_string(b.wc_corners) + " corners per temperature, " +
-             (b.wc_directed ? "directed by sensitivity signs (> 16 inputs)" : "full enumeration")});
+  s.add({"worst case", fixed(b.wc_max_abs, 3) + " K", fixed(b.wc_max_at, 2) + " degC", corner_method_text(b)});
   s.add({"linear budget", fixed(b.rss_max_abs, 3) + " K", fixed(b.rss_max_at, 2) + " degC",
          "k = " + fixed(b.k_p, 3) + " for " + pct(d.montecarlo.coverage) + " coverage"});
   if (b.mc) {
@@ -179,12 +243,18 @@ std::string to_text(const Design& d, const Budget& b) {
   out << "\nContributors over the window (share of the combined variance; own worst-case half-width):\n";
   TextTable c({"source", "share", "half-width (K)"});
   for (const auto& k : b.window_contributors)
-    if (k.share > 0.0 || k.half_width > 0.0) c.add({k.label, pct(k.share, 1), fixed(k.half_width, 4)});
+    if (shown_contributor(d, k)) c.add({k.label + " (" + k.name + ")", pct(k.share, 1), fixed(k.half_width, 4)});
   out << c.render();
+  if (std::any_of(b.window_contributors.begin(), b.window_contributors.end(),
+                  [&](const Contributor& k) { return shown_contributor(d, k) && k.share == 0.0; }))
+    out << "A share of 0 %: the linear budget is first order (GUM), and a source that acts only together with\n"
+           "another (a tempco with the board temperature range) has no first-order sensitivity; its half-width\n"
+           "and the worst case and Monte Carlo bands include it.\n";
 
-  out << "\nPer temperature (errors in K; LSB/K is the ADC sensitivity, 1 LSB is its size in K):\n";
-  std::vector<std::string> head{"t (degC)", "code", "LSB/K", "1 LSB (K)", "self-heat", "nominal", "wc low", "wc high",
-                                "lin low", "lin high"};
+  out << "\nPer temperature (errors in K; LSB/K and mV/K are the ADC sensitivity, 1 LSB its size in K;"
+         " dominant: the largest share of the combined variance there):\n";
+  std::vector<std::string> head{"t (degC)", "code", "LSB/K", "mV/K", "1 LSB (K)", "self-heat", "nominal", "wc low",
+                                "wc high", "lin low", "lin high"};
   if (b.mc) {
     head.insert(head.end(), {"mc low", "mc high", "mc median"});
   }
@@ -197,8 +267,8 @@ std::string to_text(const Design& d, const Budget& b) {
       t.add(row);
       continue;
     }
-    row.insert(row.end(), {fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.lsb_in_k, 4),
-                           fixed(p.nominal.self_heating, 4), fixed(p.nominal.error, 4)});
+    row.insert(row.end(), {fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.mv_per_k, 3),
+                           fixed(p.nominal.lsb_in_k, 4), fixed(p.nominal.self_heating, 4), fixed(p.nominal.error, 4)});
     if (p.wc.any_ok && p.wc.failed_corners == 0) row.insert(row.end(), {fixed(p.wc.low, 4), fixed(p.wc.high, 4)});
     else row.insert(row.end(), {std::string(to_string(p.wc.failure)), ""});
     if (p.linear.status == Status::ok) row.insert(row.end(), {fixed(p.linear.low, 4), fixed(p.linear.high, 4)});
@@ -207,11 +277,32 @@ std::string to_text(const Design& d, const Budget& b) {
       if (p.mc && p.mc->valid > 0) row.insert(row.end(), {fixed(p.mc->low, 4), fixed(p.mc->high, 4), fixed(p.mc->median, 4)});
       else row.insert(row.end(), {"n/a", "", ""});
     }
-    row.push_back(p.contributors.empty() ? "" : p.contributors.front().name);
+    row.push_back(p.contributors.empty() ? "" : p.contributors.front().name + " " + pct(p.contributors.front().share, 0));
     t.add(row);
   }
   out << t.render();
-  out << "(* outside the requirement window)\n\n" << caution << "\n";
+  out << "(* outside the requirement window)\n";
+
+  // The contributor table at every temperature, one column per source that
+  // counts somewhere in the window, in the window's order.
+  std::vector<const Contributor*> shown;
+  for (const auto& k : b.window_contributors)
+    if (shown_contributor(d, k)) shown.push_back(&k);
+  out << "\nContributors per temperature (share of the combined variance in %; each source's own worst-case "
+         "half-width per temperature is in --format csv and json):\n";
+  std::vector<std::string> chead{"t (degC)"};
+  for (const auto* k : shown) chead.push_back(k->name);
+  TextTable ct(chead);
+  for (const auto& p : b.points) {
+    std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
+    for (const auto* k : shown) {
+      const Contributor* c = contributor_at(p, k->name);
+      row.push_back(c ? fixed(100.0 * c->share, 1) : "n/a");
+    }
+    ct.add(row);
+  }
+  out << ct.render();
+  out << "(* outside the requirement window; n/a: no linear budget at that temperature)\n\n" << caution << "\n";
   return out.str();
 }
 

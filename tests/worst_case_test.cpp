@@ -38,6 +38,43 @@ TEST(WorstCase, FixedResistorToleranceAloneGivesTheHandComputedCorners) {
   }
 }
 
+TEST(WorstCase, OwnHalfWidthsOfTheFixedResistorAndItsTempcoAreTheHandComputedCorners) {
+  // The contributor table's own half-width of a source is that source alone
+  // at its bound. For the fixed resistor's tolerance δ the error moves by
+  // 1/(1/T − ln(1 + δ)/B) − T (beta equation, IEC 60539-1, as above); its
+  // tempco α moves R_fixed by α·(T_b − 25 °C), which with the board over
+  // 10..40 °C is at most α·15 K at either end of the range.
+  const Design d = design_with(ideal({{"divider.r_fixed_tol", "0.5%"},
+                                      {"divider.r_fixed_tempco", "100ppm"},
+                                      {"conditions.board", "10..40"}}));
+  ASSERT_EQ(d.inputs.size(), 3u);  // tolerance, tempco, board range
+  const Chain chain(d);
+  const std::vector<double> temps{-10.0, 25.0, 70.0};
+  const WorstCase wc = worst_case(chain, temps);
+  auto index = [&](Source s) {
+    for (std::size_t k = 0; k < d.inputs.size(); ++k)
+      if (d.inputs[k].source == s) return k;
+    ADD_FAILURE() << "inactive source";
+    return std::size_t{0};
+  };
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    const double t = temps[i] + kelvin_offset;
+    auto half = [&](double delta) {
+      auto error = [&](double x) { return 1.0 / (1.0 / t - std::log(1.0 + x) / 3950.0) - t; };
+      return std::max(std::fabs(error(delta)), std::fabs(error(-delta)));
+    };
+    const auto& own = wc.points[i].own_half_width;
+    EXPECT_NEAR(own[index(Source::r_fixed)], half(0.005), 1e-6) << temps[i];
+    // The tempco at 10 °C or 40 °C, against the same board without it: the
+    // product of a resistor's ratio (1 ± 0.005)·(1 ± 100e-6·15) is not
+    // involved, only the tempco's own factor.
+    EXPECT_NEAR(own[index(Source::r_fixed_tempco)], half(100e-6 * 15.0), 1e-6) << temps[i];
+    EXPECT_GT(own[index(Source::r_fixed_tempco)], 0.0);
+    // The board range alone moves nothing when every tempco is nominal.
+    EXPECT_NEAR(own[index(Source::board_temperature)], 0.0, 1e-9) << temps[i];
+  }
+}
+
 TEST(WorstCase, DirectedCornersEqualFullEnumerationOnEveryScenario) {
   for (const auto& file : testing::scenario_files()) {
     const Design d = design_with({}, file);

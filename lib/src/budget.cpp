@@ -18,6 +18,20 @@ std::string_view to_string(Requirement::Basis b) {
   return "worst-case";
 }
 
+std::string corner_method_text(const Budget& b) {
+  const std::string inputs = std::to_string(b.active_inputs) + " active input" + (b.active_inputs == 1 ? "" : "s");
+  if (!b.wc_directed) {
+    std::string s = "full enumeration of 2^" + std::to_string(b.active_inputs) + " = " + std::to_string(b.wc_corners) +
+                    " corners (" + inputs + ")";
+    if (b.active_inputs > max_enumerated_inputs) s += ", as --corners enumerate asked";
+    return s;
+  }
+  std::string s = "corners directed by the sensitivities' signs, then improved by flipping inputs (" + inputs;
+  if (b.active_inputs > max_enumerated_inputs)
+    return s + ", more than the " + std::to_string(max_enumerated_inputs) + " enumerated in full)";
+  return s + ", as --corners directed asked)";
+}
+
 namespace {
 
 bool in_window(const Requirement& q, double t) { return t >= q.window_min - 1e-9 && t <= q.window_max + 1e-9; }
@@ -96,6 +110,7 @@ Budget run_budget(const Chain& chain, const BudgetOptions& options) {
   const LinearBudget lb = linear_budget(chain, temps);
   b.k_p = lb.k_p;
   b.wc_directed = wc.directed;
+  b.active_inputs = wc.active_inputs;
   b.wc_corners = wc.corners;
   std::optional<McResult> mc;
   if (options.monte_carlo) {
@@ -131,6 +146,10 @@ Budget run_budget(const Chain& chain, const BudgetOptions& options) {
           w.half_width = std::max(w.half_width, c.half_width);
         }
       }
+    }
+    if (p.in_window && p.nominal.status == Status::ok && p.nominal.sensitivity != 0.0 &&
+        (!b.weakest.found || std::fabs(p.nominal.sensitivity) < b.weakest.lsb_per_k)) {
+      b.weakest = {true, p.t, std::fabs(p.nominal.sensitivity), std::fabs(p.nominal.mv_per_k), p.nominal.lsb_in_k};
     }
     if (p.in_window) {
       if (p.wc.any_ok) {

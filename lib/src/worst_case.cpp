@@ -183,12 +183,32 @@ std::vector<double> own_half_widths(const Chain& chain, double t, const Interval
     const Evaluation e = chain.evaluate(dev, t, s, false);
     return (e.status == Status::ok && e0.status == Status::ok) ? std::fabs(e.error - e0.error) : 0.0;
   };
+  // A tempco acts only through the board temperature's distance from 25 °C:
+  // with the board a range around 25 °C, the tempco alone at the middle of
+  // the range does nothing. Its half-width is therefore taken with the board
+  // at each end of its range as well, against the same board without the
+  // tempco, so a tempco that matters in the worst case shows in the table.
+  double board_bound = 0.0;
+  for (const auto& in : d.inputs)
+    if (in.source == Source::board_temperature) board_bound = in.bound;
+  auto is_tempco = [](Source s) {
+    return s == Source::r_fixed_tempco || s == Source::v_excitation_tempco || s == Source::v_reference_tempco;
+  };
+  const std::size_t board = static_cast<std::size_t>(Source::board_temperature);
   for (const auto& in : d.inputs) {
-    Deviations dev{};
     double w = 0.0;
-    for (double sign : {-1.0, 1.0}) {
-      dev[static_cast<std::size_t>(in.source)] = sign * in.bound;
-      w = std::max(w, deviation(dev, centre));
+    const bool over_board = is_tempco(in.source) && board_bound > 0.0;
+    for (double board_at : over_board ? std::vector<double>{0.0, -board_bound, board_bound} : std::vector<double>{0.0}) {
+      Deviations base{};
+      base[board] = board_at;
+      const Evaluation e_base = chain.evaluate(base, t, centre, false);
+      if (e_base.status != Status::ok) continue;
+      for (double sign : {-1.0, 1.0}) {
+        Deviations dev = base;
+        dev[static_cast<std::size_t>(in.source)] = sign * in.bound;
+        const Evaluation e = chain.evaluate(dev, t, centre, false);
+        if (e.status == Status::ok && e0.status == Status::ok) w = std::max(w, std::fabs(e.error - e_base.error));
+      }
     }
     out.push_back(w);
   }

@@ -45,6 +45,17 @@ struct Verdict {
   std::string reason;            // one sentence
 };
 
+// Where the divider is starved: the smallest |ADC counts per kelvin| in the
+// requirement window (nominal chain), with its millivolts per kelvin and the
+// temperature step of one LSB there.
+struct WeakestSensitivity {
+  bool found = false;       // some window temperature could be read
+  double t = 0.0;           // °C
+  double lsb_per_k = 0.0;   // |LSB/K|
+  double mv_per_k = 0.0;    // |mV/K|
+  double lsb_in_k = 0.0;    // K
+};
+
 struct Budget {
   std::vector<BudgetPoint> points;
   std::vector<Contributor> window_contributors;  // sorted
@@ -54,7 +65,9 @@ struct Budget {
   std::optional<McSummary> mc;
   double k_p = 3.0;
   bool wc_directed = false;
+  int active_inputs = 0;
   long long wc_corners = 0;
+  WeakestSensitivity weakest;
   int status_points = 0;  // points with a status other than ok (any engine)
   Verdict verdict;
 };
@@ -83,5 +96,10 @@ inline constexpr double worst_case_evaluations_per_second = 2.5e6;
 void require_feasible(const Design& design, const Scenario& scenario, const BudgetOptions& options);
 
 std::string_view to_string(Requirement::Basis b);
+
+// How the worst case was formed, in words for the output: "full enumeration
+// of 2^9 = 512 corners" or "corners directed by the sensitivities' signs:
+// 17 active inputs, more than the 16 enumerated in full".
+std::string corner_method_text(const Budget& b);
 
 }  // namespace thermargin

@@ -30,7 +30,9 @@ struct WorstCasePoint {
   Status failure = Status::ok;   // the first such status
   bool any_ok = false;           // at least one corner evaluated
   // Each source's own worst-case half-width (K): that source alone at its
-  // bound (reading sources at their interval ends), everything else nominal.
+  // bound (reading sources at their interval ends), everything else nominal;
+  // a tempco also with the board at either end of its range (it acts only
+  // through the board's distance from 25 °C), against that board alone.
   // Indexed like Design::inputs, then quantisation, noise, rounding.
   std::vector<double> own_half_width;
 };
