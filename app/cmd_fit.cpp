@@ -125,7 +125,8 @@ nlohmann::json to_json(const FitResult& r, const std::string& snippet) {
     row["residuals"] = nlohmann::json::array();
     for (const auto& p : f.residuals)
       row["residuals"].push_back(
-          {{"line", p.line}, {"t", p.t_celsius}, {"r", p.r_ohm}, {"in_window", p.in_window}, {"residual", p.residual}});
+          {{"line", p.line}, {"t", p.t_celsius}, {"r", p.r_ohm}, {"in_window", p.in_window}, {"residual", p.residual},
+           {"solved", p.solved}});
     j["rows"].push_back(row);
   }
   const auto& rec = r.recommendation;
@@ -200,16 +201,23 @@ std::string to_text(const FitResult& r, const std::string& snippet) {
   std::vector<std::string> head{"line", "t (degC)", "R (ohm)", "window"};
   for (const auto& f : r.fits) head.push_back(short_label(f));
   TextTable p(head);
+  bool unsolved = false;
   if (!r.fits.empty()) {
     for (std::size_t i = 0; i < r.fits.front().residuals.size(); ++i) {
       const auto& pt = r.fits.front().residuals[i];
       std::vector<std::string> row{std::to_string(pt.line), g("%g", pt.t_celsius), g("%.7g", pt.r_ohm),
                                    pt.in_window ? "in" : "outside"};
-      for (const auto& f : r.fits) row.push_back(fixed(f.residuals[i].residual, 4));
+      for (const auto& f : r.fits) {
+        const auto& res = f.residuals[i];
+        row.push_back(fixed(res.residual, 4) + (res.solved ? "" : " (no T)"));
+        unsolved = unsolved || !res.solved;
+      }
       p.add(row);
     }
   }
   out << p.render();
+  if (unsolved)
+    out << "(no T): the model gives no temperature at that resistance; it is counted as reading 0 K.\n";
 
   out << "\nScenario lines for " << r.fits[rec.fit].model << " (" << r.fits[rec.fit].method << ")"
       << (rec.found ? "; merge them into your scenario file:\n\n"

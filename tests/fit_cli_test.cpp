@@ -106,6 +106,7 @@ TEST_P(FitCliRows, JsonRowsAreTheLibrarysFits) {
       EXPECT_EQ(row["residuals"][k]["line"].get<int>(), f.residuals[k].line);
       EXPECT_EQ(row["residuals"][k]["in_window"].get<bool>(), f.residuals[k].in_window);
       EXPECT_EQ(row["residuals"][k]["residual"].get<double>(), f.residuals[k].residual);
+      EXPECT_EQ(row["residuals"][k]["solved"].get<bool>(), f.residuals[k].solved);
     }
     EXPECT_EQ(row["recommended"].get<bool>(), want.recommendation.found && want.recommendation.fit == i);
   }
@@ -228,9 +229,21 @@ TEST(FitCli, TextNamesThePointsOfThePointMethodsAndTheChiSquaredOfWeightedFits) 
     EXPECT_NE(line.find(figure), std::string::npos) << line;
     EXPECT_NE(line.find(" " + std::to_string(f.dof)), std::string::npos) << line;
   }
-  // Without uncertainties there is no χ² to show.
+  // Without uncertainties there is no χ² to show; every model has a temperature at every point.
   const CliOutcome plain = run_cli("fit " + shell_quote(fit_data_file("sh10k_rounded.csv")));
   EXPECT_EQ(plain.out.find("chi-squared"), std::string::npos);
+  EXPECT_EQ(plain.out.find("(no T)"), std::string::npos);
+}
+
+TEST(FitCli, TextMarksResidualsWhereTheModelHasNoTemperature) {
+  // NTC curves fitted to an IEC 60751 Pt100 table: the least-squares beta has none at the hot end.
+  const CliOutcome r = run_cli("fit " + shell_quote(fit_data_file("pt100_iec60751.csv")));
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto at = r.out.find("\n 110 ");  // the 850 degC point
+  ASSERT_NE(at, std::string::npos) << r.out;
+  EXPECT_NE(r.out.substr(at, r.out.find('\n', at + 1) - at).find("-1123.1500 (no T)"), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("(no T): the model gives no temperature at that resistance"), std::string::npos);
+  EXPECT_NE(r.out.find("NO RECOMMENDATION: No NTC model meets 0.1 K"), std::string::npos);
 }
 
 TEST(FitCli, CsvHasOneRowPerFitAfterTheCaution) {

@@ -512,6 +512,18 @@ TEST(FitPt100, NtcModelsReportLargeResidualsAndNoneIsRecommended) {
   }
   EXPECT_FALSE(r.recommendation.found);
   EXPECT_NE(r.recommendation.text.find("No NTC model meets 0.1 K"), std::string::npos) << r.recommendation.text;
+  // A curve with no positive temperature at a resistance reads 0 K there, and says so.
+  std::size_t unsolved = 0;
+  for (const auto& f : r.fits)
+    for (const auto& p : f.residuals) {
+      const double t_model = p.residual + p.t_celsius + kelvin_offset;
+      EXPECT_EQ(p.solved, t_model > 0.0) << f.model << " " << f.method << " line " << p.line;
+      if (!p.solved) {
+        ++unsolved;
+        EXPECT_EQ(p.residual, -(p.t_celsius + kelvin_offset)) << f.model << " line " << p.line;
+      }
+    }
+  EXPECT_GT(unsolved, 0u);  // the least-squares beta of a PTC has no temperature at its hot end
 }
 
 // ----------------------------------------------------------- recommendation

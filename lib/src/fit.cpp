@@ -285,8 +285,9 @@ ModelFit make_fit(Kind k, const char* method, const std::vector<Point>& pts, con
   std::size_t count = 0;
   for (std::size_t i = 0; i < pts.size(); ++i) {
     const RtPoint& p = data.points[i];
-    const double residual = model_temperature(k, s.x, pts[i].ln_r) - pts[i].t_kelvin;
-    f.residuals.push_back({p.line, p.t_celsius, p.r_ohm, in_window[i], residual});
+    const double t_model = model_temperature(k, s.x, pts[i].ln_r);
+    const double residual = t_model - pts[i].t_kelvin;
+    f.residuals.push_back({p.line, p.t_celsius, p.r_ohm, in_window[i], residual, t_model > 0.0});
     if (!in_window[i]) continue;
     sum_sq += residual * residual;
     ++count;

@@ -85,6 +85,10 @@ struct FitResidual {
   double r_ohm = 0.0;
   bool in_window = false;
   double residual = 0.0;    // K: the model's temperature at r_ohm minus t_celsius
+  // False when the model gives no positive temperature at r_ohm (a curve
+  // forced onto data it cannot follow): it then reads 0 K, and the residual
+  // is minus the point's absolute temperature.
+  bool solved = true;
 };
 
 // One model fitted by one method, and how well it describes the data.
