@@ -113,6 +113,34 @@ TEST(WorstCase, RoundQuantiserAloneIsHalfAnLsbOverTheSensitivity) {
   }
 }
 
+TEST(WorstCase, OffsetCalibrationReadingHasItsOwnQuantisationInterval) {
+  // model.md §7: the calibration reading of the same unit carries its own,
+  // independent reading interval. With every tolerance zero and an ideal
+  // round quantiser, an offset calibration at 25 °C leaves
+  // error(t) = e_q(t) − e_q(25 °C), each e_q within ±½ LSB over its own
+  // sensitivity (IEEE Std 1241 ideal quantiser): the half-width is
+  // ½/|s(t)| + ½/|s(25 °C)| to first order — a full LSB at 25 °C itself,
+  // not zero, because the two readings round independently.
+  const Design d = design_with(ideal({{"adc.bits", "12"},
+                                      {"firmware.calibration", "offset"},
+                                      {"firmware.calibration_at", "25"},
+                                      {"firmware.calibration_uncertainty", "0"}}));
+  ASSERT_TRUE(d.inputs.empty());
+  const Chain chain(d);
+  auto sensitivity = [&](double t) {
+    const double h = 1e-3;
+    return std::fabs(chain.front_end({}, t + h).x_static - chain.front_end({}, t - h).x_static) / (2 * h);
+  };
+  const std::vector<double> temps{0.0, 25.0, 60.0};
+  const WorstCase wc = worst_case(chain, temps);
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    const double want = 0.5 / sensitivity(temps[i]) + 0.5 / sensitivity(25.0);
+    const double half = 0.5 * (wc.points[i].high - wc.points[i].low);
+    EXPECT_NEAR(half, want, 2e-3 * want) << temps[i];
+    EXPECT_NEAR(0.5 * (wc.points[i].high + wc.points[i].low), 0.0, 2e-3 * want) << temps[i];
+  }
+}
+
 TEST(WorstCase, LinearSumAgreesToFirstOrderAndTheGapShrinksQuadratically) {
   // The worst case's upper excursion from the nominal error and the linear
   // sum Σ|c_i|·a_i differ in second order: scaling every bound by 1/10 shrinks
