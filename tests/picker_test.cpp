@@ -31,6 +31,7 @@
 #include "thermargin/linear_budget.hpp"
 #include "thermargin/worst_case.hpp"
 #include "thermargin/ntc.hpp"
+#include "thermargin/self_heating.hpp"
 
 namespace thermargin {
 namespace {
@@ -353,6 +354,134 @@ TEST(Picker, ConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestFe
   ASSERT_NE(old, held.rows.end());
   EXPECT_FALSE(old->feasible());
   EXPECT_EQ(held.within_constraints, feasible.size());
+}
+
+// The nominal figures the constraints read, for the default design (a beta
+// NTC at the bottom of a ratiometric divider, no leads, duty 1), from the
+// element temperature SciPy solves (tests/reference/self_heating.py, brentq
+// on T_e − T − P(T_e)/δ): the rise over t_min..t_max, the divider current
+// V/(R_f + R(T_e)) and its power, and the share of 2^N the nominal code
+// 2^N·R/(R_f + R) spans over the window (model.md §3, §5).
+struct OutsideFigures {
+  double max_self_heating = 0.0, max_current = 0.0, max_power = 0.0, span = 0.0;
+};
+
+OutsideFigures outside_figures(const Design& d, double r_fixed) {
+  const std::vector<double> range = d.conditions.temperatures();
+  std::ostringstream cmd;
+  cmd.precision(17);
+  cmd << "r25=" << d.sensor.r25 << " beta=" << d.sensor.beta << " r_fixed=" << r_fixed << " v_exc=" << d.supply.v_excitation
+      << " duty=" << d.divider.duty << " dissipation=" << d.sensor.dissipation << " t=";
+  for (std::size_t i = 0; i < range.size(); ++i) cmd << (i ? "," : "") << range[i];
+  const std::vector<double> element = testing::numbers_printed_by<double>(testing::reference_command("self_heating.py", cmd.str()));
+  EXPECT_EQ(element.size(), range.size());
+  OutsideFigures f;
+  double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+  for (std::size_t i = 0; i < std::min(element.size(), range.size()); ++i) {
+    const double r = beta_r(d.sensor.r25, d.sensor.beta, element[i]);
+    f.max_self_heating = std::max(f.max_self_heating, element[i] - range[i]);
+    f.max_current = std::max(f.max_current, d.supply.v_excitation / (r_fixed + r));
+    if (range[i] >= d.requirement.window_min - 1e-9 && range[i] <= d.requirement.window_max + 1e-9) {
+      const double code = 4096.0 * r / (r_fixed + r);
+      lo = std::min(lo, code);
+      hi = std::max(hi, code);
+    }
+  }
+  f.max_power = d.supply.v_excitation * f.max_current;
+  f.span = (hi - lo) / 4096.0;
+  return f;
+}
+
+TEST(Picker, EveryConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestCandidateMeetingIt) {
+  // Each of the five limits in turn, set half-way between the unconstrained
+  // winner's figure and the nearest figure on the permitted side, so that it
+  // rules the winner out and no figure lies near the limit. The rows that
+  // meet it come first, in order of the brute-force worst case (budget, no
+  // picker code); the others carry that constraint's name.
+  const Scenario s;
+  const Design d = build_design(s);
+  ASSERT_EQ(d.adc.bits, 12);
+  PickOptions o;
+  o.series = Series::e24;
+  o.range_low = 3e3;
+  o.range_high = 40e3;
+  o.guidance = false;
+  const std::vector<double> values = series_values(o.series, o.range_low, o.range_high);
+  o.top = static_cast<int>(values.size());
+  const PickResult free = pick(s, o);
+  const double winner = free.winner().r_fixed;
+
+  std::vector<Truth> truth;
+  std::vector<OutsideFigures> outside;
+  for (double v : values) {
+    truth.push_back(budget_of(s, v));
+    outside.push_back(outside_figures(d, v));
+  }
+  // The picker's own figures against the outside ones, every candidate.
+  // The chain solves the rise to self_heating_tolerance (brentq to 1e-13 K),
+  // as self_heating_test.cpp holds it against the same script; a rise that
+  // close moves the current and the code by far less than a part in 1e9.
+  constexpr double rise_tolerance = 2 * self_heating_tolerance;  // K
+  constexpr double figure_tolerance = 1e-9;                      // relative
+  for (const PickRow& row : free.rows) {
+    const std::size_t i = static_cast<std::size_t>(std::find(values.begin(), values.end(), row.r_fixed) - values.begin());
+    ASSERT_LT(i, values.size());
+    SCOPED_TRACE(text(row.r_fixed));
+    EXPECT_NEAR(row.max_self_heating, outside[i].max_self_heating, rise_tolerance);
+    EXPECT_NEAR(row.max_current, outside[i].max_current, figure_tolerance * outside[i].max_current);
+    EXPECT_NEAR(row.max_power, outside[i].max_power, figure_tolerance * outside[i].max_power);
+    EXPECT_NEAR(row.span, outside[i].span, figure_tolerance);
+    EXPECT_NEAR(row.min_sensitivity, truth[i].min_sensitivity, same_engine_tolerance);
+  }
+
+  struct Limit {
+    std::string name;
+    std::optional<double> PickConstraints::*member;
+    double (*figure)(const OutsideFigures&, const Truth&);
+    bool upper;  // a maximum (else a minimum)
+  };
+  const std::vector<Limit> limits{
+      {"max-self-heating", &PickConstraints::max_self_heating, [](const OutsideFigures& f, const Truth&) { return f.max_self_heating; }, true},
+      {"max-current", &PickConstraints::max_current, [](const OutsideFigures& f, const Truth&) { return f.max_current; }, true},
+      {"max-power", &PickConstraints::max_power, [](const OutsideFigures& f, const Truth&) { return f.max_power; }, true},
+      {"min-span", &PickConstraints::min_span, [](const OutsideFigures& f, const Truth&) { return f.span; }, false},
+      {"min-sensitivity", &PickConstraints::min_sensitivity, [](const OutsideFigures&, const Truth& t) { return t.min_sensitivity; }, false}};
+  for (const Limit& l : limits) {
+    SCOPED_TRACE(l.name);
+    const std::size_t w = static_cast<std::size_t>(std::find(values.begin(), values.end(), winner) - values.begin());
+    const double at_winner = l.figure(outside[w], truth[w]);
+    std::optional<double> nearest;  // the permitted figure nearest the winner's
+    for (std::size_t i = 0; i < values.size(); ++i) {
+      const double f = l.figure(outside[i], truth[i]);
+      if ((l.upper ? f < at_winner : f > at_winner) && (!nearest || std::fabs(f - at_winner) < std::fabs(*nearest - at_winner)))
+        nearest = f;
+    }
+    ASSERT_TRUE(nearest) << "no candidate meets a limit that rules the winner out";
+    const double limit = 0.5 * (at_winner + *nearest);
+    PickOptions held = o;
+    held.constraints.*(l.member) = limit;
+    const PickResult got = pick(s, held);
+    std::vector<Truth> meeting;
+    for (std::size_t i = 0; i < values.size(); ++i) {
+      const double f = l.figure(outside[i], truth[i]);
+      if (l.upper ? f <= limit : f >= limit) meeting.push_back(truth[i]);
+    }
+    ASSERT_LT(meeting.size(), values.size());
+    const auto want = ranked_by_worst_case(meeting);
+    EXPECT_NE(got.winner().r_fixed, winner);
+    EXPECT_EQ(got.winner().r_fixed, want.front().r);
+    EXPECT_EQ(got.within_constraints, meeting.size());
+    ASSERT_EQ(got.rows.size(), values.size());
+    for (std::size_t k = 0; k < got.rows.size(); ++k) {
+      const PickRow& row = got.rows[k];
+      if (k < want.size()) {
+        EXPECT_EQ(row.r_fixed, want[k].r) << "rank " << k + 1;
+        EXPECT_TRUE(row.feasible()) << row.r_fixed;
+      } else {
+        EXPECT_EQ(row.rejected_by, std::vector<std::string>{l.name}) << row.r_fixed;
+      }
+    }
+  }
 }
 
 TEST(Picker, LinearAndSensitivityObjectivesRankByTheirEngines) {
