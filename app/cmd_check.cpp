@@ -1,6 +1,7 @@
 // `thermargin check`: read and validate a scenario, print every resolved
 // value with its unit and where it came from.
 #include <nlohmann/json.hpp>
+#include <cstdio>
 #include <sstream>
 
 #include "cli.hpp"
@@ -16,6 +17,8 @@ int run_check(int argc, char** argv) {
   const Invocation inv = parse("check", argc, argv, own, true, false);
   const Design design = build_design(inv.scenario);  // validates everything
 
+  const auto resolved = resolved_values(inv.scenario, design);
+
   std::ostringstream out;
   const auto& schema = scenario_schema();
   auto unit_of = [](const KeySpec& k) { return std::string(unit_symbol(k.quantity)); };
@@ -28,26 +31,38 @@ int run_check(int argc, char** argv) {
     for (const auto& in : design.inputs) j["active_inputs"].push_back(std::string(info(in.source).name));
     for (const auto& k : schema) {
       const auto& s = inv.scenario.get(k.key);
-      j["rows"].push_back({{"key", k.key}, {"value", s.value}, {"unit", unit_of(k)}, {"origin", s.where.origin()}});
+      const ResolvedValue& r = resolved.at(k.key);
+      j["rows"].push_back({{"key", k.key},
+                           {"value", s.value},
+                           {"unit", unit_of(k)},
+                           {"resolved", r.number ? nlohmann::json(*r.number) : nlohmann::json(s.value)},
+                           {"as_read", r.text},
+                           {"origin", s.where.origin()}});
     }
     j["caution"] = std::string(caution);
     out << j.dump(2) << "\n";
   } else if (inv.format == Format::csv) {
-    out << "key,value,unit,origin\n";
+    // resolved: the number the design uses, in the unit column's unit; words and lists as written.
+    out << "key,value,unit,origin,resolved\n";
     for (const auto& k : schema) {
       const auto& s = inv.scenario.get(k.key);
+      const ResolvedValue& r = resolved.at(k.key);
+      char number[32];
+      if (r.number) std::snprintf(number, sizeof number, "%.10g", *r.number);
       out << csv_escape(k.key) << "," << csv_escape(s.value) << "," << csv_escape(unit_of(k)) << ","
-          << csv_escape(s.where.origin()) << "\n";
+          << csv_escape(s.where.origin()) << "," << csv_escape(r.number ? std::string(number) : s.value) << "\n";
     }
   } else {
-    out << "Scenario: " << design.title << "\n";
+    out << "Scenario: " << design.title << "  (title: " << inv.scenario.get("title").where.origin() << ")\n";
     out << "Valid: every value and combination was accepted. " << design.inputs.size()
-        << " toleranced inputs are active.\n\n";
-    TextTable t({"key", "value", "unit", "origin"});
+        << " toleranced inputs are active.\n";
+    out << "Each key as written, as read (with its unit) and where it came from.\n\n";
+    TextTable t({"key", "as written", "as read", "origin"});
     for (const auto& k : schema) {
       const auto& s = inv.scenario.get(k.key);
       if ((k.key.ends_with("_dist") || k.key.ends_with("_gap")) && s.where.kind == Origin::built_in) continue;
-      t.add({k.key, s.value.empty() ? "(none)" : s.value, unit_of(k), s.where.origin()});
+      if (k.key == "title") continue;  // on the first line
+      t.add({k.key, s.value.empty() ? "(none)" : s.value, resolved.at(k.key).text, s.where.origin()});
     }
     out << t.render() << "\n" << caution << "\n";
   }

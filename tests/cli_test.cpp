@@ -112,12 +112,17 @@ TEST_F(Cli, CheckPrintsEveryKeyWithItsValueUnitAndOrigin) {
   std::istringstream in(r.out);
   std::string line;
   std::getline(in, line);
-  EXPECT_EQ(line, "key,value,unit,origin");
+  EXPECT_EQ(line, "key,value,unit,origin,resolved");
   std::size_t rows = 0;
   while (std::getline(in, line)) ++rows;
   EXPECT_EQ(rows, scenario_schema().size());
-  EXPECT_NE(r.out.find("divider.r_fixed,4k7,ohm,command line\n"), std::string::npos);
+  EXPECT_NE(r.out.find("divider.r_fixed,4k7,ohm,command line,4700\n"), std::string::npos);
   EXPECT_NE(r.out.find("sensor.r25,10k,ohm," + file + ":"), std::string::npos);
+  // A ratio written as a bare fraction resolves in the unit column's %: duty 1 is 100 %.
+  const std::size_t duty = r.out.find("\ndivider.duty,1,%," + file + ":");
+  ASSERT_NE(duty, std::string::npos);
+  const std::string duty_row = r.out.substr(duty + 1, r.out.find('\n', duty + 1) - duty - 1);
+  EXPECT_TRUE(duty_row.ends_with(",100")) << duty_row;
 }
 
 TEST_F(Cli, BudgetJsonCarriesTheInterfaceFields) {

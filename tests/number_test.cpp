@@ -107,6 +107,21 @@ TEST(ParseQuantity, ReadsTempcosPerKelvin) {
   expect_value("25ppm", Quantity::tempco, 25e-6);
   expect_value("25ppm/K", Quantity::tempco, 25e-6);
   expect_value("0.01%/K", Quantity::tempco, 1e-4);
+  // Per degree Celsius is per kelvin (a temperature difference; SI brochure, from memory).
+  expect_value("25ppm/C", Quantity::tempco, 25e-6);
+  expect_value("25ppm/\xC2\xB0" "C", Quantity::tempco, 25e-6);  // ppm/°C
+  expect_value("0.01%/\xC2\xB0" "C", Quantity::tempco, 1e-4);
+  expect_value("2mW/\xC2\xB0" "C", Quantity::dissipation, 2e-3);  // mW/°C, as datasheets print it
+}
+
+TEST(ParseQuantity, ReadsABValueInKelvinNeverKilo) {
+  // A datasheet writes B25/50 = 3950 K (IEC 60539-1's B value is in kelvin):
+  // the `K` after it is the unit, so `3950K` is 3950, not 3.95 MK.
+  expect_value("3950", Quantity::beta_value, 3950.0);
+  expect_value("3950K", Quantity::beta_value, 3950.0);
+  expect_value("3950 K", Quantity::beta_value, 3950.0);
+  expect_value("3k95", Quantity::beta_value, 3950.0);
+  EXPECT_NE(rejection("3950C", Quantity::beta_value).find("expected a B value in kelvin"), std::string::npos);
 }
 
 TEST(ParseQuantity, ReadsExponentsAndSigns) {

@@ -45,15 +45,16 @@ std::vector<double> run_python(const std::string& arguments) {
   return testing::numbers_printed_by(std::string(THERMARGIN_PYTHON) + " " + testing::reference_script(arguments));
 }
 
-void expect_agrees_with_scipy(const std::string& table_name) {
-  const RtTable table = load(table_name);
-  // Off-grid temperatures in every interval, both end intervals included.
+// Off-grid temperatures in every interval of the table at `path`, both end
+// intervals included, against SciPy's PchipInterpolator on the same file.
+void expect_agrees_with_scipy_at(const std::string& path, double t_first, double t_last) {
+  const RtTable table(read_rt_data(path));
   std::vector<double> temperatures;
-  for (double t = -39.3; t < 125.0; t += 2.9) temperatures.push_back(t);
-  temperatures.push_back(124.99);
+  for (double t = t_first + 0.7; t < t_last; t += 2.9) temperatures.push_back(t);
+  temperatures.push_back(t_last - 0.01);
   std::ostringstream args;
   args.precision(17);
-  args << "pchip_table.py " << data_dir << table_name;
+  args << "pchip_table.py " << path;
   for (double t : temperatures) args << " " << t;
   const std::vector<double> scipy = run_python(args.str());
   ASSERT_EQ(scipy.size(), temperatures.size());
@@ -64,10 +65,19 @@ void expect_agrees_with_scipy(const std::string& table_name) {
   }
 }
 
+void expect_agrees_with_scipy(const std::string& table_name) {
+  expect_agrees_with_scipy_at(data_dir + table_name, -40.0, 125.0);
+}
+
 TEST(RtTable, AgreesWithScipyPchipOffGridOnADatasheetTable) { expect_agrees_with_scipy("ntc10k_sh_5K.csv"); }
 
 TEST(RtTable, AgreesWithScipyPchipOffGridOnAnUnevenDescendingTable) {
   expect_agrees_with_scipy("ntc10k_sh_uneven_desc.csv");
+}
+
+TEST(RtTable, AgreesWithScipyPchipOnTheIncubatorScenariosTable) {
+  // The table a shipped scenario reads (scenarios/incubator.ini), -10..90 degC.
+  expect_agrees_with_scipy_at(testing::scenario_path("incubator_ntc47k.csv"), -10.0, 90.0);
 }
 
 TEST(RtTable, PassesThroughItsPoints) {

@@ -150,6 +150,92 @@ TEST_F(ScenarioFile, RefusesBadValuesNamingKeyFileLineAndWhatIsAccepted) {
             "divider.r_fixed = 10kk" + at + "expected a resistance such as 10k, 4k7, 2.2M, 470R or 10kohm");
 }
 
+TEST_F(ScenarioFile, ABValueWithItsKelvinUnitIsReadInKelvin) {
+  // Datasheets print B25/50 = 3950 K (IEC 60539-1): `K` is the unit, not kilo.
+  Scenario s;
+  s.load_file(write("b.ini", "[sensor]\nbeta = 3950K\n[firmware]\nbeta = 3435 K\n"));
+  const Design d = build_design(s);
+  EXPECT_EQ(d.sensor.beta, 3950.0);
+  EXPECT_EQ(d.firmware.beta, 3435.0);
+}
+
+TEST_F(ScenarioFile, ACurveWithoutAFiniteResistanceOverTheRangeIsRefused) {
+  // A B value typed with a prefix (3950k = 3.95 MK): exp(B(1/T - 1/T0)) overflows at -20 degC.
+  const std::string beta = refusal("[sensor]\nbeta = 3950k\n");
+  EXPECT_NE(beta.find("sensor.beta = 3950k (" + (dir_.path / "bad.ini").string() + ":2)"), std::string::npos) << beta;
+  EXPECT_NE(beta.find("no finite resistance at -20 degC"), std::string::npos) << beta;
+  // IEC 60751's Callendar-Van Dusen curve for a Pt100 is 18.52 ohm at -200 degC
+  // and crosses zero near -245 degC (1 + A t + B t^2 + C (t - 100) t^3 < 0 at -260).
+  const std::string rtd = refusal("[sensor]\nmodel = rtd\n[conditions]\nt_min = -260\n"
+                                  "[requirement]\nwindow_min = -100\nwindow_max = 0\n");
+  EXPECT_NE(rtd.find("conditions.t_min = -260"), std::string::npos) << rtd;
+  EXPECT_NE(rtd.find("no positive resistance"), std::string::npos) << rtd;
+  EXPECT_EQ(refusal("[sensor]\nmodel = rtd\n[conditions]\nt_min = -200\n"
+                    "[requirement]\nwindow_min = -100\nwindow_max = 0\n"),
+            "");
+}
+
+TEST_F(ScenarioFile, MalformedValuesAreRefusedEvenWhereTheyAreNotUsed) {
+  // Calibration is off and the leakage bound is 0: a typo still stops the run.
+  EXPECT_NE(refusal("[firmware]\ncalibration = none\ncalibration_at = 2O\n").find("firmware.calibration_at = 2O"),
+            std::string::npos);
+  EXPECT_NE(refusal("[adc]\nleakage = 0\nleakage_dist = gausian\n").find("adc.leakage_dist = gausian"),
+            std::string::npos);
+  EXPECT_NE(refusal("[adc]\nleakage = 0\nleakage_gap = -1n\n").find("adc.leakage_gap = -1n"), std::string::npos);
+}
+
+TEST_F(ScenarioFile, AFileWithoutATitleIsNamedByItsFileName) {
+  // The built-in title describes the default circuit, not this file's.
+  Scenario s;
+  s.load_file(write("pt100_oven.ini", "[sensor]\nmodel = rtd\n"));
+  EXPECT_EQ(build_design(s).title, "pt100_oven.ini");
+  EXPECT_EQ(s.get("title").where.kind, Origin::file);
+  s.set("title", "Oven", Where{Origin::command_line, "", 0, "title"});
+  EXPECT_EQ(build_design(s).title, "Oven");
+}
+
+TEST_F(ScenarioFile, ResolvedValuesShowEveryKeyAsTheDesignReadsIt) {
+  Scenario s;
+  s.load_file(write("r.ini",
+                    "[sensor]\nmodel = steinhart-hart\n"
+                    "[divider]\nr_fixed = 4k7\nduty = 1\nr_fixed_tempco = 25ppm/C\n"
+                    "[firmware]\nconversion = steinhart-hart\ncalibration = two-point\ncalibration_at = 0,50\n"
+                    "[conditions]\nboard = 10..40\n"));
+  const auto v = resolved_values(s, build_design(s));
+  for (const auto& k : scenario_schema()) EXPECT_EQ(v.count(k.key), 1u) << k.key;
+  EXPECT_EQ(v.at("divider.r_fixed").text, "4.7 kohm");
+  EXPECT_EQ(v.at("divider.duty").text, "100 %");  // a bare ratio is a fraction
+  EXPECT_EQ(v.at("divider.duty").number, 100.0);  // in the unit unit_symbol() names: %
+  EXPECT_EQ(v.at("divider.r_fixed").number, 4.7e3);
+  EXPECT_NEAR(*v.at("divider.r_fixed_tempco").number, 25.0, 1e-12);  // ppm/K
+  EXPECT_FALSE(v.at("sensor.model").number);
+  EXPECT_EQ(v.at("divider.r_fixed_tempco").text, "25 ppm/K");
+  EXPECT_EQ(v.at("sensor.r25_tol").text, "1 %");
+  EXPECT_EQ(v.at("sensor.dissipation").text, "1.5 mW/K");
+  EXPECT_EQ(v.at("adc.bits").text, "12");
+  EXPECT_EQ(v.at("sensor.model").text, "steinhart-hart");
+  EXPECT_EQ(v.at("firmware.calibration_at").text, "0, 50 degC");
+  EXPECT_EQ(v.at("conditions.board").text, "10 .. 40 degC");
+  // The default fit goes through three points of the sensor's own
+  // Steinhart-Hart curve, so it gives back the widely published 10 kOhm
+  // coefficients the sensor has (common practice): A = 1.129148e-3,
+  // B = 2.34125e-4, C = 8.76741e-8, to the 3x3 solve's rounding.
+  constexpr double fit_relative_tolerance = 1e-9;
+  EXPECT_NEAR(*v.at("firmware.a").number / 1.129148e-3, 1.0, fit_relative_tolerance) << v.at("firmware.a").text;
+  EXPECT_NEAR(*v.at("firmware.b").number / 2.34125e-4, 1.0, fit_relative_tolerance) << v.at("firmware.b").text;
+  EXPECT_NEAR(*v.at("firmware.c").number / 8.76741e-8, 1.0, fit_relative_tolerance) << v.at("firmware.c").text;
+  EXPECT_NE(v.at("firmware.a").text.find("fitted"), std::string::npos);
+  // A beta sensor's own B value stands behind firmware.beta = sensor.
+  Scenario b;
+  b.set("sensor.beta", "3435K", Where{Origin::command_line, "", 0, "sensor.beta"});
+  const auto w = resolved_values(b, build_design(b));
+  EXPECT_EQ(w.at("sensor.beta").text, "3435 K");
+  EXPECT_EQ(w.at("firmware.beta").text, "3435 K (the sensor's)");
+  EXPECT_EQ(w.at("firmware.beta").number, 3435.0);
+  EXPECT_EQ(w.at("firmware.r25").text, "10 kohm (the sensor's)");
+  EXPECT_EQ(w.at("firmware.a").text, "fit");  // not used by the beta conversion
+}
+
 TEST_F(ScenarioFile, ChecksBetweenTwoKeysNameTheOneThatWasSet) {
   // Only t_min is in the file: the refusal points at its line, not at the
   // default t_max.

@@ -41,6 +41,7 @@ std::string_view accepted(Quantity q) {
     case Quantity::dissipation: return "expected a dissipation constant such as 1.5mW/K or 0.0015";
     case Quantity::temperature: return "expected a temperature in degC such as 25, -40 or 85C";
     case Quantity::temperature_difference: return "expected a temperature difference such as 0.1 or 100mK";
+    case Quantity::beta_value: return "expected a B value in kelvin such as 3950 or 3950K";
     case Quantity::tempco: return "expected a temperature coefficient such as 25ppm, 25ppm/K or 0.01%/K";
     case Quantity::lsb: return "expected a number of ADC counts such as 2, 0.5 or 2LSB";
     case Quantity::integer: return "expected a whole number such as 12";
@@ -61,11 +62,12 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
                                          UnitWord{"\xE2\x84\xA6", 1.0}};
   static constexpr std::array voltage{UnitWord{"V", 1.0}};
   static constexpr std::array current{UnitWord{"A", 1.0}};
-  static constexpr std::array dissipation{UnitWord{"W/K", 1.0}, UnitWord{"W/C", 1.0}};
+  static constexpr std::array dissipation{UnitWord{"W/K", 1.0}, UnitWord{"W/C", 1.0}, UnitWord{"W/\xC2\xB0" "C", 1.0}};
   static constexpr std::array temperature{UnitWord{"C", 1.0}, UnitWord{"\xC2\xB0" "C", 1.0}, UnitWord{"degC", 1.0}};
   static constexpr std::array difference{UnitWord{"K", 1.0}};
-  static constexpr std::array tempco{UnitWord{"ppm", 1e-6}, UnitWord{"ppm/K", 1e-6}, UnitWord{"ppm/C", 1e-6},
-                                     UnitWord{"%/K", 1e-2}, UnitWord{"%/C", 1e-2}, UnitWord{"/K", 1.0}};
+  static constexpr std::array tempco{UnitWord{"ppm", 1e-6},  UnitWord{"ppm/K", 1e-6}, UnitWord{"ppm/C", 1e-6},
+                                     UnitWord{"ppm/\xC2\xB0" "C", 1e-6}, UnitWord{"%/K", 1e-2},  UnitWord{"%/C", 1e-2},
+                                     UnitWord{"%/\xC2\xB0" "C", 1e-2}, UnitWord{"/K", 1.0}};
   static constexpr std::array lsb{UnitWord{"LSB", 1.0}};
   auto find = [&](const auto& list) -> std::optional<double> {
     for (const auto& u : list)
@@ -79,7 +81,8 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
     case Quantity::current: return find(current);
     case Quantity::dissipation: return find(dissipation);
     case Quantity::temperature: return find(temperature);
-    case Quantity::temperature_difference: return find(difference);
+    case Quantity::temperature_difference:
+    case Quantity::beta_value: return find(difference);
     case Quantity::tempco: return find(tempco);
     case Quantity::lsb: return find(lsb);
     case Quantity::plain:
@@ -106,7 +109,8 @@ std::string_view unit_symbol(Quantity q) {
     case Quantity::current: return "A";
     case Quantity::dissipation: return "W/K";
     case Quantity::temperature: return "degC";
-    case Quantity::temperature_difference: return "K";
+    case Quantity::temperature_difference:
+    case Quantity::beta_value: return "K";
     case Quantity::tempco: return "ppm/K";
     case Quantity::lsb: return "LSB";
     case Quantity::integer: return "";
@@ -236,6 +240,7 @@ std::string format_quantity(double value, Quantity q, int digits) {
       std::snprintf(buf, sizeof buf, "%.*g degC", digits, value);
       return buf;
     case Quantity::temperature_difference:
+    case Quantity::beta_value:
       std::snprintf(buf, sizeof buf, "%.*g K", digits, value);
       return buf;
     case Quantity::lsb:

@@ -9,6 +9,7 @@
 
 #include <boost/program_options.hpp>
 
+#include "thermargin/firmware.hpp"
 #include "thermargin/sensor.hpp"
 #include "thermargin/text_file.hpp"
 
@@ -25,7 +26,7 @@ std::vector<KeySpec> make_schema() {
       {"sensor.model", Q::plain, "beta", "beta | steinhart-hart | table | rtd"},
       {"sensor.r25", Q::resistance, "10k", "NTC resistance at 25 degC (beta model)"},
       {"sensor.r25_tol", Q::ratio, "1%", "+/- tolerance of R25 (any NTC model)"},
-      {"sensor.beta", Q::plain, "3950", "beta value in K (beta model)"},
+      {"sensor.beta", Q::beta_value, "3950", "B value in K (beta model): 3950 or 3950K"},
       {"sensor.beta_tol", Q::ratio, "1%", "+/- tolerance of beta (any NTC model)"},
       {"sensor.a", Q::plain, "1.129148e-3", "Steinhart-Hart A in 1/K"},
       {"sensor.b", Q::plain, "2.34125e-4", "Steinhart-Hart B in 1/K"},
@@ -64,7 +65,7 @@ std::vector<KeySpec> make_schema() {
       {"firmware.conversion", Q::plain, "beta", "exact | beta | steinhart-hart | table"},
       {"firmware.full_scale", Q::plain, "pow2", "pow2 (ratio = code/2^N) | pow2-minus-1 (code/(2^N - 1))"},
       {"firmware.r25", Q::resistance, "sensor", "R25 the firmware assumes; sensor = the sensor's"},
-      {"firmware.beta", Q::plain, "sensor", "beta the firmware assumes; sensor = the sensor's"},
+      {"firmware.beta", Q::beta_value, "sensor", "B value in K the firmware assumes; sensor = the sensor's"},
       {"firmware.a", Q::plain, "fit", "Steinhart-Hart A the firmware uses; fit = through the nominal curve"},
       {"firmware.b", Q::plain, "fit", "Steinhart-Hart B; fit = through the nominal curve"},
       {"firmware.c", Q::plain, "fit", "Steinhart-Hart C; fit = through the nominal curve"},
@@ -201,6 +202,10 @@ void Scenario::load_file(const std::string& path) {
     const auto it = lines.find(key);
     values_[key] = Setting{trim(value.as<std::string>()), Where{Origin::file, path, it == lines.end() ? 0 : it->second, key}};
   }
+  // A file without a title is named by its file name in reports, never by
+  // the built-in design's title (which would describe another circuit).
+  if (values_["title"].where.kind == Origin::built_in)
+    values_["title"] = Setting{std::filesystem::path(path).filename().string(), Where{Origin::file, path, 0, "title"}};
 }
 
 std::string to_ini(const Scenario& s, bool with_help) {
@@ -458,9 +463,31 @@ Design build_design(const Scenario& s) {
       reject(b.where, b.value, "must be above absolute zero");
   }
 
-  // Calibration points need the range.
+  // The nominal curve must give a usable resistance at both ends of the
+  // range (a table's ends are results instead: outside-sensor-table). A B
+  // value with a stray prefix, or an RTD analysed where its polynomial is no
+  // longer positive, would otherwise reach the engines as inf or nothing.
+  if (se.kind != SensorKind::table) {
+    for (const double t : {c.t_min, c.t_max}) {
+      const auto l = nominal_ln_resistance(se, t + kelvin_offset);
+      if (l && std::isfinite(*l) && std::exp(*l) > 0.0 && std::isfinite(std::exp(*l))) continue;
+      const std::string at = " at " + s.get(t == c.t_min ? "conditions.t_min" : "conditions.t_max").value + " degC";
+      if (se.kind == SensorKind::beta)
+        r.fail("sensor.beta", "gives the sensor no finite resistance" + at + "; a B value is some thousands of kelvin (3950 or 3950K)");
+      if (se.kind == SensorKind::steinhart_hart)
+        r.fail("sensor.a", "the Steinhart-Hart curve (sensor.a, b, c) gives no finite resistance" + at);
+      r.fail(t == c.t_min ? "conditions.t_min" : "conditions.t_max",
+             "the RTD's Callendar-Van Dusen curve has no positive resistance there; IEC 60751 defines it from -200 to 850 degC");
+    }
+  }
+
+  // Calibration points need the range. Read even when calibration is off, so
+  // that a typo is refused rather than waiting for the day it is switched on.
+  {
+    const std::vector<double> at = parse_list(r, "firmware.calibration_at", Quantity::temperature);
+    if (f.calibration != Calibration::none) f.calibration_at = at;
+  }
   if (f.calibration != Calibration::none) {
-    f.calibration_at = parse_list(r, "firmware.calibration_at", Quantity::temperature);
     const std::size_t want = f.calibration == Calibration::offset ? 1 : 2;
     if (f.calibration_at.size() != want)
       r.fail("firmware.calibration_at", want == 1 ? "offset calibration takes one temperature" :
@@ -537,17 +564,26 @@ Design build_design(const Scenario& s) {
     m.max_units = static_cast<std::uint64_t>(cap);
   }
 
-  // The active toleranced inputs.
+  // The active toleranced inputs. Every per-input override is read, also of
+  // an input that is not active, so that a typo is refused wherever it is.
+  auto distribution_of = [&](const std::string& key) {
+    if (s.get(key + "_dist").value == "default") return m.distribution;
+    return r.word<Distribution>(key + "_dist", {{"normal", Distribution::normal},
+                                                {"uniform", Distribution::uniform},
+                                                {"triangular", Distribution::triangular},
+                                                {"gapped", Distribution::gapped}});
+  };
+  for (const KeySpec& k : scenario_schema())
+    if (k.key.ends_with("_dist")) {
+      const std::string key = k.key.substr(0, k.key.size() - 5);
+      distribution_of(key);
+      r.non_negative(key + "_gap");
+    }
   auto add = [&](Source src, double bound) {
     if (bound <= 0.0) return;
     ToleranceInput in{src, bound, m.distribution, 0.0};
     const std::string key(info(src).key);
-    const auto& dist = s.get(key + "_dist");
-    if (dist.value != "default")
-      in.distribution = r.word<Distribution>(key + "_dist", {{"normal", Distribution::normal},
-                                                             {"uniform", Distribution::uniform},
-                                                             {"triangular", Distribution::triangular},
-                                                             {"gapped", Distribution::gapped}});
+    in.distribution = distribution_of(key);
     in.gap = r.non_negative(key + "_gap");
     if (in.distribution == Distribution::gapped && !(in.gap < bound))
       r.fail(key + "_gap", "the gap must be smaller than the bound " + s.get(key).value);
@@ -578,6 +614,67 @@ Design build_design(const Scenario& s) {
     d.inputs.push_back({Source::board_temperature, c.board.half_width(), Distribution::uniform, 0.0});
   }
   return d;
+}
+
+namespace {
+
+std::string general(double v, int digits) {
+  char buf[40];
+  std::snprintf(buf, sizeof buf, "%.*g", digits, v);
+  return buf;
+}
+
+std::string celsius_list(const std::vector<double>& t) {
+  std::string out;
+  for (double v : t) out += (out.empty() ? "" : ", ") + general(v, 6);
+  return out + " degC";
+}
+
+}  // namespace
+
+std::map<std::string, ResolvedValue> resolved_values(const Scenario& s, const Design& d) {
+  constexpr int digits = 6;               // enough for any part value and tolerance
+  constexpr int coefficient_digits = 10;  // curve coefficients as the fit gives them
+  // A base-unit value in the unit unit_symbol() prints.
+  auto in_unit = [](double v, Quantity q) { return q == Quantity::ratio ? 100.0 * v : q == Quantity::tempco ? 1e6 * v : v; };
+  std::map<std::string, ResolvedValue> out;
+  for (const KeySpec& k : scenario_schema()) {
+    const Setting& st = s.get(k.key);
+    ResolvedValue r{st.value.empty() ? "(none)" : st.value, std::nullopt};
+    if (k.key != "title" && !st.value.empty()) {
+      try {
+        const double v = parse_quantity(st.value, k.quantity, st.where);
+        r.number = in_unit(v, k.quantity);
+        r.text = k.quantity == Quantity::plain     ? general(v, coefficient_digits)
+                 : k.quantity == Quantity::integer ? general(v, 17)
+                                                   : format_quantity(v, k.quantity, digits);
+      } catch (const input_error&) {
+        // A word (none, sensor, fit, auto, a model name) or a list: it stands as written.
+      }
+    }
+    out[k.key] = r;
+  }
+  // The keys whose words or lists the design resolved.
+  const FirmwareSettings& f = d.firmware;
+  if (d.sensor.kind == SensorKind::table) out["sensor.table_file"].text = d.sensor.table_file;
+  const char* own = d.sensor.kind == SensorKind::beta ? " (the sensor's)" : " (through the curve at t_min, t_max)";
+  if (s.get("firmware.r25").value == "sensor" && f.r25 > 0.0)
+    out["firmware.r25"] = {format_quantity(f.r25, Quantity::resistance, digits) + own, f.r25};
+  if (s.get("firmware.beta").value == "sensor" && f.beta > 0.0)
+    out["firmware.beta"] = {format_quantity(f.beta, Quantity::beta_value, digits) + own, f.beta};
+  if (f.conversion == Conversion::steinhart_hart && !f.sh) {
+    const SteinhartHart fitted = Firmware(d).steinhart_hart();
+    const char* note = " (fitted at t_min, the middle, t_max)";
+    out["firmware.a"] = {general(fitted.a, coefficient_digits) + note, fitted.a};
+    out["firmware.b"] = {general(fitted.b, coefficient_digits) + note, fitted.b};
+    out["firmware.c"] = {general(fitted.c, coefficient_digits) + note, fitted.c};
+  }
+  if (!f.calibration_at.empty()) out["firmware.calibration_at"].text = celsius_list(f.calibration_at);
+  const BoardTemperature& b = d.conditions.board;
+  out["conditions.board"].text = b.kind == BoardKind::sensor  ? "sensor (the medium's true temperature)"
+                                 : b.kind == BoardKind::fixed ? celsius_list({b.min})
+                                                              : general(b.min, digits) + " .. " + celsius_list({b.max});
+  return out;
 }
 
 std::vector<double> Conditions::temperatures() const {

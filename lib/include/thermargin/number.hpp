@@ -22,6 +22,7 @@ enum class Quantity {
   dissipation,      // W/K
   temperature,      // °C; accepts `C`, `°C`, `degC`
   temperature_difference,  // K; accepts `K`
+  beta_value,       // K, an NTC's B value; accepts `K` (kelvin, not kilo: `3950K`)
   tempco,           // 1/K; accepts `ppm`, `ppm/K`, `%/K`, `/K`
   lsb,              // ADC counts; accepts `LSB`
   integer,          // a whole number, no prefix

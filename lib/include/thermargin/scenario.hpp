@@ -10,6 +10,7 @@
 #pragma once
 
 #include <map>
+#include <optional>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -59,6 +60,21 @@ class Scenario {
 
 // Validates every value and combination and builds the design.
 Design build_design(const Scenario& s);
+
+// What every key resolved to (`thermargin check`), by key. `text` is for
+// people: a number in its unit with engineering prefixes (`4k7` →
+// "4.7 kohm", a ratio of `1` → "100 %"), a word as it stands, the board and
+// calibration temperatures in degC, the table file's path, and for the words
+// the design resolves itself the value it uses (firmware.r25 and
+// firmware.beta = sensor, firmware.a, b, c = fit). `number` is the value the
+// design uses in the unit unit_symbol() names for the key's quantity (% for
+// ratios, ppm/K for tempcos, the base unit otherwise); none for words and
+// lists. `d` is build_design(s).
+struct ResolvedValue {
+  std::string text;
+  std::optional<double> number;
+};
+std::map<std::string, ResolvedValue> resolved_values(const Scenario& s, const Design& d);
 
 // The scenario as INI text (every key, its resolved value), e.g. to save the
 // built-in default design.
