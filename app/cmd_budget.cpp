@@ -312,7 +312,8 @@ int run_budget(int argc, char** argv) {
   po::options_description own("budget options");
   own.add_options()("no-mc", "skip the Monte Carlo engine")(
       "corners", po::value<std::string>()->default_value("auto"),
-      "worst-case corners: auto | enumerate | directed");
+      "worst-case corners: auto (every corner up to 16 active inputs, directed by the sensitivities beyond) | "
+      "enumerate (every corner, up to 24 inputs) | directed");
   if (help_requested("budget", argc, argv, "[FILE] [options]", own, true, true, true)) return 0;
   const Invocation inv = parse("budget", argc, argv, own, true, true, true);
   const Design design = build_design(inv.scenario);
