@@ -69,7 +69,7 @@ std::vector<KeySpec> make_schema() {
       {"firmware.a", Q::plain, "fit", "Steinhart-Hart A the firmware uses; fit = through the nominal curve"},
       {"firmware.b", Q::plain, "fit", "Steinhart-Hart B; fit = through the nominal curve"},
       {"firmware.c", Q::plain, "fit", "Steinhart-Hart C; fit = through the nominal curve"},
-      {"firmware.table_points", Q::integer, "33", "lookup-table points, equally spaced in code"},
+      {"firmware.table_points", Q::integer, "33", "lookup-table points (where they sit: firmware.table_spacing)"},
       {"firmware.table_unit", Q::temperature_difference, "0.01", "lookup-table storage unit in K, 0.0001..1"},
       {"firmware.table_spacing", Q::plain, "code", "lookup-table points equally spaced in: code | temperature"},
       {"firmware.lead_compensation", Q::resistance, "0", "lead resistance the firmware subtracts"},

@@ -7,9 +7,9 @@
 // resistance removed; then a temperature from the firmware's own model:
 // `exact` (the nominal curve's inverse), `beta`, `steinhart-hart` (by
 // default through the nominal curve at t_min, the middle and t_max) or a
-// lookup `table` of P points equally spaced in code with linear
-// interpolation, stored as integers exactly as `thermargin table` emits it
-// (that command may also space the points in temperature: lookup_table.hpp).
+// lookup `table` of P points equally spaced in code or in temperature
+// (firmware.table_spacing) with linear interpolation, stored as integers
+// exactly as `thermargin table` emits it.
 #pragma once
 
 #include <cstdint>
