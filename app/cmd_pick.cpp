@@ -64,8 +64,12 @@ std::string objective_unit(Objective o) { return maximised(o) ? "LSB/K" : "K"; }
 std::string objective_value(Objective o, double v) { return fixed(v, maximised(o) ? 3 : 4) + " " + objective_unit(o); }
 
 std::string grade_text(const PickResult& r, const PickOptions& o) {
-  return format_quantity(r.tolerance, Quantity::ratio, 3) + ", " + format_quantity(r.tempco, Quantity::tempco, 3) +
-         (o.tolerance || o.tempco ? " (--grade)" : " (scenario)");
+  const std::string tol_from = o.series_grade ? "the " + std::string(to_string(o.series)) + " series' tolerance"
+                               : o.tolerance    ? "--grade"
+                                                : "scenario";
+  const std::string tempco_from = o.tempco ? "--grade" : "scenario";
+  return format_quantity(r.tolerance, Quantity::ratio, 3) + " (" + tol_from + "), " +
+         format_quantity(r.tempco, Quantity::tempco, 3) + " (" + tempco_from + ")";
 }
 
 std::string constraints_text(const PickConstraints& c) {
@@ -78,7 +82,7 @@ std::string constraints_text(const PickConstraints& c) {
   return v.empty() ? "none" : join(v, "; ");
 }
 
-std::string verdict_line(const PickResult& r, const PickOptions& o) {
+std::string verdict_line(const Design& d, const PickResult& r, const PickOptions& o) {
   const PickRow& w = r.winner();
   std::ostringstream out;
   const std::string label = o.values.empty() ? std::string(to_string(o.series)) : "given";
@@ -102,6 +106,10 @@ std::string verdict_line(const PickResult& r, const PickOptions& o) {
     else
       out << ", " << objective_value(r.objective, *r.margin) << (maximised(r.objective) ? " more than " : " better than ") << other;
   }
+  // As the report's banner: an error objective against the requirement.
+  if (!maximised(r.objective))
+    out << (w.objective <= d.requirement.max_error ? "; within" : "; outside") << " the requirement of +/-"
+        << fixed(d.requirement.max_error, 3) << " K";
   return out.str();
 }
 
@@ -143,7 +151,7 @@ std::string to_json(const Design& d, const PickResult& r, const PickOptions& o) 
   j["objective"] = std::string(to_string(r.objective));
   j["units"] = {{"resistance", "ohm"}, {"error", "K"},  {"sensitivity", "LSB/K"}, {"self_heating", "K"},
                 {"current", "A"},      {"power", "W"}, {"span", "fraction of 2^N"}};
-  j["window"] = {{"min", r.window_min}, {"max", r.window_max}};
+  j["window"] = {{"min", r.window_min}, {"max", r.window_max}, {"max_error", d.requirement.max_error}};
   j["candidates"] = {{"from", r.candidates_label},
                      {"count", r.candidates},
                      {"within_constraints", r.within_constraints},
@@ -221,7 +229,7 @@ std::string guidance_text(const char* what, const GuidanceValue& v, const PickRe
 std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) {
   std::ostringstream out;
   out << "thermargin pick - " << d.title << "\n\n";
-  out << verdict_line(r, o) << "\n";
+  out << verdict_line(d, r, o) << "\n";
   out << "Ranked by the " << objective_phrase(r.objective) << " over the window "
       << (maximised(r.objective) ? "(largest smallest LSB/K first)" : "(smallest largest |error| first)") << "; "
       << r.candidates << " candidate" << (r.candidates == 1 ? "" : "s") << " (" << r.candidates_label
@@ -307,7 +315,8 @@ int run_pick(int argc, char** argv) {
       "values", po::value<std::string>(), "explicit candidates instead of a series, e.g. 4k7,10k,22k")(
       "objective", po::value<std::string>()->default_value("worst-case"),
       "worst-case | linear | monte-carlo (smallest max |error| over the window) | sensitivity (largest min LSB/K)")(
-      "grade", po::value<std::string>(), "TOL[,TEMPCO] of the resistors picked, e.g. 0.1%,25ppm (default: the scenario's)")(
+      "grade", po::value<std::string>(), "TOL[,TEMPCO] of the resistors picked, e.g. 0.1%,25ppm; 'series' for the tolerance IEC 60063 pairs with the "
+      "series (E96: 1%) (default: the scenario's)")(
       "max-self-heating", po::value<std::string>(), "limit on the nominal self-heating anywhere in the range, K")(
       "max-current", po::value<std::string>(), "limit on the divider current while powered, anywhere in the range, A")(
       "max-power", po::value<std::string>(), "limit on the power the divider draws while powered, W")(
@@ -339,7 +348,8 @@ int run_pick(int argc, char** argv) {
   o.objective = parse_objective(vm["objective"].as<std::string>(), option_where("--objective"));
   if (vm.count("grade")) {
     const Grade g = parse_grade(vm["grade"].as<std::string>(), option_where("--grade"));
-    o.tolerance = g.tolerance;
+    if (g.series) o.series_grade = true;
+    else o.tolerance = g.tolerance;
     o.tempco = g.tempco;
   }
   auto limit = [&](const char* name, Quantity q, const char* unit) -> std::optional<double> {

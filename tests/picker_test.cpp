@@ -676,6 +676,42 @@ TEST(Picker, GradeOverridesTheScenarioTolerance) {
   EXPECT_NEAR(*got.winner().wc_max_abs, t.wc, same_engine_tolerance);
 }
 
+TEST(Picker, SeriesGradeIsTheToleranceOfTheSeriesTheCandidatesComeFrom) {
+  // E12 with its ±10 % (IEC 60063, from memory; series_test.cpp) ranks as
+  // an explicit 10 % grade does, and differently from the scenario's 1 %.
+  const Scenario s;
+  PickOptions o;
+  o.series = Series::e12;
+  o.range_low = 3e3;
+  o.range_high = 40e3;
+  o.guidance = false;
+  o.top = 3;
+  o.series_grade = true;
+  const PickResult by_series = pick(s, o);
+  EXPECT_EQ(by_series.tolerance, 0.10);
+  o.series_grade = false;
+  o.tolerance = 0.10;
+  const PickResult explicit_grade = pick(s, o);
+  ASSERT_EQ(by_series.rows.size(), explicit_grade.rows.size());
+  for (std::size_t k = 0; k < by_series.rows.size(); ++k) {
+    EXPECT_EQ(by_series.rows[k].r_fixed, explicit_grade.rows[k].r_fixed);
+    EXPECT_EQ(by_series.rows[k].objective, explicit_grade.rows[k].objective);
+  }
+  const Truth t = budget_of(s, by_series.winner().r_fixed, {{"divider.r_fixed_tol", "10%"}});
+  EXPECT_NEAR(*by_series.winner().wc_max_abs, t.wc, same_engine_tolerance);
+  EXPECT_GT(t.wc, budget_of(s, by_series.winner().r_fixed).wc);  // the grade matters here
+  // An explicit tolerance wins over the series'; with given values there is no series.
+  o.series_grade = true;
+  o.tolerance = 0.001;
+  EXPECT_EQ(pick(s, o).tolerance, 0.001);
+  o.tolerance.reset();
+  o.values = {10e3, 12e3};
+  EXPECT_THROW(pick(s, o), input_error);
+  const Grade g = parse_grade("series,25ppm", Where{});
+  EXPECT_TRUE(g.series);
+  EXPECT_DOUBLE_EQ(*g.tempco, 25e-6);
+}
+
 // --- The continuous optimum against SciPy ----------------------------------
 
 TEST(Picker, ContinuousOptimumAgreesWithScipyOnAReimplementedObjective) {
@@ -768,6 +804,7 @@ TEST(PickCli, JsonHasTheInterfaceFieldsBestFirstAndTheWinner) {
     for (const char* key : {"r_fixed", "wc_max_abs", "rss_max_abs", "min_sensitivity", "max_self_heating", "max_current", "rejected_by"})
       EXPECT_TRUE(row.contains(key)) << key;
   EXPECT_EQ(j["winner"], j["rows"][0]);
+  EXPECT_EQ(j["window"]["max_error"], 1.0);  // default.ini's requirement
   EXPECT_TRUE(j["rows"][0]["rejected_by"].is_null());
   EXPECT_LE(j["rows"][0]["wc_max_abs"].get<double>(), j["rows"][1]["wc_max_abs"].get<double>());
   // The command line and the library agree.
@@ -790,6 +827,9 @@ TEST(PickCli, TextLeadsWithTheVerdictAndCsvCarriesTheCaution) {
   std::getline(lines, verdict);
   EXPECT_EQ(first.rfind("thermargin pick - ", 0), 0u);
   EXPECT_EQ(verdict.rfind("Best: ", 0), 0u) << verdict;
+  // The default design's worst case is above 2 K for every value here: the
+  // line says it misses the +/-1 K requirement, as the report's banner does.
+  EXPECT_TRUE(verdict.ends_with("; outside the requirement of +/-1.000 K")) << verdict;
   EXPECT_NE(txt.out.find("verify MC (K)"), std::string::npos);
   EXPECT_NE(txt.out.find(std::string(caution)), std::string::npos);
   const CliRun csv = run_cli("--series e12 --range 5k..30k --top 3 --format csv --no-guidance");
@@ -823,7 +863,9 @@ TEST(PickCli, BadInputIsOneLineNamingTheOptionAndExitStatusTwo) {
            {"--max-self-heating -0.1", "--max-self-heating"},
            {"--min-span 0", "--min-span"},
            {"--values 4k7,10k --range 1k..2k", "--range"},
-           {"--top 0", "--top"}}) {
+           {"--top 0", "--top"},
+           {"--values 4k7,10k --grade series", "--grade"},
+           {"--grade tight", "--grade"}}) {
     const CliRun r = run_cli(args);
     EXPECT_EQ(r.status, 2) << args;
     EXPECT_TRUE(r.out.empty()) << args;

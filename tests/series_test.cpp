@@ -120,6 +120,17 @@ TEST(Series, CoarsestSeriesNamesWhereAValueCanBeBought) {
   EXPECT_FALSE(coarsest_series(9.19e3));
 }
 
+TEST(Series, EachSeriesHasTheToleranceIec60063PairsWithIt) {
+  // IEC 60063 (from memory): E12 ±10 %, E24 ±5 %, E48 ±2 %, E96 ±1 %, E192
+  // ±0.5 % (and tighter); common practice: the series named on a resistor
+  // reel says its tolerance.
+  EXPECT_EQ(series_tolerance(Series::e12), 0.10);
+  EXPECT_EQ(series_tolerance(Series::e24), 0.05);
+  EXPECT_EQ(series_tolerance(Series::e48), 0.02);
+  EXPECT_EQ(series_tolerance(Series::e96), 0.01);
+  EXPECT_EQ(series_tolerance(Series::e192), 0.005);
+}
+
 TEST(Series, NamesAreReadInEitherCase) {
   EXPECT_EQ(series_from_name("e96"), Series::e96);
   EXPECT_EQ(series_from_name("E192"), Series::e192);

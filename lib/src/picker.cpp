@@ -650,6 +650,8 @@ void check_options(const PickOptions& o) {
     for (double v : o.values)
       if (!(v > 0.0 && std::isfinite(v))) reject(option("--values"), number_text(v), "every value must be a resistance > 0");
   }
+  if (o.series_grade && !o.tolerance && !o.values.empty())
+    reject(option("--grade"), "series", "needs candidates from a series (--series, --range), not --values; give TOL[,TEMPCO] instead");
   if (o.top < 1) reject(option("--top"), std::to_string(o.top), "must be a whole number >= 1");
   if (o.verify < 0) reject(option("--verify"), std::to_string(o.verify), "must be a whole number >= 0");
   if (o.tolerance && !(*o.tolerance >= 0.0 && *o.tolerance < 1.0))
@@ -681,12 +683,14 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
     const Design given = build_design(scenario);
     given_threads = given.montecarlo.threads;
     const Where grade = option("--grade");
-    if (options.tolerance) ctx.base.set("divider.r_fixed_tol", number_text(*options.tolerance), grade);
+    if (!options.tolerance && options.series_grade) ctx.options.tolerance = series_tolerance(options.series);
+    const std::optional<double>& tolerance = ctx.options.tolerance;
+    if (tolerance) ctx.base.set("divider.r_fixed_tol", number_text(*tolerance), grade);
     if (options.tempco) ctx.base.set("divider.r_fixed_tempco", number_text(*options.tempco), grade);
     if (options.parallel) {
       // The parallel resistor's tolerance: the grade's, else the scenario's,
       // else (no parallel resistor in the scenario) the fixed resistor's.
-      const double tol = options.tolerance ? *options.tolerance
+      const double tol = tolerance ? *tolerance
                          : given.divider.r_parallel ? given.divider.r_parallel_tol
                                                     : given.divider.r_fixed_tol;
       ctx.base.set("divider.r_parallel", "1k", grade);  // a placeholder; every candidate sets its own
@@ -1208,7 +1212,15 @@ Objective parse_objective(std::string_view text, const Where& where) {
 Grade parse_grade(std::string_view text, const Where& where) {
   Grade g;
   const auto comma = text.find(',');
-  g.tolerance = parse_quantity(text.substr(0, comma), Quantity::ratio, where);
+  g.series = text.substr(0, comma) == "series";
+  if (!g.series) {
+    try {
+      g.tolerance = parse_quantity(text.substr(0, comma), Quantity::ratio, where);
+    } catch (const input_error&) {
+      reject(where, text, "expected a fraction such as 0.1% (then optionally a tempco: 0.1%,25ppm), or 'series' for the "
+                          "tolerance IEC 60063 pairs with the series (series,25ppm)");
+    }
+  }
   if (!(g.tolerance >= 0.0 && g.tolerance < 1.0))
     reject(where, text, "the tolerance must be from 0 up to (not including) 100 % (e.g. 0.1% or 0.1%,25ppm)");
   if (comma != std::string_view::npos) {

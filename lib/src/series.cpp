@@ -76,6 +76,17 @@ std::string_view series_names() { return "e12 | e24 | e48 | e96 | e192"; }
 
 int values_per_decade(Series s) { return static_cast<int>(series_figures(s).size()); }
 
+double series_tolerance(Series s) {
+  switch (s) {
+    case Series::e12: return 0.10;
+    case Series::e24: return 0.05;
+    case Series::e48: return 0.02;
+    case Series::e96: return 0.01;
+    case Series::e192: return 0.005;
+  }
+  return 0.01;
+}
+
 const std::vector<int>& series_figures(Series s) {
   static const std::vector<int> e12 = every_second(e24_figures);
   static const std::vector<int> e192 = e192_figures();

@@ -77,7 +77,10 @@ struct PickOptions {
   Objective objective = Objective::worst_case;
   // The grade of the resistors picked; none: the scenario's
   // divider.r_fixed_tol / r_fixed_tempco (and r_parallel_tol for a pair).
+  // series_grade: the tolerance IEC 60063 pairs with `series`
+  // (series_tolerance; candidates from a series only), unless `tolerance`.
   std::optional<double> tolerance;  // ± relative
+  bool series_grade = false;
   std::optional<double> tempco;     // ± 1/K (fixed resistor only)
   PickConstraints constraints;
   // Also pick a resistor across the sensor branch (divider.r_parallel) from
@@ -219,9 +222,10 @@ Series parse_series(std::string_view text, const Where& where);
 Objective parse_objective(std::string_view text, const Where& where);
 struct Grade {
   double tolerance = 0.0;
+  bool series = false;  // "series": the series' own tolerance (series_tolerance)
   std::optional<double> tempco;
 };
-Grade parse_grade(std::string_view text, const Where& where);  // "0.1%" or "0.1%,25ppm"
+Grade parse_grade(std::string_view text, const Where& where);  // "0.1%", "0.1%,25ppm", "series" or "series,25ppm"
 // A positive limit of quantity q ("5mA", "0.05K").
 double parse_limit(std::string_view text, Quantity q, const Where& where);
 

@@ -31,6 +31,11 @@ std::string_view series_names();
 
 int values_per_decade(Series s);
 
+// The tolerance IEC 60063 pairs with each series, as a ± fraction: E12
+// 10 %, E24 5 %, E48 2 %, E96 1 %, E192 0.5 % (the loosest it lists for
+// E192; from memory). `pick --grade series` uses it.
+double series_tolerance(Series s);
+
 // The significant figures of one decade, ascending: two digits (10..82,
 // 10..91) for E12 and E24, three (100..976, 100..988) for the others.
 const std::vector<int>& series_figures(Series s);
