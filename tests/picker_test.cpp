@@ -69,6 +69,7 @@ struct Truth {
   double r = 0.0;
   bool readable = true;  // every worst-case corner in the window converted
   double wc = 0.0, rss = 0.0, min_sensitivity = 0.0, max_current = 0.0;
+  std::string dominant;  // short name of budget's largest window contributor
 };
 
 Truth budget_of(const Scenario& base, double r_fixed, const std::vector<std::pair<std::string, std::string>>& extra = {}) {
@@ -84,6 +85,7 @@ Truth budget_of(const Scenario& base, double r_fixed, const std::vector<std::pai
   t.r = r_fixed;
   t.wc = b.wc_max_abs;
   t.rss = b.rss_max_abs;
+  if (!b.window_contributors.empty()) t.dominant = b.window_contributors.front().name;
   t.min_sensitivity = std::numeric_limits<double>::infinity();
   for (const auto& p : b.points) {
     if (p.nominal.status == Status::ok) {
@@ -306,6 +308,8 @@ TEST(Picker, WinnerAndItsFiguresEqualTheBudgetOfThatDesign) {
   EXPECT_NEAR(*w.rss_max_abs, t.rss, same_engine_tolerance);
   EXPECT_NEAR(w.min_sensitivity, t.min_sensitivity, same_engine_tolerance);
   EXPECT_NEAR(w.max_current, t.max_current, same_engine_tolerance);
+  EXPECT_FALSE(w.dominant.empty());
+  EXPECT_EQ(w.dominant, t.dominant);  // budget's largest window share, by its short name
 }
 
 TEST(Picker, ConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestFeasible) {
@@ -535,6 +539,40 @@ TEST(Picker, MonteCarloObjectiveRanksByTheEngineBandWithTheSameDraws) {
     EXPECT_EQ(*got.rows[k].mc_max_abs, truth[k].first);  // deterministic in (seed, units)
   }
   EXPECT_EQ(got.mc_objective_units, 2000u);
+}
+
+TEST(Picker, VerifyIsTheMonteCarloEngineOnTheTopRowsDesigns) {
+  // --verify N: the first N rows re-simulated by the engine itself (JCGM 101,
+  // monte_carlo.hpp) on the same design and draws; the rows after them not.
+  const Scenario s = scenario_with({}, testing::scenario_path("fermentation_probe.ini"));
+  PickOptions o;
+  o.series = Series::e12;
+  o.range_low = 5e3;
+  o.range_high = 50e3;
+  o.top = 3;
+  o.verify = 2;
+  o.mc_units = 3000;
+  o.guidance = false;
+  const PickResult got = pick(s, o);
+  ASSERT_EQ(got.rows.size(), 3u);
+  EXPECT_EQ(got.mc_verify_units, 3000u);
+  for (std::size_t k = 0; k < 2; ++k) {
+    SCOPED_TRACE(text(got.rows[k].r_fixed));
+    Scenario c = s;
+    c.set("divider.r_fixed", text(got.rows[k].r_fixed), Where{});
+    const Design d = build_design(c);
+    const Chain chain(d);
+    McOptions mo;
+    mo.units = 3000;
+    const McResult want = monte_carlo(chain, window_temperatures(d), mo);
+    ASSERT_TRUE(got.rows[k].verify);
+    EXPECT_EQ(got.rows[k].verify->units, 3000u);
+    EXPECT_EQ(got.rows[k].verify->max_abs, want.summary.max_abs);  // deterministic in (seed, units)
+    EXPECT_EQ(got.rows[k].verify->yield, want.summary.yield);
+    EXPECT_EQ(got.rows[k].verify->yield_low, want.summary.yield_low);
+    EXPECT_EQ(got.rows[k].verify->yield_high, want.summary.yield_high);
+  }
+  EXPECT_FALSE(got.rows[2].verify);
 }
 
 TEST(Picker, PairSearchEqualsBruteForceOverEveryPairAndNone) {
