@@ -175,6 +175,13 @@ TEST(Picker, MaximumSensitivityValueIsTheSensorResistanceAtTheWindowCentre) {
   // The winner is one of the E192 values either side of R(Tm).
   const SeriesBracket b = series_bracket(Series::e192, r_tm);
   EXPECT_TRUE(r.winner().r_fixed == b.below || r.winner().r_fixed == b.above) << r.winner().r_fixed;
+  // The high placement's ratio is 1 − ρ: the same slope, the same optimum.
+  Scenario high = s;
+  high.set("divider.placement", "high", Where{});
+  const PickResult h = pick(high, o);
+  ASSERT_TRUE(h.guidance.optimum.r);
+  EXPECT_NEAR(*h.guidance.optimum.r / r_tm, 1.0, max_sensitivity_tolerance);
+  EXPECT_EQ(h.winner().r_fixed, r.winner().r_fixed);
 }
 
 // --- The ranking against brute force ---------------------------------------
