@@ -157,7 +157,8 @@ std::string to_json(const Design& d, const PickResult& r, const PickOptions& o) 
                      {"within_constraints", r.within_constraints},
                      {"evaluated_in_full", r.evaluated_in_full},
                      {"pair_search", r.pair_search},
-                     {"reduced_pair_search", r.reduced_pair_search}};
+                     {"reduced_pair_search", r.reduced_pair_search},
+                     {"corners_directed", r.corners_directed}};
   j["grade"] = {{"tolerance", r.tolerance}, {"tempco", r.tempco}};
   const auto& c = o.constraints;
   j["constraints"] = {{"max_self_heating", num(c.max_self_heating)}, {"max_current", num(c.max_current)},
@@ -236,9 +237,14 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
       << (r.pair_search ? ", fixed and parallel resistor pairs" : "") << (r.reduced_pair_search ? ", reduced pair search" : "")
       << "), " << r.within_constraints << " within the constraints";
   if (r.objective == Objective::worst_case) {
-    out << "; " << r.evaluated_in_full << " enumerated in full";
+    const char* full = r.corners_directed ? " searched in full" : " enumerated in full";
+    out << "; " << r.evaluated_in_full << full;
     if (r.evaluated_in_full < r.candidates)
-      out << ", the rest bounded below by directed corners or stopped once a partial enumeration could not win";
+      out << ", the rest bounded below by directed corners or stopped once a partial" << (r.corners_directed ? " search" : " enumeration")
+          << " could not win";
+    if (r.corners_directed)
+      out << " (more than 16 toleranced inputs: each worst case is searched from the two corners the sensitivities point to, "
+             "as budget does, not enumerated)";
   }
   out << ".\n";
   if (r.mc_objective_units) out << "Monte Carlo objective: " << r.mc_objective_units << " units per candidate, the same draws for each.\n";

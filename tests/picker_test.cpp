@@ -259,6 +259,7 @@ TEST(Picker, WithMoreThanSixteenInputsTheRankingEqualsTheDirectedWorstCaseOfEver
   o.guidance = false;
   o.top = static_cast<int>(o.values.size());
   const PickResult got = pick(s, o);
+  EXPECT_TRUE(got.corners_directed);
   std::vector<Truth> all;
   for (double v : o.values) all.push_back(worst_case_of(s, v));
   const auto want = ranked_by_worst_case(all);
@@ -850,6 +851,7 @@ TEST(PickCli, JsonHasTheInterfaceFieldsBestFirstAndTheWinner) {
       EXPECT_TRUE(row.contains(key)) << key;
   EXPECT_EQ(j["winner"], j["rows"][0]);
   EXPECT_EQ(j["window"]["max_error"], 1.0);  // default.ini's requirement
+  EXPECT_EQ(j["candidates"]["corners_directed"], false);  // the default design: far fewer than 17 inputs
   EXPECT_TRUE(j["rows"][0]["rejected_by"].is_null());
   EXPECT_LE(j["rows"][0]["wc_max_abs"].get<double>(), j["rows"][1]["wc_max_abs"].get<double>());
   // The command line and the library agree.

@@ -913,6 +913,7 @@ PickResult pick(const Scenario& scenario, const PickOptions& options) {
   PickResult result;
   result.objective = o.objective;
   result.pair_search = ctx.pair;
+  result.corners_directed = corners_directed(ctx.design);
   result.tolerance = ctx.design.divider.r_fixed_tol;
   result.tempco = ctx.design.divider.r_fixed_tempco;
   result.window_min = ctx.design.requirement.window_min;

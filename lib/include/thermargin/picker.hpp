@@ -162,6 +162,9 @@ struct PickResult {
   std::size_t evaluated_in_full = 0;  // candidates whose objective was computed exactly
   bool pair_search = false;
   bool reduced_pair_search = false;
+  // More than max_enumerated_inputs toleranced inputs: the worst case is the
+  // engine's search from the sensitivity-directed corners, not every corner.
+  bool corners_directed = false;
   double tolerance = 0.0, tempco = 0.0;  // the fixed resistor's grade used
   std::uint64_t mc_objective_units = 0, mc_verify_units = 0;
   double window_min = 0.0, window_max = 0.0;  // °C
