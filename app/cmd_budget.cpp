@@ -14,6 +14,7 @@
 #include "thermargin/budget.hpp"
 #include "thermargin/budget_report.hpp"
 #include "thermargin/caution.hpp"
+#include "thermargin/what_if.hpp"
 
 namespace thermargin::cli {
 
@@ -24,6 +25,24 @@ nlohmann::json num(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlo
 std::string pct(double v, int decimals = 2) { return fixed(100.0 * v, decimals) + " %"; }
 
 bool point_ok(const BudgetPoint& p) { return p.nominal.status == Status::ok; }
+
+nlohmann::json what_if_json(const Design& d, const WhatIf& w) {
+  auto figures = [](const WhatIfFigures& f) {
+    return nlohmann::json{{"wc_max_abs", f.wc_max_abs}, {"rss_max_abs", f.rss_max_abs}, {"readable", f.readable}};
+  };
+  nlohmann::json j{{"corners", w.directed ? "directed" : "every corner"}, {"as_designed", figures(w.as_designed)}};
+  j["rows"] = nlohmann::json::array();
+  for (const auto& r : w.rows) {
+    const std::string_view e = enough(r, d.requirement);
+    j["rows"].push_back({{"source", r.name},
+                         {"label", r.label},
+                         {"key", r.key},
+                         {"halved", figures(r.halved)},
+                         {"removed", figures(r.removed)},
+                         {"within_limit", e.empty() ? nlohmann::json(nullptr) : nlohmann::json(std::string(e))}});
+  }
+  return j;
+}
 
 nlohmann::json to_json(const Design& d, const Budget& b) {
   nlohmann::json j;
@@ -141,7 +160,7 @@ const Contributor* contributor_at(const BudgetPoint& p, const std::string& name)
 
 std::string to_csv(const Budget& b) {
   std::ostringstream out;
-  std::vector<std::string> head{"t_degC", "in_window", "status", "code_LSB", "sensitivity_LSB_per_K",
+  std::vector<std::string> head{"t_degC", "in_window", "status", "v_node_V", "code_LSB", "sensitivity_LSB_per_K",
                                 "sensitivity_mV_per_K", "lsb_K", "self_heating_K", "nominal_K", "wc_low_K", "wc_high_K",
                                 "rss_low_K", "rss_high_K", "mc_low_K", "mc_high_K", "mc_median_K", "mc_saturated_share",
                                 "dominant"};
@@ -160,7 +179,7 @@ std::string to_csv(const Budget& b) {
       continue;
     }
     out << (p.wc.failed_corners ? std::string(to_string(p.wc.failure)) : std::string("ok")) << ","
-        << fixed(p.nominal.code, 3) << "," << fixed(p.nominal.sensitivity, 4) << "," << fixed(p.nominal.mv_per_k, 4) << ","
+        << fixed(p.nominal.v_node, 6) << "," << fixed(p.nominal.code, 3) << "," << fixed(p.nominal.sensitivity, 4) << "," << fixed(p.nominal.mv_per_k, 4) << ","
         << fixed(p.nominal.lsb_in_k, 5) << "," << fixed(p.nominal.self_heating, 6) << "," << fixed(p.nominal.error, 5) << ",";
     out << (p.wc.any_ok ? fixed(p.wc.low, 5) : "") << "," << (p.wc.any_ok ? fixed(p.wc.high, 5) : "") << ",";
     const bool lin = p.linear.status == Status::ok;
@@ -186,7 +205,42 @@ bool shown_contributor(const Design& d, const Contributor& k) {
                      [&](const ToleranceInput& in) { return info(in.source).name == k.name; });
 }
 
-std::string to_text(const Design& d, const Budget& b) {
+// What would help: one source improved at a time (what_if.hpp).
+std::string what_if_text(const Design& d, const WhatIf& w) {
+  std::ostringstream out;
+  if (w.rows.empty()) return {};
+  out << "\nWhat would help over the window (one source improved at a time, the rest as designed; as designed: "
+      << "worst case " << fixed(w.as_designed.wc_max_abs, 3) << " K, linear " << fixed(w.as_designed.rss_max_abs, 3)
+      << " K; limit +/-" << fixed(d.requirement.max_error, 3) << " K"
+      << (w.directed ? "; directed corners" : "") << "):\n";
+  const bool mc_basis = d.requirement.basis == Requirement::Basis::monte_carlo;
+  std::vector<std::string> head{"source (setting)", "halved: wc (K)", "lin (K)", "removed: wc (K)", "lin (K)"};
+  if (!mc_basis) head.push_back("within the limit");
+  TextTable t(head);
+  bool unreadable = false;
+  auto cell = [&](const WhatIfFigures& f, double v) {
+    unreadable |= !f.readable;
+    return fixed(v, 3) + (f.readable ? "" : "!");
+  };
+  for (const auto& r : w.rows) {
+    std::vector<std::string> row{r.label + " (" + r.key + ")", cell(r.halved, r.halved.wc_max_abs),
+                                 cell(r.halved, r.halved.rss_max_abs), cell(r.removed, r.removed.wc_max_abs),
+                                 cell(r.removed, r.removed.rss_max_abs)};
+    if (!mc_basis) {
+      const std::string_view e = enough(r, d.requirement);
+      row.push_back(e == "halved" ? "if halved" : e == "removed" ? "only if removed" : "no");
+    }
+    t.add(row);
+  }
+  out << t.render();
+  out << "halved: the source's tolerance (or noise, output resolution) halved, roughly the next better grade; "
+         "removed: an ideal part.\nOne source at a time: two changes together are not the sum of two rows; try them "
+         "with --<setting>=<value>.\n";
+  if (unreadable) out << "! some unit cannot be read at some window temperature with that change.\n";
+  return out.str();
+}
+
+std::string to_text(const Design& d, const Budget& b, const WhatIf& w) {
   std::ostringstream out;
   const auto& v = b.verdict;
   out << "thermargin budget - " << d.title << "\n\n";
@@ -250,10 +304,11 @@ std::string to_text(const Design& d, const Budget& b) {
     out << "A share of 0 %: the linear budget is first order (GUM), and a source that acts only together with\n"
            "another (a tempco with the board temperature range) has no first-order sensitivity; its half-width\n"
            "and the worst case and Monte Carlo bands include it.\n";
+  out << what_if_text(d, w);
 
   out << "\nPer temperature (errors in K; LSB/K and mV/K are the ADC sensitivity, 1 LSB its size in K;"
          " dominant: the largest share of the combined variance there):\n";
-  std::vector<std::string> head{"t (degC)", "code", "LSB/K", "mV/K", "1 LSB (K)", "self-heat", "nominal", "wc low",
+  std::vector<std::string> head{"t (degC)", "node (V)", "code", "LSB/K", "mV/K", "1 LSB (K)", "self-heat", "nominal", "wc low",
                                 "wc high", "lin low", "lin high"};
   if (b.mc) {
     head.insert(head.end(), {"mc low", "mc high", "mc median"});
@@ -267,7 +322,7 @@ std::string to_text(const Design& d, const Budget& b) {
       t.add(row);
       continue;
     }
-    row.insert(row.end(), {fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.mv_per_k, 3),
+    row.insert(row.end(), {fixed(p.nominal.v_node, 4), fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.mv_per_k, 3),
                            fixed(p.nominal.lsb_in_k, 4), fixed(p.nominal.self_heating, 4), fixed(p.nominal.error, 4)});
     if (p.wc.any_ok && p.wc.failed_corners == 0) row.insert(row.end(), {fixed(p.wc.low, 4), fixed(p.wc.high, 4)});
     else row.insert(row.end(), {std::string(to_string(p.wc.failure)), ""});
@@ -296,8 +351,8 @@ std::string to_text(const Design& d, const Budget& b) {
   for (const auto& p : b.points) {
     std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
     for (const auto* k : shown) {
-      const Contributor* c = contributor_at(p, k->name);
-      row.push_back(c ? fixed(100.0 * c->share, 1) : "n/a");
+      const Contributor* here = contributor_at(p, k->name);
+      row.push_back(here ? fixed(100.0 * here->share, 1) : "n/a");
     }
     ct.add(row);
   }
@@ -336,12 +391,19 @@ int run_budget(int argc, char** argv) {
   const Chain chain(design);
   const Budget budget = run_budget(chain, options);
   if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
+  const WhatIf help = what_if(chain, budget);
 
   std::string text;
-  if (inv.format == Format::json) text = to_json(design, budget).dump(2) + "\n";
-  else if (inv.format == Format::csv) text = to_csv(budget);
-  else text = to_text(design, budget);
-  if (!inv.report.empty()) write_report(inv.report, budget_report_html(design, inv.scenario, budget, inv.file));
+  if (inv.format == Format::json) {
+    nlohmann::json j = to_json(design, budget);
+    j["what_if"] = what_if_json(design, help);
+    text = j.dump(2) + "\n";
+  } else if (inv.format == Format::csv) {
+    text = to_csv(budget);
+  } else {
+    text = to_text(design, budget, help);
+  }
+  if (!inv.report.empty()) write_report(inv.report, budget_report_html(design, inv.scenario, budget, inv.file, &help));
   if (!inv.plots.empty()) write_figures("--plots", inv.plots, budget_figures(design, budget));
   emit(inv, text);
   return (inv.strict && !budget.verdict.pass) ? 3 : 0;

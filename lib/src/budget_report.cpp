@@ -430,7 +430,46 @@ std::vector<Figure> budget_figures(const Design& design, const Budget& budget) {
   return f;
 }
 
-std::string budget_report_html(const Design& d, const Scenario& scenario, const Budget& b, const std::string& source) {
+namespace {
+
+// One source improved at a time: the window's worst case and linear band.
+void add_what_if(HtmlDocument& doc, const Design& d, const WhatIf& w) {
+  doc.heading("What would help");
+  doc.paragraph("The window's largest error with one source improved at a time, everything else as designed: "
+                "halved is that source's tolerance (or the noise, the output resolution) halved, roughly the next "
+                "better grade; removed is an ideal part, the most that improving it can give. As designed: worst "
+                "case " + kelvin(w.as_designed.wc_max_abs) + ", linear band " + kelvin(w.as_designed.rss_max_abs) +
+                ", limit \u00b1" + kelvin(d.requirement.max_error) +
+                (w.directed ? "; corners directed by the sensitivities." : "; every corner enumerated."));
+  const bool mc_basis = d.requirement.basis == Requirement::Basis::monte_carlo;
+  Table t{.caption = "Most helpful first (by the verdict's basis)",
+          .header = {"Source", "Setting", "Halved: worst case (K)", "Halved: linear (K)", "Removed: worst case (K)",
+                     "Removed: linear (K)"},
+          .rows = {},
+          .numeric = {false, false, true, true, true, true}};
+  if (!mc_basis) {
+    t.header.push_back("Within the limit");
+    t.numeric.push_back(false);
+  }
+  auto cell = [](const WhatIfFigures& f, double v) { return num(v, 3) + (f.readable ? "" : " (unreadable units)"); };
+  for (const auto& r : w.rows) {
+    std::vector<std::string> row{r.label, r.key, cell(r.halved, r.halved.wc_max_abs), cell(r.halved, r.halved.rss_max_abs),
+                                 cell(r.removed, r.removed.wc_max_abs), cell(r.removed, r.removed.rss_max_abs)};
+    if (!mc_basis) {
+      const std::string_view e = enough(r, d.requirement);
+      row.push_back(e == "halved" ? "if halved" : e == "removed" ? "only if removed" : "no");
+    }
+    t.rows.push_back(std::move(row));
+  }
+  doc.table(t);
+  doc.paragraph("One source at a time: two changes together are not the sum of two rows. thermargin grades prices "
+                "real part grades against each other.");
+}
+
+}  // namespace
+
+std::string budget_report_html(const Design& d, const Scenario& scenario, const Budget& b, const std::string& source,
+                               const WhatIf* what_if) {
   const auto figures = budget_figures(d, b);
   HtmlDocument doc("Design review: " + d.title);
   doc.paragraph("thermargin " + std::string(version) + " budget of " +
@@ -475,6 +514,7 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
       rank.rows.push_back({std::to_string(++n), c.label + " (" + c.name + ")", pct(c.share, 1), bar(c.share),
                            num(c.half_width, 4)});
   doc.table(rank);
+  if (what_if && !what_if->rows.empty()) add_what_if(doc, d, *what_if);
 
   doc.heading("Sensitivity");
   doc.chart(figures[2].chart, "Figure 3. " + figures[2].caption);

@@ -69,22 +69,25 @@ std::string key_of(const std::string& name) {
   return {};
 }
 
+}  // namespace
+
 double basis_figure(const WhatIfFigures& f, Requirement::Basis basis) {
   return basis == Requirement::Basis::linear ? f.rss_max_abs : f.wc_max_abs;
 }
 
-}  // namespace
+std::string_view enough(const WhatIfRow& row, const Requirement& q) {
+  if (q.basis == Requirement::Basis::monte_carlo) return "";
+  auto within = [&](const WhatIfFigures& f) { return f.readable && basis_figure(f, q.basis) <= q.max_error; };
+  if (within(row.halved)) return "halved";
+  if (within(row.removed)) return "removed";
+  return "";
+}
 
 WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& options) {
   const Design& d = chain.design();
   const auto temps = window_temperatures(d);
   WhatIf out;
   if (temps.empty()) return out;
-  const int n = static_cast<int>(d.inputs.size());
-  const double enumeration = std::ldexp(1.0, n) * static_cast<double>(temps.size());
-  out.directed = n > max_enumerated_inputs || enumeration > options.max_evaluations;
-  const CornerMethod method = out.directed ? CornerMethod::directed : CornerMethod::enumerate;
-  out.as_designed = figures(d, temps, method);
 
   // The leaders by share and by own half-width, in that order, once each.
   std::vector<const Contributor*> by_width;
@@ -106,6 +109,15 @@ WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& op
   for (const auto& c : budget.window_contributors) by_share.push_back(&c);
   take(by_share.begin(), by_share.end());
   take(by_width.begin(), by_width.end());
+
+  // Every corner of the designed box once, and per source tried its halved
+  // box (as many corners) and its removed one (half as many).
+  const int n = static_cast<int>(d.inputs.size());
+  const double enumeration =
+      std::ldexp(1.0, n) * static_cast<double>(temps.size()) * (1.0 + 1.5 * static_cast<double>(tried.size()));
+  out.directed = n > max_enumerated_inputs || enumeration > options.max_evaluations;
+  const CornerMethod method = out.directed ? CornerMethod::directed : CornerMethod::enumerate;
+  out.as_designed = figures(d, temps, method);
 
   for (const Contributor* c : tried) {
     WhatIfRow row{c->name, c->label, key_of(c->name), {}, {}};

@@ -24,6 +24,7 @@
 #include "thermargin/html_report.hpp"
 #include "thermargin/scenario.hpp"
 #include "thermargin/svg_chart.hpp"
+#include "thermargin/what_if.hpp"
 
 namespace thermargin {
 
@@ -45,8 +46,9 @@ std::vector<Figure> budget_figures(const Design& design, const Budget& budget);
 // The whole HTML page. `scenario` supplies every resolved value with its
 // origin (what `thermargin check` prints); `source` names the scenario file
 // for the reader ("" for the built-in default design).
+// `what_if`, when given, adds the section "What would help" (what_if.hpp).
 std::string budget_report_html(const Design& design, const Scenario& scenario, const Budget& budget,
-                               const std::string& source = {});
+                               const std::string& source = {}, const WhatIf* what_if = nullptr);
 
 // Appends "Every resolved input", the section every report page ends with:
 // one table per scenario section with each key's value, unit and origin, as

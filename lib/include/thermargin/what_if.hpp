@@ -14,11 +14,13 @@
 //
 // Without the source the worst case visits half the corners, so the run
 // costs about 1.5 worst-case runs over the window per source tried. Where
-// the window's enumeration would exceed `max_evaluations`, the what-if uses
-// directed corners and says so.
+// enumerating every corner of every run would exceed `max_evaluations`
+// chain evaluations (or beyond 16 active inputs), the what-if uses directed
+// corners and says so.
 #pragma once
 
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "thermargin/budget.hpp"
@@ -45,8 +47,17 @@ struct WhatIf {
 
 struct WhatIfOptions {
   int sources = 4;                 // leaders tried by share and by half-width each (union)
-  double max_evaluations = 2e7;    // chain evaluations per worst-case run before directing corners
+  double max_evaluations = 2e7;    // chain evaluations of the whole what-if before directing corners
 };
+
+// The figure the verdict reads (the linear band for requirement.basis =
+// linear, else the worst case: the what-if does not re-run Monte Carlo).
+double basis_figure(const WhatIfFigures& f, Requirement::Basis basis);
+
+// Which change brings the verdict's figure within requirement.max_error:
+// "halved" (then removing does too), "removed", or "" for neither. Always ""
+// for a Monte Carlo verdict, which is on the yield.
+std::string_view enough(const WhatIfRow& row, const Requirement& requirement);
 
 // `budget` is run_budget(chain)'s result: its window contributor table
 // chooses the sources tried.

@@ -1,0 +1,118 @@
+// `thermargin budget` prints the node voltage and the what-if section: the
+// divider's voltage against Ohm's law by hand, the what-if rows against the
+// library run on the same design and against a second budget run with the
+// improvement made through the scenario key the row names.
+#include <cmath>
+#include <sstream>
+#include <string>
+
+#include <gtest/gtest.h>
+
+#include "cli_run.hpp"
+#include "engine_fixture.hpp"
+#include "thermargin/what_if.hpp"
+
+namespace thermargin {
+namespace {
+
+TEST(BudgetNodeVoltage, IsTheDividerVoltageInJsonCsvAndText) {
+  // A beta NTC at the bottom of a ratiometric divider without self-heating:
+  // V = V_exc·R/(R_f + R) (voltage divider, Ohm's law; R by the beta
+  // equation, IEC 60539-1).
+  const std::string args = "budget --sensor.dissipation=0 --no-mc";
+  const auto j = testing::cli_json(args);
+  const double r25 = 10e3, beta = 3950.0, rf = 10e3, v = 3.3;
+  for (const auto& p : j["points"]) {
+    const double T = p["t"].get<double>() + 273.15;
+    const double r = r25 * std::exp(beta * (1.0 / T - 1.0 / 298.15));
+    EXPECT_NEAR(p["v_node"].get<double>(), v * r / (rf + r), 1e-9) << p["t"];
+  }
+  // The CSV column v_node_V carries the same voltage (6 decimals).
+  std::istringstream csv(testing::cli_output(args + " --format csv"));
+  std::string header, row;
+  std::getline(csv, header);
+  ASSERT_EQ(header.rfind("t_degC,in_window,status,v_node_V,", 0), 0u) << header;
+  std::size_t i = 0;
+  while (std::getline(csv, row) && i < j["points"].size()) {
+    std::istringstream cells(row);
+    std::string t, w, status, volts;
+    std::getline(cells, t, ',');
+    std::getline(cells, w, ',');
+    std::getline(cells, status, ',');
+    std::getline(cells, volts, ',');
+    EXPECT_NEAR(std::stod(volts), j["points"][i]["v_node"].get<double>(), 5e-7) << row;
+    ++i;
+  }
+  EXPECT_EQ(i, j["points"].size());
+  EXPECT_NE(testing::cli_output(args).find("node (V)"), std::string::npos);
+}
+
+TEST(BudgetWhatIf, JsonRowsAreTheLibrarysAndEachNamesAKeyThatDoesWhatItSays) {
+  const auto j = testing::cli_json("budget --no-mc");
+  const auto& w = j["what_if"];
+  ASSERT_TRUE(w["rows"].is_array());
+  ASSERT_FALSE(w["rows"].empty());
+  const Design d = testing::design_with({});
+  const Chain chain(d);
+  BudgetOptions o;
+  o.monte_carlo = false;
+  const WhatIf lib = what_if(chain, run_budget(chain, o));
+  ASSERT_EQ(w["rows"].size(), lib.rows.size());
+  EXPECT_NEAR(w["as_designed"]["wc_max_abs"].get<double>(), j["window"]["wc_max_abs"].get<double>(), 1e-12);
+  for (std::size_t i = 0; i < lib.rows.size(); ++i) {
+    const auto& r = w["rows"][i];
+    EXPECT_EQ(r["source"].get<std::string>(), lib.rows[i].name);
+    EXPECT_EQ(r["key"].get<std::string>(), lib.rows[i].key);
+    EXPECT_NEAR(r["removed"]["wc_max_abs"].get<double>(), lib.rows[i].removed.wc_max_abs, 1e-12);
+    EXPECT_NEAR(r["halved"]["rss_max_abs"].get<double>(), lib.rows[i].halved.rss_max_abs, 1e-12);
+  }
+  // The leading row's key, set to zero through the command line, gives the
+  // row's "removed" worst case as the budget's own (tolerance keys only).
+  const auto& first = w["rows"][0];
+  const std::string key = first["key"].get<std::string>();
+  ASSERT_NE(key.find("_tol"), std::string::npos) << key;
+  const auto again = testing::cli_json("budget --no-mc --" + key + "=0");
+  EXPECT_NEAR(again["window"]["wc_max_abs"].get<double>(), first["removed"]["wc_max_abs"].get<double>(), 1e-9);
+}
+
+TEST(BudgetWhatIf, TextSaysWhichChangeMeetsTheLimit) {
+  // With a limit of 1.2 K the default design (1.466 K worst case) is
+  // brought within it by removing the beta tolerance (1.07 K) but not by
+  // halving it (1.27 K): the row must say so, and the limit is printed.
+  const std::string out = testing::cli_output("budget --no-mc --requirement.max_error=1.2");
+  const auto section = out.find("What would help over the window");
+  ASSERT_NE(section, std::string::npos) << out;
+  EXPECT_NE(out.find("limit +/-1.200 K", section), std::string::npos);
+  const auto row = out.find("sensor beta tolerance (sensor.beta_tol)", section);
+  ASSERT_NE(row, std::string::npos);
+  const std::string line = out.substr(row, out.find('\n', row) - row);
+  EXPECT_NE(line.find("only if removed"), std::string::npos) << line;
+  const auto j = testing::cli_json("budget --no-mc --requirement.max_error=1.2");
+  for (const auto& r : j["what_if"]["rows"]) {
+    if (r["source"] != "beta") continue;
+    EXPECT_GT(r["halved"]["wc_max_abs"].get<double>(), 1.2);
+    EXPECT_LE(r["removed"]["wc_max_abs"].get<double>(), 1.2);
+    EXPECT_EQ(r["within_limit"].get<std::string>(), "removed");
+  }
+}
+
+}  // namespace
+}  // namespace thermargin
+
+namespace thermargin {
+namespace {
+
+TEST(BudgetWhatIf, TheReviewPageHasTheSectionWithEveryRowsSetting) {
+  testing::ScratchDir dir;
+  const auto page = dir.path / "review.html";
+  ASSERT_EQ(testing::run_cli("budget --no-mc --output /dev/null --report " + testing::shell_quote(page.string())).status, 0);
+  const std::string html = testing::slurp(page);
+  const auto section = html.find("What would help");
+  ASSERT_NE(section, std::string::npos);
+  const auto j = testing::cli_json("budget --no-mc");
+  for (const auto& r : j["what_if"]["rows"])
+    EXPECT_NE(html.find(r["key"].get<std::string>(), section), std::string::npos) << r["key"];
+}
+
+}  // namespace
+}  // namespace thermargin
