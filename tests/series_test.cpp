@@ -42,7 +42,8 @@ TEST(Series, E24IsThePublishedListWithItsHistoricalValues) {
 }
 
 TEST(Series, E12IsEverySecondE24Value) {
-  // IEC 60063 (from memory): 1.0 1.2 1.5 1.8 2.2 2.7 3.3 3.9 4.7 5.6 6.8 8.2.
+  // IEC 60063 as tabulated in the Wikipedia article "E series of preferred
+  // numbers" (read): 1.0 1.2 1.5 1.8 2.2 2.7 3.3 3.9 4.7 5.6 6.8 8.2.
   EXPECT_EQ(series_figures(Series::e12), (std::vector<int>{10, 12, 15, 18, 22, 27, 33, 39, 47, 56, 68, 82}));
 }
 
@@ -121,9 +122,10 @@ TEST(Series, CoarsestSeriesNamesWhereAValueCanBeBought) {
 }
 
 TEST(Series, EachSeriesHasTheToleranceIec60063PairsWithIt) {
-  // IEC 60063 (from memory): E12 ±10 %, E24 ±5 %, E48 ±2 %, E96 ±1 %, E192
-  // ±0.5 % (and tighter); common practice: the series named on a resistor
-  // reel says its tolerance.
+  // The tolerances the series are paired with: E12 ±10 %, E24 ±5 % (IEC
+  // 60063 as tabulated in the Wikipedia article "E series of preferred
+  // numbers", read), E48 ±2 %, E96 ±1 %, E192 ±0.5 % and tighter (the same
+  // pairing in resistor-value tables of the trade: common practice).
   EXPECT_EQ(series_tolerance(Series::e12), 0.10);
   EXPECT_EQ(series_tolerance(Series::e24), 0.05);
   EXPECT_EQ(series_tolerance(Series::e48), 0.02);

@@ -31,9 +31,9 @@ std::string_view series_names();
 
 int values_per_decade(Series s);
 
-// The tolerance IEC 60063 pairs with each series, as a ± fraction: E12
-// 10 %, E24 5 %, E48 2 %, E96 1 %, E192 0.5 % (the loosest it lists for
-// E192; from memory). `pick --grade series` uses it.
+// The tolerance each series is paired with, as a ± fraction: E12 10 %,
+// E24 5 %, E48 2 %, E96 1 %, E192 0.5 % (the loosest of E192's 0.5, 0.25,
+// 0.1 %; IEC 60063's pairing, common practice). `pick --grade series` uses it.
 double series_tolerance(Series s);
 
 // The significant figures of one decade, ascending: two digits (10..82,
