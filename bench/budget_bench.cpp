@@ -6,23 +6,13 @@
 
 #include "thermargin/budget.hpp"
 #include "thermargin/scenario.hpp"
+#include "bench_designs.hpp"
 
 namespace {
 
 using namespace thermargin;
 
-Design twelve_inputs() {
-  // The default design (9 active inputs) plus leakage, a parallel resistor's
-  // tolerance and an offset calibration's reference: 12.
-  Scenario s;
-  const Where w{Origin::command_line, "", 0, ""};
-  s.set("adc.leakage", "20n", w);
-  s.set("divider.r_parallel", "100k", w);
-  s.set("divider.r_parallel_tol", "1%", w);
-  s.set("firmware.calibration", "offset", w);
-  s.set("firmware.calibration_at", "25", w);
-  return build_design(s);
-}
+Design twelve_inputs() { return build_design(bench::twelve_inputs_scenario()); }
 
 void BM_WorstCaseTwelveInputs(benchmark::State& state) {
   const Design d = twelve_inputs();

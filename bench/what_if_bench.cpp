@@ -3,6 +3,7 @@
 // budget's what-if section, next to BM_BudgetDefaultDesignWithoutMonteCarlo.
 #include <benchmark/benchmark.h>
 
+#include "bench_designs.hpp"
 #include "thermargin/scenario.hpp"
 #include "thermargin/what_if.hpp"
 
@@ -29,16 +30,7 @@ void run(benchmark::State& state, const Scenario& s) {
 void BM_WhatIfDefaultDesign(benchmark::State& state) { run(state, Scenario()); }
 BENCHMARK(BM_WhatIfDefaultDesign)->Unit(benchmark::kMillisecond);
 
-void BM_WhatIfTwelveInputs(benchmark::State& state) {
-  Scenario s;
-  const Where w{Origin::command_line, "", 0, ""};
-  s.set("adc.leakage", "20n", w);
-  s.set("divider.r_parallel", "100k", w);
-  s.set("divider.r_parallel_tol", "1%", w);
-  s.set("firmware.calibration", "offset", w);
-  s.set("firmware.calibration_at", "25", w);
-  run(state, s);
-}
+void BM_WhatIfTwelveInputs(benchmark::State& state) { run(state, bench::twelve_inputs_scenario()); }
 BENCHMARK(BM_WhatIfTwelveInputs)->Unit(benchmark::kMillisecond);
 
 }  // namespace
