@@ -214,8 +214,7 @@ std::string what_if_text(const Design& d, const WhatIf& w) {
       << " K; limit +/-" << fixed(d.requirement.max_error, 3) << " K"
       << (w.directed ? "; directed corners" : "") << "):\n";
   // Which single change meets the limit, said where the design misses it.
-  const bool judged = d.requirement.basis != Requirement::Basis::monte_carlo &&
-                      !(w.as_designed.readable && basis_figure(w.as_designed, d.requirement.basis) <= d.requirement.max_error);
+  const bool judged = judged_against_limit(w, d.requirement);
   std::vector<std::string> head{"source (setting)", "halved: wc (K)", "lin (K)", "removed: wc (K)", "lin (K)"};
   if (judged) head.push_back("within the limit");
   TextTable t(head);
@@ -229,8 +228,7 @@ std::string what_if_text(const Design& d, const WhatIf& w) {
                                  cell(r.halved, r.halved.rss_max_abs), cell(r.removed, r.removed.wc_max_abs),
                                  cell(r.removed, r.removed.rss_max_abs)};
     if (judged) {
-      const std::string_view e = enough(r, d.requirement);
-      row.push_back(e == "halved" ? "if halved" : e == "removed" ? "only if removed" : "no");
+      row.push_back(std::string(enough_phrase(r, d.requirement)));
     }
     t.add(row);
   }

@@ -496,14 +496,20 @@ TEST(Picker, EveryConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheB
   }
 }
 
-TEST(Picker, LinearAndSensitivityObjectivesRankByTheirEngines) {
-  const Scenario s;
+// The E12 values from 3 kohm to 40 kohm, no guidance, the `top` best kept.
+PickOptions e12_3k_to_40k(int top) {
   PickOptions o;
   o.series = Series::e12;
   o.range_low = 3e3;
   o.range_high = 40e3;
   o.guidance = false;
-  o.top = 1;
+  o.top = top;
+  return o;
+}
+
+TEST(Picker, LinearAndSensitivityObjectivesRankByTheirEngines) {
+  const Scenario s;
+  PickOptions o = e12_3k_to_40k(1);
   std::vector<Truth> all;
   for (double v : series_values(Series::e12, o.range_low, o.range_high)) all.push_back(budget_of(s, v));
   const auto by_rss = std::min_element(all.begin(), all.end(), [](const Truth& a, const Truth& b) { return a.rss < b.rss; });
@@ -723,15 +729,10 @@ TEST(Picker, GradeOverridesTheScenarioTolerance) {
 }
 
 TEST(Picker, SeriesGradeIsTheToleranceOfTheSeriesTheCandidatesComeFrom) {
-  // E12 with its ±10 % (IEC 60063, from memory; series_test.cpp) ranks as
+  // E12 with its ±10 % (IEC 60063's pairing; series_test.cpp) ranks as
   // an explicit 10 % grade does, and differently from the scenario's 1 %.
   const Scenario s;
-  PickOptions o;
-  o.series = Series::e12;
-  o.range_low = 3e3;
-  o.range_high = 40e3;
-  o.guidance = false;
-  o.top = 3;
+  PickOptions o = e12_3k_to_40k(3);
   o.series_grade = true;
   const PickResult by_series = pick(s, o);
   EXPECT_EQ(by_series.tolerance, 0.10);

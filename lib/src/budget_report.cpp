@@ -442,8 +442,7 @@ void add_what_if(HtmlDocument& doc, const Design& d, const WhatIf& w) {
                 ", limit \u00b1" + kelvin(d.requirement.max_error) +
                 (w.directed ? "; corners directed by the sensitivities." : "; every corner enumerated."));
   // Which single change meets the limit, said where the design misses it.
-  const bool judged = d.requirement.basis != Requirement::Basis::monte_carlo &&
-                      !(w.as_designed.readable && basis_figure(w.as_designed, d.requirement.basis) <= d.requirement.max_error);
+  const bool judged = judged_against_limit(w, d.requirement);
   Table t{.caption = "Most helpful first (by the verdict's basis)",
           .header = {"Source", "Setting", "Halved: worst case (K)", "Halved: linear (K)", "Removed: worst case (K)",
                      "Removed: linear (K)"},
@@ -458,8 +457,7 @@ void add_what_if(HtmlDocument& doc, const Design& d, const WhatIf& w) {
     std::vector<std::string> row{r.label, r.key, cell(r.halved, r.halved.wc_max_abs), cell(r.halved, r.halved.rss_max_abs),
                                  cell(r.removed, r.removed.wc_max_abs), cell(r.removed, r.removed.rss_max_abs)};
     if (judged) {
-      const std::string_view e = enough(r, d.requirement);
-      row.push_back(e == "halved" ? "if halved" : e == "removed" ? "only if removed" : "no");
+      row.push_back(std::string(enough_phrase(r, d.requirement)));
     }
     t.rows.push_back(std::move(row));
   }

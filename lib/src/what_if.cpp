@@ -83,6 +83,16 @@ std::string_view enough(const WhatIfRow& row, const Requirement& q) {
   return "";
 }
 
+bool judged_against_limit(const WhatIf& w, const Requirement& q) {
+  return q.basis != Requirement::Basis::monte_carlo &&
+         !(w.as_designed.readable && basis_figure(w.as_designed, q.basis) <= q.max_error);
+}
+
+std::string_view enough_phrase(const WhatIfRow& row, const Requirement& q) {
+  const std::string_view e = enough(row, q);
+  return e == "halved" ? "if halved" : e == "removed" ? "only if removed" : "no";
+}
+
 WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& options) {
   const Design& d = chain.design();
   const auto temps = window_temperatures(d);

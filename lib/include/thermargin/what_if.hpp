@@ -59,6 +59,14 @@ double basis_figure(const WhatIfFigures& f, Requirement::Basis basis);
 // for a Monte Carlo verdict, which is on the yield.
 std::string_view enough(const WhatIfRow& row, const Requirement& requirement);
 
+// Whether the rows are judged against the limit: the design as designed
+// misses requirement.max_error by the verdict's basis (never for a Monte
+// Carlo verdict).
+bool judged_against_limit(const WhatIf& w, const Requirement& requirement);
+
+// enough() as a reader's phrase: "if halved", "only if removed" or "no".
+std::string_view enough_phrase(const WhatIfRow& row, const Requirement& requirement);
+
 // `budget` is run_budget(chain)'s result: its window contributor table
 // chooses the sources tried.
 WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& options = {});
