@@ -233,6 +233,10 @@ std::string what_if_text(const Design& d, const WhatIf& w) {
     t.add(row);
   }
   out << t.render();
+  if (judged && std::none_of(w.rows.begin(), w.rows.end(),
+                             [&](const WhatIfRow& r) { return !enough(r, d.requirement).empty(); }))
+    out << "No single part meets the limit: improve several together (try them with overrides), or change the "
+           "design (thermargin pick, thermargin grades).\n";
   out << "halved: the source's tolerance (or noise, output resolution) halved, roughly the next better grade; "
          "removed: an ideal part.\nOne source at a time: two changes together are not the sum of two rows; try them "
          "with --<setting>=<value>.\n";

@@ -102,6 +102,20 @@ TEST(BudgetWhatIf, TextSaysWhichChangeMeetsTheLimit) {
 namespace thermargin {
 namespace {
 
+TEST(BudgetWhatIf, SaysWhenNoSinglePartMeetsTheLimitAndOnlyThen) {
+  // The battery guard misses ±2 K by 1.7 K: its best single change (an ideal
+  // excitation source) still leaves 2.49 K, so the text must say that no
+  // single part will do; with a limit of 3 K halving the excitation's
+  // tolerance is enough and the line must not appear.
+  const std::string guard = testing::shell_quote(testing::scenario_path("battery_charge_guard.ini"));
+  const auto j = testing::cli_json("budget " + guard + " --no-mc");
+  for (const auto& r : j["what_if"]["rows"]) EXPECT_TRUE(r["within_limit"].is_null()) << r["source"];
+  EXPECT_NE(testing::cli_output("budget " + guard + " --no-mc").find("No single part meets the limit"), std::string::npos);
+  const std::string relaxed = testing::cli_output("budget " + guard + " --no-mc --requirement.max_error=3.2");
+  EXPECT_NE(relaxed.find("if halved"), std::string::npos) << relaxed;
+  EXPECT_EQ(relaxed.find("No single part meets the limit"), std::string::npos);
+}
+
 TEST(BudgetWhatIf, TheReviewPageHasTheSectionWithEveryRowsSetting) {
   testing::ScratchDir dir;
   const auto page = dir.path / "review.html";
