@@ -395,7 +395,9 @@ int run_budget(int argc, char** argv) {
   const Chain chain(design);
   const Budget budget = run_budget(chain, options);
   if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
-  const WhatIf help = what_if(chain, budget);
+  // What would help: in the text, the JSON and the page (CSV is per temperature).
+  const bool want_help = inv.format != Format::csv || !inv.report.empty();
+  const WhatIf help = want_help ? what_if(chain, budget) : WhatIf{};
 
   std::string text;
   if (inv.format == Format::json) {

@@ -10,10 +10,11 @@ namespace {
 
 enum class Change { halve, remove };
 
-std::vector<double> window_temperatures(const Design& d) {
+// The window's temperatures, as the budget marked them.
+std::vector<double> window_temperatures(const Budget& b) {
   std::vector<double> out;
-  for (double t : d.conditions.temperatures())
-    if (t >= d.requirement.window_min - 1e-9 && t <= d.requirement.window_max + 1e-9) out.push_back(t);
+  for (const auto& p : b.points)
+    if (p.in_window) out.push_back(p.t);
   return out;
 }
 
@@ -95,30 +96,29 @@ std::string_view enough_phrase(const WhatIfRow& row, const Requirement& q) {
 
 WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& options) {
   const Design& d = chain.design();
-  const auto temps = window_temperatures(d);
+  const auto temps = window_temperatures(budget);
   WhatIf out;
   if (temps.empty()) return out;
 
-  // The leaders by share and by own half-width, in that order, once each.
-  std::vector<const Contributor*> by_width;
-  for (const auto& c : budget.window_contributors) by_width.push_back(&c);
-  std::stable_sort(by_width.begin(), by_width.end(),
-                   [](const Contributor* a, const Contributor* b) { return a->half_width > b->half_width; });
+  // The leaders by share (the window table's order) and by own half-width,
+  // in that order, once each.
+  std::vector<const Contributor*> ranked;
+  for (const auto& c : budget.window_contributors) ranked.push_back(&c);
   std::vector<const Contributor*> tried;
   std::set<std::string> seen;
-  auto take = [&](auto first, auto last) {
+  auto take = [&]() {
     int taken = 0;
-    for (auto it = first; it != last && taken < options.sources; ++it) {
-      const Contributor& c = **it;
-      if (c.name == info(ReadingSource::quantization).name || (c.share <= 0.0 && c.half_width <= 0.0)) continue;
+    for (const Contributor* c : ranked) {
+      if (taken == options.sources) break;
+      if (c->name == info(ReadingSource::quantization).name || (c->share <= 0.0 && c->half_width <= 0.0)) continue;
       ++taken;
-      if (seen.insert(c.name).second) tried.push_back(&c);
+      if (seen.insert(c->name).second) tried.push_back(c);
     }
   };
-  std::vector<const Contributor*> by_share;
-  for (const auto& c : budget.window_contributors) by_share.push_back(&c);
-  take(by_share.begin(), by_share.end());
-  take(by_width.begin(), by_width.end());
+  take();
+  std::stable_sort(ranked.begin(), ranked.end(),
+                   [](const Contributor* a, const Contributor* b) { return a->half_width > b->half_width; });
+  take();
 
   // Every corner of the designed box once, and per source tried its halved
   // box (as many corners) and its removed one (half as many).
