@@ -10,8 +10,8 @@
 #include <unistd.h>
 
 #include "thermargin/budget_report.hpp"  // check_report_path, check_plots_directory
-#include "thermargin/caution.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/caution.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin::cli {
 

@@ -13,7 +13,7 @@
 #include "commands.hpp"
 #include "thermargin/budget.hpp"
 #include "thermargin/budget_report.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/what_if.hpp"
 
 namespace thermargin::cli {

@@ -6,7 +6,7 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/design.hpp"
 
 namespace thermargin::cli {

@@ -10,7 +10,7 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/fit.hpp"
 #include "thermargin/rt_data.hpp"
 

@@ -10,7 +10,7 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/budget.hpp"  // to_string(Requirement::Basis)
 #include "thermargin/grades.hpp"
 #include "thermargin/grades_report.hpp"

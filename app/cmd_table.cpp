@@ -7,7 +7,7 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/lookup_table.hpp"
 
 namespace thermargin::cli {

@@ -7,8 +7,8 @@
 #include <string>
 
 #include "commands.hpp"
-#include "thermargin/caution.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/caution.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace {
 

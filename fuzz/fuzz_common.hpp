@@ -14,7 +14,7 @@
 #include <string>
 #include <string_view>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin::fuzz {
 

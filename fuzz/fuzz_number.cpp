@@ -9,7 +9,7 @@
 #include <string>
 
 #include "fuzz_common.hpp"
-#include "thermargin/number.hpp"
+#include "thermargin/core/number.hpp"
 
 namespace {
 

@@ -23,7 +23,7 @@
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/chain.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/scenario.hpp"
 
 namespace thermargin {

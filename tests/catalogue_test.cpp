@@ -8,7 +8,7 @@
 #include <string>
 
 #include "thermargin/catalogue.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 namespace {

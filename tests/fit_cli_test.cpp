@@ -20,7 +20,7 @@
 
 #include "cli_run.hpp"
 #include "fit_data.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/fit.hpp"
 #include "thermargin/ntc.hpp"
 #include "thermargin/rt_data.hpp"

@@ -21,9 +21,9 @@
 
 #include "cli_run.hpp"
 #include "fit_data.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/ntc.hpp"
-#include "thermargin/number.hpp"
+#include "thermargin/core/number.hpp"
 #include "thermargin/rt_data.hpp"
 
 namespace thermargin {

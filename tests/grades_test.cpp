@@ -26,7 +26,7 @@
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/budget.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 
 namespace thermargin {
 namespace {

@@ -18,7 +18,7 @@
 #include <vector>
 
 #include "cli_run.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/svg_chart.hpp"
 
 namespace thermargin {

@@ -22,7 +22,7 @@
 
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/firmware.hpp"
 #include "thermargin/scenario.hpp"

@@ -3,14 +3,14 @@
 // 9th edition, 2019, table 7: p n µ m k M G; from memory), the RKM marking
 // code that writes the prefix in place of the decimal point (IEC 60062,
 // common practice) and the unit words each quantity accepts.
-#include "thermargin/number.hpp"
+#include "thermargin/core/number.hpp"
 
 #include <cmath>
 #include <string>
 
 #include <gtest/gtest.h>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 namespace {

@@ -27,7 +27,7 @@
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/budget.hpp"
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/linear_budget.hpp"
 #include "thermargin/worst_case.hpp"
 #include "thermargin/ntc.hpp"

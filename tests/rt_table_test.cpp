@@ -16,7 +16,7 @@
 #include <gtest/gtest.h>
 
 #include "cli_run.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/ntc.hpp"
 #include "thermargin/rt_data.hpp"
 

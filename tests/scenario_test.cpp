@@ -21,7 +21,7 @@
 #include "cli_run.hpp"
 #include "thermargin/ntc.hpp"
 #include "thermargin/rt_data.hpp"
-#include "thermargin/text_file.hpp"
+#include "thermargin/core/text_file.hpp"
 
 namespace thermargin {
 namespace {

@@ -11,8 +11,8 @@
 #include <filesystem>
 #include <optional>
 
-#include "thermargin/caution.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/caution.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/monte_carlo.hpp"
 
 namespace thermargin {

@@ -10,7 +10,7 @@
 #include <set>
 
 #include "thermargin/scenario.hpp"
-#include "thermargin/text_file.hpp"
+#include "thermargin/core/text_file.hpp"
 
 namespace thermargin {
 

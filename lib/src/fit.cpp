@@ -17,7 +17,7 @@ using std::isnan;
 }
 #include <boost/math/interpolators/pchip.hpp>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 namespace {

@@ -4,7 +4,7 @@
 #include <cmath>
 #include <optional>
 
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 
 namespace thermargin {
 

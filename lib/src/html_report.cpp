@@ -14,7 +14,7 @@
 #include <cstring>
 #include <filesystem>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/svg_chart.hpp"
 
 namespace thermargin {

@@ -7,7 +7,7 @@
 #include <sstream>
 #include <utility>
 
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 
 namespace thermargin {
 

@@ -5,7 +5,7 @@
 #include <numeric>
 #include <optional>
 
-#include "thermargin/caution.hpp"
+#include "thermargin/core/caution.hpp"
 
 namespace thermargin {
 

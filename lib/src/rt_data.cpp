@@ -3,10 +3,10 @@
 #include <fstream>
 #include <sstream>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/ntc.hpp"
-#include "thermargin/number.hpp"
-#include "thermargin/text_file.hpp"
+#include "thermargin/core/number.hpp"
+#include "thermargin/core/text_file.hpp"
 
 namespace thermargin {
 namespace {

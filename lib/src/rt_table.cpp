@@ -10,7 +10,7 @@ using std::isnan;
 #include <boost/math/interpolators/pchip.hpp>
 #include <boost/math/tools/roots.hpp>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 

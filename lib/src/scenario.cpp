@@ -11,7 +11,7 @@
 
 #include "thermargin/firmware.hpp"
 #include "thermargin/sensor.hpp"
-#include "thermargin/text_file.hpp"
+#include "thermargin/core/text_file.hpp"
 
 namespace po = boost::program_options;
 

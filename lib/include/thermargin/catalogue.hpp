@@ -26,7 +26,7 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 

@@ -21,7 +21,7 @@
 #include <vector>
 
 #include "thermargin/design.hpp"
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 #include "thermargin/firmware.hpp"
 
 namespace thermargin {

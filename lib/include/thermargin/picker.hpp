@@ -40,8 +40,8 @@
 #include <vector>
 
 #include "thermargin/chain.hpp"
-#include "thermargin/error.hpp"
-#include "thermargin/number.hpp"
+#include "thermargin/core/error.hpp"
+#include "thermargin/core/number.hpp"
 #include "thermargin/scenario.hpp"
 #include "thermargin/series.hpp"
 

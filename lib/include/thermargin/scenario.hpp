@@ -16,8 +16,8 @@
 #include <vector>
 
 #include "thermargin/design.hpp"
-#include "thermargin/error.hpp"
-#include "thermargin/number.hpp"
+#include "thermargin/core/error.hpp"
+#include "thermargin/core/number.hpp"
 
 namespace thermargin {
 

@@ -14,7 +14,7 @@
 #include <string_view>
 #include <vector>
 
-#include "thermargin/number.hpp"
+#include "thermargin/core/number.hpp"
 
 namespace thermargin {
 

@@ -1,10 +1,10 @@
-#include "thermargin/text_file.hpp"
+#include "thermargin/core/text_file.hpp"
 
 #include <filesystem>
 #include <fstream>
 #include <sstream>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 

@@ -1,4 +1,4 @@
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 

@@ -1,4 +1,4 @@
-#include "thermargin/number.hpp"
+#include "thermargin/core/number.hpp"
 
 #include <array>
 #include <cctype>
@@ -7,7 +7,7 @@
 #include <optional>
 #include <string>
 
-#include "thermargin/error.hpp"
+#include "thermargin/core/error.hpp"
 
 namespace thermargin {
 namespace {
