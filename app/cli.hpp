@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin::cli {
 

@@ -7,7 +7,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 
 namespace thermargin::cli {
 

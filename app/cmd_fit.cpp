@@ -12,7 +12,7 @@
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/fit.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 namespace thermargin::cli {
 

@@ -1,7 +1,7 @@
 // Designs shared by the benchmarks.
 #pragma once
 
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin::bench {
 

@@ -5,7 +5,7 @@
 #include <benchmark/benchmark.h>
 
 #include "thermargin/budget.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "bench_designs.hpp"
 
 namespace {

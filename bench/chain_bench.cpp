@@ -6,7 +6,7 @@
 
 #include "thermargin/chain.hpp"
 #include "thermargin/nominal.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin {
 namespace {

@@ -8,7 +8,7 @@
 #include <string>
 
 #include "thermargin/lookup_table.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin {
 namespace {

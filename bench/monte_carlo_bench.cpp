@@ -4,7 +4,7 @@
 #include <benchmark/benchmark.h>
 
 #include "thermargin/monte_carlo.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace {
 

@@ -4,7 +4,7 @@
 #include <benchmark/benchmark.h>
 
 #include "bench_designs.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/what_if.hpp"
 
 namespace {

@@ -5,8 +5,8 @@
 #include <string>
 
 #include "fuzz_common.hpp"
-#include "thermargin/catalogue.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/catalogue.hpp"
+#include "thermargin/input/scenario.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   using namespace thermargin;

@@ -7,7 +7,7 @@
 
 #include "fuzz_common.hpp"
 #include "thermargin/fit.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   using namespace thermargin;

@@ -12,7 +12,7 @@
 #include "fuzz_common.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/nominal.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace {
 

@@ -24,7 +24,7 @@
 #include "engine_fixture.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/core/error.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin {
 namespace {

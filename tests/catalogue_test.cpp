@@ -7,7 +7,7 @@
 #include <fstream>
 #include <string>
 
-#include "thermargin/catalogue.hpp"
+#include "thermargin/input/catalogue.hpp"
 #include "thermargin/core/error.hpp"
 
 namespace thermargin {

@@ -20,7 +20,7 @@
 
 #include "engine_fixture.hpp"
 #include "thermargin/adc.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/sensor.hpp"
 
 namespace thermargin {

@@ -13,7 +13,7 @@
 #include <nlohmann/json.hpp>
 
 #include "cli_run.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin {
 namespace {

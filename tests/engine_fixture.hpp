@@ -11,7 +11,7 @@
 #include <vector>
 
 #include "source_tree.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin::testing {
 

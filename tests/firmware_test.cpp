@@ -15,7 +15,7 @@
 #include "engine_fixture.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/divider.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/sensor.hpp"
 
 namespace thermargin {

@@ -23,7 +23,7 @@
 #include "thermargin/core/caution.hpp"
 #include "thermargin/fit.hpp"
 #include "thermargin/ntc.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {
 namespace {

@@ -5,7 +5,7 @@
 #include <string>
 
 #include "source_tree.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 namespace thermargin::testing {
 

@@ -24,7 +24,7 @@
 #include "thermargin/core/error.hpp"
 #include "thermargin/ntc.hpp"
 #include "thermargin/core/number.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {
 namespace {

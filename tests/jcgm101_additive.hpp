@@ -6,7 +6,7 @@
 #include <cstddef>
 #include <vector>
 
-#include "thermargin/sources.hpp"
+#include "thermargin/input/sources.hpp"
 
 namespace thermargin::testing {
 

@@ -25,7 +25,7 @@
 
 #include "thermargin/budget.hpp"
 #include "thermargin/chain.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin {
 namespace {

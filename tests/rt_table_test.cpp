@@ -18,7 +18,7 @@
 #include "cli_run.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/ntc.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {
 namespace {

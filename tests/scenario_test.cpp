@@ -4,7 +4,7 @@
 // and line; checks between two keys name the one that was set; every
 // shipped scenario builds and explains itself; the demo R–T table follows
 // the Steinhart–Hart curve its comment states.
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -20,7 +20,7 @@
 
 #include "cli_run.hpp"
 #include "thermargin/ntc.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 #include "thermargin/core/text_file.hpp"
 
 namespace thermargin {

@@ -19,7 +19,7 @@
 #include "engine_fixture.hpp"
 #include "thermargin/chain.hpp"
 #include "thermargin/nominal.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/sensor.hpp"
 
 namespace thermargin {

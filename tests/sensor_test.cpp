@@ -13,7 +13,7 @@
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 namespace thermargin {
 namespace {

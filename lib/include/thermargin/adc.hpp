@@ -11,7 +11,7 @@
 
 #include <cmath>
 
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 
 namespace thermargin {
 

@@ -15,7 +15,7 @@
 #include "thermargin/linear_budget.hpp"
 #include "thermargin/monte_carlo.hpp"
 #include "thermargin/nominal.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/worst_case.hpp"
 
 namespace thermargin {

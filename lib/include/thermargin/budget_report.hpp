@@ -22,7 +22,7 @@
 
 #include "thermargin/budget.hpp"
 #include "thermargin/html_report.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/svg_chart.hpp"
 #include "thermargin/what_if.hpp"
 

@@ -10,7 +10,7 @@
 // thermometry practice (common practice).
 #pragma once
 
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 
 namespace thermargin {
 

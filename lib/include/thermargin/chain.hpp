@@ -18,7 +18,7 @@
 
 #include "thermargin/adc.hpp"
 #include "thermargin/calibration.hpp"
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 #include "thermargin/firmware.hpp"
 
 namespace thermargin {

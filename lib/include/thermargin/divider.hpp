@@ -10,7 +10,7 @@
 
 #include <optional>
 
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 
 namespace thermargin {
 

@@ -16,7 +16,7 @@
 #include <optional>
 #include <vector>
 
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 
 namespace thermargin {
 

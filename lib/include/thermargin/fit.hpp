@@ -26,7 +26,7 @@
 #include <vector>
 
 #include "thermargin/ntc.hpp"
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {
 

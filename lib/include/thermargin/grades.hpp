@@ -47,10 +47,10 @@
 #include <string_view>
 #include <vector>
 
-#include "thermargin/catalogue.hpp"
+#include "thermargin/input/catalogue.hpp"
 #include "thermargin/monte_carlo.hpp"
 #include "thermargin/picker.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/worst_case.hpp"
 
 namespace thermargin {

@@ -17,7 +17,7 @@
 #include <vector>
 
 #include "thermargin/budget_report.hpp"
-#include "thermargin/catalogue.hpp"
+#include "thermargin/input/catalogue.hpp"
 #include "thermargin/grades.hpp"
 
 namespace thermargin {

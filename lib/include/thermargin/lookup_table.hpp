@@ -20,7 +20,7 @@
 #include <string_view>
 #include <vector>
 
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/firmware.hpp"
 

@@ -42,7 +42,7 @@
 #include "thermargin/chain.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/core/number.hpp"
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/series.hpp"
 
 namespace thermargin {

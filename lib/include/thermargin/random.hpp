@@ -15,7 +15,7 @@
 #include <cmath>
 #include <cstdint>
 
-#include "thermargin/sources.hpp"
+#include "thermargin/input/sources.hpp"
 
 namespace thermargin {
 

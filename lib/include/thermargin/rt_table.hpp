@@ -13,7 +13,7 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {
 

@@ -9,7 +9,7 @@
 
 #include <optional>
 
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 
 namespace thermargin {
 

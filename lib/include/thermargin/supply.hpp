@@ -7,7 +7,7 @@
 // each other; the firmware assumes the nominal ratio V_ref/V_exc.
 #pragma once
 
-#include "thermargin/design.hpp"
+#include "thermargin/input/design.hpp"
 
 namespace thermargin {
 

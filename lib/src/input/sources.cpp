@@ -1,4 +1,4 @@
-#include "thermargin/sources.hpp"
+#include "thermargin/input/sources.hpp"
 
 #include <cmath>
 

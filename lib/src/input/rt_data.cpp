@@ -1,4 +1,4 @@
-#include "thermargin/rt_data.hpp"
+#include "thermargin/input/rt_data.hpp"
 
 #include <fstream>
 #include <sstream>

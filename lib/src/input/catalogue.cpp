@@ -1,4 +1,4 @@
-#include "thermargin/catalogue.hpp"
+#include "thermargin/input/catalogue.hpp"
 
 #include <algorithm>
 #include <cctype>
@@ -9,7 +9,7 @@
 #include <map>
 #include <set>
 
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 #include "thermargin/core/text_file.hpp"
 
 namespace thermargin {

@@ -1,4 +1,4 @@
-#include "thermargin/scenario.hpp"
+#include "thermargin/input/scenario.hpp"
 
 #include <algorithm>
 #include <cmath>

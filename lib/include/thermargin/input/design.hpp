@@ -15,7 +15,7 @@
 #include "thermargin/ntc.hpp"
 #include "thermargin/rt_table.hpp"
 #include "thermargin/rtd.hpp"
-#include "thermargin/sources.hpp"
+#include "thermargin/input/sources.hpp"
 
 namespace thermargin {
 
