@@ -4,7 +4,7 @@
 // timed test.
 #include <benchmark/benchmark.h>
 
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 #include "thermargin/nominal.hpp"
 #include "thermargin/input/scenario.hpp"
 

@@ -7,7 +7,7 @@
 
 #include "fuzz_common.hpp"
 #include "thermargin/input/rt_data.hpp"
-#include "thermargin/rt_table.hpp"
+#include "thermargin/chain/rt_table.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   using namespace thermargin;

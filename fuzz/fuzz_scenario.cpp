@@ -10,7 +10,7 @@
 #include <string>
 
 #include "fuzz_common.hpp"
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 #include "thermargin/nominal.hpp"
 #include "thermargin/input/scenario.hpp"
 

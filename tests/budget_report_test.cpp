@@ -22,7 +22,7 @@
 
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/input/scenario.hpp"
 

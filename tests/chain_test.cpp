@@ -9,7 +9,7 @@
 // placements, with and without a parallel resistor, and with leads that the
 // firmware compensates. Designs are built through Scenario::set and
 // build_design, as from the command line, so the schema is exercised too.
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 
 #include <cmath>
 #include <string>
@@ -19,9 +19,9 @@
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
-#include "thermargin/adc.hpp"
+#include "thermargin/chain/adc.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 namespace thermargin {
 namespace {

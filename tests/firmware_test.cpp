@@ -3,7 +3,7 @@
 // defaults, the lookup table (its code span, its integer storage, its linear
 // interpolation) and the output rounding. Hand formulas are the second
 // opinion: the beta equation (IEC 60539-1), the divider inverted by Ohm's law.
-#include "thermargin/firmware.hpp"
+#include "thermargin/chain/firmware.hpp"
 
 #include <cmath>
 #include <string>
@@ -13,10 +13,10 @@
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
-#include "thermargin/chain.hpp"
-#include "thermargin/divider.hpp"
+#include "thermargin/chain/chain.hpp"
+#include "thermargin/chain/divider.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 namespace thermargin {
 namespace {

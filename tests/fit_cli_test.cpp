@@ -22,7 +22,7 @@
 #include "fit_data.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/fit.hpp"
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 #include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {

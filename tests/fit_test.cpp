@@ -22,7 +22,7 @@
 #include "cli_run.hpp"
 #include "fit_data.hpp"
 #include "thermargin/core/error.hpp"
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 #include "thermargin/core/number.hpp"
 #include "thermargin/input/rt_data.hpp"
 

@@ -24,7 +24,7 @@
 #include "engine_fixture.hpp"
 
 #include "thermargin/budget.hpp"
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 #include "thermargin/input/scenario.hpp"
 
 namespace thermargin {

@@ -23,8 +23,8 @@
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/chain.hpp"
-#include "thermargin/firmware.hpp"
+#include "thermargin/chain/chain.hpp"
+#include "thermargin/chain/firmware.hpp"
 #include "thermargin/input/scenario.hpp"
 
 namespace thermargin {

@@ -1,5 +1,5 @@
 // Checks of the NTC curves against published values.
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 
 #include <cmath>
 

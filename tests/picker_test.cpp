@@ -30,8 +30,8 @@
 #include "thermargin/core/caution.hpp"
 #include "thermargin/linear_budget.hpp"
 #include "thermargin/worst_case.hpp"
-#include "thermargin/ntc.hpp"
-#include "thermargin/self_heating.hpp"
+#include "thermargin/chain/ntc.hpp"
+#include "thermargin/chain/self_heating.hpp"
 
 namespace thermargin {
 namespace {

@@ -5,7 +5,7 @@
 // The tables in tests/data/chain/ were generated from the Steinhart–Hart
 // equation with the published 10 kΩ coefficients (common practice; see
 // tests/data/chain/generate.py).
-#include "thermargin/rt_table.hpp"
+#include "thermargin/chain/rt_table.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -17,7 +17,7 @@
 
 #include "cli_run.hpp"
 #include "thermargin/core/error.hpp"
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 #include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {

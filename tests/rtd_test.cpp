@@ -2,7 +2,7 @@
 // Callendar–Van Dusen equation with the standard's coefficients, its Pt100
 // table, and the tolerance classes of the 2008 edition
 // (reference-values.md §Sensors).
-#include "thermargin/rtd.hpp"
+#include "thermargin/chain/rtd.hpp"
 
 #include <cmath>
 

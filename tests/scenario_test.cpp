@@ -19,7 +19,7 @@
 #include <gtest/gtest.h>
 
 #include "cli_run.hpp"
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 #include "thermargin/input/rt_data.hpp"
 #include "thermargin/core/text_file.hpp"
 

@@ -4,7 +4,7 @@
 // thermal runaway reported as a status. The second opinion is SciPy's brentq
 // on T_e − T − d·V_e²/(R(T_e)·δ) = 0 for the same divider
 // (tests/reference/self_heating.py, Debian's /usr/bin/python3).
-#include "thermargin/self_heating.hpp"
+#include "thermargin/chain/self_heating.hpp"
 
 #include <cmath>
 #include <optional>
@@ -17,10 +17,10 @@
 
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 #include "thermargin/nominal.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 namespace thermargin {
 namespace {

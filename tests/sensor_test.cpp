@@ -3,7 +3,7 @@
 // for an NTC ln R_unit = ln R(T0) + ln(1 + δR) + (1 + δβ)(ln R − ln R(T0)),
 // which for the beta model is exactly R25·(1 + δR) and B·(1 + δβ); for an RTD
 // R_unit(t) = R_nom(t + k·bound(t)) with the IEC 60751 class bound.
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 #include <cmath>
 #include <string>

@@ -14,11 +14,11 @@
 #include <Eigen/Core>
 #include <boost/math/distributions/binomial.hpp>
 
-#include "thermargin/divider.hpp"
+#include "thermargin/chain/divider.hpp"
 #include "thermargin/random.hpp"
-#include "thermargin/self_heating.hpp"
-#include "thermargin/sensor.hpp"
-#include "thermargin/supply.hpp"
+#include "thermargin/chain/self_heating.hpp"
+#include "thermargin/chain/sensor.hpp"
+#include "thermargin/chain/supply.hpp"
 
 namespace thermargin {
 

@@ -16,11 +16,11 @@
 
 #include <boost/math/tools/minima.hpp>
 
-#include "thermargin/divider.hpp"
+#include "thermargin/chain/divider.hpp"
 #include "thermargin/linear_budget.hpp"
 #include "thermargin/monte_carlo.hpp"
 #include "thermargin/nominal.hpp"
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/sensor.hpp"
 #include "thermargin/worst_case.hpp"
 
 namespace thermargin {

@@ -25,7 +25,7 @@
 #include <string_view>
 #include <vector>
 
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 #include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {

@@ -16,7 +16,7 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 
 namespace thermargin {
 

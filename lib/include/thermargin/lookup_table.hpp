@@ -22,7 +22,7 @@
 
 #include "thermargin/input/design.hpp"
 #include "thermargin/core/error.hpp"
-#include "thermargin/firmware.hpp"
+#include "thermargin/chain/firmware.hpp"
 
 namespace thermargin {
 

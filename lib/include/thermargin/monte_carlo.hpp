@@ -27,7 +27,7 @@
 #include <optional>
 #include <vector>
 
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 
 namespace thermargin {
 

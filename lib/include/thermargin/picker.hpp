@@ -39,7 +39,7 @@
 #include <string_view>
 #include <vector>
 
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/core/number.hpp"
 #include "thermargin/input/scenario.hpp"

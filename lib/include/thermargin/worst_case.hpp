@@ -17,7 +17,7 @@
 
 #include <vector>
 
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 
 namespace thermargin {
 

@@ -4,7 +4,7 @@
 #include <sstream>
 
 #include "thermargin/core/error.hpp"
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 #include "thermargin/core/number.hpp"
 #include "thermargin/core/text_file.hpp"
 

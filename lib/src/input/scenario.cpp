@@ -9,8 +9,8 @@
 
 #include <boost/program_options.hpp>
 
-#include "thermargin/firmware.hpp"
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/firmware.hpp"
+#include "thermargin/chain/sensor.hpp"
 #include "thermargin/core/text_file.hpp"
 
 namespace po = boost::program_options;

@@ -12,9 +12,9 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/ntc.hpp"
-#include "thermargin/rt_table.hpp"
-#include "thermargin/rtd.hpp"
+#include "thermargin/chain/ntc.hpp"
+#include "thermargin/chain/rt_table.hpp"
+#include "thermargin/chain/rtd.hpp"
 #include "thermargin/input/sources.hpp"
 
 namespace thermargin {

@@ -1,4 +1,4 @@
-#include "thermargin/rt_table.hpp"
+#include "thermargin/chain/rt_table.hpp"
 
 #include <algorithm>
 #include <cmath>

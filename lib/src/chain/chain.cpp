@@ -1,11 +1,11 @@
-#include "thermargin/chain.hpp"
+#include "thermargin/chain/chain.hpp"
 
 #include <cmath>
 
-#include "thermargin/divider.hpp"
-#include "thermargin/self_heating.hpp"
-#include "thermargin/sensor.hpp"
-#include "thermargin/supply.hpp"
+#include "thermargin/chain/divider.hpp"
+#include "thermargin/chain/self_heating.hpp"
+#include "thermargin/chain/sensor.hpp"
+#include "thermargin/chain/supply.hpp"
 
 namespace thermargin {
 

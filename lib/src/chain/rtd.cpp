@@ -1,4 +1,4 @@
-#include "thermargin/rtd.hpp"
+#include "thermargin/chain/rtd.hpp"
 
 #include <cmath>
 

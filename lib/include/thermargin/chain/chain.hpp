@@ -16,10 +16,10 @@
 #include <optional>
 #include <string_view>
 
-#include "thermargin/adc.hpp"
-#include "thermargin/calibration.hpp"
+#include "thermargin/chain/adc.hpp"
+#include "thermargin/chain/calibration.hpp"
 #include "thermargin/input/design.hpp"
-#include "thermargin/firmware.hpp"
+#include "thermargin/chain/firmware.hpp"
 
 namespace thermargin {
 

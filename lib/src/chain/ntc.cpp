@@ -1,4 +1,4 @@
-#include "thermargin/ntc.hpp"
+#include "thermargin/chain/ntc.hpp"
 
 #include <cmath>
 

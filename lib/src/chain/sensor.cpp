@@ -1,4 +1,4 @@
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 #include <cmath>
 

@@ -1,10 +1,10 @@
-#include "thermargin/firmware.hpp"
+#include "thermargin/chain/firmware.hpp"
 
 #include <algorithm>
 #include <cmath>
 
-#include "thermargin/divider.hpp"
-#include "thermargin/sensor.hpp"
+#include "thermargin/chain/divider.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 namespace thermargin {
 
