@@ -11,10 +11,10 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/budget_report.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/what_if.hpp"
+#include "thermargin/engines/what_if.hpp"
 
 namespace thermargin::cli {
 

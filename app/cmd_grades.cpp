@@ -11,7 +11,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/budget.hpp"  // to_string(Requirement::Basis)
+#include "thermargin/engines/budget.hpp"  // to_string(Requirement::Basis)
 #include "thermargin/grades.hpp"
 #include "thermargin/grades_report.hpp"
 

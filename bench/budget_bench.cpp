@@ -4,7 +4,7 @@
 // `budget` without Monte Carlo on the built-in default design.
 #include <benchmark/benchmark.h>
 
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/input/scenario.hpp"
 #include "bench_designs.hpp"
 

@@ -5,7 +5,7 @@
 #include <benchmark/benchmark.h>
 
 #include "thermargin/chain/chain.hpp"
-#include "thermargin/nominal.hpp"
+#include "thermargin/engines/nominal.hpp"
 #include "thermargin/input/scenario.hpp"
 
 namespace thermargin {

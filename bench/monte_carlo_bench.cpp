@@ -3,7 +3,7 @@
 // single-threaded and on all threads. Items processed = units × temperatures.
 #include <benchmark/benchmark.h>
 
-#include "thermargin/monte_carlo.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
 #include "thermargin/input/scenario.hpp"
 
 namespace {

@@ -6,9 +6,9 @@
 // and the cheap screening it is spared for most candidates.
 #include <benchmark/benchmark.h>
 
-#include "thermargin/linear_budget.hpp"
+#include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/picker.hpp"
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/worst_case.hpp"
 
 namespace {
 

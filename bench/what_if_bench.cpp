@@ -5,7 +5,7 @@
 
 #include "bench_designs.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/what_if.hpp"
+#include "thermargin/engines/what_if.hpp"
 
 namespace {
 

@@ -11,7 +11,7 @@
 
 #include "fuzz_common.hpp"
 #include "thermargin/chain/chain.hpp"
-#include "thermargin/nominal.hpp"
+#include "thermargin/engines/nominal.hpp"
 #include "thermargin/input/scenario.hpp"
 
 namespace {

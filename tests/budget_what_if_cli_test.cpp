@@ -10,7 +10,7 @@
 
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
-#include "thermargin/what_if.hpp"
+#include "thermargin/engines/what_if.hpp"
 
 namespace thermargin {
 namespace {

@@ -25,7 +25,7 @@
 
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/core/caution.hpp"
 
 namespace thermargin {

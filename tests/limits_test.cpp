@@ -23,7 +23,7 @@
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
 
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/input/scenario.hpp"
 

@@ -1,7 +1,7 @@
 // The linear (GUM) budget: the law of propagation on an additive model,
 // the standard uncertainty of each distribution, the coverage factor and the
 // contributor shares.
-#include "thermargin/linear_budget.hpp"
+#include "thermargin/engines/linear_budget.hpp"
 
 #include <cmath>
 #include <cstdio>
@@ -11,7 +11,7 @@
 
 #include "engine_fixture.hpp"
 #include "jcgm101_additive.hpp"
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 
 namespace thermargin {
 namespace {

@@ -2,7 +2,7 @@
 // code, the distributions, the kernel against the scalar chain, bands
 // against worst case and linear budget, yield against a closed form, and
 // reproducibility.
-#include "thermargin/monte_carlo.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
 
 #include <boost/math/distributions/normal.hpp>
 #include <cmath>
@@ -14,9 +14,9 @@
 
 #include "engine_fixture.hpp"
 #include "jcgm101_additive.hpp"
-#include "thermargin/linear_budget.hpp"
-#include "thermargin/random.hpp"
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/engines/random.hpp"
+#include "thermargin/engines/worst_case.hpp"
 
 namespace thermargin {
 namespace {

@@ -26,10 +26,10 @@
 
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/linear_budget.hpp"
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/engines/worst_case.hpp"
 #include "thermargin/chain/ntc.hpp"
 #include "thermargin/chain/self_heating.hpp"
 

@@ -18,7 +18,7 @@
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/chain/chain.hpp"
-#include "thermargin/nominal.hpp"
+#include "thermargin/engines/nominal.hpp"
 #include "thermargin/input/scenario.hpp"
 #include "thermargin/chain/sensor.hpp"
 

@@ -1,7 +1,7 @@
 // What would help: one source improved at a time, checked against the
 // beta equation in closed form, the GUM's combination rule and the
 // geometry of the tolerance box.
-#include "thermargin/what_if.hpp"
+#include "thermargin/engines/what_if.hpp"
 
 #include <algorithm>
 #include <cmath>

@@ -1,7 +1,7 @@
 // Worst-case engine: closed-form corners, directed against enumerated
 // corners, quantisation alone, and first-order agreement with the linear
 // budget.
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/worst_case.hpp"
 
 #include <cmath>
 #include <string>
@@ -10,7 +10,7 @@
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
-#include "thermargin/linear_budget.hpp"
+#include "thermargin/engines/linear_budget.hpp"
 
 namespace thermargin {
 namespace {

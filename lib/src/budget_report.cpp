@@ -13,7 +13,7 @@
 
 #include "thermargin/core/caution.hpp"
 #include "thermargin/core/error.hpp"
-#include "thermargin/monte_carlo.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
 
 namespace thermargin {
 

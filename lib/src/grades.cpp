@@ -12,8 +12,8 @@
 #include <mutex>
 #include <thread>
 
-#include "thermargin/budget.hpp"
-#include "thermargin/linear_budget.hpp"
+#include "thermargin/engines/budget.hpp"
+#include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/series.hpp"
 
 namespace thermargin {

@@ -17,11 +17,11 @@
 #include <boost/math/tools/minima.hpp>
 
 #include "thermargin/chain/divider.hpp"
-#include "thermargin/linear_budget.hpp"
-#include "thermargin/monte_carlo.hpp"
-#include "thermargin/nominal.hpp"
+#include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
+#include "thermargin/engines/nominal.hpp"
 #include "thermargin/chain/sensor.hpp"
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/worst_case.hpp"
 
 namespace thermargin {
 

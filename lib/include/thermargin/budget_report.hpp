@@ -20,11 +20,11 @@
 #include <string_view>
 #include <vector>
 
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/html_report.hpp"
 #include "thermargin/input/scenario.hpp"
 #include "thermargin/svg_chart.hpp"
-#include "thermargin/what_if.hpp"
+#include "thermargin/engines/what_if.hpp"
 
 namespace thermargin {
 

@@ -48,10 +48,10 @@
 #include <vector>
 
 #include "thermargin/input/catalogue.hpp"
-#include "thermargin/monte_carlo.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
 #include "thermargin/picker.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/worst_case.hpp"
 
 namespace thermargin {
 

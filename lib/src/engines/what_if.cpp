@@ -1,4 +1,4 @@
-#include "thermargin/what_if.hpp"
+#include "thermargin/engines/what_if.hpp"
 
 #include <algorithm>
 #include <cmath>

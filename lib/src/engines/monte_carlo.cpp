@@ -1,4 +1,4 @@
-#include "thermargin/monte_carlo.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
 
 #include <algorithm>
 #include <atomic>
@@ -15,7 +15,7 @@
 #include <boost/math/distributions/binomial.hpp>
 
 #include "thermargin/chain/divider.hpp"
-#include "thermargin/random.hpp"
+#include "thermargin/engines/random.hpp"
 #include "thermargin/chain/self_heating.hpp"
 #include "thermargin/chain/sensor.hpp"
 #include "thermargin/chain/supply.hpp"

@@ -1,4 +1,4 @@
-#include "thermargin/nominal.hpp"
+#include "thermargin/engines/nominal.hpp"
 
 #include <cmath>
 

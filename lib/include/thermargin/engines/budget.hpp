@@ -12,11 +12,11 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/linear_budget.hpp"
-#include "thermargin/monte_carlo.hpp"
-#include "thermargin/nominal.hpp"
+#include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
+#include "thermargin/engines/nominal.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/worst_case.hpp"
 
 namespace thermargin {
 

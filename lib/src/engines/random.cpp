@@ -1,4 +1,4 @@
-#include "thermargin/random.hpp"
+#include "thermargin/engines/random.hpp"
 
 #include <boost/math/distributions/normal.hpp>
 #include <numbers>

@@ -23,7 +23,7 @@
 #include <string_view>
 #include <vector>
 
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 
 namespace thermargin {
 

@@ -1,4 +1,4 @@
-#include "thermargin/budget.hpp"
+#include "thermargin/engines/budget.hpp"
 
 #include <algorithm>
 #include <cmath>

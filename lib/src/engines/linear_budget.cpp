@@ -1,4 +1,4 @@
-#include "thermargin/linear_budget.hpp"
+#include "thermargin/engines/linear_budget.hpp"
 
 #include <cmath>
 

@@ -1,4 +1,4 @@
-#include "thermargin/worst_case.hpp"
+#include "thermargin/engines/worst_case.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -6,7 +6,7 @@
 #include <limits>
 #include <thread>
 
-#include "thermargin/linear_budget.hpp"
+#include "thermargin/engines/linear_budget.hpp"
 
 namespace thermargin {
 
