@@ -11,7 +11,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/fit.hpp"
+#include "thermargin/tools/fit.hpp"
 #include "thermargin/input/rt_data.hpp"
 
 namespace thermargin::cli {

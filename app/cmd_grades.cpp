@@ -12,7 +12,7 @@
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/engines/budget.hpp"  // to_string(Requirement::Basis)
-#include "thermargin/grades.hpp"
+#include "thermargin/tools/grades.hpp"
 #include "thermargin/grades_report.hpp"
 
 namespace thermargin::cli {

@@ -12,7 +12,7 @@
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/pick_report.hpp"
-#include "thermargin/picker.hpp"
+#include "thermargin/tools/picker.hpp"
 
 namespace thermargin::cli {
 

@@ -8,7 +8,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/lookup_table.hpp"
+#include "thermargin/tools/lookup_table.hpp"
 
 namespace thermargin::cli {
 

@@ -6,7 +6,7 @@
 // of wall time on two cores. Prices are invented.
 #include <benchmark/benchmark.h>
 
-#include "thermargin/grades.hpp"
+#include "thermargin/tools/grades.hpp"
 
 namespace {
 

@@ -7,7 +7,7 @@
 
 #include <string>
 
-#include "thermargin/lookup_table.hpp"
+#include "thermargin/tools/lookup_table.hpp"
 #include "thermargin/input/scenario.hpp"
 
 namespace thermargin {

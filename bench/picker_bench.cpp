@@ -7,7 +7,7 @@
 #include <benchmark/benchmark.h>
 
 #include "thermargin/engines/linear_budget.hpp"
-#include "thermargin/picker.hpp"
+#include "thermargin/tools/picker.hpp"
 #include "thermargin/engines/worst_case.hpp"
 
 namespace {

@@ -6,7 +6,7 @@
 #include <string>
 
 #include "fuzz_common.hpp"
-#include "thermargin/fit.hpp"
+#include "thermargin/tools/fit.hpp"
 #include "thermargin/input/rt_data.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {

@@ -1,5 +1,5 @@
 // Tests of the `thermargin fit` command: its JSON rows are the library's fits
-// (thermargin/fit.hpp, itself checked against NumPy/SciPy in fit_test.cpp),
+// (thermargin/tools/fit.hpp, itself checked against NumPy/SciPy in fit_test.cpp),
 // its two-point beta is the IEC 60539-1 B-value of the file's points, the
 // scenario lines it prints make a scenario that `thermargin check` accepts,
 // and bad data or settings give one line and exit status 2. The data files in
@@ -21,7 +21,7 @@
 #include "cli_run.hpp"
 #include "fit_data.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/fit.hpp"
+#include "thermargin/tools/fit.hpp"
 #include "thermargin/chain/ntc.hpp"
 #include "thermargin/input/rt_data.hpp"
 

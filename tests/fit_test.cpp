@@ -1,9 +1,9 @@
-// Tests of thermargin/fit.hpp: published spot values (the 10 kΩ
+// Tests of thermargin/tools/fit.hpp: published spot values (the 10 kΩ
 // Steinhart–Hart coefficients, IEC 60539-1's B-value, IEC 60751's Pt100),
 // an independent second opinion from NumPy/SciPy run as /usr/bin/python3,
 // and the refusal of bad data. The data files in tests/data/fit/ are computed
 // from published equations by tests/data/fit/generate.py; none is a measurement.
-#include "thermargin/fit.hpp"
+#include "thermargin/tools/fit.hpp"
 
 #include <gtest/gtest.h>
 

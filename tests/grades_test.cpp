@@ -8,7 +8,7 @@
 // opinion from NumPy (tests/reference/grades_second_opinion.py, Debian's
 // /usr/bin/python3) that reads the catalogue with Python's csv module and
 // recomputes the worst case, the costs, the front and the recommendation.
-#include "thermargin/grades.hpp"
+#include "thermargin/tools/grades.hpp"
 
 #include <nlohmann/json.hpp>
 

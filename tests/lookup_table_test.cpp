@@ -1,11 +1,11 @@
-// Tests of thermargin/lookup_table.hpp and the `thermargin table` command:
+// Tests of thermargin/tools/lookup_table.hpp and the `thermargin table` command:
 // the emitted C header compiled by the system C compiler and run, the chain's
 // `table` conversion against the emitted integers, the interpolation error
 // against an independent NumPy computation of the beta inversion
 // (/usr/bin/python3, Debian's python3-numpy), the smallest P for an error
 // limit, and the refusal of bad settings. The scenarios are the project's
 // invented demo designs.
-#include "thermargin/lookup_table.hpp"
+#include "thermargin/tools/lookup_table.hpp"
 
 #include <gtest/gtest.h>
 

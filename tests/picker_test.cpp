@@ -8,7 +8,7 @@
 // derived below; and the three-point linearisation of Pallàs-Areny &
 // Webster (Sensors and Signal Conditioning, eq. 2.37, from a secondary
 // source per reference-values.md), checked by the property it is built on.
-#include "thermargin/picker.hpp"
+#include "thermargin/tools/picker.hpp"
 
 #include <nlohmann/json.hpp>
 

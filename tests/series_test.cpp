@@ -3,7 +3,7 @@
 // independent generation with NumPy (round(100·10^(i/n)), run with Debian's
 // /usr/bin/python3) and the published exception (E192 holds 920 where the
 // formula gives 919), and the nesting of the series.
-#include "thermargin/series.hpp"
+#include "thermargin/tools/series.hpp"
 
 #include <algorithm>
 #include <cmath>

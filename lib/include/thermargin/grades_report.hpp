@@ -18,7 +18,7 @@
 
 #include "thermargin/budget_report.hpp"
 #include "thermargin/input/catalogue.hpp"
-#include "thermargin/grades.hpp"
+#include "thermargin/tools/grades.hpp"
 
 namespace thermargin {
 

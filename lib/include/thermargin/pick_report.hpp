@@ -16,7 +16,7 @@
 #include <vector>
 
 #include "thermargin/budget_report.hpp"
-#include "thermargin/picker.hpp"
+#include "thermargin/tools/picker.hpp"
 
 namespace thermargin {
 

@@ -49,7 +49,7 @@
 
 #include "thermargin/input/catalogue.hpp"
 #include "thermargin/engines/monte_carlo.hpp"
-#include "thermargin/picker.hpp"
+#include "thermargin/tools/picker.hpp"
 #include "thermargin/input/scenario.hpp"
 #include "thermargin/engines/worst_case.hpp"
 

@@ -1,4 +1,4 @@
-#include "thermargin/picker.hpp"
+#include "thermargin/tools/picker.hpp"
 
 #include <algorithm>
 #include <atomic>

@@ -1,4 +1,4 @@
-#include "thermargin/grades.hpp"
+#include "thermargin/tools/grades.hpp"
 
 #include <algorithm>
 #include <condition_variable>
@@ -14,7 +14,7 @@
 
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/engines/linear_budget.hpp"
-#include "thermargin/series.hpp"
+#include "thermargin/tools/series.hpp"
 
 namespace thermargin {
 

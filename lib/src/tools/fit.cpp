@@ -1,4 +1,4 @@
-#include "thermargin/fit.hpp"
+#include "thermargin/tools/fit.hpp"
 
 #include <algorithm>
 #include <cmath>

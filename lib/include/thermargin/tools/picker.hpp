@@ -43,7 +43,7 @@
 #include "thermargin/core/error.hpp"
 #include "thermargin/core/number.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/series.hpp"
+#include "thermargin/tools/series.hpp"
 
 namespace thermargin {
 

@@ -1,4 +1,4 @@
-#include "thermargin/lookup_table.hpp"
+#include "thermargin/tools/lookup_table.hpp"
 
 #include <algorithm>
 #include <cctype>

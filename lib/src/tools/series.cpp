@@ -1,4 +1,4 @@
-#include "thermargin/series.hpp"
+#include "thermargin/tools/series.hpp"
 
 #include <algorithm>
 #include <cassert>
