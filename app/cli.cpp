@@ -9,7 +9,7 @@
 
 #include <unistd.h>
 
-#include "thermargin/budget_report.hpp"  // check_report_path, check_plots_directory
+#include "thermargin/report/budget_report.hpp"  // check_report_path, check_plots_directory
 #include "thermargin/core/caution.hpp"
 #include "thermargin/core/error.hpp"
 

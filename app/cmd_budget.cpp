@@ -12,7 +12,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/engines/budget.hpp"
-#include "thermargin/budget_report.hpp"
+#include "thermargin/report/budget_report.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/engines/what_if.hpp"
 

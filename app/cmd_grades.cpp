@@ -13,7 +13,7 @@
 #include "thermargin/core/caution.hpp"
 #include "thermargin/engines/budget.hpp"  // to_string(Requirement::Basis)
 #include "thermargin/tools/grades.hpp"
-#include "thermargin/grades_report.hpp"
+#include "thermargin/report/grades_report.hpp"
 
 namespace thermargin::cli {
 

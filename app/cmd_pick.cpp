@@ -11,7 +11,7 @@
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/pick_report.hpp"
+#include "thermargin/report/pick_report.hpp"
 #include "thermargin/tools/picker.hpp"
 
 namespace thermargin::cli {

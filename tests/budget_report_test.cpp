@@ -1,4 +1,4 @@
-// Tests of thermargin/budget_report.hpp and of `thermargin budget --report
+// Tests of thermargin/report/budget_report.hpp and of `thermargin budget --report
 // --plots`: the charts hold the budget's own numbers with gaps where a
 // reading saturates; every scenario's page is read back by an outside
 // reader (tests/reference/report_check.py: Python's html.parser and
@@ -6,7 +6,7 @@
 // same run; user text is escaped and spreadsheet formulas neutralised
 // (Python's csv module reads the CSV); and a destination that cannot be
 // written fails with one line, exit status 2 and no partial file.
-#include "thermargin/budget_report.hpp"
+#include "thermargin/report/budget_report.hpp"
 
 #include <gtest/gtest.h>
 #include <sys/stat.h>

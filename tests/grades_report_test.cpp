@@ -1,4 +1,4 @@
-// Tests of thermargin/grades_report.hpp and of `thermargin grades --report
+// Tests of thermargin/report/grades_report.hpp and of `thermargin grades --report
 // --plots`: the grades page and chart, built from evaluate_grades() in
 // process and by the CLI, read back by an outside reader
 // (tests/reference/report_choice_check.py: Python's html.parser and
@@ -7,7 +7,7 @@
 // that meets the requirement; grade names from the catalogue are user text;
 // a destination that cannot be written fails with one line, exit status 2
 // and nothing written.
-#include "thermargin/grades_report.hpp"
+#include "thermargin/report/grades_report.hpp"
 
 #include <gtest/gtest.h>
 

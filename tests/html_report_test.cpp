@@ -1,8 +1,8 @@
-// Tests of thermargin/html_report.hpp: escaping, CSV cells checked against
+// Tests of thermargin/report/html_report.hpp: escaping, CSV cells checked against
 // RFC 4180 and the OWASP "CSV Injection" advice (with Python's csv module as
 // an outside reader), atomic writes that leave nothing behind on failure, and
 // a whole report parsed by Python's xml.etree.
-#include "thermargin/html_report.hpp"
+#include "thermargin/report/html_report.hpp"
 
 #include <gtest/gtest.h>
 #include <sys/resource.h>
@@ -19,7 +19,7 @@
 
 #include "cli_run.hpp"
 #include "thermargin/core/error.hpp"
-#include "thermargin/svg_chart.hpp"
+#include "thermargin/report/svg_chart.hpp"
 
 namespace thermargin {
 namespace {

@@ -1,4 +1,4 @@
-// Tests of thermargin/pick_report.hpp and of `thermargin pick --report
+// Tests of thermargin/report/pick_report.hpp and of `thermargin pick --report
 // --plots`: the pick page and chart, built from pick() in process and by the
 // CLI, read back by an outside reader (tests/reference/report_choice_check.py:
 // Python's html.parser and xml.etree) and held against `thermargin pick
@@ -6,7 +6,7 @@
 // whose window cannot be read are gaps and lie, with those a constraint rules
 // out, in hatched regions; the value axis is logarithmic; a destination that
 // cannot be written fails with one line, exit status 2 and nothing written.
-#include "thermargin/pick_report.hpp"
+#include "thermargin/report/pick_report.hpp"
 
 #include <gtest/gtest.h>
 

@@ -1,9 +1,9 @@
-// Tests of thermargin/svg_chart.hpp: axis ranges and ticks on round numbers
+// Tests of thermargin/report/svg_chart.hpp: axis ranges and ticks on round numbers
 // (the 1-2-5 convention of graph paper, common practice), gaps that never put
 // a non-finite number into the SVG, data attributes that give back the input
 // numbers (checked against the C library's own %.9g), escaping of user text,
 // and, as an outside opinion, Python's xml.etree parsing the chart.
-#include "thermargin/svg_chart.hpp"
+#include "thermargin/report/svg_chart.hpp"
 
 #include <gtest/gtest.h>
 

@@ -1,4 +1,4 @@
-#include "thermargin/svg_chart.hpp"
+#include "thermargin/report/svg_chart.hpp"
 
 #include <algorithm>
 #include <array>
@@ -11,7 +11,7 @@
 #include <stdexcept>
 #include <utility>
 
-#include "thermargin/html_report.hpp"
+#include "thermargin/report/html_report.hpp"
 
 namespace thermargin::svg {
 

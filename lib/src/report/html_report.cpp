@@ -1,4 +1,4 @@
-#include "thermargin/html_report.hpp"
+#include "thermargin/report/html_report.hpp"
 
 #include <fcntl.h>
 #include <sys/stat.h>
@@ -15,7 +15,7 @@
 #include <filesystem>
 
 #include "thermargin/core/error.hpp"
-#include "thermargin/svg_chart.hpp"
+#include "thermargin/report/svg_chart.hpp"
 
 namespace thermargin {
 

@@ -21,9 +21,9 @@
 #include <vector>
 
 #include "thermargin/engines/budget.hpp"
-#include "thermargin/html_report.hpp"
+#include "thermargin/report/html_report.hpp"
 #include "thermargin/input/scenario.hpp"
-#include "thermargin/svg_chart.hpp"
+#include "thermargin/report/svg_chart.hpp"
 #include "thermargin/engines/what_if.hpp"
 
 namespace thermargin {

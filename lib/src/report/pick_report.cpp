@@ -1,4 +1,4 @@
-#include "thermargin/pick_report.hpp"
+#include "thermargin/report/pick_report.hpp"
 
 #include <algorithm>
 #include <cmath>

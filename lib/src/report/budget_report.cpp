@@ -1,4 +1,4 @@
-#include "thermargin/budget_report.hpp"
+#include "thermargin/report/budget_report.hpp"
 
 #include <sys/stat.h>
 #include <unistd.h>

@@ -15,7 +15,7 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/budget_report.hpp"
+#include "thermargin/report/budget_report.hpp"
 #include "thermargin/tools/picker.hpp"
 
 namespace thermargin {

@@ -1,4 +1,4 @@
-#include "thermargin/grades_report.hpp"
+#include "thermargin/report/grades_report.hpp"
 
 #include <algorithm>
 #include <cmath>

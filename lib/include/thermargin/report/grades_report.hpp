@@ -16,7 +16,7 @@
 #include <string>
 #include <vector>
 
-#include "thermargin/budget_report.hpp"
+#include "thermargin/report/budget_report.hpp"
 #include "thermargin/input/catalogue.hpp"
 #include "thermargin/tools/grades.hpp"
 
