@@ -121,7 +121,7 @@ std::optional<CalibrationData> Chain::calibrate(const Deviations& dev, const Rea
                                                 bool round_output) const {
   const FirmwareSettings& f = d_->firmware;
   CalibrationData k;
-  const int points = f.calibration == Calibration::none ? 0 : f.calibration == Calibration::offset ? 1 : 2;
+  const int points = calibration_points(f.calibration);
   for (int i = 0; i < points; ++i) {
     const double t_cal = f.calibration_at[static_cast<std::size_t>(i)];
     const FrontEnd fe = front_end(dev, t_cal);

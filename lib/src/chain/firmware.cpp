@@ -189,4 +189,17 @@ LookupTable build_lookup_table(const Design& d, const Firmware& exact, int point
   return table;
 }
 
+std::optional<BetaCurve> beta_through_curve(const SensorSettings& s, double t_min, double t_max) {
+  const double t1 = t_min + kelvin_offset, t2 = t_max + kelvin_offset;
+  const auto l1 = nominal_ln_resistance(s, t1), l2 = nominal_ln_resistance(s, t2);
+  if (!l1 || !l2) return std::nullopt;
+  const double b = (*l1 - *l2) / (1.0 / t1 - 1.0 / t2);
+  return BetaCurve{beta_curve_r25(s, t_min, b), b};
+}
+
+double beta_curve_r25(const SensorSettings& s, double t_min, double beta) {
+  const double t1 = t_min + kelvin_offset;
+  return std::exp(*nominal_ln_resistance(s, t1) + beta * (1.0 / t0_kelvin - 1.0 / t1));
+}
+
 }  // namespace thermargin

@@ -54,8 +54,7 @@ LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temper
   LinearBudget out;
   out.k_p = coverage_factor(d.montecarlo.coverage);
   const double mean_shift = quantizer_mean(d.adc.quantizer);
-  const int cal_points =
-      d.firmware.calibration == Calibration::none ? 0 : d.firmware.calibration == Calibration::offset ? 1 : 2;
+  const int cal_points = calibration_points(d.firmware.calibration);
   ReadingShift centre_shift;
   centre_shift.at_t = mean_shift;
   centre_shift.at_cal[0] = centre_shift.at_cal[1] = mean_shift;

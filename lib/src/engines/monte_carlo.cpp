@@ -128,10 +128,6 @@ void normals_block(const std::uint32_t* a, const std::uint32_t* b, double sigma,
   for (int u = 0; u < block_size; ++u) out[u] = sigma * normal_from(a[u], b[u]);
 }
 
-int calibration_points(const Design& d) {
-  return d.firmware.calibration == Calibration::none ? 0 : d.firmware.calibration == Calibration::offset ? 1 : 2;
-}
-
 // --- Per-run constants ----------------------------------------------------
 
 struct RunConstants {
@@ -153,7 +149,7 @@ struct RunConstants {
 RunConstants make_constants(const Chain& chain) {
   const Design& d = chain.design();
   RunConstants c{&chain, &d, philox_key(d.montecarlo.seed), d.adc_span(), d.adc_span() - 1.0, d.adc.averaging,
-                 d.adc.noise, {}, false, false, 0.0, 0.0, 0.0, {}, calibration_points(d)};
+                 d.adc.noise, {}, false, false, 0.0, 0.0, 0.0, {}, calibration_points(d.firmware.calibration)};
   // The firmware's conversion of every possible reading, once: a reading is
   // a sum of M integer samples in [0, M·(2^N − 1)].
   const double entries = static_cast<double>(c.m) * c.max_code + 1.0;
@@ -809,7 +805,7 @@ Evaluation simulate_reading(const Chain& chain, std::uint64_t unit, std::uint32_
     return chain.finish(fe, temp, r, cal, true);
   };
   CalibrationData k;
-  const int n = calibration_points(d);
+  const int n = calibration_points(d.firmware.calibration);
   bool cal_ok = true;
   for (int i = 0; i < n; ++i) {
     const double t_cal = d.firmware.calibration_at[static_cast<std::size_t>(i)];

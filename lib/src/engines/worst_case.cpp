@@ -18,10 +18,6 @@ ReadingInterval reading_interval(const Design& d) {
 
 namespace {
 
-int calibration_points(const Design& d) {
-  return d.firmware.calibration == Calibration::none ? 0 : d.firmware.calibration == Calibration::offset ? 1 : 2;
-}
-
 // The reading-level intervals: the reading in LSB and the output rounding in
 // K, at the measured temperature and at each calibration point. The error is
 // monotone in each, so only their ends matter.
@@ -39,7 +35,7 @@ struct CalibrationFrontEnds {
 CalibrationFrontEnds calibration_front_ends(const Chain& chain, const Deviations& dev) {
   const Design& d = chain.design();
   CalibrationFrontEnds c;
-  for (int i = 0; i < calibration_points(d); ++i)
+  for (int i = 0; i < calibration_points(d.firmware.calibration); ++i)
     c.at[i] = chain.analog_front_end(dev, d.firmware.calibration_at[static_cast<std::size_t>(i)]);
   return c;
 }
@@ -52,7 +48,7 @@ std::vector<std::optional<CalibrationData>> corner_calibrations(const Chain& cha
                                                                 const CalibrationFrontEnds& analog,
                                                                 const Intervals& iv, Status& failure) {
   const Design& d = chain.design();
-  const int n = calibration_points(d);
+  const int n = calibration_points(d.firmware.calibration);
   std::vector<std::optional<CalibrationData>> out;
   if (n == 0) return out;
   // The two ends of each calibration point's converted temperature.
@@ -173,7 +169,7 @@ void fold(WorstCasePoint& p, const CornerRange& c) {
 std::vector<double> own_half_widths(const Chain& chain, double t, const Intervals& iv) {
   const Design& d = chain.design();
   std::vector<double> out;
-  const int n = calibration_points(d);
+  const int n = calibration_points(d.firmware.calibration);
   const double mid = 0.5 * (iv.reading.lo + iv.reading.hi);
   ReadingShift centre;
   centre.at_t = centre.at_cal[0] = centre.at_cal[1] = mid;

@@ -327,7 +327,7 @@ std::optional<double> corner_error(const Chain& chain, const Deviations& dev, do
 // reading independently at either end of its own, as the engine reads a
 // corner (it fails the corner when any of them fails).
 std::vector<ReadingShift> engine_shifts(const Design& d, const ReadingInterval& q) {
-  const int cal_points = d.firmware.calibration == Calibration::two_point ? 2 : d.firmware.calibration == Calibration::offset ? 1 : 0;
+  const int cal_points = calibration_points(d.firmware.calibration);
   std::vector<ReadingShift> out;
   for (double at_t : {q.lo, q.hi})
     for (int mask = 0; mask < (1 << cal_points); ++mask) {

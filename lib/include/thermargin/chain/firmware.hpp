@@ -95,6 +95,14 @@ CodeSpan range_codes(const Design& d);
 // spaced temperatures between those at the widened range's ends (always
 // distinct codes). Fewer than P points come back only when the codes with a
 // solution cannot hold P of them.
+// The beta curve a firmware assumes for a sensor without one of its own
+// (firmware.r25 and firmware.beta = sensor on a Steinhart-Hart, table or
+// RTD sensor): B through the nominal curve at t_min and t_max (°C), R25
+// then from t_min along that B. nullopt where the curve has no value at an
+// end. beta_curve_r25 is R25 for a given B through the curve at t_min.
+std::optional<BetaCurve> beta_through_curve(const SensorSettings& s, double t_min, double t_max);
+double beta_curve_r25(const SensorSettings& s, double t_min, double beta);
+
 LookupTable build_lookup_table(const Design& d, const Firmware& exact, int points, double unit,
                                TableSpacing spacing = TableSpacing::code);
 

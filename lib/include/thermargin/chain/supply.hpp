@@ -24,6 +24,13 @@ inline SupplyUnit supply_unit(const SupplySettings& s, const Deviations& d, doub
           s.v_reference * (1.0 + i(Source::v_reference)) * (1.0 + i(Source::v_reference_tempco) * dt)};
 }
 
+// Whether the board temperature moves the fixed resistor's tempco at all: a
+// board held at exactly 25 °C, the tempco's reference temperature, leaves
+// it no effect, so the tempco is not an active input (input/design_reader.cpp).
+inline bool board_moves_fixed_resistor_tempco(const BoardTemperature& b) {
+  return b.kind != BoardKind::fixed || b.min != 25.0;
+}
+
 // The board temperature of one reading (°C).
 inline double board_temperature(const BoardTemperature& b, double t_true, double deviation) {
   return b.kind == BoardKind::sensor ? t_true : b.middle() + deviation;

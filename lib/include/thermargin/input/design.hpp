@@ -25,6 +25,9 @@ enum class Quantizer { round, floor };
 enum class FullScale { pow2, pow2_minus_1 };
 enum class Conversion { exact, beta, steinhart_hart, table };
 enum class Calibration { none, offset, two_point };
+// How many temperatures a calibration reads the unit at (and so how many
+// reference readings it takes).
+constexpr int calibration_points(Calibration c) { return c == Calibration::none ? 0 : c == Calibration::offset ? 1 : 2; }
 enum class TableSpacing { code, temperature };  // how lookup-table points are placed
 enum class BoardKind { sensor, fixed, range };
 
