@@ -1,7 +1,7 @@
 // Shared by the libFuzzer targets: what counts as a correct outcome.
 //
 // Bad input must end in thermargin::input_error whose message is one
-// non-empty line (interface.md: the CLI prints it as one line and exits 2).
+// non-empty line (README.md "Exit status": the CLI prints it as one line and exits 2).
 // Anything else escaping a reader (another exception, a crash, a sanitizer
 // report) is a finding: libFuzzer stops on it and keeps the input.
 #pragma once

@@ -115,6 +115,26 @@ TEST_F(ScenarioFile, CommandLineOverridesTheFile) {
   EXPECT_EQ(s.get("divider.r_fixed").where.origin(), "command line");
 }
 
+// A program that builds its design in code (no INI text) gets the same
+// checks as a file, and a refusal says where the value came from.
+TEST(DesignInCode, ValuesSetByAProgramAreCheckedAsAFileIs) {
+  Scenario s;
+  s.set("divider.r_fixed", "4k7");
+  s.set("sensor.r25", "47k");
+  const Design d = build_design(s);
+  EXPECT_EQ(d.divider.r_fixed, 4.7e3);
+  EXPECT_EQ(d.sensor.r25, 47e3);
+  EXPECT_EQ(s.get("divider.r_fixed").where.origin(), "set by the program");
+  s.set("divider.r_fixed", "-10k");
+  try {
+    build_design(s);
+    ADD_FAILURE() << "a negative resistor was accepted";
+  } catch (const input_error& e) {
+    EXPECT_EQ(std::string(e.what()), "divider.r_fixed = -10k (set by the program): must be > 0");
+  }
+  EXPECT_THROW(s.set("divider.r_fixd", "1k"), input_error);
+}
+
 TEST_F(ScenarioFile, ToleratesAByteOrderMarkAndWindowsLineEnds) {
   Scenario s;
   s.load_file(write("bom.ini", "\xEF\xBB\xBFtitle = BOM\r\n[sensor]\r\nr25 = 4k7\r\n"));

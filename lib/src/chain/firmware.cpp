@@ -40,7 +40,7 @@ Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion)
   if (d.firmware.sh) {
     sh_ = *d.firmware.sh;
   } else {
-    // Through the nominal curve at t_min, the middle and t_max (model.md §6).
+    // Through the nominal curve at t_min, the middle and t_max (docs/model.md §6).
     const double t[3] = {d.conditions.t_min + kelvin_offset,
                          0.5 * (d.conditions.t_min + d.conditions.t_max) + kelvin_offset,
                          d.conditions.t_max + kelvin_offset};

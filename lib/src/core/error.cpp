@@ -21,6 +21,7 @@ std::string Where::origin() const {
   switch (kind) {
     case Origin::built_in: return "default";
     case Origin::command_line: return "command line";
+    case Origin::program: return "set by the program";
     case Origin::file:
     case Origin::catalogue: break;
   }

@@ -1,4 +1,4 @@
-// The ADC (model.md §5): static transfer, sampling and averaging.
+// The ADC (docs/model.md §5): static transfer, sampling and averaging.
 //
 // Ideal input x = V/V_ref·2^N LSB. Static errors per unit:
 // x' = x·(1 + g) + o + i·4u(1 − u), u = x/2^N (a bow with peak i LSB at

@@ -1,4 +1,4 @@
-// Per-unit calibration in production (model.md §6 step 5).
+// Per-unit calibration in production (docs/model.md §7).
 //
 // `offset`: the unit is read at t_cal against a reference thermometer whose
 // own error e is within ± the calibration uncertainty; the firmware stores

@@ -1,6 +1,6 @@
 // The whole measurement chain of one unit at one true temperature:
 // sensor → self-heating → divider → supply → ADC → firmware → calibration
-// (model.md §1–§6). Every engine evaluates this; the Monte Carlo kernel
+// (docs/model.md §1–§7). Every engine evaluates this; the Monte Carlo kernel
 // runs the same steps on blocks of units (monte_carlo.hpp) and is tested
 // against it.
 //
@@ -48,7 +48,7 @@ struct Evaluation {
 // Shifts of continuous readings: in LSB on the reading (quantisation,
 // noise) at the measured temperature and at the (up to two) calibration
 // points; in K on each converted temperature (the output rounding, which the
-// firmware applies to every reading before calibration, model.md §6).
+// firmware applies to every reading before calibration, docs/model.md §6).
 struct ReadingShift {
   double at_t = 0.0;
   double at_cal[2] = {0.0, 0.0};
@@ -58,7 +58,10 @@ struct ReadingShift {
 
 class Chain {
  public:
+  // The chain keeps a reference to the design: it must outlive the chain,
+  // so a temporary design is refused at compile time.
   explicit Chain(const Design& d);
+  explicit Chain(const Design&& d) = delete;
 
   const Design& design() const { return *d_; }
   const Firmware& firmware() const { return firmware_; }

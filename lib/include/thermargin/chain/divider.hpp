@@ -1,5 +1,5 @@
 // The resistive divider between excitation, sensor branch and ADC input
-// (model.md §3).
+// (docs/model.md §3).
 //
 // Sensor branch: (R_element + R_lead) ∥ R_par. Placement low puts the branch
 // from node to ground, high from excitation to node. The ADC pin draws a

@@ -1,4 +1,4 @@
-// The firmware's conversion from a reading to a temperature (model.md §6).
+// The firmware's conversion from a reading to a temperature (docs/model.md §6).
 //
 // The firmware knows only nominal values: ρ = c/FS (FS = 2^N or 2^N − 1, a
 // convention whose mismatch with the ADC's 2^N is a real systematic error),
@@ -47,7 +47,9 @@ struct LookupTable {
 
 class Firmware {
  public:
+  // Keeps a reference to the design (it must outlive the firmware).
   explicit Firmware(const Design& d);
+  explicit Firmware(const Design&& d) = delete;
 
   // Steps 1–3: the temperature (°C) for a reading in LSB, before rounding;
   // nullopt when the conversion has no solution (a ratio outside (0, 1), a

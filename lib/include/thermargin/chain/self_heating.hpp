@@ -1,4 +1,4 @@
-// Self-heating of the sensing element (model.md §2).
+// Self-heating of the sensing element (docs/model.md §2).
 //
 // T_element = T_true + d·P/δ with P = V_element²/R(T_element): the mean
 // rise of an element with dissipation constant δ (W/K, IEC 60539-1) powered

@@ -1,6 +1,6 @@
 // The sensing element of one unit: its nominal curve and its unit spread.
 //
-// NTC spread (model.md §1): ln R_unit(T) = ln R_nom(T0) + ln(1 + δR)
+// NTC spread (docs/model.md §1): ln R_unit(T) = ln R_nom(T0) + ln(1 + δR)
 // + (1 + δβ)·(ln R_nom(T) − ln R_nom(T0)); exact for the beta model,
 // the same stretch for Steinhart–Hart and tables. RTD spread: the class
 // bound of IEC 60751 times a per-unit factor k ∈ [−1, 1],

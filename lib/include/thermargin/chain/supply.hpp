@@ -1,4 +1,4 @@
-// Excitation and ADC reference (model.md §4), and the board temperature they
+// Excitation and ADC reference (docs/model.md §4), and the board temperature they
 // drift with.
 //
 // Ratiometric: the reference is the excitation, so their common error

@@ -13,7 +13,8 @@
 
 namespace thermargin {
 
-enum class Origin { built_in, file, command_line, catalogue };
+// program: set by a program that uses the library (Scenario::set without a place).
+enum class Origin { built_in, file, command_line, catalogue, program };
 
 // Where a value came from: a file, line and column, the command line, or a
 // default.

@@ -1,4 +1,4 @@
-// The nominal engine (model.md §7): every parameter nominal, the quantiser
+// The nominal engine (docs/engines.md): every parameter nominal, the quantiser
 // and the output rounding replaced by the identity, no noise, the board at
 // the middle of its range. Its error is the design's systematic error —
 // what remains when every part is perfect: self-heating, the firmware's

@@ -6,7 +6,7 @@
 // indices. Results therefore depend only on the seed and the number of units,
 // never on how the work is split between threads.
 //
-// Draws of a ± bound follow model.md §7: normal (σ = bound/sigma_per_tol,
+// Draws of a ± bound follow docs/engines.md: normal (σ = bound/sigma_per_tol,
 // untruncated), uniform, triangular, and gapped (a normal within the bound
 // with the inner band |δ| < gap removed).
 #pragma once

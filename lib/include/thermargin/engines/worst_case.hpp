@@ -1,4 +1,4 @@
-// Worst case: extreme-value analysis over the tolerance box (model.md §7).
+// Worst case: extreme-value analysis over the tolerance box (docs/engines.md).
 //
 // For each temperature, the minimum and maximum error over every corner of
 // the box — each active input at −bound or +bound, the board temperature at

@@ -1,5 +1,5 @@
 // Scenario files and overrides: the one schema behind the INI files, the
-// `--section.key=value` options and grade catalogues (interface.md).
+// `--section.key=value` options and grade catalogues (README.md, docs/scenarios.md).
 //
 // A Scenario is the resolved text of every key with where it came from
 // (built-in default, file and line, command line, catalogue). Files are INI,
@@ -48,6 +48,11 @@ class Scenario {
   void load_file(const std::string& path);
   // Sets one key (command line or catalogue); unknown keys are refused.
   void set(const std::string& key, const std::string& value, const Where& where);
+  // Sets one key from a program that builds its design in code, without
+  // any INI text: build_design() then checks it as it checks a file, and a
+  // refusal says "set by the program" where a file would give its line.
+  //   Scenario s;  s.set("divider.r_fixed", "4k7");  Design d = build_design(s);
+  void set(const std::string& key, const std::string& value) { set(key, value, Where{Origin::program, "", 0, key}); }
 
   const Setting& get(const std::string& key) const;
   const std::map<std::string, Setting>& values() const { return values_; }

@@ -5,7 +5,7 @@
 // a unit as one array of deviations. Engines enumerate corners, differentiate
 // and sample these arrays without knowing any physics — adding an error
 // source means adding it here and using its deviation in one chain step.
-// Distributions of a ± bound follow model.md §7; the standard uncertainty
+// Distributions of a ± bound follow docs/engines.md; the standard uncertainty
 // of each follows JCGM 100:2008 §4.3.7 (rectangular a/√3) and §4.3.9
 // (triangular a/√6); a normal bound is a/k with k = sigma_per_tol.
 #pragma once
