@@ -13,10 +13,10 @@ cmake --install "$build" --prefix "$work/prefix" >/dev/null
 cmake -S "$here" -B "$work/build" -G Ninja -DCMAKE_BUILD_TYPE=Release -DCMAKE_PREFIX_PATH="$work/prefix" >/dev/null
 cmake --build "$work/build" >/dev/null
 read -r wc rss < <("$work/build/consumer")
-json=$("$cli" budget --format json --montecarlo.units=1000)
-/usr/bin/python3 - "$wc" "$rss" "$json" <<'PY'
+"$cli" budget --format json --montecarlo.units=1000 --output "$work/budget.json"
+/usr/bin/python3 - "$wc" "$rss" "$work/budget.json" <<'PY'
 import json, sys
-wc, rss, doc = float(sys.argv[1]), float(sys.argv[2]), json.loads(sys.argv[3])
+wc, rss, doc = float(sys.argv[1]), float(sys.argv[2]), json.load(open(sys.argv[3]))
 w = doc["window"]
 ok = abs(wc - w["wc_max_abs"]) <= 1e-9 * max(1.0, wc) and abs(rss - w["rss_max_abs"]) <= 1e-9 * max(1.0, rss)
 print(f"consumer: worst case {wc:.6f} K, linear {rss:.6f} K; CLI {w['wc_max_abs']:.6f} K, {w['rss_max_abs']:.6f} K")
