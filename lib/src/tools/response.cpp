@@ -15,7 +15,8 @@ double log_geometric_sum(long long m, double l) {
   const double md = static_cast<double>(m);
   if (l == 0.0) return std::log(md);
   if (l > 0.0) {
-    auto log_expm1 = [](double x) { return x + std::log1p(-std::exp(-x)); };  // ln(e^x − 1), x > 0
+    // ln(e^x − 1), x > 0: expm1 keeps the digits of a tiny x, the second form avoids overflow.
+    auto log_expm1 = [](double x) { return x < 30.0 ? std::log(std::expm1(x)) : x + std::log1p(-std::exp(-x)); };
     return log_expm1(md * l) - log_expm1(l);
   }
   return std::log(-std::expm1(md * l)) - std::log(-std::expm1(l));
