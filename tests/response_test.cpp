@@ -13,6 +13,7 @@
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
+#include "source_tree.hpp"
 #include "thermargin/engines/worst_case.hpp"
 
 namespace thermargin {
@@ -235,6 +236,31 @@ TEST(ResponseBudget, DynamicErrorIsAddedToTheVerdictsWorstError) {
   EXPECT_NEAR(w.margin, -0.1, 1e-12);
   EXPECT_NE(w.reason.find("dynamic error of 0.300 K"), std::string::npos);
   EXPECT_TRUE(with_dynamic_error(v, q, 0.2).pass);
+}
+
+}  // namespace
+}  // namespace thermargin
+
+namespace thermargin {
+namespace {
+
+TEST(ResponseAnalysis, MoreSamplesPerReadingThatItNamesMeetTheLimitWithNoFilter) {
+  // A slow ramp and a limit the noise decides: no filter meets it, the
+  // averaging the analysis names does (re-run with that adc.averaging).
+  const std::string file = testing::scenario_path("charger_stop.ini");
+  const testing::Overrides tight{{"requirement.max_error", "1.2"}, {"response.ramp", "0.1"}};
+  const Scenario sc = testing::scenario_with(tight, file);
+  const ResponseAnalysis a = analyse_response(Chain(build_design(sc)), read_response_section(sc));
+  ASSERT_FALSE(a.recommended.has_value());
+  ASSERT_TRUE(a.what_would.averaging.has_value());
+  EXPECT_GT(*a.what_would.averaging, 1);
+  testing::Overrides more = tight;
+  more.push_back({"adc.averaging", std::to_string(*a.what_would.averaging)});
+  more.push_back({"response.filter", "none"});
+  const Scenario sm = testing::scenario_with(more, file);
+  const ResponseAnalysis b = analyse_response(Chain(build_design(sm)), read_response_section(sm));
+  EXPECT_TRUE(b.rows[b.chosen].meets) << b.rows[b.chosen].total_max_abs;
+  EXPECT_NE(recommendation_text(a).find("samples per reading (adc.averaging)"), std::string::npos);
 }
 
 }  // namespace

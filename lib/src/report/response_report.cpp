@@ -163,9 +163,15 @@ std::string response_json(const Design& d, const ResponseAnalysis& a) {
   if (!a.recommended) {
     const WhatWouldMeet& w = a.what_would;
     auto opt = [](const auto& v) { return v ? nlohmann::json(*v) : nlohmann::json(nullptr); };
+    auto filter_of = [&](const auto& v, std::size_t row) {
+      return v ? nlohmann::json(describe(a.rows[row].filter)) : nlohmann::json(nullptr);
+    };
     j["what_would_meet"] = {{"static_alone_exceeds", w.static_alone_exceeds},
+                            {"unreadable", w.unreadable},
                             {"ramp", opt(w.ramp_per_minute)},
+                            {"ramp_filter", filter_of(w.ramp_per_minute, w.ramp_row)},
                             {"time_constant", opt(w.time_constant)},
+                            {"time_constant_filter", filter_of(w.time_constant, w.time_constant_row)},
                             {"averaging", opt(w.averaging)}};
   }
   j["caution"] = std::string(caution);

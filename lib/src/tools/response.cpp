@@ -285,18 +285,25 @@ WhatWouldMeet what_would_meet(const Design& d, const ResponseAnalysis& a, const 
   out.static_alone_exceeds = true;
   out.unreadable = std::none_of(a.rows.begin(), a.rows.end(), [](const ResponseRow& r) { return r.readable; });
   if (out.unreadable) out.static_alone_exceeds = false;
-  for (const ResponseRow& r : a.rows) {
+  for (std::size_t i = 0; i < a.rows.size(); ++i) {
+    const ResponseRow& r = a.rows[i];
     if (!r.readable) continue;
     const double room = a.limit - r.static_max_abs;  // what the ramp's lag may take
     if (room < 0.0) continue;
     out.static_alone_exceeds = false;
     const double rate = room / r.lag_s;  // K/s
-    if (!out.ramp_per_minute || rate * 60.0 > *out.ramp_per_minute) out.ramp_per_minute = rate * 60.0;
+    if (!out.ramp_per_minute || rate * 60.0 > *out.ramp_per_minute) {
+      out.ramp_per_minute = rate * 60.0;
+      out.ramp_row = i;
+    }
     if (s.ramp > 0.0) {
       const double tau_max = room / s.ramp - r.delay_s;
       if (tau_max > 0.0) {
         const double tau = tau_max / (1.0 + s.time_constant_tol);
-        if (!out.time_constant || tau > *out.time_constant) out.time_constant = tau;
+        if (!out.time_constant || tau > *out.time_constant) {
+          out.time_constant = tau;
+          out.time_constant_row = i;
+        }
       }
     }
   }
@@ -402,11 +409,13 @@ std::string recommendation_text(const ResponseAnalysis& a) {
                   "budget` for its contributors.";
   std::vector<std::string> ways;
   if (w.ramp_per_minute) {
-    std::snprintf(buf, sizeof buf, "a ramp of at most %.3g K/min", *w.ramp_per_minute);
+    std::snprintf(buf, sizeof buf, "a ramp of at most %.3g K/min (%s)", *w.ramp_per_minute,
+                  describe(a.rows[w.ramp_row].filter).c_str());
     ways.push_back(buf);
   }
   if (w.time_constant) {
-    std::snprintf(buf, sizeof buf, "a faster sensor, time constant at most %.3g s (its tolerance kept)", *w.time_constant);
+    std::snprintf(buf, sizeof buf, "a faster sensor, time constant at most %.3g s, its tolerance kept (%s)",
+                  *w.time_constant, describe(a.rows[w.time_constant_row].filter).c_str());
     ways.push_back(buf);
   }
   if (w.averaging) {

@@ -99,6 +99,7 @@ struct WhatWouldMeet {
   bool unreadable = false;                 // some window temperature cannot be read at some corner
   std::optional<double> ramp_per_minute;   // K/min, the fastest ramp some filter meets
   std::optional<double> time_constant;     // s, nominal τ (its tolerance kept) some filter meets
+  std::size_t ramp_row = 0, time_constant_row = 0;  // the rows (filters) that do
   std::optional<int> averaging;            // adc.averaging that meets with no filter (≤ 65536)
 };
 
