@@ -144,6 +144,10 @@ TEST(ResponseCli, ReportHoldsTheRampAndTheStepForTheFilterAndItsNeighbours) {
   EXPECT_EQ(check.substr(0, 3), "ok:") << check;
 }
 
+TEST(ResponseCli, UnwritableReportDestinationsAreRefusedBeforeAnyWork) {
+  testing::expect_unwritable_report_destinations_refused("response " + charger());
+}
+
 TEST(ResponseCli, HelpCarriesTheCautionAndTheResponseKeys) {
   const testing::CliOutcome r = run_cli("response --help");
   EXPECT_EQ(r.status, 0);
