@@ -305,7 +305,8 @@ std::string response_report_html(const Design& d, const Scenario& scenario, cons
   const ResponseRow& own = a.rows[a.chosen];
   doc.verdict(own.meets ? Badge::pass : Badge::fail,
               "The scenario's filter (" + describe(own.filter) + "): total " + kelvin(own.total_max_abs) +
-                  (own.meets ? " within " : " outside ") + "\u00b1" + kelvin(a.limit) + ". " + recommendation_text(a));
+                  (own.meets ? " within " : " outside ") + "\u00b1" + kelvin(a.limit) + ". " +
+                  (a.recommended ? "Recommended: " : "") + recommendation_text(a));
   doc.caution(caution);
   doc.preformatted(settings_sentence(a));
   const auto figures = response_figures(a);
