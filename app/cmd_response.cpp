@@ -11,7 +11,13 @@ namespace thermargin::cli {
 
 int run_response(int argc, char** argv) {
   po::options_description own("response options (the [response] section's keys set the sensor, filter, ramp and step)");
-  if (help_requested("response", argc, argv, "[FILE] [options]", own, true, true)) return 0;
+  const char* usage =
+      "[FILE] [options]\n\n"
+      "How the reported temperature follows a changing one: the sensor's time constant and the firmware's filter\n"
+      "on a ramp and after a step, the noise the filter leaves, for the scenario's filter and a sweep of moving\n"
+      "averages and exponential filters, with the one that keeps the static worst case plus the lag within the\n"
+      "requirement. Set them with the --response.* keys below or a [response] section (docs/response.md).";
+  if (help_requested("response", argc, argv, usage, own, true, true)) return 0;
   const Invocation inv = parse("response", argc, argv, own, true, true);
   const Design design = build_design(inv.scenario);
   const ResponseSettings settings = read_response_section(inv.scenario);
