@@ -12,6 +12,7 @@
 #include "thermargin/report/budget_report.hpp"  // check_report_path, check_plots_directory
 #include "thermargin/core/caution.hpp"
 #include "thermargin/core/error.hpp"
+#include "thermargin/input/response_section.hpp"
 
 namespace thermargin::cli {
 
@@ -125,6 +126,9 @@ Invocation parse(const std::string& command, int argc, char** argv, const po::op
       if (find_key(opt.string_key))
         inv.scenario.set(opt.string_key, opt.value.front(), Where{Origin::command_line, "", 0, opt.string_key});
     }
+    // The [response] section is read apart from build_design(): refused here,
+    // before any work, whichever command was given the scenario.
+    read_response_section(inv.scenario);
   }
   return inv;
 }

@@ -15,6 +15,7 @@
 #include "thermargin/report/budget_report.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/engines/what_if.hpp"
+#include "thermargin/report/response_report.hpp"
 
 namespace thermargin::cli {
 
@@ -244,13 +245,16 @@ std::string what_if_text(const Design& d, const WhatIf& w) {
   return out.str();
 }
 
-std::string to_text(const Design& d, const Budget& b, const WhatIf& w) {
+// `response`: the [response] section when the scenario states one (docs/response.md).
+std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const ResponseSettings& response) {
   std::ostringstream out;
   const auto& v = b.verdict;
   out << "thermargin budget - " << d.title << "\n\n";
   out << "VERDICT: " << (v.pass ? "PASS" : "FAIL") << "  " << v.reason;
   if (v.basis != Requirement::Basis::monte_carlo || b.mc) out << " (margin " << fixed(v.margin, 3) << " K)";
+  if (response.present) out << (response.include_dynamic ? " [static + dynamic]" : " [static only]");
   out << "\n";
+  if (response.present) out << dynamic_error_line(response) << "\n";
   out << "Window " << fixed(d.requirement.window_min, 2) << " .. " << fixed(d.requirement.window_max, 2)
       << " degC, limit +/-" << fixed(d.requirement.max_error, 3) << " K, verdict basis " << to_string(v.basis)
       << " (requirement.basis)";
@@ -393,7 +397,10 @@ int run_budget(int argc, char** argv) {
     };
   }
   const Chain chain(design);
-  const Budget budget = run_budget(chain, options);
+  Budget budget = run_budget(chain, options);
+  // The lag at the stated ramp ([response]), in the verdict when the requirement says so.
+  const ResponseSettings response = read_response_section(inv.scenario);
+  if (response.include_dynamic) budget.verdict = with_dynamic_error(budget.verdict, design.requirement, dynamic_error(response));
   if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
   // What would help: in the text, the JSON and the page (CSV is per temperature).
   const bool want_help = inv.format != Format::csv || !inv.report.empty();
@@ -403,11 +410,16 @@ int run_budget(int argc, char** argv) {
   if (inv.format == Format::json) {
     nlohmann::json j = to_json(design, budget);
     j["what_if"] = what_if_json(design, help);
+    if (response.present)
+      j["window"]["dynamic"] = {{"ramp", response.ramp_per_minute()},
+                                {"error", dynamic_error(response)},
+                                {"included", response.include_dynamic},
+                                {"line", dynamic_error_line(response)}};
     text = j.dump(2) + "\n";
   } else if (inv.format == Format::csv) {
     text = to_csv(budget);
   } else {
-    text = to_text(design, budget, help);
+    text = to_text(design, budget, help, response);
   }
   if (!inv.report.empty()) write_report(inv.report, budget_report_html(design, inv.scenario, budget, inv.file, &help));
   if (!inv.plots.empty()) write_figures("--plots", inv.plots, budget_figures(design, budget));

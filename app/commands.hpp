@@ -9,5 +9,6 @@ int run_fit(int argc, char** argv);
 int run_table(int argc, char** argv);
 int run_pick(int argc, char** argv);
 int run_grades(int argc, char** argv);
+int run_response(int argc, char** argv);
 
 }  // namespace thermargin::cli

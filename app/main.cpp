@@ -24,6 +24,8 @@ void usage(std::ostream& out) {
          "  pick [FILE]     rank preferred fixed-resistor values (E12..E192) by worst case, band or sensitivity\n"
          "  grades [FILE] --catalogue CSV   part grades against cost: accuracy, yield and price of every\n"
          "                  combination, the cost/accuracy front and the cheapest that meets the requirement\n"
+         "  response [FILE] following a changing temperature: the sensor's time constant and the firmware's\n"
+         "                  filter on a ramp and a step, the noise left, the filter that meets the requirement\n"
          "  check [FILE]    read and validate a scenario; print every resolved value, its unit and origin\n\n"
          "With no FILE the built-in default design is analysed (scenarios/default.ini holds the same values).\n"
          "Every scenario key is also an option: --divider.r_fixed=4k7 overrides the file.\n"
@@ -50,7 +52,8 @@ int main(int argc, char** argv) {
     if (command == "table") return thermargin::cli::run_table(argc - 1, argv + 1);
     if (command == "pick") return thermargin::cli::run_pick(argc - 1, argv + 1);
     if (command == "grades") return thermargin::cli::run_grades(argc - 1, argv + 1);
-    std::cerr << "thermargin: unknown command '" << command << "'; accepted: budget, check, fit, grades, pick, table (see thermargin --help)\n";
+    if (command == "response") return thermargin::cli::run_response(argc - 1, argv + 1);
+    std::cerr << "thermargin: unknown command '" << command << "'; accepted: budget, check, fit, grades, pick, response, table (see thermargin --help)\n";
     return 2;
   } catch (const thermargin::input_error& e) {
     std::cerr << "thermargin: " << e.what() << "\n";

@@ -237,6 +237,48 @@ std::vector<Case> combinations() {
   };
 }
 
+// The [response] section (docs/response.md), refused by every command that
+// reads a scenario, `response` and `budget` among them.
+std::vector<Case> response_section() {
+  return {
+      scenario("a time constant of 0", "[response]\ntime_constant = 0\n",
+               {"response.time_constant = 0", "bad.ini:2", "must be > 0 s"}),
+      scenario("a negative time constant", "[response]\ntime_constant = -5s\n",
+               {"response.time_constant = -5s", "bad.ini:2", "must be > 0 s"}),
+      scenario("a time constant in volts", "[response]\ntime_constant = 5V\n",
+               {"response.time_constant = 5V", "bad.ini:2", "expected a time such as 8, 8s, 500ms or 2min"}),
+      scenario("a reading period of 0", "[response]\nreading_period = 0ms\n",
+               {"response.reading_period = 0ms", "bad.ini:2", "must be > 0 s"}),
+      scenario("a moving average of no readings", "[response]\nfilter = moving-average\nfilter_length = 0\n",
+               {"response.filter_length = 0", "bad.ini:3", "from 1 to 65536"}),
+      scenario("an exponential filter with alpha 1.5", "[response]\nfilter = exponential\nfilter_alpha = 1.5\n",
+               {"response.filter_alpha = 1.5", "bad.ini:3", "must be in (0, 1]"}),
+      scenario("an exponential filter with alpha 0", "[response]\nfilter_alpha = 0\n",
+               {"response.filter_alpha = 0", "bad.ini:2", "must be in (0, 1]"}),
+      scenario("an unknown filter", "[response]\nfilter = median\n",
+               {"response.filter = median", "bad.ini:2", "none | moving-average | exponential"}),
+      scenario("a time-constant tolerance of 100 %", "[response]\ntime_constant_tol = 100%\n",
+               {"response.time_constant_tol = 100%", "bad.ini:2", "up to (not including) 100 %"}),
+      scenario("a ramp in volts per minute", "[response]\nramp = 2V/min\n",
+               {"response.ramp = 2V/min", "bad.ini:2", "expected a rate of change such as 2, 2K/min"}),
+      scenario("a ramp without a limit to meet", "[response]\nramp = 2\n",
+               {"response.ramp = 2", "bad.ini:2", "needs a limit to meet", "set requirement.max_error"}),
+      scenario("a settle limit of 0", "[response]\nsettle_to = 0\n", {"response.settle_to = 0", "bad.ini:2", "must be > 0 K"}),
+      scenario("the dynamic error included without a [response] section", "[requirement]\ninclude_dynamic = true\n",
+               {"requirement.include_dynamic = true", "bad.ini:2", "add a [response] section"}),
+      scenario("the dynamic error added to a yield",
+               "[requirement]\nbasis = monte-carlo\ninclude_dynamic = true\n[response]\ntime_constant = 5s\n",
+               {"requirement.include_dynamic = true", "bad.ini:3", "use basis worst-case or linear"}),
+      option("response with a ramp without a limit on the command line", "response --response.ramp=2K/min",
+             {"response.ramp = 2K/min (command line)", "needs a limit to meet"}),
+      option("response with a negative period on the command line", "response --response.reading_period=-1",
+             {"response.reading_period = -1 (command line)", "must be > 0 s"}),
+      option("response in XML", "response --format=xml", {"--format = xml (command line)", "text | csv | json"}),
+      option("response report into a missing directory", "response --report=nowhere/r.html",
+             {"--report = nowhere/r.html (command line)", "directory nowhere does not exist"}),
+  };
+}
+
 std::vector<Case> files() {
   const std::string scenario_text = "[sensor]\nr25 = 10k\n";
   return {
@@ -386,7 +428,7 @@ std::vector<Case> catalogues() {
 std::vector<Case> options() {
   const std::vector<Input> with_catalogue{file("parts.csv", good_catalogue)};
   return {
-      option("an unknown command", "simulate", {"unknown command 'simulate'", "budget, check, fit, grades, pick, table"}),
+      option("an unknown command", "simulate", {"unknown command 'simulate'", "budget, check, fit, grades, pick, response, table"}),
       option("an unknown option of check", "check --bogus", {"command line", "'--bogus'", "thermargin check --help"}),
       option("an argument to --help", "check --help=x", {"command line", "'--help' does not take any arguments"}),
       option("a key option without its value", "check --output out.txt --adc.bits",
@@ -455,7 +497,8 @@ std::vector<Case> options() {
 
 std::vector<Case> all_cases() {
   std::vector<Case> all;
-  for (auto group : {numbers(), keys_and_sections(), combinations(), files(), tables(), fit(), catalogues(), options()})
+  for (auto group : {numbers(), keys_and_sections(), combinations(), response_section(), files(), tables(), fit(), catalogues(),
+                     options()})
     all.insert(all.end(), group.begin(), group.end());
   return all;
 }

@@ -162,12 +162,29 @@ TEST(ParseQuantity, NamesTheCommandLineAsOrigin) {
   }
 }
 
+TEST(ParseQuantity, ReadsTimesInSecondsAndRampsInKelvinPerMinute) {
+  // SI: 1 min = 60 s, 1 h = 3600 s (SI brochure, table 8: non-SI units accepted for use with the SI).
+  expect_value("8", Quantity::time, 8.0);
+  expect_value("8s", Quantity::time, 8.0);
+  expect_value("500ms", Quantity::time, 0.5);
+  expect_value("2min", Quantity::time, 120.0);
+  expect_value("1.5 h", Quantity::time, 5400.0);
+  expect_value("2", Quantity::ramp_rate, 2.0);
+  expect_value("2K/min", Quantity::ramp_rate, 2.0);
+  expect_value("0.05K/s", Quantity::ramp_rate, 3.0);
+  expect_value("30 K/h", Quantity::ramp_rate, 0.5);
+  expect_value("500mK/min", Quantity::ramp_rate, 0.5);
+  EXPECT_NE(rejection("5V", Quantity::time).find("expected a time such as 8, 8s, 500ms or 2min"), std::string::npos);
+  EXPECT_NE(rejection("2V/min", Quantity::ramp_rate).find("expected a rate of change"), std::string::npos);
+}
+
 TEST(FormatQuantity, PrintsValuesTheParserReadsBack) {
   // Round trip: what the tool prints, a person may paste back into a scenario.
   const std::pair<double, Quantity> values[] = {{4.7e3, Quantity::resistance}, {2.2e6, Quantity::resistance},
                                                 {0.47, Quantity::resistance},  {3.3, Quantity::voltage},
                                                 {1.5e-3, Quantity::dissipation}, {10e-9, Quantity::current},
-                                                {0.01, Quantity::ratio},      {25e-6, Quantity::tempco}};
+                                                {0.01, Quantity::ratio},      {25e-6, Quantity::tempco},
+                                                {0.5, Quantity::time},        {1.5, Quantity::ramp_rate}};
   for (const auto& [v, q] : values) {
     const std::string text = format_quantity(v, q, 6);
     EXPECT_NEAR(parse(text, q), v, relative_tolerance * 10 * std::fabs(v)) << text;

@@ -45,6 +45,8 @@ std::string_view accepted(Quantity q) {
     case Quantity::tempco: return "expected a temperature coefficient such as 25ppm, 25ppm/K or 0.01%/K";
     case Quantity::lsb: return "expected a number of ADC counts such as 2, 0.5 or 2LSB";
     case Quantity::integer: return "expected a whole number such as 12";
+    case Quantity::time: return "expected a time such as 8, 8s, 500ms or 2min";
+    case Quantity::ramp_rate: return "expected a rate of change such as 2, 2K/min, 0.05K/s or 30K/h";
   }
   return "expected a number";
 }
@@ -69,6 +71,8 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
                                      UnitWord{"ppm/\xC2\xB0" "C", 1e-6}, UnitWord{"%/K", 1e-2},  UnitWord{"%/C", 1e-2},
                                      UnitWord{"%/\xC2\xB0" "C", 1e-2}, UnitWord{"/K", 1.0}};
   static constexpr std::array lsb{UnitWord{"LSB", 1.0}};
+  static constexpr std::array time{UnitWord{"s", 1.0}, UnitWord{"min", 60.0}, UnitWord{"h", 3600.0}};
+  static constexpr std::array ramp_rate{UnitWord{"K/min", 1.0}, UnitWord{"K/s", 60.0}, UnitWord{"K/h", 1.0 / 60.0}};
   auto find = [&](const auto& list) -> std::optional<double> {
     for (const auto& u : list)
       if (u.word == word) return u.factor;
@@ -85,6 +89,8 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
     case Quantity::beta_value: return find(difference);
     case Quantity::tempco: return find(tempco);
     case Quantity::lsb: return find(lsb);
+    case Quantity::time: return find(time);
+    case Quantity::ramp_rate: return find(ramp_rate);
     case Quantity::plain:
     case Quantity::integer: return std::nullopt;
   }
@@ -114,6 +120,8 @@ std::string_view unit_symbol(Quantity q) {
     case Quantity::tempco: return "ppm/K";
     case Quantity::lsb: return "LSB";
     case Quantity::integer: return "";
+    case Quantity::time: return "s";
+    case Quantity::ramp_rate: return "K/min";
   }
   return "";
 }
@@ -248,6 +256,12 @@ std::string format_quantity(double value, Quantity q, int digits) {
       return buf;
     case Quantity::integer:
       std::snprintf(buf, sizeof buf, "%.0f", value);
+      return buf;
+    case Quantity::time:
+      std::snprintf(buf, sizeof buf, "%.*g s", digits, value);
+      return buf;
+    case Quantity::ramp_rate:
+      std::snprintf(buf, sizeof buf, "%.*g K/min", digits, value);
       return buf;
     case Quantity::plain: break;
   }

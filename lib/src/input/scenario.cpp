@@ -86,6 +86,7 @@ std::vector<KeySpec> make_schema() {
       {"requirement.max_error", Q::temperature_difference, "1", "+/- error limit in K"},
       {"requirement.yield", Q::ratio, "99%", "required fraction of units within the limit"},
       {"requirement.basis", Q::plain, "worst-case", "the verdict's bound: worst-case | linear | monte-carlo (yield)"},
+      {"requirement.include_dynamic", Q::plain, "false", "true: budget's verdict adds the [response] ramp error | false"},
       {"montecarlo.units", Q::plain, "100000", "units drawn, or auto (JCGM 101 7.9 adaptive)"},
       {"montecarlo.seed", Q::integer, "1", "random seed"},
       {"montecarlo.threads", Q::integer, "0", "worker threads; 0 = all cores"},
@@ -94,6 +95,16 @@ std::vector<KeySpec> make_schema() {
       {"montecarlo.coverage", Q::ratio, "99.73%", "coverage probability of the bands"},
       {"montecarlo.noise_k", Q::plain, "3", "worst case: noise enters as +/- noise_k sigma"},
       {"montecarlo.max_units", Q::plain, "10000000", "cap on units for auto"},
+      // Following a changing temperature (docs/response.md), read by read_response_section().
+      {"response.time_constant", Q::time, "10s", "the sensor's thermal time constant (63.2 % of a step)"},
+      {"response.time_constant_tol", Q::ratio, "0", "+/- tolerance of the time constant"},
+      {"response.reading_period", Q::time, "1s", "time between the firmware's readings"},
+      {"response.filter", Q::plain, "none", "the firmware's filter: none | moving-average | exponential"},
+      {"response.filter_length", Q::integer, "8", "moving average: readings averaged, N >= 1"},
+      {"response.filter_alpha", Q::plain, "0.125", "exponential filter y += alpha (x - y): alpha in (0, 1]"},
+      {"response.ramp", Q::ramp_rate, "0", "rate of change the reading must follow, K/min (0 = none)"},
+      {"response.step", Q::temperature_difference, "10", "size of the step whose settling is computed, K"},
+      {"response.settle_to", Q::temperature_difference, "0.1", "a step has settled when the error stays within this, K"},
   };
   // Per-input distribution overrides beside each toleranced key.
   std::set<std::string> done;
@@ -116,11 +127,11 @@ std::string trim(const std::string& s) {
 
 bool known_section(const std::string& name) {
   static const std::set<std::string> sections{"sensor", "divider", "supply", "adc", "firmware",
-                                             "conditions", "requirement", "montecarlo"};
+                                             "conditions", "requirement", "montecarlo", "response"};
   return sections.count(name) > 0;
 }
 
-std::string section_list() { return "sensor, divider, supply, adc, firmware, conditions, requirement, montecarlo"; }
+std::string section_list() { return "sensor, divider, supply, adc, firmware, conditions, requirement, montecarlo, response"; }
 
 }  // namespace
 

@@ -26,13 +26,15 @@ enum class Quantity {
   tempco,           // 1/K; accepts `ppm`, `ppm/K`, `%/K`, `/K`
   lsb,              // ADC counts; accepts `LSB`
   integer,          // a whole number, no prefix
+  time,             // s; accepts `s`, `min`, `h` (and prefixes: `500ms`)
+  ramp_rate,        // K/min, a rate of temperature change; accepts `K/min`, `K/s`, `K/h`
 };
 
 // The unit a quantity is printed in ("Ω", "V", "ppm/K", ...).
 std::string_view unit_symbol(Quantity q);
 
 // Reads `text` as a value of quantity `q` in its base unit (Ω, V, A, W/K,
-// °C, K, 1/K, fraction, LSB). Throws input_error naming `where` on failure;
+// °C, K, 1/K, fraction, LSB, s, K/min). Throws input_error naming `where` on failure;
 // the message says what would be accepted.
 struct Where;
 double parse_quantity(std::string_view text, Quantity q, const Where& where);
