@@ -379,7 +379,7 @@ def step_parts(d, st, dev):
 
 
 def step_self_heating(d, st, dev):
-    """T_el = T + d·P/δ, P = V_el²/R (§2), by fixed-point iteration to 1e-13 K; runaway as §2 defines it."""
+    """T_el = T + d·P/δ, P = V_el²/R (§2), by Newton's method to 1e-12 K; runaway as §2 defines it."""
     T = st["T"]
     sensor = st["sensor"]
     if not (d.diss > 0 and d.duty > 0):
@@ -397,11 +397,13 @@ def step_self_heating(d, st, dev):
         r0 = rise(T)
         loop = (rise(T + 1e-3) - r0) / 1e-3
         te = T + r0
-        for _ in range(400):
-            nxt = T + rise(te)
-            moved = np.nanmax(np.abs(nxt - te)) if np.size(nxt) else 0.0
-            te = nxt
-            if not moved > 1e-13:
+        for _ in range(100):  # Newton on te − T − rise(te) = 0, the slope by a difference over 1e-4 K
+            r = rise(te)
+            slope = (rise(te + 1e-4) - r) / 1e-4
+            step = (te - T - r) / (1.0 - slope)
+            te = te - step
+            moved = np.nanmax(np.abs(step)) if np.size(step) else 0.0
+            if not moved > 1e-12:
                 break
     outside = np.isnan(te) & (sensor.model == "table")  # heated past the table's end (§2)
     runaway = ((loop >= 1.0) | (loop < -1.0) | ~np.isfinite(te)) & ~outside

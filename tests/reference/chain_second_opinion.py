@@ -5,7 +5,7 @@ Usage: chain_second_opinion.py BATCH.json
 
 BATCH.json: {"program_units": N1, "units": N2, "seed": S,
              "designs": [{"name": ..., "path": "x.ini" or null, "overrides": ["--adc.bits=16", ...],
-                          "mc": true|false}, ...]}
+                          "deterministic": true|false, "mc": true|false}, ...]}
 
 For each design, from the scenario file and the overrides alone (the same
 arguments the test gives the program), chain_model.py and chain_engines.py
@@ -70,10 +70,12 @@ def options(d):
 def run(spec, n1, n2, seed):
     d = Design(spec.get("path"), spec.get("overrides", []))
     out = {"name": spec["name"], "t": d.t, "options": options(d)}
-    out.update(nominal(d))
-    out.update(worst_case(d))
-    out.update(linear_budget(d))
+    if spec.get("deterministic", True):
+        out.update(nominal(d))
+        out.update(worst_case(d))
+        out.update(linear_budget(d))
     if spec.get("mc"):
+        n1, n2 = spec.get("program_units", n1), spec.get("units", n2)
         errors, worst = monte_carlo(d, n2, seed)
         out["mc"] = [acceptance(e, n1, d.coverage) for e in errors]
         out["yield"], out["yield_interval"] = yield_acceptance(worst, d.limit, n1)
