@@ -191,6 +191,7 @@ TEST(MonteCarloBands, LieInsideTheWorstCaseBandWithoutNoiseOnEveryScenario) {
     McOptions o;
     o.units = 4000;
     const McResult mc = monte_carlo(chain, temps, o);
+    std::size_t compared = 0;
     for (std::size_t i = 0; i < temps.size(); ++i) {
       const McPoint& p = mc.points[i];
       if (p.valid == 0 || wc.points[i].failed_corners > 0 || !wc.points[i].any_ok) continue;
@@ -198,7 +199,9 @@ TEST(MonteCarloBands, LieInsideTheWorstCaseBandWithoutNoiseOnEveryScenario) {
       // the check uses the coverage interval, which stays inside.
       EXPECT_GE(p.low, wc.points[i].low - 1e-9) << file << " at " << temps[i];
       EXPECT_LE(p.high, wc.points[i].high + 1e-9) << file << " at " << temps[i];
+      ++compared;
     }
+    EXPECT_EQ(compared, temps.size()) << file << ": every shipped scenario reads at every temperature";
   }
 }
 

@@ -79,8 +79,10 @@ TEST(NtcSpread, BetaModelIsExactlyR25TimesOnePlusDeltaRAndBetaTimesOnePlusDeltaB
 
 TEST(NtcSpread, ToleranceBandIsNarrowestAt25C) {
   // A beta deviation leaves R(25 °C) alone and grows with |1/T − 1/T0|.
+  int ntc_models = 0;
   for (const Design& d : every_model()) {
     if (!d.is_ntc()) continue;
+    ++ntc_models;
     const SensorUnit unit(d.sensor, 0.0, 0.02, 0.0);
     const double at_t0 = *unit.ln_resistance(t0_kelvin) - *nominal_ln_resistance(d.sensor, t0_kelvin);
     EXPECT_NEAR(at_t0, 0.0, ln_r_tolerance);
@@ -91,14 +93,17 @@ TEST(NtcSpread, ToleranceBandIsNarrowestAt25C) {
       previous = spread;
     }
   }
+  EXPECT_EQ(ntc_models, 3);  // beta, Steinhart–Hart and table
 }
 
 TEST(NtcSpread, StretchesEveryNtcModelAbout25C) {
   // model.md §1, the same stretch for Steinhart–Hart and tables: at 25 °C the
   // shift is ln(1 + δR); elsewhere the distance from ln R(T0) grows by (1 + δβ).
   const double dr = 0.02, db = -0.01;
+  int ntc_models = 0;
   for (const Design& d : every_model()) {
     if (!d.is_ntc()) continue;
+    ++ntc_models;
     const SensorUnit unit(d.sensor, dr, db, 0.0);
     const double l0 = *nominal_ln_resistance(d.sensor, t0_kelvin);
     EXPECT_NEAR(*unit.ln_resistance(t0_kelvin) - l0, std::log(1 + dr), ln_r_tolerance);
@@ -108,6 +113,7 @@ TEST(NtcSpread, StretchesEveryNtcModelAbout25C) {
       EXPECT_NEAR(unit_distance, (1 + db) * nominal_distance, ln_r_tolerance) << t;
     }
   }
+  EXPECT_EQ(ntc_models, 3);  // beta, Steinhart–Hart and table
 }
 
 TEST(RtdSpread, ClassFactorShiftsTheCurveByTheClassBound) {
