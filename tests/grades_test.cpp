@@ -58,7 +58,7 @@ Outcome cli(const std::string& args) { return testing::run_cli("grades " + args)
 // the divider with the nominal fixed resistor, so a unit reads the
 // resistance R_unit/(1 + δf) and
 //     1/T_est = 1/T + [ln(1 + δR) − ln(1 + δf)]/B + δβ·(1/T − 1/T0)
-// (model.md §1 for the unit's curve, §3 for the divider). T_est falls as
+// (docs/model.md §1 for the unit's curve, §3 for the divider). T_est falls as
 // 1/T_est rises, so the extreme errors sit at the corners (δR, δf) = (±a, ∓f)
 // and δβ = ±b; the B term grows with |1/T − 1/T0|, i.e. away from 25 °C.
 //

@@ -76,7 +76,7 @@ TEST(LinearBudget, GappedUncertaintyMatchesScipyIntegration) {
 }
 
 TEST(LinearBudget, CoverageFactorIsTheNormalQuantile) {
-  // 99.73 % ↔ k = 3.0 (model.md §7); 95 % ↔ 1.959964 (normal tables).
+  // 99.73 % ↔ k = 3.0 (docs/engines.md); 95 % ↔ 1.959964 (normal tables).
   EXPECT_NEAR(coverage_factor(0.9973), 3.0, 1e-3);
   EXPECT_NEAR(coverage_factor(0.95), 1.959964, 1e-6);
 }

@@ -42,7 +42,7 @@ using testing::additive;
 using testing::four;
 constexpr std::uint64_t trials = 1000000;
 // With 10⁶ trials the endpoint scatter is about 0.005 (§9.2.3) and 0.01
-// (§9.2.4): ±0.02 and ±0.04 are safe (reference-values.md).
+// (§9.2.4) (JCGM 101:2008 §9.2, from memory): ±0.02 and ±0.04 are safe.
 constexpr double scatter = 0.02, scatter_dominant = 0.04;
 
 TEST(MonteCarloJcgm101, NormalInputsGiveTheNormalInterval) {

@@ -1,5 +1,5 @@
 // Checks of the sensing element of one unit (sensor.hpp): the nominal curve
-// of every model, its inverse and slope, and the unit spread of model.md §1 —
+// of every model, its inverse and slope, and the unit spread of docs/model.md §1 —
 // for an NTC ln R_unit = ln R(T0) + ln(1 + δR) + (1 + δβ)(ln R − ln R(T0)),
 // which for the beta model is exactly R25·(1 + δR) and B·(1 + δβ); for an RTD
 // R_unit(t) = R_nom(t + k·bound(t)) with the IEC 60751 class bound.
@@ -67,7 +67,7 @@ TEST(SensorCurve, RtdModelIsTheCallendarVanDusenCurveOfItsR0) {
 }
 
 TEST(NtcSpread, BetaModelIsExactlyR25TimesOnePlusDeltaRAndBetaTimesOnePlusDeltaBeta) {
-  // model.md §1: for the beta model the stretch is exactly a new R25 and B.
+  // docs/model.md §1: for the beta model the stretch is exactly a new R25 and B.
   const Design d = design_with({{"sensor.model", "beta"}, {"sensor.r25", "10k"}, {"sensor.beta", "3435"}});
   for (const auto& [dr, db] : {std::pair{0.01, 0.0}, {0.0, -0.015}, {-0.05, 0.02}, {0.003, 0.007}}) {
     const SensorUnit unit(d.sensor, dr, db, 0.0);
@@ -97,7 +97,7 @@ TEST(NtcSpread, ToleranceBandIsNarrowestAt25C) {
 }
 
 TEST(NtcSpread, StretchesEveryNtcModelAbout25C) {
-  // model.md §1, the same stretch for Steinhart–Hart and tables: at 25 °C the
+  // docs/model.md §1, the same stretch for Steinhart–Hart and tables: at 25 °C the
   // shift is ln(1 + δR); elsewhere the distance from ln R(T0) grows by (1 + δβ).
   const double dr = 0.02, db = -0.01;
   int ntc_models = 0;
@@ -117,7 +117,7 @@ TEST(NtcSpread, StretchesEveryNtcModelAbout25C) {
 }
 
 TEST(RtdSpread, ClassFactorShiftsTheCurveByTheClassBound) {
-  // model.md §1 and IEC 60751 class B ±(0.30 + 0.005|t|): a unit with k = ±1
+  // docs/model.md §1 and IEC 60751 class B ±(0.30 + 0.005|t|): a unit with k = ±1
   // has the resistance the nominal element has at t ± bound(t).
   const Design d = every_model()[3];
   for (double k : {-1.0, -0.25, 1.0}) {

@@ -1,7 +1,7 @@
 #!/usr/bin/env python3
 """An independent Monte Carlo of a beta-NTC divider design with NumPy.
 
-Written from model.md's equations (sensor spread, self-heating, divider with
+Written from docs/model.md's equations (sensor spread, self-heating, divider with
 a tempco'd fixed resistor at a uniformly drawn board temperature, ratiometric
 ADC with gain, offset, bow INL, Gaussian noise and a round quantiser, beta
 conversion, output rounding), with NumPy's own generator: it shares no code
