@@ -24,7 +24,7 @@ import sys
 import numpy as np
 
 from chain_engines import acceptance, linear_budget, monte_carlo, nominal, worst_case, yield_acceptance
-from chain_model import Design
+from chain_model import Design, deviations, front_end
 
 
 def plain(v):
@@ -79,6 +79,11 @@ def run(spec, n1, n2, seed):
         errors, worst = monte_carlo(d, n2, seed)
         out["mc"] = [acceptance(e, n1, d.coverage) for e in errors]
         out["yield"], out["yield_interval"] = yield_acceptance(worst, d.limit, n1)
+        # The spread the quantiser alone gives a reading, 1/√12 LSB over the nominal slope (IEEE Std 1241),
+        # against which a source's own spread must stand out to be seen.
+        none = deviations(d, {})
+        slope = (front_end(d, d.t + 0.01, none)["x"] - front_end(d, d.t - 0.01, none)["x"]) / 0.02
+        out["quantisation_sd"] = 1.0 / math.sqrt(12.0) / np.abs(slope)
     return plain(out)
 
 
