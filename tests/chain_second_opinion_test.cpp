@@ -318,6 +318,30 @@ TEST(ChainSecondOpinion, MonteCarloOneSourceAtATimeSeesEverySourcesSpread) {
   EXPECT_EQ(n.mc, 4 * points + static_cast<int>(seen.size()));
 }
 
+TEST(ChainSecondOpinion, LookupTableIsTheModelsOnEveryDesignThatUsesOne) {
+  // `thermargin table` emits the table the chain reads (docs/table.md); the
+  // model builds its own from docs/model.md §6 (code span, spacing in code or
+  // in temperature, storage as integers of the unit).
+  const auto runs = all_runs();
+  const auto& answers = model_answers();
+  int designs = 0, points = 0;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    if (!runs[k].deterministic || !answers[k].contains("table")) continue;
+    SCOPED_TRACE(runs[k].name);
+    const json got = testing::cli_json("table " + testing::shell_quote(runs[k].path));
+    const json& want = answers[k]["table"];
+    ASSERT_EQ(got["rows"].size(), want["codes"].size());
+    for (std::size_t i = 0; i < want["codes"].size(); ++i) {
+      EXPECT_EQ(got["rows"][i]["code"].get<double>(), want["codes"][i].get<double>()) << i;
+      EXPECT_EQ(got["rows"][i]["stored"].get<double>(), want["stored"][i].get<double>()) << i;
+      ++points;
+    }
+    ++designs;
+  }
+  EXPECT_EQ(designs, 3);  // the battery guard, a beta NTC in code and a Pt1000 in temperature
+  EXPECT_GT(points, 3 * 16);
+}
+
 TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
   // The generated designs alone (not the scenarios, not the one-source runs).
   const auto runs = all_runs();
