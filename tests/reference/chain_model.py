@@ -24,7 +24,6 @@ import os
 import re
 
 import numpy as np
-from scipy import integrate, stats
 from scipy.interpolate import PchipInterpolator
 
 KELVIN = 273.15
