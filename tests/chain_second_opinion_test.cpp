@@ -4,7 +4,7 @@
 // with its own parser and never reading a figure of the program's
 // (docs/checks.md lists this and every other outside source of the suite).
 //
-// One Python process answers for the whole batch: every scenario in
+// One Python process answers for each test's batch: every scenario in
 // scenarios/ and every generated design in tests/data/second_opinion/
 // (which together cover each option: the script reports what each design
 // uses and a test holds the union to the list below), and the designs of
@@ -122,38 +122,43 @@ std::vector<Run> per_source_runs() {
   return out;
 }
 
-std::vector<Run> all_runs() {
+// The runs of each test. Each test asks the model only for its own part, in
+// one Python process: ctest runs every test in a process of its own.
+enum class Part { deterministic, monte_carlo, one_source, design_only };
+
+std::vector<Run> runs_of(Part part) {
+  if (part == Part::one_source) return per_source_runs();
   std::vector<Run> runs;
   for (const auto& f : design_files()) {
     const std::string name = fs::path(f).filename().string();
-    runs.push_back({name, f, {}, true, false});
+    if (part == Part::deterministic) runs.push_back({name, f, {}, true, false});
     // Temperatures 5 K apart keep the NumPy simulation to seconds.
-    runs.push_back({name + " (Monte Carlo)", f, {mc_coverage, "--conditions.t_step=5"}, false, true});
+    if (part == Part::monte_carlo)
+      runs.push_back({name + " (Monte Carlo)", f, {mc_coverage, "--conditions.t_step=5"}, false, true});
+    if (part == Part::design_only) runs.push_back({name, f, {}, false, false});
   }
-  for (auto& r : per_source_runs()) runs.push_back(r);
   return runs;
 }
 
-// The model's answer for every run, computed once (one Python process).
-const std::vector<json>& model_answers() {
-  static const std::vector<json> answers = [] {
-    const std::vector<Run> runs = all_runs();
-    json batch{{"program_units", program_units}, {"units", model_units}, {"seed", 20}, {"designs", json::array()}};
-    for (const auto& r : runs)
-      batch["designs"].push_back({{"name", r.name}, {"path", r.path}, {"overrides", r.overrides},
-                                  {"deterministic", r.deterministic}, {"mc", r.mc},
-                                  {"program_units", r.units}, {"units", r.units}});
-    static testing::ScratchDir dir;
-    const std::string file = dir.write("batch.json", batch.dump());
-    const testing::CliOutcome py =
-        testing::run_shell(testing::reference_command("chain_second_opinion.py", testing::shell_quote(file)));
-    if (py.status != 0) throw std::runtime_error("chain_second_opinion.py failed: " + py.err);
-    const json parsed = json::parse(py.out);
-    std::vector<json> out;
-    for (const auto& d : parsed["designs"]) out.push_back(d);
-    return out;
-  }();
-  return answers;
+// The model's answer for each run (one Python process for the batch).
+std::vector<json> model_answers(const std::vector<Run>& runs) {
+  json batch{{"program_units", program_units}, {"units", model_units}, {"seed", 20}, {"designs", json::array()}};
+  for (const auto& r : runs)
+    batch["designs"].push_back({{"name", r.name}, {"path", r.path}, {"overrides", r.overrides},
+                                {"deterministic", r.deterministic}, {"mc", r.mc},
+                                {"program_units", r.units}, {"units", r.units}});
+  testing::ScratchDir dir;
+  const std::string file = dir.write("batch.json", batch.dump());
+  const testing::CliOutcome py =
+      testing::run_shell(testing::reference_command("chain_second_opinion.py", testing::shell_quote(file)));
+  if (py.status != 0) throw std::runtime_error("chain_second_opinion.py failed: " + py.err);
+  const json parsed = json::parse(py.out);
+  std::vector<json> out;
+  for (const auto& d : parsed["designs"]) out.push_back(d);
+  if (out.size() != runs.size()) throw std::runtime_error("chain_second_opinion.py answered for another batch");
+  for (std::size_t k = 0; k < runs.size(); ++k)
+    if (out[k]["name"] != runs[k].name) throw std::runtime_error("chain_second_opinion.py answered out of order");
+  return out;
 }
 
 json program(const Run& r) {
@@ -251,14 +256,11 @@ void compare_monte_carlo(const Run& run, const json& got, const json& want, Coun
 }
 
 TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGeneratedDesign) {
-  const auto runs = all_runs();
-  const auto& answers = model_answers();
-  ASSERT_EQ(answers.size(), runs.size());
+  const auto runs = runs_of(Part::deterministic);
+  const auto answers = model_answers(runs);
   Counts n;
   int designs = 0;
   for (std::size_t k = 0; k < runs.size(); ++k) {
-    if (!runs[k].deterministic) continue;
-    ASSERT_EQ(answers[k]["name"], runs[k].name);
     compare_deterministic(runs[k], program(runs[k]), answers[k], n);
     ++designs;
   }
@@ -275,12 +277,11 @@ TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGenera
 }
 
 TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGeneratedDesign) {
-  const auto runs = all_runs();
-  const auto& answers = model_answers();
+  const auto runs = runs_of(Part::monte_carlo);
+  const auto answers = model_answers(runs);
   Counts n;
   int designs = 0, points = 0;
   for (std::size_t k = 0; k < runs.size(); ++k) {
-    if (!runs[k].mc || runs[k].name.starts_with("one source")) continue;
     const json got = program(runs[k]);
     compare_monte_carlo(runs[k], got, answers[k], n);
     points += static_cast<int>(got["points"].size());
@@ -291,13 +292,12 @@ TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGener
 }
 
 TEST(ChainSecondOpinion, MonteCarloOneSourceAtATimeSeesEverySourcesSpread) {
-  const auto runs = all_runs();
-  const auto& answers = model_answers();
+  const auto runs = runs_of(Part::one_source);
+  const auto answers = model_answers(runs);
   Counts n;
   std::set<std::string> seen;
   int points = 0, visible = 0;
   for (std::size_t k = 0; k < runs.size(); ++k) {
-    if (!runs[k].name.starts_with("one source")) continue;
     const json got = program(runs[k]);
     compare_monte_carlo(runs[k], got, answers[k], n);
     points += static_cast<int>(got["points"].size());
@@ -322,11 +322,11 @@ TEST(ChainSecondOpinion, LookupTableIsTheModelsOnEveryDesignThatUsesOne) {
   // `thermargin table` emits the table the chain reads (docs/table.md); the
   // model builds its own from docs/model.md §6 (code span, spacing in code or
   // in temperature, storage as integers of the unit).
-  const auto runs = all_runs();
-  const auto& answers = model_answers();
+  const auto runs = runs_of(Part::design_only);
+  const auto answers = model_answers(runs);
   int designs = 0, points = 0;
   for (std::size_t k = 0; k < runs.size(); ++k) {
-    if (!runs[k].deterministic || !answers[k].contains("table")) continue;
+    if (!answers[k].contains("table")) continue;
     SCOPED_TRACE(runs[k].name);
     const json got = testing::cli_json("table " + testing::shell_quote(runs[k].path));
     const json& want = answers[k]["table"];
@@ -344,12 +344,12 @@ TEST(ChainSecondOpinion, LookupTableIsTheModelsOnEveryDesignThatUsesOne) {
 
 TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
   // The generated designs alone (not the scenarios, not the one-source runs).
-  const auto runs = all_runs();
-  const auto& answers = model_answers();
+  const auto runs = runs_of(Part::design_only);
+  const auto answers = model_answers(runs);
   std::set<std::string> used;
   int generated = 0;
   for (std::size_t k = 0; k < runs.size(); ++k) {
-    if (!runs[k].deterministic || runs[k].path.find("tests/data/second_opinion") == std::string::npos) continue;
+    if (runs[k].path.find("tests/data/second_opinion") == std::string::npos) continue;
     ++generated;
     for (const auto& o : answers[k]["options"]) used.insert(o.get<std::string>());
   }

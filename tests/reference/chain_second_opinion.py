@@ -74,8 +74,8 @@ def run(spec, n1, n2, seed):
         out.update(nominal(d))
         out.update(worst_case(d))
         out.update(linear_budget(d))
-        if d.conversion == "table":  # the firmware's lookup table as docs/model.md §6 builds it
-            out["table"] = {"codes": d.firmware.codes, "stored": d.firmware.stored}
+    if d.conversion == "table":  # the firmware's lookup table as docs/model.md §6 builds it
+        out["table"] = {"codes": d.firmware.codes, "stored": d.firmware.stored}
     if spec.get("mc"):
         n1, n2 = spec.get("program_units", n1), spec.get("units", n2)
         errors, worst = monte_carlo(d, n2, seed)
