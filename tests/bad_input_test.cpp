@@ -1,4 +1,4 @@
-// The catalogue of bad input (interface.md "Exit status", DEVELOPERS.md
+// The catalogue of bad input (docs/refusals.md, DEVELOPERS.md
 // "Three kinds of failure"): every way a user can hand thermargin something
 // it cannot use — a number, a scenario key or section, a combination of
 // keys, a file, an R–T table, a fit data file, a grade catalogue, an option

@@ -63,7 +63,7 @@ TEST(BudgetCli, AdaptiveRunStopsWhenTheBandsAreStableAndSaysHowManyUnits) {
 }
 
 TEST(BudgetCli, StrictTurnsAFailingVerdictIntoExitThree) {
-  // interface.md: a failing verdict exits 0, or 3 with --strict.
+  // docs/engines.md (Verdict): a failing verdict exits 0, or 3 with --strict.
   const std::string failing = " --requirement.max_error=0.05 --no-mc --format json";
   const CliRun plain = budget(failing);
   ASSERT_EQ(plain.status, 0);
@@ -100,7 +100,7 @@ const std::string seventeen_inputs =
     " --firmware.calibration_uncertainty=0.05 --conditions.t_min=0 --conditions.t_max=40 --conditions.t_step=20 --requirement.window_max=40 --no-mc";
 
 TEST(BudgetCli, BeyondSixteenActiveInputsTheCornersAreDirectedAndEveryOutputSaysSo) {
-  // model.md §7: full enumeration up to 16 active inputs; beyond, corners
+  // docs/engines.md: full enumeration up to 16 active inputs; beyond, corners
   // directed by the sensitivities, and the output says so.
   const auto directed = testing::cli_json("budget" + seventeen_inputs);
   EXPECT_EQ(directed["window"]["active_inputs"], 17);
@@ -197,7 +197,7 @@ TEST(BudgetCli, SensitivityViewIsTheDividersSlopeInCountsAndMillivolts) {
   // A beta NTC at the bottom of a ratiometric divider, without self-heating:
   // x = 2^N·R/(R_f + R), so dx/dT = 2^N·R_f·R'/(R_f + R)² with R' = −B·R/T²
   // (beta equation, IEC 60539-1; the derivative by hand), dV/dT the same
-  // with V_exc for 2^N (model.md §5: 1 LSB = V_ref/2^N), and one LSB is
+  // with V_exc for 2^N (docs/model.md §5: 1 LSB = V_ref/2^N), and one LSB is
   // 1/|dx/dT| kelvin.
   const auto j = testing::cli_json("budget --sensor.dissipation=0 --no-mc");
   const double r25 = 10e3, beta = 3950.0, rf = 10e3, span = 4096.0, v = 3.3;
@@ -223,7 +223,7 @@ TEST(BudgetCli, SensitivityViewIsTheDividersSlopeInCountsAndMillivolts) {
 }
 
 TEST(BudgetCli, VerdictGivesItsBasisMarginAndWhereTheMarginIsSmallest) {
-  // interface.md / model.md §7: the verdict uses the requirement's basis;
+  // docs/engines.md (Verdict): the verdict uses the requirement's basis;
   // the margin is the limit minus the largest |error| of that band in the
   // window, found here from the per-temperature bands themselves.
   for (const std::string basis : {"worst-case", "linear"}) {

@@ -1,5 +1,5 @@
 // The worst-case band of `thermargin budget` on a shipped scenario against
-// an independent SciPy re-implementation of model.md (tests/reference/
+// an independent SciPy re-implementation of docs/model.md (tests/reference/
 // budget_worst_case.py: Python's configparser reads the same file, every
 // corner of the box is enumerated with NumPy and the self-heating equation
 // solved by scipy.optimize.brentq). Nothing of thermargin is shared.
@@ -15,7 +15,7 @@
 namespace thermargin {
 namespace {
 
-// thermargin solves the self-heating to 1e-9 K (model.md §2), brentq to
+// thermargin solves the self-heating to 1e-9 K (docs/model.md §2), brentq to
 // 1e-12 K; the rest is the same closed forms evaluated in another order.
 constexpr double self_heating_tolerance = 1e-8;  // K
 

@@ -1,5 +1,5 @@
 // Checks of the whole measurement chain (chain.hpp) and of the steps it
-// composes: divider (Ohm's and Kirchhoff's laws), supply, ADC (model.md §5),
+// composes: divider (Ohm's and Kirchhoff's laws), supply, ADC (docs/model.md §5),
 // the unit spread through the chain, calibration, and the statuses that
 // replace numbers (saturation, a sensor outside its table).
 //
@@ -29,7 +29,7 @@ namespace {
 using Keys = testing::Overrides;
 using testing::design_with;
 
-constexpr double round_trip_tolerance = 1e-9;  // K (model.md §2's solver tolerance; the chain is exact)
+constexpr double round_trip_tolerance = 1e-9;  // K (docs/model.md §2's solver tolerance; the chain is exact)
 constexpr double voltage_tolerance = 1e-12;    // V, rounding of a few operations on volts
 constexpr double code_relative_tolerance = 1e-13;
 constexpr double lsb_tolerance = 1e-12;   // LSB, a few roundings of numbers near 1000
@@ -114,7 +114,7 @@ TEST(ChainRoundTrip, BetaConversionOfABetaSensorIsExact) {
 }
 
 TEST(ChainRoundTrip, AbsoluteReferenceIsExactWithNominalVoltages) {
-  // The firmware scales the ratio by V_ref,nom/V_exc,nom (model.md §6 step 1).
+  // The firmware scales the ratio by V_ref,nom/V_exc,nom (docs/model.md §6 step 1).
   expect_round_trip(design_with(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
                                        {"supply.v_reference", "3.0V"}})),
                     "absolute");
@@ -171,7 +171,7 @@ TEST(ChainStages, TheFrontEndIsItsAnalogStageThenTheAdcStageToTheBit) {
 }
 
 TEST(ChainSpread, RtdClassFactorMovesTheReadingByExactlyTheClassBound) {
-  // model.md §1: R_unit(t) = R_nom(t + k·bound(t)); the exact conversion
+  // docs/model.md §1: R_unit(t) = R_nom(t + k·bound(t)); the exact conversion
   // reads that unit at t + k·bound(t). IEC 60751 class B: 0.30 + 0.005|t|.
   const Design d = design_with(ideal({{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"divider.r_fixed", "100"},
                                       {"sensor.rtd_class", "B"}, {"conditions.t_min", "-50"}, {"conditions.t_max", "400"}}));
@@ -225,7 +225,7 @@ TEST(Divider, NodeVoltageWithLeakageMatchesNodalAnalysis) {
 }
 
 TEST(Divider, FixedResistorTempcoActsAtTheBoardTemperature) {
-  // model.md §3: R_fixed·(1 + δ)(1 + α(T_b − 25 °C)). A tempco deviation α
+  // docs/model.md §3: R_fixed·(1 + δ)(1 + α(T_b − 25 °C)). A tempco deviation α
   // equals a tolerance deviation α·(T_b − 25).
   for (const char* board : {"40", "sensor"}) {
     const Design d = design_with(ideal({{"conditions.board", board}}));
@@ -256,7 +256,7 @@ TEST(Divider, BoardRangeDeviationIsMeasuredFromItsMiddle) {
 }
 
 TEST(Supply, AbsoluteExcitationAndReferenceScaleTheCode) {
-  // x = V/V_ref·2^N (model.md §5) with V ∝ V_exc: +1 % on the excitation is
+  // x = V/V_ref·2^N (docs/model.md §5) with V ∝ V_exc: +1 % on the excitation is
   // +1 % on the code, +1 % on the reference is the code divided by 1.01.
   const Design d = design_with(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
                                       {"supply.v_reference", "3.0V"}, {"conditions.board", "45"}}));
@@ -272,7 +272,7 @@ TEST(Supply, AbsoluteExcitationAndReferenceScaleTheCode) {
 }
 
 TEST(Adc, StaticTransferHasGainOffsetAndAMidScaleBow) {
-  // model.md §5: x' = x(1 + g) + o + i·4u(1 − u): the bow is 0 at both ends
+  // docs/model.md §5: x' = x(1 + g) + o + i·4u(1 − u): the bow is 0 at both ends
   // of the span and i at mid-scale.
   const double span = 4096.0;
   EXPECT_EQ(adc_static(0.0, span, 0.0, 0.0, 1.5), 0.0);
@@ -290,7 +290,7 @@ TEST(Adc, QuantiserRoundsHalfUpOrTruncates) {
 }
 
 TEST(Adc, AReadingIsTheMeanOfItsSamplesAndAnyClampedSampleSaturatesIt) {
-  // model.md §5: s = Q(x' + n) clamped to [0, 2^N − 1]; a reading is the mean
+  // docs/model.md §5: s = Q(x' + n) clamped to [0, 2^N − 1]; a reading is the mean
   // of M samples; any clamped sample saturates the reading.
   const double no_noise[4] = {0.0, 0.0, 0.0, 0.0};
   const double noise[4] = {0.2, -0.2, 0.7, -0.7};
@@ -402,7 +402,7 @@ TEST(Calibration, CalibratesTheSameUnitAtTheSameBoardCorner) {
 }
 
 TEST(Calibration, OutputIsRoundedBeforeTheCalibrationIsApplied) {
-  // model.md §6: step 4 (rounding) comes before step 5 (calibration), so a
+  // docs/model.md §6: step 4 (rounding) comes before step 5 (calibration), so a
   // reported value is a multiple of the resolution shifted by
   // (reference − rounded reading at t_cal): with a reference error of
   // 0.03 K, reported − 0.03 − 25 + round(reading at 25) is a multiple of 0.5.

@@ -1,4 +1,4 @@
-// Checks of the command-line program as a user meets it (interface.md):
+// Checks of the command-line program as a user meets it (README.md, docs/):
 // bad input is one line on stderr naming the file, the line and the key and
 // what would be accepted, the exit status is 2, and --output leaves no file
 // behind; good input exits 0 with the documented JSON fields; points that
@@ -144,7 +144,7 @@ TEST_F(Cli, BudgetJsonCarriesTheInterfaceFields) {
 }
 
 TEST_F(Cli, SaturatedPointsAreFlaggedAndCarryNoError) {
-  // interface.md: points that saturate the ADC carry "saturated": true and no
+  // docs/model.md §5 and §8: points that saturate the ADC carry "saturated": true and no
   // error fields. 10k/10k from 3.3 V into a 1.0 V reference saturates while
   // the NTC is above 4.35 kΩ, below about 45 °C.
   const Outcome r = run("budget --format json --supply.ratiometric=false --supply.v_reference=1.0V "

@@ -1,4 +1,4 @@
-// Determinism of the commands that draw random numbers (model.md §7: Monte
+// Determinism of the commands that draw random numbers (docs/engines.md: Monte
 // Carlo results depend only on the seed and the units, never on the thread
 // count): the same inputs give byte-identical output run after run and for
 // 1, 2 and 8 worker threads, in every format. budget is covered by

@@ -1,4 +1,4 @@
-// Checks of the firmware's conversion (firmware.hpp, model.md §6): the
+// Checks of the firmware's conversion (firmware.hpp, docs/model.md §6): the
 // full-scale convention, the beta and Steinhart–Hart conversions and their
 // defaults, the lookup table (its code span, its integer storage, its linear
 // interpolation) and the output rounding. Hand formulas are the second
@@ -59,7 +59,7 @@ TEST(FirmwareConversion, FirmwareBetaMayDifferFromTheSensors) {
 }
 
 TEST(FirmwareConversion, FullScaleOfTwoToTheNMinusOneReadsTheRatioLarger) {
-  // FS = 2^N − 1 (model.md §6): ρ = c/(2^N − 1) while the ADC's code is
+  // FS = 2^N − 1 (docs/model.md §6): ρ = c/(2^N − 1) while the ADC's code is
   // V/V_ref·2^N; the systematic error is what the inverted divider makes of it.
   const Design d = design_with(ideal_converter({{"adc.bits", "12"}, {"firmware.full_scale", "pow2-minus-1"}}));
   const Chain chain(d);
@@ -83,7 +83,7 @@ TEST(FirmwareConversion, CodesOutsideTheDividerHaveNoConversion) {
 }
 
 TEST(FirmwareConversion, DefaultSteinhartHartPassesThroughTheCurveAtTheRangeEndsAndMiddle) {
-  // model.md §6: the firmware's own a/b/c default to the Steinhart–Hart
+  // docs/model.md §6: the firmware's own a/b/c default to the Steinhart–Hart
   // curve through the nominal curve at t_min, the middle and t_max. A Pt1000
   // (IEC 60751) is then read exactly there and not quite between.
   const Design d = design_with(ideal_converter({{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"divider.r_fixed", "1k"},
@@ -122,7 +122,7 @@ TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRang
 }
 
 TEST(FirmwareConversion, OutputRoundingIsHalfUpToTheResolution) {
-  // docs/model.md §6 step 4: ⌊t/r + ½⌋·r, the same half-up rule as the quantiser (model.md §5).
+  // docs/model.md §6 step 4: ⌊t/r + ½⌋·r, the same half-up rule as the quantiser (docs/model.md §5).
   const Design d = design_with({{"firmware.resolution", "0.1"}});
   const Firmware fw(d);
   EXPECT_NEAR(fw.round_output(21.34), 21.3, output_tolerance);

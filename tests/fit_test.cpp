@@ -178,9 +178,9 @@ TEST(FitSteinhartHart, RecoversPublishedCoefficients) {
   }
 }
 
-// The reference values print R(0 °C) = 32650.375, R(25 °C) = 9999.854,
-// R(50 °C) = 3601.035, R(100 °C) = 678.4235 Ω (docs reference-values.md §Sensors,
-// from the common-practice coefficients). Rounding to the printed digit moves
+// The Steinhart–Hart equation (Steinhart & Hart 1968) with the common-practice
+// coefficients gives R(0 °C) = 32650.375, R(25 °C) = 9999.854,
+// R(50 °C) = 3601.035, R(100 °C) = 678.4235 Ω, rounded as printed here. Rounding to the printed digit moves
 // each ln R by at most δ = (half a unit of the last digit)/R, which moves that
 // point's 1/T by |B + 3C ln²R|·δ; the coefficients of the exact fit through
 // three points then move by at most Σ |M⁻¹|·|δ(1/T)|. That bound, computed
@@ -487,7 +487,7 @@ TEST(FitResiduals, AreModelTemperatureMinusPointTemperatureAndCountOnlyInsideThe
 // -------------------------------------------------------------- Pt100 (PTC)
 
 TEST(FitPt100, TableFileMatchesIec60751) {
-  // IEC 60751 Pt100 values to 0.001 Ω (docs reference-values.md §Sensors).
+  // Pt100 values computed with the IEC 60751 equation and coefficients, to 0.001 Ω.
   const std::vector<std::pair<double, double>> table = {{-200, 18.520}, {-100, 60.256}, {0, 100.000},
                                                         {200, 175.856}, {400, 247.092}, {600, 313.708},
                                                         {850, 390.481}};

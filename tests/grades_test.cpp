@@ -7,7 +7,8 @@
 // budget engines run on their own on the re-picked design; and a second
 // opinion from NumPy (tests/reference/grades_second_opinion.py, Debian's
 // /usr/bin/python3) that reads the catalogue with Python's csv module and
-// recomputes the worst case, the costs, the front and the recommendation.
+// computes its own worst cases, yields (a NumPy Monte Carlo), costs, front and
+// recommendation, without reading the program's output.
 #include "thermargin/tools/grades.hpp"
 
 #include <nlohmann/json.hpp>
@@ -57,7 +58,7 @@ Outcome cli(const std::string& args) { return testing::run_cli("grades " + args)
 // the divider with the nominal fixed resistor, so a unit reads the
 // resistance R_unit/(1 + δf) and
 //     1/T_est = 1/T + [ln(1 + δR) − ln(1 + δf)]/B + δβ·(1/T − 1/T0)
-// (model.md §1 for the unit's curve, §3 for the divider). T_est falls as
+// (docs/model.md §1 for the unit's curve, §3 for the divider). T_est falls as
 // 1/T_est rises, so the extreme errors sit at the corners (δR, δf) = (±a, ∓f)
 // and δβ = ±b; the B term grows with |1/T − 1/T0|, i.e. away from 25 °C.
 //
@@ -599,22 +600,44 @@ TEST(GradesCli, NumPyAgreesOnWorstCaseCostsFrontAndRecommendation) {
                         " --volume 2000 --reject-cost 1.5 --mc-all --units 2000 --format json --output " +
                         shell_quote(json.string()));
   ASSERT_EQ(r.status, 0) << r.err;
+  // The second opinion reads the catalogue and the design's figures (B, the
+  // window, the volume, the reject cost, the limit, the required yield and
+  // the program's unit count), never the program's output.
   const Outcome py = testing::run_shell(testing::reference_command(
-      "grades_second_opinion.py", shell_quote(cat) + " " + shell_quote(json.string()) + " 3950 0 60 0.5 2000 1.5"));
+      "grades_second_opinion.py", shell_quote(cat) + " 3950 0 60 0.5 2000 1.5 0.47 0.99 2000"));
   ASSERT_EQ(py.status, 0) << py.err;
   const auto tool = nlohmann::json::parse(std::ifstream(json));
   const auto ref = nlohmann::json::parse(py.out);
   ASSERT_EQ(tool["rows"].size(), 8u);
+  int compared = 0, on_front = 0, meets = 0;
   for (const auto& row : tool["rows"]) {
     const std::string key = row["choice"]["r25"].get<std::string>() + "|" + row["choice"]["beta"].get<std::string>() + "|" +
                             row["choice"]["resistor"].get<std::string>();
     SCOPED_TRACE(key);
+    ASSERT_TRUE(ref["rows"].contains(key));
     const auto& mine = ref["rows"][key];
     EXPECT_NEAR(row["wc_max_abs"].get<double>(), mine["wc_max_abs"].get<double>(), kClosedFormTolerance);
     EXPECT_NEAR(row["unit_cost"].get<double>(), mine["unit_cost"].get<double>(), kCostTolerance);
-    EXPECT_NEAR(row["cost_per_good_unit"].get<double>(), mine["cost_per_good_unit"].get<double>(), kCostTolerance);
+    // The yields of two independent samples: within the binomial interval of both sizes.
+    EXPECT_GE(row["yield"].get<double>(), mine["yield_interval"][0].get<double>());
+    EXPECT_LE(row["yield"].get<double>(), mine["yield_interval"][1].get<double>());
+    EXPECT_GE(row["cost_per_good_unit"].get<double>(), mine["cost_per_good_unit_interval"][0].get<double>() - kCostTolerance);
+    EXPECT_LE(row["cost_per_good_unit"].get<double>(), mine["cost_per_good_unit_interval"][1].get<double>() + kCostTolerance);
     EXPECT_EQ(row["on_front"].get<bool>(), mine["on_front"].get<bool>());
+    EXPECT_EQ(row["meets_requirement"].get<bool>(), mine["meets"].get<bool>());
+    on_front += mine["on_front"].get<bool>();
+    meets += mine["meets"].get<bool>();
+    ++compared;
   }
+  EXPECT_EQ(compared, 8);
+  // Neither answer is trivial: some rows on the front and some off, some meet and some do not.
+  EXPECT_GT(on_front, 0);
+  EXPECT_LT(on_front, 8);
+  EXPECT_GT(meets, 0);
+  EXPECT_LT(meets, 8);
+  // The model's recommendation is decided beyond its sampling (no cost interval
+  // overlaps it, no yield straddles the requirement), so the program must agree.
+  ASSERT_TRUE(ref["recommendation_robust"].get<bool>());
   ASSERT_FALSE(tool["recommendation"].is_null());
   const auto& rec = tool["recommendation"]["choice"];
   EXPECT_EQ(rec["r25"].get<std::string>() + "|" + rec["beta"].get<std::string>() + "|" + rec["resistor"].get<std::string>(),

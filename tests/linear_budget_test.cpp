@@ -4,6 +4,7 @@
 #include "thermargin/engines/linear_budget.hpp"
 
 #include <cmath>
+#include <map>
 #include <cstdio>
 #include <memory>
 
@@ -75,28 +76,49 @@ TEST(LinearBudget, GappedUncertaintyMatchesScipyIntegration) {
 }
 
 TEST(LinearBudget, CoverageFactorIsTheNormalQuantile) {
-  // 99.73 % ↔ k = 3.0 (model.md §7); 95 % ↔ 1.959964 (normal tables).
+  // 99.73 % ↔ k = 3.0 (docs/engines.md); 95 % ↔ 1.959964 (normal tables).
   EXPECT_NEAR(coverage_factor(0.9973), 3.0, 1e-3);
   EXPECT_NEAR(coverage_factor(0.95), 1.959964, 1e-6);
 }
 
-TEST(LinearBudget, ContributorSharesSumToOneAtEveryTemperature) {
+TEST(LinearBudget, EachShareIsItsTermsVarianceOverTheSumAtEveryTemperatureAndOverTheWindow) {
+  // docs/engines.md: a source's share is (c_i u_i)² / u_c² at a temperature,
+  // and over the window its summed variance over the window's summed u_c².
+  // Recomputed here from the linear terms (a consistency check of the table
+  // against the budget's own terms; the terms themselves are checked against
+  // the independent model in chain_second_opinion_test.cpp).
+  int compared = 0, windows = 0;
   for (const auto& file : testing::scenario_files()) {
     const Design d = testing::design_with({{"montecarlo.units", "1000"}}, file);
     const Chain chain(d);
     BudgetOptions o;
     o.monte_carlo = false;
     const Budget b = run_budget(chain, o);
+    std::map<std::string, double> window_var;
+    double window_total = 0.0;
     for (const auto& p : b.points) {
-      if (p.contributors.empty()) continue;
-      double sum = 0.0;
-      for (const auto& c : p.contributors) sum += c.share;
-      EXPECT_NEAR(sum, 1.0, 1e-12) << file << " at " << p.t;
+      ASSERT_FALSE(p.contributors.empty()) << file << " at " << p.t;  // every scenario reads everywhere
+      std::map<std::string, double> var;
+      for (const auto& t : p.linear.terms) var[t.name] = t.contribution * t.contribution;
+      const double total = p.linear.u_c * p.linear.u_c;
+      ASSERT_EQ(p.contributors.size(), var.size());
+      for (const auto& c : p.contributors) {
+        ASSERT_TRUE(var.count(c.name)) << c.name;
+        EXPECT_NEAR(c.share, var[c.name] / total, 1e-12) << file << " at " << p.t << " " << c.name;
+        ++compared;
+      }
+      if (!p.in_window) continue;  // the window's sums take the window's temperatures only
+      for (const auto& [name, v] : var) window_var[name] += v;
+      window_total += total;
     }
-    double window = 0.0;
-    for (const auto& c : b.window_contributors) window += c.share;
-    EXPECT_NEAR(window, 1.0, 1e-12) << file;
+    ASSERT_FALSE(b.window_contributors.empty());
+    for (const auto& c : b.window_contributors) {
+      EXPECT_NEAR(c.share, window_var[c.name] / window_total, 1e-12) << file << " " << c.name;
+      ++windows;
+    }
   }
+  EXPECT_GT(compared, 1000);
+  EXPECT_GT(windows, 6 * 8);
 }
 
 TEST(LinearBudget, FloorQuantiserCentresTheBandHalfAnLsbLow) {

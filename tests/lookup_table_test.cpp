@@ -291,7 +291,7 @@ INSTANTIATE_TEST_SUITE_P(
 // ---------------------------------------------------------------------------
 // The error against an independent computation.
 
-// The model's contract (model.md §1, §3, §6) written out in NumPy: the beta
+// The model's contract (docs/model.md §1, §3, §6) written out in NumPy: the beta
 // curve's codes at t_min and t_max, the firmware's exact inversion at every
 // code between them, numpy.interp over the emitted rows.
 constexpr const char* numpy_error = R"PY(

@@ -9,7 +9,8 @@ namespace thermargin {
 namespace {
 
 // The widely published 10 kΩ Steinhart–Hart coefficients (common practice)
-// and the values they give (reference-values.md §Sensors).
+// (Steinhart & Hart, Deep-Sea Research 15, 1968, for the equation) and the
+// values they give, computed with that equation (docs/checks.md).
 constexpr SteinhartHart published{1.129148e-3, 2.34125e-4, 8.76741e-8};
 constexpr double resistance_digits = 5e-4;  // Ω: the check values carry 3–4 decimals
 
@@ -50,7 +51,8 @@ TEST(SteinhartHart, ThreePointFitReproducesCoefficients) {
 }
 
 TEST(Beta, TenKilohmB3950At50DegreesIs3588Ohm) {
-  // A 10 kΩ NTC with B = 3950 K reads 3588.2 Ω at 50 °C (common practice).
+  // A 10 kΩ NTC with B = 3950 K reads 3588.2 Ω at 50 °C: computed with the beta
+  // equation of IEC 60539-1, R25·exp(B(1/T − 1/T0)) (the pairing itself is common practice).
   EXPECT_NEAR(std::exp(ln_resistance(BetaCurve{10e3, 3950}, to_k(50))), 3588.2, 0.05);
 }
 

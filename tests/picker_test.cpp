@@ -1,13 +1,13 @@
 // Checks of the fixed-resistor picker (picker.hpp) and `thermargin pick`.
 //
-// Second opinions: the engines themselves run on every candidate by brute
-// force (run_budget, monte_carlo: no pruning, no picker code); SciPy's
-// bounded scalar minimiser on a re-implementation of the worst-case
-// objective from model.md (tests/reference/pick_worst_case.py, Debian's
+// Consistency checks (the program's own engines, not second opinions): the
+// engines run on every candidate by brute force (run_budget, monte_carlo: no
+// pruning, no picker code). Outside checks: SciPy's bounded scalar minimiser on a re-implementation of the worst-case
+// objective from docs/model.md (tests/reference/pick_worst_case.py, Debian's
 // /usr/bin/python3); the textbook maximum-sensitivity condition R_f = R(Tm),
 // derived below; and the three-point linearisation of Pallàs-Areny &
 // Webster (Sensors and Signal Conditioning, eq. 2.37, from a secondary
-// source per reference-values.md), checked by the property it is built on.
+// source), checked by the property it is built on.
 #include "thermargin/tools/picker.hpp"
 
 #include <nlohmann/json.hpp>
@@ -145,7 +145,7 @@ TEST(Picker, LinearisingResistorHasNoPositiveValueForANearlyStraightRtd) {
   EXPECT_FALSE(linearising_resistor(1.0, 2.0, 3.0));  // already straight: no finite value
 }
 
-// Derivation (the textbook result of reference-values.md): with the sensor
+// Derivation (a textbook result, derived here): with the sensor
 // branch R(T) at the bottom of the divider, ρ = R/(R_f + R), so
 //   dρ/dT = R_f·R'/(R_f + R)²   and   ∂(dρ/dT)/∂R_f = R'·(R − R_f)/(R_f + R)³,
 // which vanishes only at R_f = R and changes sign there: |dρ/dT| at Tm is
@@ -233,7 +233,7 @@ TEST(Picker, WinnerEqualsABruteForceWorstCaseOfEveryCandidateOnEveryScenario) {
   }
 }
 
-// Every toleranced input of model.md active at once (an NTC with a parallel
+// Every toleranced input of docs/model.md active at once (an NTC with a parallel
 // resistor, an absolute supply, leakage, a two-point calibration, a board
 // range): 17 inputs, one more than the worst case enumerates, so the engine
 // searches from the two sensitivity-directed corners (worst_case.hpp).
@@ -373,7 +373,7 @@ TEST(Picker, ConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestFe
 // element temperature SciPy solves (tests/reference/self_heating.py, brentq
 // on T_e − T − P(T_e)/δ): the rise over t_min..t_max, the divider current
 // V/(R_f + R(T_e)) and its power, and the share of 2^N the nominal code
-// 2^N·R/(R_f + R) spans over the window (model.md §3, §5).
+// 2^N·R/(R_f + R) spans over the window (docs/model.md §3, §5).
 struct OutsideFigures {
   double max_self_heating = 0.0, max_current = 0.0, max_power = 0.0, span = 0.0;
 };

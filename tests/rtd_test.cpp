@@ -1,7 +1,7 @@
 // Checks of the platinum RTD curve (rtd.hpp) against IEC 60751: the
 // Callendar–Van Dusen equation with the standard's coefficients, its Pt100
-// table, and the tolerance classes of the 2008 edition
-// (reference-values.md §Sensors).
+// table as printed in IEC 60751:2008 (0.01 Ω), values computed with the
+// equation (0.001 Ω), and the tolerance classes of the 2008 edition.
 #include "thermargin/chain/rtd.hpp"
 
 #include <cmath>
@@ -30,18 +30,19 @@ void expect_equation_value(double t, double r_equation) {
   EXPECT_NEAR(temperature_celsius(pt100, r_equation), t, inverse_tolerance) << r_equation << " ohm";
 }
 
-// IEC 60751 equation values to 0.001 Ω (reference-values.md).
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAtMinus200C) { expect_equation_value(-200, 18.520); }
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAtMinus100C) { expect_equation_value(-100, 60.256); }
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAt0C) { expect_equation_value(0, 100.000); }
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAt100C) { expect_equation_value(100, 138.506); }
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAt200C) { expect_equation_value(200, 175.856); }
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAt400C) { expect_equation_value(400, 247.092); }
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAt600C) { expect_equation_value(600, 313.708); }
-TEST(RtdCallendarVanDusen, MatchesIec60751TableAt850C) { expect_equation_value(850, 390.481); }
+// Computed with the IEC 60751 equation and coefficients, to 0.001 Ω (IEC 60751
+// prints its table to 0.01 Ω: the printed values are the next test).
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAtMinus200C) { expect_equation_value(-200, 18.520); }
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAtMinus100C) { expect_equation_value(-100, 60.256); }
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAt0C) { expect_equation_value(0, 100.000); }
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAt100C) { expect_equation_value(100, 138.506); }
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAt200C) { expect_equation_value(200, 175.856); }
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAt400C) { expect_equation_value(400, 247.092); }
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAt600C) { expect_equation_value(600, 313.708); }
+TEST(RtdCallendarVanDusen, MatchesTheIec60751EquationAt850C) { expect_equation_value(850, 390.481); }
 
 TEST(RtdCallendarVanDusen, MatchesThePrintedPt100TableToTwoDecimals) {
-  // The IEC 60751 Pt100 table as printed, 0.01 Ω (reference-values.md).
+  // The Pt100 table as printed in IEC 60751:2008, 0.01 Ω.
   const std::pair<double, double> printed[] = {{-200, 18.52}, {-100, 60.26}, {0, 100.00}, {100, 138.51},
                                                {200, 175.86}, {400, 247.09}, {600, 313.71}};
   for (const auto& [t, r] : printed) EXPECT_NEAR(resistance(pt100, t), r, table_digits) << t;

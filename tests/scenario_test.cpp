@@ -1,4 +1,4 @@
-// Checks of scenarios (scenario.hpp, interface.md): scenarios/default.ini is
+// Checks of scenarios (scenario.hpp, docs/scenarios.md): scenarios/default.ini is
 // the built-in default design key for key; files record each key's line;
 // the command line overrides a file; malformed files are refused with file
 // and line; checks between two keys name the one that was set; every
@@ -52,7 +52,7 @@ class ScenarioFile : public ::testing::Test {
 };
 
 TEST(DefaultScenario, FileHoldsTheBuiltInDesignKeyForKey) {
-  // interface.md: scenarios/default.ini holds the same values as the built-in
+  // docs/scenarios.md: scenarios/default.ini holds the same values as the built-in
   // default, and a test keeps the two identical.
   const Scenario built_in;
   Scenario file;
@@ -279,7 +279,7 @@ TEST_F(ScenarioFile, TableFileIsFoundBesideTheScenario) {
 }
 
 TEST_F(ScenarioFile, TableToleranceNeeds25CInTheTable) {
-  // The NTC spread is defined about 25 °C (model.md §1): a table without it
+  // The NTC spread is defined about 25 °C (docs/model.md §1): a table without it
   // cannot carry an R25 or beta tolerance.
   std::ofstream(dir_.path / "cold.csv") << "t,r\n-40,336097\n-30,177000\n-20,97070\n-10,55330\n0,32650\n";
   const std::string message = refusal("[sensor]\nmodel = table\ntable_file = cold.csv\n"

@@ -1,5 +1,5 @@
 // Checks of the self-heating solution (self_heating.hpp, chain.cpp):
-// T_element = T_true + d·P/δ, P = V_element²/R(T_element) (model.md §2,
+// T_element = T_true + d·P/δ, P = V_element²/R(T_element) (docs/model.md §2,
 // IEC 60539-1's dissipation constant δ = ΔP/ΔT), solved to 1e-9 K, with
 // thermal runaway reported as a status. The second opinion is SciPy's brentq
 // on T_e − T − d·V_e²/(R(T_e)·δ) = 0 for the same divider
@@ -49,7 +49,7 @@ TEST(SelfHeatingSolver, ConvergesToTheFixedPointOfALinearRise) {
 }
 
 TEST(SelfHeatingSolver, ReportsRunawayWhenTheLoopGainReachesOne) {
-  // |g| ≥ 1: the iteration cannot contract (model.md §2: runaway is an error,
+  // |g| ≥ 1: the iteration cannot contract (docs/model.md §2: runaway is an error,
   // never a number). A negative gain this large needs a rise of at least
   // T²/B (tens of kelvin for an NTC) and is reported the same way.
   for (double g : {1.0, 1.5, 40.0, -1.5}) {

@@ -1,5 +1,5 @@
 // Checks of the sensing element of one unit (sensor.hpp): the nominal curve
-// of every model, its inverse and slope, and the unit spread of model.md §1 —
+// of every model, its inverse and slope, and the unit spread of docs/model.md §1 —
 // for an NTC ln R_unit = ln R(T0) + ln(1 + δR) + (1 + δβ)(ln R − ln R(T0)),
 // which for the beta model is exactly R25·(1 + δR) and B·(1 + δβ); for an RTD
 // R_unit(t) = R_nom(t + k·bound(t)) with the IEC 60751 class bound.
@@ -67,7 +67,7 @@ TEST(SensorCurve, RtdModelIsTheCallendarVanDusenCurveOfItsR0) {
 }
 
 TEST(NtcSpread, BetaModelIsExactlyR25TimesOnePlusDeltaRAndBetaTimesOnePlusDeltaBeta) {
-  // model.md §1: for the beta model the stretch is exactly a new R25 and B.
+  // docs/model.md §1: for the beta model the stretch is exactly a new R25 and B.
   const Design d = design_with({{"sensor.model", "beta"}, {"sensor.r25", "10k"}, {"sensor.beta", "3435"}});
   for (const auto& [dr, db] : {std::pair{0.01, 0.0}, {0.0, -0.015}, {-0.05, 0.02}, {0.003, 0.007}}) {
     const SensorUnit unit(d.sensor, dr, db, 0.0);
@@ -79,8 +79,10 @@ TEST(NtcSpread, BetaModelIsExactlyR25TimesOnePlusDeltaRAndBetaTimesOnePlusDeltaB
 
 TEST(NtcSpread, ToleranceBandIsNarrowestAt25C) {
   // A beta deviation leaves R(25 °C) alone and grows with |1/T − 1/T0|.
+  int ntc_models = 0;
   for (const Design& d : every_model()) {
     if (!d.is_ntc()) continue;
+    ++ntc_models;
     const SensorUnit unit(d.sensor, 0.0, 0.02, 0.0);
     const double at_t0 = *unit.ln_resistance(t0_kelvin) - *nominal_ln_resistance(d.sensor, t0_kelvin);
     EXPECT_NEAR(at_t0, 0.0, ln_r_tolerance);
@@ -91,14 +93,17 @@ TEST(NtcSpread, ToleranceBandIsNarrowestAt25C) {
       previous = spread;
     }
   }
+  EXPECT_EQ(ntc_models, 3);  // beta, Steinhart–Hart and table
 }
 
 TEST(NtcSpread, StretchesEveryNtcModelAbout25C) {
-  // model.md §1, the same stretch for Steinhart–Hart and tables: at 25 °C the
+  // docs/model.md §1, the same stretch for Steinhart–Hart and tables: at 25 °C the
   // shift is ln(1 + δR); elsewhere the distance from ln R(T0) grows by (1 + δβ).
   const double dr = 0.02, db = -0.01;
+  int ntc_models = 0;
   for (const Design& d : every_model()) {
     if (!d.is_ntc()) continue;
+    ++ntc_models;
     const SensorUnit unit(d.sensor, dr, db, 0.0);
     const double l0 = *nominal_ln_resistance(d.sensor, t0_kelvin);
     EXPECT_NEAR(*unit.ln_resistance(t0_kelvin) - l0, std::log(1 + dr), ln_r_tolerance);
@@ -108,10 +113,11 @@ TEST(NtcSpread, StretchesEveryNtcModelAbout25C) {
       EXPECT_NEAR(unit_distance, (1 + db) * nominal_distance, ln_r_tolerance) << t;
     }
   }
+  EXPECT_EQ(ntc_models, 3);  // beta, Steinhart–Hart and table
 }
 
 TEST(RtdSpread, ClassFactorShiftsTheCurveByTheClassBound) {
-  // model.md §1 and IEC 60751 class B ±(0.30 + 0.005|t|): a unit with k = ±1
+  // docs/model.md §1 and IEC 60751 class B ±(0.30 + 0.005|t|): a unit with k = ±1
   // has the resistance the nominal element has at t ± bound(t).
   const Design d = every_model()[3];
   for (double k : {-1.0, -0.25, 1.0}) {

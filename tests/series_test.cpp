@@ -1,5 +1,5 @@
 // Checks of the preferred-number series (series.hpp) against IEC 60063:
-// E24 in full as reference-values.md quotes it, E48/E96/E192 against an
+// E24 in full as IEC 60063 publishes it, E48/E96/E192 against an
 // independent generation with NumPy (round(100·10^(i/n)), run with Debian's
 // /usr/bin/python3) and the published exception (E192 holds 920 where the
 // formula gives 919), and the nesting of the series.
@@ -29,12 +29,12 @@ std::vector<int> numpy_figures(int n) {
 }
 
 TEST(Series, E24IsThePublishedListWithItsHistoricalValues) {
-  // IEC 60063, as quoted in reference-values.md.
+  // IEC 60063's E24 as published.
   const std::vector<int> published{10, 11, 12, 13, 15, 16, 18, 20, 22, 24, 27, 30,
                                    33, 36, 39, 43, 47, 51, 56, 62, 68, 75, 82, 91};
   EXPECT_EQ(series_figures(Series::e24), published);
   // The historical values 2.7–4.7 and 8.2 are the ones that differ from the
-  // rounded geometric progression round(10·10^(i/24)) (reference-values.md).
+  // rounded geometric progression round(10·10^(i/24)) (IEC 60063).
   std::vector<int> differing;
   for (int i = 0; i < 24; ++i)
     if (std::lround(10.0 * std::pow(10.0, i / 24.0)) != published[static_cast<std::size_t>(i)]) differing.push_back(published[static_cast<std::size_t>(i)]);
@@ -64,7 +64,7 @@ TEST(Series, E192DiffersFromTheFormulaOnlyAt920) {
   for (std::size_t i = 0; i < e192.size(); ++i) {
     if (e192[i] == formula[i]) continue;
     ++differences;
-    EXPECT_EQ(formula[i], 919);  // reference-values.md: IEC 60063 publishes 920
+    EXPECT_EQ(formula[i], 919);  // IEC 60063 publishes 920
     EXPECT_EQ(e192[i], 920);
   }
   EXPECT_EQ(differences, 1);

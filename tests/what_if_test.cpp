@@ -91,13 +91,16 @@ TEST(WhatIf, ImprovingOnePartNeverWidensTheWorstCaseOfAnyScenario) {
     const Budget b = run_budget(chain, no_mc());
     const WhatIf w = what_if(chain, b);
     EXPECT_FALSE(w.rows.empty()) << file;
+    std::size_t compared = 0;
     for (const auto& r : w.rows) {
       EXPECT_NE(r.name, "quantization") << file;
       EXPECT_FALSE(r.key.empty()) << file << " " << r.name;
       if (!w.as_designed.readable || !r.removed.readable || !r.halved.readable) continue;
       EXPECT_LE(r.removed.wc_max_abs, w.as_designed.wc_max_abs + 1e-9) << file << " " << r.name;
       EXPECT_LE(r.halved.wc_max_abs, w.as_designed.wc_max_abs + 1e-9) << file << " " << r.name;
+      ++compared;
     }
+    EXPECT_EQ(compared, w.rows.size()) << file << ": every shipped scenario reads its window";
   }
 }
 

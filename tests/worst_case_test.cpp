@@ -84,11 +84,14 @@ TEST(WorstCase, DirectedCornersEqualFullEnumerationOnEveryScenario) {
     const WorstCase directed = worst_case(chain, temps, CornerMethod::directed);
     ASSERT_FALSE(full.directed);
     ASSERT_TRUE(directed.directed);
+    std::size_t compared = 0;
     for (std::size_t i = 0; i < temps.size(); ++i) {
       if (full.points[i].failed_corners > 0) continue;  // compared where every corner reads
       EXPECT_NEAR(directed.points[i].low, full.points[i].low, tight) << file << " at " << temps[i];
       EXPECT_NEAR(directed.points[i].high, full.points[i].high, tight) << file << " at " << temps[i];
+      ++compared;
     }
+    EXPECT_EQ(compared, temps.size()) << file << ": no shipped scenario has a failing corner";
   }
 }
 
@@ -114,7 +117,7 @@ TEST(WorstCase, RoundQuantiserAloneIsHalfAnLsbOverTheSensitivity) {
 }
 
 TEST(WorstCase, OffsetCalibrationReadingHasItsOwnQuantisationInterval) {
-  // model.md §7: the calibration reading of the same unit carries its own,
+  // docs/engines.md (Worst case): the calibration reading of the same unit carries its own,
   // independent reading interval. With every tolerance zero and an ideal
   // round quantiser, an offset calibration at 25 °C leaves
   // error(t) = e_q(t) − e_q(25 °C), each e_q within ±½ LSB over its own
@@ -173,7 +176,7 @@ TEST(WorstCase, LinearSumAgreesToFirstOrderAndTheGapShrinksQuadratically) {
 }
 
 TEST(WorstCase, ReadingIntervalFollowsTheQuantiserAndNoise) {
-  // model.md §7: [−½, +½] LSB for round, [−1, 0] for floor, widened by
+  // docs/engines.md: [−½, +½] LSB for round, [−1, 0] for floor, widened by
   // ± k_noise·σ/√M.
   Design d = design_with({{"adc.noise", "0.8"}, {"adc.averaging", "4"}, {"montecarlo.noise_k", "3"}});
   ReadingInterval q = reading_interval(d);
@@ -185,7 +188,7 @@ TEST(WorstCase, ReadingIntervalFollowsTheQuantiserAndNoise) {
   EXPECT_DOUBLE_EQ(q.hi, 0.0);
 }
 
-// The worst case by its definition (model.md §7), with no worst-case code:
+// The worst case by its definition (docs/engines.md), with no worst-case code:
 // every corner of the box through Chain::evaluate, with every reading (at t
 // and at each calibration point) at either end of its interval and every
 // converted temperature at either end of its rounding. A corner fails when

@@ -4,7 +4,7 @@
 Usage: budget_worst_case.py SCENARIO.ini
 
 Reads the scenario with Python's configparser and re-implements, from
-model.md alone, the worst case of model.md section 7 for the designs it
+docs/model.md alone, the worst case of docs/engines.md for the designs it
 covers: a beta NTC, self-heating, a fixed resistor with tolerance and tempco
 at a board temperature range, a ratiometric divider without leads, leakage
 or parallel resistor, an ADC with gain, offset and INL bow, the round
@@ -38,7 +38,7 @@ PREFIX = {"p": 1e-12, "n": 1e-9, "u": 1e-6, "m": 1e-3, "k": 1e3, "M": 1e6}
 
 
 def number(text):
-    """Engineering notation as interface.md writes it: 10k, 4k7, 1%, 100ppm, 1.5mW/K, 3.3V."""
+    """Engineering notation as docs/scenarios.md writes it: 10k, 4k7, 1%, 100ppm, 1.5mW/K, 3.3V."""
     s = text.strip().replace(" ", "")
     scale = 1.0
     for unit, f in (("%", 1e-2), ("ppm", 1e-6), ("W/K", 1.0), ("V", 1.0), ("ohm", 1.0)):
@@ -91,7 +91,7 @@ def read(path):
 
 
 def element_temperature(T, r25, beta, rf, v_exc, gain):
-    """T_el = T + d/delta * V_el^2 / R(T_el) for the element at the bottom of the divider (model.md section 2)."""
+    """T_el = T + d/delta * V_el^2 / R(T_el) for the element at the bottom of the divider (docs/model.md section 2)."""
     def excess(te):
         r = r25 * np.exp(beta * (1 / te - 1 / T0))
         v = v_exc * r / (rf + r)

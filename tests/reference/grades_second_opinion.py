@@ -1,10 +1,12 @@
 """Second opinion on `thermargin grades` for a catalogue of NTC and fixed-
 resistor grades on an otherwise ideal chain, computed with NumPy alone.
 
-Usage: grades_second_opinion.py CATALOGUE.csv GRADES.json B WINDOW_MIN WINDOW_MAX STEP VOLUME REJECT_COST
+Usage: grades_second_opinion.py CATALOGUE.csv B WINDOW_MIN WINDOW_MAX STEP VOLUME REJECT_COST
+                                LIMIT REQUIRED_YIELD PROGRAM_UNITS
 
 The catalogue is read with Python's csv module (its own RFC 4180 reader).
-For every combination the script computes, independently of the tool:
+Nothing of the program's output is read: for every combination the script
+computes, independently of the tool:
 
 - the worst case over the window in closed form. With the firmware using
   the sensor's own beta curve, an ideal ADC and no self-heating, a unit with
@@ -13,14 +15,23 @@ For every combination the script computes, independently of the tool:
   (the divider's ratio is inverted with the nominal fixed resistor, so the
   resistance seen is R_unit / (1 + dF)); the extreme errors are at the eight
   corners of (dR, dB, dF), all enumerated here on the window's grid;
+- the yield: a NumPy Monte Carlo of the same closed form, MODEL_UNITS units
+  with each tolerance normal with sigma = bound / 3 (docs/engines.md), the
+  share whose largest |error| over the window is within LIMIT; and the
+  interval the program's yield from PROGRAM_UNITS units must fall in,
+  z * sqrt(y(1 - y)(1/n1 + 1/n2)) with z = 4.5 (docs/checks.md);
 - the cost per unit, sum(unit_cost) + sum(setup_cost) / VOLUME, and the cost
-  per good unit, cost / y + REJECT_COST * (1 - y) / y, with the tool's yield y;
-- the cost/accuracy front from those costs and the tool's worst-case errors,
-  by the definition: no other point has cost <= and error <= with one <;
-- the cheapest combination whose worst case is within the limit and whose
-  yield (the tool's) reaches the required yield.
+  per good unit, cost / y + REJECT_COST * (1 - y) / y, with this yield, and
+  the interval it spans over the yield's interval;
+- the cost/accuracy front from those costs and these worst cases, by the
+  definition: no other point has cost <= and error <= with one <;
+- the cheapest combination (by cost per good unit) whose worst case is
+  within the limit and whose yield reaches the required yield, and whether
+  that choice is robust: no other candidate's cost interval overlaps it and
+  no combination's yield interval straddles the required yield.
 
-It prints one JSON object: {"rows": {"grade|grade|...": {...}}, "recommendation": "grade|..." or null}.
+It prints one JSON object: {"rows": {"grade|grade|...": {...}},
+"recommendation": "grade|..." or null, "recommendation_robust": bool}.
 """
 import csv
 import itertools
@@ -41,9 +52,29 @@ def fraction(text):
     return float(text)
 
 
+MODEL_UNITS = 200000
+SIGMA_PER_TOL = 3.0  # a normal bound is 3 standard deviations (scenarios/default.ini)
+Z = 4.5
+
+
+def closed_form_error(T, x, beta, dr, db, df):
+    """The error (K) of units (arrays dr, db, df as columns) at temperatures T (a row)."""
+    u = (np.log1p(dr) - np.log1p(df)) / beta + db * x
+    return 1.0 / (1.0 / T + u) - T
+
+
+def model_yield(rng, T, x, beta, a, b, f, limit):
+    good = 0
+    for start in range(0, MODEL_UNITS, 20000):
+        n = min(20000, MODEL_UNITS - start)
+        dr, db, df = (rng.normal(0.0, tol / SIGMA_PER_TOL, (n, 1)) for tol in (a, b, f))
+        good += int(np.sum(np.max(np.abs(closed_form_error(T, x, beta, dr, db, df)), axis=1) <= limit))
+    return good / MODEL_UNITS
+
+
 def main():
-    cat_path, json_path = sys.argv[1], sys.argv[2]
-    beta, wmin, wmax, step, volume, reject = (float(x) for x in sys.argv[3:9])
+    cat_path = sys.argv[1]
+    beta, wmin, wmax, step, volume, reject, limit, required, n1 = (float(x) for x in sys.argv[2:11])
     with open(cat_path, newline="", encoding="utf-8") as f:
         rows = [r for r in csv.DictReader(line for line in f if not line.startswith("#"))]
     slots = []
@@ -60,14 +91,11 @@ def main():
                 settings[k.strip()] = fraction(v)
         options[slot].append({"grade": r["grade"].strip(), "unit": float(r["unit_cost"]),
                               "setup": float(r.get("setup_cost") or 0.0), "settings": settings})
-    tool = json.load(open(json_path, encoding="utf-8"))
-    limit = tool["requirement"]["max_error"]
-    required = tool["requirement"]["yield"]
-    by_choice = {"|".join(r["choice"][s] for s in slots): r for r in tool["rows"]}
 
     t = np.arange(wmin, wmax + step / 2, step)
     T = t + 273.15
     x = 1.0 / T - 1.0 / T0
+    rng = np.random.default_rng(2026)
     out = {}
     for combo in itertools.product(*(options[s] for s in slots)):
         key = "|".join(o["grade"] for o in combo)
@@ -77,25 +105,33 @@ def main():
         a, b, f = s.get("sensor.r25_tol", 0.0), s.get("sensor.beta_tol", 0.0), s.get("divider.r_fixed_tol", 0.0)
         worst = 0.0
         for dr, db, df in itertools.product((-a, a), (-b, b), (-f, f)):
-            u = (np.log1p(dr) - np.log1p(df)) / beta + db * x
-            worst = max(worst, float(np.max(np.abs(1.0 / (1.0 / T + u) - T))))
+            worst = max(worst, float(np.max(np.abs(closed_form_error(T, x, beta, dr, db, df)))))
         cost = sum(o["unit"] for o in combo) + sum(o["setup"] for o in combo) / volume
-        y = by_choice[key]["yield"]
-        good = None if y is None or y <= 0 else cost / y + reject * (1.0 - y) / y
-        out[key] = {"wc_max_abs": worst, "unit_cost": cost, "cost_per_good_unit": good,
-                    "error": by_choice[key]["wc_max_abs"], "yield": y}
+        y = model_yield(rng, T, x, beta, a, b, f, limit)
+        yy = (y * MODEL_UNITS + 0.5) / (MODEL_UNITS + 1)  # continuity correction: never 0 or 1
+        w = Z * np.sqrt(yy * (1 - yy) * (1.0 / n1 + 1.0 / MODEL_UNITS))
+        y_lo, y_hi = max(y - w, 0.0), min(y + w, 1.0)
+        per_good = lambda yv: cost / yv + reject * (1.0 - yv) / yv if yv > 0 else float("inf")
+        out[key] = {"wc_max_abs": worst, "unit_cost": cost, "yield": y, "yield_interval": [float(y - w), float(y + w)],
+                    "cost_per_good_unit": per_good(y), "cost_per_good_unit_interval": [per_good(y_hi), per_good(y_lo)],
+                    "meets": bool(worst <= limit and y >= required),
+                    "meets_undecided": bool(worst <= limit and y_lo < required <= y_hi)}
     keys = list(out)
     cost = np.array([out[k]["unit_cost"] for k in keys])
-    err = np.array([out[k]["error"] for k in keys])
+    err = np.array([out[k]["wc_max_abs"] for k in keys])
     # Dominated: some other point no worse on both and better on one.
     no_worse = (cost[None, :] <= cost[:, None] + 1e-12) & (err[None, :] <= err[:, None])
     better = (cost[None, :] < cost[:, None] - 1e-12) | (err[None, :] < err[:, None])
     dominated = np.any(no_worse & better, axis=1)
     for k, d in zip(keys, dominated):
         out[k]["on_front"] = not bool(d)
-    meets = [k for k in keys if out[k]["wc_max_abs"] <= limit and out[k]["yield"] is not None and out[k]["yield"] >= required]
+    meets = [k for k in keys if out[k]["meets"]]
     rec = min(meets, key=lambda k: out[k]["cost_per_good_unit"]) if meets else None
-    print(json.dumps({"rows": out, "recommendation": rec}))
+    robust = bool(not any(out[k]["meets_undecided"] for k in keys))
+    if rec is not None:
+        hi = out[rec]["cost_per_good_unit_interval"][1]
+        robust = robust and all(out[k]["cost_per_good_unit_interval"][0] > hi for k in meets if k != rec)
+    print(json.dumps({"rows": out, "recommendation": rec, "recommendation_robust": robust}))
 
 
 if __name__ == "__main__":

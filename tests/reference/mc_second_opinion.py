@@ -1,12 +1,13 @@
 #!/usr/bin/env python3
 """An independent Monte Carlo of a beta-NTC divider design with NumPy.
 
-Written from model.md's equations (sensor spread, self-heating, divider with
+Written from docs/model.md's equations (sensor spread, self-heating, divider with
 a tempco'd fixed resistor at a uniformly drawn board temperature, ratiometric
 ADC with gain, offset, bow INL, Gaussian noise and a round quantiser, beta
 conversion, output rounding), with NumPy's own generator: it shares no code
-and no random numbers with thermargin. The C++ test passes the design's
-numbers as key=value arguments and compares the printed statistics.
+and no random numbers with thermargin. bench/run_times.sh passes the design's
+numbers as key=value arguments and times it (the tests compare the program with
+chain_second_opinion.py instead, docs/checks.md).
 
 Prints one line per temperature: t mean stddev low high, then
 "yield <fraction>".

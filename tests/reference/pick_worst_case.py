@@ -4,7 +4,7 @@
 Usage: pick_worst_case.py R25 BETA TOL_R25 TOL_BETA TOL_RF OFFSET GAIN INL BITS
                           T_MIN T_MAX T_STEP R_LOW R_HIGH [R ...]
 
-A re-implementation, from model.md alone, of the worst-case objective for
+A re-implementation, from docs/model.md alone, of the worst-case objective for
 one simple design: a beta NTC at the bottom of a ratiometric divider (no
 self-heating, leads, leakage or parallel resistor, the board at 25 degC so
 the fixed resistor's tempco plays no part), an ADC with offset (LSB), gain

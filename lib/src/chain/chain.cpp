@@ -44,6 +44,9 @@ FrontEnd Chain::front_end(const Deviations& dev, double t_c) const { return adc_
 FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& dev) const {
   if (fe.status != Status::ok) return fe;
   fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset), at(dev, Source::adc_inl));
+#ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
+  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset), 0.0);
+#endif
   return fe;
 }
 

@@ -434,6 +434,9 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
       const double x = v / vref[u] * span;
       const double q = x / span;
       xs[u] = x * (1.0 + g[u]) + o[u] + i[u] * 4.0 * q * (1.0 - q);
+#ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
+      xs[u] = x * (1.0 + g[u]) + o[u];
+#endif
     }
   }
 

@@ -10,7 +10,7 @@ namespace {
 
 constexpr double membership_tolerance = 1e-9;  // relative
 
-// IEC 60063 E24, as published (reference-values.md).
+// IEC 60063 E24, as published.
 const std::vector<int> e24_figures{10, 11, 12, 13, 15, 16, 18, 20, 22, 24, 27, 30,
                                    33, 36, 39, 43, 47, 51, 56, 62, 68, 75, 82, 91};
 

@@ -77,10 +77,10 @@ write("sh10k_rounded_u.csv",
       [["temperature_degC", "resistance_ohm", "u_ohm"]] +
       [[str(t), "%.6g" % r, "%.17g" % u] for t, r, u in rounded])
 
-# The check values of docs reference-values.md, section Sensors, as printed there.
+# R of the Steinhart-Hart equation (Steinhart & Hart 1968) with the common-practice coefficients, rounded.
 write("sh10k_reference.csv",
       ["R at 0, 25, 50 and 100 degC of the 10 kOhm Steinhart-Hart curve above, as rounded",
-       "in the project's reference values (common practice coefficients)."],
+       "for these tests (common practice coefficients)."],
       [["temperature_degC", "resistance_ohm"], ["0", "32650.375"], ["25", "9999.854"], ["50", "3601.035"],
        ["100", "678.4235"]])
 

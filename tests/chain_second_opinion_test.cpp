@@ -1,0 +1,381 @@
+// `thermargin budget` against an independent model of the whole chain:
+// tests/reference/chain_model.py and chain_engines.py, written with NumPy and
+// SciPy from docs/model.md and docs/engines.md, reading each scenario INI
+// with its own parser and never reading a figure of the program's
+// (docs/checks.md lists this and every other outside source of the suite).
+//
+// One Python process answers for each test's batch: every scenario in
+// scenarios/ and every generated design in tests/data/second_opinion/
+// (which together cover each option: the script reports what each design
+// uses and a test holds the union to the list below), and the designs of
+// the Monte Carlo check one source at a time.
+//
+// Tolerances (docs/checks.md derives them):
+// - nominal and self-heating: 1e-9 K beyond the program's self-heating solver
+//   tolerance (1e-9 K, docs/model.md §2); 1e-9 K where nothing self-heats;
+// - worst case: 1e-6 K;
+// - linear band and each source's contribution: 0.5 % of the band's half-width;
+// - Monte Carlo: the band ends, mean, standard deviation and yield within the
+//   intervals the script derives from both sample sizes (order-statistic and
+//   binomial bounds for quantiles and yield, the large-sample F test for the
+//   variance, z = 4.5).
+#include <algorithm>
+#include <cmath>
+#include <filesystem>
+#include <map>
+#include <set>
+#include <string>
+#include <vector>
+
+#include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
+
+#include "cli_run.hpp"
+#include "source_tree.hpp"
+
+namespace thermargin {
+namespace {
+
+namespace fs = std::filesystem;
+using nlohmann::json;
+
+constexpr double solver_tolerance = 1e-9;     // K, self-heating iteration (docs/model.md §2)
+constexpr double nominal_tolerance = 1e-9;    // K, beyond the solver's
+constexpr double worst_case_tolerance = 1e-6; // K
+constexpr double linear_tolerance = 0.005;    // of the linear band's half-width
+
+// Monte Carlo sizes: small enough for a few seconds of NumPy per batch; the
+// acceptance intervals come from these sizes (docs/checks.md).
+constexpr int program_units = 20000;
+constexpr int model_units = 20000;
+constexpr int per_source_units = 40000;
+// The coverage of the Monte Carlo runs: at 95 % each band end has enough
+// units in its tail (2.5 % of 20 000 = 500) for a two-sided order-statistic bound.
+constexpr const char* mc_coverage = "--montecarlo.coverage=95%";
+
+struct Run {
+  std::string name;
+  std::string path;
+  std::vector<std::string> overrides;
+  bool deterministic = true;
+  bool mc = false;
+  int units = program_units;
+};
+
+std::vector<std::string> design_files() {
+  std::vector<std::string> out;
+  for (const fs::path dir : {fs::path(testing::scenario_path("default.ini")).parent_path(),
+                             fs::path(testing::source_path("tests/data/second_opinion"))})
+    for (const auto& e : fs::directory_iterator(dir))
+      if (e.path().extension() == ".ini" && e.path().stem() != "per_source_base") out.push_back(e.path().string());
+  std::sort(out.begin(), out.end());
+  return out;
+}
+
+// The bounds the one-source-at-a-time check switches off (every other is 0).
+const std::vector<std::pair<std::string, std::string>>& per_source_bounds() {
+  static const std::vector<std::pair<std::string, std::string>> keys = {
+      {"r25", "sensor.r25_tol"},
+      {"beta", "sensor.beta_tol"},
+      {"dissipation", "sensor.dissipation_tol"},
+      {"r_fixed", "divider.r_fixed_tol"},
+      {"r_fixed_tempco", "divider.r_fixed_tempco"},
+      {"r_parallel", "divider.r_parallel_tol"},
+      {"v_excitation", "supply.v_excitation_tol"},
+      {"v_excitation_tempco", "supply.v_excitation_tempco"},
+      {"v_reference", "supply.v_reference_tol"},
+      {"v_reference_tempco", "supply.v_reference_tempco"},
+      {"adc_offset", "adc.offset"},
+      {"adc_gain", "adc.gain_error"},
+      {"adc_inl", "adc.inl"},
+      {"adc_leakage", "adc.leakage"},
+      {"noise", "adc.noise"},
+      {"calibration", "firmware.calibration_uncertainty"},
+  };
+  return keys;
+}
+
+std::vector<Run> per_source_runs() {
+  const std::string base = testing::source_path("tests/data/second_opinion/per_source_base.ini");
+  std::vector<Run> out;
+  // Every other bound 0; the calibration only where its reference is the source (it would hide the others).
+  auto alone = [&](const std::string& name, const std::string& on, std::vector<std::string> extra) {
+    Run r{"one source: " + name, base, std::move(extra), false, true, per_source_units};
+    for (const auto& [n, key] : per_source_bounds())
+      if (key != on) r.overrides.push_back("--" + key + "=0");
+    if (on != "firmware.calibration_uncertainty") r.overrides.push_back("--firmware.calibration=none");
+    r.overrides.push_back(mc_coverage);
+    out.push_back(r);
+  };
+  for (const auto& [name, key] : per_source_bounds()) alone(name, key, {});
+  // The board range acts through a tempco: the fixed resistor's, with its own spread off (uniform ±0).
+  alone("board temperature", "divider.r_fixed_tempco",
+        {"--conditions.board=0..80", "--divider.r_fixed_tempco_dist=uniform", "--divider.r_fixed_tempco=100ppm"});
+  // The RTD's class factor: the Pt100 design with every other bound off.
+  Run rtd{"one source: rtd_class",
+          testing::source_path("tests/data/second_opinion/rtd_offset_beta.ini"),
+          {"--sensor.dissipation_tol=0", "--divider.r_fixed_tol=0", "--divider.r_fixed_tempco=0", "--adc.offset=0",
+           "--adc.gain_error=0", "--adc.inl=0", "--adc.leakage=0", "--adc.noise=0", "--firmware.calibration=none",
+           "--firmware.resolution=0", "--conditions.t_step=50", mc_coverage},
+          false, true, per_source_units};
+  out.push_back(rtd);
+  return out;
+}
+
+// The runs of each test. Each test asks the model only for its own part, in
+// one Python process: ctest runs every test in a process of its own.
+enum class Part { deterministic, monte_carlo, one_source, design_only };
+
+std::vector<Run> runs_of(Part part) {
+  if (part == Part::one_source) return per_source_runs();
+  std::vector<Run> runs;
+  for (const auto& f : design_files()) {
+    const std::string name = fs::path(f).filename().string();
+    if (part == Part::deterministic) runs.push_back({name, f, {}, true, false});
+    // Temperatures 5 K apart keep the NumPy simulation to seconds.
+    if (part == Part::monte_carlo)
+      runs.push_back({name + " (Monte Carlo)", f, {mc_coverage, "--conditions.t_step=5"}, false, true});
+    if (part == Part::design_only) runs.push_back({name, f, {}, false, false});
+  }
+  return runs;
+}
+
+// The model's answer for each run (one Python process for the batch).
+std::vector<json> model_answers(const std::vector<Run>& runs) {
+  json batch{{"program_units", program_units}, {"units", model_units}, {"seed", 20}, {"designs", json::array()}};
+  for (const auto& r : runs)
+    batch["designs"].push_back({{"name", r.name}, {"path", r.path}, {"overrides", r.overrides},
+                                {"deterministic", r.deterministic}, {"mc", r.mc},
+                                {"program_units", r.units}, {"units", r.units}});
+  testing::ScratchDir dir;
+  const std::string file = dir.write("batch.json", batch.dump());
+  const testing::CliOutcome py =
+      testing::run_shell(testing::reference_command("chain_second_opinion.py", testing::shell_quote(file)));
+  if (py.status != 0) throw std::runtime_error("chain_second_opinion.py failed: " + py.err);
+  const json parsed = json::parse(py.out);
+  std::vector<json> out;
+  for (const auto& d : parsed["designs"]) out.push_back(d);
+  if (out.size() != runs.size()) throw std::runtime_error("chain_second_opinion.py answered for another batch");
+  for (std::size_t k = 0; k < runs.size(); ++k)
+    if (out[k]["name"] != runs[k].name) throw std::runtime_error("chain_second_opinion.py answered out of order");
+  return out;
+}
+
+json program(const Run& r) {
+  std::string args = "budget " + testing::shell_quote(r.path);
+  for (const auto& o : r.overrides) args += " " + testing::shell_quote(o);
+  args += r.mc ? " --montecarlo.threads=2 --montecarlo.units=" + std::to_string(r.units) : " --no-mc";
+  return testing::cli_json(args);
+}
+
+bool uses_self_heating(const json& model) {
+  for (const auto& o : model["options"])
+    if (o == "source=dissipation") return true;
+  return false;
+}
+
+struct Counts {
+  int points = 0, statuses = 0, nominal = 0, worst_case = 0, linear = 0, contributions = 0, shares = 0, mc = 0;
+};
+
+void compare_deterministic(const Run& run, const json& got, const json& want, Counts& n) {
+  SCOPED_TRACE(run.name);
+  const auto& pts = got["points"];
+  ASSERT_EQ(pts.size(), want["t"].size());
+  const double nominal_tol = nominal_tolerance + (uses_self_heating(want) ? solver_tolerance : 0.0);
+  EXPECT_EQ(got["window"]["wc_corners"].get<long long>(), want["wc_corners"].get<long long>());
+  for (std::size_t i = 0; i < pts.size(); ++i) {
+    const json& p = pts[i];
+    SCOPED_TRACE("t = " + p["t"].dump());
+    ++n.points;
+    ASSERT_NEAR(p["t"].get<double>(), want["t"][i].get<double>(), 1e-9);
+    const std::string status = want["status"][i];
+    if (status != "ok") {
+      EXPECT_EQ(p.value("status", std::string("ok")), status);
+      EXPECT_FALSE(p.contains("nominal"));
+      ++n.statuses;
+      continue;
+    }
+    ASSERT_TRUE(p.contains("nominal")) << p.dump();
+    EXPECT_NEAR(p["nominal"].get<double>(), want["nominal"][i].get<double>(), nominal_tol);
+    EXPECT_NEAR(p["self_heating"].get<double>(), want["self_heating"][i].get<double>(), nominal_tol);
+    ++n.nominal;
+    const long long failed = want["wc_failed_corners"][i].get<long long>();
+    EXPECT_EQ(p.value("wc_failed_corners", 0LL), failed);
+    if (!want["wc_low"][i].is_null()) {
+      EXPECT_NEAR(p["wc_low"].get<double>(), want["wc_low"][i].get<double>(), worst_case_tolerance);
+      EXPECT_NEAR(p["wc_high"].get<double>(), want["wc_high"][i].get<double>(), worst_case_tolerance);
+      ++n.worst_case;
+    }
+    const double low = want["rss_low"][i], high = want["rss_high"][i];
+    const double tol = linear_tolerance * 0.5 * (high - low);
+    EXPECT_NEAR(p["rss_low"].get<double>(), low, tol);
+    EXPECT_NEAR(p["rss_high"].get<double>(), high, tol);
+    ++n.linear;
+    std::set<std::string> names;
+    for (const auto& [name, values] : want["contributions"].items()) {
+      names.insert(name);
+      ASSERT_TRUE(p["contributions"].contains(name)) << name;
+      EXPECT_NEAR(p["contributions"][name].get<double>(), values[i].get<double>(), tol) << name;
+      ++n.contributions;
+    }
+    EXPECT_EQ(p["contributions"].size(), names.size()) << p["contributions"].dump();
+    // Each source's share of u_c² (the contributor table), from the model's terms:
+    // with each term within 0.5 % of u_c, a share is within 2 × 0.5 % + (0.5 %)².
+    const double u_c = want["u_c"][i];
+    for (const auto& c : p["contributors"]) {
+      const double term = want["contributions"][c["source"].get<std::string>()][i].get<double>() / u_c;
+      EXPECT_NEAR(c["share"].get<double>(), term * term, 2 * linear_tolerance + linear_tolerance * linear_tolerance)
+          << c["source"];
+      ++n.shares;
+    }
+  }
+}
+
+void expect_within(const json& p, const json& interval, const char* field, int& count) {
+  ASSERT_TRUE(p.contains(field)) << field;
+  const double v = p[field], lo = interval[0].is_null() ? -INFINITY : interval[0].get<double>(),
+               hi = interval[1].is_null() ? INFINITY : interval[1].get<double>();
+  EXPECT_GE(v, lo) << field << " below the model's interval [" << lo << ", " << hi << "]";
+  EXPECT_LE(v, hi) << field << " above the model's interval [" << lo << ", " << hi << "]";
+  ++count;
+}
+
+void compare_monte_carlo(const Run& run, const json& got, const json& want, Counts& n) {
+  SCOPED_TRACE(run.name);
+  const auto& pts = got["points"];
+  ASSERT_EQ(pts.size(), want["mc"].size());
+  EXPECT_EQ(got["window"]["mc_units"].get<long long>(), run.units);
+  for (std::size_t i = 0; i < pts.size(); ++i) {
+    SCOPED_TRACE("t = " + pts[i]["t"].dump());
+    const json& w = want["mc"][i];
+    ASSERT_TRUE(w.contains("mc_low")) << "the model has no valid units here";
+    for (const char* f : {"mc_low", "mc_high", "mc_mean", "mc_stddev"}) expect_within(pts[i], w[f], f, n.mc);
+  }
+  expect_within(got["window"], want["yield_interval"], "yield", n.mc);
+}
+
+TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGeneratedDesign) {
+  const auto runs = runs_of(Part::deterministic);
+  const auto answers = model_answers(runs);
+  Counts n;
+  int designs = 0;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    compare_deterministic(runs[k], program(runs[k]), answers[k], n);
+    ++designs;
+  }
+  EXPECT_EQ(designs, static_cast<int>(design_files().size()));
+  EXPECT_GE(designs, 13);  // 6 scenarios and 7 generated designs
+  // Every point was compared: a value, or the same status.
+  EXPECT_EQ(n.nominal + n.statuses, n.points);
+  EXPECT_EQ(n.linear, n.nominal);
+  EXPECT_GT(n.worst_case, 0.9 * n.nominal);
+  EXPECT_GT(n.contributions, 5 * n.linear);
+  EXPECT_EQ(n.shares, n.contributions);
+  std::printf("compared %d points of %d designs: %d nominal, %d worst case, %d linear bands, %d contributions, %d statuses\n",
+              n.points, designs, n.nominal, n.worst_case, n.linear, n.contributions, n.statuses);
+}
+
+TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGeneratedDesign) {
+  const auto runs = runs_of(Part::monte_carlo);
+  const auto answers = model_answers(runs);
+  Counts n;
+  int designs = 0, points = 0;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    const json got = program(runs[k]);
+    compare_monte_carlo(runs[k], got, answers[k], n);
+    points += static_cast<int>(got["points"].size());
+    ++designs;
+  }
+  EXPECT_EQ(designs, static_cast<int>(design_files().size()));
+  EXPECT_EQ(n.mc, 4 * points + designs);  // four statistics a point, the yield a design
+}
+
+TEST(ChainSecondOpinion, MonteCarloOneSourceAtATimeSeesEverySourcesSpread) {
+  const auto runs = runs_of(Part::one_source);
+  const auto answers = model_answers(runs);
+  Counts n;
+  std::set<std::string> seen;
+  int points = 0, visible = 0;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    const json got = program(runs[k]);
+    compare_monte_carlo(runs[k], got, answers[k], n);
+    points += static_cast<int>(got["points"].size());
+    seen.insert(runs[k].name);
+    // The source is seen: its spread is at least twice the quantiser's alone
+    // (1/√12 LSB over the slope, from the model), so that a missing term
+    // moves the spread far outside the ±2 % the comparison allows.
+    const auto& mc = answers[k]["mc"];
+    for (std::size_t i = 0; i < mc.size(); ++i) {
+      EXPECT_GT(mc[i]["mc_stddev_model"].get<double>(), 2.0 * answers[k]["quantisation_sd"][i].get<double>())
+          << runs[k].name << " at " << got["points"][i]["t"];
+      ++visible;
+    }
+  }
+  EXPECT_EQ(visible, points);
+  // Every source of the list, the board range and the RTD class.
+  EXPECT_EQ(seen.size(), per_source_bounds().size() + 2);
+  EXPECT_EQ(n.mc, 4 * points + static_cast<int>(seen.size()));
+}
+
+TEST(ChainSecondOpinion, LookupTableIsTheModelsOnEveryDesignThatUsesOne) {
+  // `thermargin table` emits the table the chain reads (docs/table.md); the
+  // model builds its own from docs/model.md §6 (code span, spacing in code or
+  // in temperature, storage as integers of the unit).
+  const auto runs = runs_of(Part::design_only);
+  const auto answers = model_answers(runs);
+  int designs = 0, points = 0;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    if (!answers[k].contains("table")) continue;
+    SCOPED_TRACE(runs[k].name);
+    const json got = testing::cli_json("table " + testing::shell_quote(runs[k].path));
+    const json& want = answers[k]["table"];
+    ASSERT_EQ(got["rows"].size(), want["codes"].size());
+    for (std::size_t i = 0; i < want["codes"].size(); ++i) {
+      EXPECT_EQ(got["rows"][i]["code"].get<double>(), want["codes"][i].get<double>()) << i;
+      EXPECT_EQ(got["rows"][i]["stored"].get<double>(), want["stored"][i].get<double>()) << i;
+      ++points;
+    }
+    ++designs;
+  }
+  EXPECT_EQ(designs, 3);  // the battery guard, a beta NTC in code and a Pt1000 in temperature
+  EXPECT_GT(points, 3 * 16);
+}
+
+TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
+  // The generated designs alone (not the scenarios, not the one-source runs).
+  const auto runs = runs_of(Part::design_only);
+  const auto answers = model_answers(runs);
+  std::set<std::string> used;
+  int generated = 0;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    if (runs[k].path.find("tests/data/second_opinion") == std::string::npos) continue;
+    ++generated;
+    for (const auto& o : answers[k]["options"]) used.insert(o.get<std::string>());
+  }
+  EXPECT_EQ(generated, 7);
+  const std::vector<std::string> every = {
+      "sensor.model=beta", "sensor.model=steinhart-hart", "sensor.model=table", "sensor.model=rtd",
+      "divider.placement=low", "divider.placement=high", "supply.ratiometric=true", "supply.ratiometric=false",
+      "adc.quantizer=round", "adc.quantizer=floor", "adc.averaging", "firmware.conversion=exact",
+      "firmware.conversion=beta", "firmware.conversion=steinhart-hart", "firmware.conversion=table",
+      "firmware.table_spacing=code", "firmware.table_spacing=temperature", "firmware.calibration=none",
+      "firmware.calibration=offset", "firmware.calibration=two-point", "firmware.full_scale=pow2",
+      "firmware.full_scale=pow2-minus-1", "firmware.resolution", "firmware.lead_compensation",
+      "conditions.board=sensor", "conditions.board=fixed", "conditions.board=range", "sensor.lead_resistance",
+      "divider.r_parallel", "divider.duty", "distribution=normal", "distribution=uniform",
+      "distribution=triangular", "distribution=gapped", "source=r25", "source=beta", "source=rtd_class",
+      "source=dissipation", "source=r_fixed", "source=r_fixed_tempco", "source=r_parallel", "source=v_excitation",
+      "source=v_excitation_tempco", "source=v_reference", "source=v_reference_tempco", "source=adc_offset",
+      "source=adc_gain", "source=adc_inl", "source=adc_leakage", "source=calibration_1", "source=calibration_2",
+      "source=board_temperature"};
+  int checked = 0;
+  for (const auto& o : every) {
+    EXPECT_TRUE(used.count(o)) << o << " is exercised by no design";
+    ++checked;
+  }
+  EXPECT_EQ(checked, 52);
+}
+
+}  // namespace
+}  // namespace thermargin

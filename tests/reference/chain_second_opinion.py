@@ -1,0 +1,100 @@
+#!/usr/bin/python3
+"""Second opinion on `thermargin budget` for a batch of designs (docs/checks.md).
+
+Usage: chain_second_opinion.py BATCH.json
+
+BATCH.json: {"program_units": N1, "units": N2, "seed": S,
+             "designs": [{"name": ..., "path": "x.ini" or null, "overrides": ["--adc.bits=16", ...],
+                          "deterministic": true|false, "mc": true|false}, ...]}
+
+For each design, from the scenario file and the overrides alone (the same
+arguments the test gives the program), chain_model.py and chain_engines.py
+compute the nominal error, the worst-case band by enumeration, the linear
+band and each source's contribution, and (with "mc") a NumPy Monte Carlo of
+N2 units, from which the intervals that the program's Monte Carlo figures
+from N1 units must fall in are derived. Prints one JSON object:
+{"designs": [{"name", "t", "status", "nominal", ..., "options": [...]}, ...]}.
+"options" names what the design exercises (sensor model, placement, supply,
+...), so that the test can hold the batch to covering every option.
+"""
+import json
+import math
+import sys
+
+import numpy as np
+
+from chain_engines import acceptance, linear_budget, monte_carlo, nominal, worst_case, yield_acceptance
+from chain_model import Design, deviations, front_end
+
+
+def plain(v):
+    if isinstance(v, dict):
+        return {k: plain(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [plain(x) for x in v]
+    if isinstance(v, np.ndarray):
+        return plain(v.tolist())
+    if isinstance(v, (float, np.floating)):
+        return None if not math.isfinite(v) else float(v)
+    if isinstance(v, np.integer):
+        return int(v)
+    return v
+
+
+def options(d):
+    """The options of docs/model.md this design exercises."""
+    s = d.s
+    o = [f"sensor.model={d.sensor.model}", f"divider.placement={d.placement}",
+         f"supply.ratiometric={'true' if d.ratiometric else 'false'}", f"adc.quantizer={d.quantizer}",
+         f"firmware.conversion={d.conversion}", f"firmware.calibration={d.calibration}",
+         f"firmware.full_scale={s.text('firmware.full_scale')}", f"conditions.board={d.board[0]}"]
+    if d.conversion == "table":
+        o.append(f"firmware.table_spacing={s.text('firmware.table_spacing', 'code')}")
+    if d.r_lead > 0:
+        o.append("sensor.lead_resistance")
+    if d.lead_comp > 0:
+        o.append("firmware.lead_compensation")
+    if d.r_par is not None:
+        o.append("divider.r_parallel")
+    if d.averaging > 1:
+        o.append("adc.averaging")
+    if d.diss > 0 and d.duty < 1:
+        o.append("divider.duty")
+    if d.resolution > 0:
+        o.append("firmware.resolution")
+    o += [f"source={x.name}" for x in d.sources]
+    o += [f"distribution={x.dist}" for x in d.sources if x.name != "board_temperature"]
+    return sorted(set(o))
+
+
+def run(spec, n1, n2, seed):
+    d = Design(spec.get("path"), spec.get("overrides", []))
+    out = {"name": spec["name"], "t": d.t, "options": options(d)}
+    if spec.get("deterministic", True):
+        out.update(nominal(d))
+        out.update(worst_case(d))
+        out.update(linear_budget(d))
+    if d.conversion == "table":  # the firmware's lookup table as docs/model.md §6 builds it
+        out["table"] = {"codes": d.firmware.codes, "stored": d.firmware.stored}
+    if spec.get("mc"):
+        n1, n2 = spec.get("program_units", n1), spec.get("units", n2)
+        errors, worst = monte_carlo(d, n2, seed)
+        out["mc"] = [acceptance(e, n1, d.coverage) for e in errors]
+        out["yield"], out["yield_interval"] = yield_acceptance(worst, d.limit, n1)
+        # The spread the quantiser alone gives a reading, 1/√12 LSB over the nominal slope (IEEE Std 1241),
+        # against which a source's own spread must stand out to be seen.
+        none = deviations(d, {})
+        slope = (front_end(d, d.t + 0.01, none)["x"] - front_end(d, d.t - 0.01, none)["x"]) / 0.02
+        out["quantisation_sd"] = 1.0 / math.sqrt(12.0) / np.abs(slope)
+    return plain(out)
+
+
+def main():
+    with open(sys.argv[1]) as f:
+        batch = json.load(f)
+    n1, n2, seed = batch["program_units"], batch["units"], batch.get("seed", 20)
+    print(json.dumps({"designs": [run(s, n1, n2, seed) for s in batch["designs"]]}))
+
+
+if __name__ == "__main__":
+    main()
