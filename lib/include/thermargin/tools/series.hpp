@@ -7,8 +7,8 @@
 // geometric progression round(10^(i/24)). E48, E96 and E192 are the
 // geometric progression rounded to three significant digits,
 // round(100·10^(i/n)), except that E192 holds 920 where the formula gives
-// 919 (both as IEC 60063 publishes them; the check values are in
-// reference-values.md). Every series is the coarser one's superset: E12 is
+// 919 (both as IEC 60063 publishes them; tests/series_test.cpp checks the
+// published values). Every series is the coarser one's superset: E12 is
 // every second E24 value, E48 every second E96 value, E96 every second E192
 // value.
 #pragma once
