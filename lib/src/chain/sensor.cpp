@@ -44,14 +44,16 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
   return std::nullopt;
 }
 
-SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k)
-    : s_(&s), rtd_k_(rtd_k) {
+SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z)
+    : s_(&s), rtd_k_(rtd_k), table_z_(table_z) {
   if (s.kind != SensorKind::rtd) {
     // The stretch is about T0; a table that misses 25 °C has been refused
     // upstream whenever a tolerance is active, so ln_r0 is only used then.
     if (auto l0 = nominal_ln_resistance(s, t0_kelvin)) ln_r0_ = *l0;
     shift_ = std::log1p(delta_r25);
     stretch_ = 1.0 + delta_beta;
+  } else if (delta_r25 != 0.0) {
+    shift_ = std::log1p(delta_r25);  // an RTD's drift over life
   }
 }
 
@@ -59,10 +61,17 @@ std::optional<double> SensorUnit::ln_resistance(double t) const {
   if (s_->kind == SensorKind::rtd) {
     const double tc = t - kelvin_offset;
     const double bound = s_->rtd_class ? class_bound(*s_->rtd_class, tc) : 0.0;
-    return nominal_ln_resistance(*s_, t + rtd_k_ * bound);
+    const auto l = nominal_ln_resistance(*s_, t + rtd_k_ * bound);
+    if (!l || shift_ == 0.0) return l;
+    return *l + shift_;
   }
   auto l = nominal_ln_resistance(*s_, t);
   if (!l) return std::nullopt;
+  if (table_z_ != 0.0) {
+    const auto h = s_->table->spread(t, table_z_ > 0.0);
+    if (!h) return std::nullopt;
+    *l += table_z_ * *h;
+  }
   if (shift_ == 0.0 && stretch_ == 1.0) return l;
   return ln_r0_ + shift_ + stretch_ * (*l - ln_r0_);
 }

@@ -26,7 +26,10 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
 // A unit's element: the nominal curve with the unit's deviations applied.
 class SensorUnit {
  public:
-  SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k);
+  // table_z: the unit's factor between the nominal curve and the limits of a
+  // table that carries them (docs/model.md): ln R_unit = ln R_nom + z·h(T).
+  // delta_r25 also shifts an RTD's ln R (its drift over life, chain/drift.hpp).
+  SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z = 0.0);
   std::optional<double> ln_resistance(double t_kelvin) const;
 
  private:
@@ -35,6 +38,7 @@ class SensorUnit {
   double shift_ = 0.0;   // ln(1 + δR)
   double stretch_ = 1.0; // 1 + δβ
   double rtd_k_ = 0.0;
+  double table_z_ = 0.0;
 };
 
 }  // namespace thermargin
