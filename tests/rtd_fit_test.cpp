@@ -4,7 +4,9 @@
 // the tolerance class the data meet, and the CLI's RTD section.
 #include <gtest/gtest.h>
 
-#include <Eigen/Dense>
+#include <nlohmann/json.hpp>
+
+#include <array>
 #include <cmath>
 #include <sstream>
 #include <string>
@@ -29,15 +31,51 @@ constexpr double iec_a = 3.9083e-3, iec_b = -5.775e-7, iec_c = -4.183e-12, iec_r
 // `half_step` ohm can cause in a least-squares fit, to first order: the
 // linear unknowns p = (R0, R0·A, R0·B, R0·C) move by X⁺·e with |e_i| ≤
 // half_step, so |Δp_j| ≤ half_step·Σ_i |X⁺_ji|; then ΔA ≤ (|Δp1| + |A|·|Δp0|)/R0.
+// X⁺ = (XᵀX)⁻¹Xᵀ with the columns scaled to unit norm, by Gauss–Jordan
+// elimination here (plain arithmetic: the library's Eigen is built for the
+// host's vector units, the tests are not, and the two must not share Eigen's
+// templates).
 std::vector<double> rounding_bound(const RtData& data, double half_step) {
-  Eigen::MatrixXd x(static_cast<Eigen::Index>(data.points.size()), 4);
-  for (std::size_t i = 0; i < data.points.size(); ++i) {
+  const std::size_t n = data.points.size();
+  std::vector<std::array<double, 4>> x(n);
+  std::array<double, 4> norm{};
+  for (std::size_t i = 0; i < n; ++i) {
     const double t = data.points[i].t_celsius;
-    x.row(static_cast<Eigen::Index>(i)) << 1.0, t, t * t, t < 0 ? (t - 100.0) * t * t * t : 0.0;
+    x[i] = {1.0, t, t * t, t < 0 ? (t - 100.0) * t * t * t : 0.0};
+    for (int j = 0; j < 4; ++j) norm[j] += x[i][j] * x[i][j];
   }
-  const Eigen::MatrixXd pinv = x.completeOrthogonalDecomposition().pseudoInverse();
-  std::vector<double> dp(4);
-  for (int j = 0; j < 4; ++j) dp[j] = half_step * pinv.row(j).cwiseAbs().sum();
+  for (int j = 0; j < 4; ++j) norm[j] = std::sqrt(norm[j]);
+  for (auto& row : x)
+    for (int j = 0; j < 4; ++j) row[j] /= norm[j];
+  // [XᵀX | I] reduced to [I | (XᵀX)⁻¹].
+  double m[4][8] = {};
+  for (int a = 0; a < 4; ++a) {
+    for (int b = 0; b < 4; ++b)
+      for (const auto& row : x) m[a][b] += row[a] * row[b];
+    m[a][4 + a] = 1.0;
+  }
+  for (int c = 0; c < 4; ++c) {
+    int pivot = c;
+    for (int r = c + 1; r < 4; ++r)
+      if (std::abs(m[r][c]) > std::abs(m[pivot][c])) pivot = r;
+    for (int k = 0; k < 8; ++k) std::swap(m[c][k], m[pivot][k]);
+    const double d = m[c][c];
+    for (int k = 0; k < 8; ++k) m[c][k] /= d;
+    for (int r = 0; r < 4; ++r) {
+      if (r == c) continue;
+      const double f = m[r][c];
+      for (int k = 0; k < 8; ++k) m[r][k] -= f * m[c][k];
+    }
+  }
+  std::vector<double> dp(4, 0.0);
+  for (int j = 0; j < 4; ++j) {
+    for (const auto& row : x) {
+      double v = 0.0;
+      for (int k = 0; k < 4; ++k) v += m[j][4 + k] * row[k];
+      dp[j] += half_step * std::abs(v);
+    }
+    dp[j] /= norm[j];  // back to the unscaled unknowns
+  }
   const double coef[] = {0.0, iec_a, iec_b, iec_c};
   std::vector<double> bound{dp[0]};
   for (int j = 1; j < 4; ++j) bound.push_back(1.01 * (dp[j] + std::abs(coef[j]) * dp[0]) / iec_r0);
@@ -84,6 +122,50 @@ TEST(RtdFit, RecoversIec60751FromValuesComputedWithItsEquation) {
   EXPECT_LT(*f.coefficients[1].uncertainty, rounding_bound(data, 0.5e-6)[1]);
 }
 
+// An independent least-squares fit with numpy.linalg.lstsq of the linear
+// unknowns (R0, R0·A, R0·B, R0·C) after scaling the columns to unit norm,
+// s²·(XᵀX)⁻¹ for their covariance and the
+// Jacobian of the ratios for A, B, C (GUM §5.1.2), run with Debian's python3.
+constexpr const char* numpy_cvd = R"PY(
+import json, sys
+import numpy as np
+rows = [l.split(',') for l in open(sys.argv[1]) if l[:1].isdigit() or l[:1] == '-']
+t = np.array([float(a) for a, b in rows])
+r = np.array([float(b) for a, b in rows])
+x = np.column_stack([np.ones_like(t), t, t * t, np.where(t < 0, (t - 100.0) * t ** 3, 0.0)])
+# Columns brought to unit norm first: 1 and (t - 100)·t³ differ by 10⁹.
+norm = np.linalg.norm(x, axis=0)
+xs = x / norm
+p = np.linalg.lstsq(xs, r, rcond=None)[0] / norm
+res = r - x @ p
+cov = (res @ res) / (len(t) - 4) * np.linalg.inv(xs.T @ xs) / np.outer(norm, norm)
+jac = np.zeros((4, 4))
+jac[0, 0] = 1.0
+for i in range(1, 4):
+    jac[i, 0] = -p[i] / p[0] ** 2
+    jac[i, i] = 1.0 / p[0]
+u = np.sqrt(np.diag(jac @ cov @ jac.T))
+print(json.dumps({"value": [p[0], p[1] / p[0], p[2] / p[0], p[3] / p[0]], "u": list(u)}))
+)PY";
+
+TEST(RtdFit, AgreesWithNumpy) {
+  const std::string file = fit_data_file("pt100_iec60751_table.csv");
+  const testing::ScratchDir dir;
+  const auto r = testing::run_shell(std::string(THERMARGIN_PYTHON) + " " + dir.write("cvd.py", numpy_cvd) + " " +
+                                    testing::shell_quote(file));
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto py = nlohmann::json::parse(r.out);
+  const RtdFit f = fit_rtd_data(read_rt_data(file));
+  // Two solvers of the same well-posed problem (QR with column scaling here,
+  // NumPy's SVD there): agreement to 1e-9 relative (common practice for
+  // double-precision least squares of this conditioning).
+  for (std::size_t i = 0; i < 4; ++i) {
+    EXPECT_NEAR(f.coefficients[i].value, py["value"][i].get<double>(), 1e-9 * std::abs(py["value"][i].get<double>()));
+    ASSERT_TRUE(f.coefficients[i].uncertainty);
+    EXPECT_NEAR(*f.coefficients[i].uncertainty, py["u"][i].get<double>(), 1e-6 * py["u"][i].get<double>());
+  }
+}
+
 // A Pt1000 element 0.2 K warm everywhere against the IEC 60751 curve,
 // computed with the standard's equation: R(t) = R_IEC(t + 0.2 K)·10.
 RtData warm_pt1000(double shift_k, double t_lo, double t_hi) {
@@ -121,8 +203,7 @@ TEST(RtdFit, CliShowsTheRtdFitAndItsScenarioLines) {
   EXPECT_NE(r.out.find("RTD RECOMMENDATION"), std::string::npos) << r.out;
   EXPECT_NE(r.out.find("model = rtd"), std::string::npos);
   EXPECT_NE(r.out.find("within class AA"), std::string::npos);
-  const auto j = testing::cli_json("fit " + testing::shell_quote(fit_data_file("pt100_iec60751_table.csv")) +
-                                   " --format json");
+  const auto j = testing::cli_json("fit " + testing::shell_quote(fit_data_file("pt100_iec60751_table.csv")));
   const RtdFit want = fit_rtd_data(read_rt_data(fit_data_file("pt100_iec60751_table.csv")));
   EXPECT_EQ(j["rtd"]["coefficients"]["a"].get<double>(), want.cvd.a);
   EXPECT_EQ(j["rtd"]["standard"]["class"], "AA");

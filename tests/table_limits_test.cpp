@@ -4,6 +4,7 @@
 // back the tolerances a table was made from, and the refusals.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -99,7 +100,7 @@ TEST(TableLimits, LimitsFromR25AndBTolerancesReproduceTheBetaModel) {
   // z = ±1, so the worst-case bands agree there (h is exact at the points).
   const std::string file = write_table("minmax.csv", table_text(false, 0.01, 0.005));
   const Design table = design_with(testing::with_extra(
-      common("5"), {{"sensor.model", "table"}, {"sensor.table_file", file}}));  // tolerances at default: give way
+      common("5"), {{"sensor.model", "table"}, {"sensor.table_file", file}}));
   const Design model =
       design_with(testing::with_extra(common("5"), {{"sensor.r25_tol", "1%"}, {"sensor.beta_tol", "0.5%"}}));
   EXPECT_EQ(table.sensor.r25_tol, 0.0);
@@ -121,6 +122,12 @@ TEST(TableLimits, LimitsFromR25AndBTolerancesReproduceTheBetaModel) {
 
 TEST(TableLimits, ToleranceKeysBesideLimitsAreRefused) {
   const std::string file = write_table("refuse.csv", table_text(true, 0.01, 0.0));
+  // The built-in defaults (1 % each) give way to the table's limits.
+  const Design d = design_with({{"sensor.model", "table"}, {"sensor.table_file", file}});
+  EXPECT_EQ(d.sensor.r25_tol, 0.0);
+  EXPECT_EQ(d.sensor.beta_tol, 0.0);
+  EXPECT_TRUE(std::any_of(d.inputs.begin(), d.inputs.end(),
+                          [](const ToleranceInput& in) { return in.source == Source::table_spread; }));
   try {
     design_with({{"sensor.model", "table"}, {"sensor.table_file", file}, {"sensor.beta_tol", "0.5%"}});
     FAIL() << "no refusal";
