@@ -54,7 +54,7 @@ FrontEnd Chain::analog_front_end(const Deviations& unit, double t_c) const {
   const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
   FrontEnd fe;
   const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
-                          at(dev, Source::table_spread));
+                          at(dev, Source::table_spread), at(dev, Source::sensor_drift));
   const double t_board = board_temperature(d.conditions.board, t_c, at(dev, Source::board_temperature));
   const SupplyUnit supply = supply_unit(d.supply, dev, t_board);
   const double r_fixed =

@@ -4,7 +4,6 @@ namespace thermargin {
 
 Source drift_target(Source s) {
   switch (s) {
-    case Source::sensor_drift: return Source::r25;
     case Source::r_fixed_drift: return Source::r_fixed;
     case Source::v_excitation_drift: return Source::v_excitation;
     case Source::v_reference_drift:
@@ -16,7 +15,7 @@ Source drift_target(Source s) {
 }
 
 Deviations with_drift(Deviations dev) {
-  for (Source s : {Source::sensor_drift, Source::r_fixed_drift, Source::v_excitation_drift, Source::v_reference_drift,
+  for (Source s : {Source::r_fixed_drift, Source::v_excitation_drift, Source::v_reference_drift,
                    Source::v_reference_hysteresis, Source::adc_offset_drift, Source::adc_gain_drift}) {
     double& drift = dev[static_cast<std::size_t>(s)];
     if (drift == 0.0) continue;

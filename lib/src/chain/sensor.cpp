@@ -44,16 +44,15 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
   return std::nullopt;
 }
 
-SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z)
-    : s_(&s), rtd_k_(rtd_k), table_z_(table_z) {
+SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z,
+                       double drift)
+    : s_(&s), rtd_k_(rtd_k), table_z_(table_z), drift_shift_(std::log1p(drift)) {
   if (s.kind != SensorKind::rtd) {
     // The stretch is about T0; a table that misses 25 °C has been refused
     // upstream whenever a tolerance is active, so ln_r0 is only used then.
     if (auto l0 = nominal_ln_resistance(s, t0_kelvin)) ln_r0_ = *l0;
     shift_ = std::log1p(delta_r25);
     stretch_ = 1.0 + delta_beta;
-  } else if (delta_r25 != 0.0) {
-    shift_ = std::log1p(delta_r25);  // an RTD's drift over life
   }
 }
 
@@ -62,8 +61,8 @@ std::optional<double> SensorUnit::ln_resistance(double t) const {
     const double tc = t - kelvin_offset;
     const double bound = s_->rtd_class ? class_bound(*s_->rtd_class, tc) : 0.0;
     const auto l = nominal_ln_resistance(*s_, t + rtd_k_ * bound);
-    if (!l || shift_ == 0.0) return l;
-    return *l + shift_;
+    if (!l || drift_shift_ == 0.0) return l;
+    return *l + drift_shift_;
   }
   auto l = nominal_ln_resistance(*s_, t);
   if (!l) return std::nullopt;
@@ -72,8 +71,10 @@ std::optional<double> SensorUnit::ln_resistance(double t) const {
     if (!h) return std::nullopt;
     *l += table_z_ * *h;
   }
-  if (shift_ == 0.0 && stretch_ == 1.0) return l;
-  return ln_r0_ + shift_ + stretch_ * (*l - ln_r0_);
+  // The drift over life shifts the unit's curve as it is (outside the stretch).
+  if (shift_ == 0.0 && stretch_ == 1.0) return drift_shift_ == 0.0 ? l : *l + drift_shift_;
+  const double unit = ln_r0_ + shift_ + stretch_ * (*l - ln_r0_);
+  return drift_shift_ == 0.0 ? unit : unit + drift_shift_;
 }
 
 }  // namespace thermargin

@@ -201,6 +201,9 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     const Deviations dv = draw_unit(*c.d, first + static_cast<std::uint64_t>(u));
     for (int s : c.active) b.dev[s][u] = dv[static_cast<std::size_t>(s)];
     b.ln_shift[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
+    // The sensor's drift over life shifts ln R like R25's tolerance (sensor.hpp).
+    if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
+      b.ln_shift[u] += std::log1p(drift);
   }
 }
 
@@ -363,7 +366,7 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
     } else {
       for (int u = 0; u < block_size; ++u) {
         const SensorUnit s(d.sensor, dev(Source::r25)[u], dev(Source::beta)[u], dev(Source::rtd_class)[u],
-                           dev(Source::table_spread)[u]);
+                           dev(Source::table_spread)[u], dev(Source::sensor_drift)[u]);
         const auto l = s.ln_resistance(te[u]);
         if (!l) status[u] = static_cast<std::uint8_t>(Status::out_of_table);
         r_el[u] = l ? *l : 0.0;

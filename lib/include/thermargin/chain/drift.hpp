@@ -10,9 +10,9 @@
 
 namespace thermargin {
 
-// The source whose deviation a drift source adds to (r25 for the sensor's
-// drift: the shift of ln R applies to every sensor model); `s` itself for
-// a source that is no drift.
+// The source whose deviation a drift source adds to; `s` itself for a
+// source that is no drift and for the sensor's drift, which the sensor step
+// applies to every model itself (sensor.hpp: ln R + ln(1 + δ_drift)).
 Source drift_target(Source s);
 
 // `dev` with every non-zero drift folded into its target and set to 0: a
