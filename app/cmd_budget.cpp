@@ -14,6 +14,8 @@
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/report/budget_report.hpp"
 #include "thermargin/core/caution.hpp"
+#include "thermargin/input/life.hpp"
+#include "thermargin/report/life_report.hpp"
 #include "thermargin/engines/what_if.hpp"
 #include "thermargin/report/response_report.hpp"
 
@@ -269,6 +271,7 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
     dominant += (i ? ", " : "") + c.label + " " + pct(c.share, 1);
   }
   if (!dominant.empty()) out << "Dominant contributors over the window (share of the combined variance): " << dominant << "\n";
+  out << (b.end_of_life ? "\n" + end_of_life_text(d, b) : "");
   if (b.weakest.found)
     out << "Weakest ADC sensitivity in the window: " << fixed(b.weakest.lsb_per_k, 2) << " LSB/K ("
         << fixed(b.weakest.mv_per_k, 3) << " mV/K) at " << fixed(b.weakest.t, 2) << " degC, where 1 LSB = "
@@ -404,7 +407,11 @@ int run_budget(int argc, char** argv) {
   if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
   // What would help: in the text, the JSON and the page (CSV is per temperature).
   const bool want_help = inv.format != Format::csv || !inv.report.empty();
-  const WhatIf help = want_help ? what_if(chain, budget) : WhatIf{};
+  // ... judged on the budget the verdict uses (requirement.at).
+  const bool life = budget.end_of_life && budget.verdict.at == Requirement::At::end_of_life;
+  const WhatIf help = !want_help ? WhatIf{}
+                      : life     ? what_if(Chain(budget.end_of_life->design), budget.end_of_life->budget)
+                                 : what_if(chain, budget);
 
   std::string text;
   if (inv.format == Format::json) {
@@ -415,6 +422,10 @@ int run_budget(int argc, char** argv) {
                                 {"error", dynamic_error(response)},
                                 {"included", response.include_dynamic},
                                 {"line", dynamic_error_line(response)}};
+    if (budget.end_of_life) {  // over the product's life: the end-of-life window beside the delivery one
+      j["window"]["verdict_at"] = std::string(to_string(budget.verdict.at));
+      j["window"]["end_of_life"] = to_json(budget.end_of_life->design, budget.end_of_life->budget)["window"];
+    }
     text = j.dump(2) + "\n";
   } else if (inv.format == Format::csv) {
     text = to_csv(budget);

@@ -29,6 +29,10 @@ int run_check(int argc, char** argv) {
     j["valid"] = true;
     j["active_inputs"] = nlohmann::json::array();
     for (const auto& in : design.inputs) j["active_inputs"].push_back(std::string(info(in.source).name));
+    if (!design.drift_inputs.empty()) {  // over the product's life: active at end of life only
+      j["drift_inputs"] = nlohmann::json::array();
+      for (const auto& in : design.drift_inputs) j["drift_inputs"].push_back(std::string(info(in.source).name));
+    }
     for (const auto& k : schema) {
       const auto& s = inv.scenario.get(k.key);
       const ResolvedValue& r = resolved.at(k.key);
@@ -55,7 +59,11 @@ int run_check(int argc, char** argv) {
   } else {
     out << "Scenario: " << design.title << "  (title: " << inv.scenario.get("title").where.origin() << ")\n";
     out << "Valid: every value and combination was accepted. " << design.inputs.size()
-        << " toleranced inputs are active.\n";
+        << " toleranced inputs are active"
+        << (design.drift_inputs.empty() ? std::string()
+                                        : " at delivery, " + std::to_string(design.drift_inputs.size()) +
+                                              " more (drift) at end of life")
+        << ".\n";
     out << "Each key as written, as read (with its unit) and where it came from.\n\n";
     TextTable t({"key", "as written", "as read", "origin"});
     for (const auto& k : schema) {

@@ -4,6 +4,7 @@
 #include <nlohmann/json.hpp>
 #include <cmath>
 #include <cstdio>
+#include <optional>
 #include <sstream>
 #include <tuple>
 #include <utility>
@@ -228,6 +229,93 @@ std::string to_text(const FitResult& r, const std::string& snippet) {
   return out.str();
 }
 
+// ------------------------------------------------ platinum RTD data
+
+nlohmann::json rtd_json(const RtdFit& f, double limit) {
+  nlohmann::json coefficients, uncertainties;
+  for (const auto& c : f.coefficients) {
+    coefficients[c.name] = c.value;
+    uncertainties[c.name] = c.uncertainty ? num(*c.uncertainty) : nlohmann::json(nullptr);
+  }
+  nlohmann::json residuals = nlohmann::json::array();
+  for (const auto& r : f.residuals)
+    residuals.push_back({{"line", r.line}, {"t", r.t_celsius}, {"r", r.r_ohm}, {"in_window", r.in_window},
+                         {"residual", num(r.residual)}, {"solved", r.solved}});
+  return {{"model", "callendar-van-dusen"},
+          {"method", "least-squares"},
+          {"fitted_c", f.fitted_c},
+          {"coefficients", coefficients},
+          {"uncertainties", uncertainties},
+          {"weighted", f.weighted},
+          {"dof", f.dof},
+          {"chi_squared", f.weighted ? num(f.chi_squared) : nlohmann::json(nullptr)},
+          {"max_residual", f.max_residual},
+          {"max_residual_at", f.max_residual_at},
+          {"rms_residual", f.rms_residual},
+          {"meets_limit", std::abs(f.max_residual) <= limit},
+          {"standard", {{"nominal_r0", f.nominal_r0},
+                        {"delta_a", f.delta_a},
+                        {"delta_b", f.delta_b},
+                        {"delta_c", f.fitted_c ? num(f.delta_c) : nlohmann::json(nullptr)},
+                        {"max_deviation", f.max_deviation},
+                        {"max_deviation_at", f.max_deviation_at},
+                        {"class", f.met_class ? nlohmann::json(std::string(to_string(*f.met_class))) : nlohmann::json(nullptr)},
+                        {"class_use", f.met_class ? num(f.class_use) : nlohmann::json(nullptr)}}},
+          {"residuals", residuals},
+          {"snippet", rtd_scenario_snippet(f)}};
+}
+
+std::string rtd_text(const RtdFit& f, double limit) {
+  std::ostringstream out;
+  const bool meets = std::abs(f.max_residual) <= limit;
+  out << (meets ? "RTD RECOMMENDATION: " : "RTD FIT MISSES THE LIMIT: ")
+      << "the resistance rises with temperature, so the data are fitted with the Callendar-Van Dusen equation of "
+         "IEC 60751 (least squares, "
+      << (f.fitted_c ? "R0, A, B and C: the data reach below 0 degC" : "R0, A and B: no data below 0 degC") << ").\n"
+      << "Largest residual " << fixed(f.max_residual, 4) << " K at " << g("%g", f.max_residual_at) << " degC, RMS "
+      << fixed(f.rms_residual, 4) << " K (limit " << g("%g", limit) << " K).\n\n";
+  TextTable c({"coefficient", "value", "uncertainty", "unit", "fitted - IEC 60751"});
+  for (const auto& k : f.coefficients) {
+    std::string diff = "-";
+    if (k.name == "a") diff = g("%.4g", f.delta_a);
+    if (k.name == "b") diff = g("%.4g", f.delta_b);
+    if (k.name == "c") diff = g("%.4g", f.delta_c);
+    if (k.name == "r0") diff = g("%.6g", k.value - f.nominal_r0) + " (Pt" + g("%g", f.nominal_r0) + ")";
+    c.add({k.name, g("%.10g", k.value), k.uncertainty ? g("%.3g", *k.uncertainty) : "-", k.unit, diff});
+  }
+  out << c.render();
+  if (f.weighted) out << "chi-squared " << g("%.4g", f.chi_squared) << " on " << f.dof << " degrees of freedom\n";
+  out << "\nAgainst the IEC 60751 curve with R0 = " << g("%g", f.nominal_r0) << " ohm the data deviate by up to "
+      << fixed(f.max_deviation, 4) << " K (at " << g("%g", f.max_deviation_at) << " degC): "
+      << (f.met_class ? "within class " + std::string(to_string(*f.met_class)) + " (" +
+                            g("%.0f", 100.0 * f.class_use) + " % of its bound at the worst point)"
+                      : std::string("outside every class (AA, A, B, C)"))
+      << "; the class's validity range for the construction is not checked here.\n\n";
+  out << "Residuals of the Callendar-Van Dusen fit (K):\n";
+  TextTable p({"line", "t (degC)", "R (ohm)", "window", "residual"});
+  for (const auto& r : f.residuals)
+    p.add({std::to_string(r.line), g("%g", r.t_celsius), g("%.7g", r.r_ohm), r.in_window ? "in" : "outside",
+           fixed(r.residual, 4) + (r.solved ? "" : " (no T)")});
+  out << p.render();
+  out << "\nScenario lines for the Callendar-Van Dusen fit; merge them into your scenario file:\n\n"
+      << rtd_scenario_snippet(f) << "\nThe NTC models, for comparison:\n\n";
+  return out.str();
+}
+
+// A table with limits: the R25 and B tolerances that come closest to them.
+std::string spread_text(const SpreadFit& s) {
+  return "TABLE LIMITS: the beta model's spread closest to the table's limit columns is r25_tol = " +
+         g("%.3g", 100.0 * s.r25_tol) + " %, beta_tol = " + g("%.3g", 100.0 * s.beta_tol) +
+         " %; it differs from the limits by up to " + fixed(s.max_difference, 3) + " K (at " +
+         g("%g", s.max_difference_at) + " degC; positive: wider than the table). Either describe the sensor by the "
+         "table with its limits (model = table; r25_tol and beta_tol 0) or by a curve with these tolerances.\n\n";
+}
+
+nlohmann::json spread_json(const SpreadFit& s) {
+  return {{"r25_tol", s.r25_tol}, {"beta_tol", s.beta_tol}, {"max_difference", s.max_difference},
+          {"max_difference_at", s.max_difference_at}};
+}
+
 }  // namespace
 
 int run_fit(int argc, char** argv) {
@@ -258,12 +346,23 @@ int run_fit(int argc, char** argv) {
     s.between_samples = static_cast<int>(n);
   }
 
-  const FitResult result = fit_rt_data(read_rt_data(inv.file), s);
+  const RtData data = read_rt_data(inv.file);
+  const FitResult result = fit_rt_data(data, s);
   const std::string snippet = scenario_snippet(result, result.recommendation.fit);
+  std::optional<RtdFit> rtd;
+  if (rises_with_temperature(data)) rtd = fit_rtd_data(data, s);
+  const SpreadFit spread = fit_spread(data, s);
   std::string text;
-  if (inv.format == Format::json) text = to_json(result, snippet).dump(2) + "\n";
-  else if (inv.format == Format::csv) text = to_csv(result);
-  else text = to_text(result, snippet);
+  if (inv.format == Format::json) {
+    nlohmann::json j = to_json(result, snippet);
+    if (rtd) j["rtd"] = rtd_json(*rtd, s.limit);
+    if (spread.found) j["spread"] = spread_json(spread);
+    text = j.dump(2) + "\n";
+  } else if (inv.format == Format::csv) {
+    text = to_csv(result);
+  } else {
+    text = (rtd ? rtd_text(*rtd, s.limit) : "") + (spread.found ? spread_text(spread) : "") + to_text(result, snippet);
+  }
   emit(inv, text);
   return 0;
 }

@@ -239,7 +239,10 @@ TEST(FitCli, TextMarksResidualsWhereTheModelHasNoTemperature) {
   // NTC curves fitted to an IEC 60751 Pt100 table: the least-squares beta has none at the hot end.
   const CliOutcome r = run_cli("fit " + shell_quote(fit_data_file("pt100_iec60751.csv")));
   ASSERT_EQ(r.status, 0) << r.err;
-  const auto at = r.out.find("\n 110 ");  // the 850 degC point
+  // The 850 degC point in the NTC fits' residuals (the RTD fit's come first, for rising data).
+  const auto ntc = r.out.find("The NTC models, for comparison");
+  ASSERT_NE(ntc, std::string::npos) << r.out;
+  const auto at = r.out.find("\n 110 ", ntc);
   ASSERT_NE(at, std::string::npos) << r.out;
   EXPECT_NE(r.out.substr(at, r.out.find('\n', at + 1) - at).find("-1123.1500 (no T)"), std::string::npos) << r.out;
   EXPECT_NE(r.out.find("(no T): the model gives no temperature at that resistance"), std::string::npos);

@@ -15,6 +15,7 @@
 #include "engine_fixture.hpp"
 #include "jcgm101_additive.hpp"
 #include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/input/life.hpp"
 #include "thermargin/engines/random.hpp"
 #include "thermargin/engines/worst_case.hpp"
 
@@ -178,6 +179,26 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainUnderStrongSelfHeating) {
     const Chain chain(d);
     expect_kernel_matches_the_scalar_chain(chain, d.conditions.temperatures(), 0, 48, 5, diss);
   }
+}
+
+TEST(MonteCarloKernel, AgreesWithTheScalarChainAtEndOfLife) {
+  // Drift over life folded into its part's deviation (chain/drift.hpp): the
+  // kernel's rows and the scalar chain must fold it alike. An absolute
+  // supply so that every drift acts, hysteresis included; and a sensor whose
+  // spread is a table's limit columns.
+  const Design drift = design_with(
+      {{"supply.ratiometric", "false"}, {"supply.v_reference", "3.3V"}, {"supply.v_reference_tol", "0.5%"},
+       {"supply.v_excitation_tol", "0.5%"}, {"sensor.drift", "2%"}, {"divider.r_fixed_drift", "0.5%"},
+       {"supply.v_reference_drift", "0.2%"}, {"supply.v_reference_hysteresis", "0.05%"},
+       {"supply.v_excitation_drift", "0.3%"}, {"adc.offset_drift", "1"}, {"adc.gain_drift", "0.1%"}});
+  ASSERT_EQ(drift.drift_inputs.size(), 7u);
+  const Design life = at_end_of_life(drift);
+  const auto all = life.conditions.temperatures();
+  std::vector<double> temps;
+  for (std::size_t i = 0; i < all.size(); i += 23) temps.push_back(all[i]);
+  expect_kernel_matches_the_scalar_chain(Chain(life), temps, 256, 64, 5, "every drift");
+  const Design limits = design_with({}, testing::scenario_path("freezer_probe_limits.ini"));
+  expect_kernel_matches_the_scalar_chain(Chain(limits), limits.conditions.temperatures(), 0, 48, 7, "table limits");
 }
 
 // --- Bands against the other engines -------------------------------------------------

@@ -32,6 +32,7 @@
 #include "thermargin/engines/worst_case.hpp"
 #include "thermargin/chain/ntc.hpp"
 #include "thermargin/chain/self_heating.hpp"
+#include "thermargin/input/life.hpp"
 
 namespace thermargin {
 namespace {
@@ -190,7 +191,8 @@ TEST(Picker, MaximumSensitivityValueIsTheSensorResistanceAtTheWindowCentre) {
 Truth worst_case_of(const Scenario& base, double r_fixed) {
   Scenario s = base;
   s.set("divider.r_fixed", text(r_fixed), Where{Origin::command_line, "", 0, "divider.r_fixed"});
-  const Design d = build_design(s);
+  // On the verdict's basis, as pick ranks: the end-of-life design when drift is set (life.hpp).
+  const Design d = design_for_verdict(build_design(s));
   const Chain chain(d);
   Truth t;
   t.r = r_fixed;

@@ -250,7 +250,8 @@ TEST(ResponseAnalysis, MoreSamplesPerReadingThatItNamesMeetTheLimitWithNoFilter)
   const std::string file = testing::scenario_path("charger_stop.ini");
   const testing::Overrides tight{{"requirement.max_error", "1.2"}, {"response.ramp", "0.1"}};
   const Scenario sc = testing::scenario_with(tight, file);
-  const ResponseAnalysis a = analyse_response(Chain(build_design(sc)), read_response_section(sc));
+  const Design da = build_design(sc);
+  const ResponseAnalysis a = analyse_response(Chain(da), read_response_section(sc));
   ASSERT_FALSE(a.recommended.has_value());
   ASSERT_TRUE(a.what_would.averaging.has_value());
   EXPECT_GT(*a.what_would.averaging, 1);
@@ -258,7 +259,8 @@ TEST(ResponseAnalysis, MoreSamplesPerReadingThatItNamesMeetTheLimitWithNoFilter)
   more.push_back({"adc.averaging", std::to_string(*a.what_would.averaging)});
   more.push_back({"response.filter", "none"});
   const Scenario sm = testing::scenario_with(more, file);
-  const ResponseAnalysis b = analyse_response(Chain(build_design(sm)), read_response_section(sm));
+  const Design db = build_design(sm);
+  const ResponseAnalysis b = analyse_response(Chain(db), read_response_section(sm));
   EXPECT_TRUE(b.rows[b.chosen].meets) << b.rows[b.chosen].total_max_abs;
   EXPECT_NE(recommendation_text(a).find("samples per reading (adc.averaging)"), std::string::npos);
 }

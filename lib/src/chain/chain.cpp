@@ -3,6 +3,7 @@
 #include <cmath>
 
 #include "thermargin/chain/divider.hpp"
+#include "thermargin/chain/drift.hpp"
 #include "thermargin/chain/self_heating.hpp"
 #include "thermargin/chain/sensor.hpp"
 #include "thermargin/chain/supply.hpp"
@@ -41,8 +42,9 @@ double at(const Deviations& d, Source s) { return d[static_cast<std::size_t>(s)]
 
 FrontEnd Chain::front_end(const Deviations& dev, double t_c) const { return adc_stage(analog_front_end(dev, t_c), dev); }
 
-FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& dev) const {
+FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& unit) const {
   if (fe.status != Status::ok) return fe;
+  const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
   fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset), at(dev, Source::adc_inl));
 #ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
   fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset), 0.0);
@@ -50,10 +52,12 @@ FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& dev) const {
   return fe;
 }
 
-FrontEnd Chain::analog_front_end(const Deviations& dev, double t_c) const {
+FrontEnd Chain::analog_front_end(const Deviations& unit, double t_c) const {
   const Design& d = *d_;
+  const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
   FrontEnd fe;
-  const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class));
+  const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
+                          at(dev, Source::table_spread), at(dev, Source::sensor_drift));
   const double t_board = board_temperature(d.conditions.board, t_c, at(dev, Source::board_temperature));
   const SupplyUnit supply = supply_unit(d.supply, dev, t_board);
   const double r_fixed =

@@ -36,6 +36,16 @@ struct RtTable::Interpolant {
   boost::math::interpolators::pchip<std::vector<double>> f;
 };
 
+// PCHIP of y against x = 1/T (x ascending) with the shape-preserving end slopes.
+std::shared_ptr<const RtTable::Interpolant> RtTable::make_pchip(std::vector<double> x, std::vector<double> y) {
+  const std::size_t n = x.size();
+  const double left = end_slope(x[1] - x[0], x[2] - x[1], (y[1] - y[0]) / (x[1] - x[0]),
+                                (y[2] - y[1]) / (x[2] - x[1]));
+  const double right = end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
+                                 (y[n - 2] - y[n - 3]) / (x[n - 2] - x[n - 3]));
+  return std::make_shared<RtTable::Interpolant>(RtTable::Interpolant{{std::move(x), std::move(y), left, right}});
+}
+
 RtTable::RtTable(const RtData& data) : source_(data.file) {
   if (data.points.size() < 4)
     reject_at(data.file, 0,
@@ -59,12 +69,25 @@ RtTable::RtTable(const RtData& data) : source_(data.file) {
     x.push_back(1.0 / t_[i]);
     y.push_back(lnr_[i]);
   }
-  const std::size_t n = x.size();
-  const double left = end_slope(x[1] - x[0], x[2] - x[1], (y[1] - y[0]) / (x[1] - x[0]),
-                                (y[2] - y[1]) / (x[2] - x[1]));
-  const double right = end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
-                                 (y[n - 2] - y[n - 3]) / (x[n - 2] - x[n - 3]));
-  curve_ = std::make_shared<Interpolant>(Interpolant{{std::move(x), std::move(y), left, right}});
+  if (data.has_limits) {
+    // The points by ascending 1/T (descending temperature), as x.
+    std::vector<const RtPoint*> by_x;
+    for (const auto& p : data.points) by_x.push_back(&p);
+    std::sort(by_x.begin(), by_x.end(), [](const RtPoint* a, const RtPoint* b) { return a->t_celsius > b->t_celsius; });
+    std::vector<double> up, down;
+    for (const RtPoint* p : by_x) {
+      up.push_back(std::log(p->r_max_ohm / p->r_ohm));
+      down.push_back(std::log(p->r_ohm / p->r_min_ohm));
+    }
+    upper_ = make_pchip(x, std::move(up));
+    lower_ = make_pchip(x, std::move(down));
+  }
+  curve_ = make_pchip(std::move(x), std::move(y));
+}
+
+std::optional<double> RtTable::spread(double t, bool upper) const {
+  if (!covers(t) || !upper_) return std::nullopt;
+  return (upper ? upper_ : lower_)->f(1.0 / t);
 }
 
 std::optional<double> RtTable::ln_resistance(double t) const {

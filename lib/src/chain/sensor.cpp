@@ -44,8 +44,9 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
   return std::nullopt;
 }
 
-SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k)
-    : s_(&s), rtd_k_(rtd_k) {
+SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z,
+                       double drift)
+    : s_(&s), rtd_k_(rtd_k), table_z_(table_z), drift_shift_(std::log1p(drift)) {
   if (s.kind != SensorKind::rtd) {
     // The stretch is about T0; a table that misses 25 °C has been refused
     // upstream whenever a tolerance is active, so ln_r0 is only used then.
@@ -59,12 +60,21 @@ std::optional<double> SensorUnit::ln_resistance(double t) const {
   if (s_->kind == SensorKind::rtd) {
     const double tc = t - kelvin_offset;
     const double bound = s_->rtd_class ? class_bound(*s_->rtd_class, tc) : 0.0;
-    return nominal_ln_resistance(*s_, t + rtd_k_ * bound);
+    const auto l = nominal_ln_resistance(*s_, t + rtd_k_ * bound);
+    if (!l || drift_shift_ == 0.0) return l;
+    return *l + drift_shift_;
   }
   auto l = nominal_ln_resistance(*s_, t);
   if (!l) return std::nullopt;
-  if (shift_ == 0.0 && stretch_ == 1.0) return l;
-  return ln_r0_ + shift_ + stretch_ * (*l - ln_r0_);
+  if (table_z_ != 0.0) {
+    const auto h = s_->table->spread(t, table_z_ > 0.0);
+    if (!h) return std::nullopt;
+    *l += table_z_ * *h;
+  }
+  // The drift over life shifts the unit's curve as it is (outside the stretch).
+  if (shift_ == 0.0 && stretch_ == 1.0) return drift_shift_ == 0.0 ? l : *l + drift_shift_;
+  const double unit = ln_r0_ + shift_ + stretch_ * (*l - ln_r0_);
+  return drift_shift_ == 0.0 ? unit : unit + drift_shift_;
 }
 
 }  // namespace thermargin

@@ -7,6 +7,8 @@
 #include <map>
 #include <string>
 
+#include "thermargin/input/life.hpp"
+
 namespace thermargin {
 
 std::string_view to_string(Requirement::Basis b) {
@@ -102,7 +104,9 @@ void require_feasible(const Design& d, const Scenario& s, const BudgetOptions& o
   }
 }
 
-Budget run_budget(const Chain& chain, const BudgetOptions& options) {
+namespace {
+
+Budget budget_of(const Chain& chain, const BudgetOptions& options) {
   const Design& d = chain.design();
   const auto temps = d.conditions.temperatures();
   Budget b;
@@ -237,6 +241,25 @@ Budget run_budget(const Chain& chain, const BudgetOptions& options) {
                   wc_basis ? "worst-case" : "linear-budget", v.worst_abs_error, v.worst_at, limit);
     v.reason = buf;
   }
+  return b;
+}
+
+}  // namespace
+
+Budget run_budget(const Chain& chain, const BudgetOptions& options) {
+  Budget b = budget_of(chain, options);
+  const Design& d = chain.design();
+  if (!has_drift(d)) return b;
+  auto life = std::make_shared<EndOfLife>();
+  life->design = at_end_of_life(d);
+  life->budget = budget_of(Chain(life->design), options);
+  life->delivery_verdict = b.verdict;
+  if (d.requirement.at == Requirement::At::end_of_life) {
+    b.verdict = life->budget.verdict;
+    b.verdict.at = Requirement::At::end_of_life;
+    b.verdict.reason = "at end of life: " + b.verdict.reason;
+  }
+  b.end_of_life = std::move(life);
   return b;
 }
 

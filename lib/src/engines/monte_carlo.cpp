@@ -15,6 +15,7 @@
 #include <boost/math/distributions/binomial.hpp>
 
 #include "thermargin/chain/divider.hpp"
+#include "thermargin/chain/drift.hpp"
 #include "thermargin/engines/random.hpp"
 #include "thermargin/chain/self_heating.hpp"
 #include "thermargin/chain/sensor.hpp"
@@ -168,6 +169,11 @@ RunConstants make_constants(const Chain& chain) {
     if (auto l = nominal_ln_resistance(d.sensor, t0_kelvin)) c.ln_r0 = *l;
   for (const auto& in : d.inputs)
     if (in.source != Source::board_temperature) c.active.push_back(static_cast<int>(in.source));
+  // A drift is folded into its target's row (chain/drift.hpp): copy that row too.
+  for (const auto& in : d.inputs)
+    if (const int target = static_cast<int>(drift_target(in.source));
+        std::find(c.active.begin(), c.active.end(), target) == c.active.end())
+      c.active.push_back(target);
   return c;
 }
 
@@ -195,6 +201,9 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     const Deviations dv = draw_unit(*c.d, first + static_cast<std::uint64_t>(u));
     for (int s : c.active) b.dev[s][u] = dv[static_cast<std::size_t>(s)];
     b.ln_shift[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
+    // The sensor's drift over life shifts ln R like R25's tolerance (sensor.hpp).
+    if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
+      b.ln_shift[u] += std::log1p(drift);
   }
 }
 
@@ -356,7 +365,8 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
       }
     } else {
       for (int u = 0; u < block_size; ++u) {
-        const SensorUnit s(d.sensor, dev(Source::r25)[u], dev(Source::beta)[u], dev(Source::rtd_class)[u]);
+        const SensorUnit s(d.sensor, dev(Source::r25)[u], dev(Source::beta)[u], dev(Source::rtd_class)[u],
+                           dev(Source::table_spread)[u], dev(Source::sensor_drift)[u]);
         const auto l = s.ln_resistance(te[u]);
         if (!l) status[u] = static_cast<std::uint8_t>(Status::out_of_table);
         r_el[u] = l ? *l : 0.0;
@@ -741,7 +751,7 @@ Deviations draw_unit(const std::vector<ToleranceInput>& inputs, double sigma_per
 }
 
 Deviations draw_unit(const Design& d, std::uint64_t unit) {
-  return draw_unit(d.inputs, d.montecarlo.sigma_per_tol, d.montecarlo.seed, unit);
+  return with_drift(draw_unit(d.inputs, d.montecarlo.sigma_per_tol, d.montecarlo.seed, unit));
 }
 
 McPoint monte_carlo_model(const std::function<double(const Deviations&)>& model,

@@ -37,6 +37,18 @@ std::string resolve_path(const Scenario& s, const std::string& file) {
   return (fs::path(st.where.file).parent_path() / file).string();
 }
 
+// A table with limit columns holds the unit spread itself (docs/model.md):
+// R25/B tolerances on top of it would count the spread twice. Their
+// built-in defaults give way to the table; a value set in the scenario or
+// on the command line is refused unless it is 0.
+void require_no_tolerances_beside_limits(const R& r, SensorSettings& se) {
+  for (const char* k : {"sensor.r25_tol", "sensor.beta_tol"})
+    if (!r.is_default(k) && r.number(k) != 0.0)
+      r.fail(k, "must be 0 with a table that carries its own limits (" + r.text("sensor.table_file") +
+                    "): the table already holds the unit spread; set it to 0 or use a table without limit columns");
+  se.r25_tol = se.beta_tol = 0.0;
+}
+
 void read_sensor_table(const R& r, SensorSettings& se) {
   const auto& tf = r.at("sensor.table_file");
   if (tf.value.empty()) r.fail("sensor.table_file", "model = table needs a table file (CSV of degC, ohm)");
@@ -46,6 +58,7 @@ void read_sensor_table(const R& r, SensorSettings& se) {
   } catch (const input_error& e) {
     reject(tf.where, tf.value, std::string("the table cannot be used: ") + e.what());
   }
+  if (se.table->has_limits()) require_no_tolerances_beside_limits(r, se);
   if ((se.r25_tol > 0.0 || se.beta_tol > 0.0) && !se.table->covers(t0_kelvin))
     r.fail("sensor.r25_tol", "tolerances are defined at 25 degC, which the table does not cover; extend the table "
                              "or set the tolerances to 0");
@@ -359,6 +372,51 @@ void collect_inputs(const R& r, Design& d) {
     d.inputs.push_back({Source::board_temperature, board.half_width(), Distribution::uniform, 0.0});
 }
 
+// Over the product's life (life.hpp): each drift a ± bound below 100 %
+// (the offset's in LSB), active only in the end-of-life design. The
+// supply's drifts, like its tolerances, have no effect on a ratiometric one.
+void read_drift(const R& r, Design& d) {
+  d.sensor.drift = r.tolerance("sensor.drift");
+  d.divider.r_fixed_drift = r.tolerance("divider.r_fixed_drift");
+  d.supply.v_reference_drift = r.tolerance("supply.v_reference_drift");
+  d.supply.v_reference_hysteresis = r.tolerance("supply.v_reference_hysteresis");
+  d.supply.v_excitation_drift = r.tolerance("supply.v_excitation_drift");
+  d.adc.offset_drift = r.non_negative("adc.offset_drift");
+  d.adc.gain_drift = r.tolerance("adc.gain_drift");
+  if (d.adc.offset + d.adc.offset_drift >= d.adc_span() / 2)
+    r.fail("adc.offset_drift", "adc.offset plus its drift must be less than half the ADC span");
+  if (d.supply.ratiometric)
+    for (const char* k : {"supply.v_reference_drift", "supply.v_reference_hysteresis", "supply.v_excitation_drift"})
+      if (r.number(k) != 0.0)
+        r.fail(k, "has no effect with supply.ratiometric = true (the errors cancel); set it to 0 or make the supply absolute");
+  d.requirement.at = r.word<Requirement::At>(
+      "requirement.at", {{"end-of-life", Requirement::At::end_of_life}, {"delivery", Requirement::At::delivery}});
+}
+
+// The drift inputs, kept apart from the inputs at delivery (Design::drift_inputs).
+void collect_drift_inputs(const R& r, Design& d) {
+  const std::size_t delivered = d.inputs.size();
+  InputCollector in(r, d);
+  in.add(Source::sensor_drift, d.sensor.drift);
+  in.add(Source::r_fixed_drift, d.divider.r_fixed_drift);
+  if (!d.supply.ratiometric) {
+    in.add(Source::v_excitation_drift, d.supply.v_excitation_drift);
+    in.add(Source::v_reference_drift, d.supply.v_reference_drift);
+    in.add(Source::v_reference_hysteresis, d.supply.v_reference_hysteresis);
+  }
+  in.add(Source::adc_offset_drift, d.adc.offset_drift);
+  in.add(Source::adc_gain_drift, d.adc.gain_drift);
+  d.drift_inputs.assign(d.inputs.begin() + static_cast<std::ptrdiff_t>(delivered), d.inputs.end());
+  d.inputs.resize(delivered);
+}
+
+// A table with limit columns: the unit's factor z in [−1, 1] between the
+// nominal curve and the limits is an input (sensor.hpp).
+void collect_table_spread(const R& r, Design& d) {
+  const SensorSettings& se = d.sensor;
+  if (se.kind == SensorKind::table && se.table->has_limits()) InputCollector(r, d).add(Source::table_spread, 1.0);
+}
+
 }  // namespace
 
 Design build_design(const Scenario& s) {
@@ -377,6 +435,9 @@ Design build_design(const Scenario& s) {
   read_requirement(r, d.conditions, d.requirement);
   read_montecarlo(r, d.montecarlo);
   collect_inputs(r, d);
+  collect_table_spread(r, d);
+  read_drift(r, d);
+  collect_drift_inputs(r, d);
   return d;
 }
 

@@ -1,5 +1,6 @@
 #include "thermargin/input/rt_data.hpp"
 
+#include <cctype>
 #include <fstream>
 #include <sstream>
 
@@ -36,6 +37,65 @@ bool looks_numeric(const std::string& field) {
   return false;
 }
 
+std::string lower(std::string s) {
+  for (char& ch : s) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+  return s;
+}
+
+// The columns of the unit spread, read from the header's names (rt_data.hpp);
+// 0: none (1-based columns otherwise).
+struct LimitColumns {
+  int min = 0, max = 0, tolerance = 0;
+  bool any() const { return tolerance > 0 || (min > 0 && max > 0); }
+};
+
+LimitColumns limit_columns(const std::vector<std::string>& header) {
+  LimitColumns c;
+  for (std::size_t i = 2; i < header.size(); ++i) {
+    const std::string name = lower(header[i]);
+    const int col = static_cast<int>(i) + 1;
+    if (name.find("min") != std::string::npos) c.min = col;
+    else if (name.find("max") != std::string::npos) c.max = col;
+    else if (name.find("tol") != std::string::npos) c.tolerance = col;
+  }
+  if (c.tolerance > 0) c.min = c.max = 0;
+  return c;
+}
+
+// The limits of one line of a table with limits; refused where they do not
+// enclose the nominal resistance.
+void read_limits(const std::vector<std::string>& fields, const LimitColumns& c, const std::string& name, int line_no,
+                 RtPoint& p) {
+  const std::size_t want = c.tolerance > 0 ? 3 : 4;
+  if (fields.size() != want)
+    reject_at(name, line_no,
+              c.tolerance > 0
+                  ? "expected 3 columns: temperature (degC), resistance (ohm), +/- tolerance (%); found " +
+                        std::to_string(fields.size())
+                  : "expected 4 columns: temperature (degC), resistance (ohm), R_min and R_max (ohm); found " +
+                        std::to_string(fields.size()));
+  if (c.tolerance > 0) {
+    Where w{Origin::file, name, line_no, "tolerance", c.tolerance};
+    const std::string& f = fields[static_cast<std::size_t>(c.tolerance - 1)];
+    const double tol = f.find('%') != std::string::npos ? parse_quantity(f, Quantity::ratio, w)
+                                                        : parse_quantity(f, Quantity::plain, w) / 100.0;
+    if (!(tol >= 0.0 && tol < 1.0)) reject(w, f, "must be a +/- tolerance in % from 0 up to (not including) 100 %");
+    p.r_min_ohm = p.r_ohm * (1.0 - tol);
+    p.r_max_ohm = p.r_ohm * (1.0 + tol);
+    return;
+  }
+  Where w{Origin::file, name, line_no, "r_min", c.min};
+  const std::string& fmin = fields[static_cast<std::size_t>(c.min - 1)];
+  p.r_min_ohm = parse_quantity(fmin, Quantity::resistance, w);
+  if (!(p.r_min_ohm > 0.0 && p.r_min_ohm <= p.r_ohm))
+    reject(w, fmin, "must be a resistance > 0 and not above the nominal resistance of the line");
+  w.key = "r_max";
+  w.column = c.max;
+  const std::string& fmax = fields[static_cast<std::size_t>(c.max - 1)];
+  p.r_max_ohm = parse_quantity(fmax, Quantity::resistance, w);
+  if (!(p.r_max_ohm >= p.r_ohm)) reject(w, fmax, "must be a resistance not below the nominal resistance of the line");
+}
+
 }  // namespace
 
 RtData parse_rt_data(const std::string& text, const std::string& name) {
@@ -43,6 +103,7 @@ RtData parse_rt_data(const std::string& text, const std::string& name) {
   data.file = name;
   int line_no = 0;
   bool seen_content = false;
+  LimitColumns limits;
   for (const std::string& raw : split_lines(text, name)) {
     ++line_no;
     std::string line = raw.substr(0, raw.find('#'));
@@ -50,10 +111,12 @@ RtData parse_rt_data(const std::string& text, const std::string& name) {
     auto fields = split_fields(line);
     if (!seen_content && !looks_numeric(fields[0])) {
       seen_content = true;  // a header line
+      limits = limit_columns(fields);
+      data.has_limits = limits.any();
       continue;
     }
     seen_content = true;
-    if (fields.size() < 2 || fields.size() > 3)
+    if (!limits.any() && (fields.size() < 2 || fields.size() > 3))
       reject_at(name, line_no,
                 "expected 2 or 3 columns: temperature (degC), resistance (ohm), optional uncertainty (ohm or %); found " +
                     std::to_string(fields.size()));
@@ -66,7 +129,9 @@ RtData parse_rt_data(const std::string& text, const std::string& name) {
     w.column = 2;
     p.r_ohm = parse_quantity(fields[1], Quantity::resistance, w);
     if (!(p.r_ohm > 0.0)) reject(w, fields[1], "must be a resistance > 0");
-    if (fields.size() == 3) {
+    if (limits.any()) {
+      read_limits(fields, limits, name, line_no, p);
+    } else if (fields.size() == 3) {
       w.key = "uncertainty";
       w.column = 3;
       const bool relative = fields[2].find('%') != std::string::npos;

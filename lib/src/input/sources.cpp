@@ -28,6 +28,14 @@ const SourceInfo& info(Source s) {
       {"firmware.calibration_uncertainty", "calibration_2", "calibration reference (point 2)",
        Quantity::temperature_difference},
       {"conditions.board", "board_temperature", "board temperature range", Quantity::temperature_difference},
+      {"sensor.drift", "sensor_drift", "sensor drift over life", Quantity::ratio},
+      {"divider.r_fixed_drift", "r_fixed_drift", "fixed resistor drift over life", Quantity::ratio},
+      {"supply.v_excitation_drift", "v_excitation_drift", "excitation drift over life", Quantity::ratio},
+      {"supply.v_reference_drift", "v_reference_drift", "reference drift over life", Quantity::ratio},
+      {"supply.v_reference_hysteresis", "v_reference_hysteresis", "reference thermal hysteresis", Quantity::ratio},
+      {"adc.offset_drift", "adc_offset_drift", "ADC offset drift over life", Quantity::lsb},
+      {"adc.gain_drift", "adc_gain_drift", "ADC gain drift over life", Quantity::ratio},
+      {"sensor.table_file", "table_spread", "sensor spread (R-T table limits)", Quantity::plain},
   }};
   return table[static_cast<std::size_t>(s)];
 }

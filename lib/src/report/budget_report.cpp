@@ -152,6 +152,17 @@ Figure error_figure(const Design& d, const Budget& b) {
                                    return p.mc->high;
                                  }),
                                  slot(2)));
+  if (b.end_of_life)  // over the product's life: the worst case with the drift inputs (docs/model.md §11)
+    c.series.push_back(svg::band("wc_end_of_life", "Worst case at end of life", t,
+                                 column(b.end_of_life->budget, [](const BudgetPoint& p) -> std::optional<double> {
+                                   if (!wc_ok(p)) return std::nullopt;
+                                   return p.wc.low;
+                                 }),
+                                 column(b.end_of_life->budget, [](const BudgetPoint& p) -> std::optional<double> {
+                                   if (!wc_ok(p)) return std::nullopt;
+                                   return p.wc.high;
+                                 }),
+                                 slot(4)));
   c.series.push_back(svg::reference("limit", "\u00b1" + kelvin(d.requirement.max_error) + " limit",
                                     {-d.requirement.max_error, d.requirement.max_error}));
   c.series.push_back(svg::line("nominal", "Nominal", t, column(b, [](const BudgetPoint& p) -> std::optional<double> {

@@ -17,6 +17,7 @@ using std::isnan;
 }
 #include <boost/math/interpolators/pchip.hpp>
 
+#include "thermargin/chain/rt_table.hpp"
 #include "thermargin/core/error.hpp"
 
 namespace thermargin {
@@ -546,6 +547,249 @@ std::string scenario_snippet(const FitResult& result, std::size_t index) {
   text += "[sensor]\nmodel = " + f.model + "\n" + coefficients;
   text += "\n[firmware]\nconversion = " + f.model + "\n" + coefficients;
   return text;
+}
+
+}  // namespace thermargin
+
+// ------------------------------------------------ platinum RTD data
+
+namespace thermargin {
+namespace {
+
+// IEC 60751:2008's coefficients, as rtd.hpp holds them.
+constexpr CallendarVanDusen iec60751{};
+
+// The nominal R0 the data stand for: of 100, 500 and 1000 ohm (Pt100 in
+// IEC 60751, Pt500 and Pt1000 in common practice) the nearest in ratio.
+double nominal_r0(double r0) {
+  double best = 100.0;
+  for (double n : {500.0, 1000.0})
+    if (std::abs(std::log(r0 / n)) < std::abs(std::log(r0 / best))) best = n;
+  return best;
+}
+
+Eigen::RowVectorXd cvd_row(double t, bool with_c) {
+  Eigen::RowVectorXd row(with_c ? 4 : 3);
+  row(0) = 1.0;
+  row(1) = t;
+  row(2) = t * t;
+  if (with_c) row(3) = t < 0.0 ? (t - 100.0) * t * t * t : 0.0;
+  return row;
+}
+
+// The coefficients and their uncertainties from the linear unknowns
+// p = (R0, R0·A, R0·B[, R0·C]): A = p1/p0 …, cov = J·cov(p)·Jᵀ (GUM §5.1.2).
+void set_coefficients(RtdFit& f, const LinearSolution& s) {
+  const Eigen::Index n = s.x.size();
+  const double p0 = s.x(0);
+  Eigen::VectorXd v(n);
+  Eigen::MatrixXd jac = Eigen::MatrixXd::Zero(n, n);
+  v(0) = p0;
+  jac(0, 0) = 1.0;
+  for (Eigen::Index i = 1; i < n; ++i) {
+    v(i) = s.x(i) / p0;
+    jac(i, 0) = -s.x(i) / (p0 * p0);
+    jac(i, i) = 1.0 / p0;
+  }
+  std::optional<Eigen::MatrixXd> cov;
+  if (s.covariance) cov = jac * *s.covariance * jac.transpose();
+  static const char* names[] = {"r0", "a", "b", "c"};
+  static const char* units[] = {"ohm", "1/degC", "1/degC^2", "1/degC^4"};
+  for (Eigen::Index i = 0; i < n; ++i) {
+    FitCoefficient c{names[i], units[i], v(i), std::nullopt};
+    if (cov) c.uncertainty = std::sqrt(std::max((*cov)(i, i), 0.0));
+    f.coefficients.push_back(c);
+  }
+  f.cvd = {v(0), v(1), v(2), n > 3 ? v(3) : 0.0};
+}
+
+// The data against the standard curve with the nominal R0, and the tightest
+// class every point of the window meets.
+void judge_against_standard(RtdFit& f, const RtData& data, const std::vector<std::size_t>& window) {
+  f.nominal_r0 = nominal_r0(f.cvd.r0);
+  f.delta_a = f.cvd.a - iec60751.a;
+  f.delta_b = f.cvd.b - iec60751.b;
+  f.delta_c = f.fitted_c ? f.cvd.c - iec60751.c : 0.0;
+  CallendarVanDusen standard = iec60751;
+  standard.r0 = f.nominal_r0;
+  std::vector<double> deviation;
+  for (std::size_t i : window) {
+    const RtPoint& p = data.points[i];
+    deviation.push_back(temperature_celsius(standard, p.r_ohm) - p.t_celsius);
+    if (std::abs(deviation.back()) >= std::abs(f.max_deviation) || deviation.size() == 1) {
+      f.max_deviation = deviation.back();
+      f.max_deviation_at = p.t_celsius;
+    }
+  }
+  for (RtdClass cls : {RtdClass::AA, RtdClass::A, RtdClass::B, RtdClass::C}) {
+    double use = 0.0;
+    for (std::size_t j = 0; j < window.size(); ++j)
+      use = std::max(use, std::abs(deviation[j]) / class_bound(cls, data.points[window[j]].t_celsius));
+    if (use <= 1.0) {
+      f.met_class = cls;
+      f.class_use = use;
+      return;
+    }
+  }
+}
+
+}  // namespace
+
+bool rises_with_temperature(const RtData& data) {
+  const auto& p = data.points;
+  return p.size() >= 2 && (p[1].r_ohm > p[0].r_ohm) == (p[1].t_celsius > p[0].t_celsius);
+}
+
+std::string_view to_string(RtdClass cls) {
+  switch (cls) {
+    case RtdClass::AA: return "AA";
+    case RtdClass::A: return "A";
+    case RtdClass::B: return "B";
+    case RtdClass::C: return "C";
+  }
+  return "";
+}
+
+RtdFit fit_rtd_data(const RtData& data, const FitSettings& settings) {
+  check_settings(settings);
+  require_monotonic(data);
+  if (!data.points.empty() && !rises_with_temperature(data))
+    reject_at(data.file, data.points.front().line, 2,
+              "the resistance falls with temperature: a platinum RTD's rises (fit this file's NTC models instead)");
+  RtdFit f;
+  f.file = data.file;
+  f.weighted = data.has_uncertainty;
+  std::vector<std::size_t> window;
+  for (std::size_t i = 0; i < data.points.size(); ++i) {
+    const RtPoint& p = data.points[i];
+    if (p.t_celsius >= settings.t_min && p.t_celsius <= settings.t_max) window.push_back(i);
+  }
+  f.points_in_window = window.size();
+  for (std::size_t i : window) f.fitted_c = f.fitted_c || data.points[i].t_celsius < 0.0;
+  const std::size_t unknowns = f.fitted_c ? 4 : 3;
+  if (window.size() < unknowns + 1)
+    reject_at(data.file, data.points.empty() ? 0 : data.points.back().line,
+              "the Callendar-Van Dusen fit needs at least " + std::to_string(unknowns + 1) + " points in the window (" +
+                  (f.fitted_c ? "R0, A, B and C: the window reaches below 0 degC" : "R0, A and B") + "); found " +
+                  std::to_string(window.size()));
+  const auto n = static_cast<Eigen::Index>(window.size());
+  Eigen::MatrixXd x(n, static_cast<Eigen::Index>(unknowns));
+  Eigen::VectorXd y(n), sigma(n);
+  f.window_low = std::numeric_limits<double>::infinity();
+  f.window_high = -f.window_low;
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const RtPoint& p = data.points[window[static_cast<std::size_t>(i)]];
+    x.row(i) = cvd_row(p.t_celsius, f.fitted_c);
+    y(i) = p.r_ohm;
+    sigma(i) = p.u_ohm;
+    f.window_low = std::min(f.window_low, p.t_celsius);
+    f.window_high = std::max(f.window_high, p.t_celsius);
+  }
+  const LinearSolution s = solve(x, y, f.weighted ? &sigma : nullptr);
+  f.dof = static_cast<int>(n) - static_cast<int>(unknowns);
+  if (f.weighted) f.chi_squared = s.chi_squared;
+  set_coefficients(f, s);
+  double sum_sq = 0.0;
+  bool first = true;
+  for (std::size_t i = 0; i < data.points.size(); ++i) {
+    const RtPoint& p = data.points[i];
+    const bool inside = std::find(window.begin(), window.end(), i) != window.end();
+    const double t = temperature_celsius(f.cvd, p.r_ohm);
+    const bool solved = t > -kelvin_offset;
+    FitResidual r{p.line, p.t_celsius, p.r_ohm, inside, solved ? t - p.t_celsius : -(p.t_celsius + kelvin_offset), solved};
+    f.residuals.push_back(r);
+    if (!inside) continue;
+    sum_sq += r.residual * r.residual;
+    if (first || std::abs(r.residual) > std::abs(f.max_residual)) {
+      f.max_residual = r.residual;
+      f.max_residual_at = p.t_celsius;
+      first = false;
+    }
+  }
+  f.rms_residual = std::sqrt(sum_sq / static_cast<double>(n));
+  judge_against_standard(f, data, window);
+  return f;
+}
+
+std::string rtd_scenario_snippet(const RtdFit& f) {
+  std::string text = "# thermargin fit of " + f.file + ": Callendar-Van Dusen (least-squares), largest residual " +
+                     fmt("%.3g", std::abs(f.max_residual)) + " K over " + fmt("%g", f.window_low) + ".." +
+                     fmt("%g", f.window_high) + " degC\n";
+  if (!f.fitted_c)
+    text += "# No data below 0 degC: C is not fitted and stays IEC 60751's, used below 0 degC only.\n";
+  text += "[sensor]\nmodel = rtd\nr0 = " + fmt("%.10g", f.cvd.r0) + "\ncvd_a = " + fmt("%.10g", f.cvd.a) +
+          "\ncvd_b = " + fmt("%.10g", f.cvd.b) + "\ncvd_c = " + fmt("%.10g", f.fitted_c ? f.cvd.c : iec60751.c) + "\n";
+  if (f.met_class)
+    text += "# The data meet IEC 60751 class " + std::string(to_string(*f.met_class)) +
+            " against the standard curve: rtd_class = " + std::string(to_string(*f.met_class)) +
+            " describes units bought to that class.\n";
+  text += "\n[firmware]\nconversion = exact\n";
+  return text;
+}
+
+// ------------------------------------------------ a table with limits
+
+namespace {
+
+// The minimum of a unimodal f on [lo, hi] by golden-section search; returns x.
+template <class F>
+double golden_minimum(F f, double lo, double hi) {
+  const double g = 0.5 * (std::sqrt(5.0) - 1.0);
+  double a = lo, b = hi, c = b - g * (b - a), d = a + g * (b - a);
+  double fc = f(c), fd = f(d);
+  for (int i = 0; i < 200 && b - a > 1e-12; ++i) {
+    if (fc <= fd) {
+      b = d, d = c, fd = fc, c = b - g * (b - a), fc = f(c);
+    } else {
+      a = c, c = d, fc = fd, d = a + g * (b - a), fd = f(d);
+    }
+  }
+  return 0.5 * (a + b);
+}
+
+struct SpreadPoint {
+  double t_celsius, distance, upper, lower, slope;  // |L|, h+, h−, |d ln R/dT|
+};
+
+// The beta model's largest difference from the limits (K) and where.
+std::pair<double, double> spread_difference(const std::vector<SpreadPoint>& pts, double a, double b) {
+  double worst = 0.0, at = 0.0;
+  for (const auto& p : pts) {
+    for (const double diff : {(std::log1p(a) + b * p.distance - p.upper) / p.slope,
+                              (-std::log1p(-a) + b * p.distance - p.lower) / p.slope})
+      if (std::abs(diff) > std::abs(worst)) worst = diff, at = p.t_celsius;
+  }
+  return {worst, at};
+}
+
+}  // namespace
+
+SpreadFit fit_spread(const RtData& data, const FitSettings& settings) {
+  SpreadFit out;
+  if (!data.has_limits || data.points.size() < 4) return out;
+  const RtTable table(data);
+  const auto l25 = table.ln_resistance(t0_kelvin);
+  if (!l25) return out;
+  std::vector<SpreadPoint> pts;
+  for (const auto& p : data.points) {
+    if (p.t_celsius < settings.t_min || p.t_celsius > settings.t_max) continue;
+    const double t = p.t_celsius + kelvin_offset;
+    const auto slope = table.ln_resistance_slope(t);
+    if (!slope || *slope == 0.0) continue;
+    pts.push_back({p.t_celsius, std::abs(std::log(p.r_ohm) - *l25), std::log(p.r_max_ohm / p.r_ohm),
+                   std::log(p.r_ohm / p.r_min_ohm), std::abs(*slope)});
+  }
+  if (pts.empty()) return out;
+  // For each beta tolerance the best R25 tolerance; then the best pair.
+  auto best_a = [&](double b) {
+    return golden_minimum([&](double a) { return std::abs(spread_difference(pts, a, b).first); }, 0.0, 0.5);
+  };
+  const double b = golden_minimum([&](double bb) { return std::abs(spread_difference(pts, best_a(bb), bb).first); },
+                                  0.0, 0.2);
+  const double a = best_a(b);
+  const auto [worst, at] = spread_difference(pts, a, b);
+  out = {true, a, b, worst, at};
+  return out;
 }
 
 }  // namespace thermargin

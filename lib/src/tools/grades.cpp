@@ -15,6 +15,7 @@
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/tools/series.hpp"
+#include "thermargin/input/life.hpp"
 
 namespace thermargin {
 
@@ -165,7 +166,8 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
       picked_rss = w.rss_max_abs;
     }
   }
-  Design d = build_design(s);
+  // On the verdict's basis: at end of life when drift is set and requirement.at says so.
+  Design d = design_for_verdict(build_design(s));
   d.montecarlo.threads = 1;  // threads are spread over combinations instead
   f.requirement = d.requirement;
   const Chain chain(d);

@@ -22,6 +22,7 @@
 #include "thermargin/engines/nominal.hpp"
 #include "thermargin/chain/sensor.hpp"
 #include "thermargin/engines/worst_case.hpp"
+#include "thermargin/input/life.hpp"
 
 namespace thermargin {
 
@@ -104,11 +105,13 @@ struct Context {
   std::vector<double> values;  // the r_fixed candidates, ascending
 };
 
-// A candidate's design and its chain (which points into the design).
+// A candidate's design and its chain (which points into the design): the
+// design the verdict is judged on, at end of life when drift is set and
+// requirement.at says so (life.hpp), so that candidates rank on that basis.
 struct Built {
   Design design;
   Chain chain;
-  explicit Built(Design d) : design(std::move(d)), chain(design) {}
+  explicit Built(Design d) : design(design_for_verdict(d)), chain(design) {}
   Built(const Built&) = delete;
   Built& operator=(const Built&) = delete;
 };

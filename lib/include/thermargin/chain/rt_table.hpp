@@ -36,9 +36,18 @@ class RtTable {
   const std::vector<double>& ln_r_points() const { return lnr_; }
   const std::string& source() const { return source_; }
 
+  // A table with limit columns (rt_data.hpp) carries the unit spread: the
+  // half-width h(T) in ln R on one side, ln(R_max/R_nom) (upper) or
+  // ln(R_nom/R_min), interpolated like the curve (PCHIP against 1/T).
+  bool has_limits() const { return static_cast<bool>(upper_); }
+  // h(T) on the upper or lower side; nullopt outside the table or without limits.
+  std::optional<double> spread(double t_kelvin, bool upper) const;
+
  private:
   struct Interpolant;
+  static std::shared_ptr<const Interpolant> make_pchip(std::vector<double> x, std::vector<double> y);
   std::shared_ptr<const Interpolant> curve_;
+  std::shared_ptr<const Interpolant> upper_, lower_;  // the spread, with limits only
   std::vector<double> t_, lnr_;  // ascending temperature
   double t_lo_ = 0, t_hi_ = 0, lnr_at_lo_ = 0, lnr_at_hi_ = 0;
   std::string source_;

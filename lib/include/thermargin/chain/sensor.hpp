@@ -26,7 +26,12 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
 // A unit's element: the nominal curve with the unit's deviations applied.
 class SensorUnit {
  public:
-  SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k);
+  // table_z: the unit's factor between the nominal curve and the limits of a
+  // table that carries them (docs/model.md §12): ln R_unit = ln R_nom + z·h(T).
+  // drift: the element's change of resistance over life, any model
+  // (docs/model.md §11): ln R_unit + ln(1 + drift).
+  SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z = 0.0,
+             double drift = 0.0);
   std::optional<double> ln_resistance(double t_kelvin) const;
 
  private:
@@ -35,6 +40,8 @@ class SensorUnit {
   double shift_ = 0.0;   // ln(1 + δR)
   double stretch_ = 1.0; // 1 + δβ
   double rtd_k_ = 0.0;
+  double table_z_ = 0.0;
+  double drift_shift_ = 0.0;  // ln(1 + drift)
 };
 
 }  // namespace thermargin

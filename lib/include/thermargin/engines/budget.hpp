@@ -8,6 +8,7 @@
 // The dominant source is the one with the largest window share.
 #pragma once
 
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -43,7 +44,12 @@ struct Verdict {
   double worst_at = 0.0;         // °C
   double margin = 0.0;           // K, limit − worst_abs_error (negative: fails)
   std::string reason;            // one sentence
+  // The budget the verdict was judged on (requirement.at); end of life only
+  // when drift is set (life.hpp).
+  Requirement::At at = Requirement::At::delivery;
 };
+
+struct EndOfLife;
 
 // Where the divider is starved: the smallest |ADC counts per kelvin| in the
 // requirement window (nominal chain), with its millivolts per kelvin and the
@@ -70,6 +76,16 @@ struct Budget {
   WeakestSensitivity weakest;
   int status_points = 0;  // points with a status other than ok (any engine)
   Verdict verdict;
+  // Over the product's life (life.hpp): the same budget of the end-of-life
+  // design, when any drift is set; the verdict above is then the one of the
+  // budget requirement.at names.
+  std::shared_ptr<const EndOfLife> end_of_life;
+};
+
+struct EndOfLife {
+  Design design;  // the delivery design with the drift inputs active
+  Budget budget;  // its budget (its own end_of_life empty)
+  Verdict delivery_verdict;  // the verdict the delivery budget alone gives
 };
 
 struct BudgetOptions {

@@ -85,7 +85,8 @@ Interval clopper_pearson(std::uint64_t k, std::uint64_t n, double alpha = 0.05);
 // Below: the kernel's building blocks, public so that tests can hold the
 // vectorised kernel against the scalar chain.
 
-// One unit's deviations, drawn from its counter-based stream.
+// One unit's deviations, drawn from its counter-based stream. The design's
+// form folds any drift into its target (chain/drift.hpp), as the chain does.
 Deviations draw_unit(const Design& d, std::uint64_t unit);
 Deviations draw_unit(const std::vector<ToleranceInput>& inputs, double sigma_per_tol, std::uint64_t seed,
                      std::uint64_t unit);

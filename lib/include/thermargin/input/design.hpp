@@ -45,6 +45,7 @@ struct SensorSettings {
   double dissipation = 1.5e-3;   // W/K; 0 switches self-heating off
   double dissipation_tol = 0.0;  // ± relative
   double lead_resistance = 0.0;  // Ω, total of both leads, in series at the sensor
+  double drift = 0.0;            // ± relative change of R over life (end of life only)
 };
 
 struct DividerSettings {
@@ -55,6 +56,7 @@ struct DividerSettings {
   std::optional<double> r_parallel;  // Ω, across the sensor branch on the board
   double r_parallel_tol = 0.0;   // ± relative
   double duty = 1.0;             // fraction of time the divider is powered
+  double r_fixed_drift = 0.0;    // ± relative over life (end of life only)
 };
 
 struct SupplySettings {
@@ -63,6 +65,8 @@ struct SupplySettings {
   double v_excitation_tol = 0.0, v_excitation_tempco = 0.0;
   double v_reference = 3.3;  // V (absolute only)
   double v_reference_tol = 0.0, v_reference_tempco = 0.0;
+  // ± relative over life (end of life only; absolute supply).
+  double v_reference_drift = 0.0, v_reference_hysteresis = 0.0, v_excitation_drift = 0.0;
 };
 
 struct AdcSettings {
@@ -74,6 +78,8 @@ struct AdcSettings {
   double noise = 0.5;        // LSB rms at the input
   int averaging = 1;         // samples per reading
   double leakage = 0.0;      // ± A
+  double offset_drift = 0.0;  // ± LSB over life (end of life only)
+  double gain_drift = 0.0;    // ± relative over life (end of life only)
 };
 
 struct FirmwareSettings {
@@ -109,6 +115,9 @@ struct Requirement {
   double max_error = 1.0;                      // ± K
   double yield = 0.99;                         // required fraction of good units
   enum class Basis { worst_case, linear, monte_carlo } basis = Basis::worst_case;  // what the verdict uses
+  // Which budget the verdict uses when drift is set: the one at delivery or
+  // at end of life (without drift the two are the same).
+  enum class At { delivery, end_of_life } at = At::end_of_life;
 };
 
 struct MonteCarloSettings {
@@ -133,6 +142,9 @@ struct Design {
   Requirement requirement;
   MonteCarloSettings montecarlo;
   std::vector<ToleranceInput> inputs;  // the active toleranced inputs (bound > 0)
+  // The drift inputs (bound > 0), active only in the end-of-life design
+  // (life.hpp): empty when no drift is set.
+  std::vector<ToleranceInput> drift_inputs;
 
   bool is_ntc() const { return sensor.kind != SensorKind::rtd; }
   // Full scale of the ADC in LSB: 2^bits.

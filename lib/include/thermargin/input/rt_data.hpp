@@ -6,6 +6,13 @@
 // commas, semicolons or tabs; `#` starts a comment; a first line that is not
 // numeric is a header. Values accept engineering notation (`10k`, `4k7`).
 // Every malformed line is refused with the file, the line and the column.
+//
+// A datasheet table may carry the unit spread per temperature (docs/model.md,
+// "A sensor's tolerance as its datasheet tabulates it"), told apart by the
+// header: columns named with "min" and "max" (R_min and R_max in ohm, in
+// either order, after the nominal resistance), or one column named with
+// "tol" or "%" (± tolerance in %, R_min = R·(1 − p), R_max = R·(1 + p)).
+// Without such a header a third column is the uncertainty, as before.
 #pragma once
 
 #include <string>
@@ -18,12 +25,15 @@ struct RtPoint {
   double r_ohm;
   double u_ohm;  // standard uncertainty of r_ohm; 0 when the file gives none
   int line;      // line in the file, for messages
+  double r_min_ohm = 0.0;  // limits of a table with limits (has_limits), else 0
+  double r_max_ohm = 0.0;
 };
 
 struct RtData {
   std::string file;
   std::vector<RtPoint> points;  // in file order
   bool has_uncertainty = false;
+  bool has_limits = false;  // every point carries r_min_ohm <= r_ohm <= r_max_ohm
 };
 
 // Reads and checks the syntax of every line (numbers, positive resistance,

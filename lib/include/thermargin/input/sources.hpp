@@ -37,6 +37,19 @@ enum class Source : int {
   calibration_1,        // K, reference error at the first calibration point
   calibration_2,        // K, at the second
   board_temperature,    // K from the middle of the board range (per reading)
+  // Over the product's life (docs/model.md "Over the product's life"): zero
+  // at delivery, toleranced inputs at end of life only. Each adds to the
+  // initial deviation of the same part (chain/drift.hpp).
+  sensor_drift,            // relative change of the element's resistance
+  r_fixed_drift,           // relative
+  v_excitation_drift,      // relative (absolute supply)
+  v_reference_drift,       // relative (absolute supply)
+  v_reference_hysteresis,  // relative (absolute supply): thermal hysteresis of the reference
+  adc_offset_drift,        // LSB
+  adc_gain_drift,          // relative
+  // An R-T table with limit columns: the unit's factor z in [−1, 1] between
+  // the nominal curve and the limits (sensor.hpp).
+  table_spread,
   count
 };
 inline constexpr int source_count = static_cast<int>(Source::count);

@@ -26,6 +26,7 @@
 #include <vector>
 
 #include "thermargin/chain/ntc.hpp"
+#include "thermargin/chain/rtd.hpp"
 #include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {
@@ -159,5 +160,79 @@ std::optional<SteinhartHart> steinhart_hart(const ModelFit& fit);
 // four-term form has no scenario model: its snippet describes the sensor by
 // the data file as a table and lists the coefficients as comments.
 std::string scenario_snippet(const FitResult& result, std::size_t index);
+
+// ------------------------------------------------ platinum RTD data
+
+// True when the data's resistance rises with temperature (a platinum RTD or
+// another PTC element): the NTC forms cannot follow it, the RTD fit can.
+bool rises_with_temperature(const RtData& data);
+
+// The Callendar–Van Dusen equation (IEC 60751:2008, §4.2)
+// R(t) = R0·[1 + A·t + B·t² + C·(t − 100 °C)·t³], the C term below 0 °C only,
+// fitted by linear least squares in R: the unknowns R0, R0·A, R0·B (and R0·C
+// when the window holds points below 0 °C) enter linearly. The data's
+// uncertainties, when given, weight the fit (1/u(R)); the coefficients'
+// uncertainties are the GUM propagation (JCGM 100:2008 §5.1.2) of the
+// estimator's covariance through A = (R0·A)/R0 and so on.
+struct RtdFit {
+  std::string file;
+  double window_low = 0.0, window_high = 0.0;  // °C, the data inside the window
+  std::size_t points_in_window = 0;
+  bool fitted_c = false;      // the window reaches below 0 °C
+  bool weighted = false;
+  int dof = 0;
+  double chi_squared = 0.0;   // weighted fits only
+  CallendarVanDusen cvd;      // the fitted curve (c = 0 when not fitted)
+  std::vector<FitCoefficient> coefficients;  // r0 (ohm), a (1/degC), b (1/degC^2)[, c (1/degC^4)]
+  std::vector<FitResidual> residuals;        // K: the fitted curve's temperature at r_ohm minus t
+  double max_residual = 0.0, max_residual_at = 0.0, rms_residual = 0.0;  // inside the window
+
+  // Against IEC 60751's coefficients (A = 3.9083e-3, B = −5.775e-7,
+  // C = −4.183e-12) and the nominal R0 nearest the fitted one (100, 500 or
+  // 1000 ohm, the standard's Pt100 and the multiples in common use):
+  double nominal_r0 = 100.0;
+  double delta_a = 0.0, delta_b = 0.0, delta_c = 0.0;  // fitted − standard
+  // The data's own deviation from the standard curve with the nominal R0
+  // (K: the standard curve's temperature at each point's resistance minus
+  // the point's temperature), largest inside the window and where.
+  double max_deviation = 0.0, max_deviation_at = 0.0;
+  // The tightest IEC 60751 tolerance class whose bound every point inside the
+  // window meets (the class's validity range for the construction is not
+  // checked here); absent when none does.
+  std::optional<RtdClass> met_class;
+  // How much of class `met_class`'s bound the worst point uses (0..1).
+  double class_use = 0.0;
+};
+
+// Fits the window of `settings` (the other settings are the NTC fits').
+// Refused with the file and line: fewer points in the window than
+// coefficients + 1 (the fit must have a residual to speak of), data that do
+// not rise with temperature, the usual ordering rules.
+RtdFit fit_rtd_data(const RtData& data, const FitSettings& settings = {});
+
+std::string_view to_string(RtdClass cls);
+
+// Lines to paste into a scenario file: [sensor] model = rtd with r0, cvd_a,
+// cvd_b, cvd_c (%.10g), and [firmware] conversion = exact.
+std::string rtd_scenario_snippet(const RtdFit& fit);
+
+// ------------------------------------------------ a table with limits
+
+// The R25 and B tolerances whose spread comes closest to a table's limit
+// columns (docs/fit.md). The beta model's spread (IEC 60539-1's B between
+// 25 °C and T) reaches, at each temperature, ln R_max − ln R_nom =
+// ln(1 + a) + b·|ln R_nom(T) − ln R_nom(25 °C)| above and
+// ln R_nom − ln R_min = −ln(1 − a) + b·|…| below (a = r25_tol, b = beta_tol,
+// both pushing the same way). The pair minimises the largest difference
+// from the table's limits in kelvin (the difference in ln R over the
+// curve's |d ln R/dT| at the point), over every point of the window.
+struct SpreadFit {
+  bool found = false;        // the table has limits and covers 25 °C
+  double r25_tol = 0.0;      // fraction
+  double beta_tol = 0.0;     // fraction
+  double max_difference = 0.0;     // K, the model's limit minus the table's (signed), largest |.|
+  double max_difference_at = 0.0;  // °C
+};
+SpreadFit fit_spread(const RtData& data, const FitSettings& settings = {});
 
 }  // namespace thermargin
