@@ -86,13 +86,14 @@ TEST(Life, VerdictFollowsRequirementAt) {
   // ±2 % sensor drift against a 0.3 K limit: about 0.5 K at end of life, a
   // few millikelvin at delivery (the ideal design).
   const testing::Overrides o = ideal({{"sensor.drift", "2%"}, {"requirement.max_error", "0.3"}});
-  const Budget eol = run_budget(Chain(design_with(o)), no_mc());
+  const Design d_eol = design_with(o);
+  const Budget eol = run_budget(Chain(d_eol), no_mc());
   EXPECT_EQ(eol.verdict.at, Requirement::At::end_of_life);  // the default with drift set
   EXPECT_FALSE(eol.verdict.pass);
   EXPECT_NE(eol.verdict.reason.find("at end of life"), std::string::npos);
   EXPECT_TRUE(eol.end_of_life->delivery_verdict.pass);
-  const Budget delivery =
-      run_budget(Chain(design_with(testing::with_extra(o, {{"requirement.at", "delivery"}}))), no_mc());
+  const Design d_delivery = design_with(testing::with_extra(o, {{"requirement.at", "delivery"}}));
+  const Budget delivery = run_budget(Chain(d_delivery), no_mc());
   EXPECT_EQ(delivery.verdict.at, Requirement::At::delivery);
   EXPECT_TRUE(delivery.verdict.pass);
   EXPECT_FALSE(delivery.end_of_life->budget.verdict.pass);

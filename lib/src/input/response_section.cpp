@@ -3,37 +3,31 @@
 #include <cmath>
 #include <string_view>
 
+#include "input/setting_reader.hpp"
+
 namespace thermargin {
 namespace {
 
-// Typed reads of the section's keys, each refusal naming the key where it was set.
-class SectionReader {
+// The section's reads: the shared typed reads (setting_reader.hpp), with
+// the unit said in a refusal of a non-positive value.
+class SectionReader : public SettingReader {
  public:
-  explicit SectionReader(const Scenario& s) : s_(s) {}
-
-  const Setting& at(const std::string& key) const { return s_.get(key); }
-  bool stated(const std::string& key) const { return at(key).where.kind != Origin::built_in; }
-  double number(const std::string& key) const {
-    const Setting& st = at(key);
-    return parse_quantity(st.value, find_key(key)->quantity, st.where);
-  }
+  using SettingReader::SettingReader;
+  using SettingReader::positive;
+  bool stated(const std::string& key) const { return !is_default(key); }
   double positive(const std::string& key, std::string_view unit) const {
     const double v = number(key);
     if (!(v > 0.0)) fail(key, "must be > 0 " + std::string(unit));
     return v;
   }
-  [[noreturn]] void fail(const std::string& key, const std::string& why) const {
-    const Setting& st = at(key);
-    reject(st.where, st.value, why);
-  }
-
- private:
-  const Scenario& s_;
 };
 
+// The section takes part when a key of it holds something other than the
+// built-in default: a file that lists every key with its default value
+// (scenarios/default.ini) states no response.
 bool section_stated(const SectionReader& r) {
   for (const KeySpec& k : scenario_schema())
-    if (k.key.starts_with("response.") && r.stated(k.key)) return true;
+    if (k.key.starts_with("response.") && r.stated(k.key) && r.text(k.key) != k.default_value) return true;
   return false;
 }
 
