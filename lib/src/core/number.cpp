@@ -45,6 +45,9 @@ std::string_view accepted(Quantity q) {
     case Quantity::tempco: return "expected a temperature coefficient such as 25ppm, 25ppm/K or 0.01%/K";
     case Quantity::lsb: return "expected a number of ADC counts such as 2, 0.5 or 2LSB";
     case Quantity::integer: return "expected a whole number such as 12";
+    case Quantity::capacitance: return "expected a capacitance such as 100n, 100nF or 5pF";
+    case Quantity::time: return "expected a time such as 2u, 2us or 1.5ms";
+    case Quantity::frequency: return "expected a frequency such as 10k, 10kHz or 1MHz";
   }
   return "expected a number";
 }
@@ -69,6 +72,9 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
                                      UnitWord{"ppm/\xC2\xB0" "C", 1e-6}, UnitWord{"%/K", 1e-2},  UnitWord{"%/C", 1e-2},
                                      UnitWord{"%/\xC2\xB0" "C", 1e-2}, UnitWord{"/K", 1.0}};
   static constexpr std::array lsb{UnitWord{"LSB", 1.0}};
+  static constexpr std::array capacitance{UnitWord{"F", 1.0}};
+  static constexpr std::array time{UnitWord{"s", 1.0}};
+  static constexpr std::array frequency{UnitWord{"Hz", 1.0}};
   auto find = [&](const auto& list) -> std::optional<double> {
     for (const auto& u : list)
       if (u.word == word) return u.factor;
@@ -85,6 +91,9 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
     case Quantity::beta_value: return find(difference);
     case Quantity::tempco: return find(tempco);
     case Quantity::lsb: return find(lsb);
+    case Quantity::capacitance: return find(capacitance);
+    case Quantity::time: return find(time);
+    case Quantity::frequency: return find(frequency);
     case Quantity::plain:
     case Quantity::integer: return std::nullopt;
   }
@@ -114,6 +123,9 @@ std::string_view unit_symbol(Quantity q) {
     case Quantity::tempco: return "ppm/K";
     case Quantity::lsb: return "LSB";
     case Quantity::integer: return "";
+    case Quantity::capacitance: return "F";
+    case Quantity::time: return "s";
+    case Quantity::frequency: return "Hz";
   }
   return "";
 }
@@ -236,6 +248,9 @@ std::string format_quantity(double value, Quantity q, int digits) {
     case Quantity::voltage: return eng(value, "V");
     case Quantity::current: return eng(value, "A");
     case Quantity::dissipation: return eng(value, "W/K");
+    case Quantity::capacitance: return eng(value, "F");
+    case Quantity::time: return eng(value, "s");
+    case Quantity::frequency: return eng(value, "Hz");
     case Quantity::temperature:
       std::snprintf(buf, sizeof buf, "%.*g degC", digits, value);
       return buf;

@@ -28,6 +28,8 @@ const SourceInfo& info(Source s) {
       {"firmware.calibration_uncertainty", "calibration_2", "calibration reference (point 2)",
        Quantity::temperature_difference},
       {"conditions.board", "board_temperature", "board temperature range", Quantity::temperature_difference},
+      {"supply.r_drive_tol", "r_drive", "divider drive resistance", Quantity::ratio},
+      {"adc.precharge", "adc_precharge", "sampling capacitor's start (precharge = any)", Quantity::voltage},
   }};
   return table[static_cast<std::size_t>(s)];
 }

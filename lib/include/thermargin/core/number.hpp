@@ -26,6 +26,9 @@ enum class Quantity {
   tempco,           // 1/K; accepts `ppm`, `ppm/K`, `%/K`, `/K`
   lsb,              // ADC counts; accepts `LSB`
   integer,          // a whole number, no prefix
+  capacitance,      // F
+  time,             // s
+  frequency,        // Hz
 };
 
 // The unit a quantity is printed in ("Ω", "V", "ppm/K", ...).

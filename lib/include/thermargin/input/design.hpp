@@ -55,6 +55,8 @@ struct DividerSettings {
   std::optional<double> r_parallel;  // Ω, across the sensor branch on the board
   double r_parallel_tol = 0.0;   // ± relative
   double duty = 1.0;             // fraction of time the divider is powered
+  double c_node = 0.0;           // F, node to ground (docs/model.md §11); 0 = none
+  std::optional<double> settle_time;  // s from power-on to the first acquisition; none: always powered
 };
 
 struct SupplySettings {
@@ -63,7 +65,14 @@ struct SupplySettings {
   double v_excitation_tol = 0.0, v_excitation_tempco = 0.0;
   double v_reference = 3.3;  // V (absolute only)
   double v_reference_tol = 0.0, v_reference_tempco = 0.0;
+  double r_drive = 0.0;      // Ω in series with the divider's top (docs/model.md §12)
+  double r_drive_tol = 0.0;  // ± relative
+  // The nominal ADC reference: the excitation when ratiometric.
+  double v_reference_nominal() const { return ratiometric ? v_excitation : v_reference; }
 };
+
+// What the sampling capacitor holds when an acquisition starts.
+enum class Precharge { same, ground, reference, voltage, any };
 
 struct AdcSettings {
   int bits = 12;
@@ -74,6 +83,15 @@ struct AdcSettings {
   double noise = 0.5;        // LSB rms at the input
   int averaging = 1;         // samples per reading
   double leakage = 0.0;      // ± A
+  // Acquisition (docs/model.md §11): C_s charged through R_sw for t_acq once
+  // every 1/sample_rate; c_sample = 0 is an ideal sampler.
+  double r_switch = 1e3;      // Ω
+  double c_sample = 0.0;      // F
+  double t_acq = 1e-6;        // s
+  double sample_rate = 10e3;  // Hz, this channel's
+  Precharge precharge = Precharge::same;
+  double v_precharge = 0.0;   // V, for Precharge::voltage
+  bool samples_settle() const { return c_sample > 0.0; }
 };
 
 struct FirmwareSettings {
@@ -85,6 +103,7 @@ struct FirmwareSettings {
   double table_unit = 0.01;          // K per stored count in the lookup table
   TableSpacing table_spacing = TableSpacing::code;  // points equally spaced in code or in temperature
   double lead_compensation = 0.0;    // Ω subtracted from the inverted branch
+  double drive_compensation = 0.0;   // Ω of drive resistance the firmware assumes in the divider's top
   double resolution = 0.1;           // K; 0 = no rounding
   Calibration calibration = Calibration::none;
   std::vector<double> calibration_at;  // °C: one point (offset) or two (two-point)

@@ -37,6 +37,8 @@ enum class Source : int {
   calibration_1,        // K, reference error at the first calibration point
   calibration_2,        // K, at the second
   board_temperature,    // K from the middle of the board range (per reading)
+  r_drive,              // drive resistance, relative
+  adc_precharge,        // V from V_ref/2: what another channel left on C_s (precharge = any; per reading)
   count
 };
 inline constexpr int source_count = static_cast<int>(Source::count);
