@@ -16,7 +16,9 @@
 #include "thermargin/chain/acquisition.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/divider.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/engines/nominal.hpp"
+#include "thermargin/report/settling_summary.hpp"
 
 namespace thermargin {
 namespace {
@@ -185,6 +187,28 @@ TEST(Acquisition, ChainReadsTheSettledSampleAndReportsItsError) {
   const double half_lsb = 0.5 * 3.3 / 4096, c_n = 100e-9, c_s = 10e-12;
   const double expected = -5e-3 * std::log((half_lsb * (c_n + c_s) / 1.65 - c_s) / c_n);
   EXPECT_NEAR(need.settle, expected, 0.005 * expected);
+}
+
+// The summary names settling when it leads, with the settle time the exact
+// map needs at the worst temperature (checked against charge conservation
+// above), and says nothing for a design that settles.
+TEST(Acquisition, SummaryNamesTheFixWithItsNumbersWhenSettlingLeads) {
+  const Design d = design_with({}, testing::scenario_path("switched_logger_100k.ini"));
+  const Chain chain(d);
+  BudgetOptions o;
+  o.monte_carlo = false;
+  const Budget b = run_budget(chain, o);
+  const SettlingSummary s = settling_summary(chain, b);
+  ASSERT_TRUE(s.shown);
+  EXPECT_GT(s.max_abs, 10.0);
+  EXPECT_EQ(s.need.settle, settling_need_at(chain, s.at).settle);
+  const std::string text = settling_text(d, s);
+  EXPECT_NE(text.find("divider.settle_time >= " + format_quantity(s.need.settle, Quantity::time, 3)), std::string::npos) << text;
+  EXPECT_NE(text.find("a longer settle time"), std::string::npos) << text;
+  // Settled by a long enough wait, the same design says nothing.
+  const Design settled = design_with({{"divider.settle_time", "500ms"}}, testing::scenario_path("switched_logger_100k.ini"));
+  const Chain c2(settled);
+  EXPECT_FALSE(settling_summary(c2, run_budget(c2, o)).shown);
 }
 
 }  // namespace

@@ -23,9 +23,10 @@ AcquisitionModel acquisition_model(const Design& d) {
 
 SampleMap acquisition_map(const AcquisitionModel& m, double r_th) {
   if (!m.on) return {};
-  AcquisitionExponents x = acquisition_exponents(m, r_th);
+  const ClosedSwitch c = closed_switch(m, r_th);
+  AcquisitionExponents x = acquisition_exponents(m, r_th, c);
   for (double& v : x) v = std::exp(v);
-  return acquisition_combine(m, r_th, x);
+  return acquisition_combine(m, c, x);
 }
 
 double precharge_voltage(const AdcSettings& a, double v_ref_nominal, double v_ref, double dev) {

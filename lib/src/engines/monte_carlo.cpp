@@ -304,14 +304,21 @@ int self_heating_newton_first(double t_k, const double* __restrict r_el, const d
 void settle_block(const RunConstants& c, const double* __restrict d_pre, const double* __restrict vref,
                   const double* __restrict r_th, double* __restrict v) {
   const AcquisitionModel& m = c.acquisition;
+  // A continuous divider sampled back to back (precharge = same) reads V_th
+  // exactly (its periodic steady state draws no charge): nothing to do.
+  if (!m.switched && !m.reset) return;
   const AdcSettings& a = c.d->adc;
   const double v_ref_nom = c.d->supply.v_reference_nominal();
   alignas(64) double ex[acquisition_exponent_count][block_size];
+  ClosedSwitch cs[block_size];
   for (int u = 0; u < block_size; ++u) {
-    const AcquisitionExponents x = acquisition_exponents(m, r_th[u]);
+    cs[u] = closed_switch(m, r_th[u]);
+    const AcquisitionExponents x = acquisition_exponents(m, r_th[u], cs[u]);
     for (int k = 0; k < acquisition_exponent_count; ++k) ex[k][u] = x[k];
   }
-  const int used = m.c_n > 0.0 ? acquisition_exponent_count : 1;
+  // Only the exponentials the map reads: the settle time's for a switched
+  // divider, the node's for a node capacitor.
+  const int used = m.c_n > 0.0 ? (m.switched ? acquisition_exponent_count : 3) : 1;
   for (int k = 0; k < used; ++k) {
     Eigen::Map<Block> e(ex[k]);
     e = e.exp();
@@ -319,7 +326,7 @@ void settle_block(const RunConstants& c, const double* __restrict d_pre, const d
   for (int u = 0; u < block_size; ++u) {
     const AcquisitionExponents e{ex[0][u], ex[1][u], ex[2][u], ex[3][u]};
     const double v_start = precharge_voltage(a, v_ref_nom, vref[u], d_pre[u]);
-    v[u] = acquisition_combine(m, r_th[u], e).apply(v[u], v_start);
+    v[u] = acquisition_combine(m, cs[u], e).apply(v[u], v_start);
   }
 }
 

@@ -35,9 +35,12 @@ std::string settling_text(const Design& d, const SettlingSummary& s) {
   out += "\n  For 1/2 LSB there: adc.t_acq >= " + time(s.need.t_acq) + " (now " + format_quantity(d.adc.t_acq, Quantity::time, 3) + ")";
   if (d.divider.settle_time && d.divider.c_node > 0.0)
     out += ", divider.settle_time >= " + time(s.need.settle) + " (now " + format_quantity(*d.divider.settle_time, Quantity::time, 3) + ")";
-  out += ".\n  Fixes: a longer acquisition time, a smaller divider resistance, a larger node capacitor with a slower"
-         " sample rate";
-  if (d.divider.settle_time) out += ", a longer settle time";
+  // What would fix it, for this kind of node (docs/model.md §11).
+  if (d.divider.settle_time && d.divider.c_node > 0.0)
+    out += ".\n  Fixes: a longer settle time, a smaller divider resistance or node capacitor";
+  else
+    out += ".\n  Fixes: a longer acquisition time, a smaller divider resistance, a node capacitor much larger than the"
+           " sampling capacitor with a slower sample rate";
   out += ".\n";
   return out;
 }

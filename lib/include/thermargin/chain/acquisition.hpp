@@ -65,6 +65,7 @@ struct ClosedSwitch {
   double l1, l2;
 };
 inline ClosedSwitch closed_switch(const AcquisitionModel& m, double r_th) {
+  if (!(m.c_n > 0.0)) return {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};  // no node capacitor: no 2×2 system
   const double alpha = 1.0 / (r_th * m.c_n), beta = 1.0 / (m.r_sw * m.c_n), gamma = 1.0 / (m.r_sw * m.c_s);
   ClosedSwitch c{-(alpha + beta), beta, gamma, -gamma, 0.0, 0.0};
   // λ² − tr·λ + det = 0 with tr = −(α + β + γ), det = α·γ; the larger root in
@@ -75,10 +76,9 @@ inline ClosedSwitch closed_switch(const AcquisitionModel& m, double r_th) {
   return c;
 }
 
-inline AcquisitionExponents acquisition_exponents(const AcquisitionModel& m, double r_th) {
+inline AcquisitionExponents acquisition_exponents(const AcquisitionModel& m, double r_th, const ClosedSwitch& c) {
   AcquisitionExponents x{};
   if (m.c_n > 0.0) {
-    const ClosedSwitch c = closed_switch(m, r_th);
     const double tau_n = r_th * m.c_n;
     x = {c.l1 * m.t_acq, c.l2 * m.t_acq, -m.t_open / tau_n, -m.settle / tau_n};
   } else {
@@ -87,15 +87,15 @@ inline AcquisitionExponents acquisition_exponents(const AcquisitionModel& m, dou
   return x;
 }
 
-// The map from the exponentials of acquisition_exponents(m, r_th). Inline
-// and branch-free in the unit: the kernel runs it on a block.
-inline SampleMap acquisition_combine(const AcquisitionModel& m, double r_th, const AcquisitionExponents& e) {
+// The map from the exponentials of acquisition_exponents(m, r_th, c), with
+// c = closed_switch(m, r_th). Inline and branch-free in the unit: the
+// kernel runs it on a block.
+inline SampleMap acquisition_combine(const AcquisitionModel& m, const ClosedSwitch& c, const AcquisitionExponents& e) {
   // Closed switch as a 2×2 matrix E = exp(A·t_acq) (Sylvester's formula for
   // distinct eigenvalues, textbook); with C_n = 0 only E11 matters.
   double e11 = e[0], e12 = 0.0, e21 = 0.0, e22 = 0.0;
   double d_open = 0.0, d_settle = 0.0;
   if (m.c_n > 0.0) {
-    const ClosedSwitch c = closed_switch(m, r_th);
     const double inv = 1.0 / (c.l1 - c.l2);
     const double p = (e[0] - e[1]) * inv;                 // coefficient of A
     const double q = (c.l1 * e[1] - c.l2 * e[0]) * inv;  // coefficient of I
