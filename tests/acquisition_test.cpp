@@ -6,6 +6,7 @@
 // equations (tests/reference/acquisition.py, Debian's /usr/bin/python3).
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 #include <string>
@@ -19,6 +20,7 @@
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/engines/nominal.hpp"
 #include "thermargin/report/settling_summary.hpp"
+#include "thermargin/tools/picker.hpp"
 
 namespace thermargin {
 namespace {
@@ -209,6 +211,24 @@ TEST(Acquisition, SummaryNamesTheFixWithItsNumbersWhenSettlingLeads) {
   const Design settled = design_with({{"divider.settle_time", "500ms"}}, testing::scenario_path("switched_logger_100k.ini"));
   const Chain c2(settled);
   EXPECT_FALSE(settling_summary(c2, run_budget(c2, o)).shown);
+}
+
+// pick's --settles: on the multiplexed SAR input (4 µs, 15 pF, 2 kΩ switch)
+// a 100 kΩ divider leaves tens of LSB unsettled at 10 °C, a 10 kΩ one settles
+// (R_th + R_sw ≈ 11.5 kΩ: (R_th + R_sw)·C_s·ln 2^13 ≈ 1.6 µs, the datasheet rule).
+TEST(Acquisition, PickRejectsADividerThatDoesNotSettleWhenAsked) {
+  const Scenario s = testing::scenario_with({}, testing::scenario_path("mux_sar_high_impedance.ini"));
+  PickOptions o;
+  o.values = {10e3, 100e3};
+  o.top = 2;
+  o.guidance = false;
+  o.constraints.settles = true;
+  const PickResult r = pick(s, o);
+  ASSERT_EQ(r.rows.size(), 2u);
+  for (const auto& row : r.rows) {
+    const bool rejected = std::find(row.rejected_by.begin(), row.rejected_by.end(), "settles") != row.rejected_by.end();
+    EXPECT_EQ(rejected, row.r_fixed == 100e3) << row.r_fixed;
+  }
 }
 
 }  // namespace

@@ -200,8 +200,8 @@ std::vector<std::string> violated(const PickConstraints& c, const NominalProfile
   if (c.max_power && n.max_power > *c.max_power) out.emplace_back("max-power");
   if (c.min_span && n.span < *c.min_span) out.emplace_back("min-span");
   if (c.min_sensitivity && n.min_sensitivity < *c.min_sensitivity) out.emplace_back("min-sensitivity");
-  // Whenever the sampling capacitor is modelled: the reading settles to within ½ LSB.
-  if (n.settling && n.max_settling_lsb > 0.5) out.emplace_back("settles");
+  // The reading settles to within ½ LSB (only where the sampling capacitor is modelled).
+  if (c.settles && n.settling && n.max_settling_lsb > 0.5) out.emplace_back("settles");
   return out;
 }
 
