@@ -18,6 +18,7 @@
 #include "thermargin/report/life_report.hpp"
 #include "thermargin/engines/what_if.hpp"
 #include "thermargin/report/response_report.hpp"
+#include "thermargin/report/settling_summary.hpp"
 
 namespace thermargin::cli {
 
@@ -372,6 +373,36 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
   return out.str();
 }
 
+// The sampled node's settling error (docs/model.md §14), only when the ADC
+// has a sampling capacitor: points[].acquisition_error and "settling" in
+// JSON, a last CSV column, a paragraph in the text after the verdict.
+void add_settling(const Chain& chain, const Budget& b, Format f, std::string& text, nlohmann::json* j) {
+  const Design& d = chain.design();
+  if (!d.adc.samples_settle()) return;
+  const SettlingSummary s = settling_summary(chain, b);
+  if (j) {
+    for (std::size_t i = 0; i < b.points.size(); ++i)
+      if (point_ok(b.points[i])) (*j)["points"][i]["acquisition_error"] = b.points[i].nominal.acquisition_error;
+    (*j)["settling"] = {{"max_abs", s.max_abs}, {"at", s.at}, {"leading", s.shown},
+                        {"t_acq_needed", num(s.need.t_acq)}, {"settle_time_needed", num(s.need.settle)}};
+  } else if (f == Format::csv) {
+    std::istringstream in(text);
+    std::string out, line;
+    for (std::size_t i = 0; std::getline(in, line); ++i) {
+      const BudgetPoint* p = i > 0 && i <= b.points.size() ? &b.points[i - 1] : nullptr;
+      out += line + "," + (i == 0 ? "acquisition_error_K" : p && point_ok(*p) ? fixed(p->nominal.acquisition_error, 5) : "") + "\n";
+    }
+    text = out;
+  } else {
+    std::string para = settling_text(d, s);
+    if (para.empty())
+      para = "Acquisition: settling error up to " + fixed(s.max_abs, 4) + " K in the window" +
+             (s.max_abs > 0.0 ? " (at " + fixed(s.at, 2) + " degC).\n" : ".\n");
+    const auto cut = text.find("\n\n", text.find("\n\n") + 2);  // after the verdict's lines
+    text.insert(cut == std::string::npos ? text.size() : cut + 1, para);
+  }
+}
+
 }  // namespace
 
 int run_budget(int argc, char** argv) {
@@ -426,11 +457,14 @@ int run_budget(int argc, char** argv) {
       j["window"]["verdict_at"] = std::string(to_string(budget.verdict.at));
       j["window"]["end_of_life"] = to_json(budget.end_of_life->design, budget.end_of_life->budget)["window"];
     }
+    add_settling(chain, budget, inv.format, text, &j);
     text = j.dump(2) + "\n";
   } else if (inv.format == Format::csv) {
     text = to_csv(budget);
+    add_settling(chain, budget, inv.format, text, nullptr);
   } else {
     text = to_text(design, budget, help, response);
+    add_settling(chain, budget, inv.format, text, nullptr);
   }
   if (!inv.report.empty()) write_report(inv.report, budget_report_html(design, inv.scenario, budget, inv.file, &help));
   if (!inv.plots.empty()) write_figures("--plots", inv.plots, budget_figures(design, budget));

@@ -79,6 +79,7 @@ std::string constraints_text(const PickConstraints& c) {
   if (c.max_power) v.push_back("power <= " + watts(*c.max_power));
   if (c.min_span) v.push_back("ADC span used >= " + format_quantity(*c.min_span, Quantity::ratio, 3));
   if (c.min_sensitivity) v.push_back("sensitivity >= " + fixed(*c.min_sensitivity, 3) + " LSB/K");
+  if (c.settles) v.push_back("settles to 1/2 LSB");
   return v.empty() ? "none" : join(v, "; ");
 }
 
@@ -164,6 +165,7 @@ std::string to_json(const Design& d, const PickResult& r, const PickOptions& o) 
   j["constraints"] = {{"max_self_heating", num(c.max_self_heating)}, {"max_current", num(c.max_current)},
                       {"max_power", num(c.max_power)},               {"min_span", num(c.min_span)},
                       {"min_sensitivity", num(c.min_sensitivity)}};
+  if (c.settles) j["constraints"]["settles"] = true;
   if (r.mc_objective_units) j["mc_objective_units"] = r.mc_objective_units;
   if (r.mc_verify_units) j["mc_verify_units"] = r.mc_verify_units;
   j["rows"] = nlohmann::json::array();
@@ -328,6 +330,7 @@ int run_pick(int argc, char** argv) {
       "max-power", po::value<std::string>(), "limit on the power the divider draws while powered, W")(
       "min-span", po::value<std::string>(), "smallest share of the ADC span the window must use, e.g. 50%")(
       "min-sensitivity", po::value<std::string>(), "smallest ADC sensitivity over the window, LSB/K")(
+      "settles", "the reading settles to within 1/2 LSB over the window (with adc.c_sample > 0)")(
       "parallel", "also pick a resistor across the sensor branch (pairs; see docs/pick.md)")(
       "top", po::value<std::string>()->default_value("10"), "rows shown, best first")(
       "verify", po::value<std::string>()->default_value("0"), "re-check this many of the top rows by Monte Carlo")(
@@ -377,6 +380,7 @@ int run_pick(int argc, char** argv) {
   o.constraints.max_power = limit("max-power", Quantity::plain, "W");
   o.constraints.min_span = limit("min-span", Quantity::ratio, "");
   o.constraints.min_sensitivity = limit("min-sensitivity", Quantity::lsb, "LSB/K");
+  o.constraints.settles = vm.count("settles") > 0;
   if (o.constraints.min_span && *o.constraints.min_span > 1.0)
     reject(option_where("--min-span"), vm["min-span"].as<std::string>(), "must be a share of the ADC span up to 100 %");
   o.parallel = vm.count("parallel") > 0;

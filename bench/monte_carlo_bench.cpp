@@ -32,10 +32,8 @@ BENCHMARK(BM_MonteCarloDefaultDesign)
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime();
 
-void BM_MonteCarloBlockKernel(benchmark::State& state) {
-  // One block of 256 units across the sweep: the kernel without threads,
-  // pilot, per-run set-up or statistics (draws, calibration and readings).
-  const Design design = build_design(Scenario());
+// One block of 256 units across the design's sweep, again and again.
+void run_block_kernel(benchmark::State& state, const Design& design) {
   const Chain chain(design);
   const BlockKernel kernel(chain);
   const auto temps = design.conditions.temperatures();
@@ -48,6 +46,28 @@ void BM_MonteCarloBlockKernel(benchmark::State& state) {
   }
   state.SetItemsProcessed(state.iterations() * 256 * static_cast<std::int64_t>(temps.size()));
 }
+
+void BM_MonteCarloBlockKernel(benchmark::State& state) {
+  // One block of 256 units across the sweep: the kernel without threads,
+  // pilot, per-run set-up or statistics (draws, calibration and readings).
+  run_block_kernel(state, build_design(Scenario()));
+}
 BENCHMARK(BM_MonteCarloBlockKernel)->Unit(benchmark::kMicrosecond);
+
+// The same block with the sampled node on (docs/model.md §14): the default
+// design with a sampling capacitor, argument 0 without a node capacitor
+// (one exponential a unit), 1 with one on a continuous divider (the 2×2
+// map's four), 2 with one on a switched divider (from power-on). The
+// issue's bound: no more than 1.5× BM_MonteCarloBlockKernel.
+void BM_MonteCarloBlockKernelSettling(benchmark::State& state) {
+  Scenario s;
+  const Where w{Origin::command_line, "", 0, "bench"};
+  s.set("adc.c_sample", "10p", w);
+  s.set("adc.precharge", "ground", w);
+  if (state.range(0) >= 1) s.set("divider.c_node", "10n", w);
+  if (state.range(0) == 2) s.set("divider.settle_time", "5ms", w);
+  run_block_kernel(state, build_design(s));
+}
+BENCHMARK(BM_MonteCarloBlockKernelSettling)->Arg(0)->Arg(1)->Arg(2)->Unit(benchmark::kMicrosecond);
 
 }  // namespace

@@ -519,10 +519,37 @@ std::vector<Case> options() {
   };
 }
 
+// The sampled node and the divider's drive (docs/model.md §14–§12).
+std::vector<Case> acquisition() {
+  return {
+      scenario("a negative node capacitance", "[divider]\nc_node = -100n\n",
+               {"divider.c_node = -100n", "bad.ini:2", "must be >= 0"}),
+      scenario("a negative sampling capacitance", "[adc]\nc_sample = -10p\n",
+               {"adc.c_sample = -10p", "bad.ini:2", "must be >= 0"}),
+      scenario("a negative switch resistance", "[adc]\nr_switch = -1k\n",
+               {"adc.r_switch = -1k", "bad.ini:2", "must be >= 0"}),
+      scenario("a negative drive resistance", "[supply]\nr_drive = -20\n",
+               {"supply.r_drive = -20", "bad.ini:2", "must be >= 0"}),
+      scenario("a capacitance in the wrong unit", "[adc]\nc_sample = 10pV\n",
+               {"adc.c_sample = 10pV", "bad.ini:2", "expected a capacitance such as 100n"}),
+      scenario("an acquisition longer than the sample period", "[adc]\nc_sample = 10p\nsample_rate = 100k\nt_acq = 20us\n",
+               {"adc.t_acq = 20us", "bad.ini:4", "must fit in the sample period"}),
+      scenario("a settle time of zero with a node capacitor",
+               "[divider]\nc_node = 100n\nsettle_time = 0\n[adc]\nc_sample = 10p\n",
+               {"divider.settle_time = 0", "bad.ini:3", "from power-on to the first sample"}),
+      scenario("an unknown precharge", "[adc]\nprecharge = previous\n",
+               {"adc.precharge = previous", "bad.ini:2", "same | ground | reference | any"}),
+      scenario("a precharge above the reference", "[adc]\nprecharge = 5V\n",
+               {"adc.precharge = 5V", "bad.ini:2", "from 0 to the ADC reference"}),
+      scenario("a drive tolerance without a drive resistance", "[supply]\nr_drive_tol = 20%\n",
+               {"supply.r_drive_tol = 20%", "bad.ini:2", "set supply.r_drive"}),
+  };
+}
+
 std::vector<Case> all_cases() {
   std::vector<Case> all;
   for (auto group : {numbers(), keys_and_sections(), combinations(), response_section(), files(), tables(), fit(), catalogues(),
-                     options()})
+                     options(), acquisition()})
     all.insert(all.end(), group.begin(), group.end());
   return all;
 }

@@ -201,6 +201,30 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainAtEndOfLife) {
   expect_kernel_matches_the_scalar_chain(Chain(limits), limits.conditions.temperatures(), 0, 48, 7, "table limits");
 }
 
+TEST(MonteCarloKernel, AgreesWithTheScalarChainWithTheSampledNodeAndTheDrive) {
+  // The kernel's vectorised exponentials and the scalar acquisition_map()
+  // run the same combination (acquisition.hpp); every kind of node and
+  // start, the drive resistance with its tolerance, both placements.
+  const std::vector<std::pair<std::string, testing::Overrides>> cases = {
+      {"no node capacitor, ground", {{"adc.c_sample", "15p"}, {"adc.precharge", "ground"}, {"adc.t_acq", "200n"}}},
+      {"continuous node, any", {{"adc.c_sample", "15p"}, {"adc.precharge", "any"}, {"divider.c_node", "4.7n"}}},
+      {"switched node, same, averaged",
+       {{"adc.c_sample", "10p"}, {"divider.c_node", "100n"}, {"divider.settle_time", "1ms"}, {"adc.averaging", "4"},
+        {"adc.sample_rate", "1k"}}},
+      {"drive, high placement, reference",
+       {{"adc.c_sample", "20p"}, {"adc.precharge", "reference"}, {"supply.r_drive", "40"}, {"supply.r_drive_tol", "30%"},
+        {"divider.placement", "high"}, {"firmware.drive_compensation", "30"}}},
+  };
+  for (const auto& [label, o] : cases) {
+    const Design d = design_with(o);
+    const Chain chain(d);
+    const auto all = d.conditions.temperatures();
+    std::vector<double> temps;
+    for (std::size_t i = 0; i < all.size(); i += 23) temps.push_back(all[i]);
+    expect_kernel_matches_the_scalar_chain(chain, temps, 256, 64, 5, label);
+  }
+}
+
 // --- Bands against the other engines -------------------------------------------------
 
 TEST(MonteCarloBands, LieInsideTheWorstCaseBandWithoutNoiseOnEveryScenario) {

@@ -16,6 +16,8 @@ with xml.etree, then compares every plotted series with the numbers of
   sensitivity   |sensitivity|
   lsb-size      lsb_in_k
   self-heating  self_heating
+  settling      acquisition_error (only when the JSON has "settling": the
+                ADC's sampling capacitor is modelled)
 
 A value is expected exactly where the JSON has the number and nowhere else,
 so a saturated point must be a gap (never a zero), and the number of runs
@@ -235,6 +237,10 @@ def check_self_heating_chart(svg, j):
     check_line(series_map(svg), "self_heating", j["points"], lambda p: p.get("self_heating"))
 
 
+def check_settling_chart(svg, j):
+    check_line(series_map(svg), "acquisition_error", j["points"], lambda p: p.get("acquisition_error"))
+
+
 CHECKS = [check_error_chart, check_contributor_chart, check_sensitivity_chart, check_lsb_chart,
           check_self_heating_chart]
 
@@ -291,9 +297,10 @@ def main():
         fail("the caution does not come before the first chart")
 
     svgs = svg_elements(html)
-    if len(svgs) != len(CHECKS) or page.figures != len(CHECKS):
-        fail("%d charts in %d figures, expected %d" % (len(svgs), page.figures, len(CHECKS)))
-    for svg, check in zip(svgs, CHECKS):
+    checks = CHECKS + ([check_settling_chart] if "settling" in j else [])
+    if len(svgs) != len(checks) or page.figures != len(checks):
+        fail("%d charts in %d figures, expected %d" % (len(svgs), page.figures, len(checks)))
+    for svg, check in zip(svgs, checks):
         check(svg, j)
 
     w = j["window"]
@@ -315,9 +322,10 @@ def main():
     if len(sys.argv) > 3:
         plots = sys.argv[3]
         names = sorted(n for n in os.listdir(plots))
-        if names != sorted(EXPECTED_FILES):
+        expected = EXPECTED_FILES + (["settling.svg"] if "settling" in j else [])
+        if names != sorted(expected):
             fail("plots directory holds %s" % names)
-        for name, inline in zip(EXPECTED_FILES, svgs):
+        for name, inline in zip(expected, svgs):
             root = ET.parse(os.path.join(plots, name)).getroot()
             if root.tag != SVG + "svg":
                 fail(name + " is not an SVG document")

@@ -34,7 +34,8 @@ std::string_view describe(Status s) {
   return "ok";
 }
 
-Chain::Chain(const Design& d) : d_(&d), firmware_(d), span_(d.adc_span()), max_code_(d.adc_span() - 1.0) {}
+Chain::Chain(const Design& d)
+    : d_(&d), firmware_(d), span_(d.adc_span()), max_code_(d.adc_span() - 1.0), acquisition_(acquisition_model(d)) {}
 
 namespace {
 double at(const Deviations& d, Source s) { return d[static_cast<std::size_t>(s)]; }
@@ -65,6 +66,10 @@ FrontEnd Chain::analog_front_end(const Deviations& unit, double t_c) const {
   std::optional<double> r_par;
   if (d.divider.r_parallel) r_par = *d.divider.r_parallel * (1.0 + at(dev, Source::r_parallel));
   const double r_lead = d.sensor.lead_resistance;
+  const double r_drive = d.supply.r_drive * (1.0 + at(dev, Source::r_drive));
+  // The drive resistance is in series with the divider (docs/model.md §15):
+  // for the element's voltage it adds to the fixed resistor wherever it sits.
+  const double r_series = r_fixed + r_drive;
 
   const double t_true_k = t_c + kelvin_offset;
   double t_element = t_true_k;
@@ -75,7 +80,7 @@ FrontEnd Chain::analog_front_end(const Deviations& unit, double t_c) const {
       const auto l = sensor.ln_resistance(t);
       if (!l) return std::nullopt;
       const double r = std::exp(*l);
-      const double v = element_voltage(d.divider.placement, supply.v_excitation, r_fixed, r, r_lead, r_par);
+      const double v = element_voltage(d.divider.placement, supply.v_excitation, r_series, r, r_lead, r_par);
       return gain * v * v / r;
     };
     // Runaway already at the true temperature: the rise grows faster than the
@@ -113,8 +118,18 @@ FrontEnd Chain::analog_front_end(const Deviations& unit, double t_c) const {
   fe.t_element = t_element - kelvin_offset;
   fe.rise = t_element - t_true_k;
   const double rb = branch_resistance(r_element, r_lead, r_par);
-  fe.v_node = node_voltage(d.divider.placement, supply.v_excitation, r_fixed, rb, at(dev, Source::adc_leakage));
+  fe.v_node = node_voltage(d.divider.placement, supply.v_excitation, r_fixed, rb, r_drive, at(dev, Source::adc_leakage));
+  fe.r_thevenin = divider_arms(d.divider.placement, r_fixed, rb, r_drive).thevenin();
   fe.x_ideal = fe.v_node / supply.v_reference * span_;
+  if (acquisition_.on) {
+    // The ADC digitises what its sampling capacitor holds (docs/model.md §14).
+    const double v_start = precharge_voltage(d.adc, d.supply.v_reference_nominal(), supply.v_reference,
+                                             at(dev, Source::adc_precharge));
+    const double v_s = acquisition_map(acquisition_, fe.r_thevenin).apply(fe.v_node, v_start);
+    const double x = v_s / supply.v_reference * span_;
+    fe.acquisition_shift = x - fe.x_ideal;
+    fe.x_ideal = x;
+  }
   return fe;
 }
 

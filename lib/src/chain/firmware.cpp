@@ -62,7 +62,7 @@ Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion)
 
 std::optional<double> Firmware::element_resistance(double code) const {
   const double ratio = code / full_scale_ * ratio_scale_;
-  const auto rb = invert_divider(d_->divider.placement, d_->divider.r_fixed, ratio);
+  const auto rb = invert_driven_divider(d_->divider.placement, d_->divider.r_fixed, d_->firmware.drive_compensation, ratio);
   if (!rb) return std::nullopt;
   return element_from_branch(*rb, d_->divider.r_parallel, d_->firmware.lead_compensation);
 }
@@ -81,7 +81,8 @@ std::optional<double> Firmware::exact_code(double t_celsius) const {
   // The firmware's own model forward: the lead resistance it assumes and its
   // nominal parts, so that exact_temperature(exact_code(t)) == t.
   const double rb = branch_resistance(std::exp(*l), d_->firmware.lead_compensation, d_->divider.r_parallel);
-  return divider_ratio(d_->divider.placement, d_->divider.r_fixed, rb) / ratio_scale_ * full_scale_;
+  const double ratio = divider_arms(d_->divider.placement, d_->divider.r_fixed, rb, d_->firmware.drive_compensation).ratio();
+  return ratio / ratio_scale_ * full_scale_;
 }
 
 std::optional<double> Firmware::temperature(double code) const {
@@ -114,7 +115,8 @@ CodeSpan range_codes(const Design& d) {
   for (double t : {t_lo, t_hi}) {
     const auto l = nominal_ln_resistance(d.sensor, t + kelvin_offset);
     const double rb = l ? branch_resistance(std::exp(*l), d.sensor.lead_resistance, d.divider.r_parallel) : 0.0;
-    const double c = l ? divider_ratio(d.divider.placement, d.divider.r_fixed, rb) * v_ratio * span_codes
+    const double ratio = divider_arms(d.divider.placement, d.divider.r_fixed, rb, d.supply.r_drive).ratio();
+    const double c = l ? ratio * v_ratio * span_codes
                        : (t == t_lo ? 0.0 : span_codes);
     lo = std::min(lo, c);
     hi = std::max(hi, c);

@@ -45,8 +45,10 @@ std::string_view accepted(Quantity q) {
     case Quantity::tempco: return "expected a temperature coefficient such as 25ppm, 25ppm/K or 0.01%/K";
     case Quantity::lsb: return "expected a number of ADC counts such as 2, 0.5 or 2LSB";
     case Quantity::integer: return "expected a whole number such as 12";
-    case Quantity::time: return "expected a time such as 8, 8s, 500ms or 2min";
+    case Quantity::time: return "expected a time such as 8, 8s, 500ms, 2us or 2min";
     case Quantity::ramp_rate: return "expected a rate of change such as 2, 2K/min, 0.05K/s or 30K/h";
+    case Quantity::capacitance: return "expected a capacitance such as 100n, 100nF or 5pF";
+    case Quantity::frequency: return "expected a frequency such as 10k, 10kHz or 1MHz";
   }
   return "expected a number";
 }
@@ -73,6 +75,8 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
   static constexpr std::array lsb{UnitWord{"LSB", 1.0}};
   static constexpr std::array time{UnitWord{"s", 1.0}, UnitWord{"min", 60.0}, UnitWord{"h", 3600.0}};
   static constexpr std::array ramp_rate{UnitWord{"K/min", 1.0}, UnitWord{"K/s", 60.0}, UnitWord{"K/h", 1.0 / 60.0}};
+  static constexpr std::array capacitance{UnitWord{"F", 1.0}};
+  static constexpr std::array frequency{UnitWord{"Hz", 1.0}};
   auto find = [&](const auto& list) -> std::optional<double> {
     for (const auto& u : list)
       if (u.word == word) return u.factor;
@@ -91,6 +95,8 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
     case Quantity::lsb: return find(lsb);
     case Quantity::time: return find(time);
     case Quantity::ramp_rate: return find(ramp_rate);
+    case Quantity::capacitance: return find(capacitance);
+    case Quantity::frequency: return find(frequency);
     case Quantity::plain:
     case Quantity::integer: return std::nullopt;
   }
@@ -122,6 +128,8 @@ std::string_view unit_symbol(Quantity q) {
     case Quantity::integer: return "";
     case Quantity::time: return "s";
     case Quantity::ramp_rate: return "K/min";
+    case Quantity::capacitance: return "F";
+    case Quantity::frequency: return "Hz";
   }
   return "";
 }
@@ -244,6 +252,9 @@ std::string format_quantity(double value, Quantity q, int digits) {
     case Quantity::voltage: return eng(value, "V");
     case Quantity::current: return eng(value, "A");
     case Quantity::dissipation: return eng(value, "W/K");
+    case Quantity::capacitance: return eng(value, "F");
+    case Quantity::time: return eng(value, "s");
+    case Quantity::frequency: return eng(value, "Hz");
     case Quantity::temperature:
       std::snprintf(buf, sizeof buf, "%.*g degC", digits, value);
       return buf;
@@ -256,9 +267,6 @@ std::string format_quantity(double value, Quantity q, int digits) {
       return buf;
     case Quantity::integer:
       std::snprintf(buf, sizeof buf, "%.0f", value);
-      return buf;
-    case Quantity::time:
-      std::snprintf(buf, sizeof buf, "%.*g s", digits, value);
       return buf;
     case Quantity::ramp_rate:
       std::snprintf(buf, sizeof buf, "%.*g K/min", digits, value);

@@ -77,7 +77,8 @@ inline double normal_from(std::uint32_t a, std::uint32_t b) {
 }
 
 // Reading streams: counter (unit lo, unit hi, reading, j), four words a call.
-// Call 0: words 0–1 the noise of sample 0, word 2 the board temperature.
+// Call 0: words 0–1 the noise of sample 0, word 2 the board temperature,
+// word 3 what another channel left on the sampling capacitor (precharge = any).
 // Call k ≥ 1: words 0–1 sample 2k − 1, words 2–3 sample 2k. One call per
 // reading serves the common case of no averaging.
 inline Philox4x32Counter reading_words(const Philox4x32Key& key, std::uint64_t unit, std::uint32_t reading,
@@ -145,6 +146,8 @@ struct RunConstants {
   double ln_r0 = 0.0;                // ln R_nom(T0) for the NTC stretch
   std::vector<int> active;           // unit-level sources drawn per unit (not the board)
   int cal_points = 0;
+  AcquisitionModel acquisition{};    // the sampled node (docs/model.md §14)
+  bool precharge_any = false;        // the start of C_s drawn per reading
 };
 
 RunConstants make_constants(const Chain& chain) {
@@ -168,12 +171,15 @@ RunConstants make_constants(const Chain& chain) {
   if (d.sensor.kind != SensorKind::rtd)
     if (auto l = nominal_ln_resistance(d.sensor, t0_kelvin)) c.ln_r0 = *l;
   for (const auto& in : d.inputs)
-    if (in.source != Source::board_temperature) c.active.push_back(static_cast<int>(in.source));
+    if (in.source != Source::board_temperature && in.source != Source::adc_precharge)
+      c.active.push_back(static_cast<int>(in.source));
   // A drift is folded into its target's row (chain/drift.hpp): copy that row too.
   for (const auto& in : d.inputs)
     if (const int target = static_cast<int>(drift_target(in.source));
-        std::find(c.active.begin(), c.active.end(), target) == c.active.end())
+        drift_target(in.source) != in.source && std::find(c.active.begin(), c.active.end(), target) == c.active.end())
       c.active.push_back(target);
+  c.acquisition = chain.acquisition();
+  c.precharge_any = c.acquisition.on && d.adc.precharge == Precharge::any;
   return c;
 }
 
@@ -300,13 +306,46 @@ int self_heating_newton_first(double t_k, const double* __restrict r_el, const d
   return open;
 }
 
+// The sampled node for a block (docs/model.md §14): v[] from the node's
+// voltage to the mean sampled voltage. The same two steps as the scalar
+// acquisition_map() — exponents, exponentials, combination — with the
+// exponentials taken for the whole block at once (vectorised).
+void settle_block(const RunConstants& c, const double* __restrict d_pre, const double* __restrict vref,
+                  const double* __restrict r_th, double* __restrict v) {
+  const AcquisitionModel& m = c.acquisition;
+  // A continuous divider sampled back to back (precharge = same) reads V_th
+  // exactly (its periodic steady state draws no charge): nothing to do.
+  if (!m.switched && !m.reset) return;
+  const AdcSettings& a = c.d->adc;
+  const double v_ref_nom = c.d->supply.v_reference_nominal();
+  alignas(64) double ex[acquisition_exponent_count][block_size];
+  ClosedSwitch cs[block_size];
+  for (int u = 0; u < block_size; ++u) {
+    cs[u] = closed_switch(m, r_th[u]);
+    const AcquisitionExponents x = acquisition_exponents(m, r_th[u], cs[u]);
+    for (int k = 0; k < acquisition_exponent_count; ++k) ex[k][u] = x[k];
+  }
+  // Only the exponentials the map reads: the settle time's for a switched
+  // divider, the node's for a node capacitor.
+  const int used = m.c_n > 0.0 ? (m.switched ? acquisition_exponent_count : 3) : 1;
+  for (int k = 0; k < used; ++k) {
+    Eigen::Map<Block> e(ex[k]);
+    e = e.exp();
+  }
+  for (int u = 0; u < block_size; ++u) {
+    const AcquisitionExponents e{ex[0][u], ex[1][u], ex[2][u], ex[3][u]};
+    const double v_start = precharge_voltage(a, v_ref_nom, vref[u], d_pre[u]);
+    v[u] = acquisition_combine(m, cs[u], e).apply(v[u], v_start);
+  }
+}
+
 // Reported temperatures (before calibration) of the block's readings at true
 // temperature t; status per unit.
 void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t reading, double* reported,
                 std::uint8_t* status_out) {
   const Design& d = *c.d;
   alignas(64) double tb[block_size], rf[block_size], vexc[block_size], vref[block_size], inv_par[block_size];
-  alignas(64) double te[block_size], rise_prev[block_size], r_el[block_size], xs[block_size];
+  alignas(64) double te[block_size], rise_prev[block_size], r_el[block_size], xs[block_size], rs[block_size];
   alignas(64) std::uint8_t status[block_size];
   const double* dv[source_count];
   for (int i = 0; i < source_count; ++i) dv[i] = b.dev[i];
@@ -323,7 +362,13 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
 
   // Board temperature, supply and the fixed resistor of each reading.
   BlockWords words;
-  if (board.kind == BoardKind::range || c.noise > 0.0) reading_words_block(c.key, b.first, reading, 0, words);
+  if (board.kind == BoardKind::range || c.noise > 0.0 || c.precharge_any) reading_words_block(c.key, b.first, reading, 0, words);
+  if (c.precharge_any) {
+    // Per reading, like the board: uniform over [0, V_ref] (docs/model.md §14).
+    const double v_ref_nom = d.supply.v_reference_nominal();
+    double* row = b.dev[static_cast<int>(Source::adc_precharge)];
+    for (int u = 0; u < block_size; ++u) row[u] = (uniform32(words.w[3][u]) - 0.5) * v_ref_nom;
+  }
   if (board.kind == BoardKind::range) {
     const double lo = board.min, width = board.max - board.min;
     for (int u = 0; u < block_size; ++u) tb[u] = lo + width * uniform32(words.w[2][u]);
@@ -340,6 +385,11 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
       inv_par[u] = has_par ? 1.0 / (r_par * (1.0 + d_par[u])) : 0.0;
       status[u] = 0;
     }
+    // The fixed resistor and the drive in series: what the element's
+    // voltage sees wherever the sensor sits (docs/model.md §15).
+    const double r_drive = d.supply.r_drive;
+    const double* d_drv = dev(Source::r_drive);
+    for (int u = 0; u < block_size; ++u) rs[u] = rf[u] + r_drive * (1.0 + d_drv[u]);
     if (ratiometric) {
       std::fill(std::begin(vexc), std::end(vexc), v_exc);
       std::fill(std::begin(vref), std::end(vref), v_exc);
@@ -403,10 +453,10 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
       element_resistance();
       for (int u = 0; u < block_size; ++u) moving[u] = status[u] == 0 ? moving[u] : 0.0;
       const int open =
-          (newton && it == 1) ? self_heating_newton_first(t_k, r_el, rf, vexc, gain, b_unit, te, rise_prev, moving, dln_r)
-          : simple ? self_heating_step<true>(it, t_k, r_lead, r_el, rf, vexc, inv_par, gain, te, rise_prev,
+          (newton && it == 1) ? self_heating_newton_first(t_k, r_el, rs, vexc, gain, b_unit, te, rise_prev, moving, dln_r)
+          : simple ? self_heating_step<true>(it, t_k, r_lead, r_el, rs, vexc, inv_par, gain, te, rise_prev,
                                              runaway_flag, moving)
-                   : self_heating_step<false>(it, t_k, r_lead, r_el, rf, vexc, inv_par, gain, te, rise_prev,
+                   : self_heating_step<false>(it, t_k, r_lead, r_el, rs, vexc, inv_par, gain, te, rise_prev,
                                               runaway_flag, moving);
       if (open == 0) {
         resolved_at_first = newton && it == 1;
@@ -431,17 +481,25 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
     element_resistance();
   }
 
-  // Divider, leakage and the ADC's static transfer.
+  // Divider (its arms with the drive, divider.hpp), leakage, the sampled
+  // node and the ADC's static transfer.
   {
     const double *g = dev(Source::adc_gain), *o = dev(Source::adc_offset), *i = dev(Source::adc_inl);
     const double* leak = dev(Source::adc_leakage);
+    alignas(64) double v_node[block_size], r_th[block_size];
     for (int u = 0; u < block_size; ++u) {
       const double r = r_el[u];
       const double series = r + r_lead;
       const double rb = series / (1.0 + series * inv_par[u]);
-      const double ratio = (low ? rb : rf[u]) / (rf[u] + rb);
-      const double v = vexc[u] * ratio - leak[u] * (rf[u] * rb / (rf[u] + rb));
-      const double x = v / vref[u] * span;
+      const double drive = rs[u] - rf[u];
+      const double top = low ? rs[u] : rb + drive, bottom = low ? rb : rf[u];
+      const double ratio = bottom / (top + bottom);
+      r_th[u] = top * bottom / (top + bottom);
+      v_node[u] = vexc[u] * ratio - leak[u] * r_th[u];
+    }
+    if (c.acquisition.on) settle_block(c, dev(Source::adc_precharge), vref, r_th, v_node);
+    for (int u = 0; u < block_size; ++u) {
+      const double x = v_node[u] / vref[u] * span;
       const double q = x / span;
       xs[u] = x * (1.0 + g[u]) + o[u] + i[u] * 4.0 * q * (1.0 - q);
 #ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
@@ -793,21 +851,34 @@ McPoint monte_carlo_model(const std::function<double(const Deviations&)>& model,
 ReadingDraw draw_reading(const Design& d, std::uint64_t unit, std::uint32_t reading) {
   ReadingDraw r;
   const Philox4x32Key key = philox_key(d.montecarlo.seed);
-  r.board_u = uniform32(reading_words(key, unit, reading, 0)[2]);
+  const auto w0 = reading_words(key, unit, reading, 0);
+  r.board_u = uniform32(w0[2]);
+  r.precharge_u = uniform32(w0[3]);
   for (int s = 0; s < d.adc.averaging; ++s)
     r.noise.push_back(d.adc.noise > 0.0 ? d.adc.noise * noise_sample(key, unit, reading, s) : 0.0);
   return r;
 }
+
+namespace {
+// A unit's deviations with this reading's own draws: the board temperature
+// and what another channel left on the sampling capacitor.
+Deviations with_reading_draw(const Design& d, const Deviations& dev, const ReadingDraw& rd) {
+  Deviations dv = dev;
+  if (d.conditions.board.kind == BoardKind::range)
+    dv[static_cast<std::size_t>(Source::board_temperature)] =
+        d.conditions.board.min + (d.conditions.board.max - d.conditions.board.min) * rd.board_u - d.conditions.board.middle();
+  if (d.adc.samples_settle() && d.adc.precharge == Precharge::any)
+    dv[static_cast<std::size_t>(Source::adc_precharge)] = (rd.precharge_u - 0.5) * d.supply.v_reference_nominal();
+  return dv;
+}
+}  // namespace
 
 Evaluation simulate_reading(const Chain& chain, std::uint64_t unit, std::uint32_t t_index, double t) {
   const Design& d = chain.design();
   Deviations dev = draw_unit(d, unit);
   auto one = [&](double temp, std::uint32_t reading, CalibrationData* cal) -> Evaluation {
     const ReadingDraw rd = draw_reading(d, unit, reading);
-    Deviations dv = dev;
-    if (d.conditions.board.kind == BoardKind::range)
-      dv[static_cast<std::size_t>(Source::board_temperature)] =
-          d.conditions.board.min + (d.conditions.board.max - d.conditions.board.min) * rd.board_u - d.conditions.board.middle();
+    const Deviations dv = with_reading_draw(d, dev, rd);
     const FrontEnd fe = chain.front_end(dv, temp);
     if (fe.status != Status::ok) {
       Evaluation e;
@@ -824,10 +895,7 @@ Evaluation simulate_reading(const Chain& chain, std::uint64_t unit, std::uint32_
     const double t_cal = d.firmware.calibration_at[static_cast<std::size_t>(i)];
     // The calibration reading is reported uncalibrated: convert it directly.
     const ReadingDraw rd = draw_reading(d, unit, calibration_reading(i));
-    Deviations dv = dev;
-    if (d.conditions.board.kind == BoardKind::range)
-      dv[static_cast<std::size_t>(Source::board_temperature)] =
-          d.conditions.board.min + (d.conditions.board.max - d.conditions.board.min) * rd.board_u - d.conditions.board.middle();
+    const Deviations dv = with_reading_draw(d, dev, rd);
     const FrontEnd fe = chain.front_end(dv, t_cal);
     if (fe.status != Status::ok) {
       cal_ok = false;

@@ -19,6 +19,12 @@ NominalPoint nominal_point(const Chain& chain, double t) {
   p.self_heating = e.front.rise;
   if (e.status != Status::ok) return p;
   p.error = e.error;
+  if (e.front.acquisition_shift != 0.0) {
+    // The settled reading against the node's own voltage read ideally.
+    const auto settled = chain.convert(e.code, false);
+    const auto ideal = chain.convert(e.code - e.front.acquisition_shift, false);
+    if (settled && ideal) p.acquisition_error = *settled - *ideal;
+  }
   const FrontEnd up = chain.front_end(zero, t + sensitivity_step);
   const FrontEnd down = chain.front_end(zero, t - sensitivity_step);
   if (up.status == Status::ok && down.status == Status::ok) {
@@ -40,6 +46,18 @@ std::vector<NominalPoint> nominal_sweep(const Chain& chain) {
   std::vector<NominalPoint> out;
   for (double t : chain.design().conditions.temperatures()) out.push_back(nominal_point(chain, t));
   return out;
+}
+
+SettlingNeed settling_need_at(const Chain& chain, double t) {
+  const Design& d = chain.design();
+  if (!d.adc.samples_settle()) return {};
+  const FrontEnd fe = chain.analog_front_end(nominal_deviations(), t);
+  if (fe.status != Status::ok) return {};
+  const double v_ref = d.supply.v_reference_nominal();
+  // The worst start: the rail farthest from the node for precharge = any.
+  double v_start = precharge_voltage(d.adc, v_ref, v_ref, 0.0);
+  if (d.adc.precharge == Precharge::any) v_start = fe.v_node < 0.5 * v_ref ? v_ref : 0.0;
+  return settling_need(d, fe.r_thevenin, fe.v_node, v_start, v_ref);
 }
 
 }  // namespace thermargin

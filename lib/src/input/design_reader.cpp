@@ -3,6 +3,7 @@
 // sections (the curve over the range, the calibration points, the
 // firmware's own curve, the requirement window), then the active toleranced
 // inputs. Every refusal names the key, file and line (setting_reader.hpp).
+#include <cctype>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -98,6 +99,11 @@ void read_divider(const R& r, DividerSettings& dv) {
     r.fail("divider.r_parallel_tol", "a tolerance for a parallel resistor that is absent; set divider.r_parallel");
   dv.duty = r.positive("divider.duty");
   if (dv.duty > 1.0) r.fail("divider.duty", "must be a fraction of time in (0, 1]");
+  dv.c_node = r.non_negative("divider.c_node");
+  if (const auto& st = r.at("divider.settle_time"); st.value != "always") {
+    dv.settle_time = parse_quantity(st.value, Quantity::time, st.where);
+    if (*dv.settle_time < 0.0) r.fail("divider.settle_time", "must be always, or a time >= 0 from power-on to the first sample");
+  }
 }
 
 void read_supply(const R& r, SupplySettings& su) {
@@ -108,6 +114,10 @@ void read_supply(const R& r, SupplySettings& su) {
   su.v_excitation_tempco = r.non_negative("supply.v_excitation_tempco");
   su.v_reference_tol = r.tolerance("supply.v_reference_tol");
   su.v_reference_tempco = r.non_negative("supply.v_reference_tempco");
+  su.r_drive = r.non_negative("supply.r_drive");
+  su.r_drive_tol = r.tolerance("supply.r_drive_tol");
+  if (su.r_drive == 0.0 && su.r_drive_tol > 0.0)
+    r.fail("supply.r_drive_tol", "a tolerance for a drive resistance that is 0; set supply.r_drive");
   if (su.ratiometric) {
     for (const char* k : {"supply.v_excitation_tol", "supply.v_excitation_tempco", "supply.v_reference_tol",
                           "supply.v_reference_tempco", "supply.v_reference"})
@@ -118,6 +128,37 @@ void read_supply(const R& r, SupplySettings& su) {
   }
 }
 
+// The acquisition (docs/model.md §14): read after the divider and the
+// supply, whose node capacitor, settle time and reference it checks against.
+void read_acquisition(const R& r, Design& d) {
+  AdcSettings& a = d.adc;
+  a.r_switch = r.non_negative("adc.r_switch");
+  a.c_sample = r.non_negative("adc.c_sample");
+  a.t_acq = r.positive("adc.t_acq");
+  a.sample_rate = r.positive("adc.sample_rate");
+  if (a.t_acq > 1.0 / a.sample_rate)
+    r.fail(r.set_one("adc.t_acq", "adc.sample_rate"),
+           "the acquisition time must fit in the sample period 1/adc.sample_rate (" + r.text("adc.sample_rate") + ")");
+  const auto& pc = r.at("adc.precharge");
+  static const std::pair<const char*, Precharge> words[] = {
+      {"same", Precharge::same}, {"ground", Precharge::ground}, {"reference", Precharge::reference}, {"any", Precharge::any}};
+  a.precharge = Precharge::voltage;
+  for (const auto& [w, p] : words)
+    if (pc.value == w) a.precharge = p;
+  if (a.precharge == Precharge::voltage) {
+    if (pc.value.empty() || !(std::isdigit(static_cast<unsigned char>(pc.value[0])) || pc.value[0] == '.' || pc.value[0] == '-'))
+      r.fail("adc.precharge", "must be one of: same | ground | reference | any | a voltage such as 1.65V");
+    a.v_precharge = parse_quantity(pc.value, Quantity::voltage, pc.where);
+    if (a.v_precharge < 0.0 || a.v_precharge > d.supply.v_reference_nominal())
+      r.fail("adc.precharge", "a precharge voltage must lie from 0 to the ADC reference");
+  }
+  if (!a.samples_settle()) return;
+  if (a.r_switch == 0.0 && d.divider.c_node > 0.0)
+    r.fail("adc.r_switch", "must be > 0 with a node capacitor (divider.c_node): the switch resistance from the ADC's datasheet");
+  if (d.divider.settle_time && *d.divider.settle_time == 0.0 && d.divider.c_node > 0.0)
+    r.fail("divider.settle_time", "a node capacitor (divider.c_node) starts at 0 V: give the time from power-on to the "
+                                  "first sample (> 0), or always");
+}
 void read_adc(const R& r, Design& d) {
   AdcSettings& a = d.adc;
   a.bits = static_cast<int>(r.integer("adc.bits", 1, 32));
@@ -129,6 +170,7 @@ void read_adc(const R& r, Design& d) {
   a.averaging = static_cast<int>(r.integer("adc.averaging", 1, 65536));
   a.leakage = r.non_negative("adc.leakage");
   if (a.offset >= d.adc_span() / 2) r.fail("adc.offset", "must be less than half the ADC span");
+  read_acquisition(r, d);
 }
 
 // The firmware's settings as written; firmware.r25/beta = sensor and
@@ -154,6 +196,7 @@ void read_firmware(const R& r, const SensorSettings& se, FirmwareSettings& f) {
   f.table_spacing = r.word<TableSpacing>("firmware.table_spacing",
                                          {{"code", TableSpacing::code}, {"temperature", TableSpacing::temperature}});
   f.lead_compensation = r.non_negative("firmware.lead_compensation");
+  f.drive_compensation = r.non_negative("firmware.drive_compensation");
   f.resolution = r.non_negative("firmware.resolution");
   f.calibration = r.word<Calibration>("firmware.calibration", {{"none", Calibration::none},
                                                                {"offset", Calibration::offset},
@@ -370,6 +413,11 @@ void collect_inputs(const R& r, Design& d) {
   // The board temperature is uniform over its range, whatever the default distribution.
   if (board.kind == BoardKind::range)
     d.inputs.push_back({Source::board_temperature, board.half_width(), Distribution::uniform, 0.0});
+  in.add(Source::r_drive, su.r_drive_tol);
+  // What another channel left on the sampling capacitor: uniform over
+  // [0, V_ref] (docs/model.md §14), whatever the default distribution.
+  if (a.samples_settle() && a.precharge == Precharge::any)
+    d.inputs.push_back({Source::adc_precharge, 0.5 * su.v_reference_nominal(), Distribution::uniform, 0.0});
 }
 
 // Over the product's life (life.hpp): each drift a ± bound below 100 %

@@ -49,6 +49,8 @@ std::vector<KeySpec> make_schema() {
       {"divider.r_parallel_tol", Q::ratio, "0", "+/- tolerance of the parallel resistor"},
       {"divider.duty", Q::ratio, "1", "fraction of time the divider is powered (self-heating)"},
       {"divider.r_fixed_drift", Q::ratio, "0", "+/- drift of the fixed resistor over life (end of life only)"},
+      {"divider.c_node", Q::capacitance, "0", "capacitor from the ADC node to ground; 0 = none"},
+      {"divider.settle_time", Q::plain, "always", "always (powered continuously) | time from power-on to the first sample, e.g. 2ms"},
       {"supply.ratiometric", Q::plain, "true", "true: the ADC reference is the excitation; false: absolute"},
       {"supply.v_excitation", Q::voltage, "3.3V", "divider excitation voltage"},
       {"supply.v_excitation_tol", Q::ratio, "0", "+/- initial tolerance (absolute only)"},
@@ -59,6 +61,8 @@ std::vector<KeySpec> make_schema() {
       {"supply.v_reference_drift", Q::ratio, "0", "+/- long-term drift of the reference over life (absolute only)"},
       {"supply.v_reference_hysteresis", Q::ratio, "0", "+/- thermal hysteresis of the reference (absolute only, end of life)"},
       {"supply.v_excitation_drift", Q::ratio, "0", "+/- drift of the excitation over life (absolute only)"},
+      {"supply.r_drive", Q::resistance, "0", "resistance of the pin or switch that drives the divider's top"},
+      {"supply.r_drive_tol", Q::ratio, "0", "+/- tolerance of the drive resistance"},
       {"adc.bits", Q::integer, "12", "resolution in bits, 1..32"},
       {"adc.quantizer", Q::plain, "round", "round (nearest) | floor (truncate)"},
       {"adc.offset", Q::lsb, "2", "+/- offset error in LSB"},
@@ -69,6 +73,11 @@ std::vector<KeySpec> make_schema() {
       {"adc.leakage", Q::current, "0", "+/- pin leakage current"},
       {"adc.offset_drift", Q::lsb, "0", "+/- offset drift over life in LSB (end of life only)"},
       {"adc.gain_drift", Q::ratio, "0", "+/- gain drift over life (end of life only)"},
+      {"adc.r_switch", Q::resistance, "1k", "sampling switch resistance"},
+      {"adc.c_sample", Q::capacitance, "0", "sampling capacitor; 0 = an ideal sampler (no settling)"},
+      {"adc.t_acq", Q::time, "1us", "acquisition time: how long the switch is closed"},
+      {"adc.sample_rate", Q::frequency, "10kHz", "this channel's sample rate (averaged samples follow at 1/rate)"},
+      {"adc.precharge", Q::plain, "same", "what C_s holds before an acquisition: same | ground | reference | any | a voltage"},
       {"firmware.conversion", Q::plain, "beta", "exact | beta | steinhart-hart | table"},
       {"firmware.full_scale", Q::plain, "pow2", "pow2 (ratio = code/2^N) | pow2-minus-1 (code/(2^N - 1))"},
       {"firmware.r25", Q::resistance, "sensor", "R25 the firmware assumes; sensor = the sensor's"},
@@ -80,6 +89,7 @@ std::vector<KeySpec> make_schema() {
       {"firmware.table_unit", Q::temperature_difference, "0.01", "lookup-table storage unit in K, 0.0001..1"},
       {"firmware.table_spacing", Q::plain, "code", "lookup-table points equally spaced in: code | temperature"},
       {"firmware.lead_compensation", Q::resistance, "0", "lead resistance the firmware subtracts"},
+      {"firmware.drive_compensation", Q::resistance, "0", "drive resistance the firmware assumes in the divider's top"},
       {"firmware.resolution", Q::temperature_difference, "0.1", "output resolution in K; 0 = none"},
       {"firmware.calibration", Q::plain, "none", "none | offset | two-point"},
       {"firmware.calibration_at", Q::plain, "25", "calibration temperature(s) in degC: t or t1,t2"},
@@ -118,7 +128,7 @@ std::vector<KeySpec> make_schema() {
   std::set<std::string> done;
   for (int i = 0; i < source_count; ++i) {
     const std::string key(info(static_cast<Source>(i)).key);
-    if (key == "conditions.board" || !done.insert(key).second) continue;
+    if (key == "conditions.board" || key == "adc.precharge" || !done.insert(key).second) continue;
     s.push_back({key + "_dist", Q::plain, "default", "distribution of " + key + ": default | normal | uniform | triangular | gapped"});
     s.push_back({key + "_gap", info(static_cast<Source>(i)).quantity == Q::plain ? Q::plain : info(static_cast<Source>(i)).quantity,
                  "0", "gapped: the inner band sorted out of " + key});

@@ -36,6 +36,8 @@ const SourceInfo& info(Source s) {
       {"adc.offset_drift", "adc_offset_drift", "ADC offset drift over life", Quantity::lsb},
       {"adc.gain_drift", "adc_gain_drift", "ADC gain drift over life", Quantity::ratio},
       {"sensor.table_file", "table_spread", "sensor spread (R-T table limits)", Quantity::plain},
+      {"supply.r_drive_tol", "r_drive", "divider drive resistance", Quantity::ratio},
+      {"adc.precharge", "adc_precharge", "sampling capacitor's start (precharge = any)", Quantity::voltage},
   }};
   return table[static_cast<std::size_t>(s)];
 }

@@ -289,6 +289,26 @@ Figure self_heating_figure(const Design& d, const Budget& b) {
           std::move(c)};
 }
 
+// The sampled node's settling error across the range (docs/model.md §14):
+// drawn only when the ADC's sampling capacitor is modelled.
+Figure settling_figure(const Design& d, const Budget& b) {
+  const auto t = temperatures(b);
+  svg::Chart c;
+  c.title = "Settling of the sampled node";
+  c.x = kTemperatureAxis;
+  c.y = axis("Acquisition error (K)");
+  c.description = "The nominal reading's error from a sampling capacitor that has not settled to the node, and from the "
+                  "charge it draws (nominal parts).";
+  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
+  c.series.push_back(svg::line("acquisition_error", "Acquisition error", t,
+                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
+                                 if (!nominal_ok(p)) return std::nullopt;
+                                 return p.nominal.acquisition_error;
+                               }),
+                               slot(0)));
+  return {"settling.svg", "What the ADC's acquisition adds to the reading: it is part of every error above.", std::move(c)};
+}
+
 // ---------------------------------------------------------------- the page's blocks
 
 std::string verdict_detail(const Design& d, const Budget& b) {
@@ -438,6 +458,7 @@ std::vector<Figure> budget_figures(const Design& design, const Budget& budget) {
   f.push_back(sensitivity_figure(design, budget));
   f.push_back(lsb_figure(design, budget));
   f.push_back(self_heating_figure(design, budget));
+  if (design.adc.samples_settle()) f.push_back(settling_figure(design, budget));
   return f;
 }
 
@@ -532,6 +553,10 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
   doc.chart(figures[3].chart, "Figure 4. " + figures[3].caption);
   doc.heading("Self-heating");
   doc.chart(figures[4].chart, "Figure 5. " + figures[4].caption);
+  if (figures.size() > 5) {
+    doc.heading("Settling of the sampled node");
+    doc.chart(figures[5].chart, "Figure 6. " + figures[5].caption);
+  }
 
   status_block(doc, b);
   add_resolved_inputs(doc, d, scenario);

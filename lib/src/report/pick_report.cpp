@@ -204,6 +204,7 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
   if (c.max_power) constraints.push_back("power \u2264 " + num(*c.max_power * 1e3, 3) + " mW");
   if (c.min_span) constraints.push_back("ADC span used \u2265 " + pct(*c.min_span, 1));
   if (c.min_sensitivity) constraints.push_back("sensitivity \u2265 " + num(*c.min_sensitivity, 3) + " LSB/K");
+  if (c.settles) constraints.push_back("settles to \u00bd LSB");
   doc.paragraph("Constraints: " + (constraints.empty() ? std::string("none") : join(constraints, "; ")) + ".");
 
   Table t;

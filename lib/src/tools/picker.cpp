@@ -143,7 +143,26 @@ struct NominalProfile {
   Status range_status = Status::ok;   // thermal runaway anywhere in the range
   Status window_status = Status::ok;  // the nominal reading in the window
   double min_sensitivity = 0.0, max_self_heating = 0.0, max_current = 0.0, max_power = 0.0, span = 0.0;
+  bool settling = false;         // the ADC's sampling capacitor is modelled (docs/model.md §14)
+  double max_settling_lsb = 0.0;  // the largest |settled − node| in LSB over the window, either precharge rail
 };
+
+// The sampled node's settling over the window: the nominal unit, and for
+// precharge = any both rails of what C_s may hold.
+void settling_profile(const Built& b, const Context& ctx, NominalProfile& n) {
+  const Design& d = b.design;
+  n.settling = d.adc.samples_settle();
+  if (!n.settling) return;
+  std::vector<double> starts{0.0};
+  if (d.adc.precharge == Precharge::any) starts = {-0.5 * d.supply.v_reference_nominal(), 0.5 * d.supply.v_reference_nominal()};
+  for (double t : ctx.window)
+    for (double s : starts) {
+      Deviations dev{};
+      dev[static_cast<std::size_t>(Source::adc_precharge)] = s;
+      const FrontEnd fe = b.chain.analog_front_end(dev, t);
+      if (fe.status == Status::ok) n.max_settling_lsb = std::max(n.max_settling_lsb, std::fabs(fe.acquisition_shift));
+    }
+}
 
 NominalProfile nominal_profile(const Built& b, const Context& ctx) {
   const Design& d = b.design;
@@ -173,6 +192,7 @@ NominalProfile nominal_profile(const Built& b, const Context& ctx) {
   }
   n.min_sensitivity = std::isfinite(smin) ? smin : 0.0;
   n.span = hi > lo ? (hi - lo) / d.adc_span() : 0.0;
+  settling_profile(b, ctx, n);
   return n;
 }
 
@@ -183,6 +203,8 @@ std::vector<std::string> violated(const PickConstraints& c, const NominalProfile
   if (c.max_power && n.max_power > *c.max_power) out.emplace_back("max-power");
   if (c.min_span && n.span < *c.min_span) out.emplace_back("min-span");
   if (c.min_sensitivity && n.min_sensitivity < *c.min_sensitivity) out.emplace_back("min-sensitivity");
+  // The reading settles to within ½ LSB (only where the sampling capacitor is modelled).
+  if (c.settles && n.settling && n.max_settling_lsb > 0.5) out.emplace_back("settles");
   return out;
 }
 

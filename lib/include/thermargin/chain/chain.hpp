@@ -16,6 +16,7 @@
 #include <optional>
 #include <string_view>
 
+#include "thermargin/chain/acquisition.hpp"
 #include "thermargin/chain/adc.hpp"
 #include "thermargin/chain/calibration.hpp"
 #include "thermargin/input/design.hpp"
@@ -34,6 +35,8 @@ struct FrontEnd {
   double v_node = 0.0;     // V at the ADC pin
   double x_ideal = 0.0;    // LSB, V/V_ref·2^N
   double x_static = 0.0;   // LSB, after gain, offset and INL
+  double r_thevenin = 0.0;          // Ω, the divider seen from the node (with the drive)
+  double acquisition_shift = 0.0;   // LSB in x_ideal: the settled sample minus the node (docs/model.md §14)
 };
 
 struct Evaluation {
@@ -64,6 +67,7 @@ class Chain {
   explicit Chain(const Design&& d) = delete;
 
   const Design& design() const { return *d_; }
+  const AcquisitionModel& acquisition() const { return acquisition_; }
   const Firmware& firmware() const { return firmware_; }
   double max_code() const { return max_code_; }
 
@@ -100,6 +104,7 @@ class Chain {
   const Design* d_;
   Firmware firmware_;
   double span_ = 0.0, max_code_ = 0.0;
+  AcquisitionModel acquisition_;
 };
 
 // The nominal unit: every deviation zero.

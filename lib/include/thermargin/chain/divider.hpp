@@ -31,6 +31,25 @@ inline double node_voltage(Placement p, double v_exc, double r_fixed, double r_b
   return v_exc * divider_ratio(p, r_fixed, r_branch) - i_leak * parallel(r_fixed, r_branch);
 }
 
+// The divider's two arms with the drive resistance R_drv (docs/model.md §15)
+// in series with its top: the fixed resistor's arm for placement low, the
+// sensor branch's for high. With R_drv = 0 the sums are exact and every
+// result is the undriven one to the bit.
+struct DividerArms {
+  double top, bottom;
+  double ratio() const { return bottom / (top + bottom); }
+  double thevenin() const { return parallel(top, bottom); }
+};
+inline DividerArms divider_arms(Placement p, double r_fixed, double r_branch, double r_drive) {
+  return p == Placement::low ? DividerArms{r_fixed + r_drive, r_branch} : DividerArms{r_branch + r_drive, r_fixed};
+}
+
+// Node voltage of a driven divider with leakage (positive current leaves the node).
+inline double node_voltage(Placement p, double v_exc, double r_fixed, double r_branch, double r_drive, double i_leak) {
+  const DividerArms a = divider_arms(p, r_fixed, r_branch, r_drive);
+  return v_exc * a.ratio() - i_leak * a.thevenin();
+}
+
 // Voltage across the element itself (for self-heating): the branch voltage
 // shared between the element and its leads. Leakage is neglected here.
 inline double element_voltage(Placement p, double v_exc, double r_fixed, double r_element, double r_lead,
@@ -59,6 +78,15 @@ inline std::optional<double> element_from_branch(double r_branch, std::optional<
   const double r = series - lead_comp;
   if (!(r > 0.0)) return std::nullopt;
   return r;
+}
+
+// Firmware inversion with an assumed drive resistance: the branch resistance
+// that gives ratio ρ; nullopt when ρ is outside (0, 1) or nothing is left.
+inline std::optional<double> invert_driven_divider(Placement p, double r_fixed, double r_drive, double ratio) {
+  if (p == Placement::low) return invert_divider(p, r_fixed + r_drive, ratio);
+  const auto top = invert_divider(p, r_fixed, ratio);
+  if (!top || !(*top - r_drive > 0.0)) return std::nullopt;
+  return *top - r_drive;
 }
 
 }  // namespace thermargin

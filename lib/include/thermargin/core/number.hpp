@@ -26,8 +26,10 @@ enum class Quantity {
   tempco,           // 1/K; accepts `ppm`, `ppm/K`, `%/K`, `/K`
   lsb,              // ADC counts; accepts `LSB`
   integer,          // a whole number, no prefix
-  time,             // s; accepts `s`, `min`, `h` (and prefixes: `500ms`)
+  time,             // s; accepts `s`, `min`, `h` (and prefixes: `500ms`, `2us`)
   ramp_rate,        // K/min, a rate of temperature change; accepts `K/min`, `K/s`, `K/h`
+  capacitance,      // F
+  frequency,        // Hz
 };
 
 // The unit a quantity is printed in ("Ω", "V", "ppm/K", ...).

@@ -102,6 +102,7 @@ McPoint monte_carlo_model(const std::function<double(const Deviations&)>& model,
 // `reading` is the temperature index, or calibration_reading(i).
 struct ReadingDraw {
   double board_u = 0.5;        // uniform in (0, 1) for the board temperature
+  double precharge_u = 0.5;    // uniform in (0, 1) for what C_s holds (precharge = any)
   std::vector<double> noise;   // M values, LSB
 };
 ReadingDraw draw_reading(const Design& d, std::uint64_t unit, std::uint32_t reading);

@@ -23,9 +23,14 @@ struct NominalPoint {
   double lsb_in_k = 0.0;      // K, the temperature size of one LSB
   double self_heating = 0.0;  // K
   double error = 0.0;         // K
+  double acquisition_error = 0.0;  // K, the reading's settling error (docs/model.md §14); 0 with an ideal sampler
 };
 
 NominalPoint nominal_point(const Chain& chain, double t_celsius);
 std::vector<NominalPoint> nominal_sweep(const Chain& chain);
+
+// The acquisition and settle times the nominal reading at t needs to settle
+// to within ½ LSB (docs/model.md §14); zeros with an ideal sampler.
+SettlingNeed settling_need_at(const Chain& chain, double t_celsius);
 
 }  // namespace thermargin

@@ -57,6 +57,8 @@ struct DividerSettings {
   double r_parallel_tol = 0.0;   // ± relative
   double duty = 1.0;             // fraction of time the divider is powered
   double r_fixed_drift = 0.0;    // ± relative over life (end of life only)
+  double c_node = 0.0;           // F, node to ground (docs/model.md §14); 0 = none
+  std::optional<double> settle_time;  // s from power-on to the first acquisition; none: always powered
 };
 
 struct SupplySettings {
@@ -67,7 +69,14 @@ struct SupplySettings {
   double v_reference_tol = 0.0, v_reference_tempco = 0.0;
   // ± relative over life (end of life only; absolute supply).
   double v_reference_drift = 0.0, v_reference_hysteresis = 0.0, v_excitation_drift = 0.0;
+  double r_drive = 0.0;      // Ω in series with the divider's top (docs/model.md §15)
+  double r_drive_tol = 0.0;  // ± relative
+  // The nominal ADC reference: the excitation when ratiometric.
+  double v_reference_nominal() const { return ratiometric ? v_excitation : v_reference; }
 };
+
+// What the sampling capacitor holds when an acquisition starts.
+enum class Precharge { same, ground, reference, voltage, any };
 
 struct AdcSettings {
   int bits = 12;
@@ -80,6 +89,15 @@ struct AdcSettings {
   double leakage = 0.0;      // ± A
   double offset_drift = 0.0;  // ± LSB over life (end of life only)
   double gain_drift = 0.0;    // ± relative over life (end of life only)
+  // Acquisition (docs/model.md §14): C_s charged through R_sw for t_acq once
+  // every 1/sample_rate; c_sample = 0 is an ideal sampler.
+  double r_switch = 1e3;      // Ω
+  double c_sample = 0.0;      // F
+  double t_acq = 1e-6;        // s
+  double sample_rate = 10e3;  // Hz, this channel's
+  Precharge precharge = Precharge::same;
+  double v_precharge = 0.0;   // V, for Precharge::voltage
+  bool samples_settle() const { return c_sample > 0.0; }
 };
 
 struct FirmwareSettings {
@@ -91,6 +109,7 @@ struct FirmwareSettings {
   double table_unit = 0.01;          // K per stored count in the lookup table
   TableSpacing table_spacing = TableSpacing::code;  // points equally spaced in code or in temperature
   double lead_compensation = 0.0;    // Ω subtracted from the inverted branch
+  double drive_compensation = 0.0;   // Ω of drive resistance the firmware assumes in the divider's top
   double resolution = 0.1;           // K; 0 = no rounding
   Calibration calibration = Calibration::none;
   std::vector<double> calibration_at;  // °C: one point (offset) or two (two-point)

@@ -50,6 +50,8 @@ enum class Source : int {
   // An R-T table with limit columns: the unit's factor z in [−1, 1] between
   // the nominal curve and the limits (sensor.hpp).
   table_spread,
+  r_drive,              // drive resistance, relative
+  adc_precharge,        // V from V_ref/2: what another channel left on C_s (precharge = any; per reading)
   count
 };
 inline constexpr int source_count = static_cast<int>(Source::count);

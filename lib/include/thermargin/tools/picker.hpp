@@ -66,6 +66,7 @@ struct PickConstraints {
   std::optional<double> max_power;         // W, V_excitation × that current
   std::optional<double> min_span;          // fraction of 2^N: (code_max − code_min)/2^N over the window
   std::optional<double> min_sensitivity;   // LSB/K, smallest |d code/dT| over the window
+  bool settles = false;  // the reading settles to within ½ LSB over the window (when adc.c_sample > 0; docs/model.md §14)
 };
 
 struct PickOptions {
