@@ -234,6 +234,21 @@ std::vector<Case> combinations() {
                {"firmware.a = 1e-3", "bad.ini:3", "give all three of firmware.a, b, c, or none"}),
       scenario("a rising Steinhart-Hart curve", "[sensor]\nmodel = steinhart-hart\nb = -1e-4\n",
                {"sensor.b = -1e-4", "bad.ini:3", "B > 0 and C >= 0"}),
+      // Parts as their datasheets state them (docs/model.md §1, §5, §7).
+      scenario("a coverage factor on a uniform bound", "[divider]\nr_fixed_tol_dist = uniform\nr_fixed_tol_k = 2\n",
+               {"divider.r_fixed_tol_k = 2", "bad.ini:3", "belongs to a normal or gapped bound"}),
+      scenario("a coverage factor of 0", "[adc]\ngain_error_k = 0\n", {"adc.gain_error_k = 0", "bad.ini:2", "must be > 0"}),
+      scenario("a calibration medium without self-heating",
+               "[sensor]\ndissipation = 0\n[firmware]\ncalibration_dissipation = 15mW/K\n",
+               {"firmware.calibration_dissipation = 15mW/K", "bad.ini:4", "needs self-heating on"}),
+      scenario("an ADC gain drift of 1 %/K", "[adc]\ngain_tempco = 1%/K\n",
+               {"adc.gain_tempco = 1%/K", "bad.ini:2", "below 10000 ppm/K"}),
+      scenario("a negative ADC offset drift", "[adc]\noffset_tempco = -0.01\n",
+               {"adc.offset_tempco = -0.01", "bad.ini:2", "must be >= 0"}),
+      scenario("an INL shape not in the list", "[adc]\ninl_shape = curve\n",
+               {"adc.inl_shape = curve", "bad.ini:2", "bow | bound"}),
+      scenario("an RTD construction not in the list", "[sensor]\nrtd_construction = thick-film\n",
+               {"sensor.rtd_construction = thick-film", "bad.ini:2", "film | wire-wound"}),
   };
 }
 

@@ -294,8 +294,13 @@ int self_heating_newton_first(double t_k, const double* __restrict r_el, const d
 // Reported temperatures (before calibration) of the block's readings at true
 // temperature t; status per unit.
 void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t reading, double* reported,
-                std::uint8_t* status_out) {
+                std::uint8_t* status_out, bool calibration = false) {
   const Design& d = *c.d;
+  // A calibration reading self-heats in the calibration medium where one is
+  // set (firmware.calibration_dissipation, no unit deviation).
+  const bool medium = calibration && d.firmware.calibration_dissipation.has_value();
+  const double dissipation = medium ? *d.firmware.calibration_dissipation : d.sensor.dissipation;
+  alignas(64) static const double no_deviation[block_size] = {};
   alignas(64) double tb[block_size], rf[block_size], vexc[block_size], vref[block_size], inv_par[block_size];
   alignas(64) double te[block_size], rise_prev[block_size], r_el[block_size], xs[block_size];
   alignas(64) std::uint8_t status[block_size];
@@ -373,10 +378,10 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
   }
   bool resolved_at_first = false;  // every unit solved by the first (Newton) step
   alignas(64) double dln_r[block_size];
-  if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
-    const double duty_over_delta = d.divider.duty / d.sensor.dissipation;
+  if (dissipation > 0.0 && d.divider.duty > 0.0) {
+    const double duty_over_delta = d.divider.duty / dissipation;
     alignas(64) double gain[block_size], moving[block_size], runaway_flag[block_size];
-    const double* d_diss = dev(Source::dissipation);
+    const double* d_diss = medium ? no_deviation : dev(Source::dissipation);
     for (int u = 0; u < block_size; ++u) {
       gain[u] = duty_over_delta / (1.0 + d_diss[u]);
       moving[u] = 1.0;
@@ -425,6 +430,8 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
   {
     const double *g = dev(Source::adc_gain), *o = dev(Source::adc_offset), *i = dev(Source::adc_inl);
     const double* leak = dev(Source::adc_leakage);
+    const double *g_tc = dev(Source::adc_gain_tempco), *o_tc = dev(Source::adc_offset_tempco);
+    const bool inl_bound = d.adc.inl_bound;
     for (int u = 0; u < block_size; ++u) {
       const double r = r_el[u];
       const double series = r + r_lead;
@@ -433,7 +440,9 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
       const double v = vexc[u] * ratio - leak[u] * (rf[u] * rb / (rf[u] + rb));
       const double x = v / vref[u] * span;
       const double q = x / span;
-      xs[u] = x * (1.0 + g[u]) + o[u] + i[u] * 4.0 * q * (1.0 - q);
+      const double drift = tb[u] - 25.0;  // the ADC's offset and gain drift (docs/model.md §5)
+      const double bow = i[u] * 4.0 * q * (1.0 - q);  // adc.inl_shape = bound: i[u] at every code
+      xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift) + (inl_bound ? i[u] : bow);
     }
   }
 
@@ -441,13 +450,14 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
   // checks the loop gain at the true temperature for runaway (chain.cpp):
   // a loop gain of 1 needs a rise of at least 1/|d ln R/dT|, tens of kelvin
   // for any NTC, so this is rare and costs nothing in ordinary designs.
-  if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
+  if (dissipation > 0.0 && d.divider.duty > 0.0) {
     for (int u = 0; u < block_size; ++u) {
       if (!(te[u] - t_k > 1.0) && status[u] != static_cast<std::uint8_t>(Status::runaway)) continue;
       Deviations unit{};
       for (int k = 0; k < source_count; ++k) unit[static_cast<std::size_t>(k)] = dv[k][u];
       if (board.kind == BoardKind::range) unit[static_cast<std::size_t>(Source::board_temperature)] = tb[u] - board.middle();
-      const FrontEnd fe = c.chain->front_end(unit, t);
+      const FrontEnd fe = calibration ? c.chain->adc_stage(c.chain->analog_calibration_front_end(unit, t), unit)
+                                      : c.chain->front_end(unit, t);
       status[u] = static_cast<std::uint8_t>(fe.status);
       xs[u] = fe.status == Status::ok ? fe.x_static : 0.0;
     }
@@ -502,7 +512,7 @@ void calibrate_block(const RunConstants& c, BlockUnits& b) {
   alignas(64) std::uint8_t st[block_size];
   for (int i = 0; i < c.cal_points; ++i) {
     const double t_cal = c.d->firmware.calibration_at[static_cast<std::size_t>(i)];
-    read_block(c, b, t_cal, calibration_reading(i), rep, st);
+    read_block(c, b, t_cal, calibration_reading(i), rep, st, true);
     const Source ref = i == 0 ? Source::calibration_1 : Source::calibration_2;
     for (int u = 0; u < block_size; ++u) {
       b.cal_reported[i][u] = rep[u];
@@ -815,7 +825,7 @@ Evaluation simulate_reading(const Chain& chain, std::uint64_t unit, std::uint32_
     if (d.conditions.board.kind == BoardKind::range)
       dv[static_cast<std::size_t>(Source::board_temperature)] =
           d.conditions.board.min + (d.conditions.board.max - d.conditions.board.min) * rd.board_u - d.conditions.board.middle();
-    const FrontEnd fe = chain.front_end(dv, t_cal);
+    const FrontEnd fe = chain.adc_stage(chain.analog_calibration_front_end(dv, t_cal), dv);
     if (fe.status != Status::ok) {
       cal_ok = false;
       break;

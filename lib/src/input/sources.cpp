@@ -28,6 +28,8 @@ const SourceInfo& info(Source s) {
       {"firmware.calibration_uncertainty", "calibration_2", "calibration reference (point 2)",
        Quantity::temperature_difference},
       {"conditions.board", "board_temperature", "board temperature range", Quantity::temperature_difference},
+      {"adc.offset_tempco", "adc_offset_tempco", "ADC offset drift", Quantity::plain},
+      {"adc.gain_tempco", "adc_gain_tempco", "ADC gain drift", Quantity::tempco},
   }};
   return table[static_cast<std::size_t>(s)];
 }
@@ -52,6 +54,7 @@ std::string_view to_string(Distribution d) {
 }
 
 double standard_uncertainty(const ToleranceInput& in, double sigma_per_tol) {
+  sigma_per_tol = coverage_k(in, sigma_per_tol);  // the input's own <key>_k where set
   const double a = in.bound;
   switch (in.distribution) {
     case Distribution::normal: return a / sigma_per_tol;

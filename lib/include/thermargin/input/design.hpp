@@ -45,6 +45,7 @@ struct SensorSettings {
   double dissipation = 1.5e-3;   // W/K; 0 switches self-heating off
   double dissipation_tol = 0.0;  // ± relative
   double lead_resistance = 0.0;  // Ω, total of both leads, in series at the sensor
+  RtdConstruction rtd_construction = RtdConstruction::film;  // for the class's validity range
 };
 
 struct DividerSettings {
@@ -74,6 +75,9 @@ struct AdcSettings {
   double noise = 0.5;        // LSB rms at the input
   int averaging = 1;         // samples per reading
   double leakage = 0.0;      // ± A
+  double offset_tempco = 0.0;  // ± LSB/K at the board temperature
+  double gain_tempco = 0.0;    // ± 1/K at the board temperature
+  bool inl_bound = false;      // inl_shape = bound: ± inl at every code; false: the bow
 };
 
 struct FirmwareSettings {
@@ -89,6 +93,9 @@ struct FirmwareSettings {
   Calibration calibration = Calibration::none;
   std::vector<double> calibration_at;  // °C: one point (offset) or two (two-point)
   double calibration_uncertainty = 0.0;  // ± K of the reference
+  // W/K of the calibration medium; nullopt: as in service (the sensor's
+  // own constant with the unit's deviation).
+  std::optional<double> calibration_dissipation;
 };
 
 struct BoardTemperature {
