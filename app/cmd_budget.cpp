@@ -82,6 +82,12 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
       nlohmann::json contributions = nlohmann::json::object();
       for (const auto& t : p.linear.terms) contributions[t.name] = t.contribution;
       r["contributions"] = contributions;
+      // Each row's part of u_c² in K²: (c·u)² plus its second-order terms;
+      // the pair rows' whole term (docs/engines.md).
+      nlohmann::json variances = nlohmann::json::object();
+      for (const auto& t : p.linear.terms) variances[t.name] = t.variance();
+      for (const auto& t : p.linear.pairs) variances[t.name] = t.variance();
+      r["variances"] = variances;
       // The contributor table at this temperature: share of u_c² and the
       // source's own worst-case half-width, largest share first.
       nlohmann::json table = nlohmann::json::array();
