@@ -49,8 +49,8 @@ TEST(SecondOrder, ProductOfZeroMeanInputsIsTheProductOfTheirUncertainties) {
   EXPECT_NEAR(so.pairs[0].c_ijj, 0.0, 1e-6);
   EXPECT_NEAR(so.pairs[0].c_iij, 0.0, 1e-6);
   EXPECT_NEAR(std::sqrt(so.pairs[0].variance), 0.2, 1e-9);
-  EXPECT_NEAR(so.diagonal[0], 0.0, 1e-15);
-  EXPECT_NEAR(so.diagonal[1], 0.0, 1e-12);
+  EXPECT_NEAR(so.own[0], 0.0, 1e-15);
+  EXPECT_NEAR(so.own[1], 0.0, 1e-12);
   // The pair's reach: both at their bounds, the interaction alone is 0.3·6.
   EXPECT_NEAR(so.pairs[0].reach, 1.8, 1e-12);
 }
@@ -79,7 +79,7 @@ TEST(SecondOrder, SquareOfOneInputTakesItsOwnFourthMoment) {
                                             std::tuple{Distribution::uniform, std::sqrt(3.0), 0.8},
                                             std::tuple{Distribution::triangular, std::sqrt(6.0), 1.4}}) {
     const SecondOrder so = terms_of(square, {{Source::r25, bound, dist, 0.0}});
-    EXPECT_NEAR(so.diagonal[0], factor, 1e-8) << to_string(dist);  // u = 1
+    EXPECT_NEAR(so.own[0], factor, 1e-8) << to_string(dist);  // u = 1
   }
 }
 
@@ -94,9 +94,9 @@ TEST(SecondOrder, CubicTermPairsWithTheSlopeAsTheGumWritesIt) {
   const double u = 0.1;
   const std::vector<ToleranceInput> in{{Source::r25, 3 * u, Distribution::normal, 0.0}};
   const SecondOrder so = terms_of(cubic, in);
-  EXPECT_NEAR(so.diagonal[0], 6 * std::pow(u, 4), 1e-9);
+  EXPECT_NEAR(so.own[0], 6 * std::pow(u, 4), 1e-9);
   const double exact = u * u + 6 * std::pow(u, 4) + 15 * std::pow(u, 6);
-  EXPECT_NEAR(u * u + so.diagonal[0], exact, 15 * std::pow(u, 6) + 1e-9);
+  EXPECT_NEAR(u * u + so.own[0], exact, 15 * std::pow(u, 6) + 1e-9);
 }
 
 TEST(SecondOrder, KurtosisOfTheDistributions) {

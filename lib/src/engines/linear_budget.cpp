@@ -43,7 +43,7 @@ void add_second_order(LinearPoint& lp, const DeviationModel& model, const Design
       second_order_terms(model, d.inputs, c, u, lp.centre, d.montecarlo.sigma_per_tol,
                          [cal](Source a, Source b) { return structurally_zero(cal, a, b); },
                          negligible_share * first_order_var);
-  for (std::size_t i = 0; i < n; ++i) lp.terms[i].second_order = so.diagonal[i];
+  for (std::size_t i = 0; i < n; ++i) lp.terms[i].second_order = so.own[i];
   for (const PairTerm& p : so.pairs) {
     // The board temperature second: "ADC gain drift × board temperature range".
     const bool swap = d.inputs[p.i].source == Source::board_temperature;
@@ -53,8 +53,7 @@ void add_second_order(LinearPoint& lp, const DeviationModel& model, const Design
     t.label = std::string(a.label) + " \u00d7 " + std::string(b.label);
     t.sensitivity = p.c_ij;
     t.u = u[p.i] * u[p.j];
-    t.contribution = std::fabs(p.c_ij) * t.u;
-    t.second_order = p.variance - t.contribution * t.contribution;
+    t.contribution = std::fabs(p.c_ij) * t.u;  // variance() = c_ij²·u_i²·u_j² = p.variance
     t.reach = p.reach;
     lp.pairs.push_back(std::move(t));
   }

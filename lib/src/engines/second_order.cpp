@@ -72,7 +72,7 @@ SecondOrder second_order_terms(const DeviationModel& model, const std::vector<To
                                double sigma_per_tol, const StructurallyZero& zero, double negligible) {
   SecondOrder out;
   const std::size_t n = inputs.size();
-  out.diagonal.assign(n, 0.0);
+  out.own.assign(n, 0.0);
   Prober p{model, inputs};
   std::vector<double> h(n);
   // f(x_i ± h_i), everything else nominal: shared by the diagonal terms and
@@ -93,7 +93,7 @@ SecondOrder second_order_terms(const DeviationModel& model, const std::vector<To
     const double c_ii = (*up[i] - 2.0 * f0 + *down[i]) / (hi * hi);
     const double c_iii = (*up2 - 2.0 * *up[i] + 2.0 * *down[i] - *down2) / (2.0 * hi * hi * hi);
     const double kappa = kurtosis(inputs[i], sigma_per_tol), u4 = u[i] * u[i] * u[i] * u[i];
-    out.diagonal[i] = (0.25 * (kappa - 1.0) * c_ii * c_ii + kappa / 3.0 * c[i] * c_iii) * u4;
+    out.own[i] += (0.25 * (kappa - 1.0) * c_ii * c_ii + kappa / 3.0 * c[i] * c_iii) * u4;
   }
   for (std::size_t i = 0; i < n; ++i)
     for (std::size_t j = i + 1; j < n; ++j) {
@@ -113,8 +113,13 @@ SecondOrder second_order_terms(const DeviationModel& model, const std::vector<To
       // ∂/∂x_i of the second difference in x_j, and the other way round.
       t.c_ijj = ((*pp - 2.0 * *up[i] + *pm) - (*mp - 2.0 * *down[i] + *mm)) / (2.0 * hi * hj * hj);
       t.c_iij = ((*pp - 2.0 * *up[j] + *mp) - (*pm - 2.0 * *down[j] + *mm)) / (2.0 * hj * hi * hi);
-      t.variance = (t.c_ij * t.c_ij + c[i] * t.c_ijj + c[j] * t.c_iij) * u[i] * u[i] * u[j] * u[j];
-      if (!(std::fabs(t.variance) >= negligible)) continue;
+      const double u2u2 = u[i] * u[i] * u[j] * u[j];
+      t.variance = t.c_ij * t.c_ij * u2u2;
+      // Each slope times the third derivative goes to that input's own row,
+      // kept or not: it is part of u_c whatever the pair's row.
+      out.own[i] += c[i] * t.c_ijj * u2u2;
+      out.own[j] += c[j] * t.c_iij * u2u2;
+      if (!(t.variance >= negligible)) continue;
       const auto reach = pair_reach(p, i, j, f0, at_lo, at_hi);
       t.reach = reach ? *reach : 0.0;
       out.pairs.push_back(t);

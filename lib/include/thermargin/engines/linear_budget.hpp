@@ -64,8 +64,9 @@ struct LinearPoint {
   std::vector<BudgetTerm> terms;  // Design::inputs in order, then quantisation, noise, rounding (always)
   // The pairs of inputs with a non-negligible second-order term, each its
   // own row ("a × b"; sensitivity c_ij, u = u_i·u_j, contribution
-  // |c_ij|·u_i·u_j, second_order the c_i·c_ijj terms); u_c² is the sum of
-  // variance() over terms and pairs.
+  // |c_ij|·u_i·u_j; the slopes' products with the third derivatives are in
+  // the inputs' own rows); u_c² is the sum of variance() over terms and
+  // pairs.
   std::vector<BudgetTerm> pairs;
   int second_order_failed = 0;  // second-order terms left out: the chain had no value at a step
 };

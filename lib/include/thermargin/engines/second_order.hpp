@@ -7,7 +7,11 @@
 // point. For i ≠ j the two ordered terms of a pair add to
 // [c_ij² + c_i·c_ijj + c_j·c_iij]·u_i²·u_j², which holds for any
 // distributions of the two (only their independence and zero means are
-// used): that is a pair's own row in the contributor table. The diagonal
+// used). c_ij²·u_i²·u_j² is the variance of the product term c_ij·x_i·x_j
+// itself, never negative: that is the pair's own row in the contributor
+// table. c_i·c_ijj·u_i²·u_j² is the covariance of input i's linear term with
+// the cubic ½c_ijj·x_i·x_j² (its slope bending with x_j), of either sign:
+// it goes to input i's own row. The diagonal
 // i = j is written by the GUM for normal inputs; here it takes the input's
 // own fourth moment E[x⁴] = κ·u⁴ (κ = 3 normal, 9/5 uniform, 12/5
 // triangular): [¼(κ − 1)·c_ii² + (κ/3)·c_i·c_iii]·u_i⁴, which is the
@@ -42,12 +46,14 @@ struct PairTerm {
   double c_ij = 0.0;         // ∂²f/∂x_i∂x_j
   double c_ijj = 0.0;        // ∂³f/∂x_i∂x_j²
   double c_iij = 0.0;        // ∂³f/∂x_i²∂x_j
-  double variance = 0.0;     // [c_ij² + c_i·c_ijj + c_j·c_iij]·u_i²·u_j²
+  double variance = 0.0;     // c_ij²·u_i²·u_j², the pair's row
   double reach = 0.0;        // the interaction alone with both at their bounds: max |f(±a_i, ±a_j) − f(±a_i, 0) − f(0, ±a_j) + f(0, 0)|
 };
 
 struct SecondOrder {
-  std::vector<double> diagonal;  // per input: [¼(κ − 1)c_ii² + (κ/3)c_i·c_iii]·u_i⁴
+  // Per input, its row's second-order terms: [¼(κ − 1)c_ii² + (κ/3)c_i·c_iii]·u_i⁴
+  // plus Σ_j c_i·c_ijj·u_i²·u_j² over every pair differentiated.
+  std::vector<double> own;
   std::vector<PairTerm> pairs;   // the pairs whose term is not negligible
   int pairs_evaluated = 0;       // pairs differentiated (not skipped by structure)
   int failed = 0;                // pairs or inputs left out: the model had no value at a step
@@ -58,8 +64,8 @@ struct SecondOrder {
 using StructurallyZero = std::function<bool(Source, Source)>;
 
 // `c` and `u` are the first-order sensitivities and standard uncertainties
-// (in the order of `inputs`), `f0` the model at the nominal point. A pair is
-// kept when |variance| ≥ negligible (K²).
+// (in the order of `inputs`), `f0` the model at the nominal point. A pair's
+// row is kept when its variance ≥ negligible (K²).
 SecondOrder second_order_terms(const DeviationModel& model, const std::vector<ToleranceInput>& inputs,
                                const std::vector<double>& c, const std::vector<double>& u, double f0,
                                double sigma_per_tol, const StructurallyZero& zero, double negligible);
