@@ -11,6 +11,7 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/report/budget_report.hpp"
 #include "thermargin/core/caution.hpp"
@@ -85,6 +86,12 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
       nlohmann::json contributions = nlohmann::json::object();
       for (const auto& t : p.linear.terms) contributions[t.name] = t.contribution;
       r["contributions"] = contributions;
+      // Each row's part of u_c² in K²: (c·u)² plus its second-order terms;
+      // the pair rows' whole term (docs/engines.md).
+      nlohmann::json variances = nlohmann::json::object();
+      for (const auto& t : p.linear.terms) variances[t.name] = t.variance();
+      for (const auto& t : p.linear.pairs) variances[t.name] = t.variance();
+      r["variances"] = variances;
       // The contributor table at this temperature: share of u_c² and the
       // source's own worst-case half-width, largest share first.
       nlohmann::json table = nlohmann::json::array();
@@ -105,7 +112,9 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
       if (p.linear.status == Status::ok && p.mc->valid > 0)
         r["linear_validated"] = linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high,
                                                  numerical_tolerance(p.linear.u_c));
+      if (const std::string why = validation_failure_reason(p, d); !why.empty()) r["linear_validation_reason"] = why;
     }
+    if (!rtd_class_rated_at(d, p.t)) r["rtd_class_extrapolated"] = true;
     j["points"].push_back(r);
   }
   const auto& v = b.verdict;
@@ -149,7 +158,11 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
   w["contributors"] = nlohmann::json::array();
   for (const auto& c : b.window_contributors)
     w["contributors"].push_back({{"source", c.name}, {"label", c.label}, {"share", c.share}, {"half_width", c.half_width}});
+  w["leaders_by_share"] = b.leaders_by_share;
+  w["leaders_by_reach"] = b.leaders_by_reach;
+  w["leaders_differ"] = b.leaders_differ;
   j["window"] = w;
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) j["rtd_class_note"] = note;
   j["caution"] = std::string(caution);
   return j;
 }
@@ -199,6 +212,17 @@ std::string to_csv(const Budget& b) {
     out << "\n";
   }
   return out.str();
+}
+
+// The leaders by own worst-case reach, under the dominant contributors, and
+// whether they are led by another source than the shares.
+std::string leaders_by_reach_text(const Budget& b) {
+  std::string s = "Largest own worst-case reach over the window:";
+  for (std::size_t i = 0; i < b.leaders_by_reach.size(); ++i)
+    for (const auto& c : b.window_contributors)
+      if (c.name == b.leaders_by_reach[i]) s += std::string(i ? "," : "") + " " + c.label + " " + fixed(c.half_width, 3) + " K";
+  if (!b.leaders_differ) return s + "\n";
+  return s + "\n  (not the leader by share: a source can reach far at the ends of its range with a small variance)\n";
 }
 
 // A source in the text's contributor tables: every active input, and a
@@ -273,6 +297,8 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
   }
   if (!dominant.empty()) out << "Dominant contributors over the window (share of the combined variance): " << dominant << "\n";
   out << (b.end_of_life ? "\n" + end_of_life_text(d, b) : "");
+  if (!b.leaders_by_reach.empty()) out << leaders_by_reach_text(b);
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) out << "RTD class: " << note << ".\n";
   if (b.weakest.found)
     out << "Weakest ADC sensitivity in the window: " << fixed(b.weakest.lsb_per_k, 2) << " LSB/K ("
         << fixed(b.weakest.mv_per_k, 3) << " mV/K) at " << fixed(b.weakest.t, 2) << " degC, where 1 LSB = "
@@ -301,6 +327,11 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
     out << "Linear budget against Monte Carlo (JCGM 101 section 8): validated at " << validated << " of " << compared
         << " window temperatures" << (validated == compared ? "; the simple budget can be trusted here.\n"
                                                             : "; read the Monte Carlo bands where they differ.\n");
+    for (const auto& p : b.points)
+      if (const std::string why = p.in_window ? validation_failure_reason(p, d) : ""; !why.empty()) {
+        out << "First failure at " << fixed(p.t, 2) << " degC, because of " << why << ".\n";
+        break;
+      }
   }
   if (b.status_points > 0)
     out << "\nNote: " << b.status_points
@@ -313,9 +344,9 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
   out << c.render();
   if (std::any_of(b.window_contributors.begin(), b.window_contributors.end(),
                   [&](const Contributor& k) { return shown_contributor(d, k) && k.share == 0.0; }))
-    out << "A share of 0 %: the linear budget is first order (GUM), and a source that acts only together with\n"
-           "another (a tempco with the board temperature range) has no first-order sensitivity; its half-width\n"
-           "and the worst case and Monte Carlo bands include it.\n";
+    out << "A share of 0 %: a source that acts only together with another (a tempco with the board temperature\n"
+           "range) has no first-order sensitivity; its part is in the pair's row (a x b) where that is not\n"
+           "negligible, and its half-width, the worst case and Monte Carlo include it.\n";
   out << what_if_text(d, w);
 
   out << "\nPer temperature (errors in K; LSB/K and mV/K are the ADC sensitivity, 1 LSB its size in K;"

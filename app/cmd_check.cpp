@@ -6,10 +6,51 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/input/design.hpp"
 
 namespace thermargin::cli {
+
+namespace {
+
+// A deviation in the unit the scenario writes it in (% and ppm/K as typed).
+double shown(Quantity q, double v) { return q == Quantity::ratio ? 100.0 * v : q == Quantity::tempco ? 1e6 * v : v; }
+
+// `<key>_k` of a toleranced key (not montecarlo.noise_k): hidden at its default like _dist and _gap.
+bool coverage_key(const std::string& key) {
+  return key.ends_with("_k") && find_key(key.substr(0, key.size() - 2)) != nullptr;
+}
+
+// Each active input: its bound, distribution, coverage factor and standard
+// uncertainty σ as the linear budget and Monte Carlo use them.
+struct SourceRow {
+  std::string name, unit, distribution, k;
+  double bound = 0.0, sigma = 0.0;
+};
+std::vector<SourceRow> source_rows(const Design& d) {
+  std::vector<SourceRow> out;
+  for (const auto& in : d.inputs) {
+    const SourceInfo& i = info(in.source);
+    const bool normal = in.distribution == Distribution::normal || in.distribution == Distribution::gapped;
+    char k[32] = "-";
+    if (normal) std::snprintf(k, sizeof k, "%g", coverage_k(in, d.montecarlo.sigma_per_tol));
+    out.push_back({std::string(i.name), std::string(unit_symbol(i.quantity)), std::string(to_string(in.distribution)), k,
+                   shown(i.quantity, in.bound), shown(i.quantity, standard_uncertainty(in, d.montecarlo.sigma_per_tol))});
+  }
+  return out;
+}
+
+// What the INL's shape means, said wherever adc.inl is active (docs/model.md §5).
+std::string inl_shape_note(const Design& d) {
+  if (!(d.adc.inl > 0.0)) return "";
+  if (d.adc.inl_bound) return "adc.inl_shape = bound: +/- adc.inl at every code, uniform in the linear budget.";
+  return "adc.inl_shape = bow (the default): the INL is zero at both ends of the ADC's range and adc.inl only at "
+         "mid-scale, so it is no bound near the ends; a datasheet's INL is a bound at every code, and "
+         "adc.inl_shape = bound is the reading a careful review should use.";
+}
+
+}  // namespace
 
 int run_check(int argc, char** argv) {
   po::options_description own("check options");
@@ -43,6 +84,13 @@ int run_check(int argc, char** argv) {
                            {"as_read", r.text},
                            {"origin", s.where.origin()}});
     }
+    j["sources"] = nlohmann::json::array();
+    for (const auto& s : source_rows(design))
+      j["sources"].push_back({{"source", s.name}, {"bound", s.bound}, {"unit", s.unit}, {"distribution", s.distribution},
+                              {"k", s.k == "-" ? nlohmann::json(nullptr) : nlohmann::json(std::stod(s.k))},
+                              {"sigma", s.sigma}});
+    if (const std::string n = inl_shape_note(design); !n.empty()) j["inl_shape_note"] = n;
+    if (const std::string n = rtd_class_range_note(design); !n.empty()) j["rtd_class_note"] = n;
     j["caution"] = std::string(caution);
     out << j.dump(2) << "\n";
   } else if (inv.format == Format::csv) {
@@ -68,11 +116,25 @@ int run_check(int argc, char** argv) {
     TextTable t({"key", "as written", "as read", "origin"});
     for (const auto& k : schema) {
       const auto& s = inv.scenario.get(k.key);
-      if ((k.key.ends_with("_dist") || k.key.ends_with("_gap")) && s.where.kind == Origin::built_in) continue;
+      if ((k.key.ends_with("_dist") || k.key.ends_with("_gap") || coverage_key(k.key)) && s.where.kind == Origin::built_in)
+        continue;
       if (k.key == "title") continue;  // on the first line
       t.add({k.key, s.value.empty() ? "(none)" : s.value, resolved.at(k.key).text, s.where.origin()});
     }
-    out << t.render() << "\n" << caution << "\n";
+    out << t.render() << "\n";
+    out << "The active inputs as the engines draw them: a normal bound is k standard deviations (<key>_k; a\n"
+           "calibration certificate's +/-U is k = 2), a uniform bound a/sqrt(3), a triangular a/sqrt(6).\n";
+    TextTable src({"source", "bound", "unit", "distribution", "k", "sigma"});
+    char b[32], sg[32];
+    for (const auto& s : source_rows(design)) {
+      std::snprintf(b, sizeof b, "%.6g", s.bound);
+      std::snprintf(sg, sizeof sg, "%.6g", s.sigma);
+      src.add({s.name, b, s.unit, s.distribution, s.k, sg});
+    }
+    out << src.render() << "\n";
+    if (const std::string n = inl_shape_note(design); !n.empty()) out << n << "\n";
+    if (const std::string n = rtd_class_range_note(design); !n.empty()) out << "RTD class: " << n << ".\n";
+    out << caution << "\n";
   }
   emit(inv, out.str());
   return 0;

@@ -57,6 +57,7 @@ nlohmann::ordered_json row_json(const GradesResult& g, const GradeRow& r) {
   j["on_front"] = r.on_front;
   j["meets_requirement"] = r.meets_requirement;
   j["verdict"] = r.verdict;
+  if (!r.rtd_class_note.empty()) j["rtd_class_note"] = r.rtd_class_note;
   return j;
 }
 
@@ -190,11 +191,17 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
     if (r.on_front) marks += "F";
     if (r.meets_requirement) marks += "M";
     if (g.recommendation == i) marks += "R";
+    if (!r.rtd_class_note.empty()) marks += "X";
     row.push_back(marks);
     row.push_back(r.verdict);
     t.add(row);
   }
   out << t.render();
+  for (const auto& r : g.rows)
+    if (!r.rtd_class_note.empty()) {
+      out << "X: the RTD class is used beyond its rated range, e.g. " << r.rtd_class_note << ".\n";
+      break;
+    }
   out << "\nMonte Carlo: " << g.units << " units per combination, seed " << d.montecarlo.seed
       << ", the same units for every combination; run in full for " << g.mc_full << " of " << g.rows.size()
       << " combination(s)";

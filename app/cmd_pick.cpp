@@ -10,6 +10,7 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/report/pick_report.hpp"
 #include "thermargin/tools/picker.hpp"
@@ -179,6 +180,7 @@ std::string to_json(const Design& d, const PickResult& r, const PickOptions& o) 
                      {"t_centre", g.t_centre},
                      {"max_sensitivity", guidance_json(g.max_sensitivity)},
                      {"three_point", guidance_json(g.linearising)}};
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) j["rtd_class_note"] = note;
   j["caution"] = std::string(caution);
   return j.dump(2) + "\n";
 }
@@ -301,6 +303,7 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
                          g.linearising, r, o,
                          "no positive value: the curve is straight or bends the other way (R1 + R3 <= 2 R2)");
   }
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) out << "\nRTD class: " << note << ".\n";
   out << "\n" << caution << "\n";
   return out.str();
 }

@@ -7,6 +7,7 @@
 
 #include "cli.hpp"
 #include "commands.hpp"
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/tools/lookup_table.hpp"
 
@@ -54,6 +55,7 @@ std::string to_json(const Design& d, const TableResult& r) {
       row["max_error_to_next"] = r.interval_max[k] ? nlohmann::json(*r.interval_max[k]) : nlohmann::json(nullptr);
     j["rows"].push_back(row);
   }
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) j["rtd_class_note"] = note;
   j["caution"] = std::string(caution);
   return j.dump(2) + "\n";
 }
@@ -83,7 +85,9 @@ std::string to_text(const Design& d, const TableResult& r) {
     tt.add({std::to_string(k), std::to_string(t.code(k)), fixed(stored_celsius(t, k), decimals),
             std::to_string(t.stored[k]),
             k + 1 == t.size() ? "" : r.interval_max[k] ? fixed(*r.interval_max[k], 4) : "outside the range"});
-  out << tt.render() << "\n" << caution << "\n";
+  out << tt.render() << "\n";
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) out << "RTD class: " << note << ".\n";
+  out << caution << "\n";
   return out.str();
 }
 

@@ -32,6 +32,25 @@ void BM_LinearBudgetTwelveInputs(benchmark::State& state) {
 }
 BENCHMARK(BM_LinearBudgetTwelveInputs)->Unit(benchmark::kMillisecond);
 
+// The linear budget with and without its second-order terms on 14 active
+// inputs (91 pairs) over 201 temperatures: what the pairs cost.
+void BM_LinearBudgetFourteenInputs(benchmark::State& state) {
+  const Design d = build_design(bench::fourteen_inputs_scenario());
+  const Chain chain(d);
+  const auto temps = d.conditions.temperatures();
+  const BudgetOrder order = state.range(0) ? BudgetOrder::second : BudgetOrder::first;
+  std::size_t pairs = 0;
+  for (auto _ : state) {
+    const LinearBudget lb = linear_budget(chain, temps, order);
+    pairs = lb.points[temps.size() / 2].pairs.size();
+    benchmark::DoNotOptimize(lb.points.data());
+  }
+  state.SetLabel(state.range(0) ? "second order" : "first order");
+  state.counters["inputs"] = static_cast<double>(d.inputs.size());
+  state.counters["pairs_kept_mid_range"] = static_cast<double>(pairs);
+}
+BENCHMARK(BM_LinearBudgetFourteenInputs)->Arg(0)->Arg(1)->Unit(benchmark::kMillisecond);
+
 // What issue 3 asks to be well under a second: both deterministic bands.
 void BM_WorstCaseAndLinearBudgetTwelveInputs(benchmark::State& state) {
   const Design d = twelve_inputs();

@@ -125,22 +125,25 @@ TEST(BudgetCli, BeyondSixteenActiveInputsTheCornersAreDirectedAndEveryOutputSays
 }
 
 TEST(BudgetCli, ContributorTablesPerTemperatureAndForTheWindowAreSharesOfTheCombinedVariance) {
-  // JCGM 100:2008 §5.1.2 eq. (10): u_c² = Σ (c_i·u_i)², so a source's share
-  // is (c_i·u_i)² / u_c², computed here from the interface's "contributions"
-  // field (u_i·|c_i| in K); the shares add up to 100 % at every temperature
-  // and over the window, largest first, the first one named dominant.
+  // JCGM 100:2008 §5.1.2 eq. (10) and its note: u_c² = Σ (c_i·u_i)² + the
+  // second-order terms, so a row's share is its variance / u_c², the
+  // variance being (c_i·u_i)² from the interface's "contributions" field
+  // (u_i·|c_i| in K) plus the row's second-order terms ("variances", K²;
+  // a pair row has only those); the shares add up to 100 % at every
+  // temperature and over the window, largest first, the first one named
+  // dominant.
   const auto j = testing::cli_json("budget " + testing::shell_quote(testing::scenario_path("cold_store_logger.ini")) +
                                    " --no-mc");
   int checked = 0;
   for (const auto& p : j["points"]) {
     ASSERT_TRUE(p.contains("contributors")) << p["t"];
     double var = 0.0, sum = 0.0, previous = 2.0;
-    for (const auto& [name, k] : p["contributions"].items()) var += k.get<double>() * k.get<double>();
+    for (const auto& [name, v] : p["variances"].items()) var += v.get<double>();
     EXPECT_NEAR(std::sqrt(var), p["u_c"].get<double>(), 1e-12) << p["t"];
-    ASSERT_EQ(p["contributors"].size(), p["contributions"].size());
+    ASSERT_EQ(p["contributors"].size(), p["variances"].size());
     for (const auto& c : p["contributors"]) {
-      const double k = p["contributions"][c["source"].get<std::string>()];
-      EXPECT_NEAR(c["share"].get<double>(), k * k / var, 1e-12) << p["t"] << " " << c["source"];
+      const double v = p["variances"][c["source"].get<std::string>()];
+      EXPECT_NEAR(c["share"].get<double>(), v / var, 1e-12) << p["t"] << " " << c["source"];
       EXPECT_LE(c["share"].get<double>(), previous);
       EXPECT_GE(c["half_width"].get<double>(), 0.0);
       previous = c["share"];

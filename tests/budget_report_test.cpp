@@ -106,9 +106,10 @@ TEST(BudgetFigures, AreFiveChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
   EXPECT_GT(*figures[0].chart.y.max, 0.5);
 }
 
-TEST(BudgetFigures, ContributorSharesAreTheSquaredContributionsOverTheCombinedVariance) {
-  // Second route to the same number: the linear budget's terms (|c|·u) and
-  // u_c, as JCGM 100 eq. 10 defines the shares, not the budget's sorted list.
+TEST(BudgetFigures, ContributorSharesAreTheRowVariancesOverTheCombinedVariance) {
+  // Second route to the same number: the linear budget's terms (|c|·u plus
+  // each row's second-order terms) and u_c, as JCGM 100 eq. 10 and its note
+  // define the shares, not the budget's sorted list.
   const Scenario s = scenario("battery_charge_guard.ini", {});
   const Design d = build_design(s);
   const Chain chain(d);
@@ -122,7 +123,7 @@ TEST(BudgetFigures, ContributorSharesAreTheSquaredContributionsOverTheCombinedVa
       const auto& lp = b.points[i].linear;
       for (const auto& term : lp.terms)
         if (term.name == line.name) {
-          EXPECT_NEAR(*line.y[i], 100.0 * term.contribution * term.contribution / (lp.u_c * lp.u_c), kShareTolerance)
+          EXPECT_NEAR(*line.y[i], 100.0 * term.variance() / (lp.u_c * lp.u_c), kShareTolerance)
               << line.name << " at " << b.points[i].t;
           ++compared;
         }

@@ -228,8 +228,12 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainWithTheSampledNodeAndTheDrive) {
 // --- Bands against the other engines -------------------------------------------------
 
 TEST(MonteCarloBands, LieInsideTheWorstCaseBandWithoutNoiseOnEveryScenario) {
+  // The calibration reference's bound is read as a certificate's k = 2
+  // (docs/model.md §7): 4.6 % of its normal draws lie beyond ±U, so its
+  // ±U is no box for the 99.73 % interval. The check holds it at k = 3,
+  // where the interval stays inside the box (as for every other bound).
   for (const auto& file : testing::scenario_files()) {
-    const Design d = design_with({{"adc.noise", "0"}}, file);
+    const Design d = design_with({{"adc.noise", "0"}, {"firmware.calibration_uncertainty_k", "3"}}, file);
     const Chain chain(d);
     const auto temps = d.conditions.temperatures();
     const WorstCase wc = worst_case(chain, temps);

@@ -30,7 +30,11 @@ namespace fs = std::filesystem;
 
 const fs::path source_dir(THERMARGIN_SOURCE_DIR);
 
-bool is_override(const std::string& key) { return key.ends_with("_dist") || key.ends_with("_gap"); }
+// Per-input overrides: _dist, _gap and the coverage factor _k of a toleranced key.
+bool is_override(const std::string& key) {
+  return key.ends_with("_dist") || key.ends_with("_gap") ||
+         (key.ends_with("_k") && find_key(key.substr(0, key.size() - 2)) != nullptr);
+}
 
 // A scratch directory per test, removed afterwards.
 class ScenarioFile : public ::testing::Test {

@@ -11,7 +11,10 @@ with xml.etree, then compares every plotted series with the numbers of
   error-bands   nominal, the wc / rss / mc bands (wc_low..wc_high, ...), the
                 limit lines at +-limit, the window strip, and hatched strips
                 exactly over the temperatures that cannot be read
-  contributors  each main source's share 100 * contribution^2 / u_c^2 (%),
+  contributors  each main row's share 100 * variance / u_c^2 (%), the
+                row's variance from the JSON's "variances" (contribution^2
+                plus the row's second-order terms; a pair row "a x b" has
+                only those),
                 sources ranked as in window.contributors, "others" the rest
   sensitivity   |sensitivity|
   lsb-size      lsb_in_k
@@ -204,9 +207,9 @@ def check_contributor_chart(svg, j):
         fail("only %d of the main sources drawn" % len(main))
 
     def share(p, name):
-        if "contributions" not in p or not p["u_c"] > 0:
+        if "variances" not in p or not p["u_c"] > 0:
             return None
-        return 100.0 * p["contributions"].get(name, 0.0) ** 2 / p["u_c"] ** 2
+        return 100.0 * p["variances"].get(name, 0.0) / p["u_c"] ** 2
 
     for name in main:
         check_line(s, name, j["points"], lambda p, n=name: share(p, n))

@@ -46,20 +46,38 @@ FrontEnd Chain::front_end(const Deviations& dev, double t_c) const { return adc_
 FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& unit) const {
   if (fe.status != Status::ok) return fe;
   const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
-  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset), at(dev, Source::adc_inl));
+  // The ADC's offset and gain drift with the board temperature (docs/model.md §5).
+  const double drift = fe.t_board - 25.0;
+  const double offset = at(dev, Source::adc_offset) + at(dev, Source::adc_offset_tempco) * drift;
+  // adc.inl_shape = bound: the INL deviation at every code, not the bow.
+  double inl = at(dev, Source::adc_inl);
 #ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
-  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain), at(dev, Source::adc_offset), 0.0);
+  inl = 0.0;
 #endif
+  const bool bound = d_->adc.inl_bound;
+  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain) + at(dev, Source::adc_gain_tempco) * drift,
+                           bound ? offset + inl : offset, bound ? 0.0 : inl);
   return fe;
 }
 
-FrontEnd Chain::analog_front_end(const Deviations& unit, double t_c) const {
+FrontEnd Chain::analog_front_end(const Deviations& dev, double t_c) const {
+  return analog_stage(dev, t_c, d_->sensor.dissipation, at(dev, Source::dissipation));
+}
+
+FrontEnd Chain::analog_calibration_front_end(const Deviations& dev, double t_cal) const {
+  const auto& medium = d_->firmware.calibration_dissipation;
+  if (!medium) return analog_front_end(dev, t_cal);
+  return analog_stage(dev, t_cal, *medium, 0.0);
+}
+
+FrontEnd Chain::analog_stage(const Deviations& unit, double t_c, double dissipation, double dissipation_dev) const {
   const Design& d = *d_;
   const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
   FrontEnd fe;
   const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
                           at(dev, Source::table_spread), at(dev, Source::sensor_drift));
   const double t_board = board_temperature(d.conditions.board, t_c, at(dev, Source::board_temperature));
+  fe.t_board = t_board;
   const SupplyUnit supply = supply_unit(d.supply, dev, t_board);
   const double r_fixed =
       d.divider.r_fixed * (1.0 + at(dev, Source::r_fixed)) * (1.0 + at(dev, Source::r_fixed_tempco) * (t_board - 25.0));
@@ -74,8 +92,8 @@ FrontEnd Chain::analog_front_end(const Deviations& unit, double t_c) const {
   const double t_true_k = t_c + kelvin_offset;
   double t_element = t_true_k;
   double r_element = 0.0;
-  if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
-    const double gain = d.divider.duty / (d.sensor.dissipation * (1.0 + at(dev, Source::dissipation)));
+  if (dissipation > 0.0 && d.divider.duty > 0.0) {
+    const double gain = d.divider.duty / (dissipation * (1.0 + dissipation_dev));
     const auto rise_at = [&](double t) -> std::optional<double> {
       const auto l = sensor.ln_resistance(t);
       if (!l) return std::nullopt;
@@ -146,7 +164,7 @@ std::optional<CalibrationData> Chain::calibrate(const Deviations& dev, const Rea
   const int points = calibration_points(f.calibration);
   for (int i = 0; i < points; ++i) {
     const double t_cal = f.calibration_at[static_cast<std::size_t>(i)];
-    const FrontEnd fe = front_end(dev, t_cal);
+    const FrontEnd fe = adc_stage(analog_calibration_front_end(dev, t_cal), dev);
     if (fe.status != Status::ok) return std::nullopt;
     const Reading r = continuous_reading(fe.x_static, shift.at_cal[i], max_code_);
     if (r.saturated) return std::nullopt;

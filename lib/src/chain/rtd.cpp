@@ -42,4 +42,27 @@ double class_bound(RtdClass cls, double t) {
   return 0.0;
 }
 
+ClassRange class_validity(RtdClass cls, RtdConstruction construction) {
+  const bool film = construction == RtdConstruction::film;
+  switch (cls) {
+    case RtdClass::AA: return film ? ClassRange{0.0, 150.0} : ClassRange{-50.0, 250.0};
+    case RtdClass::A: return film ? ClassRange{-30.0, 300.0} : ClassRange{-100.0, 450.0};
+    case RtdClass::B: return film ? ClassRange{-50.0, 500.0} : ClassRange{-196.0, 600.0};
+    case RtdClass::C: return film ? ClassRange{-50.0, 600.0} : ClassRange{-196.0, 600.0};
+  }
+  return {};
+}
+
+std::string_view to_string(RtdClass cls) {
+  switch (cls) {
+    case RtdClass::AA: return "AA";
+    case RtdClass::A: return "A";
+    case RtdClass::B: return "B";
+    case RtdClass::C: return "C";
+  }
+  return "";
+}
+
+std::string_view to_string(RtdConstruction c) { return c == RtdConstruction::film ? "film" : "wire-wound"; }
+
 }  // namespace thermargin

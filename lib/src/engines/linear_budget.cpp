@@ -1,8 +1,11 @@
 #include "thermargin/engines/linear_budget.hpp"
 
+#include <algorithm>
 #include <cmath>
 
 #include <boost/math/distributions/normal.hpp>
+
+#include "thermargin/engines/second_order.hpp"
 
 namespace thermargin {
 
@@ -10,6 +13,52 @@ namespace {
 // Central-difference step as a fraction of each input's bound: small enough
 // that curvature does not bias c_i, large enough to stay clear of rounding.
 constexpr double relative_step = 1e-3;
+
+// A pair's term is kept when it reaches this fraction of the first-order
+// u_c² (0.01 % of the variance: far below any share a table shows, far above
+// the chain's numerical noise in the mixed differences, docs/engines.md).
+constexpr double negligible_share = 1e-4;
+
+// Pairs whose second derivatives vanish by the chain's structure: the
+// offset calibration's reference error is added to the output and appears
+// nowhere else; a two-point calibration's output is affine in its two
+// reference errors together.
+bool structurally_zero(Calibration cal, Source a, Source b) {
+  const auto is_ref = [](Source s) { return s == Source::calibration_1 || s == Source::calibration_2; };
+  if (cal == Calibration::offset) return is_ref(a) || is_ref(b);
+  return is_ref(a) && is_ref(b);
+}
+
+// The second-order terms of one point: each input's own curvature into its
+// row, the pairs as their own rows.
+void add_second_order(LinearPoint& lp, const DeviationModel& model, const Design& d, double first_order_var) {
+  const std::size_t n = d.inputs.size();
+  std::vector<double> c(n), u(n);
+  for (std::size_t i = 0; i < n; ++i) {
+    c[i] = lp.terms[i].sensitivity;
+    u[i] = lp.terms[i].u;
+  }
+  const Calibration cal = d.firmware.calibration;
+  const SecondOrder so =
+      second_order_terms(model, d.inputs, c, u, lp.centre, d.montecarlo.sigma_per_tol,
+                         [cal](Source a, Source b) { return structurally_zero(cal, a, b); },
+                         negligible_share * first_order_var);
+  for (std::size_t i = 0; i < n; ++i) lp.terms[i].second_order = so.own[i];
+  for (const PairTerm& p : so.pairs) {
+    // The board temperature second: "ADC gain drift × board temperature range".
+    const bool swap = d.inputs[p.i].source == Source::board_temperature;
+    const SourceInfo &a = info(d.inputs[swap ? p.j : p.i].source), &b = info(d.inputs[swap ? p.i : p.j].source);
+    BudgetTerm t;
+    t.name = std::string(a.name) + " \u00d7 " + std::string(b.name);
+    t.label = std::string(a.label) + " \u00d7 " + std::string(b.label);
+    t.sensitivity = p.c_ij;
+    t.u = u[p.i] * u[p.j];
+    t.contribution = std::fabs(p.c_ij) * t.u;  // variance() = c_ij²·u_i²·u_j² = p.variance
+    t.reach = p.reach;
+    lp.pairs.push_back(std::move(t));
+  }
+  lp.second_order_failed = so.failed;
+}
 }  // namespace
 
 double coverage_factor(double p) {
@@ -49,7 +98,7 @@ std::optional<Propagation> propagate(const std::function<std::optional<double>(c
   return p;
 }
 
-LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temperatures) {
+LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temperatures, BudgetOrder order) {
   const Design& d = chain.design();
   LinearBudget out;
   out.k_p = coverage_factor(d.montecarlo.coverage);
@@ -117,6 +166,20 @@ LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temper
     reading_term(ReadingSource::resolution, *output_slope, d.firmware.resolution / std::sqrt(12.0));
     double var = 0.0;
     for (const auto& term : lp.terms) var += term.contribution * term.contribution;
+    if (order == BudgetOrder::second) {
+      // A step the chain cannot read leaves that term out (counted), without
+      // failing the point as a first-order failure does.
+      const DeviationModel quiet = [&](const Deviations& dev) -> std::optional<double> {
+        const Evaluation e = chain.evaluate(dev, t, centre_shift, false);
+        if (e.status != Status::ok) return std::nullopt;
+        return e.error;
+      };
+      add_second_order(lp, quiet, d, var);
+      var = 0.0;
+      for (const auto& term : lp.terms) var += term.variance();
+      for (const auto& term : lp.pairs) var += term.variance();
+      var = std::max(var, 0.0);
+    }
     lp.u_c = std::sqrt(var);
     lp.low = lp.centre - out.k_p * lp.u_c;
     lp.high = lp.centre + out.k_p * lp.u_c;

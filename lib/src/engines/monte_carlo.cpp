@@ -342,8 +342,13 @@ void settle_block(const RunConstants& c, const double* __restrict d_pre, const d
 // Reported temperatures (before calibration) of the block's readings at true
 // temperature t; status per unit.
 void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t reading, double* reported,
-                std::uint8_t* status_out) {
+                std::uint8_t* status_out, bool calibration = false) {
   const Design& d = *c.d;
+  // A calibration reading self-heats in the calibration medium where one is
+  // set (firmware.calibration_dissipation, no unit deviation).
+  const bool medium = calibration && d.firmware.calibration_dissipation.has_value();
+  const double dissipation = medium ? *d.firmware.calibration_dissipation : d.sensor.dissipation;
+  alignas(64) static const double no_deviation[block_size] = {};
   alignas(64) double tb[block_size], rf[block_size], vexc[block_size], vref[block_size], inv_par[block_size];
   alignas(64) double te[block_size], rise_prev[block_size], r_el[block_size], xs[block_size], rs[block_size];
   alignas(64) std::uint8_t status[block_size];
@@ -433,10 +438,10 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
   }
   bool resolved_at_first = false;  // every unit solved by the first (Newton) step
   alignas(64) double dln_r[block_size];
-  if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
-    const double duty_over_delta = d.divider.duty / d.sensor.dissipation;
+  if (dissipation > 0.0 && d.divider.duty > 0.0) {
+    const double duty_over_delta = d.divider.duty / dissipation;
     alignas(64) double gain[block_size], moving[block_size], runaway_flag[block_size];
-    const double* d_diss = dev(Source::dissipation);
+    const double* d_diss = medium ? no_deviation : dev(Source::dissipation);
     for (int u = 0; u < block_size; ++u) {
       gain[u] = duty_over_delta / (1.0 + d_diss[u]);
       moving[u] = 1.0;
@@ -487,6 +492,8 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
     const double *g = dev(Source::adc_gain), *o = dev(Source::adc_offset), *i = dev(Source::adc_inl);
     const double* leak = dev(Source::adc_leakage);
     alignas(64) double v_node[block_size], r_th[block_size];
+    const double *g_tc = dev(Source::adc_gain_tempco), *o_tc = dev(Source::adc_offset_tempco);
+    const bool inl_bound = d.adc.inl_bound;
     for (int u = 0; u < block_size; ++u) {
       const double r = r_el[u];
       const double series = r + r_lead;
@@ -501,9 +508,11 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
     for (int u = 0; u < block_size; ++u) {
       const double x = v_node[u] / vref[u] * span;
       const double q = x / span;
-      xs[u] = x * (1.0 + g[u]) + o[u] + i[u] * 4.0 * q * (1.0 - q);
+      const double drift = tb[u] - 25.0;  // the ADC's offset and gain drift (docs/model.md §5)
+      const double bow = i[u] * 4.0 * q * (1.0 - q);  // adc.inl_shape = bound: i[u] at every code
+      xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift) + (inl_bound ? i[u] : bow);
 #ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
-      xs[u] = x * (1.0 + g[u]) + o[u];
+      xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift);
 #endif
     }
   }
@@ -512,13 +521,14 @@ void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t re
   // checks the loop gain at the true temperature for runaway (chain.cpp):
   // a loop gain of 1 needs a rise of at least 1/|d ln R/dT|, tens of kelvin
   // for any NTC, so this is rare and costs nothing in ordinary designs.
-  if (d.sensor.dissipation > 0.0 && d.divider.duty > 0.0) {
+  if (dissipation > 0.0 && d.divider.duty > 0.0) {
     for (int u = 0; u < block_size; ++u) {
       if (!(te[u] - t_k > 1.0) && status[u] != static_cast<std::uint8_t>(Status::runaway)) continue;
       Deviations unit{};
       for (int k = 0; k < source_count; ++k) unit[static_cast<std::size_t>(k)] = dv[k][u];
       if (board.kind == BoardKind::range) unit[static_cast<std::size_t>(Source::board_temperature)] = tb[u] - board.middle();
-      const FrontEnd fe = c.chain->front_end(unit, t);
+      const FrontEnd fe = calibration ? c.chain->adc_stage(c.chain->analog_calibration_front_end(unit, t), unit)
+                                      : c.chain->front_end(unit, t);
       status[u] = static_cast<std::uint8_t>(fe.status);
       xs[u] = fe.status == Status::ok ? fe.x_static : 0.0;
     }
@@ -573,7 +583,7 @@ void calibrate_block(const RunConstants& c, BlockUnits& b) {
   alignas(64) std::uint8_t st[block_size];
   for (int i = 0; i < c.cal_points; ++i) {
     const double t_cal = c.d->firmware.calibration_at[static_cast<std::size_t>(i)];
-    read_block(c, b, t_cal, calibration_reading(i), rep, st);
+    read_block(c, b, t_cal, calibration_reading(i), rep, st, true);
     const Source ref = i == 0 ? Source::calibration_1 : Source::calibration_2;
     for (int u = 0; u < block_size; ++u) {
       b.cal_reported[i][u] = rep[u];
@@ -896,7 +906,7 @@ Evaluation simulate_reading(const Chain& chain, std::uint64_t unit, std::uint32_
     // The calibration reading is reported uncalibrated: convert it directly.
     const ReadingDraw rd = draw_reading(d, unit, calibration_reading(i));
     const Deviations dv = with_reading_draw(d, dev, rd);
-    const FrontEnd fe = chain.front_end(dv, t_cal);
+    const FrontEnd fe = chain.adc_stage(chain.analog_calibration_front_end(dv, t_cal), dv);
     if (fe.status != Status::ok) {
       cal_ok = false;
       break;

@@ -6,6 +6,7 @@
 namespace thermargin {
 
 double draw_deviation(const ToleranceInput& in, double sigma_per_tol, double u1, double u2) {
+  sigma_per_tol = coverage_k(in, sigma_per_tol);  // the input's own <key>_k where set
   const double a = in.bound;
   switch (in.distribution) {
     case Distribution::normal:

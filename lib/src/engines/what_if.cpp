@@ -111,6 +111,7 @@ WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& op
     for (const Contributor* c : ranked) {
       if (taken == options.sources) break;
       if (c->name == info(ReadingSource::quantization).name || (c->share <= 0.0 && c->half_width <= 0.0)) continue;
+      if (is_pair_row(c->name)) continue;  // a pair is improved through its inputs, which have rows of their own
       ++taken;
       if (seen.insert(c->name).second) tried.push_back(c);
     }

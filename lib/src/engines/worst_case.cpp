@@ -36,7 +36,7 @@ CalibrationFrontEnds calibration_front_ends(const Chain& chain, const Deviations
   const Design& d = chain.design();
   CalibrationFrontEnds c;
   for (int i = 0; i < calibration_points(d.firmware.calibration); ++i)
-    c.at[i] = chain.analog_front_end(dev, d.firmware.calibration_at[static_cast<std::size_t>(i)]);
+    c.at[i] = chain.analog_calibration_front_end(dev, d.firmware.calibration_at[static_cast<std::size_t>(i)]);
   return c;
 }
 
@@ -188,7 +188,8 @@ std::vector<double> own_half_widths(const Chain& chain, double t, const Interval
   for (const auto& in : d.inputs)
     if (in.source == Source::board_temperature) board_bound = in.bound;
   auto is_tempco = [](Source s) {
-    return s == Source::r_fixed_tempco || s == Source::v_excitation_tempco || s == Source::v_reference_tempco;
+    return s == Source::r_fixed_tempco || s == Source::v_excitation_tempco || s == Source::v_reference_tempco ||
+           s == Source::adc_offset_tempco || s == Source::adc_gain_tempco;
   };
   const std::size_t board = static_cast<std::size_t>(Source::board_temperature);
   for (const auto& in : d.inputs) {
@@ -353,7 +354,7 @@ WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures
       }
   } else {
     wc.corners = 2;
-    const LinearBudget lb = linear_budget(chain, temperatures);
+    const LinearBudget lb = linear_budget(chain, temperatures, BudgetOrder::first);  // the signs only
     for (std::size_t i = 0; i < nt; ++i) {
       const CornerRange lo = directed_extreme(chain, temperatures[i], iv, lb.points[i], false);
       const CornerRange hi = directed_extreme(chain, temperatures[i], iv, lb.points[i], true);

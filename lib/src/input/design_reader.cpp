@@ -85,6 +85,8 @@ void read_sensor(const R& r, SensorSettings& se) {
   se.dissipation = r.non_negative("sensor.dissipation");
   se.dissipation_tol = r.tolerance("sensor.dissipation_tol");
   se.lead_resistance = r.non_negative("sensor.lead_resistance");
+  se.rtd_construction = r.word<RtdConstruction>(
+      "sensor.rtd_construction", {{"film", RtdConstruction::film}, {"wire-wound", RtdConstruction::wire_wound}});
 }
 
 void read_divider(const R& r, DividerSettings& dv) {
@@ -170,6 +172,10 @@ void read_adc(const R& r, Design& d) {
   a.averaging = static_cast<int>(r.integer("adc.averaging", 1, 65536));
   a.leakage = r.non_negative("adc.leakage");
   if (a.offset >= d.adc_span() / 2) r.fail("adc.offset", "must be less than half the ADC span");
+  a.offset_tempco = r.non_negative("adc.offset_tempco");
+  a.gain_tempco = r.non_negative("adc.gain_tempco");
+  if (a.gain_tempco >= 0.01) r.fail("adc.gain_tempco", "must be below 10000 ppm/K");
+  a.inl_bound = r.word<bool>("adc.inl_shape", {{"bow", false}, {"bound", true}});
   read_acquisition(r, d);
 }
 
@@ -202,6 +208,8 @@ void read_firmware(const R& r, const SensorSettings& se, FirmwareSettings& f) {
                                                                {"offset", Calibration::offset},
                                                                {"two-point", Calibration::two_point}});
   f.calibration_uncertainty = r.non_negative("firmware.calibration_uncertainty");
+  if (r.text("firmware.calibration_dissipation") != "sensor")
+    f.calibration_dissipation = r.non_negative("firmware.calibration_dissipation");
 }
 
 // As many temperatures as Conditions::temperatures() makes: every step from
@@ -362,11 +370,19 @@ class InputCollector {
         distribution_of(key);
         r.non_negative(key + "_gap");
       }
+    for (int i = 0; i < source_count; ++i) {
+      const std::string key(info(static_cast<Source>(i)).key);
+      if (find_key(key + "_k")) coverage_of(key, Distribution::normal);
+    }
   }
   void add(Source src, double bound) {
     if (bound <= 0.0) return;
     const std::string key(info(src).key);
     ToleranceInput in{src, bound, distribution_of(key), r_.non_negative(key + "_gap")};
+    // A datasheet's INL bound (adc.inl_shape = bound) is uniform unless adc.inl_dist says otherwise.
+    if (src == Source::adc_inl && d_.adc.inl_bound && r_.text("adc.inl_dist") == "default")
+      in.distribution = Distribution::uniform;
+    in.k = coverage_of(key, in.distribution);
     if (in.distribution == Distribution::gapped && !(in.gap < bound))
       r_.fail(key + "_gap", "the gap must be smaller than the bound " + r_.text(key));
     if (in.distribution != Distribution::gapped && in.gap > 0.0)
@@ -375,6 +391,17 @@ class InputCollector {
   }
 
  private:
+  // `<key>_k`: 0 for default (montecarlo.sigma_per_tol). Set on a bound
+  // that is not normal it would mean nothing: refused.
+  double coverage_of(const std::string& key, Distribution dist) const {
+    const std::string k = key + "_k";
+    if (r_.text(k) == "default") return 0.0;
+    const double v = r_.positive(k);
+    if (!r_.is_default(k) && (dist == Distribution::uniform || dist == Distribution::triangular))
+      r_.fail(k, "a coverage factor belongs to a normal or gapped bound, and " + key + "_dist is " +
+                     std::string(to_string(dist)) + "; remove it or make the bound normal");
+    return v;
+  }
   Distribution distribution_of(const std::string& key) const {
     if (r_.text(key + "_dist") == "default") return d_.montecarlo.distribution;
     return read_distribution(r_, key + "_dist");
@@ -413,6 +440,12 @@ void collect_inputs(const R& r, Design& d) {
   // The board temperature is uniform over its range, whatever the default distribution.
   if (board.kind == BoardKind::range)
     d.inputs.push_back({Source::board_temperature, board.half_width(), Distribution::uniform, 0.0});
+  // The ADC's drift acts through the board temperature's distance from
+  // 25 degC, as the fixed resistor's tempco does.
+  if (board_moves_fixed_resistor_tempco(board)) {
+    in.add(Source::adc_offset_tempco, a.offset_tempco);
+    in.add(Source::adc_gain_tempco, a.gain_tempco);
+  }
   in.add(Source::r_drive, su.r_drive_tol);
   // What another channel left on the sampling capacitor: uniform over
   // [0, V_ref] (docs/model.md §14), whatever the default distribution.
@@ -479,6 +512,8 @@ Design build_design(const Scenario& s) {
   read_conditions(r, d.conditions);
   check_curve_over_range(r, d.sensor, d.conditions);
   read_calibration_points(r, d.firmware, d.conditions);
+  if (d.firmware.calibration_dissipation && !(d.sensor.dissipation > 0.0))
+    r.fail("firmware.calibration_dissipation", "the calibration medium's dissipation needs self-heating on (sensor.dissipation > 0)");
   resolve_firmware_curve(r, d.sensor, d.conditions, d.firmware);
   read_requirement(r, d.conditions, d.requirement);
   read_montecarlo(r, d.montecarlo);

@@ -41,6 +41,7 @@ std::vector<KeySpec> make_schema() {
       {"sensor.dissipation_tol", Q::ratio, "20%", "+/- tolerance of the dissipation constant"},
       {"sensor.lead_resistance", Q::resistance, "0", "lead resistance in series with the element (both leads)"},
       {"sensor.drift", Q::ratio, "0", "+/- change of the element's resistance over life (end of life only)"},
+      {"sensor.rtd_construction", Q::plain, "film", "RTD construction, for its class's validity range (IEC 60751): film | wire-wound"},
       {"divider.placement", Q::plain, "low", "low (sensor node-to-ground) | high (sensor excitation-to-node)"},
       {"divider.r_fixed", Q::resistance, "10k", "fixed resistor"},
       {"divider.r_fixed_tol", Q::ratio, "1%", "+/- tolerance of the fixed resistor"},
@@ -78,6 +79,9 @@ std::vector<KeySpec> make_schema() {
       {"adc.t_acq", Q::time, "1us", "acquisition time: how long the switch is closed"},
       {"adc.sample_rate", Q::frequency, "10kHz", "this channel's sample rate (averaged samples follow at 1/rate)"},
       {"adc.precharge", Q::plain, "same", "what C_s holds before an acquisition: same | ground | reference | any | a voltage"},
+      {"adc.offset_tempco", Q::plain, "0", "+/- offset drift in LSB/K at board temperature (from 25 degC)"},
+      {"adc.gain_tempco", Q::tempco, "0", "+/- gain drift at board temperature (from 25 degC)"},
+      {"adc.inl_shape", Q::plain, "bow", "bow (zero at both ends, adc.inl at mid-scale) | bound (+/- adc.inl at every code)"},
       {"firmware.conversion", Q::plain, "beta", "exact | beta | steinhart-hart | table"},
       {"firmware.full_scale", Q::plain, "pow2", "pow2 (ratio = code/2^N) | pow2-minus-1 (code/(2^N - 1))"},
       {"firmware.r25", Q::resistance, "sensor", "R25 the firmware assumes; sensor = the sensor's"},
@@ -94,6 +98,8 @@ std::vector<KeySpec> make_schema() {
       {"firmware.calibration", Q::plain, "none", "none | offset | two-point"},
       {"firmware.calibration_at", Q::plain, "25", "calibration temperature(s) in degC: t or t1,t2"},
       {"firmware.calibration_uncertainty", Q::temperature_difference, "0.1", "+/- error of the calibration reference"},
+      {"firmware.calibration_dissipation", Q::dissipation, "sensor",
+       "dissipation constant in the calibration medium (a stirred bath: larger); sensor = as in service"},
       {"conditions.t_min", Q::temperature, "-20", "lowest temperature analysed"},
       {"conditions.t_max", Q::temperature, "80", "highest temperature analysed"},
       {"conditions.t_step", Q::temperature_difference, "0.5", "temperature step"},
@@ -132,6 +138,17 @@ std::vector<KeySpec> make_schema() {
     s.push_back({key + "_dist", Q::plain, "default", "distribution of " + key + ": default | normal | uniform | triangular | gapped"});
     s.push_back({key + "_gap", info(static_cast<Source>(i)).quantity == Q::plain ? Q::plain : info(static_cast<Source>(i)).quantity,
                  "0", "gapped: the inner band sorted out of " + key});
+  }
+  // Per-input coverage factors of a normal bound, after every other key:
+  // a calibration certificate's ±U is stated with k = 2 (JCGM 100 §6).
+  done.clear();
+  for (int i = 0; i < source_count; ++i) {
+    const std::string key(info(static_cast<Source>(i)).key);
+    if (key == "conditions.board" || !done.insert(key).second) continue;
+    const bool certificate = key == "firmware.calibration_uncertainty";
+    s.push_back({key + "_k", Q::plain, certificate ? "2" : "default",
+                 "coverage factor of a normal " + key + " (sigma = bound/k); default = montecarlo.sigma_per_tol" +
+                     (certificate ? "; 2: a certificate's expanded uncertainty (JCGM 100 section 6)" : "")});
   }
   return s;
 }

@@ -38,6 +38,8 @@ const SourceInfo& info(Source s) {
       {"sensor.table_file", "table_spread", "sensor spread (R-T table limits)", Quantity::plain},
       {"supply.r_drive_tol", "r_drive", "divider drive resistance", Quantity::ratio},
       {"adc.precharge", "adc_precharge", "sampling capacitor's start (precharge = any)", Quantity::voltage},
+      {"adc.offset_tempco", "adc_offset_tempco", "ADC offset drift", Quantity::plain},
+      {"adc.gain_tempco", "adc_gain_tempco", "ADC gain drift", Quantity::tempco},
   }};
   return table[static_cast<std::size_t>(s)];
 }
@@ -62,6 +64,7 @@ std::string_view to_string(Distribution d) {
 }
 
 double standard_uncertainty(const ToleranceInput& in, double sigma_per_tol) {
+  sigma_per_tol = coverage_k(in, sigma_per_tol);  // the input's own <key>_k where set
   const double a = in.bound;
   switch (in.distribution) {
     case Distribution::normal: return a / sigma_per_tol;

@@ -11,6 +11,7 @@
 #include <filesystem>
 #include <optional>
 
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/engines/monte_carlo.hpp"
@@ -516,6 +517,7 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
   if (!b.window_contributors.empty() && b.window_contributors.front().share > 0.0)
     doc.paragraph("The largest contributor over the window is the " + b.window_contributors.front().label + " (" +
                   pct(b.window_contributors.front().share, 1) + " of the combined variance).");
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) doc.paragraph("RTD class: " + note + ".");
   yield_block(doc, d, b);
 
   doc.heading("Error across the range");

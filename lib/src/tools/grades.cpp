@@ -13,6 +13,7 @@
 #include <thread>
 
 #include "thermargin/engines/budget.hpp"
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/tools/series.hpp"
 #include "thermargin/input/life.hpp"
@@ -148,6 +149,7 @@ struct Figures {  // what the engines say about one distinct design
   std::optional<McSummary> mc;
   bool mc_unreadable = false;  // some Monte Carlo reading in the window did not convert
   Requirement requirement;
+  std::string rtd_class_note;  // the RTD class used beyond its rated range (marked, not refused)
 };
 
 Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& rp, std::size_t anchor) {
@@ -170,6 +172,7 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
   Design d = design_for_verdict(build_design(s));
   d.montecarlo.threads = 1;  // threads are spread over combinations instead
   f.requirement = d.requirement;
+  f.rtd_class_note = rtd_class_range_note(d);
   const Chain chain(d);
   std::vector<double> window;
   for (double t : d.conditions.temperatures())
@@ -600,6 +603,7 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
     r.r_fixed = f.r_fixed;
     r.status = f.status;
     r.status_at = f.status_at;
+    r.rtd_class_note = f.rtd_class_note;
     r.wc_max_abs = f.wc_max_abs;
     r.rss_max_abs = f.rss_max_abs;
     r.mc_run = f.mc_run;

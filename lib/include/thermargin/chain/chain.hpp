@@ -37,6 +37,7 @@ struct FrontEnd {
   double x_static = 0.0;   // LSB, after gain, offset and INL
   double r_thevenin = 0.0;          // Ω, the divider seen from the node (with the drive)
   double acquisition_shift = 0.0;   // LSB in x_ideal: the settled sample minus the node (docs/model.md §14)
+  double t_board = 25.0;   // °C, the board temperature of this reading (the ADC's drift)
 };
 
 struct Evaluation {
@@ -79,6 +80,10 @@ class Chain {
   // front_end(dev, t) is adc_stage(analog_front_end(dev, t), dev), to the
   // bit: the worst case reuses one analog stage for every ADC corner.
   FrontEnd analog_front_end(const Deviations& dev, double t_celsius) const;
+  // The analog stage of a calibration reading at t_cal: self-heating in the
+  // calibration medium (firmware.calibration_dissipation, without the unit's
+  // dissipation deviation), else exactly analog_front_end.
+  FrontEnd analog_calibration_front_end(const Deviations& dev, double t_cal) const;
   FrontEnd adc_stage(FrontEnd fe, const Deviations& dev) const;
 
   // Firmware steps 1–4 for a reading: temperature before calibration.
@@ -101,6 +106,8 @@ class Chain {
                     bool round_output, double output_shift = 0.0) const;
 
  private:
+  // `dissipation`: W/K of the medium, `dissipation_dev` the unit's relative deviation of it.
+  FrontEnd analog_stage(const Deviations& dev, double t_celsius, double dissipation, double dissipation_dev) const;
   const Design* d_;
   Firmware firmware_;
   double span_ = 0.0, max_code_ = 0.0;

@@ -30,4 +30,24 @@ double temperature_celsius(const CallendarVanDusen& cvd, double r_ohm);
 // The class's ± temperature bound at t (°C).
 double class_bound(RtdClass cls, double t_celsius);
 
+// IEC 60751:2008 rates each class over a range that depends on the
+// element's construction (from memory, not read):
+//
+// | class | wire-wound      | film           |
+// |-------|-----------------|----------------|
+// | AA    | −50 … +250 °C   | 0 … +150 °C    |
+// | A     | −100 … +450 °C  | −30 … +300 °C  |
+// | B     | −196 … +600 °C  | −50 … +500 °C  |
+// | C     | −196 … +600 °C  | −50 … +600 °C  |
+//
+// Outside it the class's formula is extrapolated (docs/model.md §1).
+enum class RtdConstruction { film, wire_wound };
+struct ClassRange {
+  double min = 0.0, max = 0.0;  // °C
+  bool contains(double t) const { return t >= min && t <= max; }
+};
+ClassRange class_validity(RtdClass cls, RtdConstruction construction);
+std::string_view to_string(RtdClass cls);
+std::string_view to_string(RtdConstruction construction);
+
 }  // namespace thermargin

@@ -76,6 +76,12 @@ struct Budget {
   WeakestSensitivity weakest;
   int status_points = 0;  // points with a status other than ok (any engine)
   Verdict verdict;
+  // The leaders over the window (up to three short names): by share of u_c²
+  // and by own worst-case reach (half-width); a source can lead one list
+  // and not the other (a tempco over a wide board range: small variance,
+  // large reach at the board's ends).
+  std::vector<std::string> leaders_by_share, leaders_by_reach;
+  bool leaders_differ = false;
   // Over the product's life (life.hpp): the same budget of the end-of-life
   // design, when any drift is set; the verdict above is then the one of the
   // budget requirement.at names.
@@ -87,6 +93,12 @@ struct EndOfLife {
   Budget budget;  // its budget (its own end_of_life empty)
   Verdict delivery_verdict;  // the verdict the delivery budget alone gives
 };
+
+// Why the linear band fails the JCGM 101 §8 validation at a point, in one
+// phrase (empty where it is validated or there is no Monte Carlo):
+// saturation, the output rounding, a non-normal product of inputs (a pair
+// row's share), or otherwise the output's shape.
+std::string validation_failure_reason(const BudgetPoint& p, const Design& d);
 
 struct BudgetOptions {
   bool monte_carlo = true;

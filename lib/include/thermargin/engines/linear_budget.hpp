@@ -14,6 +14,7 @@
 #include <functional>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "thermargin/chain/chain.hpp"
@@ -28,7 +29,16 @@ struct BudgetTerm {
   double sensitivity = 0.0;  // output per unit of the source
   double u = 0.0;            // standard uncertainty of the source
   double contribution = 0.0; // |c|·u
+  // The second-order variance of this row (K², JCGM 100 §5.1.2 note;
+  // second_order.hpp): an input's own curvature terms, or all of a pair row.
+  double second_order = 0.0;
+  double reach = 0.0;  // pair rows: the interaction's own worst-case reach, K
+  // The row's part of u_c²: (c·u)² plus its second-order terms.
+  double variance() const { return contribution * contribution + second_order; }
 };
+
+// Whether a contributor's short name is a pair row ("a × b"), not a source.
+inline bool is_pair_row(std::string_view name) { return name.find(" \u00d7 ") != std::string_view::npos; }
 
 // The coverage factor k_p of a normal distribution for probability p (two-sided).
 double coverage_factor(double p);
@@ -52,6 +62,13 @@ struct LinearPoint {
   double u_c = 0.0;     // K
   double low = 0.0, high = 0.0;  // K, centre ∓ k_p·u_c
   std::vector<BudgetTerm> terms;  // Design::inputs in order, then quantisation, noise, rounding (always)
+  // The pairs of inputs with a non-negligible second-order term, each its
+  // own row ("a × b"; sensitivity c_ij, u = u_i·u_j, contribution
+  // |c_ij|·u_i·u_j; the slopes' products with the third derivatives are in
+  // the inputs' own rows); u_c² is the sum of variance() over terms and
+  // pairs.
+  std::vector<BudgetTerm> pairs;
+  int second_order_failed = 0;  // second-order terms left out: the chain had no value at a step
 };
 
 struct LinearBudget {
@@ -59,7 +76,12 @@ struct LinearBudget {
   std::vector<LinearPoint> points;
 };
 
-LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temperatures);
+// `second` adds the second-order terms (the default; docs/engines.md);
+// `first` is JCGM 100 eq. 10 alone, for engines that need only the
+// sensitivities (the directed worst case).
+enum class BudgetOrder { first, second };
+LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temperatures,
+                           BudgetOrder order = BudgetOrder::second);
 
 // The mean shift of the quantiser (LSB): 0 for round, −½ for floor.
 double quantizer_mean(Quantizer q);

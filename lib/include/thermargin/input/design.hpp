@@ -46,6 +46,7 @@ struct SensorSettings {
   double dissipation_tol = 0.0;  // ± relative
   double lead_resistance = 0.0;  // Ω, total of both leads, in series at the sensor
   double drift = 0.0;            // ± relative change of R over life (end of life only)
+  RtdConstruction rtd_construction = RtdConstruction::film;  // for the class's validity range
 };
 
 struct DividerSettings {
@@ -98,6 +99,9 @@ struct AdcSettings {
   Precharge precharge = Precharge::same;
   double v_precharge = 0.0;   // V, for Precharge::voltage
   bool samples_settle() const { return c_sample > 0.0; }
+  double offset_tempco = 0.0;  // ± LSB/K at the board temperature
+  double gain_tempco = 0.0;    // ± 1/K at the board temperature
+  bool inl_bound = false;      // inl_shape = bound: ± inl at every code; false: the bow
 };
 
 struct FirmwareSettings {
@@ -114,6 +118,9 @@ struct FirmwareSettings {
   Calibration calibration = Calibration::none;
   std::vector<double> calibration_at;  // °C: one point (offset) or two (two-point)
   double calibration_uncertainty = 0.0;  // ± K of the reference
+  // W/K of the calibration medium; nullopt: as in service (the sensor's
+  // own constant with the unit's deviation).
+  std::optional<double> calibration_dissipation;
 };
 
 struct BoardTemperature {

@@ -52,6 +52,8 @@ enum class Source : int {
   table_spread,
   r_drive,              // drive resistance, relative
   adc_precharge,        // V from V_ref/2: what another channel left on C_s (precharge = any; per reading)
+  adc_offset_tempco,    // LSB/K: offset drift with the board temperature
+  adc_gain_tempco,      // 1/K: gain drift with the board temperature
   count
 };
 inline constexpr int source_count = static_cast<int>(Source::count);
@@ -79,7 +81,14 @@ struct ToleranceInput {
   double bound;  // ± a, in the source's unit
   Distribution distribution = Distribution::normal;
   double gap = 0.0;  // gapped only: |δ| < gap was sorted out, 0 ≤ gap < bound
+  // The coverage factor of a normal (or gapped) bound, σ = bound/k
+  // (`<key>_k`); 0: montecarlo.sigma_per_tol.
+  double k = 0.0;
 };
+
+// The coverage factor a normal bound of this input stands for: its own
+// `<key>_k`, else the design's sigma_per_tol.
+inline double coverage_k(const ToleranceInput& in, double sigma_per_tol) { return in.k > 0.0 ? in.k : sigma_per_tol; }
 
 // Standard uncertainty of a ± bound under its distribution.
 // For gapped, the normal's second moment restricted to gap ≤ |δ| (about the

@@ -109,6 +109,9 @@ struct GradeRow {
   bool on_front = false;
   bool meets_requirement = false;
   std::string verdict;  // one phrase: "meets the requirement" or why not
+  // Its RTD class is used beyond the range IEC 60751 rates it for (one
+  // sentence; empty otherwise): marked, never refused.
+  std::string rtd_class_note;
 };
 
 struct GradesResult {
