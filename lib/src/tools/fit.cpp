@@ -640,15 +640,6 @@ bool rises_with_temperature(const RtData& data) {
   return p.size() >= 2 && (p[1].r_ohm > p[0].r_ohm) == (p[1].t_celsius > p[0].t_celsius);
 }
 
-std::string_view to_string(RtdClass cls) {
-  switch (cls) {
-    case RtdClass::AA: return "AA";
-    case RtdClass::A: return "A";
-    case RtdClass::B: return "B";
-    case RtdClass::C: return "C";
-  }
-  return "";
-}
 
 RtdFit fit_rtd_data(const RtData& data, const FitSettings& settings) {
   check_settings(settings);

@@ -210,7 +210,6 @@ struct RtdFit {
 // not rise with temperature, the usual ordering rules.
 RtdFit fit_rtd_data(const RtData& data, const FitSettings& settings = {});
 
-std::string_view to_string(RtdClass cls);
 
 // Lines to paste into a scenario file: [sensor] model = rtd with r0, cvd_a,
 // cvd_b, cvd_c (%.10g), and [firmware] conversion = exact.
