@@ -12,6 +12,7 @@
 #include <utility>
 
 #include "thermargin/report/html_report.hpp"
+#include "svg_internal.hpp"
 
 namespace thermargin::svg {
 
@@ -41,7 +42,8 @@ constexpr double kTitleSize = 15, kLabelSize = 13, kTickSize = 11, kLegendSize =
 
 // ---------------------------------------------------------------- numbers
 
-[[noreturn]] void bug(const std::string& what) { throw std::invalid_argument("svg chart: " + what); }
+using detail::bug;
+using detail::check_forced;
 
 // Data values: %.9g, without the C locale's decimal-separator dependence.
 std::string g9(double v) {
@@ -95,200 +97,6 @@ std::string list_g9(const std::vector<double>& v) {
     s += g9(d);
   }
   return s;
-}
-
-double pow10i(int e) {
-  static constexpr std::array<double, 23> exact{1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
-                                                1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
-                                                1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
-  if (e >= 0 && e <= 22) return exact[static_cast<std::size_t>(e)];
-  return std::pow(10.0, e);
-}
-
-// k * 10^e as the double nearest the decimal number: an exact integer times or
-// divided by an exact power of ten rounds once, so 2 * 10^-1 is exactly 0.2.
-double scaled(double k, int e) { return e >= 0 ? k * pow10i(e) : k / pow10i(-e); }
-
-// The 1-2-5 sequence as an integer index: n = 3e + {0, 1, 2} stands for
-// {1, 2, 5} * 10^e, so neighbouring indices are neighbouring round steps.
-int decade_of(int n) { return n >= 0 ? n / 3 : -((-n + 2) / 3); }
-int mantissa_of(int n) {
-  static constexpr std::array<int, 3> m{1, 2, 5};
-  return m[static_cast<std::size_t>(n - 3 * decade_of(n))];
-}
-double seq125(int n) { return scaled(mantissa_of(n), decade_of(n)); }
-int floor125(double v) {  // largest n with seq125(n) <= v
-  int n = 3 * static_cast<int>(std::floor(std::log10(v))) + 5;
-  while (seq125(n) > v * (1 + 1e-12)) --n;
-  return n;
-}
-int ceil125(double v) {  // smallest n with seq125(n) >= v
-  int n = 3 * static_cast<int>(std::floor(std::log10(v))) - 3;
-  while (seq125(n) < v * (1 - 1e-12)) ++n;
-  return n;
-}
-
-// A tick step of mant * 10^exp, mant in {1, 2, 5}.
-struct Step {
-  int mant = 1;
-  int exp = 0;
-  static Step of(int n) { return {mantissa_of(n), decade_of(n)}; }
-  double value() const { return scaled(mant, exp); }
-  double at(double k) const { return scaled(k * mant + 0.0, exp); }  // + 0.0: no -0
-};
-
-std::string with_true_minus(std::string s) {
-  if (!s.empty() && s[0] == '-') s.replace(0, 1, "\u2212");
-  return s;
-}
-
-std::string general(double v, int precision) {
-  char buf[48];
-  auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::general, precision);
-  return std::string(buf, r.ptr);
-}
-
-std::string si_label(double v) {
-  if (v == 0) return "0";
-  static constexpr std::array<const char*, 9> prefix{"p", "n", "\u00b5", "m", "", "k", "M", "G", "T"};
-  int g = static_cast<int>(std::floor(std::log10(std::fabs(v)) / 3.0 + 1e-12)) * 3;
-  g = std::clamp(g, -12, 12);
-  double mant = g >= 0 ? v / pow10i(g) : v * pow10i(-g);
-  return with_true_minus(general(mant, 6) + prefix[static_cast<std::size_t>(g / 3 + 4)]);
-}
-
-std::string superscript(int n) {
-  static constexpr std::array<const char*, 10> digit{"\u2070", "\u00b9", "\u00b2", "\u00b3", "\u2074",
-                                                     "\u2075", "\u2076", "\u2077", "\u2078", "\u2079"};
-  std::string s = n < 0 ? "\u207b" : "";
-  for (char c : std::to_string(std::abs(n))) s += digit[static_cast<std::size_t>(c - '0')];
-  return s;
-}
-
-// 1e6 and up (or tiny) as "10⁶" or "2×10⁶" rather than "1e+06". A bare
-// decade suits a log axis; a linear axis keeps "1×10⁹" beside "2×10⁹".
-std::string power_label(double v, bool bare_decade) {
-  double a = std::fabs(v);
-  if (v == 0 || (a >= 1e-4 && a < 1e6)) return with_true_minus(general(v, 6));
-  int e = static_cast<int>(std::floor(std::log10(a) + 1e-12));
-  double mant = v / scaled(1, e);
-  std::string m = general(mant, 6);
-  std::string s = bare_decade && m == "1" ? std::string() : m + "\u00d7";
-  s += "10";
-  s += superscript(e);
-  return with_true_minus(s);
-}
-
-std::string linear_label(double v, const Step& step, double magnitude, bool si) {
-  if (si) return si_label(v);
-  int decimals = std::max(0, -step.exp);
-  if (decimals > 8 || magnitude >= 1e9) return power_label(v, false);
-  char buf[64];
-  auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::fixed, decimals);
-  return with_true_minus(std::string(buf, r.ptr));
-}
-
-void check_forced(const Axis& axis) {
-  for (const auto& lim : {axis.min, axis.max}) {
-    if (!lim) continue;
-    if (!std::isfinite(*lim)) bug("axis \"" + axis.label + "\" has a non-finite forced limit");
-    if (axis.scale == Scale::log10 && *lim <= 0)
-      bug("log axis \"" + axis.label + "\" has a forced limit <= 0");
-  }
-  if (axis.min && axis.max && !(*axis.min < *axis.max))
-    bug("axis \"" + axis.label + "\" has forced min >= max");
-}
-
-AxisPlan plan_linear(const Axis& axis, bool has_data, double lo, double hi, int target) {
-  if (!has_data) lo = 0, hi = 1;
-  if (axis.min) lo = *axis.min;
-  if (axis.max) hi = *axis.max;
-  // one forced end with all the data on its wrong side: keep the forced end
-  if (hi <= lo) {
-    double pad = lo != 0 ? std::fabs(lo) * 0.1 : 1.0;
-    if (axis.min && axis.max) {
-      // unreachable: check_forced rejected it
-    } else if (axis.min) {
-      hi = lo + pad;
-    } else if (axis.max) {
-      lo = hi - pad;
-    } else {
-      lo -= pad;
-      hi += pad;
-    }
-  }
-  // Try the round step nearest span/target and its two neighbours; keep the
-  // one whose widened range has the interval count closest to the target
-  // (ties: the coarser step). Rounding one raw step alone can land on 3
-  // intervals where 6 were wanted.
-  double raw = hi / target - lo / target;  // no overflow near the double limits
-  int centre = (raw > 0 && std::isfinite(raw)) ? ceil125(raw) : 0;
-  constexpr double tol = 1e-9;
-  Step step;
-  AxisPlan plan;
-  double best = std::numeric_limits<double>::infinity();
-  for (int n = centre - 1; n <= centre + 1; ++n) {
-    Step cand = Step::of(n);
-    double sv = cand.value();
-    double a = axis.min ? lo : cand.at(std::floor(lo / sv + tol));
-    double b = axis.max ? hi : cand.at(std::ceil(hi / sv - tol));
-    double intervals = (b / 2 - a / 2) / (sv / 2);
-    double score = std::fabs(intervals - target) + 1e-3 * intervals;
-    if (score < best) best = score, step = cand, plan.min = a, plan.max = b;
-  }
-  double sv = step.value();
-  if (!(plan.min < plan.max)) plan.max = plan.min + sv;
-  double magnitude = std::max(std::fabs(plan.min), std::fabs(plan.max));
-  double k0 = std::ceil(plan.min / sv - tol), k1 = std::floor(plan.max / sv + tol);
-  double slack = (plan.max - plan.min) * 1e-9;
-  for (double k = k0; k <= k1 && plan.ticks.size() < 200; k += 1) {
-    double v = step.at(k);
-    if (v < plan.min - slack || v > plan.max + slack) continue;
-    plan.ticks.push_back({v, true, linear_label(v, step, magnitude, axis.si_prefix)});
-  }
-  return plan;
-}
-
-AxisPlan plan_log(const Axis& axis, bool has_data, double lo, double hi, int target) {
-  if (!has_data) lo = 1, hi = 10;
-  if (axis.min) lo = *axis.min;
-  if (axis.max) hi = *axis.max;
-  if (hi <= lo) {
-    if (axis.min && !axis.max) hi = lo * 10;
-    else if (axis.max && !axis.min) lo = hi / 10;
-  }
-  AxisPlan plan;
-  plan.min = axis.min ? lo : seq125(floor125(lo));
-  plan.max = axis.max ? hi : seq125(ceil125(hi));
-  if (!(plan.min < plan.max)) {
-    if (!axis.min) plan.min = seq125(floor125(plan.min) - 1);
-    if (!axis.max) plan.max = seq125(ceil125(plan.max) + 1);
-  }
-  double decades = std::log10(plan.max / plan.min);
-  int every = std::max(1, static_cast<int>(std::ceil(decades / std::max(target, 1) / 2.0)));
-  auto label = [&](double v) { return axis.si_prefix ? si_label(v) : power_label(v, true); };
-  int n0 = floor125(plan.min) - 1, n1 = ceil125(plan.max) + 1;
-  for (int n = n0; n <= n1; ++n) {
-    double v = seq125(n);
-    if (v < plan.min * (1 - 1e-12) || v > plan.max * (1 + 1e-12)) continue;
-    int e = decade_of(n);
-    bool decade = mantissa_of(n) == 1;
-    if (!decade && decades > 8) continue;  // sub-ticks would merge into a grey smear
-    bool major = decade && (e % every == 0);
-    plan.ticks.push_back({v, major, major ? label(v) : std::string()});
-  }
-  auto majors = std::count_if(plan.ticks.begin(), plan.ticks.end(), [](const Tick& t) { return t.major; });
-  if (majors < 2) {  // less than a decade: label the 2s and 5s as well
-    for (Tick& t : plan.ticks) t.major = true, t.label = label(t.value);
-  }
-  if (plan.ticks.size() < 2) {  // inside one 1-2-5 interval: round linear ticks instead
-    Axis lin = axis;
-    lin.scale = Scale::linear;
-    lin.min = plan.min;
-    lin.max = plan.max;
-    plan.ticks = plan_linear(lin, true, plan.min, plan.max, target).ticks;
-  }
-  return plan;
 }
 
 // ---------------------------------------------------------------- geometry
@@ -509,6 +317,7 @@ class Renderer {
   const Chart& c_;
   AxisPlan xp_, yp_;
   Rect plot_{};
+  double plot_w_ = 0, plot_h_ = 0;  // the plot area's size, as laid out
   std::vector<Resolved> style_;
 
   // Where a value sits between an axis's ends, 0 at min and 1 at max: in
@@ -537,6 +346,20 @@ class Renderer {
   std::string draw_span(const Series& s, const Resolved& st, std::string& data) const;
   std::string draw_annotation(const Series& s, std::string& data) const;
   std::optional<Rect> reference_label_box(const Series& s) const;
+
+  struct Extents {
+    double xlo = kNaN, xhi = kNaN, ylo = kNaN, yhi = kNaN;
+  };
+  struct Legend {
+    std::vector<std::size_t> order;                // series indices
+    std::vector<std::pair<double, double>> pos;  // relative x, row
+  };
+  static constexpr double edge = 10;  // margin at the left and right
+  Extents data_extents() const;
+  Legend layout(const Extents& e);
+  std::string grid() const;
+  std::string axes() const;
+  std::string legend_block(const Legend& legend) const;
 };
 
 void Renderer::resolve_styles() {
@@ -880,19 +703,10 @@ std::string Renderer::series_group(std::size_t i) const {
   return head + data + ">" + body + "</g>\n";
 }
 
-std::string Renderer::run() {
-  if (c_.width <= 0 || c_.height <= 0) bug("chart size must be positive");
-  check_forced(c_.x);
-  check_forced(c_.y);
-  std::set<std::string> names;
-  for (const Series& s : c_.series) {
-    check_series(s);
-    if (!names.insert(s.name).second) bug("two series are named \"" + s.name + "\"");
-  }
-  resolve_styles();
-
-  // data extents
-  double xlo = kNaN, xhi = kNaN, ylo = kNaN, yhi = kNaN;
+// The data's extents on both axes: what the axis plans must cover.
+Renderer::Extents Renderer::data_extents() const {
+  Extents e;
+  double &xlo = e.xlo, &xhi = e.xhi, &ylo = e.ylo, &yhi = e.yhi;
   auto take = [](double& lo, double& hi, double v) {
     if (!std::isfinite(v)) return;
     lo = std::isnan(lo) ? v : std::min(lo, v);
@@ -941,45 +755,48 @@ std::string Renderer::run() {
         break;
     }
   }
+  return e;
+}
 
+// The plot area and the axis plans: the legend's rows below the axis
+// label, the tick labels' widths at the left. Returns the legend's layout.
+Renderer::Legend Renderer::layout(const Extents& e) {
   const double W = c_.width, H = c_.height;
-  constexpr double edge = 10;
   // legend rows, laid out over the full width below the axis label
-  std::vector<std::size_t> legend = legend_order();
-  std::vector<std::pair<double, double>> legend_pos;  // relative x, row
+  Legend legend;
+  legend.order = legend_order();
   {
     double x = 0, row = 0;
-    for (std::size_t i : legend) {
+    for (std::size_t i : legend.order) {
       double w = 36 + text_width(c_.series[i].label, kLegendSize);
       if (x > 0 && x + w > W - 2 * edge) x = 0, row += 1;
-      legend_pos.emplace_back(x, row);
+      legend.pos.emplace_back(x, row);
       x += w + 18;
     }
   }
-  double legend_rows = legend_pos.empty() ? 0 : legend_pos.back().second + 1;
+  double legend_rows = legend.pos.empty() ? 0 : legend.pos.back().second + 1;
   double top = c_.title.empty() ? 14 : 38;
   double bottom = 6 + kTickSize + 8 + (c_.x.label.empty() ? 0 : kLabelSize + 8) + legend_rows * 20 +
                   (legend_rows > 0 ? 6 : 0) + 6;
   double plot_h = std::max(20.0, H - top - bottom);
   int ytarget = std::clamp(static_cast<int>(plot_h / 55), 2, 8);
-  yp_ = plan_axis(c_.y, ylo, yhi, ytarget);
+  yp_ = plan_axis(c_.y, e.ylo, e.yhi, ytarget);
   double ytick_w = 0;
   for (const Tick& t : yp_.ticks) ytick_w = std::max(ytick_w, text_width(t.label, kTickSize));
   double left = edge + (c_.y.label.empty() ? 0 : kLabelSize + 8) + ytick_w + 10;
   double right = 24;
   double plot_w = std::max(20.0, W - left - right);
   int xtarget = std::clamp(static_cast<int>(plot_w / 95), 2, 10);
-  xp_ = plan_axis(c_.x, xlo, xhi, xtarget);
+  xp_ = plan_axis(c_.x, e.xlo, e.xhi, xtarget);
   plot_ = {left, top, left + plot_w, top + plot_h};
+  plot_w_ = plot_w;
+  plot_h_ = plot_h;
+  return legend;
+}
 
+// The grid lines at the ticks, and the zero line of a linear y axis.
+std::string Renderer::grid() const {
   std::string o;
-  o += "<svg xmlns=\"http://www.w3.org/2000/svg\"" + attr("width", W) + attr("height", H) +
-       attr("viewBox", "0 0 " + px(W) + " " + px(H)) + attr("font-family", kFont) + attr("role", "img") + ">\n";
-  o += "<title>" + html_escape(c_.title) + "</title>\n";
-  if (!c_.description.empty()) o += "<desc>" + html_escape(c_.description) + "</desc>\n";
-  o += "<rect class=\"background\"" + attr("width", W) + attr("height", H) + attr("fill", "#ffffff") + "/>\n";
-
-  // grid
   o += "<g class=\"grid\" fill=\"none\">";
   auto vline = [&](double x, const char* colour, double w) {
     return "<path" + attr("d", segment(x, plot_.y0, x, plot_.y1)) +
@@ -993,17 +810,14 @@ std::string Renderer::run() {
   for (const Tick& t : yp_.ticks) o += hline(Y(t.value), t.major ? "#dcdcdc" : "#eeeeee", 1.0);
   if (c_.y.scale == Scale::linear && yp_.min < 0 && yp_.max > 0) o += hline(Y(0), "#8a8a8a", 1.0);
   o += "</g>\n";
+  return o;
+}
 
-  // series, back to front: areas under lines, lines under markers and notes
-  o += "<g class=\"plot\">\n";
-  for (Kind layer : {Kind::span, Kind::band, Kind::reference, Kind::line, Kind::points, Kind::annotation})
-    for (std::size_t i = 0; i < c_.series.size(); ++i)
-      if (c_.series[i].kind == layer) o += series_group(i);
-  o += "</g>\n";
-
-  // axes
+// The frame, the ticks and their labels, the axis labels and the title.
+std::string Renderer::axes() const {
+  std::string o;
   o += "<g class=\"axes\"" + attr("fill", kInk) + ">";
-  o += "<rect" + attr("x", plot_.x0) + attr("y", plot_.y0) + attr("width", plot_w) + attr("height", plot_h) +
+  o += "<rect" + attr("x", plot_.x0) + attr("y", plot_.y0) + attr("width", plot_w_) + attr("height", plot_h_) +
        attr("fill", "none") + attr("stroke", kInk) + attr("stroke-width", 1.0) + "/>";
   for (const Tick& t : xp_.ticks) {
     double x = X(t.value), len = t.major ? 5 : 3;
@@ -1030,20 +844,62 @@ std::string Renderer::run() {
   o += "</g>\n";
   if (!c_.title.empty())
     o += text_element(plot_.x0, 24, "start", kTitleSize, c_.title, attr("font-weight", "600") + attr("fill", kInk));
+  return o;
+}
 
-  if (!legend.empty()) {
-    double y0 = (c_.x.label.empty() ? plot_.y1 + 6 + kTickSize + 8 : xlabel_y + 8) + 12;
-    o += "<g class=\"legend\">";
-    for (std::size_t k = 0; k < legend.size(); ++k) {
-      std::size_t i = legend[k];
-      double x = edge + legend_pos[k].first, y = y0 + legend_pos[k].second * 20;
-      o += "<g class=\"legend-entry\"" + attr("data-name", c_.series[i].name) + ">";
-      o += legend_sample(i, x, y);
-      o += text_element(x + 36, y, "start", kLegendSize, c_.series[i].label, attr("dy", "0.35em") + attr("fill", kInk));
-      o += "</g>";
-    }
-    o += "</g>\n";
+// The legend: a sample of each series' style and its label, in rows.
+std::string Renderer::legend_block(const Legend& legend) const {
+  std::string o;
+  if (legend.order.empty()) return o;
+  const double xlabel_y = plot_.y1 + 6 + kTickSize + 8 + kLabelSize;
+  double y0 = (c_.x.label.empty() ? plot_.y1 + 6 + kTickSize + 8 : xlabel_y + 8) + 12;
+  o += "<g class=\"legend\">";
+  for (std::size_t k = 0; k < legend.order.size(); ++k) {
+    std::size_t i = legend.order[k];
+    double x = edge + legend.pos[k].first, y = y0 + legend.pos[k].second * 20;
+    o += "<g class=\"legend-entry\"" + attr("data-name", c_.series[i].name) + ">";
+    o += legend_sample(i, x, y);
+    o += text_element(x + 36, y, "start", kLegendSize, c_.series[i].label, attr("dy", "0.35em") + attr("fill", kInk));
+    o += "</g>";
   }
+  o += "</g>\n";
+  return o;
+}
+
+std::string Renderer::run() {
+  if (c_.width <= 0 || c_.height <= 0) bug("chart size must be positive");
+  check_forced(c_.x);
+  check_forced(c_.y);
+  std::set<std::string> names;
+  for (const Series& s : c_.series) {
+    check_series(s);
+    if (!names.insert(s.name).second) bug("two series are named \"" + s.name + "\"");
+  }
+  resolve_styles();
+
+  const Extents extents = data_extents();
+  const Legend legend = layout(extents);
+  const double W = c_.width, H = c_.height;
+
+  std::string o;
+  o += "<svg xmlns=\"http://www.w3.org/2000/svg\"" + attr("width", W) + attr("height", H) +
+       attr("viewBox", "0 0 " + px(W) + " " + px(H)) + attr("font-family", kFont) + attr("role", "img") + ">\n";
+  o += "<title>" + html_escape(c_.title) + "</title>\n";
+  if (!c_.description.empty()) o += "<desc>" + html_escape(c_.description) + "</desc>\n";
+  o += "<rect class=\"background\"" + attr("width", W) + attr("height", H) + attr("fill", "#ffffff") + "/>\n";
+
+  o += grid();
+
+  // series, back to front: areas under lines, lines under markers and notes
+  o += "<g class=\"plot\">\n";
+  for (Kind layer : {Kind::span, Kind::band, Kind::reference, Kind::line, Kind::points, Kind::annotation})
+    for (std::size_t i = 0; i < c_.series.size(); ++i)
+      if (c_.series[i].kind == layer) o += series_group(i);
+  o += "</g>\n";
+
+  o += axes();
+
+  o += legend_block(legend);
   o += "</svg>\n";
   return o;
 }
@@ -1058,16 +914,6 @@ Values values(std::span<const double> numbers) {
 }
 
 std::span<const PaletteEntry> palette() { return kPalette; }
-
-AxisPlan plan_axis(const Axis& axis, double data_min, double data_max, int target_intervals) {
-  check_forced(axis);
-  int target = std::clamp(target_intervals, 1, 20);
-  bool log = axis.scale == Scale::log10;
-  bool has_data = std::isfinite(data_min) && std::isfinite(data_max) && (!log || (data_min > 0 && data_max > 0));
-  if (has_data && data_min > data_max) std::swap(data_min, data_max);
-  return log ? plan_log(axis, has_data, data_min, data_max, target)
-             : plan_linear(axis, has_data, data_min, data_max, target);
-}
 
 Series line(std::string name, std::string label, std::vector<double> x, Values y, Style style) {
   return {Kind::line, std::move(name), std::move(label), std::move(x), std::move(y), {}, style};
