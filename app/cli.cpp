@@ -3,11 +3,9 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <fstream>
 #include <iostream>
 #include <sstream>
 
-#include <unistd.h>
 
 #include "thermargin/report/budget_report.hpp"  // check_report_path, check_plots_directory
 #include "thermargin/core/caution.hpp"
@@ -124,7 +122,7 @@ Invocation parse(const std::string& command, int argc, char** argv, const po::op
     for (const auto& opt : parsed.options) {
       if (opt.position_key != -1 || opt.value.empty()) continue;
       if (find_key(opt.string_key))
-        inv.scenario.set(opt.string_key, opt.value.front(), Where{Origin::command_line, "", 0, opt.string_key});
+        inv.scenario.set(opt.string_key, opt.value.front(), command_line(opt.string_key));
     }
     // The [response] section is read apart from build_design(): refused here,
     // before any work, whichever command was given the scenario.
@@ -139,84 +137,8 @@ void emit(const Invocation& inv, const std::string& text) {
     std::cout.flush();
     return;
   }
-  namespace fs = std::filesystem;
-  const fs::path target(inv.output);
-  const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
-  std::error_code ec;
   check_output(inv.output);
-  const fs::path tmp = dir / ("." + target.filename().string() + ".tmp" + std::to_string(::getpid()));
-  {
-    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-    if (!out) throw input_error("--output = " + inv.output + " (command line): cannot write in that directory");
-    out << text;
-    out.flush();
-    if (!out) {
-      out.close();
-      fs::remove(tmp, ec);
-      throw input_error("--output = " + inv.output + " (command line): the write failed (disk full?)");
-    }
-  }
-  fs::rename(tmp, target, ec);
-  if (ec) {
-    fs::remove(tmp, ec);
-    throw input_error("--output = " + inv.output + " (command line): cannot replace the file");
-  }
-}
-
-std::string TextTable::render() const {
-  std::vector<std::size_t> width(headers_.size());
-  auto len = [](const std::string& s) {  // display width: count UTF-8 lead bytes
-    std::size_t n = 0;
-    for (unsigned char ch : s) n += (ch & 0xC0) != 0x80;
-    return n;
-  };
-  for (std::size_t i = 0; i < headers_.size(); ++i) width[i] = len(headers_[i]);
-  for (const auto& r : rows_)
-    for (std::size_t i = 0; i < r.size() && i < width.size(); ++i) width[i] = std::max(width[i], len(r[i]));
-  auto numeric = [](const std::string& s) {
-    return !s.empty() && (std::isdigit(static_cast<unsigned char>(s[0])) || s[0] == '-' || s[0] == '+' || s[0] == '.');
-  };
-  std::ostringstream out;
-  auto line = [&](const std::vector<std::string>& r, bool header) {
-    for (std::size_t i = 0; i < width.size(); ++i) {
-      const std::string cell = i < r.size() ? r[i] : "";
-      const std::size_t pad = width[i] - len(cell);
-      const bool right = !header ? numeric(cell) : i > 0;
-      if (i) out << "  ";
-      if (right) out << std::string(pad, ' ') << cell;
-      else out << cell << (i + 1 < width.size() ? std::string(pad, ' ') : "");
-    }
-    out << "\n";
-  };
-  line(headers_, true);
-  std::size_t total = 0;
-  for (auto w : width) total += w + 2;
-  out << std::string(total > 2 ? total - 2 : 0, '-') << "\n";
-  for (const auto& r : rows_) line(r, false);
-  return out.str();
-}
-
-std::string fixed(double v, int decimals) {
-  if (!std::isfinite(v)) return "n/a";
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  std::string s = buf;
-  if (s.starts_with("-") && s.find_first_not_of("-0.") == std::string::npos) s = s.substr(1);  // no "-0.000"
-  return s;
-}
-
-std::string csv_escape(const std::string& cell) {
-  std::string c = cell;
-  const bool number = !c.empty() && (std::isdigit(static_cast<unsigned char>(c[0])) ||
-                                     ((c[0] == '-' || c[0] == '+' || c[0] == '.') && c.size() > 1 &&
-                                      (std::isdigit(static_cast<unsigned char>(c[1])) || c[1] == '.')));
-  if (!c.empty() && !number && std::string("=+-@\t\r").find(c[0]) != std::string::npos) c = "'" + c;
-  if (c.find_first_of(",\"\n\r") != std::string::npos) {
-    std::string q = "\"";
-    for (char ch : c) q += ch == '"' ? std::string("\"\"") : std::string(1, ch);
-    return q + "\"";
-  }
-  return c;
+  write_file_atomically(inv.output, text);
 }
 
 }  // namespace thermargin::cli

@@ -8,7 +8,10 @@
 #include <string>
 #include <vector>
 
+#include "thermargin/core/number.hpp"       // fixed, significant
 #include "thermargin/input/scenario.hpp"
+#include "thermargin/report/html_report.hpp"  // csv_cell, write_file_atomically
+#include "thermargin/report/table.hpp"        // Table, render_text
 
 namespace thermargin::cli {
 
@@ -43,22 +46,7 @@ bool help_requested(const std::string& command, int argc, char** argv, const std
                     const po::options_description& own, bool takes_scenario, bool has_report = false,
                     bool has_verdict = false);
 
-// Writes the command's output to --output (atomically) or stdout.
+// Writes the command's output to --output (write_file_atomically) or stdout.
 void emit(const Invocation& inv, const std::string& text);
-
-// An aligned text table: columns right-aligned when numeric.
-class TextTable {
- public:
-  explicit TextTable(std::vector<std::string> headers) : headers_(std::move(headers)) {}
-  void add(std::vector<std::string> row) { rows_.push_back(std::move(row)); }
-  std::string render() const;
-
- private:
-  std::vector<std::string> headers_;
-  std::vector<std::vector<std::string>> rows_;
-};
-
-std::string fixed(double v, int decimals);  // "-0.123"; never "nan"
-std::string csv_escape(const std::string& cell);
 
 }  // namespace thermargin::cli

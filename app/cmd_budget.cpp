@@ -204,7 +204,7 @@ std::string to_csv(const Budget& b) {
     const bool mc = p.mc && p.mc->valid > 0;
     out << (mc ? fixed(p.mc->low, 5) : "") << "," << (mc ? fixed(p.mc->high, 5) : "") << ","
         << (mc ? fixed(p.mc->median, 5) : "") << "," << (p.mc ? fixed(p.mc->saturated_share(), 6) : "") << ",";
-    out << csv_escape(p.contributors.empty() ? "" : p.contributors.front().name);
+    out << csv_cell(p.contributors.empty() ? "" : p.contributors.front().name);
     for (const auto& w : b.window_contributors) {
       const Contributor* c = contributor_at(p, w.name);
       out << "," << (c ? fixed(c->share, 6) : "") << "," << (c ? fixed(c->half_width, 6) : "");
@@ -245,7 +245,7 @@ std::string what_if_text(const Design& d, const WhatIf& w) {
   const bool judged = judged_against_limit(w, d.requirement);
   std::vector<std::string> head{"source (setting)", "halved: wc (K)", "lin (K)", "removed: wc (K)", "lin (K)"};
   if (judged) head.push_back("within the limit");
-  TextTable t(head);
+  Table t{.header = head};
   bool unreadable = false;
   auto cell = [&](const WhatIfFigures& f, double v) {
     unreadable |= !f.readable;
@@ -258,9 +258,9 @@ std::string what_if_text(const Design& d, const WhatIf& w) {
     if (judged) {
       row.push_back(std::string(enough_phrase(r, d.requirement)));
     }
-    t.add(row);
+    t.rows.push_back(row);
   }
-  out << t.render();
+  out << render_text(t);
   if (judged && std::none_of(w.rows.begin(), w.rows.end(),
                              [&](const WhatIfRow& r) { return !enough(r, d.requirement).empty(); }))
     out << "No single part meets the limit: improve several together (try them with overrides), or change the "
@@ -304,15 +304,15 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
         << fixed(b.weakest.mv_per_k, 3) << " mV/K) at " << fixed(b.weakest.t, 2) << " degC, where 1 LSB = "
         << fixed(b.weakest.lsb_in_k, 4) << " K\n";
   out << "\n";
-  TextTable s({"engine", "max |error| in window", "at", "notes"});
-  s.add({"worst case", fixed(b.wc_max_abs, 3) + " K", fixed(b.wc_max_at, 2) + " degC", corner_method_text(b)});
-  s.add({"linear budget", fixed(b.rss_max_abs, 3) + " K", fixed(b.rss_max_at, 2) + " degC",
+  Table s{.header = {"engine", "max |error| in window", "at", "notes"}};
+  s.rows.push_back({"worst case", fixed(b.wc_max_abs, 3) + " K", fixed(b.wc_max_at, 2) + " degC", corner_method_text(b)});
+  s.rows.push_back({"linear budget", fixed(b.rss_max_abs, 3) + " K", fixed(b.rss_max_at, 2) + " degC",
          "k = " + fixed(b.k_p, 3) + " for " + pct(d.montecarlo.coverage) + " coverage"});
   if (b.mc) {
-    s.add({"Monte Carlo", fixed(b.mc->max_abs, 3) + " K", fixed(b.mc->max_abs_at, 2) + " degC",
+    s.rows.push_back({"Monte Carlo", fixed(b.mc->max_abs, 3) + " K", fixed(b.mc->max_abs_at, 2) + " degC",
            std::to_string(b.mc->units) + " units" + (b.mc->adaptive ? (b.mc->converged ? " (adaptive, stable)" : " (adaptive, cap reached)") : "")});
   }
-  out << s.render();
+  out << render_text(s);
   if (b.mc) {
     out << "\nYield: " << pct(b.mc->yield, 3) << " of units within +/-" << fixed(d.requirement.max_error, 3)
         << " K over the window (95 % interval " << pct(b.mc->yield_low, 3) << " .. " << pct(b.mc->yield_high, 3)
@@ -338,10 +338,10 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
         << " temperature(s) have readings that cannot be converted (saturation, runaway, outside the table); see the table.\n";
 
   out << "\nContributors over the window (share of the combined variance; own worst-case half-width):\n";
-  TextTable c({"source", "share", "half-width (K)"});
+  Table c{.header = {"source", "share", "half-width (K)"}};
   for (const auto& k : b.window_contributors)
-    if (shown_contributor(d, k)) c.add({k.label + " (" + k.name + ")", pct(k.share, 1), fixed(k.half_width, 4)});
-  out << c.render();
+    if (shown_contributor(d, k)) c.rows.push_back({k.label + " (" + k.name + ")", pct(k.share, 1), fixed(k.half_width, 4)});
+  out << render_text(c);
   if (std::any_of(b.window_contributors.begin(), b.window_contributors.end(),
                   [&](const Contributor& k) { return shown_contributor(d, k) && k.share == 0.0; }))
     out << "A share of 0 %: a source that acts only together with another (a tempco with the board temperature\n"
@@ -357,12 +357,12 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
     head.insert(head.end(), {"mc low", "mc high", "mc median"});
   }
   head.push_back("dominant");
-  TextTable t(head);
+  Table t{.header = head};
   for (const auto& p : b.points) {
     std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
     if (!point_ok(p)) {
       row.push_back(std::string(describe(p.nominal.status)));
-      t.add(row);
+      t.rows.push_back(row);
       continue;
     }
     row.insert(row.end(), {fixed(p.nominal.v_node, 4), fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.mv_per_k, 3),
@@ -376,9 +376,9 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
       else row.insert(row.end(), {"n/a", "", ""});
     }
     row.push_back(p.contributors.empty() ? "" : p.contributors.front().name + " " + pct(p.contributors.front().share, 0));
-    t.add(row);
+    t.rows.push_back(row);
   }
-  out << t.render();
+  out << render_text(t);
   out << "(* outside the requirement window)\n";
 
   // The contributor table at every temperature, one column per source that
@@ -390,16 +390,16 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
          "half-width per temperature is in --format csv and json):\n";
   std::vector<std::string> chead{"t (degC)"};
   for (const auto* k : shown) chead.push_back(k->name);
-  TextTable ct(chead);
+  Table ct{.header = chead};
   for (const auto& p : b.points) {
     std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
     for (const auto* k : shown) {
       const Contributor* here = contributor_at(p, k->name);
       row.push_back(here ? fixed(100.0 * here->share, 1) : "n/a");
     }
-    ct.add(row);
+    ct.rows.push_back(row);
   }
-  out << ct.render();
+  out << render_text(ct);
   out << "(* outside the requirement window; n/a: no linear budget at that temperature)\n\n" << caution << "\n";
   return out.str();
 }

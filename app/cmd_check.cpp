@@ -99,10 +99,8 @@ int run_check(int argc, char** argv) {
     for (const auto& k : schema) {
       const auto& s = inv.scenario.get(k.key);
       const ResolvedValue& r = resolved.at(k.key);
-      char number[32];
-      if (r.number) std::snprintf(number, sizeof number, "%.10g", *r.number);
-      out << csv_escape(k.key) << "," << csv_escape(s.value) << "," << csv_escape(unit_of(k)) << ","
-          << csv_escape(s.where.origin()) << "," << csv_escape(r.number ? std::string(number) : s.value) << "\n";
+      out << csv_cell(k.key) << "," << csv_cell(s.value) << "," << csv_cell(unit_of(k)) << ","
+          << csv_cell(s.where.origin()) << "," << csv_cell(r.number ? significant(*r.number) : s.value) << "\n";
     }
   } else {
     out << "Scenario: " << design.title << "  (title: " << inv.scenario.get("title").where.origin() << ")\n";
@@ -113,25 +111,25 @@ int run_check(int argc, char** argv) {
                                               " more (drift) at end of life")
         << ".\n";
     out << "Each key as written, as read (with its unit) and where it came from.\n\n";
-    TextTable t({"key", "as written", "as read", "origin"});
+    Table t{.header = {"key", "as written", "as read", "origin"}};
     for (const auto& k : schema) {
       const auto& s = inv.scenario.get(k.key);
       if ((k.key.ends_with("_dist") || k.key.ends_with("_gap") || coverage_key(k.key)) && s.where.kind == Origin::built_in)
         continue;
       if (k.key == "title") continue;  // on the first line
-      t.add({k.key, s.value.empty() ? "(none)" : s.value, resolved.at(k.key).text, s.where.origin()});
+      t.rows.push_back({k.key, s.value.empty() ? "(none)" : s.value, resolved.at(k.key).text, s.where.origin()});
     }
-    out << t.render() << "\n";
+    out << render_text(t) << "\n";
     out << "The active inputs as the engines draw them: a normal bound is k standard deviations (<key>_k; a\n"
            "calibration certificate's +/-U is k = 2), a uniform bound a/sqrt(3), a triangular a/sqrt(6).\n";
-    TextTable src({"source", "bound", "unit", "distribution", "k", "sigma"});
+    Table src{.header = {"source", "bound", "unit", "distribution", "k", "sigma"}};
     char b[32], sg[32];
     for (const auto& s : source_rows(design)) {
       std::snprintf(b, sizeof b, "%.6g", s.bound);
       std::snprintf(sg, sizeof sg, "%.6g", s.sigma);
-      src.add({s.name, b, s.unit, s.distribution, s.k, sg});
+      src.rows.push_back({s.name, b, s.unit, s.distribution, s.k, sg});
     }
-    out << src.render() << "\n";
+    out << render_text(src) << "\n";
     if (const std::string n = inl_shape_note(design); !n.empty()) out << n << "\n";
     if (const std::string n = rtd_class_range_note(design); !n.empty()) out << "RTD class: " << n << ".\n";
     out << caution << "\n";

@@ -19,19 +19,12 @@ namespace thermargin::cli {
 
 namespace {
 
-Where cl(const std::string& key) { return Where{Origin::command_line, "", 0, key}; }
-
-std::string g(const char* f, double v) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, f, v);
-  return buf;
-}
 
 nlohmann::json num(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
 
 // "-40..125" as the fit window; the message names fit.window as the library does.
 std::pair<double, double> parse_window(const std::string& text) {
-  const Where where = cl("fit.window");
+  const Where where = command_line("fit.window");
   const std::string accepted = "must be LOW..HIGH in degC with LOW <= HIGH, e.g. --window=-40..125";
   const auto dots = text.find("..");
   if (dots == std::string::npos) reject(where, text, accepted);
@@ -47,7 +40,7 @@ std::pair<double, double> parse_window(const std::string& text) {
 
 // "25,85" as a list of temperatures for fit.beta_at or fit.sh_at.
 std::vector<double> parse_temperatures(const std::string& text, const std::string& key, std::size_t count) {
-  const Where where = cl(key);
+  const Where where = command_line(key);
   const std::string accepted = "must be " + std::to_string(count) + " temperatures in degC separated by commas, e.g. " +
                                (count == 2 ? "25,85" : "0,25,50");
   std::vector<double> out;
@@ -74,18 +67,18 @@ std::string short_label(const ModelFit& f) {
 
 std::string coefficient_list(const ModelFit& f) {
   std::string s;
-  for (const auto& c : f.coefficients) s += (s.empty() ? "" : ", ") + c.name + " = " + g("%.7g", c.value);
+  for (const auto& c : f.coefficients) s += (s.empty() ? "" : ", ") + c.name + " = " + significant(c.value, 7);
   return s;
 }
 
 // "two-point 25/85": the method, and for a point method the data temperatures it passes through.
 std::string method_label(const ModelFit& f) {
   std::string s = f.method;
-  for (std::size_t i = 0; i < f.through_celsius.size(); ++i) s += (i ? "/" : " ") + g("%g", f.through_celsius[i]);
+  for (std::size_t i = 0; i < f.through_celsius.size(); ++i) s += (i ? "/" : " ") + significant(f.through_celsius[i], 6);
   return s;
 }
 
-std::string window_text(const FitResult& r) { return g("%g", r.window_low) + ".." + g("%g", r.window_high) + " degC"; }
+std::string window_text(const FitResult& r) { return significant(r.window_low, 6) + ".." + significant(r.window_high, 6) + " degC"; }
 
 nlohmann::json to_json(const FitResult& r, const std::string& snippet) {
   nlohmann::json j;
@@ -148,15 +141,15 @@ std::string to_csv(const FitResult& r) {
          "between_max_error_K,between_max_at_degC,worst_error_K,dof,recommended\n";
   for (std::size_t i = 0; i < r.fits.size(); ++i) {
     const auto& f = r.fits[i];
-    out << csv_escape(f.model) << "," << csv_escape(f.method);
+    out << csv_cell(f.model) << "," << csv_cell(f.method);
     for (const char* name : {"r25", "beta", "a", "b", "c", "d"}) {
       out << ",";
       for (const auto& c : f.coefficients)
-        if (c.name == name) out << g("%.10g", c.value);
+        if (c.name == name) out << significant(c.value, 10);
     }
-    out << "," << g("%.6g", f.max_residual) << "," << g("%g", f.max_residual_at) << "," << g("%.6g", f.rms_residual)
-        << "," << (f.between_assessed ? g("%.6g", f.between_max_error) : "") << ","
-        << (f.between_assessed ? g("%.6g", f.between_max_at) : "") << "," << g("%.6g", f.worst_error) << "," << f.dof
+    out << "," << significant(f.max_residual, 6) << "," << significant(f.max_residual_at, 6) << "," << significant(f.rms_residual, 6)
+        << "," << (f.between_assessed ? significant(f.between_max_error, 6) : "") << ","
+        << (f.between_assessed ? significant(f.between_max_at, 6) : "") << "," << significant(f.worst_error, 6) << "," << f.dof
         << "," << (r.recommendation.found && r.recommendation.fit == i ? 1 : 0) << "\n";
   }
   return out.str();
@@ -171,52 +164,52 @@ std::string to_text(const FitResult& r, const std::string& snippet) {
   out << (rec.found ? "RECOMMENDATION: " : "NO RECOMMENDATION: ") << rec.text << "\n\n";
 
   out << "Models (errors in K over the window; 'between' compares with a smooth curve through the data):\n";
-  TextTable m({"model", "method", "max |residual|", "at (degC)", "RMS", "between", "at (degC)", "worst", "coefficients"});
+  Table m{.header = {"model", "method", "max |residual|", "at (degC)", "RMS", "between", "at (degC)", "worst", "coefficients"}};
   for (std::size_t i = 0; i < r.fits.size(); ++i) {
     const auto& f = r.fits[i];
-    m.add({f.model + (rec.found && rec.fit == i ? " *" : ""), method_label(f), fixed(f.max_residual, 4),
+    m.rows.push_back({f.model + (rec.found && rec.fit == i ? " *" : ""), method_label(f), fixed(f.max_residual, 4),
            fixed(f.max_residual_at, 2), fixed(f.rms_residual, 4),
            f.between_assessed ? fixed(f.between_max_error, 4) : "not assessed",
            f.between_assessed ? fixed(f.between_max_at, 2) : "", fixed(f.worst_error, 4), coefficient_list(f)});
   }
-  out << m.render();
+  out << render_text(m);
   if (rec.found) out << "(* recommended)\n";
 
   out << "\nCoefficients (standard uncertainty per GUM; none for an exact fit to data without uncertainties):\n";
-  TextTable c({"model", "method", "coefficient", "value", "uncertainty", "unit"});
+  Table c{.header = {"model", "method", "coefficient", "value", "uncertainty", "unit"}};
   for (const auto& f : r.fits)
     for (const auto& k : f.coefficients)
-      c.add({f.model, f.method, k.name, g("%.10g", k.value), k.uncertainty ? g("%.3g", *k.uncertainty) : "-", k.unit});
-  out << c.render();
+      c.rows.push_back({f.model, f.method, k.name, significant(k.value, 10), k.uncertainty ? significant(*k.uncertainty, 3) : "-", k.unit});
+  out << render_text(c);
   if (r.weighted) {
     out << "\nWeighted least squares: chi-squared of the residuals in units of the stated uncertainties, against the\n"
            "degrees of freedom (about equal: the model explains the data within their uncertainties; far above: it\n"
            "does not, or the uncertainties are too small, and the coefficient uncertainties above are then too small):\n";
-    TextTable x({"model", "method", "chi-squared", "dof"});
+    Table x{.header = {"model", "method", "chi-squared", "dof"}};
     for (const auto& f : r.fits)
-      if (f.method == "least-squares") x.add({f.model, f.method, g("%.4g", f.chi_squared), std::to_string(f.dof)});
-    out << x.render();
+      if (f.method == "least-squares") x.rows.push_back({f.model, f.method, significant(f.chi_squared, 4), std::to_string(f.dof)});
+    out << render_text(x);
   }
 
   out << "\nResiduals (model temperature at the point's resistance minus its temperature, K):\n";
   std::vector<std::string> head{"line", "t (degC)", "R (ohm)", "window"};
   for (const auto& f : r.fits) head.push_back(short_label(f));
-  TextTable p(head);
+  Table p{.header = head};
   bool unsolved = false;
   if (!r.fits.empty()) {
     for (std::size_t i = 0; i < r.fits.front().residuals.size(); ++i) {
       const auto& pt = r.fits.front().residuals[i];
-      std::vector<std::string> row{std::to_string(pt.line), g("%g", pt.t_celsius), g("%.7g", pt.r_ohm),
+      std::vector<std::string> row{std::to_string(pt.line), significant(pt.t_celsius, 6), significant(pt.r_ohm, 7),
                                    pt.in_window ? "in" : "outside"};
       for (const auto& f : r.fits) {
         const auto& res = f.residuals[i];
         row.push_back(fixed(res.residual, 4) + (res.solved ? "" : " (no T)"));
         unsolved = unsolved || !res.solved;
       }
-      p.add(row);
+      p.rows.push_back(row);
     }
   }
-  out << p.render();
+  out << render_text(p);
   if (unsolved)
     out << "(no T): the model gives no temperature at that resistance; it is counted as reading 0 K.\n";
 
@@ -274,16 +267,16 @@ std::string rtd_text(const RtdFit& f, double limit) {
       << (f.fitted_c ? "R0, A, B and C: the data reach below 0 degC" : "R0, A and B: no data below 0 degC") << ").\n"
       << "Largest residual " << fixed(f.max_residual, 4) << " K at " << g("%g", f.max_residual_at) << " degC, RMS "
       << fixed(f.rms_residual, 4) << " K (limit " << g("%g", limit) << " K).\n\n";
-  TextTable c({"coefficient", "value", "uncertainty", "unit", "fitted - IEC 60751"});
+  Table c{.header = {"coefficient", "value", "uncertainty", "unit", "fitted - IEC 60751"}};
   for (const auto& k : f.coefficients) {
     std::string diff = "-";
     if (k.name == "a") diff = g("%.4g", f.delta_a);
     if (k.name == "b") diff = g("%.4g", f.delta_b);
     if (k.name == "c") diff = g("%.4g", f.delta_c);
     if (k.name == "r0") diff = g("%.6g", k.value - f.nominal_r0) + " (Pt" + g("%g", f.nominal_r0) + ")";
-    c.add({k.name, g("%.10g", k.value), k.uncertainty ? g("%.3g", *k.uncertainty) : "-", k.unit, diff});
+    c.rows.push_back({k.name, g("%.10g", k.value), k.uncertainty ? g("%.3g", *k.uncertainty) : "-", k.unit, diff});
   }
-  out << c.render();
+  out << render_text(c);
   if (f.weighted) out << "chi-squared " << g("%.4g", f.chi_squared) << " on " << f.dof << " degrees of freedom\n";
   out << "\nAgainst the IEC 60751 curve with R0 = " << g("%g", f.nominal_r0) << " ohm the data deviate by up to "
       << fixed(f.max_deviation, 4) << " K (at " << g("%g", f.max_deviation_at) << " degC): "
@@ -292,11 +285,11 @@ std::string rtd_text(const RtdFit& f, double limit) {
                       : std::string("outside every class (AA, A, B, C)"))
       << "; the class's validity range for the construction is not checked here.\n\n";
   out << "Residuals of the Callendar-Van Dusen fit (K):\n";
-  TextTable p({"line", "t (degC)", "R (ohm)", "window", "residual"});
+  Table p{.header = {"line", "t (degC)", "R (ohm)", "window", "residual"}};
   for (const auto& r : f.residuals)
-    p.add({std::to_string(r.line), g("%g", r.t_celsius), g("%.7g", r.r_ohm), r.in_window ? "in" : "outside",
+    p.rows.push_back({std::to_string(r.line), g("%g", r.t_celsius), g("%.7g", r.r_ohm), r.in_window ? "in" : "outside",
            fixed(r.residual, 4) + (r.solved ? "" : " (no T)")});
-  out << p.render();
+  out << render_text(p);
   out << "\nScenario lines for the Callendar-Van Dusen fit; merge them into your scenario file:\n\n"
       << rtd_scenario_snippet(f) << "\nThe NTC models, for comparison:\n\n";
   return out.str();
@@ -337,12 +330,12 @@ int run_fit(int argc, char** argv) {
   if (vm.count("beta-at")) s.beta_at = parse_temperatures(vm["beta-at"].as<std::string>(), "fit.beta_at", 2);
   if (vm.count("sh-at")) s.sh_at = parse_temperatures(vm["sh-at"].as<std::string>(), "fit.sh_at", 3);
   if (vm.count("limit"))
-    s.limit = parse_quantity(vm["limit"].as<std::string>(), Quantity::temperature_difference, cl("fit.limit"));
+    s.limit = parse_quantity(vm["limit"].as<std::string>(), Quantity::temperature_difference, command_line("fit.limit"));
   s.extended = vm.count("extended") > 0;
   if (vm.count("between-samples")) {
     const std::string text = vm["between-samples"].as<std::string>();
-    const double n = parse_quantity(text, Quantity::integer, cl("fit.between_samples"));
-    if (!(n >= 1.0 && n <= 100000.0)) reject(cl("fit.between_samples"), text, "must be a whole number from 1 to 100000");
+    const double n = parse_quantity(text, Quantity::integer, command_line("fit.between_samples"));
+    if (!(n >= 1.0 && n <= 100000.0)) reject(command_line("fit.between_samples"), text, "must be a whole number from 1 to 100000");
     s.between_samples = static_cast<int>(n);
   }
 

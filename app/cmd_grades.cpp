@@ -19,7 +19,6 @@ namespace thermargin::cli {
 
 namespace {
 
-Where option_where(const std::string& name) { return Where{Origin::command_line, "", 0, name}; }
 
 nlohmann::json opt(const std::optional<double>& v) { return v ? nlohmann::json(*v) : nlohmann::json(nullptr); }
 
@@ -103,12 +102,12 @@ std::string to_json(const Design& d, const Catalogue& cat, const GradesResult& g
 std::string to_csv(const GradesResult& g) {
   std::ostringstream out;
   out << "# " << caution << "\n";
-  for (const auto& s : g.slots) out << csv_escape(s) << ",";
+  for (const auto& s : g.slots) out << csv_cell(s) << ",";
   out << "r_fixed_ohm,unit_cost,setup_per_unit,cost_per_good_unit,wc_max_abs_K,rss_max_abs_K,mc_max_abs_K,yield,"
          "yield_low,yield_high,failures_per_million,mc_units,mc_run,error_K,on_front,meets_requirement,recommended,verdict\n";
   for (std::size_t i = 0; i < g.rows.size(); ++i) {
     const GradeRow& r = g.rows[i];
-    for (std::size_t k = 0; k < g.slots.size(); ++k) out << csv_escape(g.grades[k][static_cast<std::size_t>(r.choice[k])]) << ",";
+    for (std::size_t k = 0; k < g.slots.size(); ++k) out << csv_cell(g.grades[k][static_cast<std::size_t>(r.choice[k])]) << ",";
     auto cell = [](const std::optional<double>& v, int decimals) { return v ? fixed(*v, decimals) : std::string(); };
     out << (r.r_fixed ? fixed(*r.r_fixed, 1) : "") << "," << fixed(r.unit_cost, 6) << "," << fixed(r.setup_per_unit, 6) << ","
         << cell(r.cost_per_good_unit, 6) << "," << cell(r.wc_max_abs, 5) << "," << cell(r.rss_max_abs, 5) << ",";
@@ -118,7 +117,7 @@ std::string to_csv(const GradesResult& g) {
     else
       out << ",,,,,,";
     out << (r.mc_run ? 1 : 0) << "," << cell(r.error, 5) << "," << (r.on_front ? 1 : 0) << ","
-        << (r.meets_requirement ? 1 : 0) << "," << (g.recommendation == i ? 1 : 0) << "," << csv_escape(r.verdict) << "\n";
+        << (r.meets_requirement ? 1 : 0) << "," << (g.recommendation == i ? 1 : 0) << "," << csv_cell(r.verdict) << "\n";
   }
   return out.str();
 }
@@ -157,12 +156,12 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
 
   out << "Cost/accuracy front (" << to_string(g.by)
       << " error; no other combination is both cheaper and more accurate), cheapest first:\n";
-  TextTable f({"unit cost", "error (K)", "yield", "meets", "combination"});
+  Table f{.header = {"unit cost", "error (K)", "yield", "meets", "combination"}};
   for (std::size_t i : g.front) {
     const GradeRow& r = g.rows[i];
-    f.add({money(r.unit_cost), opt_fixed(r.error, 3), yield_text(r), r.meets_requirement ? "yes" : "no", g.choice_text(r)});
+    f.rows.push_back({money(r.unit_cost), opt_fixed(r.error, 3), yield_text(r), r.meets_requirement ? "yes" : "no", g.choice_text(r)});
   }
-  out << f.render();
+  out << render_text(f);
 
   out << "\nAll combinations, cheapest first (F on the front, M meets the requirement, R recommended):\n";
   std::vector<std::string> head{"#"};
@@ -172,7 +171,7 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
   head.insert(head.end(), {"unit cost"});
   if (g.reject_cost) head.push_back("per good");
   head.insert(head.end(), {"worst (K)", "linear (K)", "MC band (K)", "yield", "95 % interval", "fail/M", "", "verdict"});
-  TextTable t(head);
+  Table t{.header = head};
   for (std::size_t i = 0; i < g.rows.size(); ++i) {
     const GradeRow& r = g.rows[i];
     std::vector<std::string> row{std::to_string(i + 1)};
@@ -194,9 +193,9 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
     if (!r.rtd_class_note.empty()) marks += "X";
     row.push_back(marks);
     row.push_back(r.verdict);
-    t.add(row);
+    t.rows.push_back(row);
   }
-  out << t.render();
+  out << render_text(t);
   for (const auto& r : g.rows)
     if (!r.rtd_class_note.empty()) {
       out << "X: the RTD class is used beyond its rated range, e.g. " << r.rtd_class_note << ".\n";
@@ -218,7 +217,7 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
 double number_option(const po::variables_map& vm, const char* name) {
   const std::string key = std::string("--") + name;
   const std::string text = vm[name].as<std::string>();
-  return parse_quantity(text, Quantity::plain, option_where(key));
+  return parse_quantity(text, Quantity::plain, command_line(key));
 }
 
 }  // namespace
@@ -246,27 +245,27 @@ int run_grades(int argc, char** argv) {
     throw input_error("--catalogue (command line): missing; give the CSV of part grades, e.g. --catalogue parts.csv");
 
   GradesOptions o;
-  o.by = parse_error_measure(vm["by"].as<std::string>(), option_where("--by"));
+  o.by = parse_error_measure(vm["by"].as<std::string>(), command_line("--by"));
   if (vm.count("volume")) o.volume = number_option(vm, "volume");
   if (vm.count("reject-cost")) o.reject_cost = number_option(vm, "reject-cost");
   {
     const std::string text = vm["units"].as<std::string>();
     const double u = number_option(vm, "units");
     if (!(u >= 1.0 && u <= 1e8 && u == std::floor(u)))
-      reject(option_where("--units"), text, "must be a whole number of units from 1 to 100000000");
+      reject(command_line("--units"), text, "must be a whole number of units from 1 to 100000000");
     o.units = static_cast<std::uint64_t>(u);
   }
   o.mc_all = vm.count("mc-all") > 0;
   o.re_pick = vm.count("re-pick") > 0;
   for (const char* name : {"series", "range", "pick-objective"})
     if (!o.re_pick && !vm[name].defaulted())
-      reject(option_where(std::string("--") + name), vm[name].as<std::string>(), "applies only with --re-pick");
+      reject(command_line(std::string("--") + name), vm[name].as<std::string>(), "applies only with --re-pick");
   if (o.re_pick) {
-    o.pick.series = parse_series(vm["series"].as<std::string>(), option_where("--series"));
-    const ResistanceRange range = parse_range(vm["range"].as<std::string>(), option_where("--range"));
+    o.pick.series = parse_series(vm["series"].as<std::string>(), command_line("--series"));
+    const ResistanceRange range = parse_range(vm["range"].as<std::string>(), command_line("--range"));
     o.pick.range_low = range.low;
     o.pick.range_high = range.high;
-    o.pick.objective = parse_objective(vm["pick-objective"].as<std::string>(), option_where("--pick-objective"));
+    o.pick.objective = parse_objective(vm["pick-objective"].as<std::string>(), command_line("--pick-objective"));
   }
   if (::isatty(STDERR_FILENO)) {
     o.progress = [](double f) {

@@ -19,7 +19,6 @@ namespace thermargin::cli {
 
 namespace {
 
-Where option_where(const char* name) { return Where{Origin::command_line, "", 0, name}; }
 
 nlohmann::json num(const std::optional<double>& v) {
   return v && std::isfinite(*v) ? nlohmann::json(*v) : nlohmann::json(nullptr);
@@ -193,19 +192,15 @@ std::string to_csv(const PickResult& r) {
   out << "rank,r_fixed_ohm,r_parallel_ohm,series,objective,wc_max_abs_K,rss_max_abs_K,mc_max_abs_K,"
          "min_sensitivity_LSB_per_K,max_self_heating_K,max_current_A,max_power_W,span,dominant,status,rejected_by,"
          "verify_mc_max_abs_K,verify_yield,verify_yield_low,verify_yield_high\n";
-  char buf[64];
-  auto g = [&](double v) {
-    std::snprintf(buf, sizeof buf, "%.10g", v);
-    return std::string(buf);
-  };
+  auto g = [](double v) { return significant(v); };
   auto opt = [&](const std::optional<double>& v) { return v ? g(*v) : std::string(); };
   for (std::size_t i = 0; i < r.rows.size(); ++i) {
     const PickRow& w = r.rows[i];
     out << i + 1 << "," << g(w.r_fixed) << "," << opt(w.r_parallel) << "," << (w.series ? std::string(to_string(*w.series)) : "")
         << "," << (w.status == Status::ok ? g(w.objective) : "") << "," << opt(w.wc_max_abs) << "," << opt(w.rss_max_abs) << ","
         << opt(w.mc_max_abs) << "," << g(w.min_sensitivity) << "," << g(w.max_self_heating) << "," << g(w.max_current) << ","
-        << g(w.max_power) << "," << g(w.span) << "," << csv_escape(w.dominant) << "," << to_string(w.status) << ","
-        << csv_escape(join(w.rejected_by, ";")) << ",";
+        << g(w.max_power) << "," << g(w.span) << "," << csv_cell(w.dominant) << "," << to_string(w.status) << ","
+        << csv_cell(join(w.rejected_by, ";")) << ",";
     if (w.verify)
       out << g(w.verify->max_abs) << "," << g(w.verify->yield) << "," << g(w.verify->yield_low) << "," << g(w.verify->yield_high);
     else
@@ -262,7 +257,7 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
   const bool verified = !r.rows.empty() && r.rows.front().verify;
   if (verified) head.insert(head.end(), {"verify MC (K)", "yield"});
   head.push_back("rejected by");
-  TextTable t(head);
+  Table t{.header = head};
   for (std::size_t i = 0; i < r.rows.size(); ++i) {
     const PickRow& w = r.rows[i];
     std::vector<std::string> row{std::to_string(i + 1), ohms(w.r_fixed)};
@@ -281,9 +276,9 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
       }
     }
     row.push_back(join(w.rejected_by, ", "));
-    t.add(row);
+    t.rows.push_back(row);
   }
-  out << t.render();
+  out << render_text(t);
   out << "(worst case and linear: largest |error| over the window; min LSB/K: smallest ADC sensitivity there;\n"
          " self-heat and current: largest over t_min..t_max on the nominal chain, current while the divider is powered)\n";
   if (verified)
@@ -310,7 +305,7 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
 
 int whole(const po::variables_map& vm, const char* name) {
   const std::string key = std::string("--") + name;
-  const Where w = option_where(key.c_str());
+  const Where w = command_line(key.c_str());
   const std::string text = vm[name].as<std::string>();
   const double v = parse_quantity(text, Quantity::integer, w);
   if (v < 0.0 || v > 1e6) reject(w, text, "must be a whole number from 0 to 1000000");
@@ -348,18 +343,18 @@ int run_pick(int argc, char** argv) {
   if (vm.count("values")) {
     for (const char* other : {"range", "series"})
       if (!vm[other].defaulted())
-        reject(option_where((std::string("--") + other).c_str()), vm[other].as<std::string>(),
+        reject(command_line((std::string("--") + other).c_str()), vm[other].as<std::string>(),
                "cannot be combined with --values (explicit candidates replace the series and the range)");
-    o.values = parse_values(vm["values"].as<std::string>(), option_where("--values"));
+    o.values = parse_values(vm["values"].as<std::string>(), command_line("--values"));
   } else {
-    o.series = parse_series(vm["series"].as<std::string>(), option_where("--series"));
-    const ResistanceRange range = parse_range(vm["range"].as<std::string>(), option_where("--range"));
+    o.series = parse_series(vm["series"].as<std::string>(), command_line("--series"));
+    const ResistanceRange range = parse_range(vm["range"].as<std::string>(), command_line("--range"));
     o.range_low = range.low;
     o.range_high = range.high;
   }
-  o.objective = parse_objective(vm["objective"].as<std::string>(), option_where("--objective"));
+  o.objective = parse_objective(vm["objective"].as<std::string>(), command_line("--objective"));
   if (vm.count("grade")) {
-    const Grade g = parse_grade(vm["grade"].as<std::string>(), option_where("--grade"));
+    const Grade g = parse_grade(vm["grade"].as<std::string>(), command_line("--grade"));
     if (g.series) o.series_grade = true;
     else o.tolerance = g.tolerance;
     o.tempco = g.tempco;
@@ -369,7 +364,7 @@ int run_pick(int argc, char** argv) {
     const std::string key = std::string("--") + name;
     const std::string text = vm[name].as<std::string>();
     const std::string bare = without_suffix(text, unit);
-    const Where w = option_where(key.c_str());
+    const Where w = command_line(key.c_str());
     // The bare number is read; a message shows what was written.
     try {
       return parse_limit(bare, q, w);
@@ -385,14 +380,14 @@ int run_pick(int argc, char** argv) {
   o.constraints.min_sensitivity = limit("min-sensitivity", Quantity::lsb, "LSB/K");
   o.constraints.settles = vm.count("settles") > 0;
   if (o.constraints.min_span && *o.constraints.min_span > 1.0)
-    reject(option_where("--min-span"), vm["min-span"].as<std::string>(), "must be a share of the ADC span up to 100 %");
+    reject(command_line("--min-span"), vm["min-span"].as<std::string>(), "must be a share of the ADC span up to 100 %");
   o.parallel = vm.count("parallel") > 0;
   o.top = whole(vm, "top");
-  if (o.top < 1) reject(option_where("--top"), vm["top"].as<std::string>(), "must be a whole number >= 1");
+  if (o.top < 1) reject(command_line("--top"), vm["top"].as<std::string>(), "must be a whole number >= 1");
   o.verify = whole(vm, "verify");
   if (vm.count("mc-units")) {
     const int u = whole(vm, "mc-units");
-    if (u < 1) reject(option_where("--mc-units"), vm["mc-units"].as<std::string>(), "must be a whole number >= 1");
+    if (u < 1) reject(command_line("--mc-units"), vm["mc-units"].as<std::string>(), "must be a whole number >= 1");
     o.mc_units = static_cast<std::uint64_t>(u);
   }
   o.guidance = vm.count("no-guidance") == 0;

@@ -15,7 +15,6 @@ namespace thermargin::cli {
 
 namespace {
 
-Where cl(const std::string& key) { return Where{Origin::command_line, "", 0, key}; }
 
 nlohmann::json error_json(const InterpolationError& e) {
   return {{"max_abs", e.max_abs},       {"max_signed", e.max_signed}, {"max_at_code", e.max_at_code},
@@ -66,9 +65,7 @@ std::string to_csv(const TableResult& r) {
   out << "# " << caution << "\n";
   out << "code,temperature_degC,stored,max_error_to_next_K\n";
   for (std::size_t k = 0; k < t.size(); ++k) {
-    char temp[32];
-    std::snprintf(temp, sizeof temp, "%.10g", stored_celsius(t, k));
-    out << t.code(k) << "," << temp << "," << t.stored[k] << ","
+    out << t.code(k) << "," << significant(stored_celsius(t, k)) << "," << t.stored[k] << ","
         << (k + 1 < t.size() && r.interval_max[k] ? fixed(*r.interval_max[k], 6) : std::string()) << "\n";
   }
   return out.str();
@@ -80,12 +77,12 @@ std::string to_text(const Design& d, const TableResult& r) {
   out << "thermargin table - " << d.title << "\n\n" << table_summary(d, r) << "\n";
   int decimals = 0;
   for (double u = t.unit; u < 0.999999 && decimals < 6; u *= 10.0) ++decimals;
-  TextTable tt({"point", "code", "temperature (degC)", "stored", "largest error to next (K)"});
+  Table tt{.header = {"point", "code", "temperature (degC)", "stored", "largest error to next (K)"}};
   for (std::size_t k = 0; k < t.size(); ++k)
-    tt.add({std::to_string(k), std::to_string(t.code(k)), fixed(stored_celsius(t, k), decimals),
+    tt.rows.push_back({std::to_string(k), std::to_string(t.code(k)), fixed(stored_celsius(t, k), decimals),
             std::to_string(t.stored[k]),
             k + 1 == t.size() ? "" : r.interval_max[k] ? fixed(*r.interval_max[k], 4) : "outside the range"});
-  out << tt.render() << "\n";
+  out << render_text(tt) << "\n";
   if (const std::string note = rtd_class_range_note(d); !note.empty()) out << "RTD class: " << note << ".\n";
   out << caution << "\n";
   return out.str();
@@ -112,8 +109,8 @@ int run_table(int argc, char** argv) {
   TableSettings s;
   if (vm.count("points")) {
     const std::string text = vm["points"].as<std::string>();
-    const double p = parse_quantity(text, Quantity::integer, cl("table.points"));
-    if (!(p >= 2.0 && p <= 1e9)) reject(cl("table.points"), text, "must be a whole number of points, at least 2");
+    const double p = parse_quantity(text, Quantity::integer, command_line("table.points"));
+    if (!(p >= 2.0 && p <= 1e9)) reject(command_line("table.points"), text, "must be a whole number of points, at least 2");
     s.points = static_cast<int>(p);
   } else {
     s.points = design.firmware.table_points;
@@ -121,7 +118,7 @@ int run_table(int argc, char** argv) {
     s.points_where.key = "firmware.table_points";
   }
   if (vm.count("unit")) {
-    s.unit = parse_quantity(vm["unit"].as<std::string>(), Quantity::temperature_difference, cl("table.unit"));
+    s.unit = parse_quantity(vm["unit"].as<std::string>(), Quantity::temperature_difference, command_line("table.unit"));
   } else {
     s.unit = design.firmware.table_unit;
     s.unit_where = inv.scenario.get("firmware.table_unit").where;
@@ -130,21 +127,21 @@ int run_table(int argc, char** argv) {
   const std::string type = vm["type"].as<std::string>();
   if (type == "int16") s.type = StorageType::int16;
   else if (type == "int32") s.type = StorageType::int32;
-  else reject(cl("table.type"), type, "must be one of: int16 | int32");
-  if (!vm["type"].defaulted()) s.type_where = cl("table.type");
+  else reject(command_line("table.type"), type, "must be one of: int16 | int32");
+  if (!vm["type"].defaulted()) s.type_where = command_line("table.type");
   const std::string spacing = vm.count("spacing") ? vm["spacing"].as<std::string>()
                                                   : (design.firmware.table_spacing == TableSpacing::code ? "code" : "temperature");
   if (spacing == "code") s.spacing = TableSpacing::code;
   else if (spacing == "temperature") s.spacing = TableSpacing::temperature;
-  else reject(cl("table.spacing"), spacing, "must be one of: code | temperature");
+  else reject(command_line("table.spacing"), spacing, "must be one of: code | temperature");
   if (vm.count("max-error"))
-    s.max_error = parse_quantity(vm["max-error"].as<std::string>(), Quantity::temperature_difference, cl("table.max_error"));
+    s.max_error = parse_quantity(vm["max-error"].as<std::string>(), Quantity::temperature_difference, command_line("table.max_error"));
   std::string emit_as;
   if (vm.count("emit")) {
     emit_as = vm["emit"].as<std::string>();
-    if (emit_as != "c" && emit_as != "csv") reject(cl("table.emit"), emit_as, "must be one of: c | csv");
+    if (emit_as != "c" && emit_as != "csv") reject(command_line("table.emit"), emit_as, "must be one of: c | csv");
     if (!vm["format"].defaulted())
-      reject(cl("table.emit"), emit_as,
+      reject(command_line("table.emit"), emit_as,
              "writes the table itself and takes no --format; drop one of --emit and --format");
   }
   const std::string prefix = vm["prefix"].as<std::string>();

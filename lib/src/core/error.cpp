@@ -1,5 +1,7 @@
 #include "thermargin/core/error.hpp"
 
+#include <utility>
+
 namespace thermargin {
 
 std::string one_line(std::string_view message) {
@@ -30,6 +32,8 @@ std::string Where::origin() const {
   if (column > 0) at += ":" + std::to_string(column);
   return at;
 }
+
+Where command_line(std::string key) { return Where{Origin::command_line, "", 0, std::move(key)}; }
 
 void reject(const Where& where, std::string_view value, std::string_view accepted) {
   std::string message = where.key;

@@ -277,4 +277,19 @@ std::string format_quantity(double value, Quantity q, int digits) {
   return buf;
 }
 
+std::string fixed(double v, int decimals) {
+  if (!std::isfinite(v)) return "n/a";
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string s = buf;
+  if (s.starts_with("-") && s.find_first_not_of("-0.") == std::string::npos) s = s.substr(1);  // no "-0.000"
+  return s;
+}
+
+std::string significant(double v, int digits) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*g", digits, v);
+  return buf;
+}
+
 }  // namespace thermargin

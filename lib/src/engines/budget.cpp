@@ -118,7 +118,7 @@ void require_feasible(const Design& d, const Scenario& s, const BudgetOptions& o
   if (options.corners == CornerMethod::enumerate) {
     const double evaluations = std::ldexp(1.0, inputs) * temperatures;
     if (evaluations > max_worst_case_evaluations)
-      reject(Where{Origin::command_line, "", 0, "--corners"}, "enumerate",
+      reject(command_line("--corners"), "enumerate",
              std::to_string(inputs) + " active inputs give 2^" + std::to_string(inputs) + " corners x " +
                  count_text(temperatures) + " temperatures = " + count_text(evaluations) + " chain evaluations, " +
                  duration_text(evaluations / worst_case_evaluations_per_second) + per_core + "; at most " +

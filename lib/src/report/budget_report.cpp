@@ -387,7 +387,7 @@ void status_block(HtmlDocument& doc, const Budget& b) {
 // ---------------------------------------------------------------- files
 
 [[noreturn]] void refuse(const std::string& option, const std::string& path, const std::string& reason) {
-  reject(Where{Origin::command_line, "", 0, option}, path, reason);
+  reject(command_line(option), path, reason);
 }
 
 struct NamedText {

@@ -15,6 +15,7 @@
 #include <filesystem>
 
 #include "thermargin/core/error.hpp"
+#include "thermargin/core/number.hpp"
 #include "thermargin/report/svg_chart.hpp"
 
 namespace thermargin {
@@ -360,15 +361,8 @@ std::string HtmlDocument::str() const {
 namespace report {
 
 std::string num(double v, int decimals) {
-  if (!std::isfinite(v)) return "n/a";
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  std::string s = buf;
-  if (s.front() == '-') {
-    if (s.find_first_not_of("-0.") == std::string::npos) return s.substr(1);
-    return "\u2212" + s.substr(1);
-  }
-  return s;
+  const std::string s = fixed(v, decimals);  // never "nan" or "-0.000"
+  return s.front() == '-' ? "\u2212" + s.substr(1) : s;
 }
 
 std::string pct(double fraction, int decimals) { return num(100.0 * fraction, decimals) + " %"; }

@@ -321,7 +321,7 @@ std::vector<std::size_t> pick(const RtData& data, const std::vector<std::size_t>
                               const std::vector<double>& wanted, const char* key) {
   std::string given;
   for (double t : wanted) given += (given.empty() ? "" : ", ") + fmt("%g", t);
-  const Where where{Origin::command_line, "", 0, key};
+  const Where where = command_line(key);
   std::vector<std::size_t> chosen;
   for (double t : wanted) {
     auto it = std::find_if(window.begin(), window.end(), [&](std::size_t i) {
@@ -339,19 +339,19 @@ std::vector<std::size_t> pick(const RtData& data, const std::vector<std::size_t>
 }
 
 void check_settings(const FitSettings& s) {
-  const Where window{Origin::command_line, "", 0, "fit.window"};
+  const Where window = command_line("fit.window");
   if (std::isnan(s.t_min) || std::isnan(s.t_max) || s.t_min > s.t_max)
     reject(window, fmt("%g", s.t_min) + ".." + fmt("%g", s.t_max), "must be t_min..t_max in degC with t_min <= t_max");
   if (!(s.limit > 0.0) || !std::isfinite(s.limit))
-    reject({Origin::command_line, "", 0, "fit.limit"}, fmt("%g", s.limit), "must be an error in K > 0");
+    reject(command_line("fit.limit"), fmt("%g", s.limit), "must be an error in K > 0");
   if (s.between_samples < 1 || s.between_samples > 100000)
-    reject({Origin::command_line, "", 0, "fit.between_samples"}, std::to_string(s.between_samples),
+    reject(command_line("fit.between_samples"), std::to_string(s.between_samples),
            "must be a whole number from 1 to 100000");
   if (!s.beta_at.empty() && s.beta_at.size() != 2)
-    reject({Origin::command_line, "", 0, "fit.beta_at"}, std::to_string(s.beta_at.size()) + " temperatures",
+    reject(command_line("fit.beta_at"), std::to_string(s.beta_at.size()) + " temperatures",
            "must be two temperatures in degC, or none for the default");
   if (!s.sh_at.empty() && s.sh_at.size() != 3)
-    reject({Origin::command_line, "", 0, "fit.sh_at"}, std::to_string(s.sh_at.size()) + " temperatures",
+    reject(command_line("fit.sh_at"), std::to_string(s.sh_at.size()) + " temperatures",
            "must be three temperatures in degC, or none for the default");
 }
 
@@ -508,7 +508,7 @@ FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
   // samples per interval would run for hours, so it is refused before it starts.
   const double comparisons = static_cast<double>(window.size() - 1) * settings.between_samples;
   if (comparisons > max_between_comparisons)
-    reject({Origin::command_line, "", 0, "fit.between_samples"}, std::to_string(settings.between_samples),
+    reject(command_line("fit.between_samples"), std::to_string(settings.between_samples),
            std::to_string(window.size() - 1) + " intervals between the points in the window x " +
                std::to_string(settings.between_samples) + " samples = " + fmt("%.3g", comparisons) +
                " comparisons per model; at most " + fmt("%.3g", max_between_comparisons) + ": fewer samples or a narrower window");

@@ -25,7 +25,6 @@ namespace {
 constexpr double window_slack = 1e-9;  // °C, as budget.cpp decides window membership
 constexpr double equal_cost = 1e-9;    // relative: sums of decimal prices that are the same amount
 
-Where option(const char* name) { return Where{Origin::command_line, "", 0, name}; }
 
 std::string num(const char* format, double v) {
   char buf[64];
@@ -162,7 +161,7 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
   if (options.re_pick) {
     const PickRow w = re_pick(s, options.pick, rp.values, anchor);
     f.r_fixed = w.r_fixed;
-    s.set("divider.r_fixed", exact_text(w.r_fixed), option("--re-pick"));
+    s.set("divider.r_fixed", exact_text(w.r_fixed), command_line("--re-pick"));
     if (w.status == Status::ok) {
       if (options.corners == CornerMethod::automatic) picked_wc = w.wc_max_abs;
       picked_rss = w.rss_max_abs;
@@ -410,15 +409,15 @@ std::optional<double> GradesResult::ranking_cost(const GradeRow& r) const {
 
 void validate_grades(const Scenario& scenario, const Catalogue& cat, const GradesOptions& options) {
   if (options.volume && !(*options.volume >= 1.0 && std::isfinite(*options.volume)))
-    reject(option("--volume"), num("%g", *options.volume), "must be a number of units >= 1");
+    reject(command_line("--volume"), num("%g", *options.volume), "must be a number of units >= 1");
   if (options.reject_cost && !(*options.reject_cost >= 0.0 && std::isfinite(*options.reject_cost)))
-    reject(option("--reject-cost"), num("%g", *options.reject_cost), "must be a cost >= 0 per failed unit");
-  if (options.units < 1) reject(option("--units"), "0", "must be a whole number of units >= 1");
+    reject(command_line("--reject-cost"), num("%g", *options.reject_cost), "must be a cost >= 0 per failed unit");
+  if (options.units < 1) reject(command_line("--units"), "0", "must be a whole number of units >= 1");
   if (cat.has_setup_costs() && !options.volume) {
     for (const auto& s : cat.slots)
       for (const auto& o : s.options)
         if (o.setup_cost > 0.0)
-          reject(option("--volume"), "",
+          reject(command_line("--volume"), "",
                  "the catalogue has setup costs (" +
                      Where{Origin::catalogue, cat.file, o.line, "", cat.columns.setup_cost}.origin() +
                      "); give the production volume they are spread over, e.g. --volume 10000");

@@ -306,7 +306,7 @@ std::string table_summary(const Design& d, const TableResult& r) {
 
 void require_c_prefix(const std::string& prefix) {
   if (!valid_identifier(prefix))
-    reject({Origin::command_line, "", 0, "table.prefix"}, prefix,
+    reject(command_line("table.prefix"), prefix,
            "must be a C identifier of at most 48 characters: a letter or _, then letters, digits or _");
 }
 

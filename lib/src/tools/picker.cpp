@@ -48,7 +48,6 @@ constexpr std::size_t probe_count = 3;
 constexpr std::size_t pair_refine_count = 3;
 constexpr double window_slack = 1e-9;  // °C, as budget.cpp decides window membership
 
-Where option(const char* name) { return Where{Origin::command_line, "", 0, name}; }
 
 std::string number_text(double v) {
   char buf[40];
@@ -128,7 +127,7 @@ std::unique_ptr<Built> build(const Context& ctx, const Candidate& c) {
     return std::make_unique<Built>(std::move(d));
   }
   Scenario s = ctx.base;
-  const Where w = option("candidate");
+  const Where w = command_line("candidate");
   s.set("divider.r_fixed", number_text(c.r_fixed), w);
   if (ctx.pair) {
     s.set("divider.r_parallel", c.r_parallel ? number_text(*c.r_parallel) : "none", w);
@@ -669,22 +668,22 @@ std::uint64_t default_units(const Design& d, std::uint64_t requested, std::uint6
 void check_options(const PickOptions& o) {
   if (o.values.empty()) {
     if (!(o.range_low > 0.0 && o.range_high > o.range_low && std::isfinite(o.range_high)))
-      reject(option("--range"), ohms(o.range_low) + ".." + ohms(o.range_high),
+      reject(command_line("--range"), ohms(o.range_low) + ".." + ohms(o.range_high),
              "must be LOW..HIGH with 0 < LOW < HIGH, in ohms (engineering notation, e.g. 1k..1M)");
   } else {
     for (double v : o.values)
-      if (!(v > 0.0 && std::isfinite(v))) reject(option("--values"), number_text(v), "every value must be a resistance > 0");
+      if (!(v > 0.0 && std::isfinite(v))) reject(command_line("--values"), number_text(v), "every value must be a resistance > 0");
   }
   if (o.series_grade && !o.tolerance && !o.values.empty())
-    reject(option("--grade"), "series", "needs candidates from a series (--series, --range), not --values; give TOL[,TEMPCO] instead");
-  if (o.top < 1) reject(option("--top"), std::to_string(o.top), "must be a whole number >= 1");
-  if (o.verify < 0) reject(option("--verify"), std::to_string(o.verify), "must be a whole number >= 0");
+    reject(command_line("--grade"), "series", "needs candidates from a series (--series, --range), not --values; give TOL[,TEMPCO] instead");
+  if (o.top < 1) reject(command_line("--top"), std::to_string(o.top), "must be a whole number >= 1");
+  if (o.verify < 0) reject(command_line("--verify"), std::to_string(o.verify), "must be a whole number >= 0");
   if (o.tolerance && !(*o.tolerance >= 0.0 && *o.tolerance < 1.0))
-    reject(option("--grade"), number_text(*o.tolerance), "the tolerance must be from 0 up to (not including) 100 %");
+    reject(command_line("--grade"), number_text(*o.tolerance), "the tolerance must be from 0 up to (not including) 100 %");
   if (o.tempco && !(*o.tempco >= 0.0 && *o.tempco < 0.01))
-    reject(option("--grade"), number_text(*o.tempco), "the tempco must be from 0 up to (not including) 10000 ppm/K");
+    reject(command_line("--grade"), number_text(*o.tempco), "the tempco must be from 0 up to (not including) 10000 ppm/K");
   const auto positive = [](const std::optional<double>& v, const char* name, const char* unit) {
-    if (v && !(*v > 0.0 && std::isfinite(*v))) reject(option(name), number_text(*v), std::string("must be > 0 ") + unit);
+    if (v && !(*v > 0.0 && std::isfinite(*v))) reject(command_line(name), number_text(*v), std::string("must be > 0 ") + unit);
   };
   positive(o.constraints.max_self_heating, "--max-self-heating", "(K)");
   positive(o.constraints.max_current, "--max-current", "(A)");
@@ -692,7 +691,7 @@ void check_options(const PickOptions& o) {
   positive(o.constraints.min_span, "--min-span", "(a fraction of the ADC span, up to 1)");
   positive(o.constraints.min_sensitivity, "--min-sensitivity", "(LSB/K)");
   if (o.constraints.min_span && *o.constraints.min_span > 1.0)
-    reject(option("--min-span"), number_text(*o.constraints.min_span), "must be a fraction of the ADC span, at most 1 (100 %)");
+    reject(command_line("--min-span"), number_text(*o.constraints.min_span), "must be a fraction of the ADC span, at most 1 (100 %)");
 }
 
 Context make_context(const Scenario& scenario, const PickOptions& options) {
@@ -707,7 +706,7 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
     // mistakes are reported against its own keys.
     const Design given = build_design(scenario);
     given_threads = given.montecarlo.threads;
-    const Where grade = option("--grade");
+    const Where grade = command_line("--grade");
     if (!options.tolerance && options.series_grade) ctx.options.tolerance = series_tolerance(options.series);
     const std::optional<double>& tolerance = ctx.options.tolerance;
     if (tolerance) ctx.base.set("divider.r_fixed_tol", number_text(*tolerance), grade);
@@ -724,7 +723,7 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
   }
   // The engines run single-threaded inside the picker, which spreads
   // candidates (or temperatures) over the threads itself.
-  ctx.base.set("montecarlo.threads", "1", option("pick"));
+  ctx.base.set("montecarlo.threads", "1", command_line("pick"));
   ctx.design = build_design(ctx.base);
   const Design& d = ctx.design;
   ctx.range = d.conditions.temperatures();
@@ -738,7 +737,7 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
   if (options.values.empty()) {
     ctx.values = series_values(options.series, options.range_low, options.range_high);
     if (ctx.values.empty())
-      reject(option("--range"), ohms(options.range_low) + ".." + ohms(options.range_high),
+      reject(command_line("--range"), ohms(options.range_low) + ".." + ohms(options.range_high),
              "holds no " + std::string(to_string(options.series)) + " value; widen the range or choose a finer series");
   } else {
     ctx.values = options.values;
@@ -1108,7 +1107,7 @@ double best_fixed_resistor(const Scenario& scenario, const PickOptions& options)
 }
 
 PickRow pick_winner(const Scenario& scenario, const PickOptions& options, double start) {
-  if (!(start > 0.0 && std::isfinite(start))) reject(option("start"), number_text(start), "must be a resistance > 0");
+  if (!(start > 0.0 && std::isfinite(start))) reject(command_line("start"), number_text(start), "must be a resistance > 0");
   PickOptions o = options;
   o.top = 1;
   o.verify = 0;
@@ -1186,7 +1185,7 @@ PickRow pick_winner(const Scenario& scenario, const PickOptions& options, double
 }
 
 std::optional<double> objective_at(const Scenario& scenario, const PickOptions& options, double r_fixed) {
-  if (!(r_fixed > 0.0)) reject(option("r_fixed"), number_text(r_fixed), "must be a resistance > 0");
+  if (!(r_fixed > 0.0)) reject(command_line("r_fixed"), number_text(r_fixed), "must be a resistance > 0");
   PickOptions o = options;
   o.parallel = false;
   const Context ctx = make_context(scenario, o);

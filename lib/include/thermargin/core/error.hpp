@@ -27,6 +27,11 @@ struct Where {
   std::string origin() const;  // "scenario.ini:12", "parts.csv:3:4", "command line", "default"
 };
 
+// A command-line option as the place a value came from: messages read
+// "--grade = x (command line): ...". `key` is the option as the user wrote
+// it ("--grade") or the setting it stands for ("table.points").
+Where command_line(std::string key);
+
 // The message as one printable line: a line break or another control
 // character that came in with the user's text (a quoted catalogue field, a
 // command-line argument) is written as an escape (`\n`, `\x1b`), so the

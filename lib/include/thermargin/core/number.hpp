@@ -45,4 +45,13 @@ double parse_quantity(std::string_view text, Quantity q, const Where& where);
 // A and W/K, `%` for ratios, `ppm/K` for tempcos; `digits` significant digits.
 std::string format_quantity(double value, Quantity q, int digits = 4);
 
+// A number with `decimals` fixed decimals ("%.*f"): "-0.123"; never "nan"
+// (a value that is not finite is "n/a") and never "-0.000".
+std::string fixed(double v, int decimals);
+
+// A number with `digits` significant digits ("%.*g"): significant(4700, 10)
+// == "4700", significant(1e-7, 3) == "1e-07"; what the CSV and JSON-adjacent
+// columns print so that a reader gets every digit that counts.
+std::string significant(double v, int digits = 10);
+
 }  // namespace thermargin

@@ -19,6 +19,8 @@
 #include <string_view>
 #include <vector>
 
+#include "thermargin/report/table.hpp"
+
 namespace thermargin {
 
 namespace svg {
@@ -48,15 +50,6 @@ void write_file_atomically(const std::string& path, std::string_view contents);
 // The result a verdict banner shows. (budget.hpp's `Verdict` is the budget's
 // whole verdict: basis, margin, reason; this is only its pass or fail.)
 enum class Badge { pass, fail };
-
-// A table of preformatted cells. Columns whose cells all start like a number
-// ("-1.25", "10k", "±0.3 K") are right-aligned unless `numeric` says otherwise.
-struct Table {
-  std::string caption;                      // optional
-  std::vector<std::string> header;          // with units: "Error (K)"
-  std::vector<std::vector<std::string>> rows;
-  std::vector<bool> numeric;                // per column; empty = decide from the cells
-};
 
 // Builds one HTML page; every method appends a block and returns *this.
 //

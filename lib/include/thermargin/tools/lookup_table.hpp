@@ -46,10 +46,10 @@ struct TableSettings {
   // (`points` is then ignored).
   std::optional<double> max_error;
 
-  Where points_where{Origin::command_line, "", 0, "table.points"};
-  Where unit_where{Origin::command_line, "", 0, "table.unit"};
+  Where points_where = command_line("table.points");
+  Where unit_where = command_line("table.unit");
   Where type_where{Origin::built_in, "", 0, "table.type"};
-  Where max_error_where{Origin::command_line, "", 0, "table.max_error"};
+  Where max_error_where = command_line("table.max_error");
 };
 
 // The table against the exact conversion over the codes of the range: every
