@@ -171,6 +171,57 @@ std::vector<std::vector<CsvField>> parse_csv_records(const std::string& text, co
   return records;
 }
 
+namespace {
+
+// One option's settings field: key=value items separated by ';', each key
+// a scenario key, set once per option and graded by one slot only
+// (`key_owner`: key -> (slot, line) over the whole catalogue). A file a
+// setting names is read relative to the catalogue.
+std::vector<GradeSetting> read_settings(const std::string& all, const std::string& name, int settings_line, int settings_col,
+                                        const std::string& slot, int line,
+                                        std::map<std::string, std::pair<std::string, int>>& key_owner) {
+  namespace fs = std::filesystem;
+  const fs::path dir = fs::path(name).parent_path();
+  std::vector<GradeSetting> settings;
+  std::set<std::string> keys;
+  std::size_t begin = 0;
+  while (begin <= all.size()) {
+    std::size_t end = all.find(';', begin);
+    if (end == std::string::npos) end = all.size();
+    const std::string item = trim(all.substr(begin, end - begin));
+    begin = end + 1;
+    if (item.empty()) continue;  // "a=1;" and an option that keeps the scenario's parts
+    const auto eq = item.find('=');
+    if (eq == std::string::npos)
+      refuse(name, settings_line, settings_col, "settings", item,
+             "a setting is key=value, e.g. sensor.r25_tol=1%; settings are separated by ';'");
+    GradeSetting s;
+    s.key = trim(item.substr(0, eq));
+    s.value = trim(item.substr(eq + 1));
+    if (!find_key(s.key))
+      refuse(name, settings_line, settings_col, "settings", item,
+             "'" + s.key + "' names no scenario key; `thermargin check --help` lists them (section.key, e.g. "
+             "sensor.r25_tol)");
+    if (!keys.insert(s.key).second)
+      refuse(name, settings_line, settings_col, "settings", item, "'" + s.key + "' is set twice in this option");
+    // A file named by a grade is read relative to the catalogue, as a
+    // scenario's table file is read relative to the scenario.
+    if (s.key.ends_with("_file") && !s.value.empty() && fs::path(s.value).is_relative())
+      s.value = (dir / s.value).string();
+    s.where = Where{Origin::catalogue, name, settings_line, s.key, settings_col};
+    const auto [owner, fresh] = key_owner.emplace(s.key, std::make_pair(slot, line));
+    if (!fresh && owner->second.first != slot)
+      refuse(name, settings_line, settings_col, "settings", item,
+             "'" + s.key + "' is already graded by slot '" + owner->second.first + "' (line " +
+                 std::to_string(owner->second.second) +
+                 "); a key belongs to one slot, or two slots would decide it together");
+    settings.push_back(std::move(s));
+  }
+  return settings;
+}
+
+}  // namespace
+
 Catalogue parse_catalogue(const std::string& text, const std::string& name) {
   Catalogue cat;
   cat.file = name;
@@ -202,8 +253,6 @@ Catalogue parse_catalogue(const std::string& text, const std::string& name) {
       refuse(name, header_line, 0, "header", header_text,
              std::string("the required column '") + required + "' is missing; " + accepted_columns);
 
-  namespace fs = std::filesystem;
-  const fs::path dir = fs::path(name).parent_path();
   std::map<std::string, std::pair<std::string, int>> key_owner;  // key -> (slot, line)
   for (std::size_t r = 1; r < records.size(); ++r) {
     const auto& rec = records[r];
@@ -228,44 +277,8 @@ Catalogue parse_catalogue(const std::string& text, const std::string& name) {
                                  cat.columns.setup_cost, "setup_cost");
     opt.notes = field(cat.columns.notes);
 
-    // Settings: key=value items separated by ';'.
-    const int settings_col = cat.columns.settings;
-    const int settings_line = field_line(settings_col);
-    std::set<std::string> keys;
-    const std::string all = rec[cat.columns.settings - 1].text;
-    std::size_t begin = 0;
-    while (begin <= all.size()) {
-      std::size_t end = all.find(';', begin);
-      if (end == std::string::npos) end = all.size();
-      const std::string item = trim(all.substr(begin, end - begin));
-      begin = end + 1;
-      if (item.empty()) continue;  // "a=1;" and an option that keeps the scenario's parts
-      const auto eq = item.find('=');
-      if (eq == std::string::npos)
-        refuse(name, settings_line, settings_col, "settings", item,
-               "a setting is key=value, e.g. sensor.r25_tol=1%; settings are separated by ';'");
-      GradeSetting s;
-      s.key = trim(item.substr(0, eq));
-      s.value = trim(item.substr(eq + 1));
-      if (!find_key(s.key))
-        refuse(name, settings_line, settings_col, "settings", item,
-               "'" + s.key + "' names no scenario key; `thermargin check --help` lists them (section.key, e.g. "
-               "sensor.r25_tol)");
-      if (!keys.insert(s.key).second)
-        refuse(name, settings_line, settings_col, "settings", item, "'" + s.key + "' is set twice in this option");
-      // A file named by a grade is read relative to the catalogue, as a
-      // scenario's table file is read relative to the scenario.
-      if (s.key.ends_with("_file") && !s.value.empty() && fs::path(s.value).is_relative())
-        s.value = (dir / s.value).string();
-      s.where = Where{Origin::catalogue, name, settings_line, s.key, settings_col};
-      const auto [owner, fresh] = key_owner.emplace(s.key, std::make_pair(slot, line));
-      if (!fresh && owner->second.first != slot)
-        refuse(name, settings_line, settings_col, "settings", item,
-               "'" + s.key + "' is already graded by slot '" + owner->second.first + "' (line " +
-                   std::to_string(owner->second.second) +
-                   "); a key belongs to one slot, or two slots would decide it together");
-      opt.settings.push_back(std::move(s));
-    }
+    opt.settings = read_settings(rec[cat.columns.settings - 1].text, name, field_line(cat.columns.settings),
+                                 cat.columns.settings, slot, line, key_owner);
 
     auto slot_it = std::find_if(cat.slots.begin(), cat.slots.end(), [&](const CatalogueSlot& s) { return s.name == slot; });
     if (slot_it == cat.slots.end()) {
