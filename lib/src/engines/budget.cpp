@@ -1,5 +1,7 @@
 #include "thermargin/engines/budget.hpp"
 
+#include "thermargin/engines/window.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -36,7 +38,6 @@ std::string corner_method_text(const Budget& b) {
 
 namespace {
 
-bool in_window(const Requirement& q, double t) { return t >= q.window_min - 1e-9 && t <= q.window_max + 1e-9; }
 
 std::vector<Contributor> point_contributors(const LinearPoint& lp, const WorstCasePoint& wp) {
   std::vector<Contributor> out;
@@ -162,93 +163,10 @@ std::string validation_failure_reason(const BudgetPoint& p, const Design& d) {
 
 namespace {
 
-Budget budget_of(const Chain& chain, const BudgetOptions& options) {
-  const Design& d = chain.design();
-  const auto temps = d.conditions.temperatures();
-  Budget b;
-  const WorstCase wc = worst_case(chain, temps, options.corners);
-  const LinearBudget lb = linear_budget(chain, temps);
-  b.k_p = lb.k_p;
-  b.wc_directed = wc.directed;
-  b.active_inputs = wc.active_inputs;
-  b.wc_corners = wc.corners;
-  std::optional<McResult> mc;
-  if (options.monte_carlo) {
-    McOptions mo;
-    mo.progress = options.progress;
-    mc = monte_carlo(chain, temps, mo);
-    b.mc = mc->summary;
-  }
-
-  std::map<std::string, Contributor> window;  // summed variance and largest half-width
-  double window_var = 0.0;
-  bool first_wc = true, first_rss = true;
-  for (std::size_t i = 0; i < temps.size(); ++i) {
-    BudgetPoint p;
-    p.t = temps[i];
-    p.in_window = in_window(d.requirement, p.t);
-    p.nominal = nominal_point(chain, p.t);
-    p.wc = wc.points[i];
-    p.linear = lb.points[i];
-    if (mc) p.mc = mc->points[i];
-    const bool broken = p.nominal.status != Status::ok || p.wc.failed_corners > 0 || p.linear.status != Status::ok ||
-                        (p.mc && (p.mc->saturated + p.mc->failed) > 0);
-    b.status_points += broken;
-    if (p.linear.status == Status::ok) {
-      p.contributors = point_contributors(p.linear, p.wc);
-      if (p.in_window) {
-        window_var += p.linear.u_c * p.linear.u_c;
-        for (const auto& c : p.contributors) {
-          auto& w = window[c.name];
-          w.name = c.name;
-          w.label = c.label;
-          w.share += c.share * p.linear.u_c * p.linear.u_c;
-          w.half_width = std::max(w.half_width, c.half_width);
-        }
-      }
-    }
-    if (p.in_window && p.nominal.status == Status::ok && p.nominal.sensitivity != 0.0 &&
-        (!b.weakest.found || std::fabs(p.nominal.sensitivity) < b.weakest.lsb_per_k)) {
-      b.weakest = {true, p.t, std::fabs(p.nominal.sensitivity), std::fabs(p.nominal.mv_per_k), p.nominal.lsb_in_k};
-    }
-    if (p.in_window) {
-      if (p.wc.any_ok) {
-        const double m = std::max(std::fabs(p.wc.low), std::fabs(p.wc.high));
-        if (first_wc || m > b.wc_max_abs) {
-          b.wc_max_abs = m;
-          b.wc_max_at = p.t;
-          first_wc = false;
-        }
-      }
-      if (p.linear.status == Status::ok) {
-        const double m = std::max(std::fabs(p.linear.low), std::fabs(p.linear.high));
-        if (first_rss || m > b.rss_max_abs) {
-          b.rss_max_abs = m;
-          b.rss_max_at = p.t;
-          first_rss = false;
-        }
-      }
-    }
-    b.points.push_back(std::move(p));
-  }
-  // An engine that could read no temperature of the window has no largest
-  // error there: not a number (printed as n/a, null in JSON), never 0 K.
-  const double none = std::numeric_limits<double>::quiet_NaN();
-  if (first_wc) b.wc_max_abs = b.wc_max_at = none;
-  if (first_rss) b.rss_max_abs = b.rss_max_at = none;
-  if (b.mc && std::none_of(b.points.begin(), b.points.end(),
-                           [](const BudgetPoint& p) { return p.in_window && p.mc && p.mc->valid > 0; }))
-    b.mc->max_abs = b.mc->max_abs_at = none;
-  for (auto& [name, c] : window) {
-    c.share = window_var > 0.0 ? c.share / window_var : 0.0;
-    b.window_contributors.push_back(c);
-  }
-  std::stable_sort(b.window_contributors.begin(), b.window_contributors.end(),
-                   [](const Contributor& x, const Contributor& y) { return x.share > y.share; });
-  if (!b.window_contributors.empty()) b.dominant = b.window_contributors.front().label;
-  set_leaders(b);
-
-  // The verdict by the requirement's basis.
+// The verdict by the requirement's basis: the worst case or the linear
+// band against the limit (failing where a window temperature cannot be
+// read), or the Monte Carlo yield against the required yield.
+void decide_verdict(Budget& b, const Design& d) {
   Verdict& v = b.verdict;
   v.basis = d.requirement.basis;
   const double limit = d.requirement.max_error;
@@ -281,7 +199,7 @@ Budget budget_of(const Chain& chain, const BudgetOptions& options) {
                     100 * b.mc->yield, 100 * d.requirement.yield, static_cast<unsigned long long>(b.mc->units));
       v.reason = buf;
     }
-    return b;
+    return;
   }
   const bool wc_basis = v.basis == Requirement::Basis::worst_case;
   v.worst_abs_error = wc_basis ? b.wc_max_abs : b.rss_max_abs;
@@ -298,6 +216,79 @@ Budget budget_of(const Chain& chain, const BudgetOptions& options) {
                   wc_basis ? "worst-case" : "linear-budget", v.worst_abs_error, v.worst_at, limit);
     v.reason = buf;
   }
+}
+
+Budget budget_of(const Chain& chain, const BudgetOptions& options) {
+  const Design& d = chain.design();
+  const auto temps = d.conditions.temperatures();
+  Budget b;
+  const WorstCase wc = worst_case(chain, temps, options.corners);
+  const LinearBudget lb = linear_budget(chain, temps);
+  b.k_p = lb.k_p;
+  b.wc_directed = wc.directed;
+  b.active_inputs = wc.active_inputs;
+  b.wc_corners = wc.corners;
+  std::optional<McResult> mc;
+  if (options.monte_carlo) {
+    McOptions mo;
+    mo.progress = options.progress;
+    mc = monte_carlo(chain, temps, mo);
+    b.mc = mc->summary;
+  }
+
+  std::map<std::string, Contributor> window;  // summed variance and largest half-width
+  double window_var = 0.0;
+  for (std::size_t i = 0; i < temps.size(); ++i) {
+    BudgetPoint p;
+    p.t = temps[i];
+    p.in_window = in_requirement_window(d.requirement, p.t);
+    p.nominal = nominal_point(chain, p.t);
+    p.wc = wc.points[i];
+    p.linear = lb.points[i];
+    if (mc) p.mc = mc->points[i];
+    const bool broken = p.nominal.status != Status::ok || p.wc.failed_corners > 0 || p.linear.status != Status::ok ||
+                        (p.mc && (p.mc->saturated + p.mc->failed) > 0);
+    b.status_points += broken;
+    if (p.linear.status == Status::ok) {
+      p.contributors = point_contributors(p.linear, p.wc);
+      if (p.in_window) {
+        window_var += p.linear.u_c * p.linear.u_c;
+        for (const auto& c : p.contributors) {
+          auto& w = window[c.name];
+          w.name = c.name;
+          w.label = c.label;
+          w.share += c.share * p.linear.u_c * p.linear.u_c;
+          w.half_width = std::max(w.half_width, c.half_width);
+        }
+      }
+    }
+    if (p.in_window && p.nominal.status == Status::ok && p.nominal.sensitivity != 0.0 &&
+        (!b.weakest.found || std::fabs(p.nominal.sensitivity) < b.weakest.lsb_per_k)) {
+      b.weakest = {true, p.t, std::fabs(p.nominal.sensitivity), std::fabs(p.nominal.mv_per_k), p.nominal.lsb_in_k};
+    }
+    b.points.push_back(std::move(p));
+  }
+  // An engine that could read no temperature of the window has no largest
+  // error there: not a number (printed as n/a, null in JSON), never 0 K.
+  const double none = std::numeric_limits<double>::quiet_NaN();
+  const WindowMax wc_max = window_max(wc.points, d.requirement), rss_max = window_max(lb.points, d.requirement);
+  b.wc_max_abs = wc_max.any ? wc_max.max_abs : none;
+  b.wc_max_at = wc_max.at;
+  b.rss_max_abs = rss_max.any ? rss_max.max_abs : none;
+  b.rss_max_at = rss_max.at;
+  if (b.mc && std::none_of(b.points.begin(), b.points.end(),
+                           [](const BudgetPoint& p) { return p.in_window && p.mc && p.mc->valid > 0; }))
+    b.mc->max_abs = b.mc->max_abs_at = none;
+  for (auto& [name, c] : window) {
+    c.share = window_var > 0.0 ? c.share / window_var : 0.0;
+    b.window_contributors.push_back(c);
+  }
+  std::stable_sort(b.window_contributors.begin(), b.window_contributors.end(),
+                   [](const Contributor& x, const Contributor& y) { return x.share > y.share; });
+  if (!b.window_contributors.empty()) b.dominant = b.window_contributors.front().label;
+  set_leaders(b);
+
+  decide_verdict(b, d);
   return b;
 }
 

@@ -1,5 +1,7 @@
 #include "thermargin/engines/monte_carlo.hpp"
 
+#include "thermargin/core/parallel.hpp"
+
 #include <algorithm>
 #include <atomic>
 #include <chrono>
@@ -735,16 +737,13 @@ Accumulator run_units(const Job& job, std::uint64_t first, std::uint64_t n, int 
       done.fetch_add(1);
     }
   };
-  std::vector<std::thread> pool;
-  for (int w = 1; w < workers; ++w) pool.emplace_back(work, w);
-  if (progress && workers > 1) {
+  run_workers(workers, work, [&] {
+    if (!progress || workers <= 1) return;
     while (done.load() < blocks) {
       std::this_thread::sleep_for(std::chrono::milliseconds(100));
       progress(static_cast<double>(progress_base + done.load() * block_size) / static_cast<double>(progress_total));
     }
-  }
-  work(0);
-  for (auto& t : pool) t.join();
+  });
   Accumulator total(nt);
   for (const auto& a : accs) total.merge(a);
   return total;
@@ -982,13 +981,13 @@ McResult monte_carlo(const Chain& chain, const std::vector<double>& temperatures
   const RunConstants c = make_constants(chain);
   const std::size_t nt = temperatures.size();
   int threads = options.threads >= 0 ? options.threads : d.montecarlo.threads;
-  if (threads == 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  threads = resolve_threads(threads);
   const std::uint64_t requested = options.units ? options.units : d.montecarlo.units;
   const bool adaptive = requested == 0;
 
   Job job{&c, &temperatures, nullptr, std::vector<std::uint8_t>(nt, 0), d.requirement.max_error};
   for (std::size_t i = 0; i < nt; ++i)
-    job.in_window[i] = temperatures[i] >= d.requirement.window_min - 1e-9 && temperatures[i] <= d.requirement.window_max + 1e-9;
+    job.in_window[i] = in_requirement_window(d.requirement, temperatures[i]);
 
   // The pilot: the first units fix each temperature's histogram range.
   std::vector<Range> ranges(nt);

@@ -1,5 +1,7 @@
 #include "thermargin/engines/what_if.hpp"
 
+#include "thermargin/engines/window.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <set>
@@ -22,18 +24,11 @@ WhatIfFigures figures(const Design& d, const std::vector<double>& temps, CornerM
   const Chain chain(d);
   const WorstCase wc = worst_case(chain, temps, method, false);
   const LinearBudget lb = linear_budget(chain, temps);
+  const WindowMax wc_max = window_max(wc.points, d.requirement), rss_max = window_max(lb.points, d.requirement);
   WhatIfFigures f;
-  for (const auto& p : wc.points) {
-    if (!p.any_ok || p.failed_corners > 0) f.readable = false;
-    if (p.any_ok) f.wc_max_abs = std::max({f.wc_max_abs, std::fabs(p.low), std::fabs(p.high)});
-  }
-  for (const auto& p : lb.points) {
-    if (p.status != Status::ok) {
-      f.readable = false;
-      continue;
-    }
-    f.rss_max_abs = std::max({f.rss_max_abs, std::fabs(p.low), std::fabs(p.high)});
-  }
+  f.wc_max_abs = wc_max.max_abs;
+  f.rss_max_abs = rss_max.max_abs;
+  f.readable = wc_max.readable && rss_max.readable;
   return f;
 }
 

@@ -1,5 +1,7 @@
 #include "thermargin/engines/worst_case.hpp"
 
+#include "thermargin/core/parallel.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <atomic>
@@ -316,12 +318,12 @@ WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures
     // Threads over analog corners, each folding into its own points; min and
     // max are exact, so the merge does not depend on how corners were shared
     // or visited.
-    int threads = d.montecarlo.threads > 0 ? d.montecarlo.threads
-                                           : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+    int threads = resolve_threads(d.montecarlo.threads);
     threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), analog_corners}));
     std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
     std::atomic<long long> next{0};
-    auto work = [&](std::size_t w) {
+    auto work = [&](int worker) {
+      const auto w = static_cast<std::size_t>(worker);
       std::vector<FrontEnd> at_t(nt);
       for (long long a; (a = next.fetch_add(1)) < analog_corners;) {
         Deviations dev{};
@@ -337,10 +339,7 @@ WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures
         }
       }
     };
-    std::vector<std::thread> pool;
-    for (std::size_t w = 1; w < partial.size(); ++w) pool.emplace_back(work, w);
-    work(0);
-    for (auto& th : pool) th.join();
+    run_workers(threads, work);
     for (const auto& part : partial)
       for (std::size_t i = 0; i < nt; ++i) {
         WorstCasePoint& p = wc.points[i];

@@ -1,11 +1,14 @@
 #include "thermargin/tools/grades.hpp"
 
+#include "thermargin/core/parallel.hpp"
+
 #include <algorithm>
 #include <condition_variable>
 #include <cmath>
 #include <cstdio>
 #include <deque>
 #include <exception>
+#include <functional>
 #include <filesystem>
 #include <limits>
 #include <map>
@@ -15,6 +18,7 @@
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/engines/window.hpp"
 #include "thermargin/tools/series.hpp"
 #include "thermargin/input/life.hpp"
 
@@ -22,7 +26,6 @@ namespace thermargin {
 
 namespace {
 
-constexpr double window_slack = 1e-9;  // °C, as budget.cpp decides window membership
 constexpr double equal_cost = 1e-9;    // relative: sums of decimal prices that are the same amount
 
 
@@ -173,47 +176,25 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
   f.requirement = d.requirement;
   f.rtd_class_note = rtd_class_range_note(d);
   const Chain chain(d);
-  std::vector<double> window;
-  for (double t : d.conditions.temperatures())
-    if (t >= d.requirement.window_min - window_slack && t <= d.requirement.window_max + window_slack) window.push_back(t);
+  const std::vector<double> window = window_temperatures(d.requirement, d.conditions.temperatures());
   // The first window temperature an engine cannot read.
-  auto unreadable = [&](Status st, std::size_t i) {
+  auto unreadable = [&](Status st, double t) {
     if (f.status != Status::ok) return;
     f.status = st;
-    f.status_at = window[i];
+    f.status_at = t;
   };
 
   f.wc_max_abs = picked_wc;
   if (!picked_wc) {
-    const WorstCase wc = worst_case(chain, window, options.corners);
-    double m = 0.0;
-    bool ok = true;
-    for (std::size_t i = 0; i < window.size(); ++i) {
-      const WorstCasePoint& p = wc.points[i];
-      if (p.failed_corners > 0 || !p.any_ok) {
-        unreadable(p.failed_corners > 0 ? p.failure : Status::no_solution, i);
-        ok = false;
-      } else {
-        m = std::max(m, std::max(std::fabs(p.low), std::fabs(p.high)));
-      }
-    }
-    if (ok) f.wc_max_abs = m;
+    const WindowMax m = window_max(worst_case(chain, window, options.corners).points, d.requirement);
+    if (m.readable) f.wc_max_abs = m.max_abs;
+    else unreadable(m.failure, m.failure_at);
   }
   f.rss_max_abs = picked_rss;
   if (!picked_rss) {
-    const LinearBudget lb = linear_budget(chain, window);
-    double m = 0.0;
-    bool ok = true;
-    for (std::size_t i = 0; i < window.size(); ++i) {
-      const LinearPoint& l = lb.points[i];
-      if (l.status != Status::ok) {
-        unreadable(l.status, i);
-        ok = false;
-      } else {
-        m = std::max(m, std::max(std::fabs(l.low), std::fabs(l.high)));
-      }
-    }
-    if (ok) f.rss_max_abs = m;
+    const WindowMax m = window_max(linear_budget(chain, window).points, d.requirement);
+    if (m.readable) f.rss_max_abs = m.max_abs;
+    else unreadable(m.failure, m.failure_at);
   }
 
   // Monte Carlo where it can matter (the screening rule in grades.hpp).
@@ -335,6 +316,154 @@ std::string summary_of(const GradesResult& g, const Catalogue& cat, const Scenar
   }
   out += ". The current parts " + std::string(cur.meets_requirement ? "meet the requirement too." : "do not: " + cur.verdict + ".");
   return out;
+}
+
+// Distinct designs: combinations whose settings are the same (a slot that
+// only changes the price) are evaluated once; not with a re-pick, where each
+// combination is its own design. design_of[i] is combination i's design,
+// first_of[j] the first combination of design j.
+void distinct_designs(const Catalogue& cat, bool re_pick, std::vector<std::size_t>& design_of,
+                      std::vector<std::size_t>& first_of) {
+  const std::size_t n = cat.combinations();
+  design_of.assign(n, 0);
+  std::map<std::string, std::size_t> seen;
+  for (std::size_t i = 0; i < n; ++i) {
+    std::string key = std::to_string(i);
+    if (!re_pick) {
+      const auto choice = choice_of(cat, i);
+      std::map<std::string, std::string> settings;
+      for (std::size_t k = 0; k < cat.slots.size(); ++k)
+        for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(choice[k])].settings) settings[st.key] = st.value;
+      key.clear();
+      for (const auto& [k, v] : settings) key += k + '\x1f' + v + '\x1e';
+    }
+    const auto [it, fresh] = seen.emplace(key, first_of.size());
+    if (fresh) first_of.push_back(i);
+    design_of[i] = it->second;
+  }
+}
+
+// The recommendation: the cheapest row (by the ranking cost) that meets the
+// requirement; of rows that cost the same, the first (the more accurate).
+std::optional<std::size_t> cheapest_meeting(const GradesResult& g) {
+  std::optional<std::size_t> best;
+  for (std::size_t i = 0; i < g.rows.size(); ++i) {
+    const GradeRow& r = g.rows[i];
+    if (!r.meets_requirement || !g.ranking_cost(r)) continue;
+    if (!best) {
+      best = i;
+      continue;
+    }
+    const GradeRow& b = g.rows[*best];
+    const double cr = *g.ranking_cost(r), cb = *g.ranking_cost(b);
+    if (cb - cr > equal_cost * std::max(1.0, std::fabs(cb))) best = i;
+  }
+  return best;
+}
+
+// One combination's row: its cost, its figures and the requirement.
+GradeRow make_row(const Catalogue& cat, const GradesOptions& options, std::size_t i, const Figures& f) {
+  GradeRow r;
+  r.index = i;
+  r.choice = choice_of(cat, i);
+  double setup = 0.0;
+  for (std::size_t k = 0; k < cat.slots.size(); ++k) {
+    const auto& o = cat.slots[k].options[static_cast<std::size_t>(r.choice[k])];
+    r.unit_cost += o.unit_cost;
+    setup += o.setup_cost;
+  }
+  r.setup_per_unit = options.volume ? setup / *options.volume : 0.0;
+  r.unit_cost += r.setup_per_unit;
+  r.r_fixed = f.r_fixed;
+  r.status = f.status;
+  r.status_at = f.status_at;
+  r.rtd_class_note = f.rtd_class_note;
+  r.wc_max_abs = f.wc_max_abs;
+  r.rss_max_abs = f.rss_max_abs;
+  r.mc_run = f.mc_run;
+  r.mc_skipped = f.mc_skipped;
+  r.mc = f.mc;
+  if (r.mc_run && options.reject_cost) r.cost_per_good_unit = cost_per_good_unit(r.unit_cost, r.mc->yield, *options.reject_cost);
+  switch (options.by) {
+    case ErrorMeasure::worst_case: r.error = r.wc_max_abs; break;
+    case ErrorMeasure::linear: r.error = r.rss_max_abs; break;
+    case ErrorMeasure::monte_carlo:
+      // Bands of the readings that converted would understate the error
+      // where some did not: no figure then.
+      if (r.mc_run && !f.mc_unreadable) r.error = r.mc->max_abs;
+      break;
+  }
+  const Requirement& q = f.requirement;
+  switch (q.basis) {
+    case Requirement::Basis::worst_case: r.within_limit = r.wc_max_abs && *r.wc_max_abs <= q.max_error; break;
+    case Requirement::Basis::linear: r.within_limit = r.rss_max_abs && *r.rss_max_abs <= q.max_error; break;
+    case Requirement::Basis::monte_carlo: r.within_limit = true; break;
+  }
+  r.meets_requirement = r.within_limit && r.mc_run && r.mc->yield >= q.yield &&
+                        (q.basis == Requirement::Basis::monte_carlo || r.status == Status::ok);
+  r.verdict = verdict_of(r, q);
+  return r;
+}
+
+// The scenario's current parts: the grade of each slot whose settings the
+// scenario already has, and the row of that combination.
+void find_current(GradesResult& g, const Catalogue& cat, const Scenario& scenario) {
+  g.current.resize(cat.slots.size());
+  for (std::size_t k = 0; k < cat.slots.size(); ++k)
+    for (std::size_t o = 0; o < cat.slots[k].options.size() && !g.current[k]; ++o) {
+      bool all = true;
+      for (const auto& st : cat.slots[k].options[o].settings) all = all && same_value(st.key, scenario.get(st.key), st.value);
+      if (all) g.current[k] = static_cast<int>(o);
+    }
+  if (std::all_of(g.current.begin(), g.current.end(), [](const auto& c) { return c.has_value(); }))
+    for (std::size_t i = 0; i < g.rows.size(); ++i) {
+      bool same = true;
+      for (std::size_t k = 0; k < cat.slots.size(); ++k) same = same && g.rows[i].choice[k] == *g.current[k];
+      if (same) g.current_row = i;
+    }
+}
+
+// The task scheduler of evaluate_grades: runs task(j) for every task
+// reachable from `ready` on up to `threads` threads (run_workers). A task
+// returns the tasks it makes ready (its children in the re-pick tree);
+// release(j, c) runs for each under the lock before c is queued, so a child
+// starts from what its parent found. `progress` gets the share of the
+// `count` tasks done. Returns each task's exception (none: empty pointers).
+template <class Task, class Release>
+std::vector<std::exception_ptr> run_task_tree(std::deque<std::size_t> ready, std::size_t count, int threads, Task&& task,
+                                              Release&& release, const std::function<void(double)>& progress) {
+  std::vector<std::exception_ptr> errors(count);
+  std::mutex m;
+  std::condition_variable cv;
+  std::size_t running = 0, done = 0;
+  auto work = [&] {
+    std::unique_lock<std::mutex> lock(m);
+    for (;;) {
+      cv.wait(lock, [&] { return !ready.empty() || running == 0; });
+      if (ready.empty()) return;  // nothing queued and nothing running: finished
+      const std::size_t j = ready.front();
+      ready.pop_front();
+      ++running;
+      lock.unlock();
+      std::vector<std::size_t> next;
+      try {
+        next = task(j);
+      } catch (...) {
+        errors[j] = std::current_exception();
+      }
+      lock.lock();
+      --running;
+      for (std::size_t c : next) {
+        release(j, c);
+        ready.push_back(c);
+      }
+      ++done;
+      if (progress) progress(static_cast<double>(done) / static_cast<double>(count));
+      cv.notify_all();
+    }
+  };
+  run_workers(threads, [&](int) { work(); });
+  return errors;
 }
 
 }  // namespace
@@ -497,25 +626,9 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
   // that only changes the price) are evaluated once. Not with a re-pick,
   // where each combination's search starts from its parent's winner (below).
   const std::size_t n = cat.combinations();
-  std::vector<std::size_t> design_of(n);
+  std::vector<std::size_t> design_of;
   std::vector<std::size_t> first_of;  // combination index of each distinct design
-  {
-    std::map<std::string, std::size_t> seen;
-    for (std::size_t i = 0; i < n; ++i) {
-      std::string key = std::to_string(i);
-      if (!options.re_pick) {
-        const auto choice = choice_of(cat, i);
-        std::map<std::string, std::string> settings;
-        for (std::size_t k = 0; k < cat.slots.size(); ++k)
-          for (const auto& st : cat.slots[k].options[static_cast<std::size_t>(choice[k])].settings) settings[st.key] = st.value;
-        key.clear();
-        for (const auto& [k, v] : settings) key += k + '\x1f' + v + '\x1e';
-      }
-      const auto [it, fresh] = seen.emplace(key, first_of.size());
-      if (fresh) first_of.push_back(i);
-      design_of[i] = it->second;
-    }
-  }
+  distinct_designs(cat, options.re_pick, design_of, first_of);
 
   // The tasks, one per distinct design. Without a re-pick all are ready at
   // once. With one they form a tree over the grid of choices: the parent of
@@ -539,48 +652,20 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
   };
   std::vector<Figures> figures(first_of.size());
   std::vector<std::size_t> anchor(first_of.size(), rp.anchor);
-  std::vector<std::exception_ptr> errors(first_of.size());
   std::deque<std::size_t> ready;
   if (options.re_pick) ready.push_back(0);
   else
     for (std::size_t j = 0; j < first_of.size(); ++j) ready.push_back(j);
-  int threads = options.threads >= 0 ? options.threads : base.montecarlo.threads;
-  if (threads == 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
-  threads = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(std::max(threads, 1)), first_of.size()));
-  std::mutex m;
-  std::condition_variable cv;
-  std::size_t running = 0, done = 0;
-  auto work = [&] {
-    std::unique_lock<std::mutex> lock(m);
-    for (;;) {
-      cv.wait(lock, [&] { return !ready.empty() || running == 0; });
-      if (ready.empty()) return;  // nothing queued and nothing running: finished
-      const std::size_t j = ready.front();
-      ready.pop_front();
-      ++running;
-      lock.unlock();
-      std::vector<std::size_t> next;
-      try {
+  const int threads = static_cast<int>(std::min<std::size_t>(
+      static_cast<std::size_t>(resolve_threads(options.threads >= 0 ? options.threads : base.montecarlo.threads)),
+      first_of.size()));
+  const auto errors = run_task_tree(
+      std::move(ready), first_of.size(), threads,
+      [&](std::size_t j) {
         figures[j] = evaluate_design(combination_scenario(scenario, cat, choice_of(cat, first_of[j])), options, rp, anchor[j]);
-        next = children(first_of[j]);  // with a re-pick, designs are combinations: j == first_of[j]
-      } catch (...) {
-        errors[j] = std::current_exception();
-      }
-      lock.lock();
-      --running;
-      for (std::size_t c : next) {
-        anchor[c] = nearest_index(rp.values, *figures[j].r_fixed);
-        ready.push_back(c);
-      }
-      ++done;
-      if (options.progress) options.progress(static_cast<double>(done) / static_cast<double>(first_of.size()));
-      cv.notify_all();
-    }
-  };
-  std::vector<std::thread> pool;
-  for (int t = 1; t < threads; ++t) pool.emplace_back(work);
-  work();
-  for (auto& t : pool) t.join();
+        return children(first_of[j]);  // with a re-pick, designs are combinations: j == first_of[j]
+      },
+      [&](std::size_t j, std::size_t c) { anchor[c] = nearest_index(rp.values, *figures[j].r_fixed); }, options.progress);
   for (const auto& e : errors)  // the first in catalogue order, whatever the threads did
     if (e) std::rethrow_exception(e);
 
@@ -588,45 +673,7 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
   g.rows.resize(n);
   for (std::size_t i = 0; i < n; ++i) {
     GradeRow& r = g.rows[i];
-    const Figures& f = figures[design_of[i]];
-    r.index = i;
-    r.choice = choice_of(cat, i);
-    double setup = 0.0;
-    for (std::size_t k = 0; k < cat.slots.size(); ++k) {
-      const auto& o = cat.slots[k].options[static_cast<std::size_t>(r.choice[k])];
-      r.unit_cost += o.unit_cost;
-      setup += o.setup_cost;
-    }
-    r.setup_per_unit = options.volume ? setup / *options.volume : 0.0;
-    r.unit_cost += r.setup_per_unit;
-    r.r_fixed = f.r_fixed;
-    r.status = f.status;
-    r.status_at = f.status_at;
-    r.rtd_class_note = f.rtd_class_note;
-    r.wc_max_abs = f.wc_max_abs;
-    r.rss_max_abs = f.rss_max_abs;
-    r.mc_run = f.mc_run;
-    r.mc_skipped = f.mc_skipped;
-    r.mc = f.mc;
-    if (r.mc_run && options.reject_cost) r.cost_per_good_unit = cost_per_good_unit(r.unit_cost, r.mc->yield, *options.reject_cost);
-    switch (options.by) {
-      case ErrorMeasure::worst_case: r.error = r.wc_max_abs; break;
-      case ErrorMeasure::linear: r.error = r.rss_max_abs; break;
-      case ErrorMeasure::monte_carlo:
-        // Bands of the readings that converted would understate the error
-        // where some did not: no figure then.
-        if (r.mc_run && !f.mc_unreadable) r.error = r.mc->max_abs;
-        break;
-    }
-    const Requirement& q = f.requirement;
-    switch (q.basis) {
-      case Requirement::Basis::worst_case: r.within_limit = r.wc_max_abs && *r.wc_max_abs <= q.max_error; break;
-      case Requirement::Basis::linear: r.within_limit = r.rss_max_abs && *r.rss_max_abs <= q.max_error; break;
-      case Requirement::Basis::monte_carlo: r.within_limit = true; break;
-    }
-    r.meets_requirement = r.within_limit && r.mc_run && r.mc->yield >= q.yield &&
-                          (q.basis == Requirement::Basis::monte_carlo || r.status == Status::ok);
-    r.verdict = verdict_of(r, q);
+    r = make_row(cat, options, i, figures[design_of[i]]);
     if (r.mc_run) ++g.mc_full;
     else if (r.mc) ++g.mc_pilot_only;
   }
@@ -651,32 +698,9 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
     if (on[i]) g.front.push_back(i);
   }
 
-  for (std::size_t i = 0; i < g.rows.size(); ++i) {
-    const GradeRow& r = g.rows[i];
-    if (!r.meets_requirement || !g.ranking_cost(r)) continue;
-    if (!g.recommendation) {
-      g.recommendation = i;
-      continue;
-    }
-    const GradeRow& b = g.rows[*g.recommendation];
-    const double cr = *g.ranking_cost(r), cb = *g.ranking_cost(b);
-    if (cb - cr > equal_cost * std::max(1.0, std::fabs(cb))) g.recommendation = i;
-  }
+  g.recommendation = cheapest_meeting(g);
 
-  // The scenario's current parts.
-  g.current.resize(cat.slots.size());
-  for (std::size_t k = 0; k < cat.slots.size(); ++k)
-    for (std::size_t o = 0; o < cat.slots[k].options.size() && !g.current[k]; ++o) {
-      bool all = true;
-      for (const auto& st : cat.slots[k].options[o].settings) all = all && same_value(st.key, scenario.get(st.key), st.value);
-      if (all) g.current[k] = static_cast<int>(o);
-    }
-  if (std::all_of(g.current.begin(), g.current.end(), [](const auto& c) { return c.has_value(); }))
-    for (std::size_t i = 0; i < g.rows.size(); ++i) {
-      bool same = true;
-      for (std::size_t k = 0; k < cat.slots.size(); ++k) same = same && g.rows[i].choice[k] == *g.current[k];
-      if (same) g.current_row = i;
-    }
+  find_current(g, cat, scenario);
   if (g.recommendation && g.current_row) {
     const GradeRow& rec = g.rows[*g.recommendation];
     const GradeRow& cur = g.rows[*g.current_row];

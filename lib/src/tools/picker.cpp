@@ -1,5 +1,7 @@
 #include "thermargin/tools/picker.hpp"
 
+#include "thermargin/core/parallel.hpp"
+
 #include <algorithm>
 #include <atomic>
 #include <cmath>
@@ -46,7 +48,6 @@ constexpr double brent_penalty = 1e30;
 constexpr std::size_t probe_count = 3;
 // Candidates of the reduced pair search refined around this many pairs.
 constexpr std::size_t pair_refine_count = 3;
-constexpr double window_slack = 1e-9;  // °C, as budget.cpp decides window membership
 
 
 std::string number_text(double v) {
@@ -56,33 +57,6 @@ std::string number_text(double v) {
 }
 
 std::string ohms(double v) { return format_quantity(v, Quantity::resistance, 4); }
-
-template <class F>
-void parallel_for(std::size_t n, int threads, F&& f) {
-  const std::size_t workers = std::min<std::size_t>(n, static_cast<std::size_t>(std::max(threads, 1)));
-  if (workers <= 1) {
-    for (std::size_t i = 0; i < n; ++i) f(i);
-    return;
-  }
-  std::atomic<std::size_t> next{0};
-  std::exception_ptr error;
-  std::mutex error_mutex;
-  auto work = [&] {
-    for (std::size_t i; (i = next.fetch_add(1)) < n;) {
-      try {
-        f(i);
-      } catch (...) {
-        const std::lock_guard<std::mutex> lock(error_mutex);
-        if (!error) error = std::current_exception();
-      }
-    }
-  };
-  std::vector<std::thread> pool;
-  for (std::size_t w = 1; w < workers; ++w) pool.emplace_back(work);
-  work();
-  for (auto& t : pool) t.join();
-  if (error) std::rethrow_exception(error);
-}
 
 struct Candidate {
   double r_fixed = 0.0;
@@ -727,10 +701,9 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
   ctx.design = build_design(ctx.base);
   const Design& d = ctx.design;
   ctx.range = d.conditions.temperatures();
-  for (double t : ctx.range)
-    if (t >= d.requirement.window_min - window_slack && t <= d.requirement.window_max + window_slack) ctx.window.push_back(t);
+  ctx.window = window_temperatures(d.requirement, ctx.range);
   int threads = options.threads >= 0 ? options.threads : given_threads;
-  if (threads == 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  threads = resolve_threads(threads);
   ctx.threads = threads;
   ctx.mc_objective_units = default_units(d, options.mc_units, mc_objective_cap);
   ctx.mc_verify_units = default_units(d, options.mc_units, mc_verify_cap);
@@ -896,6 +869,138 @@ std::size_t best_exact(const std::vector<State>& st) {
   return best;
 }
 
+// The candidates screened and settled: every value (or every pair, up to
+// full_pair_search_limit values), or the reduced pair search (E12 pairs
+// first, then the neighbourhoods of the best few). Counts what was
+// evaluated in full into `result`.
+std::vector<State> search_candidates(const Context& ctx, std::size_t wanted, const std::function<void(double)>& screen_progress,
+                                     PickResult& result) {
+  std::vector<State> st;
+  if (!ctx.pair) {
+    std::vector<Candidate> cands;
+    for (double v : ctx.values) cands.push_back({v, ctx.design.divider.r_parallel});
+    st = screen_all(cands, ctx, screen_progress, cands.size());
+    result.evaluated_in_full = settle(st, wanted, false, ctx);
+  } else if (ctx.values.size() <= full_pair_search_limit) {
+    std::vector<Candidate> cands;
+    for (double rf : ctx.values) {
+      cands.push_back({rf, std::nullopt});
+      for (double rp : ctx.values) cands.push_back({rf, rp});
+    }
+    st = screen_all(cands, ctx, screen_progress, cands.size());
+    result.evaluated_in_full = settle(st, wanted, false, ctx);
+  } else {
+    result.reduced_pair_search = true;
+    std::vector<double> coarse;
+    for (double v : ctx.values)
+      if (const auto s = coarsest_series(v); s && *s == Series::e12) coarse.push_back(v);
+    if (coarse.size() < 2) coarse = {ctx.values.front(), ctx.values.back()};
+    const std::vector<Candidate> first = coarse_pairs(coarse);
+    st = screen_all(first, ctx, screen_progress, 2 * first.size());
+    result.evaluated_in_full = settle(st, pair_refine_count, false, ctx);
+    std::vector<std::size_t> idx;
+    for (std::size_t i = 0; i < st.size(); ++i)
+      if (st[i].exact) idx.push_back(i);
+    std::sort(idx.begin(), idx.end(), [&](std::size_t a, std::size_t b) { return exact_key(st[a], false) < exact_key(st[b], false); });
+    std::set<Candidate> seen(first.begin(), first.end());
+    std::vector<Candidate> refine;
+    for (std::size_t k = 0; k < std::min(pair_refine_count, idx.size()); ++k) {
+      const Candidate& best = st[idx[k]].c;
+      const std::vector<double> rfs = around(ctx.values, coarse, best.r_fixed);
+      // "none" sits beyond the largest value: its neighbours are the top of the list.
+      std::vector<double> rps = best.r_parallel ? around(ctx.values, coarse, *best.r_parallel)
+                                                : around(ctx.values, coarse, ctx.values.back());
+      std::vector<std::optional<double>> parallels(rps.begin(), rps.end());
+      if (!best.r_parallel) parallels.push_back(std::nullopt);
+      for (double rf : rfs)
+        for (const auto& rp : parallels) {
+          const Candidate c{rf, rp};
+          if (seen.insert(c).second) refine.push_back(c);
+        }
+    }
+    std::vector<State> more = screen_all(refine, ctx, nullptr, refine.size());
+    for (auto& s : more) st.push_back(std::move(s));
+    result.evaluated_in_full += settle(st, wanted, false, ctx);
+  }
+  return st;
+}
+
+// The analytic guidance beside the ranking: the continuous optimum (Brent
+// on ln R between the best candidate's neighbours), the largest sensitivity
+// at the window centre and the three-point linearisation, each with its
+// series neighbours and their objective values.
+void add_guidance(PickResult& result, std::vector<State>& st, const std::vector<std::size_t>& idx, const Context& ctx) {
+  const PickOptions& o = ctx.options;
+  Guidance& g = result.guidance;
+  const Design& d = ctx.design;
+  const std::optional<double> rp = st[idx[0]].c.r_parallel;
+  Design at_rp = d;
+  at_rp.divider.r_parallel = rp;
+  g.t_centre = 0.5 * (d.requirement.window_min + d.requirement.window_max);
+  g.max_sensitivity.r = nominal_branch_resistance(at_rp, g.t_centre);
+  const auto r1 = nominal_branch_resistance(at_rp, d.requirement.window_min);
+  const auto r3 = nominal_branch_resistance(at_rp, d.requirement.window_max);
+  if (r1 && g.max_sensitivity.r && r3) g.linearising.r = linearising_resistor(*r1, *g.max_sensitivity.r, *r3);
+
+  // The best candidate by the objective alone, and Brent between its
+  // neighbours (with the same parallel resistor).
+  result.evaluated_in_full += settle(st, 1, true, ctx);
+  std::size_t best = idx[0];
+  for (std::size_t i = 0; i < st.size(); ++i)
+    if (st[i].exact && exact_key(st[i], true) < exact_key(st[best], true)) best = i;
+  const Candidate& bc = st[best].c;
+  if (std::isfinite(st[best].score)) {
+    std::vector<double> line;
+    for (const auto& s : st)
+      if (s.c.r_parallel == bc.r_parallel) line.push_back(s.c.r_fixed);
+    std::sort(line.begin(), line.end());
+    const auto it = std::lower_bound(line.begin(), line.end(), bc.r_fixed);
+    double lo = it == line.begin() ? (o.values.empty() ? o.range_low : bc.r_fixed) : *(it - 1);
+    double hi = it + 1 == line.end() ? (o.values.empty() ? o.range_high : bc.r_fixed) : *(it + 1);
+    if (hi > lo) {
+      int evaluations = 0;
+      auto f = [&](double x) {
+        ++evaluations;
+        const Scored s = score_candidate(ctx, {std::exp(x), bc.r_parallel});
+        return std::isfinite(s.score) ? s.score : brent_penalty;
+      };
+      std::uintmax_t iterations = brent_max_iterations;
+      const auto [x, fx] = boost::math::tools::brent_find_minima(f, std::log(lo), std::log(hi), brent_bits, iterations);
+      g.evaluations = evaluations;
+      if (fx < brent_penalty) {
+        g.optimum.r = std::exp(x);
+        g.optimum.objective = maximised(o.objective) ? -fx : fx;
+      }
+    }
+  }
+  // Neighbours of each guidance value, with their objective values (from
+  // the ranking where it evaluated them, else evaluated here).
+  std::map<Candidate, std::optional<double>> known;
+  for (const auto& s : st)
+    if (s.exact) known[s.c] = std::isfinite(s.score) ? std::optional<double>(s.row.objective) : std::nullopt;
+  std::vector<std::pair<GuidanceValue*, bool>> values{{&g.optimum, true}, {&g.max_sensitivity, false}, {&g.linearising, false}};
+  std::vector<Candidate> missing;
+  for (auto& [gv, with_objective] : values) {
+    if (!gv->r) continue;
+    std::tie(gv->below, gv->above) = neighbours(ctx, *gv->r);
+    for (const auto& n : {gv->below, gv->above})
+      if (n && !known.count({*n, bc.r_parallel})) missing.push_back({*n, bc.r_parallel});
+  }
+  std::sort(missing.begin(), missing.end());
+  missing.erase(std::unique(missing.begin(), missing.end(),
+                            [](const Candidate& a, const Candidate& b) { return !(a < b) && !(b < a); }),
+                missing.end());
+  std::vector<Scored> scored(missing.size());
+  // One candidate at a time with every thread on its temperatures.
+  for (std::size_t i = 0; i < missing.size(); ++i) scored[i] = score_candidate(ctx, missing[i]);
+  for (std::size_t i = 0; i < missing.size(); ++i)
+    known[missing[i]] = std::isfinite(scored[i].score) ? std::optional<double>(scored[i].value) : std::nullopt;
+  for (auto& [gv, with_objective] : values) {
+    if (gv->below) gv->below_objective = known[{*gv->below, bc.r_parallel}];
+    if (gv->above) gv->above_objective = known[{*gv->above, bc.r_parallel}];
+  }
+}
+
 }  // namespace
 
 std::string_view to_string(Objective o) {
@@ -952,53 +1057,7 @@ PickResult pick(const Scenario& scenario, const PickOptions& options) {
   std::function<void(double)> screen_progress;
   if (o.progress) screen_progress = [&](double f) { o.progress(0.8 * std::min(f, 1.0)); };
 
-  std::vector<State> st;
-  if (!ctx.pair) {
-    std::vector<Candidate> cands;
-    for (double v : ctx.values) cands.push_back({v, ctx.design.divider.r_parallel});
-    st = screen_all(cands, ctx, screen_progress, cands.size());
-    result.evaluated_in_full = settle(st, wanted, false, ctx);
-  } else if (ctx.values.size() <= full_pair_search_limit) {
-    std::vector<Candidate> cands;
-    for (double rf : ctx.values) {
-      cands.push_back({rf, std::nullopt});
-      for (double rp : ctx.values) cands.push_back({rf, rp});
-    }
-    st = screen_all(cands, ctx, screen_progress, cands.size());
-    result.evaluated_in_full = settle(st, wanted, false, ctx);
-  } else {
-    result.reduced_pair_search = true;
-    std::vector<double> coarse;
-    for (double v : ctx.values)
-      if (const auto s = coarsest_series(v); s && *s == Series::e12) coarse.push_back(v);
-    if (coarse.size() < 2) coarse = {ctx.values.front(), ctx.values.back()};
-    const std::vector<Candidate> first = coarse_pairs(coarse);
-    st = screen_all(first, ctx, screen_progress, 2 * first.size());
-    result.evaluated_in_full = settle(st, pair_refine_count, false, ctx);
-    std::vector<std::size_t> idx;
-    for (std::size_t i = 0; i < st.size(); ++i)
-      if (st[i].exact) idx.push_back(i);
-    std::sort(idx.begin(), idx.end(), [&](std::size_t a, std::size_t b) { return exact_key(st[a], false) < exact_key(st[b], false); });
-    std::set<Candidate> seen(first.begin(), first.end());
-    std::vector<Candidate> refine;
-    for (std::size_t k = 0; k < std::min(pair_refine_count, idx.size()); ++k) {
-      const Candidate& best = st[idx[k]].c;
-      const std::vector<double> rfs = around(ctx.values, coarse, best.r_fixed);
-      // "none" sits beyond the largest value: its neighbours are the top of the list.
-      std::vector<double> rps = best.r_parallel ? around(ctx.values, coarse, *best.r_parallel)
-                                                : around(ctx.values, coarse, ctx.values.back());
-      std::vector<std::optional<double>> parallels(rps.begin(), rps.end());
-      if (!best.r_parallel) parallels.push_back(std::nullopt);
-      for (double rf : rfs)
-        for (const auto& rp : parallels) {
-          const Candidate c{rf, rp};
-          if (seen.insert(c).second) refine.push_back(c);
-        }
-    }
-    std::vector<State> more = screen_all(refine, ctx, nullptr, refine.size());
-    for (auto& s : more) st.push_back(std::move(s));
-    result.evaluated_in_full += settle(st, wanted, false, ctx);
-  }
+  std::vector<State> st = search_candidates(ctx, wanted, screen_progress, result);
   result.candidates = st.size();
 
   // The ranking: feasible first by objective, then the rejected ones.
@@ -1024,76 +1083,7 @@ PickResult pick(const Scenario& scenario, const PickOptions& options) {
   }
   result.rows.resize(shown);
 
-  if (o.guidance && !idx.empty()) {
-    Guidance& g = result.guidance;
-    const Design& d = ctx.design;
-    const std::optional<double> rp = st[idx[0]].c.r_parallel;
-    Design at_rp = d;
-    at_rp.divider.r_parallel = rp;
-    g.t_centre = 0.5 * (d.requirement.window_min + d.requirement.window_max);
-    g.max_sensitivity.r = nominal_branch_resistance(at_rp, g.t_centre);
-    const auto r1 = nominal_branch_resistance(at_rp, d.requirement.window_min);
-    const auto r3 = nominal_branch_resistance(at_rp, d.requirement.window_max);
-    if (r1 && g.max_sensitivity.r && r3) g.linearising.r = linearising_resistor(*r1, *g.max_sensitivity.r, *r3);
-
-    // The best candidate by the objective alone, and Brent between its
-    // neighbours (with the same parallel resistor).
-    result.evaluated_in_full += settle(st, 1, true, ctx);
-    std::size_t best = idx[0];
-    for (std::size_t i = 0; i < st.size(); ++i)
-      if (st[i].exact && exact_key(st[i], true) < exact_key(st[best], true)) best = i;
-    const Candidate& bc = st[best].c;
-    if (std::isfinite(st[best].score)) {
-      std::vector<double> line;
-      for (const auto& s : st)
-        if (s.c.r_parallel == bc.r_parallel) line.push_back(s.c.r_fixed);
-      std::sort(line.begin(), line.end());
-      const auto it = std::lower_bound(line.begin(), line.end(), bc.r_fixed);
-      double lo = it == line.begin() ? (o.values.empty() ? o.range_low : bc.r_fixed) : *(it - 1);
-      double hi = it + 1 == line.end() ? (o.values.empty() ? o.range_high : bc.r_fixed) : *(it + 1);
-      if (hi > lo) {
-        int evaluations = 0;
-        auto f = [&](double x) {
-          ++evaluations;
-          const Scored s = score_candidate(ctx, {std::exp(x), bc.r_parallel});
-          return std::isfinite(s.score) ? s.score : brent_penalty;
-        };
-        std::uintmax_t iterations = brent_max_iterations;
-        const auto [x, fx] = boost::math::tools::brent_find_minima(f, std::log(lo), std::log(hi), brent_bits, iterations);
-        g.evaluations = evaluations;
-        if (fx < brent_penalty) {
-          g.optimum.r = std::exp(x);
-          g.optimum.objective = maximised(o.objective) ? -fx : fx;
-        }
-      }
-    }
-    // Neighbours of each guidance value, with their objective values (from
-    // the ranking where it evaluated them, else evaluated here).
-    std::map<Candidate, std::optional<double>> known;
-    for (const auto& s : st)
-      if (s.exact) known[s.c] = std::isfinite(s.score) ? std::optional<double>(s.row.objective) : std::nullopt;
-    std::vector<std::pair<GuidanceValue*, bool>> values{{&g.optimum, true}, {&g.max_sensitivity, false}, {&g.linearising, false}};
-    std::vector<Candidate> missing;
-    for (auto& [gv, with_objective] : values) {
-      if (!gv->r) continue;
-      std::tie(gv->below, gv->above) = neighbours(ctx, *gv->r);
-      for (const auto& n : {gv->below, gv->above})
-        if (n && !known.count({*n, bc.r_parallel})) missing.push_back({*n, bc.r_parallel});
-    }
-    std::sort(missing.begin(), missing.end());
-    missing.erase(std::unique(missing.begin(), missing.end(),
-                              [](const Candidate& a, const Candidate& b) { return !(a < b) && !(b < a); }),
-                  missing.end());
-    std::vector<Scored> scored(missing.size());
-    // One candidate at a time with every thread on its temperatures.
-    for (std::size_t i = 0; i < missing.size(); ++i) scored[i] = score_candidate(ctx, missing[i]);
-    for (std::size_t i = 0; i < missing.size(); ++i)
-      known[missing[i]] = std::isfinite(scored[i].score) ? std::optional<double>(scored[i].value) : std::nullopt;
-    for (auto& [gv, with_objective] : values) {
-      if (gv->below) gv->below_objective = known[{*gv->below, bc.r_parallel}];
-      if (gv->above) gv->above_objective = known[{*gv->above, bc.r_parallel}];
-    }
-  }
+  if (o.guidance && !idx.empty()) add_guidance(result, st, idx, ctx);
   if (o.progress) o.progress(1.0);
   return result;
 }
@@ -1192,74 +1182,6 @@ std::optional<double> objective_at(const Scenario& scenario, const PickOptions& 
   const Scored s = score_candidate(ctx, {r_fixed, ctx.design.divider.r_parallel});
   if (!std::isfinite(s.score)) return std::nullopt;
   return s.value;
-}
-
-// --- Command-line readers -------------------------------------------------
-
-ResistanceRange parse_range(std::string_view text, const Where& where) {
-  const auto dots = text.find("..");
-  if (dots == std::string_view::npos)
-    reject(where, text, "must be LOW..HIGH in ohms, engineering notation (e.g. 1k..1M)");
-  ResistanceRange r;
-  r.low = parse_quantity(text.substr(0, dots), Quantity::resistance, where);
-  r.high = parse_quantity(text.substr(dots + 2), Quantity::resistance, where);
-  if (!(r.low > 0.0 && r.high > r.low)) reject(where, text, "must be LOW..HIGH with 0 < LOW < HIGH (e.g. 1k..1M)");
-  return r;
-}
-
-std::vector<double> parse_values(std::string_view text, const Where& where) {
-  std::vector<double> out;
-  std::size_t start = 0;
-  for (;;) {
-    const auto comma = text.find(',', start);
-    const std::string_view item = text.substr(start, comma == std::string_view::npos ? std::string_view::npos : comma - start);
-    const double v = parse_quantity(item, Quantity::resistance, where);
-    if (!(v > 0.0)) reject(where, text, "every value must be a resistance > 0 (e.g. 4k7,10k,22k)");
-    out.push_back(v);
-    if (comma == std::string_view::npos) break;
-    start = comma + 1;
-  }
-  return out;
-}
-
-Series parse_series(std::string_view text, const Where& where) {
-  const auto s = series_from_name(text);
-  if (!s) reject(where, text, "must be one of: " + std::string(series_names()));
-  return *s;
-}
-
-Objective parse_objective(std::string_view text, const Where& where) {
-  const auto o = objective_from_name(text);
-  if (!o) reject(where, text, "must be one of: " + std::string(objective_names()));
-  return *o;
-}
-
-Grade parse_grade(std::string_view text, const Where& where) {
-  Grade g;
-  const auto comma = text.find(',');
-  g.series = text.substr(0, comma) == "series";
-  if (!g.series) {
-    try {
-      g.tolerance = parse_quantity(text.substr(0, comma), Quantity::ratio, where);
-    } catch (const input_error&) {
-      reject(where, text, "expected a fraction such as 0.1% (then optionally a tempco: 0.1%,25ppm), or 'series' for the "
-                          "tolerance IEC 60063 pairs with the series (series,25ppm)");
-    }
-  }
-  if (!(g.tolerance >= 0.0 && g.tolerance < 1.0))
-    reject(where, text, "the tolerance must be from 0 up to (not including) 100 % (e.g. 0.1% or 0.1%,25ppm)");
-  if (comma != std::string_view::npos) {
-    g.tempco = parse_quantity(text.substr(comma + 1), Quantity::tempco, where);
-    if (!(*g.tempco >= 0.0 && *g.tempco < 0.01))
-      reject(where, text, "the tempco must be from 0 up to (not including) 10000 ppm/K (e.g. 0.1%,25ppm)");
-  }
-  return g;
-}
-
-double parse_limit(std::string_view text, Quantity q, const Where& where) {
-  const double v = parse_quantity(text, q, where);
-  if (!(v > 0.0)) reject(where, text, "must be > 0");
-  return v;
 }
 
 }  // namespace thermargin

@@ -177,4 +177,21 @@ struct Design {
   double adc_span() const { return static_cast<double>(std::uint64_t{1} << adc.bits); }
 };
 
+// The requirement window's test, written once for every engine and tool:
+// a temperature of the analysed range is in the window when it lies between
+// its edges, with 1e-9 °C of slack so that a range step landing on an edge
+// in floating point counts as on it.
+inline bool in_requirement_window(const Requirement& q, double t) {
+  constexpr double slack = 1e-9;  // °C
+  return t >= q.window_min - slack && t <= q.window_max + slack;
+}
+
+// The temperatures of `range` inside the requirement window, in order.
+inline std::vector<double> window_temperatures(const Requirement& q, const std::vector<double>& range) {
+  std::vector<double> out;
+  for (double t : range)
+    if (in_requirement_window(q, t)) out.push_back(t);
+  return out;
+}
+
 }  // namespace thermargin
