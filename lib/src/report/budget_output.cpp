@@ -51,6 +51,69 @@ nlohmann::json what_if_json(const Design& d, const WhatIf& w) {
   return j;
 }
 
+// One temperature of the budget: the nominal chain, each engine's band and
+// the contributor table there.
+nlohmann::json point_json(const BudgetPoint& p, const Design& d) {
+  nlohmann::json r{{"t", p.t}, {"in_window", p.in_window}};
+  if (!point_ok(p)) {
+    r["status"] = std::string(to_string(p.nominal.status));
+    if (p.nominal.status == Status::saturated) r["saturated"] = true;
+    return r;
+  }
+  r["v_node"] = p.nominal.v_node;
+  r["code"] = p.nominal.code;
+  r["sensitivity"] = p.nominal.sensitivity;
+  r["mv_per_k"] = p.nominal.mv_per_k;
+  r["lsb_in_k"] = num(p.nominal.lsb_in_k);
+  r["self_heating"] = p.nominal.self_heating;
+  r["nominal"] = p.nominal.error;
+  if (p.wc.any_ok) {
+    r["wc_low"] = p.wc.low;
+    r["wc_high"] = p.wc.high;
+  }
+  if (p.wc.failed_corners > 0) {
+    r["wc_failed_corners"] = p.wc.failed_corners;
+    r["wc_failure"] = std::string(to_string(p.wc.failure));
+  }
+  if (p.linear.status == Status::ok) {
+    r["rss_low"] = p.linear.low;
+    r["rss_high"] = p.linear.high;
+    r["u_c"] = p.linear.u_c;
+    nlohmann::json contributions = nlohmann::json::object();
+    for (const auto& t : p.linear.terms) contributions[t.name] = t.contribution;
+    r["contributions"] = contributions;
+    // Each row's part of u_c² in K²: (c·u)² plus its second-order terms;
+    // the pair rows' whole term (docs/engines.md).
+    nlohmann::json variances = nlohmann::json::object();
+    for (const auto& t : p.linear.terms) variances[t.name] = t.variance();
+    for (const auto& t : p.linear.pairs) variances[t.name] = t.variance();
+    r["variances"] = variances;
+    // The contributor table at this temperature: share of u_c² and the
+    // source's own worst-case half-width, largest share first.
+    nlohmann::json table = nlohmann::json::array();
+    for (const auto& c : p.contributors)
+      table.push_back({{"source", c.name}, {"share", c.share}, {"half_width", c.half_width}});
+    r["contributors"] = table;
+  }
+  if (p.mc) {
+    if (p.mc->valid > 0) {
+      r["mc_low"] = p.mc->low;
+      r["mc_high"] = p.mc->high;
+      r["mc_median"] = p.mc->median;
+      r["mc_mean"] = p.mc->mean;
+      r["mc_stddev"] = p.mc->stddev;
+    }
+    r["mc_saturated_share"] = p.mc->saturated_share();
+    if (p.mc->failed > 0) r["mc_failed"] = p.mc->failed;
+    if (p.linear.status == Status::ok && p.mc->valid > 0)
+      r["linear_validated"] = linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high,
+                                               numerical_tolerance(p.linear.u_c));
+    if (const std::string why = validation_failure_reason(p, d); !why.empty()) r["linear_validation_reason"] = why;
+  }
+  if (!rtd_class_rated_at(d, p.t)) r["rtd_class_extrapolated"] = true;
+  return r;
+}
+
 nlohmann::json to_json(const Design& d, const Budget& b) {
   nlohmann::json j;
   j["command"] = "budget";
@@ -58,67 +121,7 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
   j["units"] = {{"temperature", "degC"}, {"error", "K"}, {"sensitivity", "LSB/K"}, {"self_heating", "K"},
                 {"voltage", "V"}};
   j["points"] = nlohmann::json::array();
-  for (const auto& p : b.points) {
-    nlohmann::json r{{"t", p.t}, {"in_window", p.in_window}};
-    if (!point_ok(p)) {
-      r["status"] = std::string(to_string(p.nominal.status));
-      if (p.nominal.status == Status::saturated) r["saturated"] = true;
-      j["points"].push_back(r);
-      continue;
-    }
-    r["v_node"] = p.nominal.v_node;
-    r["code"] = p.nominal.code;
-    r["sensitivity"] = p.nominal.sensitivity;
-    r["mv_per_k"] = p.nominal.mv_per_k;
-    r["lsb_in_k"] = num(p.nominal.lsb_in_k);
-    r["self_heating"] = p.nominal.self_heating;
-    r["nominal"] = p.nominal.error;
-    if (p.wc.any_ok) {
-      r["wc_low"] = p.wc.low;
-      r["wc_high"] = p.wc.high;
-    }
-    if (p.wc.failed_corners > 0) {
-      r["wc_failed_corners"] = p.wc.failed_corners;
-      r["wc_failure"] = std::string(to_string(p.wc.failure));
-    }
-    if (p.linear.status == Status::ok) {
-      r["rss_low"] = p.linear.low;
-      r["rss_high"] = p.linear.high;
-      r["u_c"] = p.linear.u_c;
-      nlohmann::json contributions = nlohmann::json::object();
-      for (const auto& t : p.linear.terms) contributions[t.name] = t.contribution;
-      r["contributions"] = contributions;
-      // Each row's part of u_c² in K²: (c·u)² plus its second-order terms;
-      // the pair rows' whole term (docs/engines.md).
-      nlohmann::json variances = nlohmann::json::object();
-      for (const auto& t : p.linear.terms) variances[t.name] = t.variance();
-      for (const auto& t : p.linear.pairs) variances[t.name] = t.variance();
-      r["variances"] = variances;
-      // The contributor table at this temperature: share of u_c² and the
-      // source's own worst-case half-width, largest share first.
-      nlohmann::json table = nlohmann::json::array();
-      for (const auto& c : p.contributors)
-        table.push_back({{"source", c.name}, {"share", c.share}, {"half_width", c.half_width}});
-      r["contributors"] = table;
-    }
-    if (p.mc) {
-      if (p.mc->valid > 0) {
-        r["mc_low"] = p.mc->low;
-        r["mc_high"] = p.mc->high;
-        r["mc_median"] = p.mc->median;
-        r["mc_mean"] = p.mc->mean;
-        r["mc_stddev"] = p.mc->stddev;
-      }
-      r["mc_saturated_share"] = p.mc->saturated_share();
-      if (p.mc->failed > 0) r["mc_failed"] = p.mc->failed;
-      if (p.linear.status == Status::ok && p.mc->valid > 0)
-        r["linear_validated"] = linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high,
-                                                 numerical_tolerance(p.linear.u_c));
-      if (const std::string why = validation_failure_reason(p, d); !why.empty()) r["linear_validation_reason"] = why;
-    }
-    if (!rtd_class_rated_at(d, p.t)) r["rtd_class_extrapolated"] = true;
-    j["points"].push_back(r);
-  }
+  for (const auto& p : b.points) j["points"].push_back(point_json(p, d));
   const auto& v = b.verdict;
   nlohmann::json w{{"min", d.requirement.window_min},
                    {"max", d.requirement.window_max},
@@ -274,6 +277,68 @@ std::string what_if_text(const Design& d, const WhatIf& w) {
   return out.str();
 }
 
+// The table per temperature: the nominal chain and every engine's band.
+std::string points_text(const Budget& b) {
+  std::ostringstream out;
+  out << "\nPer temperature (errors in K; LSB/K and mV/K are the ADC sensitivity, 1 LSB its size in K;"
+         " dominant: the largest share of the combined variance there):\n";
+  std::vector<std::string> head{"t (degC)", "node (V)", "code", "LSB/K", "mV/K", "1 LSB (K)", "self-heat", "nominal", "wc low",
+                                "wc high", "lin low", "lin high"};
+  if (b.mc) {
+    head.insert(head.end(), {"mc low", "mc high", "mc median"});
+  }
+  head.push_back("dominant");
+  Table t{.header = head};
+  for (const auto& p : b.points) {
+    std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
+    if (!point_ok(p)) {
+      row.push_back(std::string(describe(p.nominal.status)));
+      t.rows.push_back(row);
+      continue;
+    }
+    row.insert(row.end(), {fixed(p.nominal.v_node, 4), fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.mv_per_k, 3),
+                           fixed(p.nominal.lsb_in_k, 4), fixed(p.nominal.self_heating, 4), fixed(p.nominal.error, 4)});
+    if (p.wc.any_ok && p.wc.failed_corners == 0) row.insert(row.end(), {fixed(p.wc.low, 4), fixed(p.wc.high, 4)});
+    else row.insert(row.end(), {std::string(to_string(p.wc.failure)), ""});
+    if (p.linear.status == Status::ok) row.insert(row.end(), {fixed(p.linear.low, 4), fixed(p.linear.high, 4)});
+    else row.insert(row.end(), {std::string(to_string(p.linear.status)), ""});
+    if (b.mc) {
+      if (p.mc && p.mc->valid > 0) row.insert(row.end(), {fixed(p.mc->low, 4), fixed(p.mc->high, 4), fixed(p.mc->median, 4)});
+      else row.insert(row.end(), {"n/a", "", ""});
+    }
+    row.push_back(p.contributors.empty() ? "" : p.contributors.front().name + " " + pct(p.contributors.front().share, 0));
+    t.rows.push_back(row);
+  }
+  out << render_text(t);
+  out << "(* outside the requirement window)\n";
+  return out.str();
+}
+
+// The contributor table at every temperature (shares in %).
+std::string point_contributors_text(const Design& d, const Budget& b) {
+  std::ostringstream out;
+  // The contributor table at every temperature, one column per source that
+  // counts somewhere in the window, in the window's order.
+  std::vector<const Contributor*> shown;
+  for (const auto& k : b.window_contributors)
+    if (shown_contributor(d, k)) shown.push_back(&k);
+  out << "\nContributors per temperature (share of the combined variance in %; each source's own worst-case "
+         "half-width per temperature is in --format csv and json):\n";
+  std::vector<std::string> chead{"t (degC)"};
+  for (const auto* k : shown) chead.push_back(k->name);
+  Table ct{.header = chead};
+  for (const auto& p : b.points) {
+    std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
+    for (const auto* k : shown) {
+      const Contributor* here = contributor_at(p, k->name);
+      row.push_back(here ? fixed(100.0 * here->share, 1) : "n/a");
+    }
+    ct.rows.push_back(row);
+  }
+  out << render_text(ct);
+  return out.str();
+}
+
 // `response`: the [response] section when the scenario states one (docs/response.md).
 std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const ResponseSettings& response) {
   std::ostringstream out;
@@ -351,57 +416,8 @@ std::string to_text(const Design& d, const Budget& b, const WhatIf& w, const Res
            "negligible, and its half-width, the worst case and Monte Carlo include it.\n";
   out << what_if_text(d, w);
 
-  out << "\nPer temperature (errors in K; LSB/K and mV/K are the ADC sensitivity, 1 LSB its size in K;"
-         " dominant: the largest share of the combined variance there):\n";
-  std::vector<std::string> head{"t (degC)", "node (V)", "code", "LSB/K", "mV/K", "1 LSB (K)", "self-heat", "nominal", "wc low",
-                                "wc high", "lin low", "lin high"};
-  if (b.mc) {
-    head.insert(head.end(), {"mc low", "mc high", "mc median"});
-  }
-  head.push_back("dominant");
-  Table t{.header = head};
-  for (const auto& p : b.points) {
-    std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
-    if (!point_ok(p)) {
-      row.push_back(std::string(describe(p.nominal.status)));
-      t.rows.push_back(row);
-      continue;
-    }
-    row.insert(row.end(), {fixed(p.nominal.v_node, 4), fixed(p.nominal.code, 1), fixed(p.nominal.sensitivity, 2), fixed(p.nominal.mv_per_k, 3),
-                           fixed(p.nominal.lsb_in_k, 4), fixed(p.nominal.self_heating, 4), fixed(p.nominal.error, 4)});
-    if (p.wc.any_ok && p.wc.failed_corners == 0) row.insert(row.end(), {fixed(p.wc.low, 4), fixed(p.wc.high, 4)});
-    else row.insert(row.end(), {std::string(to_string(p.wc.failure)), ""});
-    if (p.linear.status == Status::ok) row.insert(row.end(), {fixed(p.linear.low, 4), fixed(p.linear.high, 4)});
-    else row.insert(row.end(), {std::string(to_string(p.linear.status)), ""});
-    if (b.mc) {
-      if (p.mc && p.mc->valid > 0) row.insert(row.end(), {fixed(p.mc->low, 4), fixed(p.mc->high, 4), fixed(p.mc->median, 4)});
-      else row.insert(row.end(), {"n/a", "", ""});
-    }
-    row.push_back(p.contributors.empty() ? "" : p.contributors.front().name + " " + pct(p.contributors.front().share, 0));
-    t.rows.push_back(row);
-  }
-  out << render_text(t);
-  out << "(* outside the requirement window)\n";
-
-  // The contributor table at every temperature, one column per source that
-  // counts somewhere in the window, in the window's order.
-  std::vector<const Contributor*> shown;
-  for (const auto& k : b.window_contributors)
-    if (shown_contributor(d, k)) shown.push_back(&k);
-  out << "\nContributors per temperature (share of the combined variance in %; each source's own worst-case "
-         "half-width per temperature is in --format csv and json):\n";
-  std::vector<std::string> chead{"t (degC)"};
-  for (const auto* k : shown) chead.push_back(k->name);
-  Table ct{.header = chead};
-  for (const auto& p : b.points) {
-    std::vector<std::string> row{fixed(p.t, 2) + (p.in_window ? "" : "*")};
-    for (const auto* k : shown) {
-      const Contributor* here = contributor_at(p, k->name);
-      row.push_back(here ? fixed(100.0 * here->share, 1) : "n/a");
-    }
-    ct.rows.push_back(row);
-  }
-  out << render_text(ct);
+  out << points_text(b);
+  out << point_contributors_text(d, b);
   out << "(* outside the requirement window; n/a: no linear budget at that temperature)\n\n" << caution << "\n";
   return out.str();
 }
