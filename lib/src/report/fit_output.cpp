@@ -229,29 +229,29 @@ std::string rtd_text(const RtdFit& f, double limit) {
       << "the resistance rises with temperature, so the data are fitted with the Callendar-Van Dusen equation of "
          "IEC 60751 (least squares, "
       << (f.fitted_c ? "R0, A, B and C: the data reach below 0 degC" : "R0, A and B: no data below 0 degC") << ").\n"
-      << "Largest residual " << fixed(f.max_residual, 4) << " K at " << g("%g", f.max_residual_at) << " degC, RMS "
-      << fixed(f.rms_residual, 4) << " K (limit " << g("%g", limit) << " K).\n\n";
+      << "Largest residual " << fixed(f.max_residual, 4) << " K at " << significant(f.max_residual_at, 6) << " degC, RMS "
+      << fixed(f.rms_residual, 4) << " K (limit " << significant(limit, 6) << " K).\n\n";
   Table c{.header = {"coefficient", "value", "uncertainty", "unit", "fitted - IEC 60751"}};
   for (const auto& k : f.coefficients) {
     std::string diff = "-";
-    if (k.name == "a") diff = g("%.4g", f.delta_a);
-    if (k.name == "b") diff = g("%.4g", f.delta_b);
-    if (k.name == "c") diff = g("%.4g", f.delta_c);
-    if (k.name == "r0") diff = g("%.6g", k.value - f.nominal_r0) + " (Pt" + g("%g", f.nominal_r0) + ")";
-    c.rows.push_back({k.name, g("%.10g", k.value), k.uncertainty ? g("%.3g", *k.uncertainty) : "-", k.unit, diff});
+    if (k.name == "a") diff = significant(f.delta_a, 4);
+    if (k.name == "b") diff = significant(f.delta_b, 4);
+    if (k.name == "c") diff = significant(f.delta_c, 4);
+    if (k.name == "r0") diff = significant(k.value - f.nominal_r0, 6) + " (Pt" + significant(f.nominal_r0, 6) + ")";
+    c.rows.push_back({k.name, significant(k.value, 10), k.uncertainty ? significant(*k.uncertainty, 3) : "-", k.unit, diff});
   }
   out << render_text(c);
-  if (f.weighted) out << "chi-squared " << g("%.4g", f.chi_squared) << " on " << f.dof << " degrees of freedom\n";
-  out << "\nAgainst the IEC 60751 curve with R0 = " << g("%g", f.nominal_r0) << " ohm the data deviate by up to "
-      << fixed(f.max_deviation, 4) << " K (at " << g("%g", f.max_deviation_at) << " degC): "
+  if (f.weighted) out << "chi-squared " << significant(f.chi_squared, 4) << " on " << f.dof << " degrees of freedom\n";
+  out << "\nAgainst the IEC 60751 curve with R0 = " << significant(f.nominal_r0, 6) << " ohm the data deviate by up to "
+      << fixed(f.max_deviation, 4) << " K (at " << significant(f.max_deviation_at, 6) << " degC): "
       << (f.met_class ? "within class " + std::string(to_string(*f.met_class)) + " (" +
-                            g("%.0f", 100.0 * f.class_use) + " % of its bound at the worst point)"
+                            fixed(100.0 * f.class_use, 0) + " % of its bound at the worst point)"
                       : std::string("outside every class (AA, A, B, C)"))
       << "; the class's validity range for the construction is not checked here.\n\n";
   out << "Residuals of the Callendar-Van Dusen fit (K):\n";
   Table p{.header = {"line", "t (degC)", "R (ohm)", "window", "residual"}};
   for (const auto& r : f.residuals)
-    p.rows.push_back({std::to_string(r.line), g("%g", r.t_celsius), g("%.7g", r.r_ohm), r.in_window ? "in" : "outside",
+    p.rows.push_back({std::to_string(r.line), significant(r.t_celsius, 6), significant(r.r_ohm, 7), r.in_window ? "in" : "outside",
            fixed(r.residual, 4) + (r.solved ? "" : " (no T)")});
   out << render_text(p);
   out << "\nScenario lines for the Callendar-Van Dusen fit; merge them into your scenario file:\n\n"
@@ -262,9 +262,9 @@ std::string rtd_text(const RtdFit& f, double limit) {
 // A table with limits: the R25 and B tolerances that come closest to them.
 std::string spread_text(const SpreadFit& s) {
   return "TABLE LIMITS: the beta model's spread closest to the table's limit columns is r25_tol = " +
-         g("%.3g", 100.0 * s.r25_tol) + " %, beta_tol = " + g("%.3g", 100.0 * s.beta_tol) +
+         significant(100.0 * s.r25_tol, 3) + " %, beta_tol = " + significant(100.0 * s.beta_tol, 3) +
          " %; it differs from the limits by up to " + fixed(s.max_difference, 3) + " K (at " +
-         g("%g", s.max_difference_at) + " degC; positive: wider than the table). Either describe the sensor by the "
+         significant(s.max_difference_at, 6) + " degC; positive: wider than the table). Either describe the sensor by the "
          "table with its limits (model = table; r25_tol and beta_tol 0) or by a curve with these tolerances.\n\n";
 }
 
