@@ -18,6 +18,7 @@ using std::isnan;
 #include <boost/math/interpolators/pchip.hpp>
 
 #include "thermargin/chain/rt_table.hpp"
+#include "thermargin/chain/rtd.hpp"
 #include "thermargin/core/error.hpp"
 
 namespace thermargin {
@@ -638,16 +639,6 @@ void judge_against_standard(RtdFit& f, const RtData& data, const std::vector<std
 bool rises_with_temperature(const RtData& data) {
   const auto& p = data.points;
   return p.size() >= 2 && (p[1].r_ohm > p[0].r_ohm) == (p[1].t_celsius > p[0].t_celsius);
-}
-
-std::string_view to_string(RtdClass cls) {
-  switch (cls) {
-    case RtdClass::AA: return "AA";
-    case RtdClass::A: return "A";
-    case RtdClass::B: return "B";
-    case RtdClass::C: return "C";
-  }
-  return "";
 }
 
 RtdFit fit_rtd_data(const RtData& data, const FitSettings& settings) {
