@@ -176,12 +176,65 @@ bool uses_self_heating(const json& model) {
 
 struct Counts {
   int points = 0, statuses = 0, nominal = 0, worst_case = 0, linear = 0, contributions = 0, shares = 0, mc = 0;
+  int uncovered_points = 0;  // points of a design whose figures the model does not compute
 };
+
+// What the model does not compute, as it says per design ("not_covered"):
+// printed in the test's output, counted, and held to this list, so that a
+// feature left out is never a silent skip (docs/checks.md, "Not covered").
+const std::set<std::string>& expected_not_covered() {
+  static const std::set<std::string> list = {
+      "mux_sar_high_impedance.ini: the sampled node (adc.c_sample > 0, docs/model.md §14) [points window]",
+      "switched_logger_100k.ini: the sampled node (adc.c_sample > 0, docs/model.md §14) [points window]",
+      "solar_collector_life.ini: drift over life (docs/model.md §11) [window.end_of_life]",
+  };
+  return list;
+}
+
+std::string base_name(const std::string& run_name) { return run_name.substr(0, run_name.find(' ')); }
+
+// The design's not-covered features, "design: feature [figures]", printed.
+std::vector<std::string> not_covered(const Run& run, const json& want) {
+  std::vector<std::string> out;
+  for (const auto& n : want["not_covered"]) {
+    std::string figures;
+    for (const auto& f : n["figures"]) figures += (figures.empty() ? "" : " ") + f.get<std::string>();
+    out.push_back(base_name(run.name) + ": " + n["feature"].get<std::string>() + " [" + figures + "]");
+    std::printf("NOT COVERED by the second opinion: %s (%s)\n", out.back().c_str(), run.name.c_str());
+  }
+  return out;
+}
+
+bool points_not_covered(const json& want) {
+  for (const auto& n : want["not_covered"])
+    for (const auto& f : n["figures"])
+      if (f == "points") return true;
+  return false;
+}
+
+// The model's share of a contributor row; a pair row "a × b" in either order.
+double model_share(const json& want, const std::string& source, std::size_t i) {
+  const auto& shares = want["shares"];
+  if (shares.contains(source)) return shares[source][i].get<double>();
+  const std::string times = " \u00d7 ";
+  const auto at = source.find(times);
+  if (at != std::string::npos) {
+    const std::string swapped = source.substr(at + times.size()) + times + source.substr(0, at);
+    if (shares.contains(swapped)) return shares[swapped][i].get<double>();
+  }
+  ADD_FAILURE() << "the model has no row " << source;
+  return NAN;
+}
 
 void compare_deterministic(const Run& run, const json& got, const json& want, Counts& n) {
   SCOPED_TRACE(run.name);
   const auto& pts = got["points"];
   ASSERT_EQ(pts.size(), want["t"].size());
+  if (points_not_covered(want)) {
+    n.points += static_cast<int>(pts.size());
+    n.uncovered_points += static_cast<int>(pts.size());
+    return;
+  }
   const double nominal_tol = nominal_tolerance + (uses_self_heating(want) ? solver_tolerance : 0.0);
   EXPECT_EQ(got["window"]["wc_corners"].get<long long>(), want["wc_corners"].get<long long>());
   for (std::size_t i = 0; i < pts.size(); ++i) {
@@ -220,12 +273,11 @@ void compare_deterministic(const Run& run, const json& got, const json& want, Co
       ++n.contributions;
     }
     EXPECT_EQ(p["contributions"].size(), names.size()) << p["contributions"].dump();
-    // Each source's share of u_c² (the contributor table), from the model's terms:
-    // with each term within 0.5 % of u_c, a share is within 2 × 0.5 % + (0.5 %)².
-    const double u_c = want["u_c"][i];
+    // Each row's share of u_c² (the contributor table), from the model's rows with
+    // their second-order parts (docs/engines.md): within 2 × 0.5 % + (0.5 %)².
     for (const auto& c : p["contributors"]) {
-      const double term = want["contributions"][c["source"].get<std::string>()][i].get<double>() / u_c;
-      EXPECT_NEAR(c["share"].get<double>(), term * term, 2 * linear_tolerance + linear_tolerance * linear_tolerance)
+      EXPECT_NEAR(c["share"].get<double>(), model_share(want, c["source"], i),
+                  2 * linear_tolerance + linear_tolerance * linear_tolerance)
           << c["source"];
       ++n.shares;
     }
@@ -244,6 +296,10 @@ void expect_within(const json& p, const json& interval, const char* field, int& 
 void compare_monte_carlo(const Run& run, const json& got, const json& want, Counts& n) {
   SCOPED_TRACE(run.name);
   const auto& pts = got["points"];
+  if (points_not_covered(want)) {
+    n.uncovered_points += static_cast<int>(pts.size());
+    return;
+  }
   ASSERT_EQ(pts.size(), want["mc"].size());
   EXPECT_EQ(got["window"]["mc_units"].get<long long>(), run.units);
   for (std::size_t i = 0; i < pts.size(); ++i) {
@@ -260,35 +316,47 @@ TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGenera
   const auto answers = model_answers(runs);
   Counts n;
   int designs = 0;
+  std::set<std::string> uncovered;
   for (std::size_t k = 0; k < runs.size(); ++k) {
     compare_deterministic(runs[k], program(runs[k]), answers[k], n);
+    for (const auto& u : not_covered(runs[k], answers[k])) uncovered.insert(u);
     ++designs;
   }
   EXPECT_EQ(designs, static_cast<int>(design_files().size()));
-  EXPECT_GE(designs, 13);  // 6 scenarios and 7 generated designs
-  // Every point was compared: a value, or the same status.
-  EXPECT_EQ(n.nominal + n.statuses, n.points);
+  EXPECT_GE(designs, 21);  // 13 scenarios and the generated designs
+  // What is not covered is exactly the documented list, nothing more.
+  EXPECT_EQ(uncovered, expected_not_covered());
+  // Every point was compared (a value, or the same status) or is a documented uncovered one.
+  EXPECT_EQ(n.nominal + n.statuses + n.uncovered_points, n.points);
   EXPECT_EQ(n.linear, n.nominal);
   EXPECT_GT(n.worst_case, 0.9 * n.nominal);
   EXPECT_GT(n.contributions, 5 * n.linear);
   EXPECT_EQ(n.shares, n.contributions);
-  std::printf("compared %d points of %d designs: %d nominal, %d worst case, %d linear bands, %d contributions, %d statuses\n",
-              n.points, designs, n.nominal, n.worst_case, n.linear, n.contributions, n.statuses);
+  std::printf("compared %d points of %d designs: %d nominal, %d worst case, %d linear bands, %d contributions, "
+              "%d shares, %d statuses; %d points NOT COVERED (listed above)\n",
+              n.points, designs, n.nominal, n.worst_case, n.linear, n.contributions, n.shares, n.statuses,
+              n.uncovered_points);
 }
 
 TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGeneratedDesign) {
   const auto runs = runs_of(Part::monte_carlo);
   const auto answers = model_answers(runs);
   Counts n;
-  int designs = 0, points = 0;
+  int designs = 0, points = 0, compared_designs = 0;
   for (std::size_t k = 0; k < runs.size(); ++k) {
     const json got = program(runs[k]);
     compare_monte_carlo(runs[k], got, answers[k], n);
+    not_covered(runs[k], answers[k]);
     points += static_cast<int>(got["points"].size());
+    if (!points_not_covered(answers[k])) ++compared_designs;
     ++designs;
   }
   EXPECT_EQ(designs, static_cast<int>(design_files().size()));
-  EXPECT_EQ(n.mc, 4 * points + designs);  // four statistics a point, the yield a design
+  EXPECT_EQ(designs - compared_designs, 2);  // the two sampled-node scenarios (expected_not_covered)
+  // Four statistics a point, the yield a design, of every design the model covers.
+  EXPECT_EQ(n.mc, 4 * (points - n.uncovered_points) + compared_designs);
+  std::printf("Monte Carlo: %d statistics compared; %d points of %d designs NOT COVERED (listed above)\n", n.mc,
+              n.uncovered_points, designs - compared_designs);
 }
 
 TEST(ChainSecondOpinion, MonteCarloOneSourceAtATimeSeesEverySourcesSpread) {
@@ -353,7 +421,7 @@ TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
     ++generated;
     for (const auto& o : answers[k]["options"]) used.insert(o.get<std::string>());
   }
-  EXPECT_EQ(generated, 7);
+  EXPECT_EQ(generated, 9);
   const std::vector<std::string> every = {
       "sensor.model=beta", "sensor.model=steinhart-hart", "sensor.model=table", "sensor.model=rtd",
       "divider.placement=low", "divider.placement=high", "supply.ratiometric=true", "supply.ratiometric=false",
@@ -368,13 +436,17 @@ TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
       "source=dissipation", "source=r_fixed", "source=r_fixed_tempco", "source=r_parallel", "source=v_excitation",
       "source=v_excitation_tempco", "source=v_reference", "source=v_reference_tempco", "source=adc_offset",
       "source=adc_gain", "source=adc_inl", "source=adc_leakage", "source=calibration_1", "source=calibration_2",
-      "source=board_temperature"};
+      "source=board_temperature",
+      // The options merged after the first version of the model (docs/model.md §5, §7, §12, §15, coverage factors).
+      "adc.inl_shape=bound", "firmware.calibration_dissipation", "firmware.drive_compensation", "sensor.table_limits",
+      "coverage_factor=r_fixed", "source=adc_offset_tempco", "source=adc_gain_tempco", "source=r_drive",
+      "source=table_spread"};
   int checked = 0;
   for (const auto& o : every) {
     EXPECT_TRUE(used.count(o)) << o << " is exercised by no design";
     ++checked;
   }
-  EXPECT_EQ(checked, 52);
+  EXPECT_EQ(checked, 61);
 }
 
 }  // namespace
