@@ -166,20 +166,28 @@ def second_order(d, error, slopes, rows, first):
     c_i c_ijj u_i² u_j² in input i's row; an input's own [¼(κ − 1) c_ii² + (κ/3) c_i c_iii] u_i⁴ in its row."""
     src = d.sources
     u = {s.name: standard_uncertainty(s) for s in src}
+    pairs = list(itertools.combinations(src, 2))
+    # Every step in one batch of units (rows) over the temperatures (columns).
+    points = [{s.name: m * u[s.name] / 4.0} for s in src for m in (-2, -1, 1, 2)]
+    points += [{a.name: p * u[a.name] / 4.0, b.name: q * u[b.name] / 4.0}
+               for a, b in pairs for p in (-1, 1) for q in (-1, 1)]
+    names = {n for p in points for n in p}
+    values = error({n: np.array([p.get(n, 0.0) for p in points])[:, None] for n in names})
+    rows_of = iter(values)
     f0 = error({})
     one = {}
     for s in src:
         h = u[s.name] / 4.0
-        f = {m: error({s.name: m * h}) for m in (-2, -1, 1, 2)}
+        f = {m: next(rows_of) for m in (-2, -1, 1, 2)}
         one[s.name] = f
         c_ii = (f[1] - 2.0 * f0 + f[-1]) / h ** 2
         c_iii = (f[2] - 2.0 * f[1] + 2.0 * f[-1] - f[-2]) / (2.0 * h ** 3)
         kappa = kurtosis(s)
         term = (0.25 * (kappa - 1.0) * c_ii ** 2 + kappa / 3.0 * slopes[s.name] * c_iii) * u[s.name] ** 4
         rows[s.name] = rows[s.name] + np.nan_to_num(term)
-    for a, b in itertools.combinations(src, 2):
+    for a, b in pairs:
         hi, hj = u[a.name] / 4.0, u[b.name] / 4.0
-        f = {(p, q): error({a.name: p * hi, b.name: q * hj}) for p in (-1, 1) for q in (-1, 1)}
+        f = {(p, q): next(rows_of) for p in (-1, 1) for q in (-1, 1)}
         c_ij = (f[1, 1] - f[1, -1] - f[-1, 1] + f[-1, -1]) / (4.0 * hi * hj)
         # i's slope bending with x_j, and j's with x_i
         c_ijj = ((f[1, 1] + f[1, -1] - 2.0 * one[a.name][1]) - (f[-1, 1] + f[-1, -1] - 2.0 * one[a.name][-1])) \
