@@ -184,8 +184,6 @@ struct Counts {
 // feature left out is never a silent skip (docs/checks.md, "Not covered").
 const std::set<std::string>& expected_not_covered() {
   static const std::set<std::string> list = {
-      "mux_sar_high_impedance.ini: the sampled node (adc.c_sample > 0, docs/model.md §14) [points window]",
-      "switched_logger_100k.ini: the sampled node (adc.c_sample > 0, docs/model.md §14) [points window]",
       "solar_collector_life.ini: drift over life (docs/model.md §11) [window.end_of_life]",
   };
   return list;
@@ -352,7 +350,7 @@ TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGener
     ++designs;
   }
   EXPECT_EQ(designs, static_cast<int>(design_files().size()));
-  EXPECT_EQ(designs - compared_designs, 2);  // the two sampled-node scenarios (expected_not_covered)
+  EXPECT_EQ(designs - compared_designs, 0);  // none is left out by points (expected_not_covered)
   // Four statistics a point, the yield a design, of every design the model covers.
   EXPECT_EQ(n.mc, 4 * (points - n.uncovered_points) + compared_designs);
   std::printf("Monte Carlo: %d statistics compared; %d points of %d designs NOT COVERED (listed above)\n", n.mc,
@@ -421,7 +419,7 @@ TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
     ++generated;
     for (const auto& o : answers[k]["options"]) used.insert(o.get<std::string>());
   }
-  EXPECT_EQ(generated, 9);
+  EXPECT_EQ(generated, 11);
   const std::vector<std::string> every = {
       "sensor.model=beta", "sensor.model=steinhart-hart", "sensor.model=table", "sensor.model=rtd",
       "divider.placement=low", "divider.placement=high", "supply.ratiometric=true", "supply.ratiometric=false",
@@ -440,13 +438,14 @@ TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
       // The options merged after the first version of the model (docs/model.md §5, §7, §12, §15, coverage factors).
       "adc.inl_shape=bound", "firmware.calibration_dissipation", "firmware.drive_compensation", "sensor.table_limits",
       "coverage_factor=r_fixed", "source=adc_offset_tempco", "source=adc_gain_tempco", "source=r_drive",
-      "source=table_spread"};
+      "source=table_spread", "adc.c_sample", "divider.c_node", "divider.settle_time", "adc.precharge=same",
+      "adc.precharge=any", "adc.precharge=ground", "source=adc_precharge"};
   int checked = 0;
   for (const auto& o : every) {
     EXPECT_TRUE(used.count(o)) << o << " is exercised by no design";
     ++checked;
   }
-  EXPECT_EQ(checked, 61);
+  EXPECT_EQ(checked, 68);
 }
 
 }  // namespace

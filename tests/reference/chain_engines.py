@@ -237,15 +237,20 @@ def sampled_reading(d, rng, x, rounding):
 
 
 def board_draw(d, rng, n):
+    """The inputs drawn per reading: the board temperature in its range, another channel's precharge (§14)."""
+    out = {}
+    if d.acq is not None and d.acq["precharge"] == "any":
+        out["adc_precharge"] = rng.uniform(-0.5, 0.5, n)
     if d.board[0] != "range":
-        return {}
-    return {"board_temperature": rng.uniform(d.board[1], d.board[2], n) - 0.5 * (d.board[1] + d.board[2])}
+        return out
+    out["board_temperature"] = rng.uniform(d.board[1], d.board[2], n) - 0.5 * (d.board[1] + d.board[2])
+    return out
 
 
 def monte_carlo(d, units, seed):
     """Per temperature the valid units' errors; per unit the window's largest |error| (inf if a reading failed)."""
     rng = np.random.default_rng(seed)
-    unit = {s.name: draw(rng, s, units) for s in d.sources if s.name != "board_temperature"}
+    unit = {s.name: draw(rng, s, units) for s in d.sources if s.name not in ("board_temperature", "adc_precharge")}
     cal_ok = np.ones(units, bool)
     reported, reference = [], []
     for i in range(d.n_cal):

@@ -25,6 +25,7 @@ import re
 
 import numpy as np
 from scipy.interpolate import PchipInterpolator
+from scipy.linalg import expm
 
 KELVIN = 273.15
 T0 = 298.15
@@ -39,7 +40,8 @@ STATUS = ["ok", "saturated", "thermal-runaway", "outside-sensor-table", "no-conv
 
 PREFIX = {"p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9, "R": 1.0}
 UNITS = [("ppm/°C", 1e-6), ("ppm/K", 1e-6), ("ppm", 1e-6), ("%", 1e-2), ("W/K", 1.0), ("kohm", None),
-         ("ohm", 1.0), ("Ω", 1.0), ("°C", 1.0), ("V", 1.0), ("A", 1.0), ("s", 1.0)]
+         ("ohm", 1.0), ("Ω", 1.0), ("°C", 1.0), ("V", 1.0), ("A", 1.0), ("kHz", 1e3), ("MHz", 1e6), ("Hz", 1.0),
+         ("F", 1.0), ("s", 1.0)]
 
 
 def number(text):
@@ -316,6 +318,12 @@ class Design:
         self.r_drive, self.drive_comp = num("supply.r_drive"), num("firmware.drive_compensation")
         cal_diss = text("firmware.calibration_dissipation")
         self.cal_diss = None if cal_diss == "sensor" else number(cal_diss)
+        self.acq = None
+        if num("adc.c_sample") > 0:  # the sampled node (§14)
+            settle = text("divider.settle_time")
+            self.acq = {"c_s": num("adc.c_sample"), "c_n": num("divider.c_node"), "r_sw": num("adc.r_switch"),
+                        "t_acq": num("adc.t_acq"), "rate": num("adc.sample_rate"), "precharge": text("adc.precharge"),
+                        "settle": None if settle == "always" else number(settle)}
         self.sources = self._sources(ntc)
         self.firmware = Firmware(self)
 
@@ -337,6 +345,8 @@ class Design:
 
         for name, key, bound in SOURCES:
             add(name, key, bound(self, s, ntc))
+        if self.acq is not None and self.acq["precharge"] == "any":  # uniform over [0, V_ref] (§14)
+            out.append(Source("adc_precharge", "adc.precharge", 0.5, "uniform"))
         if self.board[0] == "range":
             out.append(Source("board_temperature", "conditions.board", 0.5 * (self.board[2] - self.board[1]), "uniform"))
         return out
@@ -454,7 +464,78 @@ def step_divider(d, st, dev):
     st["status"] = np.where((st["status"] == OK) & np.isnan(l), OUT_OF_TABLE, st["status"])
     rb = branch(np.exp(l), d.r_lead, st["r_par"])
     top, bottom = (st["rf"] + st["r_drv"], rb) if d.placement == "low" else (rb + st["r_drv"], st["rf"])
-    st["v_node"] = st["v_exc"] * bottom / (top + bottom) - dev("adc_leakage") * parallel(top, bottom)
+    st["r_th"] = parallel(top, bottom)  # the node's Thevenin resistance (§14)
+    st["v_node"] = st["v_exc"] * bottom / (top + bottom) - dev("adc_leakage") * st["r_th"]
+
+
+def _expm(a, t):
+    """exp(A·t) of a batch of 2×2 matrices (SciPy's expm over the last two axes)."""
+    return expm(a * t)
+
+
+def step_sampled_node(d, st, dev):
+    """The ADC's sampling capacitor on the node (§14): the mean of the M sampled voltages replaces the node's
+    voltage. Deviations from the equilibrium V_th evolve as exp(A t) with the switch closed for t_acq and open
+    for T_s − t_acq; C_n = 0 is the single exponential of RC charging."""
+    a = d.acq
+    if a is None:
+        return
+    v_th, r_th = st["v_node"], st["r_th"] + 0.0 * st["v_node"]
+    pre = a["precharge"]
+    if pre == "any":  # another channel's voltage, uniform over [0, V_ref]: z of bound ½
+        v_start = st["v_ref"] * (0.5 + dev("adc_precharge"))
+    elif pre == "ground":
+        v_start = 0.0 * v_th
+    elif pre == "reference":
+        v_start = st["v_ref"] + 0.0 * v_th
+    elif pre == "same":
+        v_start = None
+    else:
+        v_start = number(pre) + 0.0 * v_th
+    t_acq, t_s, m = a["t_acq"], 1.0 / a["rate"], d.averaging
+    if a["c_n"] == 0.0:
+        e = np.exp(-t_acq / ((r_th + a["r_sw"]) * a["c_s"]))
+        if a["settle"] is None:  # continuous: with `same` the capacitor already holds V_th
+            st["v_node"] = v_th if v_start is None else v_th + (v_start - v_th) * e
+            return
+        prev, total = 0.0 * v_th, 0.0 * v_th  # switched: C_s at 0 V from power-on
+        for _ in range(m):
+            start = prev if v_start is None else v_start
+            prev = v_th + (start - v_th) * e
+            total = total + prev
+        st["v_node"] = total / m
+        return
+    cn, cs, rsw = a["c_n"], a["c_s"], a["r_sw"]
+    shape = np.shape(v_th)
+    closed = np.zeros(shape + (2, 2))
+    closed[..., 0, 0] = -1.0 / (r_th * cn) - 1.0 / (rsw * cn)
+    closed[..., 0, 1] = 1.0 / (rsw * cn)
+    closed[..., 1, 0] = 1.0 / (rsw * cs)
+    closed[..., 1, 1] = -1.0 / (rsw * cs)
+    opened = np.zeros(shape + (2, 2))
+    opened[..., 0, 0] = -1.0 / (r_th * cn)
+    phi_c, phi_o = _expm(closed, t_acq), _expm(opened, t_s - t_acq)
+    if a["settle"] is None:  # the periodic steady state of the one-period map, by a linear solve
+        if v_start is None:
+            st["v_node"] = v_th
+            return
+        ds = v_start - v_th
+        period = phi_o @ phi_c
+        yn = period[..., 0, 1] * ds / (1.0 - period[..., 0, 0])
+        st["v_node"] = v_th + phi_c[..., 1, 0] * yn + phi_c[..., 1, 1] * ds
+        return
+    # Switched divider: C_n (and C_s with `same`) at 0 V at power-on, the node charging for the settle time,
+    # then M samples at T_s.
+    y = np.stack([-v_th, (0.0 * v_th if v_start is None else v_start) - v_th], axis=-1)[..., None]
+    y = _expm(opened, a["settle"]) @ y
+    total = 0.0 * v_th
+    for _ in range(m):
+        if v_start is not None:
+            y[..., 1, 0] = v_start - v_th
+        y = phi_c @ y
+        total = total + v_th + y[..., 1, 0]
+        y = phi_o @ y
+    st["v_node"] = total / m
 
 
 def step_adc(d, st, dev):
@@ -467,7 +548,7 @@ def step_adc(d, st, dev):
                + dev("adc_offset_tempco") * tb + inl)
 
 
-FRONT_END = [step_parts, step_self_heating, step_divider, step_adc]
+FRONT_END = [step_parts, step_self_heating, step_divider, step_sampled_node, step_adc]
 
 
 def front_end(d, t, dev, t_board=None, calibration=False):

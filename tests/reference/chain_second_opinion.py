@@ -62,6 +62,10 @@ def options(d):
         o.append("divider.duty")
     if d.resolution > 0:
         o.append("firmware.resolution")
+    if d.acq is not None:
+        o += ["adc.c_sample", f"adc.precharge={d.acq['precharge'] if d.acq['precharge'] in ('same', 'any', 'ground', 'reference') else 'voltage'}"]
+        o += ["divider.c_node"] if d.acq["c_n"] > 0 else []
+        o += ["divider.settle_time"] if d.acq["settle"] is not None else []
     if d.inl_bound:
         o.append("adc.inl_shape=bound")
     if d.cal_diss is not None:
@@ -73,7 +77,7 @@ def options(d):
     o += [f"coverage_factor={x.name}" for x in d.sources if x.dist in ("normal", "gapped") and x.k != d.sigma_per_tol
           and x.name not in ("calibration_1", "calibration_2")]
     o += [f"source={x.name}" for x in d.sources]
-    o += [f"distribution={x.dist}" for x in d.sources if x.name != "board_temperature"]
+    o += [f"distribution={x.dist}" for x in d.sources if x.name not in ("board_temperature", "adc_precharge")]
     return sorted(set(o))
 
 
@@ -85,8 +89,6 @@ def not_covered(d):
     """What of this design the model does not compute, and which of the program's figures that leaves
     uncompared (the test prints and counts them; docs/checks.md lists them)."""
     out = []
-    if d.s.num("adc.c_sample") > 0:
-        out.append({"feature": "the sampled node (adc.c_sample > 0, docs/model.md §14)", "figures": ["points", "window"]})
     if any(d.s.num(k) > 0 for k in DRIFTS):
         out.append({"feature": "drift over life (docs/model.md §11)", "figures": ["window.end_of_life"]})
     return out
