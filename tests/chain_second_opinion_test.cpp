@@ -177,14 +177,31 @@ bool uses_self_heating(const json& model) {
 struct Counts {
   int points = 0, statuses = 0, nominal = 0, worst_case = 0, linear = 0, contributions = 0, shares = 0, mc = 0;
   int uncovered_points = 0;  // points of a design whose figures the model does not compute
+  int end_of_life = 0;       // end-of-life window figures compared
 };
+
+// The end-of-life design's window (docs/model.md §11): its largest worst-case
+// and linear |error| and its number of corners, against the model's own
+// end-of-life design.
+void compare_end_of_life(const json& got, const json& want, Counts& n) {
+  if (!want.contains("end_of_life")) return;
+  ASSERT_TRUE(got["window"].contains("end_of_life"));
+  const json& g = got["window"]["end_of_life"];
+  const json& w = want["end_of_life"];
+  EXPECT_EQ(g["wc_corners"].get<long long>(), w["wc_corners"].get<long long>());
+  EXPECT_NEAR(g["wc_max_abs"].get<double>(), w["wc_max_abs"].get<double>(), worst_case_tolerance);
+  EXPECT_NEAR(g["rss_max_abs"].get<double>(), w["rss_max_abs"].get<double>(),
+              linear_tolerance * w["rss_half_width"].get<double>());
+  n.end_of_life += 3;
+}
 
 // What the model does not compute, as it says per design ("not_covered"):
 // printed in the test's output, counted, and held to this list, so that a
 // feature left out is never a silent skip (docs/checks.md, "Not covered").
 const std::set<std::string>& expected_not_covered() {
   static const std::set<std::string> list = {
-      "solar_collector_life.ini: drift over life (docs/model.md §11) [window.end_of_life]",
+      "solar_collector_life.ini: drift over life (docs/model.md §11), its Monte Carlo [window.end_of_life.yield]",
+      "drift_absolute_supply.ini: drift over life (docs/model.md §11), its Monte Carlo [window.end_of_life.yield]",
   };
   return list;
 }
@@ -235,6 +252,7 @@ void compare_deterministic(const Run& run, const json& got, const json& want, Co
   }
   const double nominal_tol = nominal_tolerance + (uses_self_heating(want) ? solver_tolerance : 0.0);
   EXPECT_EQ(got["window"]["wc_corners"].get<long long>(), want["wc_corners"].get<long long>());
+  compare_end_of_life(got, want, n);
   for (std::size_t i = 0; i < pts.size(); ++i) {
     const json& p = pts[i];
     SCOPED_TRACE("t = " + p["t"].dump());
@@ -324,6 +342,7 @@ TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGenera
   EXPECT_GE(designs, 21);  // 13 scenarios and the generated designs
   // What is not covered is exactly the documented list, nothing more.
   EXPECT_EQ(uncovered, expected_not_covered());
+  EXPECT_EQ(n.end_of_life, 3 * 2);  // the two designs with drifts: corners, worst case, linear
   // Every point was compared (a value, or the same status) or is a documented uncovered one.
   EXPECT_EQ(n.nominal + n.statuses + n.uncovered_points, n.points);
   EXPECT_EQ(n.linear, n.nominal);
@@ -331,9 +350,9 @@ TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGenera
   EXPECT_GT(n.contributions, 5 * n.linear);
   EXPECT_EQ(n.shares, n.contributions);
   std::printf("compared %d points of %d designs: %d nominal, %d worst case, %d linear bands, %d contributions, "
-              "%d shares, %d statuses; %d points NOT COVERED (listed above)\n",
+              "%d shares, %d statuses, %d end-of-life window figures; %d points NOT COVERED (listed above)\n",
               n.points, designs, n.nominal, n.worst_case, n.linear, n.contributions, n.shares, n.statuses,
-              n.uncovered_points);
+              n.end_of_life, n.uncovered_points);
 }
 
 TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGeneratedDesign) {
@@ -419,7 +438,7 @@ TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
     ++generated;
     for (const auto& o : answers[k]["options"]) used.insert(o.get<std::string>());
   }
-  EXPECT_EQ(generated, 11);
+  EXPECT_EQ(generated, 12);
   const std::vector<std::string> every = {
       "sensor.model=beta", "sensor.model=steinhart-hart", "sensor.model=table", "sensor.model=rtd",
       "divider.placement=low", "divider.placement=high", "supply.ratiometric=true", "supply.ratiometric=false",
@@ -439,13 +458,15 @@ TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
       "adc.inl_shape=bound", "firmware.calibration_dissipation", "firmware.drive_compensation", "sensor.table_limits",
       "coverage_factor=r_fixed", "source=adc_offset_tempco", "source=adc_gain_tempco", "source=r_drive",
       "source=table_spread", "adc.c_sample", "divider.c_node", "divider.settle_time", "adc.precharge=same",
-      "adc.precharge=any", "adc.precharge=ground", "source=adc_precharge"};
+      "adc.precharge=any", "adc.precharge=ground", "source=adc_precharge", "drift=sensor.drift",
+      "drift=divider.r_fixed_drift", "drift=supply.v_excitation_drift", "drift=supply.v_reference_drift",
+      "drift=supply.v_reference_hysteresis", "drift=adc.offset_drift", "drift=adc.gain_drift"};
   int checked = 0;
   for (const auto& o : every) {
     EXPECT_TRUE(used.count(o)) << o << " is exercised by no design";
     ++checked;
   }
-  EXPECT_EQ(checked, 68);
+  EXPECT_EQ(checked, 75);
 }
 
 }  // namespace

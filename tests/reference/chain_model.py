@@ -243,6 +243,10 @@ class Sensor:
         return np.where(inside, 1.0 / x, np.nan)
 
     def unit_ln_r(self, T, dev):
+        """One unit's ln R at T, with its drift over life: ln R_unit + ln(1 + δ_drift) (docs/model.md §11)."""
+        return self._unit_ln_r(T, dev) + np.log1p(dev("sensor_drift"))
+
+    def _unit_ln_r(self, T, dev):
         """One unit's ln R at T: the NTC stretch about 25 °C, or the RTD's class shift (docs/model.md §1)."""
         if self.model == "rtd":
             t = np.asarray(T, float) - KELVIN
@@ -269,8 +273,9 @@ class Source:
 
 
 class Design:
-    def __init__(self, path, overrides=()):
+    def __init__(self, path, overrides=(), end_of_life=False):
         s = Scenario(path, overrides)
+        self.end_of_life = end_of_life  # the drift inputs active (docs/model.md §11)
         self.s = s
         self.sensor = Sensor(s)
         num, text = s.num, s.text
@@ -389,6 +394,17 @@ SOURCES = [
     ("adc_offset_tempco", "adc.offset_tempco", lambda d, s, ntc: s.num("adc.offset_tempco") if _tempco_active(d) else 0.0),
     ("adc_gain_tempco", "adc.gain_tempco", lambda d, s, ntc: s.num("adc.gain_tempco") if _tempco_active(d) else 0.0),
     ("r_drive", "supply.r_drive_tol", lambda d, s, ntc: s.num("supply.r_drive_tol") if d.r_drive > 0 else 0.0),
+    # Drift over life, zero at delivery (§11); no effect on a ratiometric supply.
+    ("sensor_drift", "sensor.drift", lambda d, s, ntc: s.num("sensor.drift") if d.end_of_life else 0.0),
+    ("r_fixed_drift", "divider.r_fixed_drift", lambda d, s, ntc: s.num("divider.r_fixed_drift") if d.end_of_life else 0.0),
+    ("v_excitation_drift", "supply.v_excitation_drift",
+     lambda d, s, ntc: s.num("supply.v_excitation_drift") if d.end_of_life and not d.ratiometric else 0.0),
+    ("v_reference_drift", "supply.v_reference_drift",
+     lambda d, s, ntc: s.num("supply.v_reference_drift") if d.end_of_life and not d.ratiometric else 0.0),
+    ("v_reference_hysteresis", "supply.v_reference_hysteresis",
+     lambda d, s, ntc: s.num("supply.v_reference_hysteresis") if d.end_of_life and not d.ratiometric else 0.0),
+    ("adc_offset_drift", "adc.offset_drift", lambda d, s, ntc: s.num("adc.offset_drift") if d.end_of_life else 0.0),
+    ("adc_gain_drift", "adc.gain_drift", lambda d, s, ntc: s.num("adc.gain_drift") if d.end_of_life else 0.0),
     ("table_spread", "sensor.table_file",
      lambda d, s, ntc: 1.0 if d.sensor.model == "table" and d.sensor.limits is not None else 0.0),
     ("calibration_1", "firmware.calibration_uncertainty",
@@ -412,14 +428,16 @@ def branch(r_element, r_lead, r_par):
 def step_parts(d, st, dev):
     """The unit's fixed and parallel resistors and supply at the reading's board temperature (§3, §4)."""
     tb = st["t_board"]
-    st["rf"] = d.rf * (1.0 + dev("r_fixed")) * (1.0 + dev("r_fixed_tempco") * (tb - 25.0))
+    st["rf"] = d.rf * (1.0 + dev("r_fixed")) * (1.0 + dev("r_fixed_drift")) * (1.0 + dev("r_fixed_tempco") * (tb - 25.0))
     st["r_par"] = None if d.r_par is None else d.r_par * (1.0 + dev("r_parallel"))
     st["r_drv"] = d.r_drive * (1.0 + dev("r_drive"))  # in series with the divider's top (§15)
     if d.ratiometric:
         st["v_exc"] = st["v_ref"] = d.v_exc + 0.0 * tb
     else:
-        st["v_exc"] = d.v_exc * (1.0 + dev("v_excitation")) * (1.0 + dev("v_excitation_tempco") * (tb - 25.0))
-        st["v_ref"] = d.v_ref * (1.0 + dev("v_reference")) * (1.0 + dev("v_reference_tempco") * (tb - 25.0))
+        st["v_exc"] = (d.v_exc * (1.0 + dev("v_excitation")) * (1.0 + dev("v_excitation_drift"))
+                       * (1.0 + dev("v_excitation_tempco") * (tb - 25.0)))
+        st["v_ref"] = (d.v_ref * (1.0 + dev("v_reference")) * (1.0 + dev("v_reference_drift"))
+                       * (1.0 + dev("v_reference_hysteresis")) * (1.0 + dev("v_reference_tempco") * (tb - 25.0)))
 
 
 def step_self_heating(d, st, dev):
@@ -544,8 +562,8 @@ def step_adc(d, st, dev):
     u = x / d.span
     tb = st["t_board"] - 25.0
     inl = dev("adc_inl") * (1.0 if d.inl_bound else 4.0 * u * (1.0 - u))  # bound: ± i at every code
-    st["x"] = (x * (1.0 + dev("adc_gain") + dev("adc_gain_tempco") * tb) + dev("adc_offset")
-               + dev("adc_offset_tempco") * tb + inl)
+    st["x"] = (x * (1.0 + dev("adc_gain") + dev("adc_gain_tempco") * tb) * (1.0 + dev("adc_gain_drift"))
+               + dev("adc_offset") + dev("adc_offset_drift") + dev("adc_offset_tempco") * tb + inl)
 
 
 FRONT_END = [step_parts, step_self_heating, step_divider, step_sampled_node, step_adc]

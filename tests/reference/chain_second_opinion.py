@@ -66,6 +66,7 @@ def options(d):
         o += ["adc.c_sample", f"adc.precharge={d.acq['precharge'] if d.acq['precharge'] in ('same', 'any', 'ground', 'reference') else 'voltage'}"]
         o += ["divider.c_node"] if d.acq["c_n"] > 0 else []
         o += ["divider.settle_time"] if d.acq["settle"] is not None else []
+    o += [f"drift={k}" for k in DRIFTS if d.s.num(k) > 0]
     if d.inl_bound:
         o.append("adc.inl_shape=bound")
     if d.cal_diss is not None:
@@ -90,8 +91,22 @@ def not_covered(d):
     uncompared (the test prints and counts them; docs/checks.md lists them)."""
     out = []
     if any(d.s.num(k) > 0 for k in DRIFTS):
-        out.append({"feature": "drift over life (docs/model.md §11)", "figures": ["window.end_of_life"]})
+        out.append({"feature": "drift over life (docs/model.md §11), its Monte Carlo", "figures": ["window.end_of_life.yield"]})
     return out
+
+
+def end_of_life(spec):
+    """The end-of-life design (docs/model.md §11: the drifts added to the active inputs): the window's largest
+    worst-case and linear |error| and the number of corners."""
+    e = Design(spec.get("path"), spec.get("overrides", []), end_of_life=True)
+    inside = (e.t >= e.window[0] - 1e-9) & (e.t <= e.window[1] + 1e-9)
+    wc, lin = worst_case(e), linear_budget(e)
+    worst = np.fmax(np.abs(wc["wc_low"]), np.abs(wc["wc_high"]))[inside]
+    rss = np.fmax(np.abs(lin["rss_low"]), np.abs(lin["rss_high"]))[inside]
+    half = (0.5 * (lin["rss_high"] - lin["rss_low"]))[inside]
+    k = int(np.nanargmax(rss))
+    return {"wc_max_abs": np.nanmax(worst), "rss_max_abs": rss[k], "rss_half_width": half[k],
+            "wc_corners": wc["wc_corners"]}
 
 
 def run(spec, n1, n2, seed):
@@ -103,6 +118,8 @@ def run(spec, n1, n2, seed):
         out.update(nominal(d))
         out.update(worst_case(d))
         out.update(linear_budget(d))
+    if spec.get("deterministic", True) and any(d.s.num(k) > 0 for k in DRIFTS):
+        out["end_of_life"] = end_of_life(spec)
     if d.conversion == "table":  # the firmware's lookup table as docs/model.md §6 builds it
         out["table"] = {"codes": d.firmware.codes, "stored": d.firmware.stored}
     if spec.get("mc"):
