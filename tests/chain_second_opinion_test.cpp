@@ -348,7 +348,7 @@ TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGenera
   EXPECT_EQ(n.linear, n.nominal);
   EXPECT_GT(n.worst_case, 0.9 * n.nominal);
   EXPECT_GT(n.contributions, 5 * n.linear);
-  EXPECT_EQ(n.shares, n.contributions);
+  EXPECT_GE(n.shares, n.contributions);  // every input's row, and the pair rows above 1e-4 of u_c²
   std::printf("compared %d points of %d designs: %d nominal, %d worst case, %d linear bands, %d contributions, "
               "%d shares, %d statuses, %d end-of-life window figures; %d points NOT COVERED (listed above)\n",
               n.points, designs, n.nominal, n.worst_case, n.linear, n.contributions, n.shares, n.statuses,
