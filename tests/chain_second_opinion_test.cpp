@@ -200,8 +200,6 @@ void compare_end_of_life(const json& got, const json& want, Counts& n) {
 // feature left out is never a silent skip (docs/checks.md, "Not covered").
 const std::set<std::string>& expected_not_covered() {
   static const std::set<std::string> list = {
-      "solar_collector_life.ini: drift over life (docs/model.md §11), its Monte Carlo [window.end_of_life.yield]",
-      "drift_absolute_supply.ini: drift over life (docs/model.md §11), its Monte Carlo [window.end_of_life.yield]",
   };
   return list;
 }
@@ -325,6 +323,9 @@ void compare_monte_carlo(const Run& run, const json& got, const json& want, Coun
     for (const char* f : {"mc_low", "mc_high", "mc_mean", "mc_stddev"}) expect_within(pts[i], w[f], f, n.mc);
   }
   expect_within(got["window"], want["yield_interval"], "yield", n.mc);
+  // The end-of-life design's yield (docs/model.md §11), where drifts are set.
+  if (want.contains("end_of_life_yield_interval"))
+    expect_within(got["window"]["end_of_life"], want["end_of_life_yield_interval"], "yield", n.end_of_life);
 }
 
 TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGeneratedDesign) {
@@ -372,8 +373,9 @@ TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGener
   EXPECT_EQ(designs - compared_designs, 0);  // none is left out by points (expected_not_covered)
   // Four statistics a point, the yield a design, of every design the model covers.
   EXPECT_EQ(n.mc, 4 * (points - n.uncovered_points) + compared_designs);
-  std::printf("Monte Carlo: %d statistics compared; %d points of %d designs NOT COVERED (listed above)\n", n.mc,
-              n.uncovered_points, designs - compared_designs);
+  EXPECT_EQ(n.end_of_life, 2);  // the end-of-life yield of the two designs with drifts
+  std::printf("Monte Carlo: %d statistics and %d end-of-life yields compared; %d points of %d designs NOT COVERED (listed above)\n", n.mc,
+              n.end_of_life, n.uncovered_points, designs - compared_designs);
 }
 
 TEST(ChainSecondOpinion, MonteCarloOneSourceAtATimeSeesEverySourcesSpread) {
