@@ -178,6 +178,7 @@ struct Counts {
   int points = 0, statuses = 0, nominal = 0, worst_case = 0, linear = 0, contributions = 0, shares = 0, mc = 0;
   int uncovered_points = 0;  // points of a design whose figures the model does not compute
   int end_of_life = 0;       // end-of-life window figures compared
+  int rtd_marks = 0;         // points whose RTD-class extrapolation mark was compared
 };
 
 // The end-of-life design's window (docs/model.md §11): its largest worst-case
@@ -256,6 +257,11 @@ void compare_deterministic(const Run& run, const json& got, const json& want, Co
     SCOPED_TRACE("t = " + p["t"].dump());
     ++n.points;
     ASSERT_NEAR(p["t"].get<double>(), want["t"][i].get<double>(), 1e-9);
+    // The RTD class used beyond its rated range (IEC 60751:2008 by construction, docs/model.md §1).
+    if (!want["rtd_class_extrapolated"].is_null()) {
+      EXPECT_EQ(p.value("rtd_class_extrapolated", false), want["rtd_class_extrapolated"][i].get<bool>());
+      ++n.rtd_marks;
+    }
     const std::string status = want["status"][i];
     if (status != "ok") {
       EXPECT_EQ(p.value("status", std::string("ok")), status);
@@ -344,6 +350,7 @@ TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGenera
   // What is not covered is exactly the documented list, nothing more.
   EXPECT_EQ(uncovered, expected_not_covered());
   EXPECT_EQ(n.end_of_life, 3 * 2);  // the two designs with drifts: corners, worst case, linear
+  EXPECT_GT(n.rtd_marks, 0);
   // Every point was compared (a value, or the same status) or is a documented uncovered one.
   EXPECT_EQ(n.nominal + n.statuses + n.uncovered_points, n.points);
   EXPECT_EQ(n.linear, n.nominal);
@@ -351,9 +358,10 @@ TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGenera
   EXPECT_GT(n.contributions, 5 * n.linear);
   EXPECT_GE(n.shares, n.contributions);  // every input's row, and the pair rows above 1e-4 of u_c²
   std::printf("compared %d points of %d designs: %d nominal, %d worst case, %d linear bands, %d contributions, "
-              "%d shares, %d statuses, %d end-of-life window figures; %d points NOT COVERED (listed above)\n",
+              "%d shares, %d statuses, %d end-of-life window figures, %d RTD-class marks; %d points NOT COVERED "
+              "(listed above)\n",
               n.points, designs, n.nominal, n.worst_case, n.linear, n.contributions, n.shares, n.statuses,
-              n.end_of_life, n.uncovered_points);
+              n.end_of_life, n.rtd_marks, n.uncovered_points);
 }
 
 TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGeneratedDesign) {
@@ -462,13 +470,14 @@ TEST(ChainSecondOpinion, TheDesignsCoverEveryOption) {
       "source=table_spread", "adc.c_sample", "divider.c_node", "divider.settle_time", "adc.precharge=same",
       "adc.precharge=any", "adc.precharge=ground", "source=adc_precharge", "drift=sensor.drift",
       "drift=divider.r_fixed_drift", "drift=supply.v_excitation_drift", "drift=supply.v_reference_drift",
-      "drift=supply.v_reference_hysteresis", "drift=adc.offset_drift", "drift=adc.gain_drift"};
+      "drift=supply.v_reference_hysteresis", "drift=adc.offset_drift", "drift=adc.gain_drift",
+      "sensor.rtd_construction=film", "sensor.rtd_construction=wire-wound"};
   int checked = 0;
   for (const auto& o : every) {
     EXPECT_TRUE(used.count(o)) << o << " is exercised by no design";
     ++checked;
   }
-  EXPECT_EQ(checked, 75);
+  EXPECT_EQ(checked, 77);
 }
 
 }  // namespace

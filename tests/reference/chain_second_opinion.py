@@ -67,6 +67,8 @@ def options(d):
         o += ["divider.c_node"] if d.acq["c_n"] > 0 else []
         o += ["divider.settle_time"] if d.acq["settle"] is not None else []
     o += [f"drift={k}" for k in DRIFTS if d.s.num(k) > 0]
+    if d.sensor.model == "rtd":
+        o.append(f"sensor.rtd_construction={d.s.text('sensor.rtd_construction')}")
     if d.inl_bound:
         o.append("adc.inl_shape=bound")
     if d.cal_diss is not None:
@@ -107,9 +109,24 @@ def end_of_life(spec):
             "wc_corners": wc["wc_corners"]}
 
 
+# IEC 60751:2008 validity ranges of each class by construction (from memory, as docs/model.md §1 writes them).
+CLASS_RANGE = {"film": {"AA": (0, 150), "A": (-30, 300), "B": (-50, 500), "C": (-50, 600)},
+               "wire-wound": {"AA": (-50, 250), "A": (-100, 450), "B": (-196, 600), "C": (-196, 600)}}
+
+
+def rtd_class_extrapolated(d):
+    """Per temperature, whether an RTD's class bound is used outside its rated range (docs/model.md §1)."""
+    cls = d.s.text("sensor.rtd_class")
+    if d.sensor.model != "rtd" or cls == "none":
+        return None
+    lo, hi = CLASS_RANGE[d.s.text("sensor.rtd_construction")][cls]
+    return [bool(t < lo - 1e-9 or t > hi + 1e-9) for t in d.t]
+
+
 def run(spec, n1, n2, seed):
     d = Design(spec.get("path"), spec.get("overrides", []))
-    out = {"name": spec["name"], "t": d.t, "options": options(d), "not_covered": not_covered(d)}
+    out = {"name": spec["name"], "t": d.t, "options": options(d), "not_covered": not_covered(d),
+           "rtd_class_extrapolated": rtd_class_extrapolated(d)}
     if any("points" in n["figures"] for n in out["not_covered"]):
         return plain(out)
     if spec.get("deterministic", True):
