@@ -91,6 +91,9 @@ const std::vector<std::pair<std::string, std::string>>& per_source_bounds() {
       {"adc_leakage", "adc.leakage"},
       {"noise", "adc.noise"},
       {"calibration", "firmware.calibration_uncertainty"},
+      {"adc_offset_tempco", "adc.offset_tempco"},
+      {"adc_gain_tempco", "adc.gain_tempco"},
+      {"r_drive", "supply.r_drive_tol"},
   };
   return keys;
 }
