@@ -8,13 +8,19 @@
 // scenarios/ and every generated design in tests/data/second_opinion/
 // (which together cover each option: the script reports what each design
 // uses and a test holds the union to the list below), and the designs of
-// the Monte Carlo check one source at a time.
+// the Monte Carlo check one source at a time. A feature the model does not
+// compute is reported by it per design ("not_covered"), printed, counted and
+// held to expected_not_covered() (empty today), never skipped silently.
 //
 // Tolerances (docs/checks.md derives them):
 // - nominal and self-heating: 1e-9 K beyond the program's self-heating solver
 //   tolerance (1e-9 K, docs/model.md §2); 1e-9 K where nothing self-heats;
 // - worst case: 1e-6 K;
-// - linear band and each source's contribution: 0.5 % of the band's half-width;
+// - linear band (with the second-order terms of JCGM 100:2008 §5.1.2 as
+//   docs/engines.md writes them) and each source's contribution: 0.5 % of
+//   the band's half-width; each contributor row's share (pair rows too);
+// - the end-of-life design's window (docs/model.md §11) and the RTD class's
+//   extrapolation marks (§1);
 // - Monte Carlo: the band ends, mean, standard deviation and yield within the
 //   intervals the script derives from both sample sizes (order-statistic and
 //   binomial bounds for quantiles and yield, the large-sample F test for the
