@@ -50,7 +50,7 @@ def worst_case(d):
     # either end of its reading and rounding intervals.
     cal_ends = []
     for i in range(d.n_cal):
-        fc = front_end(d, np.array([d.cal_at[i]]), dev)
+        fc = front_end(d, np.array([d.cal_at[i]]), dev, calibration=True)
         ends = []
         for shift in (lo_r, hi_r):
             r, s_ = convert(d, fc["x"], shift, 0.0, False)
@@ -84,15 +84,15 @@ def worst_case(d):
 # ---------------------------------------------------------------- linear budget
 
 
-def standard_uncertainty(src, sigma_per_tol):
+def standard_uncertainty(src):
     a = src.bound
     if src.dist == "normal":
-        return a / sigma_per_tol
+        return a / src.k
     if src.dist == "uniform":
         return a / math.sqrt(3.0)  # JCGM 100:2008 §4.3.7
     if src.dist == "triangular":
         return a / math.sqrt(6.0)  # JCGM 100:2008 §4.3.9
-    s = a / sigma_per_tol  # gapped: N(0, s²) on gap ≤ |x| ≤ a, its second moment by quadrature
+    s = a / src.k  # gapped: N(0, s²) on gap ≤ |x| ≤ a, its second moment by quadrature
     pdf = stats.norm(0.0, s).pdf
     m2 = integrate.quad(lambda x: x * x * pdf(x), src.gap, a, epsabs=0, epsrel=1e-12)[0]
     m0 = integrate.quad(pdf, src.gap, a, epsabs=0, epsrel=1e-12)[0]
@@ -115,7 +115,7 @@ def linear_budget(d):
     for s in d.sources:
         h = s.bound * RELATIVE_STEP
         c = (error({s.name: h}) - error({s.name: -h})) / (2 * h)
-        contributions[s.name] = np.abs(c) * standard_uncertainty(s, d.sigma_per_tol)
+        contributions[s.name] = np.abs(c) * standard_uncertainty(s)
     h = 1e-3  # LSB on a reading, K on a converted temperature
     slope_sq, out_sq = np.zeros(d.t.shape), np.zeros(d.t.shape)
     for r in range(d.n_cal + 1):
@@ -134,24 +134,88 @@ def linear_budget(d):
     contributions["quantization"] = np.sqrt(slope_sq) / math.sqrt(12.0)  # IEEE Std 1241: ideal quantiser
     contributions["noise"] = np.sqrt(slope_sq) * d.noise / math.sqrt(d.averaging)
     contributions["resolution"] = np.sqrt(out_sq) * d.resolution / math.sqrt(12.0)
-    for c in contributions.values():
-        var = var + c * c
+    rows = {name: c * c for name, c in contributions.items()}
+    first = sum(rows.values())
+    slopes = {s.name: (error({s.name: s.bound * RELATIVE_STEP}) - error({s.name: -s.bound * RELATIVE_STEP}))
+              / (2 * s.bound * RELATIVE_STEP) for s in d.sources}
+    second_order(d, error, slopes, rows, first)
+    var = sum(rows.values())
     u_c = np.sqrt(var)
-    return {"rss_low": centre - k_p * u_c, "rss_high": centre + k_p * u_c, "u_c": u_c, "contributions": contributions}
+    with np.errstate(invalid="ignore", divide="ignore"):
+        shares = {name: r / var for name, r in rows.items() if not name.endswith("(negligible)")}
+    return {"rss_low": centre - k_p * u_c, "rss_high": centre + k_p * u_c, "u_c": u_c, "contributions": contributions,
+            "shares": shares}
+
+
+def kurtosis(src):
+    """E[x⁴]/u⁴ of a source's distribution: 3 normal, 9/5 uniform, 12/5 triangular, the truncated normal's."""
+    if src.dist == "normal":
+        return 3.0
+    if src.dist == "uniform":
+        return 9.0 / 5.0
+    if src.dist == "triangular":
+        return 12.0 / 5.0
+    pdf = stats.norm(0.0, src.bound / src.k).pdf
+    m = [integrate.quad(lambda x, p=p: x ** p * pdf(x), src.gap, src.bound, epsabs=0, epsrel=1e-12)[0] for p in (0, 2, 4)]
+    return m[2] * m[0] / (m[1] * m[1])
+
+
+def second_order(d, error, slopes, rows, first):
+    """JCGM 100:2008 §5.1.2, the note to eq. 10, as docs/engines.md writes it: central differences at
+    h_i = u_i/4; a pair's c_ij² u_i² u_j² its own row (when ≥ 1e-4 of the first-order u_c²), its
+    c_i c_ijj u_i² u_j² in input i's row; an input's own [¼(κ − 1) c_ii² + (κ/3) c_i c_iii] u_i⁴ in its row."""
+    src = d.sources
+    u = {s.name: standard_uncertainty(s) for s in src}
+    pairs = list(itertools.combinations(src, 2))
+    # Every step in one batch of units (rows) over the temperatures (columns).
+    points = [{s.name: m * u[s.name] / 4.0} for s in src for m in (-2, -1, 1, 2)]
+    points += [{a.name: p * u[a.name] / 4.0, b.name: q * u[b.name] / 4.0}
+               for a, b in pairs for p in (-1, 1) for q in (-1, 1)]
+    names = {n for p in points for n in p}
+    values = error({n: np.array([p.get(n, 0.0) for p in points])[:, None] for n in names})
+    rows_of = iter(values)
+    f0 = error({})
+    one = {}
+    for s in src:
+        h = u[s.name] / 4.0
+        f = {m: next(rows_of) for m in (-2, -1, 1, 2)}
+        one[s.name] = f
+        c_ii = (f[1] - 2.0 * f0 + f[-1]) / h ** 2
+        c_iii = (f[2] - 2.0 * f[1] + 2.0 * f[-1] - f[-2]) / (2.0 * h ** 3)
+        kappa = kurtosis(s)
+        term = (0.25 * (kappa - 1.0) * c_ii ** 2 + kappa / 3.0 * slopes[s.name] * c_iii) * u[s.name] ** 4
+        rows[s.name] = rows[s.name] + np.nan_to_num(term)
+    for a, b in pairs:
+        hi, hj = u[a.name] / 4.0, u[b.name] / 4.0
+        f = {(p, q): next(rows_of) for p in (-1, 1) for q in (-1, 1)}
+        c_ij = (f[1, 1] - f[1, -1] - f[-1, 1] + f[-1, -1]) / (4.0 * hi * hj)
+        # i's slope bending with x_j, and j's with x_i
+        c_ijj = ((f[1, 1] + f[1, -1] - 2.0 * one[a.name][1]) - (f[-1, 1] + f[-1, -1] - 2.0 * one[a.name][-1])) \
+            / (2.0 * hi * hj * hj)
+        c_iij = ((f[1, 1] + f[-1, 1] - 2.0 * one[b.name][1]) - (f[1, -1] + f[-1, -1] - 2.0 * one[b.name][-1])) \
+            / (2.0 * hj * hi * hi)
+        uu = u[a.name] ** 2 * u[b.name] ** 2
+        rows[a.name] = rows[a.name] + np.nan_to_num(slopes[a.name] * c_ijj * uu)
+        rows[b.name] = rows[b.name] + np.nan_to_num(slopes[b.name] * c_iij * uu)
+        pair = np.nan_to_num(c_ij ** 2 * uu)
+        if np.any(pair >= 1e-4 * first):
+            rows[f"{a.name} × {b.name}"] = pair
+        else:
+            rows[f"{a.name} × {b.name} (negligible)"] = pair
 
 
 # ---------------------------------------------------------------- Monte Carlo
 
 
-def draw(rng, src, n, sigma_per_tol):
+def draw(rng, src, n):
     a = src.bound
     if src.dist == "normal":
-        return rng.normal(0.0, a / sigma_per_tol, n)
+        return rng.normal(0.0, a / src.k, n)
     if src.dist == "uniform":
         return rng.uniform(-a, a, n)
     if src.dist == "triangular":
         return rng.triangular(-a, 0.0, a, n)
-    s = a / sigma_per_tol
+    s = a / src.k
     x = stats.truncnorm.rvs(src.gap / s, a / s, scale=s, size=n, random_state=rng)
     return np.where(rng.uniform(size=n) < 0.5, -x, x)
 
@@ -173,20 +237,25 @@ def sampled_reading(d, rng, x, rounding):
 
 
 def board_draw(d, rng, n):
+    """The inputs drawn per reading: the board temperature in its range, another channel's precharge (§14)."""
+    out = {}
+    if d.acq is not None and d.acq["precharge"] == "any":
+        out["adc_precharge"] = rng.uniform(-0.5, 0.5, n)
     if d.board[0] != "range":
-        return {}
-    return {"board_temperature": rng.uniform(d.board[1], d.board[2], n) - 0.5 * (d.board[1] + d.board[2])}
+        return out
+    out["board_temperature"] = rng.uniform(d.board[1], d.board[2], n) - 0.5 * (d.board[1] + d.board[2])
+    return out
 
 
 def monte_carlo(d, units, seed):
     """Per temperature the valid units' errors; per unit the window's largest |error| (inf if a reading failed)."""
     rng = np.random.default_rng(seed)
-    unit = {s.name: draw(rng, s, units, d.sigma_per_tol) for s in d.sources if s.name != "board_temperature"}
+    unit = {s.name: draw(rng, s, units) for s in d.sources if s.name not in ("board_temperature", "adc_precharge")}
     cal_ok = np.ones(units, bool)
     reported, reference = [], []
     for i in range(d.n_cal):
         dev = deviations(d, {**unit, **board_draw(d, rng, units)})
-        fc = front_end(d, np.full(units, d.cal_at[i]), dev)
+        fc = front_end(d, np.full(units, d.cal_at[i]), dev, calibration=True)
         t, bad = sampled_reading(d, rng, fc["x"], True)
         cal_ok &= (fc["status"] == OK) & ~bad
         reported.append(t)

@@ -25,6 +25,7 @@ import re
 
 import numpy as np
 from scipy.interpolate import PchipInterpolator
+from scipy.linalg import expm
 
 KELVIN = 273.15
 T0 = 298.15
@@ -39,7 +40,8 @@ STATUS = ["ok", "saturated", "thermal-runaway", "outside-sensor-table", "no-conv
 
 PREFIX = {"p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9, "R": 1.0}
 UNITS = [("ppm/°C", 1e-6), ("ppm/K", 1e-6), ("ppm", 1e-6), ("%", 1e-2), ("W/K", 1.0), ("kohm", None),
-         ("ohm", 1.0), ("Ω", 1.0), ("°C", 1.0), ("V", 1.0), ("A", 1.0), ("s", 1.0)]
+         ("ohm", 1.0), ("Ω", 1.0), ("°C", 1.0), ("V", 1.0), ("A", 1.0), ("kHz", 1e3), ("MHz", 1e6), ("Hz", 1.0),
+         ("F", 1.0), ("s", 1.0)]
 
 
 def number(text):
@@ -126,20 +128,33 @@ CLASS_BOUND = {"AA": (0.10, 0.0017), "A": (0.15, 0.002), "B": (0.30, 0.005), "C"
 
 
 def read_table(path):
-    rows = []
+    """(T kelvin, ln R_nom, limits): limits (ln R_min, ln R_max) per row when the header names a "min"
+    and a "max" column or a "tol" column in % (docs/model.md §12), else None."""
+    rows, header = [], None
     with open(path, encoding="utf-8-sig") as f:
         for line in f:
-            line = line.strip()
-            if not line or line.startswith("#"):
+            line = line.split("#")[0].strip()
+            if not line:
                 continue
-            cells = re.split(r"[,;\t]", line)
+            cells = [c.strip() for c in re.split(r"[,;\t]", line)]
             try:
-                rows.append((float(cells[0]), float(cells[1])))
+                rows.append([float(c.rstrip("%")) for c in cells])
             except ValueError:
-                continue  # the header
+                header = header or [c.lower() for c in cells]  # the header
     rows.sort()
     t = np.array([r[0] for r in rows]) + KELVIN
-    return t, np.log([r[1] for r in rows])
+    lnr = np.log([r[1] for r in rows])
+    limits = None
+    if header:
+        col = lambda word: next((i for i, h in enumerate(header) if word in h), None)
+        lo, hi, tol = col("min"), col("max"), col("tol")
+        if lo is not None and hi is not None:
+            a, b = np.log([r[lo] for r in rows]), np.log([r[hi] for r in rows])
+            limits = (np.minimum(a, b), np.maximum(a, b))
+        elif tol is not None:
+            f = np.array([r[tol] for r in rows]) / 100.0
+            limits = (lnr + np.log1p(-f), lnr + np.log1p(f))
+    return t, lnr, limits
 
 
 class Sensor:
@@ -153,11 +168,15 @@ class Sensor:
             self.abc = (s.num("sensor.a"), s.num("sensor.b"), s.num("sensor.c"))
         elif self.model == "table":
             base = getattr(s, "table_dir", s.dir)
-            t, lnr = read_table(os.path.join(base, s.text("sensor.table_file")))
+            t, lnr, limits = read_table(os.path.join(base, s.text("sensor.table_file")))
             self.t_lo, self.t_hi = t[0], t[-1]
             x = 1.0 / t[::-1]
             self.pchip = PchipInterpolator(x, lnr[::-1])  # ln R against 1/T, ascending 1/T
             self.nodes_x, self.nodes_l = x, lnr[::-1]
+            self.limits = None
+            if limits is not None:  # h above and below, PCHIP against 1/T like the curve (§12)
+                self.limits = (PchipInterpolator(x, (lnr - limits[0])[::-1]),
+                               PchipInterpolator(x, (limits[1] - lnr)[::-1]))
         elif self.model == "rtd":
             self.cvd = {"r0": s.num("sensor.r0"), "A": s.num("sensor.cvd_a"), "B": s.num("sensor.cvd_b"),
                         "C": s.num("sensor.cvd_c")}
@@ -224,6 +243,10 @@ class Sensor:
         return np.where(inside, 1.0 / x, np.nan)
 
     def unit_ln_r(self, T, dev):
+        """One unit's ln R at T, with its drift over life: ln R_unit + ln(1 + δ_drift) (docs/model.md §11)."""
+        return self._unit_ln_r(T, dev) + np.log1p(dev("sensor_drift"))
+
+    def _unit_ln_r(self, T, dev):
         """One unit's ln R at T: the NTC stretch about 25 °C, or the RTD's class shift (docs/model.md §1)."""
         if self.model == "rtd":
             t = np.asarray(T, float) - KELVIN
@@ -231,6 +254,10 @@ class Sensor:
                 c0, c1 = self.rtd_class
                 t = t + dev("rtd_class") * (c0 + c1 * np.abs(t))
             return self.ln_r(t + KELVIN)
+        if self.model == "table" and self.limits is not None:
+            z = dev("table_spread")
+            x = np.clip(1.0 / np.asarray(T, float), self.nodes_x[0], self.nodes_x[-1])
+            return self.ln_r(T) + z * np.where(z > 0, self.limits[1](x), self.limits[0](x))
         l0 = self.ln_r(T0)
         return l0 + np.log1p(dev("r25")) + (1.0 + dev("beta")) * (self.ln_r(T) - l0)
 
@@ -241,13 +268,14 @@ class Sensor:
 class Source:
     """A toleranced input: its JSON name, the key of its bound, the bound and its distribution."""
 
-    def __init__(self, name, key, bound, dist="normal", gap=0.0):
-        self.name, self.key, self.bound, self.dist, self.gap = name, key, bound, dist, gap
+    def __init__(self, name, key, bound, dist="normal", gap=0.0, k=3.0):
+        self.name, self.key, self.bound, self.dist, self.gap, self.k = name, key, bound, dist, gap, k
 
 
 class Design:
-    def __init__(self, path, overrides=()):
+    def __init__(self, path, overrides=(), end_of_life=False):
         s = Scenario(path, overrides)
+        self.end_of_life = end_of_life  # the drift inputs active (docs/model.md §11)
         self.s = s
         self.sensor = Sensor(s)
         num, text = s.num, s.text
@@ -291,6 +319,16 @@ class Design:
         self.coverage = num("montecarlo.coverage")
         self.noise_k = num("montecarlo.noise_k")
         self.default_dist = text("montecarlo.distribution")
+        self.inl_bound = text("adc.inl_shape") == "bound"
+        self.r_drive, self.drive_comp = num("supply.r_drive"), num("firmware.drive_compensation")
+        cal_diss = text("firmware.calibration_dissipation")
+        self.cal_diss = None if cal_diss == "sensor" else number(cal_diss)
+        self.acq = None
+        if num("adc.c_sample") > 0:  # the sampled node (§14)
+            settle = text("divider.settle_time")
+            self.acq = {"c_s": num("adc.c_sample"), "c_n": num("divider.c_node"), "r_sw": num("adc.r_switch"),
+                        "t_acq": num("adc.t_acq"), "rate": num("adc.sample_rate"), "precharge": text("adc.precharge"),
+                        "settle": None if settle == "always" else number(settle)}
         self.sources = self._sources(ntc)
         self.firmware = Firmware(self)
 
@@ -303,11 +341,17 @@ class Design:
                 return
             sec, k = key.split(".")
             dist = s.text(f"{key}_dist", "default")
+            if dist == "default" and key == "adc.inl" and self.inl_bound:
+                dist = "uniform"  # a datasheet's INL maximum as a uniform bound (docs/model.md §5)
             dist = self.default_dist if dist == "default" else dist
-            out.append(Source(name, key, bound, dist, s.num(f"{key}_gap", 0.0)))
+            # Coverage factor of the bound (docs/model.md "Coverage factors of a bound").
+            k = s.num(f"{key}_k", 2.0 if key == "firmware.calibration_uncertainty" else self.sigma_per_tol)
+            out.append(Source(name, key, bound, dist, s.num(f"{key}_gap", 0.0), k))
 
         for name, key, bound in SOURCES:
             add(name, key, bound(self, s, ntc))
+        if self.acq is not None and self.acq["precharge"] == "any":  # uniform over [0, V_ref] (§14)
+            out.append(Source("adc_precharge", "adc.precharge", 0.5, "uniform"))
         if self.board[0] == "range":
             out.append(Source("board_temperature", "conditions.board", 0.5 * (self.board[2] - self.board[1]), "uniform"))
         return out
@@ -347,6 +391,22 @@ SOURCES = [
     ("adc_gain", "adc.gain_error", lambda d, s, ntc: s.num("adc.gain_error")),
     ("adc_inl", "adc.inl", lambda d, s, ntc: s.num("adc.inl")),
     ("adc_leakage", "adc.leakage", lambda d, s, ntc: s.num("adc.leakage")),
+    ("adc_offset_tempco", "adc.offset_tempco", lambda d, s, ntc: s.num("adc.offset_tempco") if _tempco_active(d) else 0.0),
+    ("adc_gain_tempco", "adc.gain_tempco", lambda d, s, ntc: s.num("adc.gain_tempco") if _tempco_active(d) else 0.0),
+    ("r_drive", "supply.r_drive_tol", lambda d, s, ntc: s.num("supply.r_drive_tol") if d.r_drive > 0 else 0.0),
+    # Drift over life, zero at delivery (§11); no effect on a ratiometric supply.
+    ("sensor_drift", "sensor.drift", lambda d, s, ntc: s.num("sensor.drift") if d.end_of_life else 0.0),
+    ("r_fixed_drift", "divider.r_fixed_drift", lambda d, s, ntc: s.num("divider.r_fixed_drift") if d.end_of_life else 0.0),
+    ("v_excitation_drift", "supply.v_excitation_drift",
+     lambda d, s, ntc: s.num("supply.v_excitation_drift") if d.end_of_life and not d.ratiometric else 0.0),
+    ("v_reference_drift", "supply.v_reference_drift",
+     lambda d, s, ntc: s.num("supply.v_reference_drift") if d.end_of_life and not d.ratiometric else 0.0),
+    ("v_reference_hysteresis", "supply.v_reference_hysteresis",
+     lambda d, s, ntc: s.num("supply.v_reference_hysteresis") if d.end_of_life and not d.ratiometric else 0.0),
+    ("adc_offset_drift", "adc.offset_drift", lambda d, s, ntc: s.num("adc.offset_drift") if d.end_of_life else 0.0),
+    ("adc_gain_drift", "adc.gain_drift", lambda d, s, ntc: s.num("adc.gain_drift") if d.end_of_life else 0.0),
+    ("table_spread", "sensor.table_file",
+     lambda d, s, ntc: 1.0 if d.sensor.model == "table" and d.sensor.limits is not None else 0.0),
     ("calibration_1", "firmware.calibration_uncertainty",
      lambda d, s, ntc: s.num("firmware.calibration_uncertainty") if d.n_cal >= 1 else 0.0),
     ("calibration_2", "firmware.calibration_uncertainty",
@@ -368,13 +428,16 @@ def branch(r_element, r_lead, r_par):
 def step_parts(d, st, dev):
     """The unit's fixed and parallel resistors and supply at the reading's board temperature (§3, §4)."""
     tb = st["t_board"]
-    st["rf"] = d.rf * (1.0 + dev("r_fixed")) * (1.0 + dev("r_fixed_tempco") * (tb - 25.0))
+    st["rf"] = d.rf * (1.0 + dev("r_fixed")) * (1.0 + dev("r_fixed_drift")) * (1.0 + dev("r_fixed_tempco") * (tb - 25.0))
     st["r_par"] = None if d.r_par is None else d.r_par * (1.0 + dev("r_parallel"))
+    st["r_drv"] = d.r_drive * (1.0 + dev("r_drive"))  # in series with the divider's top (§15)
     if d.ratiometric:
         st["v_exc"] = st["v_ref"] = d.v_exc + 0.0 * tb
     else:
-        st["v_exc"] = d.v_exc * (1.0 + dev("v_excitation")) * (1.0 + dev("v_excitation_tempco") * (tb - 25.0))
-        st["v_ref"] = d.v_ref * (1.0 + dev("v_reference")) * (1.0 + dev("v_reference_tempco") * (tb - 25.0))
+        st["v_exc"] = (d.v_exc * (1.0 + dev("v_excitation")) * (1.0 + dev("v_excitation_drift"))
+                       * (1.0 + dev("v_excitation_tempco") * (tb - 25.0)))
+        st["v_ref"] = (d.v_ref * (1.0 + dev("v_reference")) * (1.0 + dev("v_reference_drift"))
+                       * (1.0 + dev("v_reference_hysteresis")) * (1.0 + dev("v_reference_tempco") * (tb - 25.0)))
 
 
 def step_self_heating(d, st, dev):
@@ -384,12 +447,14 @@ def step_self_heating(d, st, dev):
     if not (d.diss > 0 and d.duty > 0):
         st["T_el"] = T + 0.0 * st["rf"]
         return
-    gain = d.duty / (d.diss * (1.0 + dev("dissipation")))
+    # The calibration medium's constant is taken as given, without the unit's deviation (§7).
+    medium = st.get("calibration") and d.cal_diss is not None
+    gain = d.duty / (d.cal_diss if medium else d.diss * (1.0 + dev("dissipation")))
 
     def rise(te):
         r = np.exp(sensor.unit_ln_r(te, dev))
         rb = branch(r, d.r_lead, st["r_par"])
-        v = st["v_exc"] * rb / (st["rf"] + rb) * r / (r + d.r_lead)
+        v = st["v_exc"] * rb / (st["rf"] + st["r_drv"] + rb) * r / (r + d.r_lead)
         return gain * v * v / r
 
     with np.errstate(invalid="ignore", over="ignore"):
@@ -416,24 +481,99 @@ def step_divider(d, st, dev):
     l = st["sensor"].unit_ln_r(st["T_el"], dev)
     st["status"] = np.where((st["status"] == OK) & np.isnan(l), OUT_OF_TABLE, st["status"])
     rb = branch(np.exp(l), d.r_lead, st["r_par"])
-    ratio = (rb if d.placement == "low" else st["rf"]) / (st["rf"] + rb)
-    st["v_node"] = st["v_exc"] * ratio - dev("adc_leakage") * parallel(st["rf"], rb)
+    top, bottom = (st["rf"] + st["r_drv"], rb) if d.placement == "low" else (rb + st["r_drv"], st["rf"])
+    st["r_th"] = parallel(top, bottom)  # the node's Thevenin resistance (§14)
+    st["v_node"] = st["v_exc"] * bottom / (top + bottom) - dev("adc_leakage") * st["r_th"]
+
+
+def _expm(a, t):
+    """exp(A·t) of a batch of 2×2 matrices (SciPy's expm over the last two axes)."""
+    return expm(a * t)
+
+
+def step_sampled_node(d, st, dev):
+    """The ADC's sampling capacitor on the node (§14): the mean of the M sampled voltages replaces the node's
+    voltage. Deviations from the equilibrium V_th evolve as exp(A t) with the switch closed for t_acq and open
+    for T_s − t_acq; C_n = 0 is the single exponential of RC charging."""
+    a = d.acq
+    if a is None:
+        return
+    v_th, r_th = st["v_node"], st["r_th"] + 0.0 * st["v_node"]
+    pre = a["precharge"]
+    if pre == "any":  # another channel's voltage, uniform over [0, V_ref]: z of bound ½
+        v_start = st["v_ref"] * (0.5 + dev("adc_precharge"))
+    elif pre == "ground":
+        v_start = 0.0 * v_th
+    elif pre == "reference":
+        v_start = st["v_ref"] + 0.0 * v_th
+    elif pre == "same":
+        v_start = None
+    else:
+        v_start = number(pre) + 0.0 * v_th
+    t_acq, t_s, m = a["t_acq"], 1.0 / a["rate"], d.averaging
+    if a["c_n"] == 0.0:
+        e = np.exp(-t_acq / ((r_th + a["r_sw"]) * a["c_s"]))
+        if a["settle"] is None:  # continuous: with `same` the capacitor already holds V_th
+            st["v_node"] = v_th if v_start is None else v_th + (v_start - v_th) * e
+            return
+        prev, total = 0.0 * v_th, 0.0 * v_th  # switched: C_s at 0 V from power-on
+        for _ in range(m):
+            start = prev if v_start is None else v_start
+            prev = v_th + (start - v_th) * e
+            total = total + prev
+        st["v_node"] = total / m
+        return
+    cn, cs, rsw = a["c_n"], a["c_s"], a["r_sw"]
+    shape = np.shape(v_th)
+    closed = np.zeros(shape + (2, 2))
+    closed[..., 0, 0] = -1.0 / (r_th * cn) - 1.0 / (rsw * cn)
+    closed[..., 0, 1] = 1.0 / (rsw * cn)
+    closed[..., 1, 0] = 1.0 / (rsw * cs)
+    closed[..., 1, 1] = -1.0 / (rsw * cs)
+    opened = np.zeros(shape + (2, 2))
+    opened[..., 0, 0] = -1.0 / (r_th * cn)
+    phi_c, phi_o = _expm(closed, t_acq), _expm(opened, t_s - t_acq)
+    if a["settle"] is None:  # the periodic steady state of the one-period map, by a linear solve
+        if v_start is None:
+            st["v_node"] = v_th
+            return
+        ds = v_start - v_th
+        period = phi_o @ phi_c
+        yn = period[..., 0, 1] * ds / (1.0 - period[..., 0, 0])
+        st["v_node"] = v_th + phi_c[..., 1, 0] * yn + phi_c[..., 1, 1] * ds
+        return
+    # Switched divider: C_n (and C_s with `same`) at 0 V at power-on, the node charging for the settle time,
+    # then M samples at T_s.
+    y = np.stack([-v_th, (0.0 * v_th if v_start is None else v_start) - v_th], axis=-1)[..., None]
+    y = _expm(opened, a["settle"]) @ y
+    total = 0.0 * v_th
+    for _ in range(m):
+        if v_start is not None:
+            y[..., 1, 0] = v_start - v_th
+        y = phi_c @ y
+        total = total + v_th + y[..., 1, 0]
+        y = phi_o @ y
+    st["v_node"] = total / m
 
 
 def step_adc(d, st, dev):
     """x = V/V_ref·2^N, x' = x(1 + g) + o + i·4u(1 − u) (§5)."""
     x = st["v_node"] / st["v_ref"] * d.span
     u = x / d.span
-    st["x"] = x * (1.0 + dev("adc_gain")) + dev("adc_offset") + dev("adc_inl") * 4.0 * u * (1.0 - u)
+    tb = st["t_board"] - 25.0
+    inl = dev("adc_inl") * (1.0 if d.inl_bound else 4.0 * u * (1.0 - u))  # bound: ± i at every code
+    st["x"] = (x * (1.0 + dev("adc_gain") + dev("adc_gain_tempco") * tb) * (1.0 + dev("adc_gain_drift"))
+               + dev("adc_offset") + dev("adc_offset_drift") + dev("adc_offset_tempco") * tb + inl)
 
 
-FRONT_END = [step_parts, step_self_heating, step_divider, step_adc]
+FRONT_END = [step_parts, step_self_heating, step_divider, step_sampled_node, step_adc]
 
 
-def front_end(d, t, dev, t_board=None):
-    """The ADC's static reading x' (LSB) and the status of unit(s) `dev` at true temperature(s) t (°C)."""
+def front_end(d, t, dev, t_board=None, calibration=False):
+    """The ADC's static reading x' (LSB) and the status of unit(s) `dev` at true temperature(s) t (°C);
+    `calibration` for a calibration reading (in the calibration medium, §7)."""
     t = np.asarray(t, float)
-    st = {"T": t + KELVIN, "sensor": d.sensor,
+    st = {"T": t + KELVIN, "sensor": d.sensor, "calibration": calibration,
           "t_board": d.board_temperature(t, dev) if t_board is None else t_board}
     st["status"] = np.zeros(np.broadcast(st["T"], st["t_board"]).shape, dtype=int)
     for step in FRONT_END:
@@ -475,7 +615,10 @@ class Firmware:
         rho = np.asarray(code, float) / d.full_scale * self.ratio_scale
         ok = (rho > 0) & (rho < 1)
         rho = np.where(ok, rho, 0.5)
-        rb = d.rf * rho / (1 - rho) if d.placement == "low" else d.rf * (1 - rho) / rho
+        dc = d.drive_comp  # the drive resistance the firmware assumes in the divider's top (§15)
+        rb = (d.rf + dc) * rho / (1 - rho) if d.placement == "low" else d.rf * (1 - rho) / rho - dc
+        ok &= rb > 0
+        rb = np.where(rb > 0, rb, 1.0)
         if d.r_par is not None:
             ok &= rb < d.r_par
             rb = 1.0 / (1.0 / rb - 1.0 / np.where(rb < d.r_par, d.r_par, np.inf))
@@ -490,7 +633,7 @@ class Firmware:
         """The firmware's own model forward: nominal parts and its lead compensation."""
         d = self.d
         rb = branch(np.exp(d.sensor.ln_r(t + KELVIN)), d.lead_comp, d.r_par)
-        ratio = (rb if d.placement == "low" else d.rf) / (d.rf + rb)
+        ratio = (rb if d.placement == "low" else d.rf) / (d.rf + d.drive_comp + rb)
         return ratio / self.ratio_scale * d.full_scale
 
     def temperature(self, code):
@@ -624,7 +767,7 @@ def evaluate(d, t, dev, shift=0.0, cal_shift=(0.0, 0.0), out_shift=0.0, cal_out=
     if d.n_cal:
         reported, reference, cal_ok = [], [], True
         for i in range(d.n_cal):
-            fc = front_end(d, d.cal_at[i], dev)
+            fc = front_end(d, d.cal_at[i], dev, calibration=True)
             r, s_ = convert(d, fc["x"], cal_shift[i], cal_out[i], rounding)
             cal_ok = cal_ok & (fc["status"] == OK) & (s_ == OK)
             reported.append(r)
