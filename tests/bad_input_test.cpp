@@ -253,7 +253,7 @@ std::vector<Case> combinations() {
                {"firmware.calibration_dissipation = 15mW/K", "bad.ini:4", "needs self-heating on"}),
       scenario("an ADC gain drift of 1 %/K", "[adc]\ngain_tempco = 1%/K\n",
                {"adc.gain_tempco = 1%/K", "bad.ini:2", "below 10000 ppm/K"}),
-      scenario("a negative ADC offset drift", "[adc]\noffset_tempco = -0.01\n",
+      scenario("a negative ADC offset tempco", "[adc]\noffset_tempco = -0.01\n",
                {"adc.offset_tempco = -0.01", "bad.ini:2", "must be >= 0"}),
       scenario("an INL shape not in the list", "[adc]\ninl_shape = curve\n",
                {"adc.inl_shape = curve", "bad.ini:2", "bow | bound"}),

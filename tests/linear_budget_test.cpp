@@ -82,8 +82,10 @@ TEST(LinearBudget, CoverageFactorIsTheNormalQuantile) {
 }
 
 TEST(LinearBudget, EachShareIsItsTermsVarianceOverTheSumAtEveryTemperatureAndOverTheWindow) {
-  // docs/engines.md: a source's share is (c_i u_i)² / u_c² at a temperature,
-  // and over the window its summed variance over the window's summed u_c².
+  // docs/engines.md: a source's share is its row's part of u_c² — (c_i u_i)²
+  // with its own second-order terms, or a pair's whole term (JCGM 100
+  // 5.1.2) — over u_c² at a temperature, and over the window its summed
+  // variance over the window's summed u_c².
   // Recomputed here from the linear terms (a consistency check of the table
   // against the budget's own terms; the terms themselves are checked against
   // the independent model in chain_second_opinion_test.cpp).
@@ -99,7 +101,8 @@ TEST(LinearBudget, EachShareIsItsTermsVarianceOverTheSumAtEveryTemperatureAndOve
     for (const auto& p : b.points) {
       ASSERT_FALSE(p.contributors.empty()) << file << " at " << p.t;  // every scenario reads everywhere
       std::map<std::string, double> var;
-      for (const auto& t : p.linear.terms) var[t.name] = t.contribution * t.contribution;
+      for (const auto& t : p.linear.terms) var[t.name] = t.variance();
+      for (const auto& t : p.linear.pairs) var[t.name] = t.variance();
       const double total = p.linear.u_c * p.linear.u_c;
       ASSERT_EQ(p.contributors.size(), var.size());
       for (const auto& c : p.contributors) {

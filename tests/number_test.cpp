@@ -174,7 +174,7 @@ TEST(ParseQuantity, ReadsTimesInSecondsAndRampsInKelvinPerMinute) {
   expect_value("0.05K/s", Quantity::ramp_rate, 3.0);
   expect_value("30 K/h", Quantity::ramp_rate, 0.5);
   expect_value("500mK/min", Quantity::ramp_rate, 0.5);
-  EXPECT_NE(rejection("5V", Quantity::time).find("expected a time such as 8, 8s, 500ms or 2min"), std::string::npos);
+  EXPECT_NE(rejection("5V", Quantity::time).find("expected a time such as 8, 8s, 500ms, 2us or 2min"), std::string::npos);
   EXPECT_NE(rejection("2V/min", Quantity::ramp_rate).find("expected a rate of change"), std::string::npos);
 }
 
