@@ -361,6 +361,14 @@ std::vector<Case> tables() {
                  {"r_max = 9.95k (table.csv:3:4)", "not below the nominal resistance"}),
       table_file("a table tolerance of 100 %", "t,r,tol\n0,33.6k,1\n25,10k,100\n50,3.6k,1\n85,1.07k,1\n",
                  {"tolerance = 100 (table.csv:3:3)", "up to (not including) 100 %"}),
+      // Found by fuzz_rt_table and fuzz_fit: a short line of a table with limits, and a
+      // limit column named past the columns a line has, were read beyond the line's fields.
+      table_file("a short line in a table with limits",
+                 "t,r,r_min,r_max\n0,33.6k,32k,35k\n25\n50,3.6k,3.5k,3.7k\n85,1.07k,1.04k,1.1k\n",
+                 {"table.csv:3", "expected 4 columns", "found 1"}),
+      table_file("a tolerance column after the third",
+                 "t,r,note,tol\n0,33.6k,a,1\n25,10k,b,1\n50,3.6k,c,1\n85,1.07k,d,1\n",
+                 {"table.csv:1", "a tolerance column must be column 3"}),
       option("R25 and B tolerances beside a table with limits", "check bad.ini",
              {"sensor.r25_tol = 1% (bad.ini:4)", "the table already holds the unit spread"},
              {file("bad.ini", "[sensor]\nmodel = table\ntable_file = t.csv\nr25_tol = 1%\n"),

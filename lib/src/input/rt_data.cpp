@@ -49,7 +49,10 @@ struct LimitColumns {
   bool any() const { return tolerance > 0 || (min > 0 && max > 0); }
 };
 
-LimitColumns limit_columns(const std::vector<std::string>& header) {
+// The limit columns stand right after the resistance: a tolerance in column
+// 3, R_min and R_max in columns 3 and 4 (either order); a header naming them
+// elsewhere is refused here, before any line is read against it.
+LimitColumns limit_columns(const std::vector<std::string>& header, const std::string& name, int line_no) {
   LimitColumns c;
   for (std::size_t i = 2; i < header.size(); ++i) {
     const std::string name = lower(header[i]);
@@ -59,21 +62,32 @@ LimitColumns limit_columns(const std::vector<std::string>& header) {
     else if (name.find("tol") != std::string::npos) c.tolerance = col;
   }
   if (c.tolerance > 0) c.min = c.max = 0;
+  const bool tolerance_misplaced = c.tolerance > 0 && c.tolerance != 3;
+  const bool limits_misplaced = c.tolerance == 0 && c.min > 0 && c.max > 0 && c.min + c.max != 7;
+  if (tolerance_misplaced || limits_misplaced)
+    reject_at(name, line_no,
+              "the header names the unit spread in the wrong column: a tolerance column must be column 3, R_min "
+              "and R_max columns 3 and 4, right after temperature (degC) and resistance (ohm)");
   return c;
 }
 
-// The limits of one line of a table with limits; refused where they do not
-// enclose the nominal resistance.
+// The number of columns a line must have, checked before any is read.
+void check_column_count(const std::vector<std::string>& fields, const LimitColumns& c, const std::string& name,
+                        int line_no) {
+  const std::string found = "; found " + std::to_string(fields.size());
+  if (!c.any() && (fields.size() < 2 || fields.size() > 3))
+    reject_at(name, line_no,
+              "expected 2 or 3 columns: temperature (degC), resistance (ohm), optional uncertainty (ohm or %)" + found);
+  if (c.tolerance > 0 && fields.size() != 3)
+    reject_at(name, line_no, "expected 3 columns: temperature (degC), resistance (ohm), +/- tolerance (%)" + found);
+  if (c.tolerance == 0 && c.any() && fields.size() != 4)
+    reject_at(name, line_no, "expected 4 columns: temperature (degC), resistance (ohm), R_min and R_max (ohm)" + found);
+}
+
+// The limits of one line of a table with limits (its column count checked);
+// refused where they do not enclose the nominal resistance.
 void read_limits(const std::vector<std::string>& fields, const LimitColumns& c, const std::string& name, int line_no,
                  RtPoint& p) {
-  const std::size_t want = c.tolerance > 0 ? 3 : 4;
-  if (fields.size() != want)
-    reject_at(name, line_no,
-              c.tolerance > 0
-                  ? "expected 3 columns: temperature (degC), resistance (ohm), +/- tolerance (%); found " +
-                        std::to_string(fields.size())
-                  : "expected 4 columns: temperature (degC), resistance (ohm), R_min and R_max (ohm); found " +
-                        std::to_string(fields.size()));
   if (c.tolerance > 0) {
     Where w{Origin::file, name, line_no, "tolerance", c.tolerance};
     const std::string& f = fields[static_cast<std::size_t>(c.tolerance - 1)];
@@ -111,15 +125,12 @@ RtData parse_rt_data(const std::string& text, const std::string& name) {
     auto fields = split_fields(line);
     if (!seen_content && !looks_numeric(fields[0])) {
       seen_content = true;  // a header line
-      limits = limit_columns(fields);
+      limits = limit_columns(fields, name, line_no);
       data.has_limits = limits.any();
       continue;
     }
     seen_content = true;
-    if (!limits.any() && (fields.size() < 2 || fields.size() > 3))
-      reject_at(name, line_no,
-                "expected 2 or 3 columns: temperature (degC), resistance (ohm), optional uncertainty (ohm or %); found " +
-                    std::to_string(fields.size()));
+    check_column_count(fields, limits, name, line_no);
     Where w{Origin::file, name, line_no, "temperature", 1};
     RtPoint p{};
     p.line = line_no;
