@@ -20,7 +20,8 @@ po::options_description common_options(bool has_report, bool has_verdict) {
   po::options_description o("Common options");
   o.add_options()("help,h", "show this help")("format", po::value<std::string>()->default_value("text"),
                                                 "text | csv | json")(
-      "output,o", po::value<std::string>(), "write to FILE instead of standard output (whole or not at all)");
+      "output,o", po::value<std::string>(), "write to FILE instead of standard output (whole or not at all)")(
+      "quiet,q", "no progress line on standard error (it is shown only when standard error is a terminal)");
   if (has_report)
     o.add_options()("report", po::value<std::string>(), "also write a self-contained HTML report to FILE")(
         "plots", po::value<std::string>(),
@@ -117,6 +118,7 @@ Invocation parse(const std::string& command, int argc, char** argv, const po::op
     check_plots_directory("--plots", inv.plots);
   }
   inv.strict = inv.vm.count("strict") > 0;
+  inv.quiet = inv.vm.count("quiet") > 0;
   if (takes_scenario) {
     if (!inv.file.empty()) inv.scenario.load_file(inv.file);
     for (const auto& opt : parsed.options) {

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "thermargin/core/number.hpp"       // fixed, significant
+#include "thermargin/core/progress.hpp"     // ProgressLine
 #include "thermargin/input/scenario.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell, write_file_atomically
 #include "thermargin/report/table.hpp"        // Table, render_text
@@ -27,6 +28,7 @@ struct Invocation {
   std::string report;  // --report FILE.html (empty: not asked for)
   std::string plots;   // --plots DIR (empty: not asked for)
   bool strict = false;
+  bool quiet = false;  // --quiet: no progress line on stderr
   Scenario scenario;
   po::variables_map vm;  // the command's own options
 };
@@ -45,6 +47,10 @@ Invocation parse(const std::string& command, int argc, char** argv, const po::op
 bool help_requested(const std::string& command, int argc, char** argv, const std::string& usage,
                     const po::options_description& own, bool takes_scenario, bool has_report = false,
                     bool has_verdict = false);
+
+// Whether a long run shows its progress (core/progress.hpp): stderr is a
+// terminal and --quiet was not given.
+inline bool show_progress(const Invocation& inv) { return ProgressLine::wanted(inv.quiet); }
 
 // Writes the command's output to --output (write_file_atomically) or stdout.
 void emit(const Invocation& inv, const std::string& text);

@@ -7,8 +7,6 @@
 #include <iostream>
 #include <sstream>
 
-#include <unistd.h>
-
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/report/budget_output.hpp"
@@ -24,6 +22,7 @@ namespace thermargin::cli {
 int run_budget(int argc, char** argv) {
   po::options_description own("budget options");
   own.add_options()("no-mc", "skip the Monte Carlo engine")(
+      "detail", "text: after the first screen, every contributor and the tables per temperature")(
       "corners", po::value<std::string>()->default_value("auto"),
       "worst-case corners: auto (every corner up to 16 active inputs, directed by the sensitivities beyond) | "
       "enumerate (every corner, up to 24 inputs) | directed");
@@ -40,18 +39,15 @@ int run_budget(int argc, char** argv) {
     throw input_error("--corners = enumerate (command line): " + std::to_string(design.inputs.size()) +
                       " active inputs would give too many corners; at most 24 are enumerated");
   require_feasible(design, inv.scenario, options);
-  if (::isatty(STDERR_FILENO)) {
-    options.progress = [](double f) {
-      std::fprintf(stderr, "\rMonte Carlo %5.1f %%", 100.0 * std::min(f, 1.0));
-      std::fflush(stderr);
-    };
-  }
   const Chain chain(design);
-  Budget budget = run_budget(chain, options);
+  Budget budget = [&] {
+    ProgressLine progress("budget: Monte Carlo", show_progress(inv) && options.monte_carlo);
+    options.progress = progress.fraction_callback();
+    return run_budget(chain, options);
+  }();
   // The lag at the stated ramp ([response]), in the verdict when the requirement says so.
   const ResponseSettings response = read_response_section(inv.scenario);
   if (response.include_dynamic) budget.verdict = with_dynamic_error(budget.verdict, design.requirement, dynamic_error(response));
-  if (options.progress) std::fprintf(stderr, "\r%30s\r", "");
   // What would help: in the text, the JSON and the page (CSV is per temperature),
   // judged on the budget the verdict uses (requirement.at).
   const bool want_help = inv.format != Format::csv || !inv.report.empty();
@@ -60,7 +56,7 @@ int run_budget(int argc, char** argv) {
                       : life     ? what_if(Chain(budget.end_of_life->design), budget.end_of_life->budget)
                                  : what_if(chain, budget);
 
-  const BudgetExtras extras{&chain, response};
+  const BudgetExtras extras{&chain, response, inv.vm.count("detail") > 0};
   std::string text;
   if (inv.format == Format::json) text = budget_json(design, budget, help, extras);
   else if (inv.format == Format::csv) text = budget_csv(budget, extras);

@@ -6,8 +6,6 @@
 #include <cstdio>
 #include <sstream>
 
-#include <unistd.h>
-
 #include "cli.hpp"
 #include "commands.hpp"
 #include "thermargin/report/grades_output.hpp"
@@ -73,16 +71,13 @@ int run_grades(int argc, char** argv) {
     o.pick.range_high = range.high;
     o.pick.objective = parse_objective(vm["pick-objective"].as<std::string>(), command_line("--pick-objective"));
   }
-  if (::isatty(STDERR_FILENO)) {
-    o.progress = [](double f) {
-      std::fprintf(stderr, "\rgrades %5.1f %%", 100.0 * std::min(f, 1.0));
-      std::fflush(stderr);
-    };
-  }
   const Design design = build_design(inv.scenario);
   const Catalogue cat = read_catalogue(vm["catalogue"].as<std::string>());
-  const GradesResult g = evaluate_grades(inv.scenario, cat, o);
-  if (o.progress) std::fprintf(stderr, "\r%20s\r", "");
+  const GradesResult g = [&] {
+    ProgressLine progress("grades", show_progress(inv));
+    o.progress = progress.callback();
+    return evaluate_grades(inv.scenario, cat, o);
+  }();
 
   std::string text;
   if (inv.format == Format::json) text = grades_json(design, cat, g);

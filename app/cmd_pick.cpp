@@ -115,15 +115,12 @@ int run_pick(int argc, char** argv) {
     o.mc_units = static_cast<std::uint64_t>(u);
   }
   o.guidance = vm.count("no-guidance") == 0;
-  if (::isatty(STDERR_FILENO)) {
-    o.progress = [](double f) {
-      std::fprintf(stderr, "\rpick %5.1f %%", 100.0 * std::min(f, 1.0));
-      std::fflush(stderr);
-    };
-  }
   const Design design = build_design(inv.scenario);
-  const PickResult result = pick(inv.scenario, o);
-  if (o.progress) std::fprintf(stderr, "\r%20s\r", "");
+  const PickResult result = [&] {
+    ProgressLine progress(o.verify > 0 ? "pick (then --verify)" : "pick", show_progress(inv));
+    o.progress = progress.fraction_callback();
+    return pick(inv.scenario, o);
+  }();
 
   std::string text;
   if (inv.format == Format::json) text = pick_json(design, result, o);

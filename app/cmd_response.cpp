@@ -24,7 +24,11 @@ int run_response(int argc, char** argv) {
   BudgetOptions options;
   options.monte_carlo = false;
   require_feasible(design, inv.scenario, options);
-  const ResponseAnalysis analysis = analyse_response(Chain(design), settings);
+  const Chain chain(design);
+  const ResponseAnalysis analysis = [&] {
+    ProgressLine progress("response", show_progress(inv));
+    return analyse_response(chain, settings, progress.callback());
+  }();
 
   std::string text;
   if (inv.format == Format::json) text = response_json(design, analysis);

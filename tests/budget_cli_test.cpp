@@ -3,6 +3,7 @@
 // length, the verdict and --strict's exit status.
 #include <algorithm>
 #include <cmath>
+#include <map>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -19,6 +20,18 @@ namespace {
 using CliRun = testing::CliOutcome;
 
 CliRun budget(const std::string& args) { return testing::run_cli("budget " + args); }
+
+// The text with every run of white space (a wrapped line's break and indent) as one space.
+std::string flattened(const std::string& text) {
+  std::string out;
+  for (char c : text)
+    if (c == ' ' || c == '\n') {
+      if (!out.empty() && out.back() != ' ') out += ' ';
+    } else {
+      out += c;
+    }
+  return out;
+}
 
 const std::string quick = " --montecarlo.units=3000 --conditions.t_step=2 --format json";
 
@@ -109,8 +122,9 @@ TEST(BudgetCli, BeyondSixteenActiveInputsTheCornersAreDirectedAndEveryOutputSays
             std::string::npos);
   const CliRun text = budget(seventeen_inputs);
   ASSERT_EQ(text.status, 0) << text.err;
-  EXPECT_NE(text.out.find("corners directed by the sensitivities' signs"), std::string::npos);
-  EXPECT_NE(text.out.find("17 active inputs, more than the 16 enumerated in full"), std::string::npos);
+  const std::string flat = flattened(text.out);  // the table's cell wraps
+  EXPECT_NE(flat.find("corners directed by the sensitivities' signs"), std::string::npos) << text.out;
+  EXPECT_NE(flat.find("17 active inputs, more than the 16 enumerated in full"), std::string::npos) << text.out;
   // And the directed corners find the band every corner gives (2^17 of them).
   const auto full = testing::cli_json("budget" + seventeen_inputs + " --corners=enumerate");
   EXPECT_EQ(full["window"]["wc_method"], "full enumeration");
@@ -187,13 +201,20 @@ TEST(BudgetCli, ContributorTablesPerTemperatureAndForTheWindowAreSharesOfTheComb
   }
   EXPECT_EQ(rows, 81);
 
-  // The text's summary names the dominant source before any table.
-  const CliRun text = budget(testing::shell_quote(testing::scenario_path("cold_store_logger.ini")) + " --no-mc");
+  // The text's first screen names the dominant source first among the
+  // leading sources; --detail adds the shares per temperature after it.
+  const std::string file = testing::shell_quote(testing::scenario_path("cold_store_logger.ini"));
+  const CliRun text = budget(file + " --no-mc");
   const std::string label = j["window"]["contributors"][0]["label"];
-  const auto named = text.out.find("Dominant contributors over the window (share of the combined variance): " + label);
-  ASSERT_NE(named, std::string::npos);
-  EXPECT_LT(named, text.out.find("Per temperature"));
-  EXPECT_NE(text.out.find("Contributors per temperature"), std::string::npos);
+  const auto leading = text.out.find("Leading sources over the window");
+  ASSERT_NE(leading, std::string::npos);
+  const auto rule = text.out.find("\n-", leading);  // the first row follows the header's rule
+  ASSERT_NE(rule, std::string::npos);
+  EXPECT_EQ(text.out.substr(text.out.find('\n', rule + 1) + 1, label.size()), label);
+  EXPECT_EQ(text.out.find("Per temperature"), std::string::npos) << "the tables per temperature are behind --detail";
+  const CliRun detail = budget(file + " --no-mc --detail");
+  EXPECT_LT(detail.out.find("Leading sources over the window"), detail.out.find("Per temperature"));
+  EXPECT_NE(detail.out.find("each source's share of the combined variance"), std::string::npos);
 }
 
 TEST(BudgetCli, SensitivityViewIsTheDividersSlopeInCountsAndMillivolts) {
@@ -250,10 +271,171 @@ TEST(BudgetCli, VerdictGivesItsBasisMarginAndWhereTheMarginIsSmallest) {
     EXPECT_EQ(w["verdict"], worst <= w["limit"].get<double>() ? "pass" : "fail");
   }
   const CliRun text = budget(" --no-mc --requirement.basis=linear");
-  EXPECT_NE(text.out.find("linear-budget error up to"), std::string::npos);
-  EXPECT_NE(text.out.find("verdict basis linear"), std::string::npos);
-  EXPECT_NE(text.out.find("smallest margin at"), std::string::npos);
+  const std::string flat = flattened(text.out);  // the text wraps at 100 columns
+  EXPECT_NE(flat.find("linear-budget error up to"), std::string::npos);
+  EXPECT_NE(flat.find("verdict basis linear (requirement.basis)"), std::string::npos);
+  EXPECT_NE(flat.find("smallest margin at"), std::string::npos);
 }
 
+
+namespace detail_text {
+
+// The tables of a text: each header line followed by its rule of dash
+// groups ("------  ---"); the rule gives each column's span, which reads
+// the cells of every row below it until a blank line or a line that is no
+// table row.
+struct TextTable {
+  std::vector<std::string> header;
+  std::vector<std::vector<std::string>> rows;
+};
+
+std::string trimmed(const std::string& s) {
+  const auto a = s.find_first_not_of(' ');
+  return a == std::string::npos ? "" : s.substr(a, s.find_last_not_of(' ') - a + 1);
+}
+
+// A pair row's name ("a × b") with its two-byte sign as one byte, so that
+// byte offsets are display columns.
+std::string one_byte_signs(std::string s) {
+  for (std::size_t at; (at = s.find("\u00d7")) != std::string::npos;) s.replace(at, 2, "x");
+  return s;
+}
+
+std::vector<TextTable> tables(const std::string& text) {
+  std::vector<std::string> lines;
+  std::istringstream in(one_byte_signs(text));
+  for (std::string l; std::getline(in, l);) lines.push_back(l);
+  std::vector<TextTable> out;
+  for (std::size_t i = 1; i < lines.size(); ++i) {
+    const std::string& rule = lines[i];
+    if (rule.empty() || rule.find_first_not_of("- ") != std::string::npos || rule[0] != '-') continue;
+    std::vector<std::pair<std::size_t, std::size_t>> spans;
+    for (std::size_t a = 0; a < rule.size();) {
+      const std::size_t b = std::min(rule.find(' ', a), rule.size());
+      spans.emplace_back(a, b);
+      a = rule.find_first_not_of(' ', b);
+      if (a == std::string::npos) break;
+    }
+    auto cells = [&](const std::string& line) {
+      std::vector<std::string> c;
+      for (std::size_t k = 0; k < spans.size(); ++k) {
+        const std::size_t from = k ? spans[k - 1].second : 0;
+        const std::size_t to = k + 1 < spans.size() ? spans[k].second : std::string::npos;
+        c.push_back(from < line.size() ? trimmed(line.substr(from, to == std::string::npos ? to : to - from)) : "");
+      }
+      return c;
+    };
+    TextTable t{cells(lines[i - 1]), {}};
+    for (std::size_t j = i + 1; j < lines.size() && !lines[j].empty() && lines[j][0] != '('; ++j) t.rows.push_back(cells(lines[j]));
+    out.push_back(std::move(t));
+  }
+  return out;
+}
+
+std::vector<std::string> csv_cells(const std::string& line) {
+  std::vector<std::string> c;
+  std::string cell;
+  std::istringstream in(line);
+  while (std::getline(in, cell, ',')) c.push_back(cell);
+  if (!line.empty() && line.back() == ',') c.emplace_back();
+  return c;
+}
+
+int decimals(const std::string& s) {
+  const auto dot = s.find('.');
+  return dot == std::string::npos ? 0 : static_cast<int>(s.size() - dot - 1);
+}
+
+}  // namespace detail_text
+
+TEST(BudgetCli, DetailCarriesEveryPerTemperatureValueTheCsvHas) {
+  // The text's tables per temperature are headed by the CSV's column names
+  // (shares in percent: share_<source>_pct); every CSV cell of every row
+  // must be in the --detail text, to the text's last digit. A design that
+  // saturates at the cold end, so that rows with a status are among them.
+  const std::string args = " --conditions.t_min=-20 --conditions.t_step=5 --montecarlo.units=2000"
+                           " --supply.ratiometric=false --supply.v_reference=2.5 --requirement.window_min=5";
+  const CliRun csv = budget(args + " --format csv"), text = budget(args + " --detail");
+  ASSERT_EQ(csv.status, 0) << csv.err;
+  ASSERT_EQ(text.status, 0) << text.err;
+  // column name -> (t -> cell) from the text
+  std::map<std::string, std::map<std::string, std::string>> shown;
+  for (const auto& t : detail_text::tables(text.out)) {
+    if (t.header.empty() || t.header[0] != "t_degC") continue;
+    for (const auto& row : t.rows) {
+      std::string when = row[0];
+      const bool outside = !when.empty() && when.back() == '*';
+      if (outside) when.pop_back();
+      shown["in_window"][when] = outside ? "0" : "1";
+      for (std::size_t k = 1; k < row.size(); ++k) shown[t.header[k]][when] = row[k];
+    }
+  }
+  std::istringstream in(csv.out);
+  std::string line;
+  std::getline(in, line);
+  const auto head = detail_text::csv_cells(line);
+  int compared = 0, rows = 0;
+  while (std::getline(in, line)) {
+    const auto cells = detail_text::csv_cells(line);
+    ASSERT_EQ(cells.size(), head.size()) << line;
+    ++rows;
+    for (std::size_t k = 1; k < head.size(); ++k) {
+      std::string name = detail_text::one_byte_signs(head[k]);
+      double scale = 1.0;
+      if (name.starts_with("share_")) name += "_pct", scale = 100.0;
+      ASSERT_TRUE(shown.count(name)) << "no column " << name << " in the --detail text";
+      const std::string got = shown[name].count(cells[0]) ? shown[name][cells[0]] : "";
+      if (cells[k].empty() || name == "dominant" || name == "status") {
+        EXPECT_EQ(got, detail_text::one_byte_signs(cells[k])) << name << " at " << cells[0];
+        continue;
+      }
+      ASSERT_FALSE(got.empty()) << name << " at " << cells[0];
+      // Both are one value rounded: to the text's digits and to the CSV's.
+      const double tolerance = 0.5 * std::pow(10.0, -detail_text::decimals(got)) +
+                               0.5 * scale * std::pow(10.0, -detail_text::decimals(cells[k])) + 1e-12;
+      EXPECT_NEAR(std::stod(got), scale * std::stod(cells[k]), tolerance) << name << " at " << cells[0];
+      ++compared;
+    }
+  }
+  EXPECT_EQ(rows, 21);  // -20 .. 80 degC (the default t_max) in steps of 5
+  EXPECT_GT(compared, 100);
+}
+
+TEST(BudgetCli, AVerdictOnAWindowThatSaturatesSaysWhereApartFromTheErrorWhereItReads) {
+  // 10k/10k from 3.3 V into an absolute 2.5 V reference: the node is above
+  // the reference while the NTC is above 31.25 kOhm (3.3·R/(R + 10k) = 2.5;
+  // Ohm's law), below 1.39 degC for the default R25 = 10 kOhm, B = 3950 K
+  // part (IEC 60539-1's beta equation, computed below): the window from
+  // -10 degC saturates at its cold end.
+  const std::string args = " --conditions.t_min=-20 --requirement.window_min=-10 --supply.ratiometric=false"
+                           " --supply.v_reference=2.5 --montecarlo.units=2000";
+  const auto j = testing::cli_json("budget" + args);
+  const auto& w = j["window"];
+  EXPECT_EQ(w["verdict"], "fail");
+  ASSERT_TRUE(w.contains("unreadable"));
+  const auto& first = w["unreadable"][0];
+  EXPECT_EQ(first["status"], "saturated");
+  EXPECT_EQ(first["from"].get<double>(), -10.0);  // the window's first temperature
+  EXPECT_TRUE(first["every_unit"].get<bool>());
+  // The run ends at the last temperature of the 0.5 K grid below the
+  // crossing; the element's self-heating (under 0.2 K here) moves it colder.
+  const double crossing = 1.0 / (1.0 / 298.15 + std::log(31.25e3 / 10e3) / 3950.0) - 273.15;
+  EXPECT_LE(first["to"].get<double>(), crossing);
+  EXPECT_GT(first["to"].get<double>(), crossing - 0.5 - 0.2);
+  // The error where every unit reads is the worst case over those temperatures only.
+  double readable = 0.0;
+  for (const auto& p : j["points"])
+    if (p["in_window"].get<bool>() && p.contains("wc_low") && !p.contains("wc_failed_corners") && !p.contains("status"))
+      readable = std::max({readable, std::fabs(p["wc_low"].get<double>()), std::fabs(p["wc_high"].get<double>())});
+  EXPECT_DOUBLE_EQ(w["readable_max_abs"].get<double>(), readable);
+  // The text says both, apart, and no margin beside a window that cannot be read.
+  const CliRun text = budget(args);
+  const auto verdict = text.out.find("VERDICT: FAIL inside the window, the ADC saturates");
+  ASSERT_NE(verdict, std::string::npos) << text.out;
+  const std::string head = text.out.substr(verdict, text.out.find("\nWindow") - verdict);
+  EXPECT_NE(head.find("from -10.00 to"), std::string::npos) << head;
+  EXPECT_NE(head.find("where every unit reads, the worst-case error is up to"), std::string::npos) << head;
+  EXPECT_EQ(head.find("margin"), std::string::npos) << head;
+}
 }  // namespace
 }  // namespace thermargin

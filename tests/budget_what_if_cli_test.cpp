@@ -44,7 +44,9 @@ TEST(BudgetNodeVoltage, IsTheDividerVoltageInJsonCsvAndText) {
     ++i;
   }
   EXPECT_EQ(i, j["points"].size());
-  EXPECT_NE(testing::cli_output(args).find("node (V)"), std::string::npos);
+  // The text: the node's range on the first screen, every voltage behind --detail.
+  EXPECT_NE(testing::cli_output(args).find("Headroom: node "), std::string::npos);
+  EXPECT_NE(testing::cli_output(args + " --detail").find("v_node_V"), std::string::npos);
 }
 
 TEST(BudgetWhatIf, JsonRowsAreTheLibrarysAndEachNamesAKeyThatDoesWhatItSays) {
@@ -81,7 +83,7 @@ TEST(BudgetWhatIf, TextSaysWhichChangeMeetsTheLimit) {
   // set-up, not check values): the text row must then say "only if
   // removed", agreeing with the JSON figures and the limit it prints.
   const std::string out = testing::cli_output("budget --no-mc --requirement.max_error=1.2");
-  const auto section = out.find("What would help over the window");
+  const auto section = out.find("What would help (one source improved at a time");
   ASSERT_NE(section, std::string::npos) << out;
   EXPECT_NE(out.find("limit +/-1.200 K", section), std::string::npos);
   const auto row = out.find("sensor beta tolerance (sensor.beta_tol)", section);

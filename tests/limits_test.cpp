@@ -22,6 +22,7 @@
 
 #include "cli_run.hpp"
 #include "engine_fixture.hpp"
+#include "thermargin/core/number.hpp"
 
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/chain/chain.hpp"
@@ -101,10 +102,19 @@ TEST(PhysicalLimits, AreReportedPerTemperatureAndSummarisedInJsonWithNoNumberTha
     // The run's summary: every temperature some engine could not read is counted.
     EXPECT_GE(j["window"]["status_points"].get<int>(), reached);
     // The window's summary: a limit inside the window fails the verdict and says why.
+    // The window's summary: a limit inside the window fails the verdict and
+    // says where, apart from the error where the window reads.
     if (l.in_window) {
       EXPECT_EQ(j["window"]["verdict"], "fail");
       const std::string reason = j["window"]["reason"];
-      EXPECT_NE(reason.find("cannot be read"), std::string::npos) << reason;
+      EXPECT_EQ(reason.rfind("inside the window, ", 0), 0u) << reason;
+      ASSERT_TRUE(j["window"].contains("unreadable")) << reason;
+      bool named = false;
+      for (const auto& run : j["window"]["unreadable"]) {
+        named = named || run["status"] == std::string(to_string(l.status));
+        EXPECT_NE(reason.find(fixed(run["from"].get<double>(), 2)), std::string::npos) << reason;
+      }
+      EXPECT_TRUE(named) << reason;
     }
   }
 }
@@ -158,19 +168,23 @@ TEST(PhysicalLimits, AreReportedPerTemperatureInCsvWithEmptyCellsNotNumbers) {
 TEST(PhysicalLimits, AreNamedInTheTextTableAndCountedInItsNote) {
   for (const Limit& l : limits()) {
     SCOPED_TRACE(l.what);
-    const Outcome r = thermargin("budget " + l.args);
+    const Outcome r = thermargin("budget " + l.args + " --detail");
     ASSERT_EQ(r.status, 0) << r.err;
     EXPECT_FALSE(prints_non_finite(r.out));
-    // Rows of the per-temperature table that say it (the verdict line may too).
-    const auto table = r.out.find("\nPer temperature");
+    // Rows of the per-temperature table of the nominal chain that say it in
+    // its status column (the verdict line may too).
+    const auto table = r.out.find("\nPer temperature, the nominal chain");
     ASSERT_NE(table, std::string::npos);
     int rows = 0;
-    std::istringstream in(r.out.substr(table));
-    for (std::string line; std::getline(in, line);) rows += line.find(describe(l.status)) != std::string::npos;
-    EXPECT_GT(rows, 0) << "no row says: " << describe(l.status);
+    std::istringstream in(r.out.substr(table, r.out.find("\nPer temperature, the bands") - table));
+    const std::regex says("^-?[0-9.]+\\*? +" + std::string(to_string(l.status)) + "( |$)");
+    for (std::string line; std::getline(in, line);) rows += std::regex_search(line, says);
+    EXPECT_GT(rows, 0) << "no row says: " << to_string(l.status);
+    // The ranges that cannot be read, named with what happens there.
     std::smatch m;
-    ASSERT_TRUE(std::regex_search(r.out, m, std::regex(R"(Note: (\d+) temperature\(s\) have readings that cannot be converted)")));
+    ASSERT_TRUE(std::regex_search(r.out, m, std::regex(R"(Temperatures that cannot be read \((\d+) with some engine's status\))")));
     EXPECT_GE(std::stoi(m[1]), rows);
+    EXPECT_NE(r.out.find(std::string(describe(l.status)), m.position(0)), std::string::npos);
     if (l.in_window) {
       EXPECT_NE(r.out.find("VERDICT: FAIL"), std::string::npos);
     }

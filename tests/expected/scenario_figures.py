@@ -14,6 +14,12 @@ them). The outside checks of the same figures are the second opinions
 1e-9 K (deterministic engines) or 1e-6 (Monte Carlo figures, whose
 histogram interpolation may round differently on another vector unit).
 Prints "ok: <n> figures" or one line per difference, exit status 1.
+
+The check also reads the budget's default text (issue 18: one screen a
+reviewer reads first): at most SCREEN_WIDTH columns and about 50 lines,
+SCREEN_LINES at the most, with END_OF_LIFE_LINES more for the table of a
+design over its life. A short Monte Carlo run is enough: the screen's shape
+does not depend on the number of units.
 """
 import json
 import subprocess
@@ -24,6 +30,22 @@ WINDOW_COUNTS = ["active_inputs", "wc_corners", "status_points", "mc_units"]
 WINDOW_EXACT = ["wc_max_abs", "wc_max_at", "rss_max_abs", "rss_max_at", "worst_abs_error", "worst_at", "margin", "limit"]
 WINDOW_MC = ["mc_max_abs", "yield", "yield_low", "yield_high"]
 DETERMINISTIC, MONTE_CARLO = 1e-9, 1e-6
+SCREEN_WIDTH, SCREEN_LINES, END_OF_LIFE_LINES = 100, 60, 8
+
+
+def screen_problems(program, scenario):
+    out = subprocess.run([program, "budget", scenario, "--montecarlo.units=2000"], capture_output=True, text=True)
+    if out.returncode != 0:
+        return [f"thermargin budget {scenario} (text) exited with {out.returncode}: {out.stderr}"]
+    lines = out.stdout.splitlines()
+    most = SCREEN_LINES + (END_OF_LIFE_LINES if any(l.startswith("Over the product's life") for l in lines) else 0)
+    bad = [f"text line {i + 1} has {len(l)} characters, more than {SCREEN_WIDTH}: {l}"
+           for i, l in enumerate(lines) if len(l) > SCREEN_WIDTH]
+    if len(lines) > most:
+        bad.append(f"the default text has {len(lines)} lines, more than {most}")
+    if "Per temperature" in out.stdout:
+        bad.append("the default text carries the tables per temperature (they are behind --detail)")
+    return bad
 
 
 def figures(program, scenario):
@@ -70,7 +92,7 @@ def main():
         return
     with open(sys.argv[3]) as f:
         want = json.load(f)
-    bad = compare(got, want)
+    bad = compare(got, want) + screen_problems(program, scenario)
     if bad:
         print("\n".join(bad))
         sys.exit(1)

@@ -9,6 +9,7 @@
 #include <map>
 #include <string>
 
+#include "thermargin/engines/unreadable.hpp"
 #include "thermargin/input/life.hpp"
 
 namespace thermargin {
@@ -163,28 +164,39 @@ std::string validation_failure_reason(const BudgetPoint& p, const Design& d) {
 
 namespace {
 
+// Whether the basis engine could read a window point for every unit.
+bool basis_broken(const BudgetPoint& p, Requirement::Basis basis) {
+  if (basis == Requirement::Basis::worst_case) return p.wc.failed_corners > 0 || !p.wc.any_ok;
+  if (basis == Requirement::Basis::linear) return p.linear.status != Status::ok;
+  return false;
+}
+
+// The basis engine's largest |error| over the window points it reads for
+// every unit: the error of the readable part, apart from where it saturates.
+void readable_part(const Budget& b, Verdict& v) {
+  const bool wc = v.basis == Requirement::Basis::worst_case;
+  v.readable_max_abs = v.readable_at = std::numeric_limits<double>::quiet_NaN();
+  for (const auto& p : b.points) {
+    if (!p.in_window || basis_broken(p, v.basis)) continue;
+    const double e = wc ? std::max(std::fabs(p.wc.low), std::fabs(p.wc.high))
+                        : std::max(std::fabs(p.linear.low), std::fabs(p.linear.high));
+    if (!(e <= v.readable_max_abs)) {
+      v.readable_max_abs = e;
+      v.readable_at = p.t;
+    }
+  }
+}
+
 // The verdict by the requirement's basis: the worst case or the linear
 // band against the limit (failing where a window temperature cannot be
-// read), or the Monte Carlo yield against the required yield.
+// read, said apart from the error where it reads), or the Monte Carlo
+// yield against the required yield.
 void decide_verdict(Budget& b, const Design& d) {
   Verdict& v = b.verdict;
   v.basis = d.requirement.basis;
   const double limit = d.requirement.max_error;
-  int window_failures = 0;
-  Status failure = Status::ok;
-  double failure_at = 0.0;
-  for (const auto& p : b.points) {
-    if (!p.in_window) continue;
-    const bool wc_broken = p.wc.failed_corners > 0 || !p.wc.any_ok;
-    const bool lin_broken = p.linear.status != Status::ok;
-    const bool broken = v.basis == Requirement::Basis::worst_case ? wc_broken
-                        : v.basis == Requirement::Basis::linear   ? lin_broken
-                                                                  : false;
-    if (broken && window_failures++ == 0) {
-      failure = v.basis == Requirement::Basis::worst_case ? p.wc.failure : p.linear.status;
-      failure_at = p.t;
-    }
-  }
+  const bool window_failures = std::any_of(b.points.begin(), b.points.end(),
+                                           [&](const BudgetPoint& p) { return p.in_window && basis_broken(p, v.basis); });
   char buf[256];
   if (v.basis == Requirement::Basis::monte_carlo) {
     if (!b.mc) {
@@ -202,20 +214,29 @@ void decide_verdict(Budget& b, const Design& d) {
     return;
   }
   const bool wc_basis = v.basis == Requirement::Basis::worst_case;
+  const char* engine = wc_basis ? "worst-case" : "linear-budget";
   v.worst_abs_error = wc_basis ? b.wc_max_abs : b.rss_max_abs;
   v.worst_at = wc_basis ? b.wc_max_at : b.rss_max_at;
   v.margin = limit - v.worst_abs_error;
-  if (window_failures > 0) {
-    v.pass = false;
-    std::snprintf(buf, sizeof buf, "%d temperature(s) in the window cannot be read by some unit, first at %.2f degC: ",
-                  window_failures, failure_at);
-    v.reason = std::string(buf) + std::string(describe(failure));
-  } else {
+  v.readable_max_abs = v.worst_abs_error;
+  v.readable_at = v.worst_at;
+  if (!window_failures) {
     v.pass = v.margin >= 0.0;
-    std::snprintf(buf, sizeof buf, "%s error up to %.3f K at %.2f degC against the limit of +/-%.3f K",
-                  wc_basis ? "worst-case" : "linear-budget", v.worst_abs_error, v.worst_at, limit);
+    std::snprintf(buf, sizeof buf, "%s error up to %.3f K at %.2f degC against the limit of +/-%.3f K", engine,
+                  v.worst_abs_error, v.worst_at, limit);
     v.reason = buf;
+    return;
   }
+  v.pass = false;
+  v.unreadable = unreadable_runs(b.points, true);
+  readable_part(b, v);
+  v.reason = "inside the window, " + describe_runs(v.unreadable) + "; ";
+  if (std::isfinite(v.readable_max_abs))
+    std::snprintf(buf, sizeof buf, "where every unit reads, the %s error is up to %.3f K at %.2f degC against the limit of +/-%.3f K",
+                  engine, v.readable_max_abs, v.readable_at, limit);
+  else
+    std::snprintf(buf, sizeof buf, "no window temperature is read by every unit");
+  v.reason += buf;
 }
 
 Budget budget_of(const Chain& chain, const BudgetOptions& options) {

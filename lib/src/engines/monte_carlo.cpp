@@ -734,7 +734,10 @@ Accumulator run_units(const Job& job, std::uint64_t first, std::uint64_t n, int 
       const std::uint64_t start = first + k * block_size;
       const int count = static_cast<int>(std::min<std::uint64_t>(block_size, first + n - start));
       run_block(job, start, count, accs[static_cast<std::size_t>(w)], *block);
-      done.fetch_add(1);
+      const std::uint64_t finished = done.fetch_add(1) + 1;
+      // One worker has no printer thread beside it: it reports between blocks.
+      if (progress && workers <= 1)
+        progress(static_cast<double>(progress_base + finished * block_size) / static_cast<double>(progress_total));
     }
   };
   run_workers(workers, work, [&] {

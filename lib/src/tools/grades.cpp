@@ -405,6 +405,26 @@ GradeRow make_row(const Catalogue& cat, const GradesOptions& options, std::size_
   return r;
 }
 
+// Progress's "best so far": a combination that meets the requirement beats
+// one that does not, then the cheaper; among those that do not, the smaller
+// error.
+bool better(const GradeRow& a, const GradeRow& b) {
+  if (a.meets_requirement != b.meets_requirement) return a.meets_requirement;
+  if (a.meets_requirement) return a.unit_cost < b.unit_cost;
+  if (a.error.has_value() != b.error.has_value()) return a.error.has_value();
+  return a.error && *a.error < *b.error;
+}
+
+std::string best_note(const Catalogue& cat, const GradeRow& r) {
+  std::string s = "best so far: ";
+  for (std::size_t k = 0; k < cat.slots.size(); ++k)
+    s += (k ? ", " : "") + cat.slots[k].name + " " + cat.slots[k].options[static_cast<std::size_t>(r.choice[k])].grade;
+  char buf[96];
+  if (r.error) std::snprintf(buf, sizeof buf, ": %.3f K, %.4g per unit", *r.error, r.unit_cost);
+  else std::snprintf(buf, sizeof buf, ": no error figure, %.4g per unit", r.unit_cost);
+  return s + buf + (r.meets_requirement ? ", meets" : "");
+}
+
 // The scenario's current parts: the grade of each slot whose settings the
 // scenario already has, and the row of that combination.
 void find_current(GradesResult& g, const Catalogue& cat, const Scenario& scenario) {
@@ -428,10 +448,11 @@ void find_current(GradesResult& g, const Catalogue& cat, const Scenario& scenari
 // returns the tasks it makes ready (its children in the re-pick tree);
 // release(j, c) runs for each under the lock before c is queued, so a child
 // starts from what its parent found. `progress` gets the share of the
-// `count` tasks done. Returns each task's exception (none: empty pointers).
-template <class Task, class Release>
+// `count` tasks done, after finished(j) has run under the lock for a task
+// that did not throw. Returns each task's exception (none: empty pointers).
+template <class Task, class Release, class Done>
 std::vector<std::exception_ptr> run_task_tree(std::deque<std::size_t> ready, std::size_t count, int threads, Task&& task,
-                                              Release&& release, const std::function<void(double)>& progress) {
+                                              Release&& release, Done&& finished, const std::function<void(double)>& progress) {
   std::vector<std::exception_ptr> errors(count);
   std::mutex m;
   std::condition_variable cv;
@@ -458,6 +479,7 @@ std::vector<std::exception_ptr> run_task_tree(std::deque<std::size_t> ready, std
         ready.push_back(c);
       }
       ++done;
+      if (!errors[j]) finished(j);
       if (progress) progress(static_cast<double>(done) / static_cast<double>(count));
       cv.notify_all();
     }
@@ -659,13 +681,24 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
   const int threads = static_cast<int>(std::min<std::size_t>(
       static_cast<std::size_t>(resolve_threads(options.threads >= 0 ? options.threads : base.montecarlo.threads)),
       first_of.size()));
+  // Progress: the share of designs done and the best combination so far
+  // (once per design, under the scheduler's lock; never in an engine's loop).
+  std::optional<GradeRow> best;
+  std::function<void(double)> progress;
+  if (options.progress) progress = [&](double f) { options.progress(f, best ? best_note(cat, *best) : std::string()); };
   const auto errors = run_task_tree(
       std::move(ready), first_of.size(), threads,
       [&](std::size_t j) {
         figures[j] = evaluate_design(combination_scenario(scenario, cat, choice_of(cat, first_of[j])), options, rp, anchor[j]);
         return children(first_of[j]);  // with a re-pick, designs are combinations: j == first_of[j]
       },
-      [&](std::size_t j, std::size_t c) { anchor[c] = nearest_index(rp.values, *figures[j].r_fixed); }, options.progress);
+      [&](std::size_t j, std::size_t c) { anchor[c] = nearest_index(rp.values, *figures[j].r_fixed); },
+      [&](std::size_t j) {
+        if (!progress) return;
+        GradeRow r = make_row(cat, options, first_of[j], figures[j]);
+        if (!best || better(r, *best)) best = std::move(r);
+      },
+      progress);
   for (const auto& e : errors)  // the first in catalogue order, whatever the threads did
     if (e) std::rethrow_exception(e);
 

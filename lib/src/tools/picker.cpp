@@ -884,7 +884,10 @@ PickResult pick(const Scenario& scenario, const PickOptions& options) {
   // Monte Carlo re-check of the top rows.
   const std::size_t verify = std::min<std::size_t>(static_cast<std::size_t>(o.verify), result.rows.size());
   for (std::size_t k = 0; k < verify; ++k) {
-    result.rows[k].verify = mc_window(st[idx[k]].built->chain, ctx.window, ctx.mc_verify_units, ctx.threads);
+    McProgress row_progress;  // the last fifth of the run, a share per row
+    if (o.progress)
+      row_progress = [&, k](double f) { o.progress(0.8 + 0.2 * (static_cast<double>(k) + std::min(f, 1.0)) / static_cast<double>(verify)); };
+    result.rows[k].verify = mc_window(st[idx[k]].built->chain, ctx.window, ctx.mc_verify_units, ctx.threads, row_progress);
   }
   result.rows.resize(shown);
 

@@ -61,8 +61,10 @@ LinearWindow linear_window(const LinearBudget& lb) {
   return w;
 }
 
-McCheck mc_window(const Chain& chain, const std::vector<double>& temps, std::uint64_t units, int threads) {
+McCheck mc_window(const Chain& chain, const std::vector<double>& temps, std::uint64_t units, int threads,
+                  const McProgress& progress) {
   McOptions mo;
+  mo.progress = progress;
   mo.units = units;
   mo.threads = std::max(threads, 1);
   const McResult r = monte_carlo(chain, temps, mo);

@@ -10,6 +10,7 @@
 
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
 #include "thermargin/engines/worst_case.hpp"
 #include "thermargin/tools/picker.hpp"
 
@@ -66,7 +67,8 @@ WindowBand worst_case_band(const Chain& chain, const std::vector<double>& temps,
 // summed variance over the window's points, as budget.cpp ranks them.
 LinearWindow linear_window(const LinearBudget& lb);
 
-McCheck mc_window(const Chain& chain, const std::vector<double>& temps, std::uint64_t units, int threads);
+McCheck mc_window(const Chain& chain, const std::vector<double>& temps, std::uint64_t units, int threads,
+                  const McProgress& progress = {});
 
 bool corners_directed(const Design& d);
 

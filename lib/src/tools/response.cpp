@@ -313,7 +313,8 @@ WhatWouldMeet what_would_meet(const Design& d, const ResponseAnalysis& a, const 
 
 }  // namespace
 
-ResponseAnalysis analyse_response(const Design& d, const Budget& b, const ResponseSettings& s) {
+ResponseAnalysis analyse_response(const Design& d, const Budget& b, const ResponseSettings& s,
+                                  const ProgressCallback& progress) {
   ResponseAnalysis a;
   a.settings = s;
   a.limit = d.requirement.max_error;
@@ -323,7 +324,10 @@ ResponseAnalysis analyse_response(const Design& d, const Budget& b, const Respon
   const std::vector<WindowPoint> w = window_points(d, b);
   a.noise_band_unfiltered = static_figure(w, 1.0).noise;
   const std::vector<Filter> sweep = filter_sweep(s.filter);
-  for (const Filter& f : sweep) a.rows.push_back(make_row(f, s, w, a.limit));
+  for (const Filter& f : sweep) {
+    a.rows.push_back(make_row(f, s, w, a.limit));
+    if (progress) progress(0.5 + 0.5 * static_cast<double>(a.rows.size()) / static_cast<double>(sweep.size()), "filters");
+  }
   // The scenario's own filter: the row with its delay and kind (N = 1 and α = 1 are none).
   a.chosen = 0;
   for (std::size_t i = 0; i < a.rows.size(); ++i)
@@ -346,11 +350,12 @@ ResponseAnalysis analyse_response(const Design& d, const Budget& b, const Respon
   return a;
 }
 
-ResponseAnalysis analyse_response(const Chain& chain, const ResponseSettings& s) {
+ResponseAnalysis analyse_response(const Chain& chain, const ResponseSettings& s, const ProgressCallback& progress) {
   BudgetOptions o;
   o.monte_carlo = false;
+  if (progress) progress(0.0, "worst case and linear budget");
   const Budget b = run_budget(chain, o);
-  return analyse_response(chain.design(), b, s);
+  return analyse_response(chain.design(), b, s, progress);
 }
 
 std::vector<std::size_t> pictured_rows(const ResponseAnalysis& a) {

@@ -37,6 +37,14 @@ struct BudgetPoint {
   std::vector<Contributor> contributors;  // sorted, largest share first
 };
 
+// A run of consecutive temperatures that cannot be read (unreadable.hpp).
+struct UnreadableRun {
+  double from = 0.0, to = 0.0;  // °C, the run's first and last temperature
+  Status status = Status::ok;   // what happens at its first temperature
+  bool nominal = false;         // the nominal unit itself cannot read there (not only some units)
+  bool in_window = false;       // the run lies in the requirement window
+};
+
 struct Verdict {
   bool pass = false;
   Requirement::Basis basis = Requirement::Basis::worst_case;
@@ -44,6 +52,13 @@ struct Verdict {
   double worst_at = 0.0;         // °C
   double margin = 0.0;           // K, limit − worst_abs_error (negative: fails)
   std::string reason;            // one sentence
+  // The two ways to fail, apart: where the window cannot be read (the runs
+  // inside it, empty when every window temperature reads) and, where it
+  // reads, the basis engine's largest |error| (NaN when none reads; equal
+  // to worst_abs_error when every temperature reads).
+  std::vector<UnreadableRun> unreadable;
+  double readable_max_abs = 0.0;  // K
+  double readable_at = 0.0;       // °C
   // The budget the verdict was judged on (requirement.at); end of life only
   // when drift is set (life.hpp).
   Requirement::At at = Requirement::At::delivery;

@@ -13,14 +13,20 @@
 
 namespace thermargin {
 
-// The report for a terminal: the verdict, the engines' largest errors over
-// the window, the contributors, what would help and the table per temperature.
-// What the command adds beside the budget: the chain it ran (for the sampled
-// node's settling summary, when the ADC has a sampling capacitor) and the
-// scenario's [response] section (the dynamic error line).
+// The report for a terminal, at most 100 columns wide: one screen first (the
+// verdict, the engines' largest errors with their margins, the yield, the
+// leading sources by share and by reach, the headroom, the divider's current
+// and the sensor's power, what would help), then with `detail` every
+// contributor, the unreadable temperatures and the tables per temperature,
+// headed by the CSV's column names (split to fit the width).
+// What the command adds beside the budget: the chain it ran (the headroom,
+// and the sampled node's settling summary when the ADC has a sampling
+// capacitor), the scenario's [response] section (the dynamic error line),
+// and whether the text goes into detail (--detail).
 struct BudgetExtras {
   const Chain* chain = nullptr;
   ResponseSettings response;
+  bool detail = false;
 };
 
 std::string budget_text(const Design& design, const Budget& budget, const WhatIf& what_if,

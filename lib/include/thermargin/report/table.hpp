@@ -30,6 +30,18 @@ struct Table {
 // UTF-8 characters, not bytes. The caption is not printed.
 std::string render_text(const Table& table);
 
+// How a table fits a terminal of `width` columns (0: no limit). A text cell
+// wider than half of it wraps at spaces onto continuation lines; a table
+// still wider is split into several, one after the other, each repeating
+// the first `repeat` columns (the temperature of a table per temperature).
+// Every column gets a rule of its own under its header ("-----  ---"), so
+// that a reader, or a program, finds the columns again.
+struct TextLayout {
+  std::size_t width = 0;
+  std::size_t repeat = 1;
+};
+std::string render_text(const Table& table, const TextLayout& layout);
+
 // CSV: the header line, then one line per row, every cell through csv_cell()
 // (html_report.hpp: quoted when needed, a formula defused). The caption is
 // not printed.

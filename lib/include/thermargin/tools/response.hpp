@@ -35,6 +35,8 @@
 #include <string>
 #include <vector>
 
+#include "thermargin/core/progress.hpp"
+
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/input/response_section.hpp"
@@ -119,10 +121,14 @@ struct ResponseAnalysis {
 // filters α = 1/2, 1/4, …, 1/256; and `own` where it is none of these.
 std::vector<Filter> filter_sweep(const Filter& own);
 
-// Runs the budget (no Monte Carlo) on the chain and every filter of the sweep.
-ResponseAnalysis analyse_response(const Chain& chain, const ResponseSettings& settings);
+// Runs the budget (no Monte Carlo) on the chain and every filter of the
+// sweep; `progress` (core/progress.hpp) hears the share done: the budget
+// first, then the sweep's filters.
+ResponseAnalysis analyse_response(const Chain& chain, const ResponseSettings& settings,
+                                  const ProgressCallback& progress = {});
 // The same on a budget already run on the chain's design.
-ResponseAnalysis analyse_response(const Design& design, const Budget& budget, const ResponseSettings& settings);
+ResponseAnalysis analyse_response(const Design& design, const Budget& budget, const ResponseSettings& settings,
+                                  const ProgressCallback& progress = {});
 
 // The rows drawn in the pictures: the scenario's filter and its neighbours
 // in its family (half and twice the length, twice and half α; none's are
