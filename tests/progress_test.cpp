@@ -9,6 +9,8 @@
 
 #include <gtest/gtest.h>
 
+#include "cli_run.hpp"
+
 namespace thermargin {
 namespace {
 
@@ -53,6 +55,34 @@ TEST(ProgressLine, WritesNothingWhenDisabledAndClearsItsLineWhenDone) {
   const std::string written(buffer);
   EXPECT_NE(written.find("\rgrades: 100 % done; done"), std::string::npos) << written;
   EXPECT_EQ(written.back(), '\r') << "the line is cleared at the end";
+}
+
+// The commands: `grades` with its standard error on a pseudo-terminal
+// (tests/reference/stderr_on_a_terminal.py, Python's pty) shows the line
+// with the share done and the best combination so far; on a pipe, or with
+// --quiet, standard error stays empty.
+const std::string grades_run = "grades " + testing::shell_quote(testing::scenario_path("fermentation_probe.ini")) +
+                               " --catalogue " +
+                               testing::shell_quote(testing::scenario_path("fermentation_probe_catalogue.csv")) +
+                               " --units 100 --volume 5000 --conditions.t_step=10";
+
+TEST(ProgressOfACommand, GradesShowsItsProgressOnATerminal) {
+  const testing::CliOutcome r =
+      testing::run_shell(testing::reference_command("stderr_on_a_terminal.py", testing::cli_command(grades_run)));
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_NE(r.out.find("grades: "), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("% done"), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("grades: 100 % done; best so far: "), std::string::npos) << r.out;
+}
+
+TEST(ProgressOfACommand, IsSilentOnAPipeAndWithQuiet) {
+  const testing::CliOutcome piped = testing::run_cli(grades_run);
+  ASSERT_EQ(piped.status, 0) << piped.err;
+  EXPECT_EQ(piped.err, "");
+  const testing::CliOutcome quiet =
+      testing::run_shell(testing::reference_command("stderr_on_a_terminal.py", testing::cli_command(grades_run + " --quiet")));
+  ASSERT_EQ(quiet.status, 0) << quiet.err;
+  EXPECT_EQ(quiet.out.find("% done"), std::string::npos) << quiet.out;
 }
 
 }  // namespace
