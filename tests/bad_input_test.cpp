@@ -208,12 +208,8 @@ std::vector<Case> combinations() {
                {"firmware.calibration_at = 20,30", "bad.ini:3", "takes one temperature"}),
       scenario("a two-point calibration at one temperature", "[firmware]\ncalibration = two-point\ncalibration_at = 20,20\n",
                {"firmware.calibration_at = 20,20", "bad.ini:3", "must differ"}),
-      scenario("a parallel-resistor tolerance with no parallel resistor", "[divider]\nr_parallel_tol = 1%\n",
-               {"divider.r_parallel_tol = 1%", "bad.ini:2", "set divider.r_parallel"}),
       scenario("an absolute reference without its voltage", "[supply]\nratiometric = false\n",
                {"supply.v_reference", "(default)", "needs its voltage set explicitly"}),
-      scenario("a reference tolerance on a ratiometric supply", "[supply]\nv_reference_tol = 1%\n",
-               {"supply.v_reference_tol = 1%", "bad.ini:2", "set it to 0 or make the supply absolute"}),
       scenario("a table model without a table", "[sensor]\nmodel = table\n",
                {"sensor.table_file = (empty) (default)", "needs a table file (CSV of degC, ohm)"}),
       scenario("averaging of zero", "[adc]\naveraging = 0\n", {"adc.averaging = 0", "bad.ini:2", "from 1 to 65536"}),
@@ -240,8 +236,6 @@ std::vector<Case> combinations() {
                {"divider.r_fixed_drift = 100%", "bad.ini:2", "from 0 up to (not including) 100 %"}),
       scenario("a negative ADC offset drift", "[adc]\noffset_drift = -1\n",
                {"adc.offset_drift = -1", "bad.ini:2", "must be >= 0"}),
-      scenario("a reference drift on a ratiometric supply", "[supply]\nv_reference_drift = 0.1%\n",
-               {"supply.v_reference_drift = 0.1%", "bad.ini:2", "set it to 0 or make the supply absolute"}),
       scenario("a verdict at an unknown time", "[requirement]\nat = later\n",
                {"requirement.at = later", "bad.ini:2", "end-of-life", "delivery"}),
       // Parts as their datasheets state them (docs/model.md §1, §5, §7).
@@ -564,8 +558,6 @@ std::vector<Case> acquisition() {
                {"adc.precharge = previous", "bad.ini:2", "same | ground | reference | any"}),
       scenario("a precharge above the reference", "[adc]\nprecharge = 5V\n",
                {"adc.precharge = 5V", "bad.ini:2", "from 0 to the ADC reference"}),
-      scenario("a drive tolerance without a drive resistance", "[supply]\nr_drive_tol = 20%\n",
-               {"supply.r_drive_tol = 20%", "bad.ini:2", "set supply.r_drive"}),
   };
 }
 

@@ -140,8 +140,16 @@ TEST(Life, RtdDriftShiftsTheElement) {
 TEST(Life, BadDriftIsRefused) {
   EXPECT_THROW(design_with({{"sensor.drift", "-1%"}}), input_error);
   EXPECT_THROW(design_with({{"divider.r_fixed_drift", "100%"}}), input_error);
-  EXPECT_THROW(design_with({{"supply.v_reference_drift", "0.1%"}}), input_error);  // ratiometric
   EXPECT_THROW(design_with({{"requirement.at", "later"}}), input_error);
+}
+
+TEST(Life, ASupplyDriftOnARatiometricSupplyIsANoteAndNotUsed) {
+  // The supply's errors cancel in a ratiometric divider (docs/model.md §4):
+  // a drift set there plays no part, which check notes (issue 18).
+  const Design d = design_with({{"supply.v_reference_drift", "0.1%"}});
+  ASSERT_EQ(d.notes.size(), 1u);
+  EXPECT_NE(d.notes[0].find("supply.v_reference_drift = 0.1% is not used"), std::string::npos) << d.notes[0];
+  EXPECT_TRUE(d.drift_inputs.empty());
 }
 
 }  // namespace

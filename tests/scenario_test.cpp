@@ -362,5 +362,56 @@ TEST(ShippedScenarios, DemoTableFollowsTheSteinhartHartCurveItsCommentStates) {
     EXPECT_NEAR(p.r_ohm, std::exp(ln_resistance(sh, p.t_celsius + kelvin_offset)), printed_digits) << p.t_celsius;
 }
 
+// Issue 18: a key that the design's other choices make irrelevant is a
+// note, not a refusal (the value is not used); a typo, an unknown key and
+// an out-of-range value stay refusals (tests/bad_input_test.cpp).
+TEST_F(ScenarioFile, AKeyTheDesignMakesIrrelevantIsANoteNotARefusal) {
+  const std::string path = write("ratio.ini",
+                                 "[supply]\nratiometric = true\nv_reference_tol = 1%\nv_excitation_tempco = 50ppm\n"
+                                 "v_reference_drift = 0.1%\nr_drive_tol = 20%\n[divider]\nr_parallel_tol = 1%\n");
+  Scenario s;
+  s.load_file(path);
+  const Design d = build_design(s);
+  ASSERT_EQ(d.notes.size(), 5u);
+  const std::vector<std::pair<std::string, std::string>> expected{
+      {":4: supply.v_excitation_tempco = 50ppm", "ratiometric"}, {":3: supply.v_reference_tol = 1%", "ratiometric"},
+      {":6: supply.r_drive_tol = 20%", "supply.r_drive"}, {":8: divider.r_parallel_tol = 1%", "no parallel resistor"},
+      {":5: supply.v_reference_drift = 0.1%", "ratiometric"}};
+  for (const auto& [where, why] : expected) {
+    const auto n = std::find_if(d.notes.begin(), d.notes.end(), [&](const std::string& x) { return x.find(where) != std::string::npos; });
+    ASSERT_NE(n, d.notes.end()) << where;
+    EXPECT_NE(n->find(why), std::string::npos) << *n;
+    EXPECT_NE(n->find("is not used"), std::string::npos) << *n;
+  }
+  // Not used: no supply, drive or parallel-resistor input is active.
+  for (const auto& in : d.inputs)
+    for (const char* name : {"v_reference", "v_excitation_tempco", "r_drive", "r_parallel"})
+      EXPECT_NE(info(in.source).name, name);
+  // `check` says so in its text and its JSON; an out-of-range value is still refused.
+  const auto out = testing::run_cli("check " + testing::shell_quote(path));
+  ASSERT_EQ(out.status, 0) << out.err;
+  EXPECT_NE(out.out.find("Notes: keys set that this design's choices make irrelevant"), std::string::npos) << out.out;
+  EXPECT_EQ(testing::cli_json("check " + testing::shell_quote(path))["notes"].size(), 5u);
+  EXPECT_EQ(testing::run_cli("check " + testing::shell_quote(path) + " --supply.v_reference_tol=200%").status, 2);
+}
+
+TEST(CheckText, ShowsTheKeysOfThisDesignAndThoseSetAndEveryKeyWithAll) {
+  // The default design is a beta NTC on a ratiometric supply without a
+  // sampling capacitor: no RTD, Steinhart-Hart or absolute-supply key by
+  // default; one set on the command line is shown; --all shows them all.
+  const auto plain = testing::run_cli("check");
+  ASSERT_EQ(plain.status, 0) << plain.err;
+  for (const char* absent : {"\ncvd_a ", "\nv_reference_tol ", "\nt_acq ", "\ntable_file "})
+    EXPECT_EQ(plain.out.find(absent), std::string::npos) << absent;
+  for (const char* present : {"[sensor]\n", "\nr25 ", "\nbeta_tol ", "[montecarlo]\n", "The active error sources"})
+    EXPECT_NE(plain.out.find(present), std::string::npos) << present;
+  EXPECT_NE(testing::run_cli("check --sensor.cvd_a=3.9e-3").out.find("\ncvd_a "), std::string::npos);
+  const auto all = testing::run_cli("check --all");
+  for (const auto& k : scenario_schema()) {
+    if (k.key == "title" || is_override(k.key)) continue;
+    EXPECT_NE(all.out.find("\n" + k.key.substr(k.key.find('.') + 1) + " "), std::string::npos) << k.key;
+  }
+}
+
 }  // namespace
 }  // namespace thermargin

@@ -97,8 +97,10 @@ void read_divider(const R& r, DividerSettings& dv) {
   if (dv.r_fixed_tempco >= 0.01) r.fail("divider.r_fixed_tempco", "must be below 10000 ppm/K");
   if (r.text("divider.r_parallel") != "none") dv.r_parallel = r.positive("divider.r_parallel");
   dv.r_parallel_tol = r.tolerance("divider.r_parallel_tol");
-  if (!dv.r_parallel && dv.r_parallel_tol > 0.0)
-    r.fail("divider.r_parallel_tol", "a tolerance for a parallel resistor that is absent; set divider.r_parallel");
+  if (!dv.r_parallel && dv.r_parallel_tol > 0.0) {
+    r.note("divider.r_parallel_tol", "there is no parallel resistor (divider.r_parallel = none)");
+    dv.r_parallel_tol = 0.0;
+  }
   dv.duty = r.positive("divider.duty");
   if (dv.duty > 1.0) r.fail("divider.duty", "must be a fraction of time in (0, 1]");
   dv.c_node = r.non_negative("divider.c_node");
@@ -118,13 +120,15 @@ void read_supply(const R& r, SupplySettings& su) {
   su.v_reference_tempco = r.non_negative("supply.v_reference_tempco");
   su.r_drive = r.non_negative("supply.r_drive");
   su.r_drive_tol = r.tolerance("supply.r_drive_tol");
-  if (su.r_drive == 0.0 && su.r_drive_tol > 0.0)
-    r.fail("supply.r_drive_tol", "a tolerance for a drive resistance that is 0; set supply.r_drive");
+  if (su.r_drive == 0.0 && su.r_drive_tol > 0.0) {
+    r.note("supply.r_drive_tol", "the drive resistance is 0 (supply.r_drive)");
+    su.r_drive_tol = 0.0;
+  }
   if (su.ratiometric) {
     for (const char* k : {"supply.v_excitation_tol", "supply.v_excitation_tempco", "supply.v_reference_tol",
-                          "supply.v_reference_tempco", "supply.v_reference"})
-      if (!r.is_default(k) && r.number(k) != 0.0 && std::string(k) != "supply.v_reference")
-        r.fail(k, "has no effect with supply.ratiometric = true (the errors cancel); set it to 0 or make the supply absolute");
+                          "supply.v_reference_tempco"})
+      if (!r.is_default(k) && r.number(k) != 0.0)
+        r.note(k, "supply.ratiometric = true, where the supply's errors cancel (make the supply absolute to use it)");
   } else if (r.is_default("supply.v_reference")) {
     r.fail("supply.v_reference", "an absolute reference (supply.ratiometric = false) needs its voltage set explicitly");
   }
@@ -469,7 +473,7 @@ void read_drift(const R& r, Design& d) {
   if (d.supply.ratiometric)
     for (const char* k : {"supply.v_reference_drift", "supply.v_reference_hysteresis", "supply.v_excitation_drift"})
       if (r.number(k) != 0.0)
-        r.fail(k, "has no effect with supply.ratiometric = true (the errors cancel); set it to 0 or make the supply absolute");
+        r.note(k, "supply.ratiometric = true, where the supply's errors cancel (make the supply absolute to use it)");
   d.requirement.at = r.word<Requirement::At>(
       "requirement.at", {{"end-of-life", Requirement::At::end_of_life}, {"delivery", Requirement::At::delivery}});
 }
@@ -521,6 +525,7 @@ Design build_design(const Scenario& s) {
   collect_table_spread(r, d);
   read_drift(r, d);
   collect_drift_inputs(r, d);
+  d.notes = r.notes();
   return d;
 }
 

@@ -74,9 +74,19 @@ class SettingReader {
     const auto& st = at(key);
     reject(st.where, st.value, why);
   }
+  // A key set that the design's other choices make irrelevant: a note
+  // (Design::notes, `thermargin check` prints them), not a refusal; the
+  // value is not used. "scenario.ini:12: supply.v_reference_tol = 1% is not
+  // used: <why>".
+  void note(const std::string& key, const std::string& why) const {
+    const auto& st = at(key);
+    notes_.push_back(st.where.origin() + ": " + key + " = " + st.value + " is not used: " + why);
+  }
+  const std::vector<std::string>& notes() const { return notes_; }
 
  private:
   const Scenario& s_;
+  mutable std::vector<std::string> notes_;
 };
 
 }  // namespace thermargin

@@ -171,6 +171,11 @@ struct Design {
   // The drift inputs (bound > 0), active only in the end-of-life design
   // (life.hpp): empty when no drift is set.
   std::vector<ToleranceInput> drift_inputs;
+  // Keys the scenario sets that the design's other choices make irrelevant
+  // (a supply tolerance on a ratiometric supply, a parallel resistor's
+  // tolerance without one): one line each with file, line and key; the
+  // values are not used (`thermargin check` prints them).
+  std::vector<std::string> notes;
 
   bool is_ntc() const { return sensor.kind != SensorKind::rtd; }
   // Full scale of the ADC in LSB: 2^bits.
