@@ -18,6 +18,11 @@
 #include <sstream>
 #include <string>
 
+#include <algorithm>
+#include <iterator>
+
+#include <nlohmann/json.hpp>
+
 #include "cli_run.hpp"
 
 namespace thermargin {
@@ -110,6 +115,96 @@ TEST(ReportInBrowser, PickPageOpensWithoutConsoleErrorsAndRenders) {
 TEST(ReportInBrowser, GradesPageOpensWithoutConsoleErrorsAndRenders) {
   expect_rendered("grades " + fermentation() + " --catalogue " +
                   shell_quote(testing::scenario_path("fermentation_probe_catalogue.csv")) + " --units 2000 --volume 5000");
+}
+
+// The page laid out by Chromium in a 1280 px window: a copy of the page
+// without its security policy and with a measuring script (the page itself
+// runs none) opens every folded section, then writes what it measured into
+// the page, which --dump-dom prints: the viewport's width, the page's
+// scroll width, the right edge of the widest element, each section's
+// heading and the schematic's text.
+nlohmann::json layout_at_1280(const fs::path& page, const fs::path& dir) {
+  std::ifstream in(page);
+  std::string html((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  const auto csp = html.find("<meta http-equiv=\"Content-Security-Policy\"");
+  if (csp != std::string::npos) html.erase(csp, html.find('>', csp) + 1 - csp);
+  const std::string script = R"(<script>
+for (const d of document.querySelectorAll('details')) d.open = true;
+let widest = 0, what = '';
+for (const e of document.querySelectorAll('body *')) {
+  const r = e.getBoundingClientRect();
+  if (r.width > 0 && r.right > widest) { widest = r.right; what = e.tagName + ' ' + (e.getAttribute('class') || ''); }
+}
+const s = document.querySelector('svg.schematic');
+const out = document.createElement('pre');
+out.id = 'measured';
+out.textContent = JSON.stringify({viewport: document.documentElement.clientWidth, scroll: document.documentElement.scrollWidth,
+  widest: widest, what: what, sections: [...document.querySelectorAll('h2')].map(h => h.textContent),
+  schematic: s ? [...s.querySelectorAll('text')].map(t => t.textContent) : null});
+document.body.appendChild(out);
+</script>)";
+  html.insert(html.rfind("</body>"), script);
+  const fs::path copy = dir / "measured.html";
+  std::ofstream(copy) << html;
+  const fs::path profile = dir / "profile-measure";
+  fs::create_directory(profile);
+  const std::string dom = testing::output_of(
+      "timeout 180 " + std::string(kChromium) +
+      " --headless --no-sandbox --disable-gpu --no-first-run --disable-background-networking --disable-component-update"
+      " --disable-sync --disable-extensions --hide-scrollbars --user-data-dir=" + shell_quote(profile.string()) +
+      " --window-size=1280,900 --dump-dom " + shell_quote("file://" + copy.string()) + " 2>/dev/null");
+  const std::string marker = "<pre id=\"measured\">";
+  const auto from = dom.find(marker);
+  if (from == std::string::npos) return nullptr;
+  const auto begin = from + marker.size();
+  std::string text = dom.substr(begin, dom.find("</pre>", begin) - begin);
+  for (const auto& [entity, c] : {std::pair{"&lt;", "<"}, std::pair{"&gt;", ">"}, std::pair{"&amp;", "&"}})
+    for (std::size_t at; (at = text.find(entity)) != std::string::npos;) text.replace(at, std::string(entity).size(), c);
+  return nlohmann::json::parse(text);
+}
+
+TEST(ReportInBrowser, BudgetPageFitsA1280PxWindowWithTheSchematicAndEverySection) {
+  ASSERT_TRUE(have_chromium()) << kNoChromium;
+  TempDir dir;
+  const fs::path page = dir.path / "review.html";
+  // A design with every part of the schematic: a drive resistance, a
+  // parallel resistor, a node capacitor and a sampling ADC; the what-if
+  // table and the unreadable ranges (a 2.5 V reference below a 3.3 V
+  // excitation saturates the cold end) are the wide and long parts.
+  const std::string command = "budget " + fermentation() +
+                              " --montecarlo.units=2000 --supply.r_drive=40 --divider.r_parallel=100k"
+                              " --divider.c_node=100n --divider.settle_time=1s --adc.c_sample=10p --adc.r_switch=2k"
+                              " --conditions.t_min=-20 --supply.ratiometric=false --supply.v_reference=2.5";
+  ASSERT_EQ(testing::run_cli(command + " --output /dev/null --report " + shell_quote(page.string())).status, 0);
+  const nlohmann::json m = layout_at_1280(page, dir.path);
+  ASSERT_FALSE(m.is_null()) << "the measuring script wrote nothing";
+  EXPECT_EQ(m["viewport"].get<double>(), 1280.0);
+  EXPECT_LE(m["scroll"].get<double>(), 1280.0) << "the page scrolls sideways";
+  EXPECT_LE(m["widest"].get<double>(), 1280.0) << "wider than the window: " << m["what"];
+  for (const char* section : {"Production yield", "The circuit, checked by hand", "Error across the range",
+                              "What the error is made of", "What would help", "Sensitivity", "Self-heating",
+                              "Settling of the sampled node", "Temperatures that cannot be read", "Every resolved input"})
+    EXPECT_NE(std::find(m["sections"].begin(), m["sections"].end(), section), m["sections"].end()) << section;
+  ASSERT_TRUE(m["schematic"].is_array()) << "no schematic";
+  std::string labels;
+  for (const auto& t : m["schematic"]) labels += t.get<std::string>() + "\n";
+  // The scenario's own values (fermentation_probe.ini: 12k, 3.3V, 12 bits) and the overrides above.
+  for (const char* value : {"R_fixed 12 kohm", "V_exc 3.3 V", "R_drive 40 ohm", "R_par 100 kohm", "C_node 100 nF",
+                            "ADC 12 bit", "reference 2.5 V"})
+    EXPECT_NE(labels.find(value), std::string::npos) << value << " in\n" << labels;
+}
+
+TEST(ReportInBrowser, TheWidthCheckSeesATableWiderThanTheWindow) {
+  // The measure above is only worth something if it sees an overflow: a
+  // table of 2000 px in a folded section must be reported.
+  ASSERT_TRUE(have_chromium()) << kNoChromium;
+  TempDir dir;
+  const fs::path page = dir.path / "wide.html";
+  std::ofstream(page) << "<!DOCTYPE html><html><body><h2>Wide</h2><details><summary>s</summary>"
+                         "<table style=\"width:2000px\"><tr><td>x</td></tr></table></details></body></html>\n";
+  const nlohmann::json m = layout_at_1280(page, dir.path);
+  ASSERT_FALSE(m.is_null());
+  EXPECT_GT(m["widest"].get<double>(), 1280.0);
 }
 
 TEST(ReportInBrowser, TheConsoleCheckSeesAScriptErrorOnAPageThatHasOne) {

@@ -25,7 +25,9 @@ with xml.etree, then compares every plotted series with the numbers of
 A value is expected exactly where the JSON has the number and nowhere else,
 so a saturated point must be a gap (never a zero), and the number of runs
 between gaps must match. The verdict banner, the caution (before the first
-chart), the yield and the contributor ranking are read from the page text.
+chart), the yield and the contributor ranking are read from the page text;
+the chain's schematic (an <svg class="schematic">, not a chart) must be there
+once and well formed.
 With PLOTS_DIR, each standalone SVG file must hold the same series as the
 page's chart of the same title. Prints "ok: N charts" or fails with the
 first difference. Nothing of thermargin is used. Run with Debian's
@@ -73,7 +75,7 @@ class Page(HTMLParser):
                 fail("external reference %s=%r on <%s>" % (name, a[name], tag))
         if tag == "script":
             self.scripts += 1
-        if tag == "figure":
+        if tag == "figure" and (a.get("class") or "") == "chart":
             self.figures += 1
             if self.first_figure_at is None:
                 self.first_figure_at = len("".join(self.text))
@@ -299,7 +301,11 @@ def main():
     if page.caution_at is None or page.first_figure_at is None or page.caution_at > page.first_figure_at:
         fail("the caution does not come before the first chart")
 
-    svgs = svg_elements(html)
+    # The schematic of the chain (a drawing, not a chart): well formed, and once.
+    drawings = [e for e in svg_elements(html) if e.get("class") == "schematic"]
+    if len(drawings) != 1:
+        fail("%d schematics of the chain, expected 1" % len(drawings))
+    svgs = [e for e in svg_elements(html) if e.get("class") != "schematic"]
     checks = CHECKS + ([check_settling_chart] if "settling" in j else [])
     if len(svgs) != len(checks) or page.figures != len(checks):
         fail("%d charts in %d figures, expected %d" % (len(svgs), page.figures, len(checks)))

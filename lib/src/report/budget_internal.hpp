@@ -24,6 +24,11 @@ inline const Contributor* contributor_at(const BudgetPoint& p, const std::string
 // million", which n units cannot show.
 std::string failure_rate_text(const McSummary& mc);
 
+// The window temperatures where the linear band and the Monte Carlo band
+// were both formed (`compared`), and of those where the linear band is
+// validated (JCGM 101 §8), the number returned.
+int validated_points(const Budget& b, int& compared);
+
 // The runs of temperatures that cannot be read, for a person: "-20.00 ..
 // -2.50 degC: the ADC saturates (a sample at a rail), some units".
 std::string run_range(const UnreadableRun& r);

@@ -14,7 +14,11 @@
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/core/error.hpp"
+#include "thermargin/engines/headroom.hpp"
 #include "thermargin/engines/monte_carlo.hpp"
+#include "thermargin/engines/unreadable.hpp"
+#include "thermargin/report/schematic.hpp"
+#include "report/budget_internal.hpp"
 
 namespace thermargin {
 
@@ -37,7 +41,6 @@ bool nominal_ok(const BudgetPoint& p) { return p.nominal.status == Status::ok; }
 bool wc_ok(const BudgetPoint& p) { return nominal_ok(p) && p.wc.any_ok && p.wc.failed_corners == 0; }
 bool linear_ok(const BudgetPoint& p) { return nominal_ok(p) && p.linear.status == Status::ok; }
 bool mc_ok(const BudgetPoint& p) { return nominal_ok(p) && p.mc && p.mc->valid > 0; }
-bool unreadable(const BudgetPoint& p) { return !nominal_ok(p) || !wc_ok(p) || p.linear.status != Status::ok; }
 
 template <class F>
 svg::Values column(const Budget& b, F f) {
@@ -70,7 +73,7 @@ const svg::Axis kTemperatureAxis = axis("Temperature (\u00b0C)");
 
 // Runs of consecutive unreadable temperatures, widened by half a step each
 // side (clamped to the range) so a single bad temperature still shows.
-std::vector<std::pair<double, double>> unreadable_runs(const Budget& b) {
+std::vector<std::pair<double, double>> hatched_runs(const Budget& b) {
   std::vector<std::pair<double, double>> runs;
   const auto& pts = b.points;
   for (std::size_t i = 0; i < pts.size();) {
@@ -119,51 +122,27 @@ Figure error_figure(const Design& d, const Budget& b) {
       "the shaded strip is the requirement window, hatched strips are temperatures that cannot be read.";
   c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
   int k = 0;
-  for (const auto& [from, to] : unreadable_runs(b)) {
+  for (const auto& [from, to] : hatched_runs(b)) {
     ++k;
     c.series.push_back(svg::span("unreadable_" + std::to_string(k), k == 1 ? "Cannot be read" : "", from, to, true));
   }
-  c.series.push_back(svg::band("wc", "Worst case", t, column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!wc_ok(p)) return std::nullopt;
-                                 return p.wc.low;
-                               }),
-                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!wc_ok(p)) return std::nullopt;
-                                 return p.wc.high;
-                               }),
-                               slot(1)));
-  c.series.push_back(svg::band("rss", "Linear budget (k = " + num(b.k_p, 2) + ")", t,
-                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!linear_ok(p)) return std::nullopt;
-                                 return p.linear.low;
-                               }),
-                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!linear_ok(p)) return std::nullopt;
-                                 return p.linear.high;
-                               }),
-                               slot(3)));
+  using Get = double (*)(const BudgetPoint&);
+  auto band = [&](const Budget& of, const char* name, const std::string& label, bool (*ok)(const BudgetPoint&), Get low,
+                  Get high, int n) {
+    auto values = [&](Get get) {
+      return column(of, [&](const BudgetPoint& p) { return ok(p) ? std::optional<double>(get(p)) : std::nullopt; });
+    };
+    c.series.push_back(svg::band(name, label, t, values(low), values(high), slot(n)));
+  };
+  band(b, "wc", "Worst case", wc_ok, [](const BudgetPoint& p) { return p.wc.low; }, [](const BudgetPoint& p) { return p.wc.high; }, 1);
+  band(b, "rss", "Linear budget (k = " + num(b.k_p, 2) + ")", linear_ok, [](const BudgetPoint& p) { return p.linear.low; },
+       [](const BudgetPoint& p) { return p.linear.high; }, 3);
   if (b.mc)
-    c.series.push_back(svg::band("mc", "Monte Carlo " + pct(b.mc->coverage, 2), t,
-                                 column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                   if (!mc_ok(p)) return std::nullopt;
-                                   return p.mc->low;
-                                 }),
-                                 column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                   if (!mc_ok(p)) return std::nullopt;
-                                   return p.mc->high;
-                                 }),
-                                 slot(2)));
+    band(b, "mc", "Monte Carlo " + pct(b.mc->coverage, 2), mc_ok, [](const BudgetPoint& p) { return p.mc->low; },
+         [](const BudgetPoint& p) { return p.mc->high; }, 2);
   if (b.end_of_life)  // over the product's life: the worst case with the drift inputs (docs/model.md §11)
-    c.series.push_back(svg::band("wc_end_of_life", "Worst case at end of life", t,
-                                 column(b.end_of_life->budget, [](const BudgetPoint& p) -> std::optional<double> {
-                                   if (!wc_ok(p)) return std::nullopt;
-                                   return p.wc.low;
-                                 }),
-                                 column(b.end_of_life->budget, [](const BudgetPoint& p) -> std::optional<double> {
-                                   if (!wc_ok(p)) return std::nullopt;
-                                   return p.wc.high;
-                                 }),
-                                 slot(4)));
+    band(b.end_of_life->budget, "wc_end_of_life", "Worst case at end of life", wc_ok,
+         [](const BudgetPoint& p) { return p.wc.low; }, [](const BudgetPoint& p) { return p.wc.high; }, 4);
   c.series.push_back(svg::reference("limit", "\u00b1" + kelvin(d.requirement.max_error) + " limit",
                                     {-d.requirement.max_error, d.requirement.max_error}));
   c.series.push_back(svg::line("nominal", "Nominal", t, column(b, [](const BudgetPoint& p) -> std::optional<double> {
@@ -221,93 +200,87 @@ Figure contributor_figure(const Budget& b) {
           std::move(c)};
 }
 
+// One curve of the nominal chain across the range over the window's strip:
+// the sensitivity, the size of one LSB, the self-heating, the settling.
+struct CurveFigure {
+  std::string file, title, y_label, description, series, legend, caption;
+  int slot = 0;
+  bool from_zero = false;  // a linear axis that starts at zero
+};
+
+Figure curve_figure(const Design& d, const Budget& b, CurveFigure f, std::optional<double> (*value)(const BudgetPoint&)) {
+  svg::Chart c;
+  c.title = f.title;
+  c.x = kTemperatureAxis;
+  c.y = axis(f.y_label);
+  if (f.from_zero) c.y.min = 0.0;
+  c.description = f.description;
+  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
+  c.series.push_back(svg::line(f.series, f.legend, temperatures(b), column(b, value), slot(f.slot)));
+  return {f.file, f.caption, std::move(c)};
+}
+
 // Two charts rather than one: the sensitivity and the size of one LSB are
 // reciprocals in different units (LSB/K and K), which one y axis cannot
 // label; each reads directly from a linear axis that starts at zero.
 Figure sensitivity_figure(const Design& d, const Budget& b) {
-  const auto t = temperatures(b);
-  svg::Chart c;
-  c.title = "ADC sensitivity";
-  c.x = kTemperatureAxis;
-  c.y = axis("|Sensitivity| (LSB/K)");
-  c.y.min = 0.0;
-  c.description = "ADC counts per kelvin of the nominal chain.";
-  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
-  // The magnitude: the sign only says which way the code runs (falling for
-  // an NTC at the low side of the divider).
-  c.series.push_back(svg::line("abs_sensitivity", "|Sensitivity|", t,
-                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!nominal_ok(p) || p.nominal.sensitivity == 0.0) return std::nullopt;
-                                 return std::fabs(p.nominal.sensitivity);
-                               }),
-                               slot(0)));
   bool falling = false;
   for (const auto& p : b.points) falling = falling || (nominal_ok(p) && p.nominal.sensitivity < 0.0);
-  return {"sensitivity.svg",
-          std::string("Counts per kelvin: the higher, the finer the ADC sees the temperature") +
-              (falling ? "; the code falls as the temperature rises." : "."),
-          std::move(c)};
+  // The magnitude: the sign only says which way the code runs (falling for
+  // an NTC at the low side of the divider).
+  return curve_figure(d, b,
+                      {"sensitivity.svg", "ADC sensitivity", "|Sensitivity| (LSB/K)", "ADC counts per kelvin of the nominal chain.",
+                       "abs_sensitivity", "|Sensitivity|",
+                       std::string("Counts per kelvin: the higher, the finer the ADC sees the temperature") +
+                           (falling ? "; the code falls as the temperature rises." : "."),
+                       0, true},
+                      [](const BudgetPoint& p) -> std::optional<double> {
+                        if (!nominal_ok(p) || p.nominal.sensitivity == 0.0) return std::nullopt;
+                        return std::fabs(p.nominal.sensitivity);
+                      });
 }
 
 Figure lsb_figure(const Design& d, const Budget& b) {
-  const auto t = temperatures(b);
-  svg::Chart c;
-  c.title = "Temperature size of one LSB";
-  c.x = kTemperatureAxis;
-  c.y = axis("1 LSB (K)");
-  c.y.min = 0.0;
-  c.description = "The temperature step of one ADC count (the reciprocal of the sensitivity).";
-  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
-  c.series.push_back(svg::line("lsb_in_k", "Size of 1 LSB", t,
-                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!nominal_ok(p) || !std::isfinite(p.nominal.lsb_in_k)) return std::nullopt;
-                                 return p.nominal.lsb_in_k;
-                               }),
-                               slot(2)));
+  Figure f = curve_figure(
+      d, b,
+      {"lsb-size.svg", "Temperature size of one LSB", "1 LSB (K)",
+       "The temperature step of one ADC count (the reciprocal of the sensitivity).", "lsb_in_k", "Size of 1 LSB",
+       "The kelvin one count stands for: the smallest step the reading can take before averaging and rounding.", 2, true},
+      [](const BudgetPoint& p) -> std::optional<double> {
+        if (!nominal_ok(p) || !std::isfinite(p.nominal.lsb_in_k)) return std::nullopt;
+        return p.nominal.lsb_in_k;
+      });
   if (d.firmware.resolution > 0.0)
-    c.series.push_back(
+    f.chart.series.push_back(
         svg::reference("resolution", "output resolution " + kelvin(d.firmware.resolution, 4), {d.firmware.resolution}));
-  return {"lsb-size.svg",
-          "The kelvin one count stands for: the smallest step the reading can take before averaging and rounding.",
-          std::move(c)};
+  return f;
 }
 
 Figure self_heating_figure(const Design& d, const Budget& b) {
-  const auto t = temperatures(b);
-  svg::Chart c;
-  c.title = "Self-heating of the sensor";
-  c.x = kTemperatureAxis;
-  c.y = axis("Temperature rise (K)");
-  c.description = "How much warmer than the medium the element runs (nominal parts, mean over the duty cycle).";
-  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
-  c.series.push_back(svg::line("self_heating", "Self-heating", t,
-                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!nominal_ok(p)) return std::nullopt;
-                                 return p.nominal.self_heating;
-                               }),
-                               slot(0)));
-  return {"self-heating.svg", "The element's rise above the medium it measures; it is part of every error above.",
-          std::move(c)};
+  return curve_figure(d, b,
+                      {"self-heating.svg", "Self-heating of the sensor", "Temperature rise (K)",
+                       "How much warmer than the medium the element runs (nominal parts, mean over the duty cycle).",
+                       "self_heating", "Self-heating",
+                       "The element's rise above the medium it measures; it is part of every error above.", 0, false},
+                      [](const BudgetPoint& p) -> std::optional<double> {
+                        if (!nominal_ok(p)) return std::nullopt;
+                        return p.nominal.self_heating;
+                      });
 }
 
 // The sampled node's settling error across the range (docs/model.md §14):
 // drawn only when the ADC's sampling capacitor is modelled.
 Figure settling_figure(const Design& d, const Budget& b) {
-  const auto t = temperatures(b);
-  svg::Chart c;
-  c.title = "Settling of the sampled node";
-  c.x = kTemperatureAxis;
-  c.y = axis("Acquisition error (K)");
-  c.description = "The nominal reading's error from a sampling capacitor that has not settled to the node, and from the "
-                  "charge it draws (nominal parts).";
-  c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
-  c.series.push_back(svg::line("acquisition_error", "Acquisition error", t,
-                               column(b, [](const BudgetPoint& p) -> std::optional<double> {
-                                 if (!nominal_ok(p)) return std::nullopt;
-                                 return p.nominal.acquisition_error;
-                               }),
-                               slot(0)));
-  return {"settling.svg", "What the ADC's acquisition adds to the reading: it is part of every error above.", std::move(c)};
+  return curve_figure(d, b,
+                      {"settling.svg", "Settling of the sampled node", "Acquisition error (K)",
+                       "The nominal reading's error from a sampling capacitor that has not settled to the node, and from "
+                       "the charge it draws (nominal parts).",
+                       "acquisition_error", "Acquisition error",
+                       "What the ADC's acquisition adds to the reading: it is part of every error above.", 0, false},
+                      [](const BudgetPoint& p) -> std::optional<double> {
+                        if (!nominal_ok(p)) return std::nullopt;
+                        return p.nominal.acquisition_error;
+                      });
 }
 
 // ---------------------------------------------------------------- the page's blocks
@@ -315,7 +288,8 @@ Figure settling_figure(const Design& d, const Budget& b) {
 std::string verdict_detail(const Design& d, const Budget& b) {
   const auto& v = b.verdict;
   std::string s = v.reason;
-  if (v.basis != Requirement::Basis::monte_carlo || b.mc)
+  // A margin only where the error decides: not beside a window that cannot be read.
+  if (v.unreadable.empty() && (v.basis != Requirement::Basis::monte_carlo || b.mc))
     s += v.margin >= 0 ? "; margin " + kelvin(v.margin) + " to spare" : "; over the limit by " + kelvin(-v.margin);
   s += ". Verdict basis: " + std::string(to_string(v.basis)) + ", window " + celsius(d.requirement.window_min) +
        " to " + celsius(d.requirement.window_max) + ".";
@@ -359,29 +333,55 @@ void yield_block(HtmlDocument& doc, const Design& d, const Budget& b) {
                  : meets ? "The estimate meets the requirement but the interval's low end does not: run more units."
                          : "The estimate falls short of the requirement."));
   doc.table({.caption = "Monte Carlo yield",
-             .header = {"Yield", "95 % interval", "Required", "Failures per million", "Units", "Good units"},
+             .header = {"Yield", "95 % interval", "Required", "Failure rate", "Units", "Good units"},
              .rows = {{pct(m.yield, 3), pct(m.yield_low, 3) + " \u2013 " + pct(m.yield_high, 3),
-                       pct(d.requirement.yield, 3), num(m.failures_per_million, 0), std::to_string(m.units),
+                       pct(d.requirement.yield, 3), budget_writer::failure_rate_text(m), std::to_string(m.units),
                        std::to_string(m.good_units)}},
              .numeric = {}});
 }
 
+// The temperatures that cannot be read, as ranges (engines/unreadable.hpp).
 void status_block(HtmlDocument& doc, const Budget& b) {
+  const auto runs = unreadable_runs(b.points);
+  if (runs.empty()) return;
   std::vector<std::vector<std::string>> rows;
-  for (const auto& p : b.points) {
-    if (!unreadable(p)) continue;
-    std::string what;
-    if (!nominal_ok(p)) what = std::string(describe(p.nominal.status)) + " (nominal parts)";
-    else if (p.wc.failed_corners > 0)
-      what = std::string(describe(p.wc.failure)) + " at " + std::to_string(p.wc.failed_corners) +
-             " worst-case corner(s)";
-    else if (p.linear.status != Status::ok) what = std::string(describe(p.linear.status)) + " (linear budget)";
-    rows.push_back({num(p.t, 2), p.in_window ? "yes" : "no", what});
-  }
-  if (rows.empty()) return;
+  for (const auto& r : runs)
+    rows.push_back({r.from == r.to ? num(r.from, 2) : num(r.from, 2) + " to " + num(r.to, 2), r.in_window ? "yes" : "no",
+                    std::string(describe(r.status)) + (r.nominal ? "" : " (some units)")});
   doc.heading("Temperatures that cannot be read");
-  doc.paragraph("These are gaps in every curve above (and hatched on the error chart), not zeros.");
-  doc.table({.caption = {}, .header = {"t (\u00b0C)", "In window", "What happens"}, .rows = rows, .numeric = {}});
+  doc.paragraph("These are gaps in every curve above (and hatched on the error chart), not zeros; \"some units\": the "
+                "nominal unit reads there, some worst-case corner does not.");
+  doc.table({.caption = {}, .header = {"t (\u00b0C)", "In window", "What happens"}, .rows = rows, .numeric = {false, false, false}});
+}
+
+// The circuit as a board checks it by hand: the schematic with the design's
+// values and, at t_min, the window's middle and t_max, the node voltage,
+// the current, the element's resistance and power and the code (nominal
+// parts, engines/headroom.hpp).
+void hand_check_block(HtmlDocument& doc, const Design& d) {
+  doc.heading("The circuit, checked by hand");
+  doc.drawing(chain_schematic_svg(d), "The measurement chain with the design's values.");
+  const Chain chain(d);
+  const double middle = 0.5 * (d.requirement.window_min + d.requirement.window_max);
+  Table t{.caption = "Values to check by hand (nominal parts; the element at its self-heated temperature)",
+          .header = {"", "t (\u00b0C)", "Node (V)", "Current (\u00b5A)", "Sensor (\u03a9)", "Sensor power (\u00b5W)", "Code (LSB)"},
+          .rows = {},
+          .numeric = {false, true, true, true, true, true, true}};
+  for (const auto& [what, at] : {std::pair{"t_min", d.conditions.t_min}, std::pair{"window middle", middle},
+                                 std::pair{"t_max", d.conditions.t_max}}) {
+    const HandCheck h = hand_check(chain, at);
+    if (h.status != Status::ok) {
+      t.rows.push_back({what, num(at, 2), std::string(describe(h.status)), "", "", "", ""});
+      continue;
+    }
+    t.rows.push_back({what, num(at, 2), num(h.v_node, 4), num(1e6 * h.current, 2), num(h.r_sensor, 1),
+                      num(1e6 * h.power, 2), num(h.code, 1)});
+  }
+  doc.table(t);
+  doc.paragraph("Node voltage V = V_exc \u00b7 R_bottom / (R_top + R_drive + R_bottom) (Ohm's law), the current "
+                "V_exc / (R_fixed + R_drive + R_branch), the sensor's power P = V_element\u00b2 / R while powered, "
+                "the code V / V_ref \u00b7 2^N after the ADC's gain, offset and INL (with a sampling capacitor, "
+                "the sample's, which differs from the node by the settling error).");
 }
 
 // ---------------------------------------------------------------- files
@@ -519,17 +519,13 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
                   pct(b.window_contributors.front().share, 1) + " of the combined variance).");
   if (const std::string note = rtd_class_range_note(d); !note.empty()) doc.paragraph("RTD class: " + note + ".");
   yield_block(doc, d, b);
+  hand_check_block(doc, d);
 
   doc.heading("Error across the range");
   doc.chart(figures[0].chart, "Figure 1. " + figures[0].caption);
   if (b.mc) {
-    int validated = 0, compared = 0;
-    for (const auto& p : b.points)
-      if (p.in_window && mc_ok(p) && linear_ok(p)) {
-        ++compared;
-        validated += linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high,
-                                      numerical_tolerance(p.linear.u_c));
-      }
+    int compared = 0;
+    const int validated = budget_writer::validated_points(b, compared);
     doc.paragraph("Linear budget against Monte Carlo (JCGM 101 \u00a78): validated at " + std::to_string(validated) +
                   " of " + std::to_string(compared) + " window temperatures" +
                   (validated == compared ? "; the simple budget can be trusted here."
@@ -547,17 +543,20 @@ std::string budget_report_html(const Design& d, const Scenario& scenario, const 
     if (c.share > 0.0 || c.half_width > 0.0)
       rank.rows.push_back({std::to_string(++n), c.label + " (" + c.name + ")", pct(c.share, 1), bar(c.share),
                            num(c.half_width, 4)});
-  doc.table(rank);
+  doc.fold("The ranking of all " + std::to_string(n) + " sources over the window").table(rank).unfold();
   if (what_if && !what_if->rows.empty()) add_what_if(doc, d, *what_if);
 
   doc.heading("Sensitivity");
+  doc.fold("Figures 3 and 4: ADC counts per kelvin, and the kelvin one count stands for");
   doc.chart(figures[2].chart, "Figure 3. " + figures[2].caption);
   doc.chart(figures[3].chart, "Figure 4. " + figures[3].caption);
+  doc.unfold();
   doc.heading("Self-heating");
-  doc.chart(figures[4].chart, "Figure 5. " + figures[4].caption);
+  doc.fold("Figure 5: the element's rise above the medium").chart(figures[4].chart, "Figure 5. " + figures[4].caption).unfold();
   if (figures.size() > 5) {
     doc.heading("Settling of the sampled node");
-    doc.chart(figures[5].chart, "Figure 6. " + figures[5].caption);
+    doc.fold("Figure 6: the acquisition error across the range");
+    doc.chart(figures[5].chart, "Figure 6. " + figures[5].caption).unfold();
   }
 
   status_block(doc, b);
@@ -570,7 +569,8 @@ void add_resolved_inputs(HtmlDocument& doc, const Design& d, const Scenario& s) 
   doc.heading("Every resolved input");
   doc.paragraph(std::to_string(d.inputs.size()) +
                 " toleranced inputs are active. Values as given (the built-in default where no file or option set "
-                "one), with their unit and where they came from, as `thermargin check` prints them.");
+                "one), with their unit and where they came from, as `thermargin check --all` prints them.");
+  doc.fold("Every key, by section");
   std::string section;
   Table t;
   auto flush = [&] {
@@ -593,6 +593,7 @@ void add_resolved_inputs(HtmlDocument& doc, const Design& d, const Scenario& s) 
                       v.where.origin()});
   }
   flush();
+  doc.unfold();
 }
 
 void check_report_path(const std::string& option, const std::string& path) {

@@ -35,6 +35,17 @@ std::string run_range(const UnreadableRun& r) {
          std::string(describe(r.status)) + (r.nominal ? "" : ", some units");
 }
 
+int validated_points(const Budget& b, int& compared) {
+  int validated = 0;
+  compared = 0;
+  for (const auto& p : b.points)
+    if (p.in_window && p.mc && p.mc->valid > 0 && p.linear.status == Status::ok) {
+      ++compared;
+      validated += linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high, numerical_tolerance(p.linear.u_c));
+    }
+  return validated;
+}
+
 }  // namespace budget_writer
 
 namespace {
@@ -138,17 +149,6 @@ std::string engines_text(const Design& d, const Budget& b) {
   return "\nLargest |error| in the window, by engine:\n" + render_text(s, kLayout);
 }
 
-int validated_points(const Budget& b, int& compared) {
-  int validated = 0;
-  compared = 0;
-  for (const auto& p : b.points)
-    if (p.in_window && p.mc && p.mc->valid > 0 && p.linear.status == Status::ok) {
-      ++compared;
-      validated += linear_validated(p.linear.low, p.linear.high, p.mc->low, p.mc->high, numerical_tolerance(p.linear.u_c));
-    }
-  return validated;
-}
-
 std::string yield_text(const Design& d, const Budget& b, bool detail) {
   if (!b.mc) return "\nMonte Carlo not run (--no-mc): no yield estimate.\n";
   const McSummary& m = *b.mc;
@@ -157,7 +157,7 @@ std::string yield_text(const Design& d, const Budget& b, bool detail) {
                             " .. " + pct(m.yield_high, 3) + "); " + budget_writer::failure_rate_text(m) +
                             "; required " + pct(d.requirement.yield, 3) + ".");
   int compared = 0;
-  const int validated = validated_points(b, compared);
+  const int validated = budget_writer::validated_points(b, compared);
   std::string check = "Linear budget validated by Monte Carlo (JCGM 101 section 8) at " + std::to_string(validated) +
                       " of " + std::to_string(compared) + " window temperatures" +
                       (validated == compared ? ": it can be trusted here." : ": read the Monte Carlo bands.");

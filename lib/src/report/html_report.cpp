@@ -86,14 +86,21 @@ h1 { font-size: 1.6rem; margin: 0 0 1rem; }
 h2 { font-size: 1.25rem; margin: 1.8rem 0 .6rem; padding-bottom: .2rem; border-bottom: 1px solid #bbbbbb; }
 h3, h4, h5, h6 { font-size: 1.05rem; margin: 1.2rem 0 .4rem; }
 p { margin: .5rem 0; max-width: 48rem; }
-table { border-collapse: collapse; margin: .8rem 0; font-variant-numeric: tabular-nums; }
+.table-wrap { max-width: 100%; overflow-x: auto; margin: .8rem 0; }
+table { border-collapse: collapse; margin: 0; font-variant-numeric: tabular-nums; }
 caption { caption-side: top; text-align: left; font-weight: 600; padding-bottom: .3rem; }
-th, td { padding: .25rem .65rem; border-bottom: 1px solid #d4d4d4; text-align: left; vertical-align: top; }
+th, td { padding: .25rem .65rem; border-bottom: 1px solid #d4d4d4; text-align: left; vertical-align: top;
+         overflow-wrap: anywhere; }
+.table-wrap th:first-child, .table-wrap td:first-child { position: sticky; left: 0; background: #ffffff; }
 thead th { border-bottom: 2px solid #333333; font-weight: 600; }
 th.num, td.num { text-align: right; white-space: nowrap; }
 figure.chart { margin: 1rem 0; }
 figure.chart svg { display: block; max-width: 100%; height: auto; }
 figcaption { font-size: .9rem; color: #444444; margin-top: .3rem; }
+figure.drawing { margin: 1rem 0; }
+figure.drawing svg { display: block; max-width: 100%; height: auto; }
+details { margin: .8rem 0; }
+summary { cursor: pointer; font-weight: 600; }
 .verdict { margin: 1rem 0; padding: .6rem 1rem; font-size: 1.1rem; border: 3px solid; }
 .verdict .mark { font-weight: 700; letter-spacing: .04em; margin-right: .6rem; }
 .verdict.pass { background: #e4f2e7; border-color: #1d6a33; color: #0e3a1a; }
@@ -116,6 +123,10 @@ figure.chart, .verdict, .caution, pre { break-inside: avoid; page-break-inside: 
   tr { break-inside: avoid; page-break-inside: avoid; }
   figure.chart svg { width: 100%; }
   .verdict, .caution { -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+  /* Folded sections are open on paper. */
+  details > * { display: block !important; }
+  details::details-content { content-visibility: visible; display: block; }
+  .table-wrap { overflow: visible; }
 }
 )css";
 
@@ -307,7 +318,7 @@ HtmlDocument& HtmlDocument::table(const Table& t) {
     numeric[c] = any && all;
   }
   auto cls = [&](std::size_t c) { return numeric[c] ? std::string(" class=\"num\"") : std::string(); };
-  body_ += "<table>\n";
+  body_ += "<div class=\"table-wrap\"><table>\n";
   if (!t.caption.empty()) body_ += "<caption>" + html_escape(t.caption) + "</caption>\n";
   if (!t.header.empty()) {
     body_ += "<thead><tr>";
@@ -322,7 +333,7 @@ HtmlDocument& HtmlDocument::table(const Table& t) {
       body_ += "<td" + cls(c) + ">" + (c < row.size() ? html_escape(row[c]) : "") + "</td>";
     body_ += "</tr>\n";
   }
-  body_ += "</tbody>\n</table>\n";
+  body_ += "</tbody>\n</table></div>\n";
   return *this;
 }
 
@@ -336,6 +347,24 @@ HtmlDocument& HtmlDocument::chart(const svg::Chart& chart, std::string_view capt
 HtmlDocument& HtmlDocument::caution(std::string_view text) {
   body_ += "<div class=\"caution\" role=\"note\"><span class=\"mark\" aria-hidden=\"true\">\u26a0</span> " + html_escape(text) +
            "</div>\n";
+  return *this;
+}
+
+HtmlDocument& HtmlDocument::drawing(std::string_view svg_markup, std::string_view caption) {
+  body_ += "<figure class=\"drawing\">\n";
+  body_ += svg_markup;
+  if (!caption.empty()) body_ += "<figcaption>" + html_escape(caption) + "</figcaption>\n";
+  body_ += "</figure>\n";
+  return *this;
+}
+
+HtmlDocument& HtmlDocument::fold(std::string_view summary) {
+  body_ += "<details><summary>" + html_escape(summary) + "</summary>\n";
+  return *this;
+}
+
+HtmlDocument& HtmlDocument::unfold() {
+  body_ += "</details>\n";
   return *this;
 }
 

@@ -52,6 +52,9 @@ void write_file_atomically(const std::string& path, std::string_view contents);
 enum class Badge { pass, fail };
 
 // Builds one HTML page; every method appends a block and returns *this.
+// Every table sits in a box as wide as the page that scrolls sideways when
+// the table cannot wrap to fit (its first column stays in view), so no
+// table runs past a 1280 px window.
 //
 //   HtmlDocument doc("Budget: default design");
 //   doc.verdict(Badge::pass, "worst case 0.41 K within ±0.5 K")
@@ -68,6 +71,13 @@ class HtmlDocument {
   HtmlDocument& chart(const svg::Chart& chart, std::string_view caption = {});
   HtmlDocument& caution(std::string_view text);
   HtmlDocument& preformatted(std::string_view text);  // resolved settings, a scenario file
+  // A drawing made by the library (an SVG element whose text is already
+  // escaped, such as report/schematic.hpp's), in a figure with its caption.
+  HtmlDocument& drawing(std::string_view svg_markup, std::string_view caption = {});
+  // A folded block: what comes until unfold() shows under `summary` when
+  // opened (<details>); open on paper. Folds do not nest.
+  HtmlDocument& fold(std::string_view summary);
+  HtmlDocument& unfold();
 
   std::string str() const;   // the whole document, "<!DOCTYPE html>" to "</html>"
 
