@@ -552,5 +552,32 @@ INSTANTIATE_TEST_SUITE_P(
         BadCase{"scenario_points", "--firmware.table_points=1 --emit c", "firmware.table_points = 1 (command line)"}),
     [](const auto& info) { return info.param.name; });
 
+TEST(TableCli, SaysWhatTheAdcCannotShowWithTheTemperaturesLost) {
+  // 10k/10k beta NTC (R25 = 10 kOhm, B = 3950 K) from 3.3 V into an absolute
+  // 2.5 V reference: code 4095 of 4096 (firmware.full_scale = pow2) is the
+  // node at 2.5 V·4095/4096, so R = 10k·x/(1 − x) with x = 2.5/3.3·4095/4096
+  // (Ohm's law) and T = 1/(1/298.15 + ln(R/R25)/B) (IEC 60539-1's beta
+  // equation). Below that temperature the reading is past the top rail.
+  const std::string args = "table --conditions.t_min=-20 --supply.ratiometric=false --supply.v_reference=2.5";
+  const auto j = testing::cli_json(args);
+  const double x = 2.5 / 3.3 * 4095.0 / 4096.0, r = 10e3 * x / (1.0 - x);
+  const double rail = 1.0 / (1.0 / 298.15 + std::log(r / 10e3) / 3950.0) - 273.15;
+  ASSERT_EQ(j["lost_to_saturation"].size(), 1u);
+  const auto& lost = j["lost_to_saturation"][0];
+  EXPECT_EQ(lost["rail"], "top");
+  EXPECT_DOUBLE_EQ(lost["from"].get<double>(), -20.0);
+  EXPECT_NEAR(lost["to"].get<double>(), rail, 1e-6);  // the exact conversion, solved to 1e-9 or better
+  // A point of the widened table past code 4095 is named.
+  ASSERT_FALSE(j["points_beyond_adc"].empty());
+  for (const auto& k : j["points_beyond_adc"]) EXPECT_GT(j["rows"][k.get<std::size_t>()]["code"].get<long long>(), 4095);
+  const std::string text = testing::cli_output(args);
+  EXPECT_NE(text.find("The range is cut short by saturation: from -20.00 to "), std::string::npos) << text;
+  EXPECT_NE(text.find("lie beyond the ADC's codes 0..4095"), std::string::npos) << text;
+  // A design read wholly inside the ADC's range says neither.
+  const auto plain = testing::cli_json("table");
+  EXPECT_FALSE(plain.contains("lost_to_saturation"));
+  EXPECT_FALSE(plain.contains("points_beyond_adc"));
+}
+
 }  // namespace
 }  // namespace thermargin
