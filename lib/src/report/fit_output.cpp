@@ -10,6 +10,8 @@
 
 #include "thermargin/report/fit_output.hpp"
 
+#include "report/json_fields.hpp"
+
 #include "thermargin/core/number.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell
 #include "thermargin/report/table.hpp"
@@ -21,7 +23,7 @@ namespace thermargin {
 
 namespace {
 
-nlohmann::json num(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+nlohmann::json num(double v) { return json_fields::finite(v); }
 
 std::string short_label(const ModelFit& f) {
   const std::string m = f.model == "beta" ? "beta" : f.model == "steinhart-hart" ? "SH" : "SH4";
@@ -99,24 +101,23 @@ nlohmann::json to_json(const FitResult& r, const std::string& snippet) {
 }
 
 std::string to_csv(const FitResult& r) {
-  std::ostringstream out;
-  out << "# " << caution << "\n";
-  out << "model,method,r25_ohm,beta_K,a,b,c,d,max_residual_K,max_residual_at_degC,rms_residual_K,"
-         "between_max_error_K,between_max_at_degC,worst_error_K,dof,recommended\n";
+  Table t{.header = {"model", "method", "r25_ohm", "beta_K", "a", "b", "c", "d", "max_residual_K", "max_residual_at_degC",
+                     "rms_residual_K", "between_max_error_K", "between_max_at_degC", "worst_error_K", "dof", "recommended"}};
   for (std::size_t i = 0; i < r.fits.size(); ++i) {
     const auto& f = r.fits[i];
-    out << csv_cell(f.model) << "," << csv_cell(f.method);
+    std::vector<std::string> row{f.model, f.method};
     for (const char* name : {"r25", "beta", "a", "b", "c", "d"}) {
-      out << ",";
+      row.emplace_back();
       for (const auto& c : f.coefficients)
-        if (c.name == name) out << significant(c.value, 10);
+        if (c.name == name) row.back() += significant(c.value, 10);
     }
-    out << "," << significant(f.max_residual, 6) << "," << significant(f.max_residual_at, 6) << "," << significant(f.rms_residual, 6)
-        << "," << (f.between_assessed ? significant(f.between_max_error, 6) : "") << ","
-        << (f.between_assessed ? significant(f.between_max_at, 6) : "") << "," << significant(f.worst_error, 6) << "," << f.dof
-        << "," << (r.recommendation.found && r.recommendation.fit == i ? 1 : 0) << "\n";
+    row.insert(row.end(), {significant(f.max_residual, 6), significant(f.max_residual_at, 6), significant(f.rms_residual, 6),
+                           f.between_assessed ? significant(f.between_max_error, 6) : "",
+                           f.between_assessed ? significant(f.between_max_at, 6) : "", significant(f.worst_error, 6),
+                           std::to_string(f.dof), r.recommendation.found && r.recommendation.fit == i ? "1" : "0"});
+    t.rows.push_back(std::move(row));
   }
-  return out.str();
+  return "# " + std::string(caution) + "\n" + render_csv(t);
 }
 
 std::string to_text(const FitResult& r, const std::string& snippet) {

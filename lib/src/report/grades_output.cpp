@@ -7,6 +7,8 @@
 
 #include "thermargin/report/grades_output.hpp"
 
+#include "report/json_fields.hpp"
+
 #include "thermargin/core/number.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell
 #include "thermargin/report/table.hpp"
@@ -19,7 +21,7 @@ namespace thermargin {
 
 namespace {
 
-nlohmann::json opt(const std::optional<double>& v) { return v ? nlohmann::json(*v) : nlohmann::json(nullptr); }
+nlohmann::json opt(const std::optional<double>& v) { return json_fields::optional(v); }
 
 std::string pct(double v, int decimals = 2) { return fixed(100.0 * v, decimals) + " %"; }
 
@@ -41,11 +43,7 @@ nlohmann::ordered_json row_json(const GradesResult& g, const GradeRow& r) {
   j["mc_run"] = r.mc_run;
   if (r.mc) {
     j["mc_units"] = r.mc->units;
-    j["mc_max_abs"] = r.mc->max_abs;
-    j["yield"] = r.mc->yield;
-    j["yield_low"] = r.mc->yield_low;
-    j["yield_high"] = r.mc->yield_high;
-    j["failures_per_million"] = r.mc->failures_per_million;
+    json_fields::add_yield(j, *r.mc);
   } else {
     j["yield"] = nullptr;
   }

@@ -6,6 +6,7 @@
 #include <cstdio>
 #include <sstream>
 
+#include "report/json_fields.hpp"
 #include "thermargin/core/caution.hpp"
 
 namespace thermargin {
@@ -121,22 +122,21 @@ std::string response_text(const Design& d, const ResponseAnalysis& a) {
 }
 
 std::string response_csv(const ResponseAnalysis& a) {
-  std::ostringstream o;
-  o << "# " << caution << "\n";
-  o << "filter,length,alpha,chosen,recommended,delay_s,lag_s,ramp_error_K,settling_s,settling_readings,noise_factor,"
-       "noise_band_K,static_max_abs_K,total_max_abs_K,total_at_degC,margin_K,meets\n";
+  Table t{.header = {"filter", "length", "alpha", "chosen", "recommended", "delay_s", "lag_s", "ramp_error_K", "settling_s",
+                     "settling_readings", "noise_factor", "noise_band_K", "static_max_abs_K", "total_max_abs_K",
+                     "total_at_degC", "margin_K", "meets"}};
   for (std::size_t i = 0; i < a.rows.size(); ++i) {
     const ResponseRow& r = a.rows[i];
-    o << kind_word(r.filter.kind) << ","
-      << (r.filter.kind == FilterKind::moving_average ? std::to_string(r.filter.length) : "") << ","
-      << (r.filter.kind == FilterKind::exponential ? fmt("%.10g", r.filter.alpha) : "") << "," << (r.chosen ? 1 : 0)
-      << "," << (a.recommended && *a.recommended == i ? 1 : 0) << "," << fmt("%.10g", r.delay_s) << ","
-      << fmt("%.10g", r.lag_s) << "," << fmt("%.10g", r.ramp_error) << "," << fmt("%.10g", r.settling_s) << ","
-      << r.settling_readings << "," << fmt("%.10g", r.noise_factor) << "," << fmt("%.10g", r.noise_band) << ","
-      << fmt("%.10g", r.static_max_abs) << "," << (r.readable ? fmt("%.10g", r.total_max_abs) : "") << ","
-      << fmt("%.10g", r.total_at) << "," << fmt("%.10g", r.margin) << "," << (r.meets ? 1 : 0) << "\n";
+    auto g = [](double v) { return fmt("%.10g", v); };
+    t.rows.push_back({std::string(kind_word(r.filter.kind)),
+                      r.filter.kind == FilterKind::moving_average ? std::to_string(r.filter.length) : "",
+                      r.filter.kind == FilterKind::exponential ? g(r.filter.alpha) : "", r.chosen ? "1" : "0",
+                      a.recommended && *a.recommended == i ? "1" : "0", g(r.delay_s), g(r.lag_s), g(r.ramp_error),
+                      g(r.settling_s), std::to_string(r.settling_readings), g(r.noise_factor), g(r.noise_band),
+                      g(r.static_max_abs), r.readable ? g(r.total_max_abs) : "", g(r.total_at), g(r.margin),
+                      r.meets ? "1" : "0"});
   }
-  return o.str();
+  return "# " + std::string(caution) + "\n" + render_csv(t);
 }
 
 std::string response_json(const Design& d, const ResponseAnalysis& a) {
@@ -162,7 +162,7 @@ std::string response_json(const Design& d, const ResponseAnalysis& a) {
   j["recommendation_text"] = recommendation_text(a);
   if (!a.recommended) {
     const WhatWouldMeet& w = a.what_would;
-    auto opt = [](const auto& v) { return v ? nlohmann::json(*v) : nlohmann::json(nullptr); };
+    auto opt = [](const auto& v) { return json_fields::optional(v); };
     auto filter_of = [&](const auto& v, std::size_t row) {
       return v ? nlohmann::json(describe(a.rows[row].filter)) : nlohmann::json(nullptr);
     };
@@ -227,28 +227,42 @@ std::string legend(const ResponseAnalysis& a, std::size_t i) {
   return describe(a.rows[i].filter) + (a.rows[i].chosen ? " (the scenario's)" : "");
 }
 
-Figure ramp_figure(const ResponseAnalysis& a, const std::vector<std::size_t>& shown) {
-  const ResponseSettings& s = a.settings;
-  double lag = 0.0;
-  for (std::size_t i : shown) lag = std::max(lag, a.rows[i].lag_s);
-  const Timeline tl = timeline(4.0 * lag + 10.0 * s.reading_period, s.reading_period);
-  const double tau = s.time_constant_max();
-  const std::vector<double> x = sensor_on_ramp(tau, s.reading_period, s.ramp, tl.count);
-  std::vector<double> medium(tl.count);
-  for (std::size_t k = 0; k < tl.count; ++k) medium[k] = s.ramp * static_cast<double>(k) * s.reading_period;
+// The chart both pictures share: before it `first` (the step's band), then
+// the medium, the sensor element and the reported temperature of each shown
+// filter, every stride-th reading of `tl`.
+svg::Chart response_chart(const ResponseAnalysis& a, const std::vector<std::size_t>& shown, const Timeline& tl,
+                          const std::vector<double>& medium, const std::vector<double>& sensor, std::vector<svg::Series> first) {
   svg::Chart c;
-  c.title = "Following a ramp of " + fmt("%.4g", s.ramp_per_minute()) + " K/min";
-  c.x.label = "Time since the ramp began (s)";
   c.y.label = "Temperature change (K)";
-  c.description = "The medium's temperature, the sensor's own (time constant " + fmt("%.4g", tau) +
-                  " s) and the reported temperature at each reading for the scenario's filter and its neighbours.";
   const auto t = tl.times();
+  c.series = std::move(first);
   c.series.push_back(svg::line("medium", "medium (true)", t, tl.pick(medium), slot(0)));
-  c.series.push_back(svg::line("sensor", "sensor element", t, tl.pick(x), slot(1)));
+  c.series.push_back(svg::line("sensor", "sensor element", t, tl.pick(sensor), slot(1)));
   int n = 2;
   for (std::size_t i : shown)
-    c.series.push_back(svg::line(series_name(a.rows[i].filter), legend(a, i), t, tl.pick(apply_filter(a.rows[i].filter, x)),
-                                 slot(n++)));
+    c.series.push_back(svg::line(series_name(a.rows[i].filter), legend(a, i), t,
+                                 tl.pick(apply_filter(a.rows[i].filter, sensor)), slot(n++)));
+  return c;
+}
+
+// The largest of one figure of the rows shown: how long a picture must run.
+double largest_of(const ResponseAnalysis& a, const std::vector<std::size_t>& shown, double ResponseRow::*figure) {
+  double m = 0.0;
+  for (std::size_t i : shown) m = std::max(m, a.rows[i].*figure);
+  return m;
+}
+
+Figure ramp_figure(const ResponseAnalysis& a, const std::vector<std::size_t>& shown) {
+  const ResponseSettings& s = a.settings;
+  const Timeline tl = timeline(4.0 * largest_of(a, shown, &ResponseRow::lag_s) + 10.0 * s.reading_period, s.reading_period);
+  const double tau = s.time_constant_max();
+  std::vector<double> medium(tl.count);
+  for (std::size_t k = 0; k < tl.count; ++k) medium[k] = s.ramp * static_cast<double>(k) * s.reading_period;
+  svg::Chart c = response_chart(a, shown, tl, medium, sensor_on_ramp(tau, s.reading_period, s.ramp, tl.count), {});
+  c.title = "Following a ramp of " + fmt("%.4g", s.ramp_per_minute()) + " K/min";
+  c.x.label = "Time since the ramp began (s)";
+  c.description = "The medium's temperature, the sensor's own (time constant " + fmt("%.4g", tau) +
+                  " s) and the reported temperature at each reading for the scenario's filter and its neighbours.";
   return {"response-ramp.svg",
           "The reported temperature lags the ramp by the ramp times (time constant + the filter's delay) once the "
           "transients have passed: " + fmt("%.3f", a.rows[a.chosen].ramp_error) + " K for the scenario's filter.",
@@ -257,26 +271,17 @@ Figure ramp_figure(const ResponseAnalysis& a, const std::vector<std::size_t>& sh
 
 Figure step_figure(const ResponseAnalysis& a, const std::vector<std::size_t>& shown) {
   const ResponseSettings& s = a.settings;
-  double settle = 0.0;
-  for (std::size_t i : shown) settle = std::max(settle, a.rows[i].settling_s);
-  const Timeline tl = timeline(1.3 * settle + 5.0 * s.reading_period, s.reading_period);
+  const Timeline tl =
+      timeline(1.3 * largest_of(a, shown, &ResponseRow::settling_s) + 5.0 * s.reading_period, s.reading_period);
   const double tau = s.time_constant_max();
-  const std::vector<double> x = sensor_after_step(tau, s.reading_period, s.step, tl.count);
-  svg::Chart c;
+  svg::Chart c = response_chart(a, shown, tl, std::vector<double>(tl.count, s.step),
+                                sensor_after_step(tau, s.reading_period, s.step, tl.count),
+                                {svg::reference("settle_band", "step \u00b1 " + fmt("%.4g", s.settle_to) + " K",
+                                                {s.step - s.settle_to, s.step + s.settle_to})});
   c.title = "Settling after a step of " + fmt("%.4g", s.step) + " K";
   c.x.label = "Time since the step (s)";
-  c.y.label = "Temperature change (K)";
   c.description = "The reported temperature after the medium steps at a reading, for the scenario's filter and its "
                   "neighbours; the band is the step +/- settle_to.";
-  const auto t = tl.times();
-  c.series.push_back(svg::reference("settle_band", "step \u00b1 " + fmt("%.4g", s.settle_to) + " K",
-                                    {s.step - s.settle_to, s.step + s.settle_to}));
-  c.series.push_back(svg::line("medium", "medium (true)", t, tl.pick(std::vector<double>(tl.count, s.step)), slot(0)));
-  c.series.push_back(svg::line("sensor", "sensor element", t, tl.pick(x), slot(1)));
-  int n = 2;
-  for (std::size_t i : shown)
-    c.series.push_back(svg::line(series_name(a.rows[i].filter), legend(a, i), t, tl.pick(apply_filter(a.rows[i].filter, x)),
-                                 slot(n++)));
   const ResponseRow& own = a.rows[a.chosen];
   c.series.push_back(svg::annotation("settled", "settled: " + fmt("%.4g", own.settling_s) + " s", own.settling_s,
                                      s.step - step_error(tau, s.reading_period, own.filter, s.step, own.settling_readings)));
