@@ -201,8 +201,7 @@ McResult monte_carlo(const Chain& chain, const std::vector<double>& temperatures
   const Design& d = chain.design();
   const RunConstants c = make_constants(chain);
   const std::size_t nt = temperatures.size();
-  int threads = options.threads >= 0 ? options.threads : d.montecarlo.threads;
-  threads = resolve_threads(threads);
+  const int threads = resolve_threads(d.threads_or_scenario(options.threads));
   const std::uint64_t requested = options.units ? options.units : d.montecarlo.units;
   const bool adaptive = requested == 0;
 

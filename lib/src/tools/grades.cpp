@@ -171,8 +171,8 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
     }
   }
   // On the verdict's basis: at end of life when drift is set and requirement.at says so.
-  Design d = design_for_verdict(build_design(s));
-  d.montecarlo.threads = 1;  // threads are spread over combinations instead
+  // One thread an engine: threads are spread over combinations instead.
+  const Design d = design_for_verdict(build_design(s));
   f.requirement = d.requirement;
   f.rtd_class_note = rtd_class_range_note(d);
   const Chain chain(d);
@@ -186,7 +186,7 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
 
   f.wc_max_abs = picked_wc;
   if (!picked_wc) {
-    const WindowMax m = window_max(worst_case(chain, window, options.corners).points, d.requirement);
+    const WindowMax m = window_max(worst_case(chain, window, {.method = options.corners, .threads = 1}).points, d.requirement);
     if (m.readable) f.wc_max_abs = m.max_abs;
     else unreadable(m.failure, m.failure_at);
   }
@@ -657,7 +657,7 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
   else
     for (std::size_t j = 0; j < first_of.size(); ++j) ready.push_back(j);
   const int threads = static_cast<int>(std::min<std::size_t>(
-      static_cast<std::size_t>(resolve_threads(options.threads >= 0 ? options.threads : base.montecarlo.threads)),
+      static_cast<std::size_t>(resolve_threads(base.threads_or_scenario(options.threads))),
       first_of.size()));
   const auto errors = run_task_tree(
       std::move(ready), first_of.size(), threads,

@@ -484,7 +484,7 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
     // Validate the scenario as given before changing it, so that its own
     // mistakes are reported against its own keys.
     const Design given = build_design(scenario);
-    given_threads = given.montecarlo.threads;
+    given_threads = given.threads_or_scenario(options.threads);
     const Where grade = command_line("--grade");
     if (!options.tolerance && options.series_grade) ctx.options.tolerance = series_tolerance(options.series);
     const std::optional<double>& tolerance = ctx.options.tolerance;
@@ -500,16 +500,13 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
       ctx.base.set("divider.r_parallel_tol", number_text(tol), grade);
     }
   }
-  // The engines run single-threaded inside the picker, which spreads
-  // candidates (or temperatures) over the threads itself.
-  ctx.base.set("montecarlo.threads", "1", command_line("pick"));
+  // The engines run single-threaded inside the picker (each call says so),
+  // which spreads candidates (or temperatures) over the threads itself.
   ctx.design = build_design(ctx.base);
   const Design& d = ctx.design;
   ctx.range = d.conditions.temperatures();
   ctx.window = window_temperatures(d.requirement, ctx.range);
-  int threads = options.threads >= 0 ? options.threads : given_threads;
-  threads = resolve_threads(threads);
-  ctx.threads = threads;
+  ctx.threads = resolve_threads(given_threads);
   ctx.mc_objective_units = default_units(d, options.mc_units, mc_objective_cap);
   ctx.mc_verify_units = default_units(d, options.mc_units, mc_verify_cap);
   if (options.values.empty()) {
