@@ -551,7 +551,7 @@ std::vector<Case> options() {
   };
 }
 
-// The sampled node and the divider's drive (docs/model.md §14–§12).
+// The sampled node and the divider's drive (docs/model.md §14–§15).
 std::vector<Case> acquisition() {
   return {
       scenario("a negative node capacitance", "[divider]\nc_node = -100n\n",

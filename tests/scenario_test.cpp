@@ -177,7 +177,7 @@ TEST_F(ScenarioFile, RefusesMalformedFilesWithFileAndLine) {
 }
 
 TEST_F(ScenarioFile, RefusesBadValuesNamingKeyFileLineAndWhatIsAccepted) {
-  // style.md: "divider.r_fixed = -10k (scenario.ini:12): must be > 0".
+  // docs/refusals.md, "How a refusal looks": "divider.r_fixed = -10k (my.ini:12): must be > 0".
   const std::string at = " (" + (dir_.path / "bad.ini").string() + ":2): ";
   EXPECT_EQ(refusal("[divider]\nr_fixed = -10k\n"), "divider.r_fixed = -10k" + at + "must be > 0");
   EXPECT_EQ(refusal("[sensor]\nr25 = 0\n"), "sensor.r25 = 0" + at + "must be > 0");
