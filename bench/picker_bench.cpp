@@ -50,12 +50,13 @@ Design single_threaded() {
   return build_design(s);
 }
 
-// What a candidate evaluated in full costs (every corner, window only).
+// What a candidate evaluated in full costs (every corner, window only), on
+// one thread as the picker runs it.
 void BM_OneCandidateFullWorstCase(benchmark::State& state) {
   const Design d = single_threaded();
   const Chain chain(d);
   const auto w = window(d);
-  for (auto _ : state) benchmark::DoNotOptimize(worst_case(chain, w).points.data());
+  for (auto _ : state) benchmark::DoNotOptimize(worst_case(chain, w, {.threads = 1}).points.data());
 }
 BENCHMARK(BM_OneCandidateFullWorstCase)->Unit(benchmark::kMillisecond);
 

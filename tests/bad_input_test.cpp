@@ -448,6 +448,15 @@ std::vector<Case> catalogues() {
       catalogue("a header and no rows", head, {"parts.csv", "a header but no options"}),
       catalogue("a setting the scenario cannot take", head + "x,a,1,sensor.r25_tol=abc\n",
                 {"sensor.r25_tol = abc (parts.csv:2:4)", "expected a fraction", "[set by grade 'a' of slot 'x', parts.csv:2:4]"}),
+      // The [response] keys are validated like every other section's, a
+      // catalogue's settings included (docs/response.md).
+      catalogue("a grade setting a time constant of 0", head + "x,a,1,response.time_constant=0\n",
+                {"response.time_constant = 0 (parts.csv:2:4)", "must be > 0 s", "[set by grade 'a' of slot 'x', parts.csv:2:4]"}),
+      catalogue("a grade setting an unknown filter", head + "x,a,1,sensor.r25_tol=1%\nx,b,1,response.filter=median\n",
+                {"response.filter = median (parts.csv:3:4)", "none | moving-average | exponential",
+                 "[set by grade 'b' of slot 'x', parts.csv:3:4]"}),
+      catalogue("a grade setting a ramp with no limit to meet", head + "x,a,1,response.ramp=2K/min\n",
+                {"response.ramp = 2K/min (parts.csv:2:4)", "needs a limit to meet", "set requirement.max_error"}),
       catalogue("one key graded by two slots", head + "x,a,1,sensor.r25_tol=1%\ny,b,1,sensor.r25_tol=2%\n",
                 {"settings = sensor.r25_tol=2% (parts.csv:3:4)", "already graded by slot 'x' (line 2)"}),
       catalogue("a row with no slot", head + ",a,1,sensor.r25_tol=1%\n", {"slot = (empty) (parts.csv:2:1)", "names its slot"}),
@@ -536,7 +545,7 @@ std::vector<Case> options() {
   };
 }
 
-// The sampled node and the divider's drive (docs/model.md §14–§12).
+// The sampled node and the divider's drive (docs/model.md §14–§15).
 std::vector<Case> acquisition() {
   return {
       scenario("a negative node capacitance", "[divider]\nc_node = -100n\n",

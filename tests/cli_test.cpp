@@ -179,21 +179,8 @@ TEST_F(Cli, RunawayPointsCarryTheStatusAndNoNumber) {
   }
 }
 
-TEST_F(Cli, EveryShippedScenarioRunsThroughCheckAndBudget) {
-  // The same as the ctest entries scenario.*, here so that the unit test
-  // program alone shows a broken scenario.
-  for (const auto& e : fs::directory_iterator(source_dir / "scenarios")) {
-    if (e.path().extension() != ".ini") continue;
-    SCOPED_TRACE(e.path().filename().string());
-    const Outcome check = run("check '" + e.path().string() + "'");
-    EXPECT_EQ(check.status, 0) << check.err;
-    const Outcome budget = run("budget '" + e.path().string() + "' --format json --montecarlo.units=2000");
-    EXPECT_EQ(budget.status, 0) << budget.err;
-    EXPECT_TRUE(budget.err.empty()) << budget.err;
-    const auto j = nlohmann::json::parse(budget.out);
-    EXPECT_FALSE(j["points"].empty());
-  }
-}
+// Every shipped scenario through `check` and `budget`: the ctest entries
+// scenario.<name>.figures (tests/CMakeLists.txt), which also hold its figures.
 
 }  // namespace
 }  // namespace thermargin

@@ -65,13 +65,4 @@ inline Overrides table_sensor_0_to_50(const Overrides& extra = {}) {
                     extra);
 }
 
-// Every scenario shipped in scenarios/, so that a new one is tested too.
-inline std::vector<std::string> scenario_files() {
-  std::vector<std::string> out;
-  for (const auto& e : std::filesystem::directory_iterator(source_path("scenarios")))
-    if (e.path().extension() == ".ini") out.push_back(e.path().string());
-  std::sort(out.begin(), out.end());
-  return out;
-}
-
 }  // namespace thermargin::testing

@@ -461,11 +461,11 @@ TEST(Grades, RePickGivesThePickersWinnerOverTheWholeSeriesAndTheEnginesFigures) 
 
 TEST(Grades, RePickFollowsAWinnerThatMovesFarBetweenNeighbouringCombinations) {
   // A thermistor slot that changes R25 tenfold moves the best resistor
-  // several times over (some 60 E96 steps, where a window of 8 either side
-  // would have to move many times) between a combination and its parent in
-  // the re-pick's tree; each combination's resistor must still be the one the
-  // picker finds over the whole series (best_fixed_resistor: pick() over
-  // every E96 value, checked against a brute-force worst case in
+  // several times over (some 30 E48 steps, where a window of 8 either side
+  // would have to move several times) between a combination and its parent
+  // in the re-pick's tree; each combination's resistor must still be the one
+  // the picker finds over the whole series (best_fixed_resistor: pick() over
+  // every E48 value; pick() is checked against a brute-force worst case in
   // picker_test.cpp).
   const Scenario base;
   const Catalogue cat = parse_catalogue(
@@ -475,7 +475,7 @@ TEST(Grades, RePickFollowsAWinnerThatMovesFarBetweenNeighbouringCombinations) {
       "resistor,1%,0.002,divider.r_fixed_tol=1%\n"
       "resistor,0.1%,0.03,divider.r_fixed_tol=0.1%;divider.r_fixed_tempco=25ppm\n",
       "decade.csv");
-  const GradesOptions o = re_pick_over(Series::e96, 1e3, 1e6);
+  const GradesOptions o = re_pick_over(Series::e48, 1e3, 1e6);
   const GradesResult g = evaluate_grades(base, cat, o);
   ASSERT_EQ(g.rows.size(), 4u);
   double smallest = 1e9, largest = 0.0;

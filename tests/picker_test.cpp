@@ -644,55 +644,78 @@ void expect_same_row(const PickRow& got, const PickRow& want) {
   EXPECT_EQ(got.rejected_by, want.rejected_by);
 }
 
-TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerOverTheWholeSeries) {
-  // pick_winner() screens only the candidates its bounds cannot rule out;
-  // its row must be the one pick() ranks first over the whole list (which
-  // the test above holds against a brute-force worst case of every
-  // candidate), whatever the start: the ends of the list, the scenario's
-  // own value, the winner itself. Every scenario in scenarios/, the default
-  // design with each calibration, with a limit that rules out the
-  // unconstrained winner, with readings no candidate can convert, and an
+// pick_winner() screens only the candidates its bounds cannot rule out; its
+// row must be the one pick() ranks first over the whole list (which the
+// brute-force test above holds against a worst case of every candidate),
+// whatever the start: the ends of the list, the scenario's own value, the
+// winner itself. E12 over three decades: the screen's bounds and the search
+// are the same on any list, and the brute-force test holds pick() on E96.
+PickOptions any_start_options() {
+  PickOptions e12;
+  e12.series = Series::e12;
+  e12.range_low = 1e3;
+  e12.range_high = 1e6;
+  e12.top = 1;
+  e12.guidance = false;
+  e12.threads = 1;
+  return e12;
+}
+
+// The winner pick() ranks first; pick_winner() from each start must give its row.
+PickRow expect_the_winner_from_any_start(const Scenario& s, const PickOptions& o) {
+  const PickRow want = pick(s, o).winner();
+  const std::vector<double> values = series_values(o.series, o.range_low, o.range_high);
+  for (double start : {values.front(), values.back(), r_fixed_of(s), want.r_fixed}) {
+    SCOPED_TRACE("from " + text(start));
+    expect_same_row(pick_winner(s, o, start), want);
+  }
+  return want;
+}
+
+// Every scenario in scenarios/, each a test of its own (ctest runs them side by side).
+class WinnerFromAnyStart : public ::testing::TestWithParam<std::string> {};
+
+TEST_P(WinnerFromAnyStart, IsTheWinnerOverTheWholeSeries) {
+  expect_the_winner_from_any_start(scenario_with({}, GetParam()), any_start_options());
+}
+
+INSTANTIATE_TEST_SUITE_P(Scenarios, WinnerFromAnyStart, ::testing::ValuesIn(testing::scenario_files()),
+                         [](const ::testing::TestParamInfo<std::string>& info) {
+                           return std::filesystem::path(info.param).stem().string();
+                         });
+
+TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerWithCalibrationLimitsUnreadableAndLinear) {
+  // The default design with each calibration, with a limit that rules out
+  // the unconstrained winner, with readings no candidate can convert, and an
   // objective the search hands to pick().
-  struct Case {
-    std::string label;
-    Scenario s;
-    PickOptions o;
-  };
-  PickOptions e24;
-  e24.series = Series::e24;
-  e24.range_low = 1e3;
-  e24.range_high = 1e6;
-  e24.top = 1;
-  e24.guidance = false;
-  e24.threads = 1;
-  std::vector<Case> cases;
-  for (const auto& file : testing::scenario_files())
-    cases.push_back({std::filesystem::path(file).filename().string(), scenario_with({}, file), e24});
-  cases.push_back({"offset calibration", scenario_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}), e24});
-  cases.push_back({"two-point calibration",
-                   scenario_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"}}), e24});
-  const PickRow free = pick(Scenario{}, e24).winner();
-  PickOptions limited = e24;
-  limited.constraints.max_current = 0.99 * free.max_current;
-  cases.push_back({"current limit", Scenario{}, limited});
-  cases.push_back({"nothing readable", scenario_with({{"adc.offset", "2000"}}), e24});
-  PickOptions linear = e24;
-  linear.objective = Objective::linear;
-  cases.push_back({"linear objective", Scenario{}, linear});
-  ASSERT_GE(cases.size(), 10u);
-  for (const auto& c : cases) {
-    SCOPED_TRACE(c.label);
-    const PickRow want = pick(c.s, c.o).winner();
-    if (c.label == "nothing readable") EXPECT_FALSE(want.feasible());  // else the case tests nothing
-    if (c.label == "current limit") {  // the best feasible, not the unconstrained winner
-      EXPECT_TRUE(want.feasible());
-      EXPECT_NE(want.r_fixed, free.r_fixed);
-    }
-    const std::vector<double> values = series_values(Series::e24, e24.range_low, e24.range_high);
-    for (double start : {values.front(), values.back(), r_fixed_of(c.s), want.r_fixed, 3.3e5}) {
-      SCOPED_TRACE("from " + text(start));
-      expect_same_row(pick_winner(c.s, c.o, start), want);
-    }
+  const PickOptions e12 = any_start_options();
+  {
+    SCOPED_TRACE("offset calibration");
+    expect_the_winner_from_any_start(scenario_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}), e12);
+  }
+  {
+    SCOPED_TRACE("two-point calibration");
+    expect_the_winner_from_any_start(
+        scenario_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"}}), e12);
+  }
+  const PickRow free = pick(Scenario{}, e12).winner();
+  {
+    SCOPED_TRACE("current limit");
+    PickOptions limited = e12;
+    limited.constraints.max_current = 0.99 * free.max_current;
+    const PickRow want = expect_the_winner_from_any_start(Scenario{}, limited);
+    EXPECT_TRUE(want.feasible());  // the best feasible, not the unconstrained winner
+    EXPECT_NE(want.r_fixed, free.r_fixed);
+  }
+  {
+    SCOPED_TRACE("nothing readable");
+    EXPECT_FALSE(expect_the_winner_from_any_start(scenario_with({{"adc.offset", "2000"}}), e12).feasible());
+  }
+  {
+    SCOPED_TRACE("linear objective");
+    PickOptions linear = e12;
+    linear.objective = Objective::linear;
+    expect_the_winner_from_any_start(Scenario{}, linear);
   }
 }
 

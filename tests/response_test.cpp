@@ -190,7 +190,7 @@ TEST(ResponseAnalysis, FilteredNoiseShiftMatchesTheWorstCaseRunWithTheNoiseScale
     std::vector<double> window;
     for (double t : scaled.conditions.temperatures())
       if (t >= scaled.requirement.window_min && t <= scaled.requirement.window_max) window.push_back(t);
-    const WorstCase wc = worst_case(Chain(scaled), window, CornerMethod::automatic, false);
+    const WorstCase wc = worst_case(Chain(scaled), window, {.half_widths = false});
     double m = 0.0;
     for (const auto& p : wc.points) m = std::max({m, std::fabs(p.low), std::fabs(p.high)});
     EXPECT_NEAR(r.static_max_abs, m, kFirstOrder * m);

@@ -139,6 +139,23 @@ TEST(DesignInCode, ValuesSetByAProgramAreCheckedAsAFileIs) {
   EXPECT_THROW(s.set("divider.r_fixd", "1k"), input_error);
 }
 
+TEST(DesignInCode, ResponseKeysAreCheckedWithEveryOtherSection) {
+  // The [response] section is not part of the Design, but build_design()
+  // validates it like any other section (docs/refusals.md), so a program
+  // that sets a bad value hears of it at once.
+  Scenario s;
+  s.set("response.filter_alpha", "0.5");
+  EXPECT_NO_THROW(build_design(s));
+  s.set("response.filter_alpha", "1.5");
+  try {
+    build_design(s);
+    ADD_FAILURE() << "an exponential filter's alpha of 1.5 was accepted";
+  } catch (const input_error& e) {
+    EXPECT_EQ(std::string(e.what()).rfind("response.filter_alpha = 1.5 (set by the program): must be in (0, 1]", 0), 0u)
+        << e.what();
+  }
+}
+
 TEST_F(ScenarioFile, ToleratesAByteOrderMarkAndWindowsLineEnds) {
   Scenario s;
   s.load_file(write("bom.ini", "\xEF\xBB\xBFtitle = BOM\r\n[sensor]\r\nr25 = 4k7\r\n"));
@@ -160,7 +177,7 @@ TEST_F(ScenarioFile, RefusesMalformedFilesWithFileAndLine) {
 }
 
 TEST_F(ScenarioFile, RefusesBadValuesNamingKeyFileLineAndWhatIsAccepted) {
-  // style.md: "divider.r_fixed = -10k (scenario.ini:12): must be > 0".
+  // docs/refusals.md, "How a refusal looks": "divider.r_fixed = -10k (my.ini:12): must be > 0".
   const std::string at = " (" + (dir_.path / "bad.ini").string() + ":2): ";
   EXPECT_EQ(refusal("[divider]\nr_fixed = -10k\n"), "divider.r_fixed = -10k" + at + "must be > 0");
   EXPECT_EQ(refusal("[sensor]\nr25 = 0\n"), "sensor.r25 = 0" + at + "must be > 0");

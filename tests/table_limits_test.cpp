@@ -79,8 +79,8 @@ TEST(TableLimits, ConstantPercentColumnIsTheR25Tolerance) {
   ASSERT_EQ(table.inputs.size(), 1u);
   EXPECT_EQ(table.inputs.front().source, Source::table_spread);
   const auto temps = table.conditions.temperatures();
-  const WorstCase a = worst_case(Chain(table), temps, CornerMethod::enumerate);
-  const WorstCase b = worst_case(Chain(model), temps, CornerMethod::enumerate);
+  const WorstCase a = worst_case(Chain(table), temps, {.method = CornerMethod::enumerate});
+  const WorstCase b = worst_case(Chain(model), temps, {.method = CornerMethod::enumerate});
   // The bound: the table's curve against the beta equation, in K, at every temperature.
   const RtTable& curve = *table.sensor.table;
   for (std::size_t i = 0; i < temps.size(); ++i) {
@@ -105,8 +105,8 @@ TEST(TableLimits, LimitsFromR25AndBTolerancesReproduceTheBetaModel) {
       design_with(testing::with_extra(common("5"), {{"sensor.r25_tol", "1%"}, {"sensor.beta_tol", "0.5%"}}));
   EXPECT_EQ(table.sensor.r25_tol, 0.0);
   const auto temps = table.conditions.temperatures();
-  const WorstCase a = worst_case(Chain(table), temps, CornerMethod::enumerate);
-  const WorstCase b = worst_case(Chain(model), temps, CornerMethod::enumerate);
+  const WorstCase a = worst_case(Chain(table), temps, {.method = CornerMethod::enumerate});
+  const WorstCase b = worst_case(Chain(model), temps, {.method = CornerMethod::enumerate});
   for (std::size_t i = 0; i < temps.size(); ++i) {
     EXPECT_NEAR(a.points[i].low, b.points[i].low, 1e-6) << temps[i];
     EXPECT_NEAR(a.points[i].high, b.points[i].high, 1e-6) << temps[i];

@@ -243,7 +243,8 @@ Budget budget_of(const Chain& chain, const BudgetOptions& options) {
   const Design& d = chain.design();
   const auto temps = d.conditions.temperatures();
   Budget b;
-  const WorstCase wc = worst_case(chain, temps, options.corners);
+  const WorstCase wc =
+      worst_case(chain, temps, {.method = options.corners, .threads = d.threads_or_scenario(options.threads)});
   const LinearBudget lb = linear_budget(chain, temps);
   b.k_p = lb.k_p;
   b.wc_directed = wc.directed;
@@ -253,6 +254,7 @@ Budget budget_of(const Chain& chain, const BudgetOptions& options) {
   if (options.monte_carlo) {
     McOptions mo;
     mo.progress = options.progress;
+    mo.threads = options.threads;
     mc = monte_carlo(chain, temps, mo);
     b.mc = mc->summary;
   }

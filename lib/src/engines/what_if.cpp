@@ -20,9 +20,9 @@ std::vector<double> window_temperatures(const Budget& b) {
   return out;
 }
 
-WhatIfFigures figures(const Design& d, const std::vector<double>& temps, CornerMethod method) {
+WhatIfFigures figures(const Design& d, const std::vector<double>& temps, const WorstCaseOptions& corners) {
   const Chain chain(d);
-  const WorstCase wc = worst_case(chain, temps, method, false);
+  const WorstCase wc = worst_case(chain, temps, corners);
   const LinearBudget lb = linear_budget(chain, temps);
   const WindowMax wc_max = window_max(wc.points, d.requirement), rss_max = window_max(lb.points, d.requirement);
   WhatIfFigures f;
@@ -122,7 +122,9 @@ WhatIf what_if(const Chain& chain, const Budget& budget, const WhatIfOptions& op
   const double enumeration =
       std::ldexp(1.0, n) * static_cast<double>(temps.size()) * (1.0 + 1.5 * static_cast<double>(tried.size()));
   out.directed = n > max_enumerated_inputs || enumeration > options.max_evaluations;
-  const CornerMethod method = out.directed ? CornerMethod::directed : CornerMethod::enumerate;
+  const WorstCaseOptions method{.method = out.directed ? CornerMethod::directed : CornerMethod::enumerate,
+                                .half_widths = false,
+                                .threads = d.threads_or_scenario(options.threads)};
   out.as_designed = figures(d, temps, method);
 
   for (const Contributor* c : tried) {

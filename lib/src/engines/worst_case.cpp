@@ -281,90 +281,98 @@ CornerRange directed_extreme(const Chain& chain, double t, const Intervals& iv, 
   return best;
 }
 
+// Every corner: every combination of the analog inputs' signs with every
+// combination of the ADC's (gain, offset, INL), the analog stage of the
+// front end, the costly part (the sensor, its self-heating), computed once
+// for all ADC corners that share it. Threads over analog corners, each
+// folding into its own points; min and max are exact, so the merge does not
+// depend on how corners were shared or visited.
+void enumerate_corners(const Chain& chain, const std::vector<double>& temperatures, const Intervals& iv, int threads,
+                       WorstCase& wc) {
+  const Design& d = chain.design();
+  const std::size_t nt = temperatures.size();
+  wc.corners = 1LL << wc.active_inputs;
+  std::vector<std::size_t> analog, adc;  // indices into d.inputs
+  for (std::size_t k = 0; k < d.inputs.size(); ++k) {
+    const Source src = d.inputs[k].source;
+    (src == Source::adc_gain || src == Source::adc_offset || src == Source::adc_inl ? adc : analog).push_back(k);
+  }
+  const long long analog_corners = 1LL << analog.size(), adc_corners = 1LL << adc.size();
+  auto set_signs = [&](Deviations& dev, const std::vector<std::size_t>& which, long long mask) {
+    for (std::size_t b = 0; b < which.size(); ++b) {
+      const auto& in = d.inputs[which[b]];
+      dev[static_cast<std::size_t>(in.source)] = (mask >> b & 1) ? in.bound : -in.bound;
+    }
+  };
+  threads = resolve_threads(threads);
+  threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), analog_corners}));
+  std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
+  std::atomic<long long> next{0};
+  auto work = [&](int worker) {
+    const auto w = static_cast<std::size_t>(worker);
+    std::vector<FrontEnd> at_t(nt);
+    for (long long a; (a = next.fetch_add(1)) < analog_corners;) {
+      Deviations dev{};
+      set_signs(dev, analog, a);
+      for (std::size_t i = 0; i < nt; ++i) at_t[i] = chain.analog_front_end(dev, temperatures[i]);
+      const CalibrationFrontEnds at_cal = calibration_front_ends(chain, dev);
+      for (long long m = 0; m < adc_corners; ++m) {
+        set_signs(dev, adc, m);
+        Status cal_failure = Status::ok;
+        const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
+        for (std::size_t i = 0; i < nt; ++i)
+          fold(partial[w][i], corner_range(chain, chain.adc_stage(at_t[i], dev), temperatures[i], iv, cals, cal_failure));
+      }
+    }
+  };
+  run_workers(threads, work);
+  for (const auto& part : partial)
+    for (std::size_t i = 0; i < nt; ++i) {
+      WorstCasePoint& p = wc.points[i];
+      const WorstCasePoint& q = part[i];
+      p.failed_corners += q.failed_corners;
+      if (q.failure != Status::ok && (p.failure == Status::ok || q.failure < p.failure)) p.failure = q.failure;
+      if (!q.any_ok) continue;
+      p.low = p.any_ok ? std::min(p.low, q.low) : q.low;
+      p.high = p.any_ok ? std::max(p.high, q.high) : q.high;
+      p.any_ok = true;
+    }
+}
+
+// The two corners the sensitivities' signs direct to at each temperature,
+// each improved by flipping inputs (directed_extreme).
+void direct_corners(const Chain& chain, const std::vector<double>& temperatures, const Intervals& iv, WorstCase& wc) {
+  wc.corners = 2;
+  const LinearBudget lb = linear_budget(chain, temperatures, BudgetOrder::first);  // the signs only
+  for (std::size_t i = 0; i < temperatures.size(); ++i) {
+    const CornerRange lo = directed_extreme(chain, temperatures[i], iv, lb.points[i], false);
+    const CornerRange hi = directed_extreme(chain, temperatures[i], iv, lb.points[i], true);
+    fold(wc.points[i], lo);
+    fold(wc.points[i], hi);
+    if (lo.ok && hi.ok) {
+      wc.points[i].low = lo.low;
+      wc.points[i].high = hi.high;
+    }
+  }
+}
+
 }  // namespace
 
-WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures, CornerMethod method, bool half_widths) {
+WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures, const WorstCaseOptions& options) {
   const Design& d = chain.design();
+  const CornerMethod method = options.method;
   WorstCase wc;
   wc.active_inputs = static_cast<int>(d.inputs.size());
   wc.directed = method == CornerMethod::directed ||
                 (method == CornerMethod::automatic && wc.active_inputs > max_enumerated_inputs);
   const Intervals iv{reading_interval(d), 0.5 * d.firmware.resolution};
-  const std::size_t nt = temperatures.size();
-  wc.points.resize(nt);
-  for (std::size_t i = 0; i < nt; ++i) {
+  wc.points.resize(temperatures.size());
+  for (std::size_t i = 0; i < temperatures.size(); ++i) {
     wc.points[i].t = temperatures[i];
-    if (half_widths) wc.points[i].own_half_width = own_half_widths(chain, temperatures[i], iv);
+    if (options.half_widths) wc.points[i].own_half_width = own_half_widths(chain, temperatures[i], iv);
   }
-  const int n = wc.active_inputs;
-  if (!wc.directed) {
-    wc.corners = 1LL << n;
-    // The corners as every combination of the analog inputs' signs with
-    // every combination of the ADC's (gain, offset, INL): the analog stage
-    // of the front end, the costly part (the sensor, its self-heating), is
-    // computed once for all ADC corners that share it.
-    std::vector<std::size_t> analog, adc;  // indices into d.inputs
-    for (std::size_t k = 0; k < d.inputs.size(); ++k) {
-      const Source src = d.inputs[k].source;
-      (src == Source::adc_gain || src == Source::adc_offset || src == Source::adc_inl ? adc : analog).push_back(k);
-    }
-    const long long analog_corners = 1LL << analog.size(), adc_corners = 1LL << adc.size();
-    auto set_signs = [&](Deviations& dev, const std::vector<std::size_t>& which, long long mask) {
-      for (std::size_t b = 0; b < which.size(); ++b) {
-        const auto& in = d.inputs[which[b]];
-        dev[static_cast<std::size_t>(in.source)] = (mask >> b & 1) ? in.bound : -in.bound;
-      }
-    };
-    // Threads over analog corners, each folding into its own points; min and
-    // max are exact, so the merge does not depend on how corners were shared
-    // or visited.
-    int threads = resolve_threads(d.montecarlo.threads);
-    threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), analog_corners}));
-    std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
-    std::atomic<long long> next{0};
-    auto work = [&](int worker) {
-      const auto w = static_cast<std::size_t>(worker);
-      std::vector<FrontEnd> at_t(nt);
-      for (long long a; (a = next.fetch_add(1)) < analog_corners;) {
-        Deviations dev{};
-        set_signs(dev, analog, a);
-        for (std::size_t i = 0; i < nt; ++i) at_t[i] = chain.analog_front_end(dev, temperatures[i]);
-        const CalibrationFrontEnds at_cal = calibration_front_ends(chain, dev);
-        for (long long m = 0; m < adc_corners; ++m) {
-          set_signs(dev, adc, m);
-          Status cal_failure = Status::ok;
-          const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
-          for (std::size_t i = 0; i < nt; ++i)
-            fold(partial[w][i], corner_range(chain, chain.adc_stage(at_t[i], dev), temperatures[i], iv, cals, cal_failure));
-        }
-      }
-    };
-    run_workers(threads, work);
-    for (const auto& part : partial)
-      for (std::size_t i = 0; i < nt; ++i) {
-        WorstCasePoint& p = wc.points[i];
-        const WorstCasePoint& q = part[i];
-        p.failed_corners += q.failed_corners;
-        if (q.failure != Status::ok && (p.failure == Status::ok || q.failure < p.failure)) p.failure = q.failure;
-        if (!q.any_ok) continue;
-        p.low = p.any_ok ? std::min(p.low, q.low) : q.low;
-        p.high = p.any_ok ? std::max(p.high, q.high) : q.high;
-        p.any_ok = true;
-      }
-  } else {
-    wc.corners = 2;
-    const LinearBudget lb = linear_budget(chain, temperatures, BudgetOrder::first);  // the signs only
-    for (std::size_t i = 0; i < nt; ++i) {
-      const CornerRange lo = directed_extreme(chain, temperatures[i], iv, lb.points[i], false);
-      const CornerRange hi = directed_extreme(chain, temperatures[i], iv, lb.points[i], true);
-      fold(wc.points[i], lo);
-      fold(wc.points[i], hi);
-      if (lo.ok && hi.ok) {
-        wc.points[i].low = lo.low;
-        wc.points[i].high = hi.high;
-      }
-    }
-  }
+  if (wc.directed) direct_corners(chain, temperatures, iv, wc);
+  else enumerate_corners(chain, temperatures, iv, options.threads, wc);
   return wc;
 }
 

@@ -13,6 +13,7 @@
 #include "thermargin/chain/firmware.hpp"
 #include "thermargin/chain/sensor.hpp"
 #include "thermargin/chain/supply.hpp"
+#include "thermargin/input/response_section.hpp"
 #include "thermargin/input/rt_data.hpp"
 #include "thermargin/input/scenario.hpp"
 
@@ -521,6 +522,11 @@ Design build_design(const Scenario& s) {
   resolve_firmware_curve(r, d.sensor, d.conditions, d.firmware);
   read_requirement(r, d.conditions, d.requirement);
   read_montecarlo(r, d.montecarlo);
+  // The [response] section is not part of the design (only `response` and
+  // budget's dynamic line read it), but it is validated with every other
+  // section, so that a bad key is refused whoever set it: the scenario, the
+  // command line, a catalogue's setting or a program's Scenario::set.
+  (void)read_response_section(s);
   collect_inputs(r, d);
   collect_table_spread(r, d);
   read_drift(r, d);

@@ -20,8 +20,10 @@ namespace {
 
 using Q = Quantity;
 
-std::vector<KeySpec> make_schema() {
-  std::vector<KeySpec> s = {
+// Every key a scenario file names, section by section, in the order of the
+// help and the documentation.
+std::vector<KeySpec> section_keys() {
+  return {
       {"title", Q::plain, "Default design: 10 kOhm NTC, 12-bit ratiometric ADC", "a title for reports"},
       {"sensor.model", Q::plain, "beta", "beta | steinhart-hart | table | rtd"},
       {"sensor.r25", Q::resistance, "10k", "NTC resistance at 25 degC (beta model)"},
@@ -130,7 +132,10 @@ std::vector<KeySpec> make_schema() {
       {"response.step", Q::temperature_difference, "10", "size of the step whose settling is computed, K"},
       {"response.settle_to", Q::temperature_difference, "0.1", "a step has settled when the error stays within this, K"},
   };
-  // Per-input distribution overrides beside each toleranced key.
+}
+
+// Per-input distribution overrides beside each toleranced key.
+void add_distribution_keys(std::vector<KeySpec>& s) {
   std::set<std::string> done;
   for (int i = 0; i < source_count; ++i) {
     const std::string key(info(static_cast<Source>(i)).key);
@@ -139,9 +144,12 @@ std::vector<KeySpec> make_schema() {
     s.push_back({key + "_gap", info(static_cast<Source>(i)).quantity == Q::plain ? Q::plain : info(static_cast<Source>(i)).quantity,
                  "0", "gapped: the inner band sorted out of " + key});
   }
-  // Per-input coverage factors of a normal bound, after every other key:
-  // a calibration certificate's ±U is stated with k = 2 (JCGM 100 §6).
-  done.clear();
+}
+
+// Per-input coverage factors of a normal bound, after every other key:
+// a calibration certificate's ±U is stated with k = 2 (JCGM 100 §6).
+void add_coverage_keys(std::vector<KeySpec>& s) {
+  std::set<std::string> done;
   for (int i = 0; i < source_count; ++i) {
     const std::string key(info(static_cast<Source>(i)).key);
     if (key == "conditions.board" || !done.insert(key).second) continue;
@@ -150,6 +158,12 @@ std::vector<KeySpec> make_schema() {
                  "coverage factor of a normal " + key + " (sigma = bound/k); default = montecarlo.sigma_per_tol" +
                      (certificate ? "; 2: a certificate's expanded uncertainty (JCGM 100 section 6)" : "")});
   }
+}
+
+std::vector<KeySpec> make_schema() {
+  std::vector<KeySpec> s = section_keys();
+  add_distribution_keys(s);
+  add_coverage_keys(s);
   return s;
 }
 

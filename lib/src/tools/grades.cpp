@@ -171,8 +171,8 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
     }
   }
   // On the verdict's basis: at end of life when drift is set and requirement.at says so.
-  Design d = design_for_verdict(build_design(s));
-  d.montecarlo.threads = 1;  // threads are spread over combinations instead
+  // One thread an engine: threads are spread over combinations instead.
+  const Design d = design_for_verdict(build_design(s));
   f.requirement = d.requirement;
   f.rtd_class_note = rtd_class_range_note(d);
   const Chain chain(d);
@@ -186,7 +186,7 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
 
   f.wc_max_abs = picked_wc;
   if (!picked_wc) {
-    const WindowMax m = window_max(worst_case(chain, window, options.corners).points, d.requirement);
+    const WindowMax m = window_max(worst_case(chain, window, {.method = options.corners, .threads = 1}).points, d.requirement);
     if (m.readable) f.wc_max_abs = m.max_abs;
     else unreadable(m.failure, m.failure_at);
   }
@@ -612,53 +612,36 @@ void validate_grades(const Scenario& scenario, const Catalogue& cat, const Grade
   }
 }
 
-GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, const GradesOptions& options) {
-  validate_grades(scenario, cat, options);
-  const Design base = build_design(scenario);
-  GradesResult g;
-  g.by = options.by;
-  g.requirement = base.requirement;
-  g.volume = options.volume;
-  g.reject_cost = options.reject_cost;
-  g.units = options.units;
-  for (const auto& s : cat.slots) {
-    g.slots.push_back(s.name);
-    std::vector<std::string> names;
-    for (const auto& o : s.options) names.push_back(o.grade);
-    g.grades.push_back(std::move(names));
-  }
+namespace {
 
-  // Re-pick: the candidate list and the scenario's own pick as the anchor
-  // (checks the pick options before any work, too).
+// Re-pick: the candidate list and the scenario's own pick as the anchor
+// (checks the pick options before any work, too).
+RePick re_pick_setup(const Scenario& scenario, const GradesOptions& options, const Design& base, GradesResult& g) {
   RePick rp;
-  if (options.re_pick) {
-    PickOptions o = options.pick;
-    o.top = 1;
-    o.verify = 0;
-    o.guidance = false;
-    o.progress = nullptr;
-    rp.values = o.values.empty() ? series_values(o.series, o.range_low, o.range_high) : o.values;
-    std::sort(rp.values.begin(), rp.values.end());
-    rp.values.erase(std::unique(rp.values.begin(), rp.values.end()), rp.values.end());
-    g.anchor_r_fixed = pick_winner(scenario, o, base.divider.r_fixed).r_fixed;
-    rp.anchor = nearest_index(rp.values, *g.anchor_r_fixed);
-  }
+  if (!options.re_pick) return rp;
+  PickOptions o = options.pick;
+  o.top = 1;
+  o.verify = 0;
+  o.guidance = false;
+  o.progress = nullptr;
+  rp.values = o.values.empty() ? series_values(o.series, o.range_low, o.range_high) : o.values;
+  std::sort(rp.values.begin(), rp.values.end());
+  rp.values.erase(std::unique(rp.values.begin(), rp.values.end()), rp.values.end());
+  g.anchor_r_fixed = pick_winner(scenario, o, base.divider.r_fixed).r_fixed;
+  rp.anchor = nearest_index(rp.values, *g.anchor_r_fixed);
+  return rp;
+}
 
-  // Distinct designs: combinations whose settings are the same (a slot
-  // that only changes the price) are evaluated once. Not with a re-pick,
-  // where each combination's search starts from its parent's winner (below).
-  const std::size_t n = cat.combinations();
-  std::vector<std::size_t> design_of;
-  std::vector<std::size_t> first_of;  // combination index of each distinct design
-  distinct_designs(cat, options.re_pick, design_of, first_of);
-
-  // The tasks, one per distinct design. Without a re-pick all are ready at
-  // once. With one they form a tree over the grid of choices: the parent of
-  // a combination is the same choice with its last grade that is not the
-  // slot's first taken one step back, and its resistor search starts at the
-  // parent's winner (neighbouring grades move the best resistor little, so
-  // the search rarely has to move). The tree is fixed by the catalogue, so
-  // the anchors, and the results, do not depend on the threads.
+// The figures of each distinct design (first_of: the combination index of
+// each), as tasks. Without a re-pick all are ready at once. With one they
+// form a tree over the grid of choices: the parent of a combination is the
+// same choice with its last grade that is not the slot's first taken one
+// step back, and its resistor search starts at the parent's winner
+// (neighbouring grades move the best resistor little, so the search rarely
+// has to move). The tree is fixed by the catalogue, so the anchors, and the
+// results, do not depend on the threads.
+std::vector<Figures> evaluate_designs(const Scenario& scenario, const Catalogue& cat, const GradesOptions& options,
+                                      const RePick& rp, const std::vector<std::size_t>& first_of, int threads) {
   std::vector<std::size_t> stride(cat.slots.size(), 1);
   for (std::size_t k = cat.slots.size(); k-- > 1;) stride[k - 1] = stride[k] * cat.slots[k].options.size();
   auto children = [&](std::size_t i) {
@@ -678,9 +661,6 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
   if (options.re_pick) ready.push_back(0);
   else
     for (std::size_t j = 0; j < first_of.size(); ++j) ready.push_back(j);
-  const int threads = static_cast<int>(std::min<std::size_t>(
-      static_cast<std::size_t>(resolve_threads(options.threads >= 0 ? options.threads : base.montecarlo.threads)),
-      first_of.size()));
   // Progress: the share of designs done and the best combination so far
   // (once per design, under the scheduler's lock; never in an engine's loop).
   std::optional<GradeRow> best;
@@ -701,24 +681,18 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
       progress);
   for (const auto& e : errors)  // the first in catalogue order, whatever the threads did
     if (e) std::rethrow_exception(e);
+  return figures;
+}
 
-  // Rows: cost, figures, the requirement.
-  g.rows.resize(n);
-  for (std::size_t i = 0; i < n; ++i) {
-    GradeRow& r = g.rows[i];
-    r = make_row(cat, options, i, figures[design_of[i]]);
-    if (r.mc_run) ++g.mc_full;
-    else if (r.mc) ++g.mc_pilot_only;
-  }
-
-  // Cheapest first; equal costs by error (none last), then catalogue order.
+// The rows in order, cheapest first (equal costs by error, none last, then
+// catalogue order), the cost–error Pareto front and the recommendation.
+void rank_rows(GradesResult& g) {
   std::stable_sort(g.rows.begin(), g.rows.end(), [](const GradeRow& a, const GradeRow& b) {
     if (a.unit_cost != b.unit_cost) return a.unit_cost < b.unit_cost;
     if (a.error.has_value() != b.error.has_value()) return a.error.has_value();
     if (a.error && *a.error != *b.error) return *a.error < *b.error;
     return a.index < b.index;
   });
-
   std::vector<double> cost;
   std::vector<std::optional<double>> err;
   for (const auto& r : g.rows) {
@@ -730,8 +704,48 @@ GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, con
     g.rows[i].on_front = on[i];
     if (on[i]) g.front.push_back(i);
   }
-
   g.recommendation = cheapest_meeting(g);
+}
+
+}  // namespace
+
+GradesResult evaluate_grades(const Scenario& scenario, const Catalogue& cat, const GradesOptions& options) {
+  validate_grades(scenario, cat, options);
+  const Design base = build_design(scenario);
+  GradesResult g;
+  g.by = options.by;
+  g.requirement = base.requirement;
+  g.volume = options.volume;
+  g.reject_cost = options.reject_cost;
+  g.units = options.units;
+  for (const auto& s : cat.slots) {
+    g.slots.push_back(s.name);
+    std::vector<std::string> names;
+    for (const auto& o : s.options) names.push_back(o.grade);
+    g.grades.push_back(std::move(names));
+  }
+  const RePick rp = re_pick_setup(scenario, options, base, g);
+
+  // Distinct designs: combinations whose settings are the same (a slot
+  // that only changes the price) are evaluated once. Not with a re-pick,
+  // where each combination's search starts from its parent's winner.
+  const std::size_t n = cat.combinations();
+  std::vector<std::size_t> design_of;
+  std::vector<std::size_t> first_of;  // combination index of each distinct design
+  distinct_designs(cat, options.re_pick, design_of, first_of);
+  const int threads = static_cast<int>(std::min<std::size_t>(
+      static_cast<std::size_t>(resolve_threads(base.threads_or_scenario(options.threads))), first_of.size()));
+  const std::vector<Figures> figures = evaluate_designs(scenario, cat, options, rp, first_of, threads);
+
+  // Rows: cost, figures, the requirement.
+  g.rows.resize(n);
+  for (std::size_t i = 0; i < n; ++i) {
+    GradeRow& r = g.rows[i];
+    r = make_row(cat, options, i, figures[design_of[i]]);
+    if (r.mc_run) ++g.mc_full;
+    else if (r.mc) ++g.mc_pilot_only;
+  }
+  rank_rows(g);
 
   find_current(g, cat, scenario);
   if (g.recommendation && g.current_row) {

@@ -25,7 +25,7 @@ WindowBand worst_case_band(const Chain& chain, const std::vector<double>& temps,
   parallel_for(parts, threads, [&](std::size_t i) {
     const std::vector<double> part(temps.begin() + static_cast<std::ptrdiff_t>(i * temps.size() / parts),
                                    temps.begin() + static_cast<std::ptrdiff_t>((i + 1) * temps.size() / parts));
-    results[i] = worst_case(chain, part, method, false);
+    results[i] = worst_case(chain, part, {.method = method, .half_widths = false, .threads = 1});
   });
   WindowBand b;
   for (const auto& r : results)

@@ -119,6 +119,7 @@ struct BudgetOptions {
   bool monte_carlo = true;
   CornerMethod corners = CornerMethod::automatic;
   McProgress progress;  // optional callback
+  int threads = -1;     // the engines'; -1: the scenario's montecarlo.threads, 0: all cores
 };
 
 Budget run_budget(const Chain& chain, const BudgetOptions& options = {});

@@ -48,6 +48,7 @@ struct WhatIf {
 struct WhatIfOptions {
   int sources = 4;                 // leaders tried by share and by half-width each (union)
   double max_evaluations = 2e7;    // chain evaluations of the whole what-if before directing corners
+  int threads = -1;                // the worst case's; -1: the scenario's montecarlo.threads, 0: all cores
 };
 
 // The figure the verdict reads (the linear band for requirement.basis =

@@ -46,10 +46,17 @@ struct WorstCase {
 
 enum class CornerMethod { automatic, enumerate, directed };
 
-// `half_widths` false leaves own_half_width empty (for callers that read
-// only the band: the picker's ranking).
-WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures,
-                     CornerMethod method = CornerMethod::automatic, bool half_widths = true);
+struct WorstCaseOptions {
+  CornerMethod method = CornerMethod::automatic;
+  // false leaves own_half_width empty (for callers that read only the band:
+  // the picker's ranking, the what-if).
+  bool half_widths = true;
+  // The enumeration's threads (0: every core). The band does not depend on
+  // it: minimum and maximum are exact whatever the split.
+  int threads = 0;
+};
+
+WorstCase worst_case(const Chain& chain, const std::vector<double>& temperatures, const WorstCaseOptions& options = {});
 
 // The reading interval [lo, hi] in LSB: quantiser plus ± k_noise·σ/√M.
 struct ReadingInterval {

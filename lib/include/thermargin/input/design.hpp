@@ -180,6 +180,10 @@ struct Design {
   bool is_ntc() const { return sensor.kind != SensorKind::rtd; }
   // Full scale of the ADC in LSB: 2^bits.
   double adc_span() const { return static_cast<double>(std::uint64_t{1} << adc.bits); }
+  // The threads a run asks for: `requested` when >= 0, else the scenario's
+  // montecarlo.threads (the run's thread setting, every engine's); 0 means
+  // every core (resolve_threads in core/parallel.hpp).
+  int threads_or_scenario(int requested) const { return requested >= 0 ? requested : montecarlo.threads; }
 };
 
 // The requirement window's test, written once for every engine and tool:

@@ -3,11 +3,13 @@
 // firmware filters its readings, and the ramp and step the reading must
 // follow.
 //
-// Read and validated here, apart from build_design(), because only the
-// commands that follow a changing temperature (`response`, and `budget`'s
-// dynamic line) use it; every command that reads a scenario calls it when
-// the options are read (app/cli.cpp), so a bad value in the section is
-// refused before any work whatever the command.
+// Read here, apart from the Design, because only the commands that follow a
+// changing temperature (`response`, and `budget`'s dynamic line) use it;
+// but validated with every other section: build_design() calls it, so a bad
+// value is refused whoever set it (a scenario file, the command line, a
+// catalogue's setting, a program's Scenario::set), and every command that
+// reads a scenario calls it when the options are read (app/cli.cpp), before
+// any work whatever the command.
 #pragma once
 
 #include <string>

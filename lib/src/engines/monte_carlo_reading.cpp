@@ -1,0 +1,479 @@
+// The kernel's reading of a block of units at one temperature
+// (docs/engines.md, "The kernel"): the chain's steps one function each,
+// in the order a reading passes them, on a scratch of arrays with one value
+// per unit, each step a loop over the block that the compiler vectorises.
+// The same arithmetic as the scalar chain (chain.cpp), to the bit: the
+// tests hold the two equal.
+#include <algorithm>
+#include <cmath>
+#include <cstdint>
+#include <iterator>
+#include <optional>
+
+#include <Eigen/Core>
+
+#include "monte_carlo_kernel.hpp"
+#include "thermargin/chain/divider.hpp"
+#include "thermargin/chain/self_heating.hpp"
+#include "thermargin/chain/sensor.hpp"
+#include "thermargin/chain/supply.hpp"
+#include "thermargin/engines/monte_carlo.hpp"
+
+namespace thermargin::mc_detail {
+
+namespace {
+
+using Block = Eigen::Array<double, block_size, 1>;
+
+// One fixed-point step of the self-heating solve for the whole block (see
+// self_heating.hpp); separate, with unaliased arrays, so that it vectorises.
+// Returns how many units are still moving.
+template <bool Simple>
+int self_heating_step(int it, double t_k, double r_lead, const double* __restrict r_el, const double* __restrict rf,
+                      const double* __restrict vexc, const double* __restrict inv_par, const double* __restrict gain,
+                      double* __restrict te, double* __restrict rise_prev, double* __restrict runaway_flag,
+                      double* __restrict moving) {
+  int open = 0;
+  const bool check_runaway = it > 2, later = it > 1;
+  for (int u = 0; u < block_size; ++u) {
+    const double r = r_el[u];
+    double rise;
+    if constexpr (Simple) {
+      // Without leads or a parallel resistor the element sees the whole
+      // branch voltage: rise = g·V²·R/(R_f + R)², one division.
+      const double sum = rf[u] + r;
+      rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
+    } else {
+      const double series = r + r_lead;
+      const double rb = series / (1.0 + series * inv_par[u]);
+      const double v_e = vexc[u] * rb / (rf[u] + rb) * r / series;
+      rise = gain[u] * v_e * v_e / r;
+    }
+    const double next = t_k + rise;
+    const double step = next - te[u];
+    const double size = std::fabs(step);
+    // Converged when the step, or the error a contracting iteration still
+    // leaves (step·q/(1 − q), q the ratio of successive steps), is in tolerance.
+    const double q = size / std::fabs(rise_prev[u]);
+    const bool small_step = size <= self_heating_tolerance;
+    const bool small_rest = (q < 0.5) & (size * q <= self_heating_tolerance * (1.0 - q));
+    const bool converged = small_step | (later & small_rest);
+    const bool runaway = check_runaway & (size >= std::fabs(rise_prev[u])) & !converged;
+    const bool active = moving[u] != 0.0;
+    te[u] = active ? next : te[u];
+    rise_prev[u] = active ? step : rise_prev[u];
+    runaway_flag[u] = (active & runaway) ? 1.0 : runaway_flag[u];
+    moving[u] = (active & !converged & !runaway) ? 1.0 : 0.0;
+    open += moving[u] != 0.0;
+  }
+  return open;
+}
+
+// The first step of the self-heating solve for a beta sensor without leads
+// or a parallel resistor, as a Newton step on F(T_e) = T + rise(T_e) − T_e,
+// with the derivative in closed form. With x = R/(R_f + R) and L = ln R,
+// rise = g·V²·x(1 − x)/R_f, so d rise/dL = rise·(1 − 2x) and
+// |d² rise/dL²| ≤ rise; L = a + b/T_e gives L' = −b/T_e², L'' = 2b/T_e³.
+// The Newton iterate is then within C·δ² of the fixed point, δ the Newton
+// increment and C = |F''|/(2|F'|) (Newton's error term) taken twice over,
+// with F'' = rise·[((1 − 2x)² − 2x(1 − x))·L'² + (1 − 2x)·L''] widened by
+// what it can change between T_e and the iterate, |F'| ≥ 1 − q and
+// q = |d rise/dT_e| ≤ ½. A unit is
+// accepted when C·δ² is within the solve's tolerance and its ln R moves by
+// at most 1e-3 (so R follows from one series step, below); the others take
+// the plain fixed-point step and go on as before. In a sweep of small steps
+// almost every unit is accepted here, saving two of the three exponentials.
+int self_heating_newton_first(double t_k, const double* __restrict r_el, const double* __restrict rf,
+                              const double* __restrict vexc, const double* __restrict gain,
+                              const double* __restrict b_unit, double* __restrict te, double* __restrict rise_prev,
+                              double* __restrict moving, double* __restrict dln_r) {
+  int open = 0;
+  for (int u = 0; u < block_size; ++u) {
+    const double r = r_el[u];
+    const double sum = rf[u] + r;
+    const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
+    const double x = r / sum;
+    const double inv_t = 1.0 / te[u];
+    const double l1 = -b_unit[u] * inv_t * inv_t, l2 = -2.0 * l1 * inv_t;
+    const double slope = rise * (1.0 - 2.0 * x) * l1;  // d rise/dT_e
+    const double q = std::fabs(slope);
+    const double next = t_k + rise;
+    const double step = next - te[u];
+    const double delta = step / (1.0 - slope);
+    const double te_newton = te[u] + delta;
+    const double dl = b_unit[u] * (1.0 / te_newton - inv_t);
+    // |F''| at T_e, plus what it can change over the step (its terms move
+    // by a relative 4·|ΔL| at most while |ΔL| ≤ 1e-3), halved over |F'|.
+    const double bound = rise * (l1 * l1 + std::fabs(l2));
+    const double f2 = rise * (((1.0 - 2.0 * x) * (1.0 - 2.0 * x) - 2.0 * x * (1.0 - x)) * l1 * l1 + (1.0 - 2.0 * x) * l2);
+    const double c = (std::fabs(f2) + 4.0 * std::fabs(dl) * bound) / (1.0 - std::min(q, 0.5));
+    const bool accept = (q <= 0.5) & (c * delta * delta <= self_heating_tolerance) & (std::fabs(dl) <= 1e-3);
+    const bool active = moving[u] != 0.0;
+    te[u] = !active ? te[u] : accept ? te_newton : next;
+    rise_prev[u] = active ? step : rise_prev[u];
+    dln_r[u] = (active & accept) ? dl : 0.0;
+    moving[u] = (active & !accept) ? 1.0 : 0.0;
+    open += moving[u] != 0.0;
+  }
+  return open;
+}
+
+// The sampled node for a block (docs/model.md §14): v[] from the node's
+// voltage to the mean sampled voltage. The same two steps as the scalar
+// acquisition_map() — exponents, exponentials, combination — with the
+// exponentials taken for the whole block at once (vectorised).
+void settle_block(const RunConstants& c, const double* __restrict d_pre, const double* __restrict vref,
+                  const double* __restrict r_th, double* __restrict v) {
+  const AcquisitionModel& m = c.acquisition;
+  // A continuous divider sampled back to back (precharge = same) reads V_th
+  // exactly (its periodic steady state draws no charge): nothing to do.
+  if (!m.switched && !m.reset) return;
+  const AdcSettings& a = c.d->adc;
+  const double v_ref_nom = c.d->supply.v_reference_nominal();
+  alignas(64) double ex[acquisition_exponent_count][block_size];
+  ClosedSwitch cs[block_size];
+  for (int u = 0; u < block_size; ++u) {
+    cs[u] = closed_switch(m, r_th[u]);
+    const AcquisitionExponents x = acquisition_exponents(m, r_th[u], cs[u]);
+    for (int k = 0; k < acquisition_exponent_count; ++k) ex[k][u] = x[k];
+  }
+  // Only the exponentials the map reads: the settle time's for a switched
+  // divider, the node's for a node capacitor.
+  const int used = m.c_n > 0.0 ? (m.switched ? acquisition_exponent_count : 3) : 1;
+  for (int k = 0; k < used; ++k) {
+    Eigen::Map<Block> e(ex[k]);
+    e = e.exp();
+  }
+  for (int u = 0; u < block_size; ++u) {
+    const AcquisitionExponents e{ex[0][u], ex[1][u], ex[2][u], ex[3][u]};
+    const double v_start = precharge_voltage(a, v_ref_nom, vref[u], d_pre[u]);
+    v[u] = acquisition_combine(m, cs[u], e).apply(v[u], v_start);
+  }
+}
+
+alignas(64) const double no_deviation[block_size] = {};
+
+// A row of the block's deviations: one value per unit.
+inline const double* row(const BlockUnits& b, Source s) { return b.dev[static_cast<int>(s)]; }
+
+// What one reading of the block is: its temperature, its stream and the
+// element's dissipation. A calibration reading self-heats in the
+// calibration medium where one is set (firmware.calibration_dissipation,
+// no unit deviation).
+struct ReadingAt {
+  double t = 0.0;              // °C, the true temperature
+  double t_k = 0.0;            // K
+  std::uint32_t reading = 0;   // the reading stream: the temperature's index or calibration_reading(i)
+  bool calibration = false;
+  bool medium = false;         // self-heating in the calibration medium
+  double dissipation = 0.0;    // W/K, the dissipation constant this reading sees
+  bool heated = false;         // self-heating on (a dissipation constant and a duty)
+};
+
+ReadingAt reading_at(const Design& d, double t, std::uint32_t reading, bool calibration) {
+  ReadingAt at;
+  at.t = t;
+  at.t_k = t + kelvin_offset;
+  at.reading = reading;
+  at.calibration = calibration;
+  at.medium = calibration && d.firmware.calibration_dissipation.has_value();
+  at.dissipation = at.medium ? *d.firmware.calibration_dissipation : d.sensor.dissipation;
+  at.heated = at.dissipation > 0.0 && d.divider.duty > 0.0;
+  return at;
+}
+
+// The block's reading at one temperature, stage by stage: each array holds
+// one value per unit (structure of arrays), written by one stage and read
+// by the later ones.
+struct ReadingScratch {
+  alignas(64) double tb[block_size];         // the board temperature, °C
+  alignas(64) double rf[block_size];         // the fixed resistor at the board temperature
+  alignas(64) double rs[block_size];         // the fixed resistor and the drive in series
+  alignas(64) double inv_par[block_size];    // 1/R_par, 0 without one
+  alignas(64) double vexc[block_size];       // the excitation
+  alignas(64) double vref[block_size];       // the ADC's reference
+  alignas(64) double te[block_size];         // the element's temperature, K
+  alignas(64) double rise_prev[block_size];  // the self-heating solve's last step
+  alignas(64) double dln_r[block_size];      // ln R's change over the Newton step
+  alignas(64) double r_el[block_size];       // the element's resistance at te
+  alignas(64) double xs[block_size];         // the ADC's static transfer, LSB
+  alignas(64) double sum[block_size];        // the reading: the sum of the M samples
+  alignas(64) double sat[block_size];        // 1 where a sample was clamped at a rail
+  alignas(64) std::uint8_t status[block_size];
+  BlockWords words;                          // the reading stream's current call
+};
+
+// Stage 1, the reading's own draws: the stream's first call, what another
+// channel left on C_s (precharge = any) and the board temperature.
+void draw_reading_block(const RunConstants& c, BlockUnits& b, const ReadingAt& at, ReadingScratch& s) {
+  const Design& d = *c.d;
+  const BoardTemperature board = d.conditions.board;
+  if (board.kind == BoardKind::range || c.noise > 0.0 || c.precharge_any)
+    reading_words_block(c.key, b.first, at.reading, 0, s.words);
+  if (c.precharge_any) {
+    // Per reading, like the board: uniform over [0, V_ref] (docs/model.md §14).
+    const double v_ref_nom = d.supply.v_reference_nominal();
+    double* pre = b.dev[static_cast<int>(Source::adc_precharge)];
+    for (int u = 0; u < block_size; ++u) pre[u] = (uniform32(s.words.w[3][u]) - 0.5) * v_ref_nom;
+  }
+  if (board.kind == BoardKind::range) {
+    const double lo = board.min, width = board.max - board.min;
+    for (int u = 0; u < block_size; ++u) s.tb[u] = lo + width * uniform32(s.words.w[2][u]);
+  } else {
+    std::fill(std::begin(s.tb), std::end(s.tb), board.kind == BoardKind::fixed ? board.min : at.t);
+  }
+}
+
+// Stage 2, the parts at the board temperature: the fixed resistor, the
+// drive, the parallel resistor, the excitation and the reference.
+void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+  // Design constants in locals: the loops below then see no possible aliasing.
+  const Design& d = *c.d;
+  const double r_fixed = d.divider.r_fixed, v_exc = d.supply.v_excitation, v_ref = d.supply.v_reference;
+  const bool ratiometric = d.supply.ratiometric, has_par = d.divider.r_parallel.has_value();
+  const double r_par = has_par ? *d.divider.r_parallel : 0.0;
+  const double* d_rf = row(b, Source::r_fixed);
+  const double* d_tc = row(b, Source::r_fixed_tempco);
+  const double* d_par = row(b, Source::r_parallel);
+  for (int u = 0; u < block_size; ++u) {
+    s.rf[u] = r_fixed * (1.0 + d_rf[u]) * (1.0 + d_tc[u] * (s.tb[u] - 25.0));
+    // 1/R_par, 0 without one: (R ∥ R_par) = R / (1 + R/R_par), no branch.
+    s.inv_par[u] = has_par ? 1.0 / (r_par * (1.0 + d_par[u])) : 0.0;
+    s.status[u] = 0;
+  }
+  // The fixed resistor and the drive in series: what the element's
+  // voltage sees wherever the sensor sits (docs/model.md §15).
+  const double r_drive = d.supply.r_drive;
+  const double* d_drv = row(b, Source::r_drive);
+  for (int u = 0; u < block_size; ++u) s.rs[u] = s.rf[u] + r_drive * (1.0 + d_drv[u]);
+  if (ratiometric) {
+    std::fill(std::begin(s.vexc), std::end(s.vexc), v_exc);
+    std::fill(std::begin(s.vref), std::end(s.vref), v_exc);
+  } else {
+    const double *e0 = row(b, Source::v_excitation), *e1 = row(b, Source::v_excitation_tempco);
+    const double *r0 = row(b, Source::v_reference), *r1 = row(b, Source::v_reference_tempco);
+    for (int u = 0; u < block_size; ++u) {
+      s.vexc[u] = v_exc * (1.0 + e0[u]) * (1.0 + e1[u] * (s.tb[u] - 25.0));
+      s.vref[u] = v_ref * (1.0 + r0[u]) * (1.0 + r1[u] * (s.tb[u] - 25.0));
+    }
+  }
+}
+
+// The element's R at te[] into r_el[]: ln R, then a vector exp. A unit
+// whose sensor cannot be read there is marked out of table. Inlined at both
+// calls, as every stage is, so that the compiler sees the scratch arrays as
+// read_block's own and vectorises without run-time alias checks.
+[[gnu::always_inline]] inline void element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+  if (c.beta_fast) {
+    const double ln_r25 = c.ln_r25, beta = c.beta, ln_r0 = c.ln_r0;
+    const double* d_beta = row(b, Source::beta);
+    const double* shift = b.ln_shift;
+    for (int u = 0; u < block_size; ++u) {
+      const double l = ln_r25 + beta * (1.0 / s.te[u] - 1.0 / t0_kelvin);
+      s.r_el[u] = ln_r0 + shift[u] + (1.0 + d_beta[u]) * (l - ln_r0);
+    }
+  } else {
+    const SensorSettings& sensor = c.d->sensor;
+    for (int u = 0; u < block_size; ++u) {
+      const SensorUnit unit(sensor, row(b, Source::r25)[u], row(b, Source::beta)[u], row(b, Source::rtd_class)[u],
+                            row(b, Source::table_spread)[u], row(b, Source::sensor_drift)[u]);
+      const auto l = unit.ln_resistance(s.te[u]);
+      if (!l) s.status[u] = static_cast<std::uint8_t>(Status::out_of_table);
+      s.r_el[u] = l ? *l : 0.0;
+    }
+  }
+  Eigen::Map<Block> m(s.r_el);
+  m = m.exp();
+}
+
+// Stage 3, the element's temperature: the self-heating solve for the block
+// (or te = T without self-heating), starting from each unit's last rise.
+// Sets runaway where the solve diverged. Returns whether every unit was
+// solved by the first (Newton) step, its dln_r then set.
+bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const ReadingAt& at, ReadingScratch& s) {
+  const double t_k = at.t_k;
+  for (int u = 0; u < block_size; ++u) {
+    s.te[u] = t_k + b.rise_guess[u];
+    s.rise_prev[u] = 0.0;
+  }
+  if (!at.heated) return false;
+  const Design& d = *c.d;
+  const double r_lead = d.sensor.lead_resistance;
+  const bool has_par = d.divider.r_parallel.has_value();
+  const double duty_over_delta = d.divider.duty / at.dissipation;
+  alignas(64) double gain[block_size], moving[block_size], runaway_flag[block_size];
+  const double* d_diss = at.medium ? no_deviation : row(b, Source::dissipation);
+  for (int u = 0; u < block_size; ++u) {
+    gain[u] = duty_over_delta / (1.0 + d_diss[u]);
+    moving[u] = 1.0;
+    runaway_flag[u] = 0.0;
+  }
+  const bool simple = r_lead == 0.0 && !has_par;
+  const bool newton = simple && c.beta_fast;
+  alignas(64) double b_unit[block_size];
+  if (newton) {
+    const double* d_beta = row(b, Source::beta);
+    for (int u = 0; u < block_size; ++u) b_unit[u] = (1.0 + d_beta[u]) * c.beta;
+  }
+  bool resolved_at_first = false;
+  for (int it = 1; it <= self_heating_max_iterations; ++it) {
+    element_resistance(c, b, s);
+    for (int u = 0; u < block_size; ++u) moving[u] = s.status[u] == 0 ? moving[u] : 0.0;
+    const int open =
+        (newton && it == 1)
+            ? self_heating_newton_first(t_k, s.r_el, s.rs, s.vexc, gain, b_unit, s.te, s.rise_prev, moving, s.dln_r)
+        : simple ? self_heating_step<true>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te, s.rise_prev,
+                                           runaway_flag, moving)
+                 : self_heating_step<false>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te, s.rise_prev,
+                                            runaway_flag, moving);
+    if (open == 0) {
+      resolved_at_first = newton && it == 1;
+      break;
+    }
+  }
+  for (int u = 0; u < block_size; ++u) b.rise_guess[u] = s.status[u] == 0 ? s.te[u] - t_k : 0.0;
+  // Still moving after the last iteration, or a step that grew: runaway.
+  for (int u = 0; u < block_size; ++u)
+    if ((moving[u] != 0.0 || runaway_flag[u] != 0.0) && s.status[u] == 0)
+      s.status[u] = static_cast<std::uint8_t>(Status::runaway);
+  return resolved_at_first;
+}
+
+// Stage 4, the element's R at its solved temperature.
+void element_at_solution(const RunConstants& c, const BlockUnits& b, bool resolved_at_first, ReadingScratch& s) {
+  if (!resolved_at_first) {
+    element_resistance(c, b, s);
+    return;
+  }
+  // Every unit took the Newton step: R at the new T_e from R at the old
+  // one, R·e^{ΔL} with |ΔL| ≤ 1e-3 by a series to ΔL³ (relative error
+  // below ΔL⁴/24 ≈ 4e-14).
+  const double* dl = s.dln_r;
+  for (int u = 0; u < block_size; ++u) {
+    const double y = dl[u];
+    s.r_el[u] *= 1.0 + y * (1.0 + y * (0.5 + y * (1.0 / 6.0)));
+  }
+}
+
+// Stage 5, the divider (its arms with the drive, divider.hpp), leakage, the
+// sampled node and the ADC's static transfer into xs[].
+void divider_and_adc(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+  const Design& d = *c.d;
+  const double r_lead = d.sensor.lead_resistance;
+  const bool low = d.divider.placement == Placement::low;
+  const double span = c.span;
+  const double *g = row(b, Source::adc_gain), *o = row(b, Source::adc_offset), *i = row(b, Source::adc_inl);
+  const double* leak = row(b, Source::adc_leakage);
+  alignas(64) double v_node[block_size], r_th[block_size];
+  const double *g_tc = row(b, Source::adc_gain_tempco), *o_tc = row(b, Source::adc_offset_tempco);
+  const bool inl_bound = d.adc.inl_bound;
+  for (int u = 0; u < block_size; ++u) {
+    const double r = s.r_el[u];
+    const double series = r + r_lead;
+    const double rb = series / (1.0 + series * s.inv_par[u]);
+    const double drive = s.rs[u] - s.rf[u];
+    const double top = low ? s.rs[u] : rb + drive, bottom = low ? rb : s.rf[u];
+    const double ratio = bottom / (top + bottom);
+    r_th[u] = top * bottom / (top + bottom);
+    v_node[u] = s.vexc[u] * ratio - leak[u] * r_th[u];
+  }
+  if (c.acquisition.on) settle_block(c, row(b, Source::adc_precharge), s.vref, r_th, v_node);
+  for (int u = 0; u < block_size; ++u) {
+    const double x = v_node[u] / s.vref[u] * span;
+    const double q = x / span;
+    const double drift = s.tb[u] - 25.0;  // the ADC's offset and gain drift (docs/model.md §5)
+    const double bow = i[u] * 4.0 * q * (1.0 - q);  // adc.inl_shape = bound: i[u] at every code
+    s.xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift) + (inl_bound ? i[u] : bow);
+#ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
+    s.xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift);
+#endif
+  }
+}
+
+// Stage 6: a unit heated by more than 1 K is handed to the scalar chain,
+// which checks the loop gain at the true temperature for runaway
+// (chain.cpp): a loop gain of 1 needs a rise of at least 1/|d ln R/dT|,
+// tens of kelvin for any NTC, so this is rare and costs nothing in
+// ordinary designs.
+void hot_units_by_chain(const RunConstants& c, const BlockUnits& b, const ReadingAt& at, ReadingScratch& s) {
+  const BoardTemperature board = c.d->conditions.board;
+  for (int u = 0; u < block_size; ++u) {
+    if (!(s.te[u] - at.t_k > 1.0) && s.status[u] != static_cast<std::uint8_t>(Status::runaway)) continue;
+    Deviations unit{};
+    for (int k = 0; k < source_count; ++k) unit[static_cast<std::size_t>(k)] = b.dev[k][u];
+    if (board.kind == BoardKind::range) unit[static_cast<std::size_t>(Source::board_temperature)] = s.tb[u] - board.middle();
+    const FrontEnd fe = at.calibration ? c.chain->adc_stage(c.chain->analog_calibration_front_end(unit, at.t), unit)
+                                       : c.chain->front_end(unit, at.t);
+    s.status[u] = static_cast<std::uint8_t>(fe.status);
+    s.xs[u] = fe.status == Status::ok ? fe.x_static : 0.0;
+  }
+}
+
+// Stage 7, the samples: noise, quantiser, clamping; the reading is the sum
+// of M samples.
+void sample_block(const RunConstants& c, const BlockUnits& b, const ReadingAt& at, ReadingScratch& s) {
+  const double max_code = c.max_code;
+  alignas(64) double noise[block_size];
+  std::fill(std::begin(s.sum), std::end(s.sum), 0.0);
+  std::fill(std::begin(s.sat), std::end(s.sat), 0.0);
+  std::fill(std::begin(noise), std::end(noise), 0.0);
+  const double q_offset = c.d->adc.quantizer == Quantizer::round ? 0.5 : 0.0;
+  for (int k = 0; k < c.m; ++k) {
+    if (c.noise > 0.0) {
+      if (k > 0 && !noise_high_words(k)) reading_words_block(c.key, b.first, at.reading, noise_call(k), s.words);
+      const int pair = noise_high_words(k) ? 2 : 0;
+      normals_block(s.words.w[pair], s.words.w[pair + 1], c.noise, noise);
+    }
+    for (int u = 0; u < block_size; ++u) {
+      const double v = std::floor(s.xs[u] + noise[u] + q_offset);
+      const bool lo = v < 0.0, hi = v > max_code;
+      s.sat[u] = (lo | hi) ? 1.0 : s.sat[u];
+      s.sum[u] += std::clamp(v, 0.0, max_code);
+    }
+  }
+}
+
+// Stage 8, the firmware's conversion of the reading into reported[]; the
+// status of a saturated reading or one without a solution.
+void convert_block(const RunConstants& c, ReadingScratch& s, double* reported) {
+  constexpr auto saturated = static_cast<std::uint8_t>(Status::saturated);
+  constexpr auto no_solution = static_cast<std::uint8_t>(Status::no_solution);
+  if (c.table_conversion) {
+    // Branch-free so that it vectorises (the table lookup is a gather).
+    const double* table = c.conversion.data();
+    for (int u = 0; u < block_size; ++u) {
+      std::uint8_t st = s.status[u];
+      st = (st == 0 && s.sat[u] != 0.0) ? saturated : st;
+      const double tr = table[static_cast<std::size_t>(s.sum[u])];
+      st = (st == 0 && tr != tr) ? no_solution : st;  // NaN: no conversion
+      reported[u] = st == 0 ? tr : 0.0;
+      s.status[u] = st;
+    }
+  } else {
+    for (int u = 0; u < block_size; ++u) {
+      if (s.status[u] == 0 && s.sat[u] != 0.0) s.status[u] = saturated;
+      const auto v = s.status[u] == 0 ? c.chain->convert(s.sum[u] / c.m, true) : std::nullopt;
+      if (s.status[u] == 0 && !v) s.status[u] = no_solution;
+      reported[u] = v ? *v : 0.0;
+    }
+  }
+}
+
+}  // namespace
+
+void read_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t reading, double* reported,
+                std::uint8_t* status, bool calibration) {
+  const ReadingAt at = reading_at(*c.d, t, reading, calibration);
+  ReadingScratch s;
+  draw_reading_block(c, b, at, s);
+  parts_block(c, b, s);
+  const bool resolved_at_first = solve_element_temperature(c, b, at, s);
+  element_at_solution(c, b, resolved_at_first, s);
+  divider_and_adc(c, b, s);
+  if (at.heated) hot_units_by_chain(c, b, at, s);
+  sample_block(c, b, at, s);
+  convert_block(c, s, reported);
+  std::copy(std::begin(s.status), std::end(s.status), status);
+}
+
+}  // namespace thermargin::mc_detail
