@@ -301,16 +301,22 @@ TEST(Picker, WithMoreThanSixteenInputsTheRankingEqualsTheDirectedWorstCaseOfEver
   EXPECT_GE(recovered, 1);
 }
 
+// Options for the winner alone over a series' values from low to high, no guidance.
+PickOptions winner_over(Series series, double low, double high) {
+  PickOptions o;
+  o.series = series;
+  o.range_low = low;
+  o.range_high = high;
+  o.top = 1;
+  o.guidance = false;
+  return o;
+}
+
 TEST(Picker, WinnerAndItsFiguresEqualTheBudgetOfThatDesign) {
   // The whole budget (every engine but Monte Carlo, the full range) of the
   // winning design reports the same window figures as the picker's row.
   const Scenario s = scenario_with({}, testing::scenario_path("fermentation_probe.ini"));
-  PickOptions o;
-  o.series = Series::e24;
-  o.range_low = 5e3;
-  o.range_high = 50e3;
-  o.top = 1;
-  o.guidance = false;
+  const PickOptions o = winner_over(Series::e24, 5e3, 50e3);
   const PickRow w = pick(s, o).winner();
   const Truth t = budget_of(s, w.r_fixed);
   ASSERT_TRUE(w.wc_max_abs && w.rss_max_abs);
@@ -651,12 +657,7 @@ void expect_same_row(const PickRow& got, const PickRow& want) {
 // winner itself. E12 over three decades: the screen's bounds and the search
 // are the same on any list, and the brute-force test holds pick() on E96.
 PickOptions any_start_options() {
-  PickOptions e12;
-  e12.series = Series::e12;
-  e12.range_low = 1e3;
-  e12.range_high = 1e6;
-  e12.top = 1;
-  e12.guidance = false;
+  PickOptions e12 = winner_over(Series::e12, 1e3, 1e6);
   e12.threads = 1;
   return e12;
 }
