@@ -141,6 +141,58 @@ double ideal_code(const Design& d, double t) {
   return divider_ratio(d.divider.placement, d.divider.r_fixed, r) * d.adc_span();
 }
 
+// Firmware::monotone_between() lets the worst case convert only the lowest and the
+// highest of many readings (docs/engines.md, Worst case): a monotone
+// conversion must convert an interval of codes, in one direction. Checked by
+// that definition on a sweep of fractional codes over the whole ADC, for
+// every kind of conversion that claims it.
+TEST(FirmwareConversion, AMonotoneConversionConvertsAnIntervalOfCodesInOrder) {
+  const std::vector<std::pair<std::string, Design>> designs{
+      {"beta", design_with({})},
+      {"steinhart-hart through the curve", design_with({{"firmware.conversion", "steinhart-hart"}})},
+      {"lookup table", design_with({{"firmware.conversion", "table"}})},
+      {"lookup table in temperature", design_with({{"firmware.conversion", "table"}, {"firmware.table_spacing", "temperature"}})},
+      {"exact, Pt100", design_with({}, testing::scenario_path("freezer_pt100_film.ini"))},
+      {"exact, R-T table", design_with({}, testing::scenario_path("incubator.ini"))}};
+  for (const auto& [name, d] : designs) {
+    SCOPED_TRACE(name);
+    const Firmware fw(d);
+    ASSERT_TRUE(fw.monotone_between(1.0, d.adc_span() - 2.0));
+    int converted = 0, gaps = 0, rises = 0, falls = 0;
+    bool before = false, after_gap = false;
+    double last = 0.0;
+    for (double code = 0.0; code <= d.adc_span(); code += 0.37) {
+      const auto t = fw.temperature(code);
+      if (!t) {
+        after_gap = before;
+        continue;
+      }
+      gaps += after_gap;  // a value after a code without one: not an interval
+      if (before) {
+        rises += *t > last;
+        falls += *t < last;
+      }
+      before = true;
+      last = *t;
+      ++converted;
+    }
+    EXPECT_GT(converted, 1000);
+    EXPECT_EQ(gaps, 0);
+    EXPECT_TRUE(rises == 0 || falls == 0) << rises << " rises, " << falls << " falls";
+  }
+  // 1/T = a + b·L + c·L³ with c < 0 turns at L = √(b/(−3c)): with
+  // b = 2.341e-4 and c = −2e-6, L = 6.25 (R = 517 Ω). Readings on both
+  // sides of it are not claimed monotone; readings all below it are.
+  const Design turning = design_with({{"firmware.conversion", "steinhart-hart"}, {"firmware.a", "1.129e-3"},
+                                      {"firmware.b", "2.341e-4"}, {"firmware.c", "-2e-6"}});
+  const Firmware fw(turning);
+  const double span = turning.adc_span();
+  auto code_at = [&](double r) { return r / (r + 10e3) * span; };  // the default 10 kΩ fixed resistor below the node
+  EXPECT_FALSE(fw.monotone_between(code_at(100.0), code_at(10e3)));
+  EXPECT_TRUE(fw.monotone_between(code_at(100.0), code_at(400.0)));
+  EXPECT_FALSE(fw.monotone_between(code_at(700.0), code_at(10e3)));
+}
+
 TEST(FirmwareLookupTable, SpansTheRangeCodesWithAFivePercentMarginEachSide) {
   // docs/model.md: the codes of t_min and t_max, widened by 5 % of their span
   // at each end, within [1, 2^N − 2].

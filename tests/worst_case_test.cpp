@@ -11,6 +11,7 @@
 
 #include "engine_fixture.hpp"
 #include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/input/life.hpp"
 
 namespace thermargin {
 namespace {
@@ -197,6 +198,7 @@ struct ByDefinition {
   double low = 0.0, high = 0.0;
   bool any_ok = false;
   int failed_corners = 0;
+  int no_conversion = 0;  // corners whose reading had no conversion
 };
 
 ByDefinition every_corner(const Chain& chain, double t) {
@@ -223,6 +225,7 @@ ByDefinition every_corner(const Chain& chain, double t) {
       const Evaluation e = chain.evaluate(dev, t, s, false);
       if (e.status != Status::ok) {
         failed = true;
+        out.no_conversion += e.status == Status::no_solution;
         break;
       }
       low = ends == 0 ? e.error : std::min(low, e.error);
@@ -240,10 +243,12 @@ ByDefinition every_corner(const Chain& chain, double t) {
 }
 
 TEST(WorstCase, EnumerationIsEveryCornerThroughTheChainOnEveryScenarioAndCalibration) {
-  // The enumeration shares the sensor's part of the front end between the
-  // corners of the ADC's gain, offset and INL, and each corner's calibration
-  // between the temperatures; by definition it is every corner evaluated on
-  // its own. Both fold the same numbers, so they agree to the bit.
+  // The enumeration shares the element's stage of the front end between the
+  // corners of the node's and the ADC's inputs, each corner's calibration
+  // between the temperatures, and (uncalibrated, monotone conversion)
+  // converts only the extreme readings at each temperature; by definition
+  // it is every corner evaluated on its own. Both fold the same numbers, so
+  // they agree to the bit.
   std::vector<Design> designs;
   for (const auto& file : testing::scenario_files()) designs.push_back(design_with({}, file));
   designs.push_back(design_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}));
@@ -252,7 +257,19 @@ TEST(WorstCase, EnumerationIsEveryCornerThroughTheChainOnEveryScenarioAndCalibra
   designs.push_back(design_with({{"supply.ratiometric", "false"}, {"supply.v_reference", "3.0"},
                                  {"supply.v_reference_tol", "0.5%"}, {"adc.leakage", "20n"}}));
   designs.push_back(design_with({{"adc.offset", "1500"}}));  // corners that saturate
-  int compared = 0, with_failures = 0;
+  // Readings the firmware's lookup table does not reach (a wide R25 spread):
+  // the extreme readings do not convert, and the element corner's corners
+  // are taken one by one (docs/engines.md, Worst case).
+  designs.push_back(design_with({{"sensor.r25_tol", "40%"}, {"firmware.conversion", "table"}}));
+  // A Steinhart–Hart conversion whose 1/T turns at R = 517 Ω (c < 0): not
+  // monotone over these readings, so every reading of every corner is converted.
+  designs.push_back(design_with({{"firmware.conversion", "steinhart-hart"}, {"firmware.a", "1.129e-3"},
+                                 {"firmware.b", "2.341e-4"}, {"firmware.c", "-2e-6"}}));
+  // Drift over life in every stage (element, node, ADC), at end of life.
+  designs.push_back(at_end_of_life(design_with({{"sensor.drift", "2%"}, {"supply.ratiometric", "false"},
+                                                {"supply.v_reference", "3.3V"}, {"supply.v_reference_drift", "0.2%"},
+                                                {"adc.offset_drift", "1"}})));
+  int compared = 0, with_failures = 0, skipped_gathering = 0, not_monotone = 0;
   for (std::size_t k = 0; k < designs.size(); ++k) {
     const Design& d = designs[k];
     SCOPED_TRACE("design " + std::to_string(k) + ": " + d.title);
@@ -261,6 +278,8 @@ TEST(WorstCase, EnumerationIsEveryCornerThroughTheChainOnEveryScenarioAndCalibra
     const auto all = d.conditions.temperatures();
     const std::vector<double> temps{all.front(), all[all.size() / 3], all[all.size() / 2], all.back()};
     const WorstCase wc = worst_case(chain, temps, {.method = CornerMethod::enumerate});
+    not_monotone += !chain.firmware().monotone_between(1.0, d.adc_span() - 2.0);
+    for (double t : temps) skipped_gathering += every_corner(chain, t).no_conversion;
     for (std::size_t i = 0; i < temps.size(); ++i) {
       SCOPED_TRACE(temps[i]);
       const ByDefinition want = every_corner(chain, temps[i]);
@@ -276,6 +295,8 @@ TEST(WorstCase, EnumerationIsEveryCornerThroughTheChainOnEveryScenarioAndCalibra
   }
   EXPECT_GE(compared, 30);
   EXPECT_GT(with_failures, 0);  // the saturating design exercises the failures
+  EXPECT_GT(skipped_gathering, 0);  // the lookup table's ends
+  EXPECT_GT(not_monotone, 0);
 }
 
 TEST(WorstCase, TheThreadsItIsGivenDoNotMoveTheBand) {

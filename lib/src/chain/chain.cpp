@@ -41,39 +41,81 @@ namespace {
 double at(const Deviations& d, Source s) { return d[static_cast<std::size_t>(s)]; }
 }  // namespace
 
+ChainStage stage_of(Source s) {
+  switch (s) {
+    case Source::v_reference:
+    case Source::v_reference_tempco:
+    case Source::v_reference_drift:
+    case Source::v_reference_hysteresis:
+    case Source::adc_leakage:
+    case Source::adc_precharge: return ChainStage::node;
+    case Source::adc_offset:
+    case Source::adc_gain:
+    case Source::adc_inl:
+    case Source::adc_offset_tempco:
+    case Source::adc_gain_tempco:
+    case Source::adc_offset_drift:
+    case Source::adc_gain_drift: return ChainStage::adc;
+    case Source::calibration_1:
+    case Source::calibration_2: return ChainStage::calibration_reference;
+    default: return ChainStage::element;
+  }
+}
+
 FrontEnd Chain::front_end(const Deviations& dev, double t_c) const { return adc_stage(analog_front_end(dev, t_c), dev); }
 
-FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& unit) const {
-  if (fe.status != Status::ok) return fe;
+FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& unit) const { return adc_stage(fe, adc_unit(unit)); }
+
+AdcUnit Chain::adc_unit(const Deviations& unit) {
   const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
+  AdcUnit a;
+  a.offset = at(dev, Source::adc_offset);
+  a.offset_tempco = at(dev, Source::adc_offset_tempco);
+  a.gain = at(dev, Source::adc_gain);
+  a.gain_tempco = at(dev, Source::adc_gain_tempco);
+  a.inl = at(dev, Source::adc_inl);
+  return a;
+}
+
+FrontEnd Chain::adc_stage(FrontEnd fe, const AdcUnit& adc) const {
+  if (fe.status != Status::ok) return fe;
   // The ADC's offset and gain drift with the board temperature (docs/model.md §5).
   const double drift = fe.t_board - 25.0;
-  const double offset = at(dev, Source::adc_offset) + at(dev, Source::adc_offset_tempco) * drift;
+  const double offset = adc.offset + adc.offset_tempco * drift;
   // adc.inl_shape = bound: the INL deviation at every code, not the bow.
-  double inl = at(dev, Source::adc_inl);
+  double inl = adc.inl;
 #ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
   inl = 0.0;
 #endif
   const bool bound = d_->adc.inl_bound;
-  fe.x_static = adc_static(fe.x_ideal, span_, at(dev, Source::adc_gain) + at(dev, Source::adc_gain_tempco) * drift,
-                           bound ? offset + inl : offset, bound ? 0.0 : inl);
+  fe.x_static = adc_static(fe.x_ideal, span_, adc.gain + adc.gain_tempco * drift, bound ? offset + inl : offset,
+                           bound ? 0.0 : inl);
   return fe;
 }
 
 FrontEnd Chain::analog_front_end(const Deviations& dev, double t_c) const {
-  return analog_stage(dev, t_c, d_->sensor.dissipation, at(dev, Source::dissipation));
+  return node_stage(element_stage(dev, t_c), dev);
 }
 
 FrontEnd Chain::analog_calibration_front_end(const Deviations& dev, double t_cal) const {
-  const auto& medium = d_->firmware.calibration_dissipation;
-  if (!medium) return analog_front_end(dev, t_cal);
-  return analog_stage(dev, t_cal, *medium, 0.0);
+  return node_stage(calibration_element_stage(dev, t_cal), dev);
 }
 
-FrontEnd Chain::analog_stage(const Deviations& unit, double t_c, double dissipation, double dissipation_dev) const {
+ElementStage Chain::element_stage(const Deviations& dev, double t_c) const {
+  return element_stage(dev, t_c, d_->sensor.dissipation, at(dev, Source::dissipation));
+}
+
+ElementStage Chain::calibration_element_stage(const Deviations& dev, double t_cal) const {
+  const auto& medium = d_->firmware.calibration_dissipation;
+  if (!medium) return element_stage(dev, t_cal);
+  return element_stage(dev, t_cal, *medium, 0.0);
+}
+
+ElementStage Chain::element_stage(const Deviations& unit, double t_c, double dissipation, double dissipation_dev) const {
   const Design& d = *d_;
   const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
-  FrontEnd fe;
+  ElementStage es;
+  FrontEnd& fe = es.front;
   const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
                           at(dev, Source::table_spread), at(dev, Source::sensor_drift));
   const double t_board = board_temperature(d.conditions.board, t_c, at(dev, Source::board_temperature));
@@ -91,7 +133,6 @@ FrontEnd Chain::analog_stage(const Deviations& unit, double t_c, double dissipat
 
   const double t_true_k = t_c + kelvin_offset;
   double t_element = t_true_k;
-  double r_element = 0.0;
   if (dissipation > 0.0 && d.divider.duty > 0.0) {
     const double gain = d.divider.duty / (dissipation * (1.0 + dissipation_dev));
     const auto rise_at = [&](double t) -> std::optional<double> {
@@ -111,39 +152,53 @@ FrontEnd Chain::analog_stage(const Deviations& unit, double t_c, double dissipat
       fe.status = Status::runaway;
       fe.t_element = t_c + *r0;
       fe.rise = *r0;
-      return fe;
+      return es;
     }
     // The iteration starts at the true temperature, whose rise is r0 already.
     const SelfHeating sh = solve_self_heating(t_true_k, [&](double t) { return t == t_true_k ? r0 : rise_at(t); });
     if (sh.outcome == SelfHeating::Outcome::out_of_range) {
       fe.status = Status::out_of_table;
-      return fe;
+      return es;
     }
     if (sh.outcome == SelfHeating::Outcome::runaway) {
       fe.status = Status::runaway;
       fe.t_element = sh.t_element - kelvin_offset;
       fe.rise = sh.rise;
-      return fe;
+      return es;
     }
     t_element = sh.t_element;
   }
   const auto l = sensor.ln_resistance(t_element);
   if (!l) {
     fe.status = Status::out_of_table;
-    return fe;
+    return es;
   }
-  r_element = std::exp(*l);
+  const double r_element = std::exp(*l);
   fe.t_element = t_element - kelvin_offset;
   fe.rise = t_element - t_true_k;
-  const double rb = branch_resistance(r_element, r_lead, r_par);
-  fe.v_node = node_voltage(d.divider.placement, supply.v_excitation, r_fixed, rb, r_drive, at(dev, Source::adc_leakage));
-  fe.r_thevenin = divider_arms(d.divider.placement, r_fixed, rb, r_drive).thevenin();
+  es.r_branch = branch_resistance(r_element, r_lead, r_par);
+  es.r_fixed = r_fixed;
+  es.r_drive = r_drive;
+  es.v_excitation = supply.v_excitation;
+  fe.r_thevenin = divider_arms(d.divider.placement, r_fixed, es.r_branch, r_drive).thevenin();
+  if (acquisition_.on) es.settling = acquisition_map(acquisition_, fe.r_thevenin);
+  return es;
+}
+
+FrontEnd Chain::node_stage(const ElementStage& es, const Deviations& unit) const {
+  FrontEnd fe = es.front;
+  if (fe.status != Status::ok) return fe;
+  const Design& d = *d_;
+  const Deviations dev = with_drift(unit);
+  const SupplyUnit supply = supply_unit(d.supply, dev, fe.t_board);
+  fe.v_node = node_voltage(d.divider.placement, es.v_excitation, es.r_fixed, es.r_branch, es.r_drive,
+                           at(dev, Source::adc_leakage));
   fe.x_ideal = fe.v_node / supply.v_reference * span_;
   if (acquisition_.on) {
     // The ADC digitises what its sampling capacitor holds (docs/model.md §14).
     const double v_start = precharge_voltage(d.adc, d.supply.v_reference_nominal(), supply.v_reference,
                                              at(dev, Source::adc_precharge));
-    const double v_s = acquisition_map(acquisition_, fe.r_thevenin).apply(fe.v_node, v_start);
+    const double v_s = es.settling.apply(fe.v_node, v_start);
     const double x = v_s / supply.v_reference * span_;
     fe.acquisition_shift = x - fe.x_ideal;
     fe.x_ideal = x;

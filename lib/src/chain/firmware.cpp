@@ -57,6 +57,8 @@ Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion)
     Firmware exact = *this;
     exact.conversion_ = Conversion::exact;
     table_ = build_lookup_table(d, exact, d.firmware.table_points, d.firmware.table_unit, d.firmware.table_spacing);
+    table_monotone_ = std::is_sorted(table_.stored.begin(), table_.stored.end()) ||
+                      std::is_sorted(table_.stored.rbegin(), table_.stored.rend());
   }
 }
 
@@ -94,6 +96,34 @@ std::optional<double> Firmware::temperature(double code) const {
   const double t = conversion_ == Conversion::beta ? temperature_kelvin(beta_, l) : temperature_kelvin(sh_, l);
   if (!(t > 0.0)) return std::nullopt;
   return t - kelvin_offset;
+}
+
+bool Firmware::monotone_between(double lo, double hi) const {
+  // 1/T = a + b·L + c·L³ (L = ln R) has the slope b + 3c·L²: positive
+  // everywhere when b > 0 and c ≥ 0, else for |L| < √(b/(−3c)) when b > 0.
+  // L is monotone in the code, so its ends bound it between. Where 1/T
+  // rises, its solutions (1/T > 0) are an interval. The beta form, the
+  // Callendar–Van Dusen inverse and an R–T table are monotone; a lookup
+  // table is linear between its stored points, so monotone when they are;
+  // each step before them (the ratio, the divider and the leads inverted)
+  // is monotone with an interval of solutions.
+  auto rising = [&](const SteinhartHart& sh) {
+    if (!(sh.b > 0.0)) return false;
+    if (sh.c >= 0.0) return true;
+    const double limit = std::sqrt(sh.b / (-3.0 * sh.c));
+    for (double code : {lo, hi}) {
+      const auto r = element_resistance(code);
+      if (!r || !(std::fabs(std::log(*r)) < limit)) return false;
+    }
+    return true;
+  };
+  switch (conversion_) {
+    case Conversion::steinhart_hart: return rising(sh_);
+    case Conversion::exact: return d_->sensor.kind != SensorKind::steinhart_hart || rising(d_->sensor.sh);
+    case Conversion::table: return table_monotone_;
+    case Conversion::beta: return true;
+  }
+  return false;
 }
 
 double Firmware::round_output(double t) const {

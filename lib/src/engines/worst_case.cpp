@@ -166,6 +166,16 @@ void fold(WorstCasePoint& p, const CornerRange& c) {
   p.any_ok = true;
 }
 
+// q's corners added to p's.
+void merge(WorstCasePoint& p, const WorstCasePoint& q) {
+  p.failed_corners += q.failed_corners;
+  if (q.failure != Status::ok && (p.failure == Status::ok || q.failure < p.failure)) p.failure = q.failure;
+  if (!q.any_ok) return;
+  p.low = p.any_ok ? std::min(p.low, q.low) : q.low;
+  p.high = p.any_ok ? std::max(p.high, q.high) : q.high;
+  p.any_ok = true;
+}
+
 // Each source's own half-width at t: that source alone at its bound, or the
 // reading-level source alone at its interval ends, everything else central.
 std::vector<double> own_half_widths(const Chain& chain, double t, const Intervals& iv) {
@@ -281,62 +291,171 @@ CornerRange directed_extreme(const Chain& chain, double t, const Intervals& iv, 
   return best;
 }
 
-// Every corner: every combination of the analog inputs' signs with every
-// combination of the ADC's (gain, offset, INL), the analog stage of the
-// front end, the costly part (the sensor, its self-heating), computed once
-// for all ADC corners that share it. Threads over analog corners, each
-// folding into its own points; min and max are exact, so the merge does not
-// depend on how corners were shared or visited.
+// The active inputs grouped by the stage of the chain they act in first
+// (stage_of): indices into d.inputs. The calibration references change only
+// the calibration, so they go with the ADC's inputs.
+struct StageInputs {
+  std::vector<std::size_t> element, node, adc;
+};
+
+StageInputs stage_inputs(const Design& d) {
+  StageInputs g;
+  for (std::size_t k = 0; k < d.inputs.size(); ++k) {
+    const ChainStage s = stage_of(d.inputs[k].source);
+    (s == ChainStage::element ? g.element : s == ChainStage::node ? g.node : g.adc).push_back(k);
+  }
+  return g;
+}
+
+void set_signs(const Design& d, Deviations& dev, const std::vector<std::size_t>& which, long long mask) {
+  for (std::size_t b = 0; b < which.size(); ++b) {
+    const auto& in = d.inputs[which[b]];
+    dev[static_cast<std::size_t>(in.source)] = (mask >> b & 1) ? in.bound : -in.bound;
+  }
+}
+
+// An uncalibrated design whose conversion is monotone over the readings
+// (Firmware::monotone_between) needs, at one temperature, only the lowest and the highest reading any
+// corner converts: every reading between converts too, and its error lies
+// between theirs. Readings are gathered in the order corner_range takes
+// them, so each corner fails (or not) exactly as it would there.
+struct ReadingSpan {
+  double lo = std::numeric_limits<double>::infinity(), hi = -std::numeric_limits<double>::infinity();
+  void add(double code) {
+    lo = std::min(lo, code);
+    hi = std::max(hi, code);
+  }
+  bool empty() const { return lo > hi; }
+};
+
+struct GatheredReadings {
+  ReadingSpan converted;  // every reading a corner converts, saturated ones or not
+  ReadingSpan ok;         // the readings of the corners that do not saturate
+  WorstCasePoint failed;  // the saturated corners, folded
+};
+
+void gather(const Chain& chain, const FrontEnd& fe, const Intervals& iv, GatheredReadings& g) {
+  if (fe.status != Status::ok) {
+    CornerRange c;
+    c.failure = fe.status;
+    fold(g.failed, c);
+    return;
+  }
+  double codes[2];
+  int n = 0;
+  for (double shift : {iv.reading.lo, iv.reading.hi}) {
+    const Reading r = continuous_reading(fe.x_static, shift, chain.max_code());
+    if (r.saturated) {
+      CornerRange c;
+      c.failure = Status::saturated;
+      fold(g.failed, c);
+      return;
+    }
+    g.converted.add(r.code);
+    codes[n++] = r.code;
+  }
+  for (int k = 0; k < n; ++k) g.ok.add(codes[k]);
+}
+
+// The corners gathered at t folded into p, when the conversion is monotone
+// between the readings and both ends convert (else false, p untouched: the
+// caller evaluates corner by corner).
+bool fold_gathered(const Chain& chain, const GatheredReadings& g, double t, const Intervals& iv, WorstCasePoint& p) {
+  if (!g.converted.empty()) {
+    if (!chain.firmware().monotone_between(g.converted.lo, g.converted.hi)) return false;
+    for (double code : {g.converted.lo, g.converted.hi})
+      if (!chain.convert(code, false)) return false;
+  }
+  WorstCasePoint q = g.failed;
+  if (!g.ok.empty()) {
+    CornerRange c;
+    bool first = true;
+    for (double code : {g.ok.lo, g.ok.hi}) {
+      const double tr = *chain.convert(code, false);
+      for (double rounding : {-iv.rounding, iv.rounding}) {
+        const double e = (tr + rounding) - t;
+        c.low = first ? e : std::min(c.low, e);
+        c.high = first ? e : std::max(c.high, e);
+        first = false;
+      }
+    }
+    c.ok = true;
+    fold(q, c);
+  }
+  merge(p, q);
+  return true;
+}
+
+// Every corner: every combination of the inputs' signs, in three nested
+// stages (stage_inputs): the element's (the sensor and its self-heating, the
+// costly part) computed once for every corner of the node's inputs, and the
+// node once for every corner of the ADC's. Threads over element corners,
+// each folding into its own points; min and max are exact, so the merge
+// does not depend on how corners were shared or visited.
 void enumerate_corners(const Chain& chain, const std::vector<double>& temperatures, const Intervals& iv, int threads,
                        WorstCase& wc) {
   const Design& d = chain.design();
   const std::size_t nt = temperatures.size();
   wc.corners = 1LL << wc.active_inputs;
-  std::vector<std::size_t> analog, adc;  // indices into d.inputs
-  for (std::size_t k = 0; k < d.inputs.size(); ++k) {
-    const Source src = d.inputs[k].source;
-    (src == Source::adc_gain || src == Source::adc_offset || src == Source::adc_inl ? adc : analog).push_back(k);
-  }
-  const long long analog_corners = 1LL << analog.size(), adc_corners = 1LL << adc.size();
-  auto set_signs = [&](Deviations& dev, const std::vector<std::size_t>& which, long long mask) {
-    for (std::size_t b = 0; b < which.size(); ++b) {
-      const auto& in = d.inputs[which[b]];
-      dev[static_cast<std::size_t>(in.source)] = (mask >> b & 1) ? in.bound : -in.bound;
-    }
-  };
+  const StageInputs g = stage_inputs(d);
+  const long long element_corners = 1LL << g.element.size(), node_corners = 1LL << g.node.size(),
+                  adc_corners = 1LL << g.adc.size();
+  const int cal_points = calibration_points(d.firmware.calibration);
+  const bool gathered = cal_points == 0;
   threads = resolve_threads(threads);
-  threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), analog_corners}));
+  threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), element_corners}));
   std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
   std::atomic<long long> next{0};
   auto work = [&](int worker) {
-    const auto w = static_cast<std::size_t>(worker);
-    std::vector<FrontEnd> at_t(nt);
-    for (long long a; (a = next.fetch_add(1)) < analog_corners;) {
+    std::vector<WorstCasePoint>& out = partial[static_cast<std::size_t>(worker)];
+    std::vector<ElementStage> at_t(nt);
+    std::vector<FrontEnd> node_at_t(nt * static_cast<std::size_t>(node_corners));
+    std::vector<GatheredReadings> readings(gathered ? nt : 0);
+    for (long long a; (a = next.fetch_add(1)) < element_corners;) {
       Deviations dev{};
-      set_signs(dev, analog, a);
-      for (std::size_t i = 0; i < nt; ++i) at_t[i] = chain.analog_front_end(dev, temperatures[i]);
-      const CalibrationFrontEnds at_cal = calibration_front_ends(chain, dev);
-      for (long long m = 0; m < adc_corners; ++m) {
-        set_signs(dev, adc, m);
-        Status cal_failure = Status::ok;
-        const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
-        for (std::size_t i = 0; i < nt; ++i)
-          fold(partial[w][i], corner_range(chain, chain.adc_stage(at_t[i], dev), temperatures[i], iv, cals, cal_failure));
+      set_signs(d, dev, g.element, a);
+      for (std::size_t i = 0; i < nt; ++i) at_t[i] = chain.element_stage(dev, temperatures[i]);
+      ElementStage cal_element[2];
+      for (int k = 0; k < cal_points; ++k)
+        cal_element[k] = chain.calibration_element_stage(dev, d.firmware.calibration_at[static_cast<std::size_t>(k)]);
+      std::fill(readings.begin(), readings.end(), GatheredReadings{});
+      for (long long b = 0; b < node_corners; ++b) {
+        set_signs(d, dev, g.node, b);
+        FrontEnd* node = &node_at_t[static_cast<std::size_t>(b) * nt];
+        for (std::size_t i = 0; i < nt; ++i) node[i] = chain.node_stage(at_t[i], dev);
+        CalibrationFrontEnds at_cal;
+        for (int k = 0; k < cal_points; ++k) at_cal.at[k] = chain.node_stage(cal_element[k], dev);
+        for (long long m = 0; m < adc_corners; ++m) {
+          set_signs(d, dev, g.adc, m);
+          if (gathered) {
+            const AdcUnit adc = Chain::adc_unit(dev);
+            for (std::size_t i = 0; i < nt; ++i) gather(chain, chain.adc_stage(node[i], adc), iv, readings[i]);
+            continue;
+          }
+          Status cal_failure = Status::ok;
+          const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
+          for (std::size_t i = 0; i < nt; ++i)
+            fold(out[i], corner_range(chain, chain.adc_stage(node[i], dev), temperatures[i], iv, cals, cal_failure));
+        }
+      }
+      if (!gathered) continue;
+      for (std::size_t i = 0; i < nt; ++i) {
+        if (fold_gathered(chain, readings[i], temperatures[i], iv, out[i])) continue;
+        // An end that does not convert: every corner of this element corner by itself.
+        for (long long b = 0; b < node_corners; ++b) {
+          set_signs(d, dev, g.node, b);
+          for (long long m = 0; m < adc_corners; ++m) {
+            set_signs(d, dev, g.adc, m);
+            const FrontEnd fe = chain.adc_stage(node_at_t[static_cast<std::size_t>(b) * nt + i], dev);
+            fold(out[i], corner_range(chain, fe, temperatures[i], iv, {}, Status::ok));
+          }
+        }
       }
     }
   };
   run_workers(threads, work);
   for (const auto& part : partial)
-    for (std::size_t i = 0; i < nt; ++i) {
-      WorstCasePoint& p = wc.points[i];
-      const WorstCasePoint& q = part[i];
-      p.failed_corners += q.failed_corners;
-      if (q.failure != Status::ok && (p.failure == Status::ok || q.failure < p.failure)) p.failure = q.failure;
-      if (!q.any_ok) continue;
-      p.low = p.any_ok ? std::min(p.low, q.low) : q.low;
-      p.high = p.any_ok ? std::max(p.high, q.high) : q.high;
-      p.any_ok = true;
-    }
+    for (std::size_t i = 0; i < nt; ++i) merge(wc.points[i], part[i]);
 }
 
 // The two corners the sensitivities' signs direct to at each temperature,

@@ -60,6 +60,34 @@ struct ReadingShift {
   double output_at_cal[2] = {0.0, 0.0};
 };
 
+// The analog stage's first part: the element (sensor, self-heating) and the
+// parts its temperature depends on, which the node's and the ADC's own
+// deviations do not change (stage_of() below). The worst case computes it
+// once for every corner of the later stages.
+struct ElementStage {
+  FrontEnd front;               // status, t_element, rise, t_board, r_thevenin
+  double r_branch = 0.0;        // Ω, the element with its leads and parallel resistor
+  double r_fixed = 0.0;         // Ω, at the board temperature
+  double r_drive = 0.0;         // Ω
+  double v_excitation = 0.0;    // V
+  SampleMap settling;           // the sampled node's map at r_thevenin (docs/model.md §14)
+};
+
+// Which stage of the chain a source acts in first: a source of a later
+// stage never changes an earlier one (drift over life belongs to its part's
+// stage), so an engine may share an earlier stage among the corners of the
+// later ones.
+// A unit's ADC deviations, drift over life folded in: what the ADC stage
+// reads of a unit (Chain::adc_unit).
+struct AdcUnit {
+  double offset = 0.0, offset_tempco = 0.0;  // LSB, LSB/K
+  double gain = 0.0, gain_tempco = 0.0;      // relative, 1/K
+  double inl = 0.0;                          // LSB
+};
+
+enum class ChainStage { element, node, adc, calibration_reference };
+ChainStage stage_of(Source s);
+
 class Chain {
  public:
   // The chain keeps a reference to the design: it must outlive the chain,
@@ -85,6 +113,18 @@ class Chain {
   // dissipation deviation), else exactly analog_front_end.
   FrontEnd analog_calibration_front_end(const Deviations& dev, double t_cal) const;
   FrontEnd adc_stage(FrontEnd fe, const Deviations& dev) const;
+  // The same from the unit's ADC deviations alone: adc_stage(fe, dev) is
+  // adc_stage(fe, adc_unit(dev)), to the bit.
+  static AdcUnit adc_unit(const Deviations& dev);
+  FrontEnd adc_stage(FrontEnd fe, const AdcUnit& adc) const;
+
+  // analog_front_end(dev, t) is node_stage(element_stage(dev, t), dev) and
+  // analog_calibration_front_end(dev, t) node_stage(calibration_element_stage(dev, t), dev),
+  // to the bit; node_stage reads only the node's sources of `dev`
+  // (leakage, the reference, the precharge) beside the element stage.
+  ElementStage element_stage(const Deviations& dev, double t_celsius) const;
+  ElementStage calibration_element_stage(const Deviations& dev, double t_cal) const;
+  FrontEnd node_stage(const ElementStage& element, const Deviations& dev) const;
 
   // Firmware steps 1–4 for a reading: temperature before calibration.
   std::optional<double> convert(double code, bool round_output) const;
@@ -107,7 +147,7 @@ class Chain {
 
  private:
   // `dissipation`: W/K of the medium, `dissipation_dev` the unit's relative deviation of it.
-  FrontEnd analog_stage(const Deviations& dev, double t_celsius, double dissipation, double dissipation_dev) const;
+  ElementStage element_stage(const Deviations& dev, double t_celsius, double dissipation, double dissipation_dev) const;
   const Design* d_;
   Firmware firmware_;
   double span_ = 0.0, max_code_ = 0.0;

@@ -55,6 +55,12 @@ class Firmware {
   // nullopt when the conversion has no solution (a ratio outside (0, 1), a
   // negative resistance, a code outside the lookup table).
   std::optional<double> temperature(double code) const;
+  // Whether temperature(code) is monotone over the codes [lo, hi] and has a
+  // solution on an interval of codes: every conversion but a Steinhart–Hart
+  // polynomial whose 1/T does not rise with ln R over those codes. The worst
+  // case then converts only the lowest and highest of many readings
+  // (docs/engines.md, Worst case).
+  bool monotone_between(double lo, double hi) const;
   // Step 4: rounding to the output resolution (identity when `exact_output`).
   double round_output(double t) const;
 
@@ -78,6 +84,7 @@ class Firmware {
   double ratio_scale_ = 1.0;  // V_ref,nom / V_exc,nom
   BetaCurve beta_{};
   SteinhartHart sh_{};
+  bool table_monotone_ = true;  // the lookup table's stored points in one direction
   LookupTable table_;
 };
 
