@@ -134,3 +134,29 @@ TEST(BudgetWhatIf, TheReviewPageHasTheSectionWithEveryRowsSetting) {
 
 }  // namespace
 }  // namespace thermargin
+
+namespace thermargin {
+namespace {
+
+// The sampling capacitor's start (precharge = any, docs/what-if.md): the row
+// names adc.precharge, and its "removed" figures are those of the same
+// design whose converter precharges C_s to mid-reference, 1.65 V on the
+// multiplexed SAR input's 3.3 V ratiometric reference — the design the
+// source's removal describes (docs/model.md §14: uniform over 0…V_ref).
+TEST(BudgetWhatIf, RemovingThePrechargeIsAStartAtMidReference) {
+  const std::string mux = "budget " + testing::shell_quote(testing::scenario_path("mux_sar_high_impedance.ini")) + " --no-mc";
+  const auto j = testing::cli_json(mux);
+  const nlohmann::json* row = nullptr;
+  for (const auto& r : j["what_if"]["rows"])
+    if (r["source"] == "adc_precharge") row = &r;
+  ASSERT_NE(row, nullptr) << "the precharge leads this design's window; it must be tried";
+  EXPECT_EQ((*row)["key"], "adc.precharge");
+  const auto mid = testing::cli_json(mux + " --adc.precharge=1.65V");
+  EXPECT_NEAR((*row)["removed"]["wc_max_abs"].get<double>(), mid["window"]["wc_max_abs"].get<double>(), 1e-9);
+  EXPECT_NEAR((*row)["removed"]["rss_max_abs"].get<double>(), mid["window"]["rss_max_abs"].get<double>(), 1e-9);
+  // Not vacuous: the precharge is most of this design's worst case.
+  EXPECT_GT(j["window"]["wc_max_abs"].get<double>() - mid["window"]["wc_max_abs"].get<double>(), 0.5);
+}
+
+}  // namespace
+}  // namespace thermargin
