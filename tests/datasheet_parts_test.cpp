@@ -3,13 +3,17 @@
 // the board temperature, the RTD classes' validity ranges and the
 // calibration medium's own dissipation.
 #include <cmath>
+#include <sstream>
+#include <string>
 
 #include <gtest/gtest.h>
 
 #include "engine_fixture.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/report/budget_output.hpp"
 
 namespace thermargin {
 namespace {
@@ -129,6 +133,32 @@ TEST(RtdClassRange, ADesignBeyondTheRangeIsMarkedNotRefused) {
   const Design inside = design_with({{"sensor.model", "rtd"}, {"sensor.rtd_class", "AA"}, {"sensor.dissipation", "0"},
                                      {"sensor.rtd_construction", "wire-wound"}});
   EXPECT_EQ(rtd_class_range_note(inside), "");
+}
+
+TEST(RtdClassRange, BudgetCsvMarksEachTemperatureBeyondTheRange) {
+  // Class AA film, rated from 0 degC (the ranges above, from memory): the
+  // CSV's rtd_class_extrapolated is 1 at -20 and -10 degC, 0 from 0 degC on;
+  // a design inside its range has no such column.
+  const auto csv = [](const testing::Overrides& o) {
+    const Design d = design_with(o);
+    const Chain chain(d);
+    return budget_csv(run_budget(chain, {.monte_carlo = false, .corners = CornerMethod::enumerate, .progress = {}}),
+                      {.chain = &chain});
+  };
+  const testing::Overrides aa{{"sensor.model", "rtd"}, {"sensor.rtd_class", "AA"}, {"sensor.dissipation", "0"},
+                              {"conditions.t_min", "-20"}, {"conditions.t_max", "20"}, {"conditions.t_step", "10"},
+                              {"requirement.window_min", "-20"}, {"requirement.window_max", "20"}};
+  std::istringstream in(csv(aa));
+  std::string line;
+  std::getline(in, line);
+  ASSERT_TRUE(line.ends_with(",rtd_class_extrapolated")) << line;
+  for (const char* want : {"-20.000,", "-10.000,", "0.000,", "10.000,", "20.000,"}) {
+    ASSERT_TRUE(std::getline(in, line));
+    EXPECT_TRUE(line.starts_with(want)) << line;
+    EXPECT_EQ(line.back(), line[0] == '-' ? '1' : '0') << line;
+  }
+  EXPECT_EQ(csv(testing::with_extra(aa, {{"sensor.rtd_construction", "wire-wound"}})).find("rtd_class_extrapolated"),
+            std::string::npos);
 }
 
 // The element's temperature in a medium at t with dissipation constant δ,
