@@ -5,16 +5,19 @@
 // not from the program's other engines.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 #include <string>
 #include <vector>
 
+#include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/drift.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/engines/budget.hpp"
+#include "thermargin/engines/worst_case.hpp"
 #include "thermargin/input/life.hpp"
 #include "thermargin/report/budget_output.hpp"
 
@@ -157,6 +160,39 @@ TEST(Life, VerdictFollowsRequirementAt) {
   EXPECT_EQ(delivery.verdict.at, Requirement::At::delivery);
   EXPECT_TRUE(delivery.verdict.pass);
   EXPECT_FALSE(delivery.end_of_life->budget.verdict.pass);
+}
+
+TEST(Life, GradesAndPickRankOnTheVerdictsBasisAndSayIt) {
+  // The shipped solar collector probe (its verdict changes from delivery to
+  // end of life) with its catalogue, whose grades carry their drift: grades
+  // scores the scenario's own parts with the worst case of the end-of-life
+  // design (the worst-case engine on the drift inputs made active), not the
+  // delivery one; the text of grades and pick says which basis it ranks on.
+  const std::string path = testing::scenario_path("solar_collector_life.ini");
+  const std::string file = testing::shell_quote(path);
+  const std::string cat = " --units 100 --catalogue " +
+                          testing::shell_quote(testing::scenario_path("solar_collector_life_catalogue.csv"));
+  const Design d = design_with({}, path);
+  const auto window_wc = [](const Design& design) {
+    double m = 0.0;
+    const auto window = window_temperatures(design.requirement, design.conditions.temperatures());
+    for (const auto& p : worst_case(Chain(design), window, {.method = CornerMethod::enumerate}).points)
+      m = std::max(m, std::max(std::fabs(p.low), std::fabs(p.high)));
+    return m;
+  };
+  const double eol = window_wc(at_end_of_life(d)), delivery = window_wc(d);
+  ASSERT_GT(eol, delivery + 0.3);  // about 1.54 K against 0.86 K
+  double own_parts = 0.0;
+  const nlohmann::json grades = testing::cli_json("grades " + file + cat);
+  for (const auto& r : grades["rows"])
+    if (r["choice"]["thermistor"] == "epoxy 0.5%" && r["choice"]["resistor"] == "thin film 0.1%")
+      own_parts = r["wc_max_abs"].get<double>();
+  EXPECT_NEAR(own_parts, eol, 1e-9);
+  EXPECT_NE(testing::run_cli("grades " + file + cat).out.find("basis, at end of life: requirement.at"), std::string::npos);
+  EXPECT_NE(testing::run_cli("pick " + file + " --values 3k").out.find("over the window at end of life"),
+            std::string::npos);
+  EXPECT_EQ(testing::run_cli("pick " + file + " --values 3k --requirement.at=delivery").out.find("at end of life"),
+            std::string::npos);
 }
 
 TEST(Life, DriftFoldsIntoItsPartAndOnlyOnce) {

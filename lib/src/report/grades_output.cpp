@@ -140,7 +140,11 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
   if (g.volume) out << "; setup costs spread over " << fixed(*g.volume, 0) << " units";
   if (g.reject_cost) out << "; a failed unit costs " << money(*g.reject_cost);
   out << ".\nRequirement: +/-" << fixed(q.max_error, 3) << " K over " << fixed(q.window_min, 2) << " .. "
-      << fixed(q.window_max, 2) << " degC (" << to_string(q.basis) << " basis), yield at least " << pct(q.yield)
+      << fixed(q.window_max, 2) << " degC (" << to_string(q.basis) << " basis"
+      << (std::any_of(g.rows.begin(), g.rows.end(), [](const GradeRow& r) { return r.end_of_life; })
+              ? ", at end of life: requirement.at, with each grade's drift"
+              : "")
+      << "), yield at least " << pct(q.yield)
       << ". Error for the front: " << to_string(g.by) << ".\n\n";
 
   if (g.recommendation) {
