@@ -28,8 +28,10 @@ namespace {
 using testing::design_with;
 using testing::ideal;
 
-constexpr double exact_tolerance = 1e-12;  // V: closed forms against the exact map, rounding only
-constexpr double scipy_tolerance = 1e-9;   // V: solve_ivp (Radau, rtol 1e-12) against the exact map
+constexpr double exact_tolerance = 1e-12;   // V: closed forms against the exact map, rounding only
+constexpr double scipy_tolerance = 1e-9;    // V: solve_ivp (Radau, rtol 1e-12) against the exact map
+constexpr double kelvin_tolerance = 1e-9;   // K: a closed form read through the beta curve, rounding only
+constexpr double printed_tolerance = 6e-6;  // K: CSV and text print 5 decimals (±5e-6) of the JSON's value
 
 AcquisitionModel model(double r_sw, double c_s, double c_n, double t_acq, double t_s, bool reset,
                        std::optional<double> settle = std::nullopt, int m = 1) {
@@ -211,6 +213,63 @@ TEST(Acquisition, SummaryNamesTheFixWithItsNumbersWhenSettlingLeads) {
   const Design settled = design_with({{"divider.settle_time", "500ms"}}, testing::scenario_path("switched_logger_100k.ini"));
   const Chain c2(settled);
   EXPECT_FALSE(settling_summary(c2, run_budget(c2, o)).shown);
+}
+
+// points[].acquisition_error in every format the budget writes (docs/model.md
+// §14, Output). The multiplexed SAR input has no node capacitor and starts
+// C_s at mid-reference in the nominal reading (precharge = any), so at every
+// temperature the sample is the single exponential of RC charging (textbook),
+// V_s = V + (1.65 V − V)·e^(−t_acq/((R_th + R_sw)·C_s)), from the node voltage
+// V the JSON reports; with an ideal converter and the firmware's beta
+// conversion, the error is the beta curve (IEC 60539-1) read at V_s minus the
+// same curve read at V, R = R_f·V/(V_exc − V) for the sensor at the bottom.
+// The CSV column and the --detail text carry the same numbers (5 decimals),
+// and the JSON's settling summary names the window's largest of them.
+TEST(Acquisition, ErrorIsTheSingleExponentialConvertedInJsonCsvAndText) {
+  const std::string args = "budget " + testing::shell_quote(testing::scenario_path("mux_sar_high_impedance.ini")) +
+                           " --no-mc --adc.offset=0 --adc.gain_error=0 --adc.inl=0 --firmware.resolution=0";
+  const auto j = testing::cli_json(args);
+  const double r_f = 100e3, v_exc = 3.3, r_sw = 2e3, c_s = 15e-12, t_acq = 4e-6;
+  const auto r_of = [&](double v) { return r_f * v / (v_exc - v); };
+  const auto t_of = [&](double v) { return 1.0 / (1.0 / 298.15 + std::log(r_of(v) / 100e3) / 4250.0) - 273.15; };
+  double largest = 0.0, at = 0.0, largest_anywhere = 0.0;
+  for (const auto& p : j["points"]) {
+    const double v = p["v_node"].get<double>(), r_th = r_f * r_of(v) / (r_f + r_of(v));
+    const double v_s = v + (0.5 * v_exc - v) * std::exp(-t_acq / ((r_th + r_sw) * c_s));
+    const double e = p["acquisition_error"].get<double>();
+    EXPECT_NEAR(e, t_of(v_s) - t_of(v), kelvin_tolerance) << p["t"];
+    largest_anywhere = std::max(largest_anywhere, std::fabs(e));
+    if (p["in_window"].get<bool>() && std::fabs(e) > largest) {
+      largest = std::fabs(e);
+      at = p["t"].get<double>();
+    }
+  }
+  EXPECT_GT(largest_anywhere, 0.5);  // about 1.1 K at 0 °C: the check is not vacuous
+  EXPECT_EQ(j["settling"]["max_abs"].get<double>(), largest);
+  EXPECT_EQ(j["settling"]["at"].get<double>(), at);
+  EXPECT_TRUE(j["settling"]["leading"].get<bool>());
+
+  // CSV: the last column, acquisition_error_K, one row per point.
+  std::istringstream csv(testing::cli_output(args + " --format csv"));
+  std::string line;
+  std::getline(csv, line);
+  ASSERT_GE(line.size(), 20u);
+  EXPECT_EQ(line.substr(line.size() - 20), ",acquisition_error_K") << line;
+  std::size_t i = 0;
+  for (; std::getline(csv, line) && i < j["points"].size(); ++i)
+    EXPECT_NEAR(std::stod(line.substr(line.rfind(',') + 1)), j["points"][i]["acquisition_error"].get<double>(), printed_tolerance) << line;
+  EXPECT_EQ(i, j["points"].size());
+
+  // Text: the --detail table whose last column is acquisition_error_K.
+  std::istringstream text(testing::cli_output(args + " --detail"));
+  while (std::getline(text, line) && line.find("acquisition_error_K") == std::string::npos) {
+  }
+  ASSERT_FALSE(text.eof()) << "no acquisition_error_K column in the --detail text";
+  std::getline(text, line);  // the rule under the header
+  for (i = 0; std::getline(text, line) && !line.empty() && i < j["points"].size(); ++i)
+    EXPECT_NEAR(std::stod(line.substr(line.find_last_of(' ') + 1)), j["points"][i]["acquisition_error"].get<double>(), printed_tolerance)
+        << line;
+  EXPECT_EQ(i, j["points"].size());
 }
 
 // pick's --settles: on the multiplexed SAR input (4 µs, 15 pF, 2 kΩ switch)

@@ -91,12 +91,15 @@ TEST(BudgetWhatIf, TextSaysWhichChangeMeetsTheLimit) {
   const std::string line = out.substr(row, out.find('\n', row) - row);
   EXPECT_NE(line.find("only if removed"), std::string::npos) << line;
   const auto j = testing::cli_json("budget --no-mc --requirement.max_error=1.2");
+  int compared = 0;
   for (const auto& r : j["what_if"]["rows"]) {
     if (r["source"] != "beta") continue;
     EXPECT_GT(r["halved"]["wc_max_abs"].get<double>(), 1.2);
     EXPECT_LE(r["removed"]["wc_max_abs"].get<double>(), 1.2);
     EXPECT_EQ(r["within_limit"].get<std::string>(), "removed");
+    ++compared;
   }
+  EXPECT_EQ(compared, 1);  // the beta row, once
 }
 
 }  // namespace
@@ -130,6 +133,32 @@ TEST(BudgetWhatIf, TheReviewPageHasTheSectionWithEveryRowsSetting) {
   const auto j = testing::cli_json("budget --no-mc");
   for (const auto& r : j["what_if"]["rows"])
     EXPECT_NE(html.find(r["key"].get<std::string>(), section), std::string::npos) << r["key"];
+}
+
+}  // namespace
+}  // namespace thermargin
+
+namespace thermargin {
+namespace {
+
+// The sampling capacitor's start (precharge = any, docs/what-if.md): the row
+// names adc.precharge, and its "removed" figures are those of the same
+// design whose converter precharges C_s to mid-reference, 1.65 V on the
+// multiplexed SAR input's 3.3 V ratiometric reference — the design the
+// source's removal describes (docs/model.md §14: uniform over 0…V_ref).
+TEST(BudgetWhatIf, RemovingThePrechargeIsAStartAtMidReference) {
+  const std::string mux = "budget " + testing::shell_quote(testing::scenario_path("mux_sar_high_impedance.ini")) + " --no-mc";
+  const auto j = testing::cli_json(mux);
+  const nlohmann::json* row = nullptr;
+  for (const auto& r : j["what_if"]["rows"])
+    if (r["source"] == "adc_precharge") row = &r;
+  ASSERT_NE(row, nullptr) << "the precharge leads this design's window; it must be tried";
+  EXPECT_EQ((*row)["key"], "adc.precharge");
+  const auto mid = testing::cli_json(mux + " --adc.precharge=1.65V");
+  EXPECT_NEAR((*row)["removed"]["wc_max_abs"].get<double>(), mid["window"]["wc_max_abs"].get<double>(), 1e-9);
+  EXPECT_NEAR((*row)["removed"]["rss_max_abs"].get<double>(), mid["window"]["rss_max_abs"].get<double>(), 1e-9);
+  // Not vacuous: the precharge is most of this design's worst case.
+  EXPECT_GT(j["window"]["wc_max_abs"].get<double>() - mid["window"]["wc_max_abs"].get<double>(), 0.5);
 }
 
 }  // namespace

@@ -24,7 +24,11 @@
 // - Monte Carlo: the band ends, mean, standard deviation and yield within the
 //   intervals the script derives from both sample sizes (order-statistic and
 //   binomial bounds for quantiles and yield, the large-sample F test for the
-//   variance, z = 4.5).
+//   variance, z = 4.5); at end of life the yield and the window's largest
+//   |band end| (mc_max_abs), the program's only end-of-life band figure;
+// - one source at a time: every toleranced input alone (every bound of the
+//   list, the board range, the RTD class, an R–T table's spread, the
+//   precharge of a multiplexed ADC and each drift over life at end of life).
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
@@ -112,30 +116,66 @@ const std::vector<std::pair<std::string, std::string>>& per_source_bounds() {
   return keys;
 }
 
+// The drifts over life (docs/model.md §11), each alone on the base design: zero
+// at delivery, so each shows in the end-of-life design only.
+const std::vector<std::pair<std::string, std::string>>& per_source_drifts() {
+  static const std::vector<std::pair<std::string, std::string>> keys = {
+      {"sensor_drift", "--sensor.drift=1%"},
+      {"r_fixed_drift", "--divider.r_fixed_drift=1%"},
+      {"v_excitation_drift", "--supply.v_excitation_drift=1%"},
+      {"v_reference_drift", "--supply.v_reference_drift=1%"},
+      {"v_reference_hysteresis", "--supply.v_reference_hysteresis=1%"},
+      {"adc_offset_drift", "--adc.offset_drift=20"},
+      {"adc_gain_drift", "--adc.gain_drift=0.2%"},
+  };
+  return keys;
+}
+
+bool is_drift_run(const Run& r) {
+  for (const auto& [name, option] : per_source_drifts())
+    if (r.name == "one source: " + name) return true;
+  return false;
+}
+
 std::vector<Run> per_source_runs() {
-  const std::string base = testing::source_path("tests/data/second_opinion/per_source_base.ini");
+  const std::string dir = testing::source_path("tests/data/second_opinion/");
+  const std::string base = dir + "per_source_base.ini";
   std::vector<Run> out;
-  // Every other bound 0; the calibration only where its reference is the source (it would hide the others).
-  auto alone = [&](const std::string& name, const std::string& on, std::vector<std::string> extra) {
-    Run r{"one source: " + name, base, std::move(extra), false, true, per_source_units};
+  // Every bound of the list 0 but `on` ("" for none) and those `extra` sets
+  // (an option may be given once); the calibration only where its reference is
+  // the source (it would hide the others).
+  auto alone = [&](const std::string& name, const std::string& design, const std::string& on,
+                   std::vector<std::string> extra) {
+    Run r{"one source: " + name, design, extra, false, true, per_source_units};
+    auto set_by_extra = [&](const std::string& key) {
+      return std::any_of(extra.begin(), extra.end(),
+                         [&](const std::string& o) { return o.starts_with("--" + key + "="); });
+    };
     for (const auto& [n, key] : per_source_bounds())
-      if (key != on) r.overrides.push_back("--" + key + "=0");
+      if (key != on && !set_by_extra(key)) r.overrides.push_back("--" + key + "=0");
     if (on != "firmware.calibration_uncertainty") r.overrides.push_back("--firmware.calibration=none");
     r.overrides.push_back(mc_coverage);
     out.push_back(r);
   };
-  for (const auto& [name, key] : per_source_bounds()) alone(name, key, {});
+  for (const auto& [name, key] : per_source_bounds()) alone(name, base, key, {});
   // The board range acts through a tempco: the fixed resistor's, with its own spread off (uniform ±0).
-  alone("board temperature", "divider.r_fixed_tempco",
+  alone("board temperature", base, "divider.r_fixed_tempco",
         {"--conditions.board=0..80", "--divider.r_fixed_tempco_dist=uniform", "--divider.r_fixed_tempco=100ppm"});
   // The RTD's class factor: the Pt100 design with every other bound off.
-  Run rtd{"one source: rtd_class",
-          testing::source_path("tests/data/second_opinion/rtd_offset_beta.ini"),
-          {"--sensor.dissipation_tol=0", "--divider.r_fixed_tol=0", "--divider.r_fixed_tempco=0", "--adc.offset=0",
-           "--adc.gain_error=0", "--adc.inl=0", "--adc.leakage=0", "--adc.noise=0", "--firmware.calibration=none",
-           "--firmware.resolution=0", "--conditions.t_step=50", mc_coverage},
-          false, true, per_source_units};
-  out.push_back(rtd);
+  alone("rtd_class", dir + "rtd_offset_beta.ini", "",
+        {"--firmware.resolution=0", "--conditions.t_step=50"});
+  // The spread of an R–T table's tolerance column (docs/model.md §12), the
+  // board held at 25 degC.
+  alone("table_spread", dir + "table_limits_tol.ini", "", {"--conditions.board=25", "--conditions.t_step=50"});
+  // Another channel's voltage left on the sampling capacitor (precharge = any,
+  // §14), drawn per reading; no output rounding.
+  alone("adc_precharge", dir + "sampled_node_switched_any.ini", "",
+        {"--firmware.resolution=0", "--conditions.t_step=35"});
+  // Each drift at end of life. 1 LSB of noise gives the delivery units a
+  // spread to compare: with none, every unit reads alike, and the statistics
+  // of a constant would be compared at the resolution of the program's
+  // fixed-point sums (about 1e-5 K on the standard deviation).
+  for (const auto& [name, option] : per_source_drifts()) alone(name, base, "", {option, "--adc.noise=1"});
   return out;
 }
 
@@ -346,9 +386,13 @@ void compare_monte_carlo(const Run& run, const json& got, const json& want, Coun
     for (const char* f : {"mc_low", "mc_high", "mc_mean", "mc_stddev"}) expect_within(pts[i], w[f], f, n.mc);
   }
   expect_within(got["window"], want["yield_interval"], "yield", n.mc);
-  // The end-of-life design's yield (docs/model.md §11), where drifts are set.
-  if (want.contains("end_of_life_yield_interval"))
+  // The end-of-life design's yield and largest |band end| over the window
+  // (docs/model.md §11: the program shows no end-of-life band per temperature),
+  // where drifts are set.
+  if (want.contains("end_of_life_yield_interval")) {
     expect_within(got["window"]["end_of_life"], want["end_of_life_yield_interval"], "yield", n.end_of_life);
+    expect_within(got["window"]["end_of_life"], want["end_of_life_mc_max_abs_interval"], "mc_max_abs", n.end_of_life);
+  }
 }
 
 TEST(ChainSecondOpinion, NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGeneratedDesign) {
@@ -399,9 +443,10 @@ TEST(ChainSecondOpinion, MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGener
   EXPECT_EQ(designs - compared_designs, 0);  // none is left out by points (expected_not_covered)
   // Four statistics a point, the yield a design, of every design the model covers.
   EXPECT_EQ(n.mc, 4 * (points - n.uncovered_points) + compared_designs);
-  EXPECT_EQ(n.end_of_life, 2);  // the end-of-life yield of the two designs with drifts
-  std::printf("Monte Carlo: %d statistics and %d end-of-life yields compared; %d points of %d designs NOT COVERED (listed above)\n", n.mc,
-              n.end_of_life, n.uncovered_points, designs - compared_designs);
+  EXPECT_EQ(n.end_of_life, 2 * 2);  // the end-of-life yield and mc_max_abs of the two designs with drifts
+  std::printf("Monte Carlo: %d statistics and %d end-of-life yields and largest band ends compared; %d points of %d "
+              "designs NOT COVERED (listed above)\n",
+              n.mc, n.end_of_life, n.uncovered_points, designs - compared_designs);
 }
 
 TEST(ChainSecondOpinion, MonteCarloOneSourceAtATimeSeesEverySourcesSpread) {
@@ -417,18 +462,27 @@ TEST(ChainSecondOpinion, MonteCarloOneSourceAtATimeSeesEverySourcesSpread) {
     seen.insert(runs[k].name);
     // The source is seen: its spread is at least twice the quantiser's alone
     // (1/√12 LSB over the slope, from the model), so that a missing term
-    // moves the spread far outside the ±2 % the comparison allows.
+    // moves the spread far outside the ±2 % the comparison allows. A drift
+    // is seen at end of life, where its spread is also at least twice the
+    // delivery spread (the noise's) it adds to.
+    const bool drift = is_drift_run(runs[k]);
     const auto& mc = answers[k]["mc"];
+    const auto& seen_in = drift ? answers[k]["end_of_life_mc"] : mc;
+    ASSERT_EQ(seen_in.size(), mc.size()) << runs[k].name;
     for (std::size_t i = 0; i < mc.size(); ++i) {
-      EXPECT_GT(mc[i]["mc_stddev_model"].get<double>(), 2.0 * answers[k]["quantisation_sd"][i].get<double>())
+      double floor = answers[k]["quantisation_sd"][i].get<double>();
+      if (drift) floor = std::max(floor, mc[i]["mc_stddev_model"].get<double>());
+      EXPECT_GT(seen_in[i]["mc_stddev_model"].get<double>(), 2.0 * floor)
           << runs[k].name << " at " << got["points"][i]["t"];
       ++visible;
     }
   }
   EXPECT_EQ(visible, points);
-  // Every source of the list, the board range and the RTD class.
-  EXPECT_EQ(seen.size(), per_source_bounds().size() + 2);
+  // Every source of the list, the board range, the RTD class, the table's
+  // spread, the precharge and each drift.
+  EXPECT_EQ(seen.size(), per_source_bounds().size() + 4 + per_source_drifts().size());
   EXPECT_EQ(n.mc, 4 * points + static_cast<int>(seen.size()));
+  EXPECT_EQ(n.end_of_life, 2 * static_cast<int>(per_source_drifts().size()));  // yield and mc_max_abs of each drift
 }
 
 TEST(ChainSecondOpinion, LookupTableIsTheModelsOnEveryDesignThatUsesOne) {

@@ -3,13 +3,18 @@
 // the board temperature, the RTD classes' validity ranges and the
 // calibration medium's own dissipation.
 #include <cmath>
+#include <sstream>
+#include <string>
 
 #include <gtest/gtest.h>
 
+#include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
+#include "thermargin/engines/budget.hpp"
 #include "thermargin/engines/linear_budget.hpp"
+#include "thermargin/report/budget_output.hpp"
 
 namespace thermargin {
 namespace {
@@ -129,6 +134,66 @@ TEST(RtdClassRange, ADesignBeyondTheRangeIsMarkedNotRefused) {
   const Design inside = design_with({{"sensor.model", "rtd"}, {"sensor.rtd_class", "AA"}, {"sensor.dissipation", "0"},
                                      {"sensor.rtd_construction", "wire-wound"}});
   EXPECT_EQ(rtd_class_range_note(inside), "");
+}
+
+TEST(RtdClassRange, BudgetCsvMarksEachTemperatureBeyondTheRange) {
+  // Class AA film, rated from 0 degC (the ranges above, from memory): the
+  // CSV's rtd_class_extrapolated is 1 at -20 and -10 degC, 0 from 0 degC on;
+  // a design inside its range has no such column.
+  const auto csv = [](const testing::Overrides& o) {
+    const Design d = design_with(o);
+    const Chain chain(d);
+    return budget_csv(run_budget(chain, {.monte_carlo = false, .corners = CornerMethod::enumerate, .progress = {}}),
+                      {.chain = &chain});
+  };
+  const testing::Overrides aa{{"sensor.model", "rtd"}, {"sensor.rtd_class", "AA"}, {"sensor.dissipation", "0"},
+                              {"conditions.t_min", "-20"}, {"conditions.t_max", "20"}, {"conditions.t_step", "10"},
+                              {"requirement.window_min", "-20"}, {"requirement.window_max", "20"}};
+  std::istringstream in(csv(aa));
+  std::string line;
+  std::getline(in, line);
+  ASSERT_TRUE(line.ends_with(",rtd_class_extrapolated")) << line;
+  for (const char* want : {"-20.000,", "-10.000,", "0.000,", "10.000,", "20.000,"}) {
+    ASSERT_TRUE(std::getline(in, line));
+    EXPECT_TRUE(line.starts_with(want)) << line;
+    EXPECT_EQ(line.back(), line[0] == '-' ? '1' : '0') << line;
+  }
+  EXPECT_EQ(csv(testing::with_extra(aa, {{"sensor.rtd_construction", "wire-wound"}})).find("rtd_class_extrapolated"),
+            std::string::npos);
+}
+
+TEST(RtdClassRange, ResponsePickAndGradesMarkTheExtrapolatedClass) {
+  // The shipped freezer monitor reads a class A film element down to
+  // -80 degC, rated from -30 degC (the ranges above, from memory): the
+  // response's text, JSON and page, the pick page and the grades CSV (one
+  // column, 1 for each combination beyond its class's range) all say so.
+  const std::string file = testing::shell_quote(testing::scenario_path("freezer_pt100_film.ini"));
+  const std::string note = "class A (film) is rated over -30..300 degC (IEC 60751:2008); beyond it, at -80 to -30 degC";
+  const testing::ScratchDir dir;
+  const std::string page = (dir.path / "r.html").string(), pick_page = (dir.path / "p.html").string();
+  const testing::CliOutcome text = testing::run_cli("response " + file + " --report " + testing::shell_quote(page));
+  ASSERT_EQ(text.status, 0) << text.err;
+  EXPECT_NE(text.out.find("RTD class: " + note), std::string::npos);
+  EXPECT_NE(testing::slurp(page).find("RTD class: " + note), std::string::npos);
+  EXPECT_NE(testing::cli_json("response " + file).value("rtd_class_note", "").find(note), std::string::npos);
+  ASSERT_EQ(testing::run_cli("pick " + file + " --values 1k --report " + testing::shell_quote(pick_page)).status, 0);
+  EXPECT_NE(testing::slurp(pick_page).find("RTD class: " + note), std::string::npos);
+  const std::string catalogue = dir.write("c.csv",
+                                          "slot,grade,unit_cost,settings\n"
+                                          "sensor,A film,3,sensor.rtd_class=A;sensor.rtd_construction=film\n"
+                                          "sensor,A wire,5,sensor.rtd_class=A;sensor.rtd_construction=wire-wound\n");
+  const testing::CliOutcome csv =
+      testing::run_cli("grades " + file + " --units 200 --format csv --catalogue " + testing::shell_quote(catalogue));
+  ASSERT_EQ(csv.status, 0) << csv.err;
+  std::istringstream in(csv.out);
+  std::string line;
+  std::getline(in, line);  // the caution
+  std::getline(in, line);
+  EXPECT_TRUE(line.ends_with(",verdict,rtd_class_extrapolated")) << line;
+  std::getline(in, line);
+  EXPECT_TRUE(line.starts_with("A film,") && line.ends_with(",1")) << line;
+  std::getline(in, line);
+  EXPECT_TRUE(line.starts_with("A wire,") && line.ends_with(",0")) << line;  // wire-wound A: rated from -100 degC
 }
 
 // The element's temperature in a medium at t with dissipation constant δ,

@@ -236,7 +236,8 @@ TEST(FitCli, TextNamesThePointsOfThePointMethodsAndTheChiSquaredOfWeightedFits) 
 }
 
 TEST(FitCli, TextMarksResidualsWhereTheModelHasNoTemperature) {
-  // NTC curves fitted to an IEC 60751 Pt100 table: the least-squares beta has none at the hot end.
+  // NTC curves fitted to a Pt100 curve computed with the IEC 60751 equation: the least-squares beta has
+  // none at the hot end.
   const CliOutcome r = run_cli("fit " + shell_quote(fit_data_file("pt100_iec60751.csv")));
   ASSERT_EQ(r.status, 0) << r.err;
   // The 850 degC point in the NTC fits' residuals (the RTD fit's come first, for rising data).

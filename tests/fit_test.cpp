@@ -579,7 +579,7 @@ TEST(FitSnippet, CarriesTheCoefficientsToTenDigits) {
 }
 
 TEST(FitSnippet, SaysWhenTheFitMissesTheLimit) {
-  // A Pt100 table (IEC 60751) is no NTC: the closest fit's lines carry the warning.
+  // A Pt100 (values computed with the IEC 60751 equation) is no NTC: the closest fit's lines carry the warning.
   const FitResult pt = fit_file("pt100_iec60751.csv");
   ASSERT_FALSE(pt.recommendation.found);
   EXPECT_NE(scenario_snippet(pt, pt.recommendation.fit).find("# This fit misses the limit of 0.1 K"), std::string::npos);

@@ -5,15 +5,21 @@
 // not from the program's other engines.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
+#include <sstream>
 #include <string>
+#include <vector>
 
+#include "cli_run.hpp"
 #include "engine_fixture.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/drift.hpp"
 #include "thermargin/core/error.hpp"
 #include "thermargin/engines/budget.hpp"
+#include "thermargin/engines/worst_case.hpp"
 #include "thermargin/input/life.hpp"
+#include "thermargin/report/budget_output.hpp"
 
 namespace thermargin {
 namespace {
@@ -82,6 +88,63 @@ TEST(Life, DriftAloneMatchesTheDividerEquationByHand) {
   }
 }
 
+std::vector<std::vector<std::string>> csv_rows(const std::string& text) {
+  std::vector<std::vector<std::string>> rows;
+  std::istringstream in(text);
+  for (std::string line; std::getline(in, line);) {
+    rows.emplace_back();
+    std::istringstream cells(line);
+    for (std::string cell; std::getline(cells, cell, ',');) rows.back().push_back(cell);
+    if (!line.empty() && line.back() == ',') rows.back().emplace_back();  // a last empty cell
+  }
+  return rows;
+}
+
+std::size_t column(const std::vector<std::string>& head, const std::string& name) {
+  for (std::size_t i = 0; i < head.size(); ++i)
+    if (head[i] == name) return i;
+  ADD_FAILURE() << "no column " << name;
+  return 0;
+}
+
+TEST(Life, CsvCarriesTheEndOfLifeBandsBesideTheDeliveryOnes) {
+  // The same design as above: the CSV's eol_wc_* columns at each
+  // temperature are the drift's effect through the divider equation by hand
+  // (to the CSV's 5 decimals), beside the delivery columns; a design without
+  // drift has no such column.
+  const testing::Overrides o = ideal({{"sensor.drift", "2%"}, {"divider.r_fixed_drift", "1%"},
+                                      {"conditions.t_min", "0"}, {"conditions.t_max", "60"},
+                                      {"conditions.t_step", "60"}, {"requirement.window_min", "0"},
+                                      {"requirement.window_max", "60"}});
+  const Design d = design_with(o);
+  const Chain chain(d);
+  const Budget b = run_budget(chain, no_mc());
+  const auto rows = csv_rows(budget_csv(b, {.chain = &chain}));
+  ASSERT_EQ(rows.size(), 3u);
+  const auto& head = rows[0];
+  const std::size_t t = column(head, "t_degC"), low = column(head, "eol_wc_low_K"), high = column(head, "eol_wc_high_K");
+  const std::size_t wc_high = column(head, "wc_high_K");
+  for (std::size_t r = 1; r < rows.size(); ++r) {
+    ASSERT_EQ(rows[r].size(), head.size());
+    const double tc = std::stod(rows[r][t]);
+    double lo = 0.0, hi = 0.0;
+    for (double s : {-0.02, 0.02})
+      for (double f : {-0.01, 0.01}) {
+        lo = std::min(lo, reading_by_hand(tc, s, f) - tc);
+        hi = std::max(hi, reading_by_hand(tc, s, f) - tc);
+      }
+    EXPECT_NEAR(std::stod(rows[r][low]), lo, 5e-6 + hand_tolerance) << tc;
+    EXPECT_NEAR(std::stod(rows[r][high]), hi, 5e-6 + hand_tolerance) << tc;
+    EXPECT_LT(std::fabs(std::stod(rows[r][wc_high])), 1e-3) << tc;  // at delivery: the ideal design's few microkelvin
+    EXPECT_TRUE(rows[r][column(head, "eol_rss_high_K")].size() > 0) << tc;
+    EXPECT_TRUE(rows[r][column(head, "eol_mc_high_K")].empty()) << tc;  // no Monte Carlo run
+  }
+  const Design plain = design_with(ideal({}));
+  const Chain plain_chain(plain);
+  const std::string text = budget_csv(run_budget(plain_chain, no_mc()), {.chain = &plain_chain});
+  EXPECT_EQ(text.find("eol_"), std::string::npos);
+}
+
 TEST(Life, VerdictFollowsRequirementAt) {
   // ±2 % sensor drift against a 0.3 K limit: about 0.5 K at end of life, a
   // few millikelvin at delivery (the ideal design).
@@ -97,6 +160,39 @@ TEST(Life, VerdictFollowsRequirementAt) {
   EXPECT_EQ(delivery.verdict.at, Requirement::At::delivery);
   EXPECT_TRUE(delivery.verdict.pass);
   EXPECT_FALSE(delivery.end_of_life->budget.verdict.pass);
+}
+
+TEST(Life, GradesAndPickRankOnTheVerdictsBasisAndSayIt) {
+  // The shipped solar collector probe (its verdict changes from delivery to
+  // end of life) with its catalogue, whose grades carry their drift: grades
+  // scores the scenario's own parts with the worst case of the end-of-life
+  // design (the worst-case engine on the drift inputs made active), not the
+  // delivery one; the text of grades and pick says which basis it ranks on.
+  const std::string path = testing::scenario_path("solar_collector_life.ini");
+  const std::string file = testing::shell_quote(path);
+  const std::string cat = " --units 100 --catalogue " +
+                          testing::shell_quote(testing::scenario_path("solar_collector_life_catalogue.csv"));
+  const Design d = design_with({}, path);
+  const auto window_wc = [](const Design& design) {
+    double m = 0.0;
+    const auto window = window_temperatures(design.requirement, design.conditions.temperatures());
+    for (const auto& p : worst_case(Chain(design), window, {.method = CornerMethod::enumerate}).points)
+      m = std::max(m, std::max(std::fabs(p.low), std::fabs(p.high)));
+    return m;
+  };
+  const double eol = window_wc(at_end_of_life(d)), delivery = window_wc(d);
+  ASSERT_GT(eol, delivery + 0.3);  // about 1.54 K against 0.86 K
+  double own_parts = 0.0;
+  const nlohmann::json grades = testing::cli_json("grades " + file + cat);
+  for (const auto& r : grades["rows"])
+    if (r["choice"]["thermistor"] == "epoxy 0.5%" && r["choice"]["resistor"] == "thin film 0.1%")
+      own_parts = r["wc_max_abs"].get<double>();
+  EXPECT_NEAR(own_parts, eol, 1e-9);
+  EXPECT_NE(testing::run_cli("grades " + file + cat).out.find("basis, at end of life: requirement.at"), std::string::npos);
+  EXPECT_NE(testing::run_cli("pick " + file + " --values 3k").out.find("over the window at end of life"),
+            std::string::npos);
+  EXPECT_EQ(testing::run_cli("pick " + file + " --values 3k --requirement.at=delivery").out.find("at end of life"),
+            std::string::npos);
 }
 
 TEST(Life, DriftFoldsIntoItsPartAndOnlyOnce) {

@@ -1,12 +1,16 @@
 // Tests of `thermargin response` and budget's dynamic line: the ramp error
 // and the settling time of every filter against a SciPy simulation
 // (scipy.signal.lsim for the sensor, scipy.signal.lfilter for the filter:
-// tests/reference/response_check.py), the JSON fields, budget's verdict with
+// tests/reference/response_check.py), the JSON fields and the CSV and text
+// that carry them, budget's verdict with
 // and without requirement.include_dynamic, the report's pictures and --help.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
+#include <sstream>
 #include <string>
+#include <vector>
 
 #include <nlohmann/json.hpp>
 
@@ -22,6 +26,7 @@ using testing::shell_quote;
 
 constexpr double kRampTolerance = 1e-9;    // K: both exact; the simulation's float rounding over ~1e4 steps
 constexpr double kNoiseTolerance = 1e-12;  // sum of squares of an impulse response against the closed form
+constexpr double kCsvDigits = 1e-9;        // relative: the CSV writes 10 significant digits
 
 std::string charger() { return shell_quote(testing::scenario_path("charger_stop.ini")); }
 
@@ -99,6 +104,63 @@ TEST(ResponseCli, JsonCarriesTheRowsAndTheRecommendation) {
       if (r["meets"].get<bool>()) EXPECT_LE(r["margin"].get<double>(), j["recommendation"]["margin"].get<double>() + 1e-12);
   }
   EXPECT_EQ(j["caution"], std::string(caution));
+}
+
+// The text and the CSV carry the JSON's rows (docs/response.md, Output): the
+// CSV one line per row, every column the JSON's value to its 10 significant
+// digits (kCsvDigits), the caution on a first '#' line; the text the recommendation first,
+// one table row per filter marked '*' (the scenario's) and '>' (the
+// recommendation), the caution last.
+TEST(ResponseCli, CsvAndTextCarryEveryRowOfTheJson) {
+  const nlohmann::json j = cli_json("response " + charger());
+  const auto& rows = j["rows"];
+  std::istringstream csv(testing::cli_output("response " + charger() + " --format csv"));
+  std::string line;
+  std::getline(csv, line);
+  EXPECT_EQ(line, "# " + std::string(caution));
+  std::getline(csv, line);
+  EXPECT_EQ(line,
+            "filter,length,alpha,chosen,recommended,delay_s,lag_s,ramp_error_K,settling_s,settling_readings,noise_factor,"
+            "noise_band_K,static_max_abs_K,total_max_abs_K,total_at_degC,margin_K,meets");
+  const auto number = [](const std::string& cell, double json) {
+    EXPECT_NEAR(std::stod(cell), json, kCsvDigits * std::max(1.0, std::fabs(json))) << cell;
+  };
+  std::size_t i = 0;
+  for (; std::getline(csv, line) && i < rows.size(); ++i) {
+    std::vector<std::string> c;
+    std::istringstream cells(line);
+    for (std::string cell; std::getline(cells, cell, ',');) c.push_back(cell);
+    ASSERT_EQ(c.size(), 17u) << line;
+    const auto& r = rows[i];
+    const bool recommended = !j["recommendation"].is_null() && j["recommendation"]["label"] == r["label"];
+    EXPECT_EQ(c[0], r["filter"].get<std::string>());
+    EXPECT_EQ(c[1], r.contains("length") ? std::to_string(r["length"].get<int>()) : "");
+    if (r.contains("alpha")) number(c[2], r["alpha"].get<double>());
+    EXPECT_EQ(c[3], r["chosen"].get<bool>() ? "1" : "0");
+    EXPECT_EQ(c[4], recommended ? "1" : "0");
+    number(c[5], r["delay_s"].get<double>());
+    number(c[7], r["ramp_error"].get<double>());
+    number(c[8], r["settling_s"].get<double>());
+    EXPECT_EQ(std::stoll(c[9]), r["settling_readings"].get<long long>());
+    number(c[11], r["noise_band"].get<double>());
+    number(c[13], r["total_max_abs"].get<double>());
+    number(c[15], r["margin"].get<double>());
+    EXPECT_EQ(c[16], r["meets"].get<bool>() ? "1" : "0");
+  }
+  EXPECT_EQ(i, rows.size());
+  EXPECT_FALSE(std::getline(csv, line)) << line;
+
+  const std::string text = testing::cli_output("response " + charger());
+  ASSERT_FALSE(j["recommendation"].is_null());
+  const std::string label = j["recommendation"]["label"];
+  EXPECT_EQ(text.find("RECOMMENDATION: " + label), text.find("RECOMMENDATION: "));
+  EXPECT_NE(text.find("RECOMMENDATION: " + label), std::string::npos) << text;
+  for (const auto& r : rows) {
+    const std::string mark = r["chosen"].get<bool>() ? "*" : r["label"] == label ? ">" : "";
+    EXPECT_NE(text.find("\n" + mark + r["label"].get<std::string>() + "  "), std::string::npos) << r["label"];
+  }
+  EXPECT_NE(text.find(std::string(caution).substr(0, 40)), std::string::npos);
+  EXPECT_GT(text.find(std::string(caution).substr(0, 40)), text.find("RECOMMENDATION: "));
 }
 
 TEST(ResponseCli, BudgetAddsTheDynamicErrorOnlyWhenTheRequirementSaysSo) {

@@ -183,9 +183,11 @@ TEST(ResponseAnalysis, FilteredNoiseShiftMatchesTheWorstCaseRunWithTheNoiseScale
   // engine itself, against the budget's band with the noise half-width scaled.
   const Design d = design_with({{"adc.noise", "3"}});
   const ResponseAnalysis a = analyse_response(Chain(d), settings(0.0, Filter{}));
+  int compared = 0;
   for (const ResponseRow& r : a.rows) {
     if (r.filter.kind != FilterKind::moving_average) continue;
     SCOPED_TRACE(describe(r.filter));
+    ++compared;
     const Design scaled = design_with({{"adc.noise", std::to_string(3.0 * r.noise_factor)}});
     std::vector<double> window;
     for (double t : scaled.conditions.temperatures())
@@ -196,6 +198,7 @@ TEST(ResponseAnalysis, FilteredNoiseShiftMatchesTheWorstCaseRunWithTheNoiseScale
     EXPECT_NEAR(r.static_max_abs, m, kFirstOrder * m);
     EXPECT_GE(r.static_max_abs, m - 1e-9);  // here on the safe side: the worst corner reads the noise larger
   }
+  EXPECT_GT(compared, 0);  // the moving averages of the candidate filters
 }
 
 TEST(ResponseAnalysis, RecommendsTheMostMarginOrSaysWhatWouldMeet) {

@@ -395,7 +395,8 @@ TEST_F(ScenarioFile, AKeyTheDesignMakesIrrelevantIsANoteNotARefusal) {
       {":6: supply.r_drive_tol = 20%", "supply.r_drive"}, {":8: divider.r_parallel_tol = 1%", "no parallel resistor"},
       {":5: supply.v_reference_drift = 0.1%", "ratiometric"}};
   for (const auto& [where, why] : expected) {
-    const auto n = std::find_if(d.notes.begin(), d.notes.end(), [&](const std::string& x) { return x.find(where) != std::string::npos; });
+    const std::string& key = where;  // clang 14 cannot capture a structured binding in a lambda
+    const auto n = std::find_if(d.notes.begin(), d.notes.end(), [&](const std::string& x) { return x.find(key) != std::string::npos; });
     ASSERT_NE(n, d.notes.end()) << where;
     EXPECT_NE(n->find(why), std::string::npos) << *n;
     EXPECT_NE(n->find("is not used"), std::string::npos) << *n;

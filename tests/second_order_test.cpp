@@ -164,6 +164,24 @@ TEST(SecondOrderChain, SharesWithThePairRowsAddToOne) {
   }
 }
 
+TEST(SecondOrderChain, SummaryNamesTheLeadersByShareAndByReachAndSaysWhenTheyDiffer) {
+  // Around 25 degC (a 20..30 degC window): R25 ±1 % (normal, k = 3) moves the reading by T²/B·1 % =
+  // 0.225 K at its bound, u = 0.075 K; the excitation tempco over the board
+  // range reaches 0.304 K (by hand above) with u = 0.058 K. R25 leads by share
+  // of the variance, the tempco (alone and as the pair) by own reach.
+  const Design d = testing::design_with(excitation_drift(
+      {{"sensor.r25_tol", "1%"}, {"conditions.t_min", "20"}, {"conditions.t_max", "30"}, {"conditions.t_step", "5"},
+       {"requirement.window_min", "20"}, {"requirement.window_max", "30"}}));
+  const Budget b = run_budget(Chain(d), {.monte_carlo = false, .corners = CornerMethod::enumerate, .progress = {}});
+  ASSERT_FALSE(b.leaders_by_share.empty());
+  ASSERT_FALSE(b.leaders_by_reach.empty());
+  EXPECT_EQ(b.leaders_by_share.front(), "r25");
+  EXPECT_TRUE(b.leaders_by_reach.front() == "v_excitation_tempco" ||
+              b.leaders_by_reach.front() == "v_excitation_tempco \u00d7 board_temperature")
+      << b.leaders_by_reach.front();
+  EXPECT_TRUE(b.leaders_differ);
+}
+
 TEST(SecondOrderChain, LinearBandMeetsMonteCarloWhereTheTempcoDominates) {
   // The second-order u_c against the Monte Carlo standard deviation of the
   // same design (JCGM 101 §8 compares the two budgets): within the Monte

@@ -314,6 +314,22 @@ def acceptance(e, n1, coverage, worst=None, limit=None):
     return out
 
 
+def max_abs_acceptance(accepted, inside):
+    """The interval the program's window.mc_max_abs (the largest |mc_low| or |mc_high| over the window's
+    readable temperatures, docs/engines.md) must fall in, from each band end's own interval: |x| of an x in
+    [a, b] lies in [0 or min(|a|, |b|), max(|a|, |b|)], and a largest of values each in an interval lies
+    between the largest lower and the largest upper end."""
+    lo, hi = 0.0, 0.0
+    for a, keep in zip(accepted, inside):
+        if not keep or "mc_low" not in a:
+            continue
+        for end in ("mc_low", "mc_high"):
+            x, y = a[end]
+            lo = max(lo, 0.0 if x <= 0.0 <= y else min(abs(x), abs(y)))
+            hi = max(hi, abs(x), abs(y))
+    return lo, hi
+
+
 def yield_acceptance(worst, limit, n1):
     n2 = worst.size
     y = float(np.mean(worst <= limit))

@@ -23,7 +23,8 @@ import sys
 
 import numpy as np
 
-from chain_engines import acceptance, linear_budget, monte_carlo, nominal, worst_case, yield_acceptance
+from chain_engines import (acceptance, linear_budget, max_abs_acceptance, monte_carlo, nominal, worst_case,
+                           yield_acceptance)
 from chain_model import Design, deviations, front_end
 
 
@@ -144,8 +145,12 @@ def run(spec, n1, n2, seed):
         out["yield"], out["yield_interval"] = yield_acceptance(worst, d.limit, n1)
         if any(d.s.num(k) > 0 for k in DRIFTS):  # the end-of-life design's own Monte Carlo (§11)
             e = Design(spec.get("path"), spec.get("overrides", []), end_of_life=True)
-            out["end_of_life_yield"], out["end_of_life_yield_interval"] = \
-                yield_acceptance(monte_carlo(e, n2, seed + 1)[1], e.limit, n1)
+            errors, worst = monte_carlo(e, n2, seed + 1)
+            out["end_of_life_yield"], out["end_of_life_yield_interval"] = yield_acceptance(worst, e.limit, n1)
+            # Its band per temperature (the program shows only the window's largest |band end|, mc_max_abs).
+            out["end_of_life_mc"] = [acceptance(x, n1, e.coverage) for x in errors]
+            inside = (e.t >= e.window[0] - 1e-9) & (e.t <= e.window[1] + 1e-9)
+            out["end_of_life_mc_max_abs_interval"] = max_abs_acceptance(out["end_of_life_mc"], inside)
         # The spread the quantiser alone gives a reading, 1/√12 LSB over the nominal slope (IEEE Std 1241),
         # against which a source's own spread must stand out to be seen.
         none = deviations(d, {})

@@ -11,9 +11,9 @@ Design at_end_of_life(const Design& d) {
   return out;
 }
 
-Design design_for_verdict(const Design& d) {
-  return has_drift(d) && d.requirement.at == Requirement::At::end_of_life ? at_end_of_life(d) : d;
-}
+bool judged_at_end_of_life(const Design& d) { return has_drift(d) && d.requirement.at == Requirement::At::end_of_life; }
+
+Design design_for_verdict(const Design& d) { return judged_at_end_of_life(d) ? at_end_of_life(d) : d; }
 
 std::string_view to_string(Requirement::At at) {
   return at == Requirement::At::delivery ? "delivery" : "end-of-life";

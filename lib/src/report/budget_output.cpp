@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdio>
 #include <iostream>
+#include <iterator>
 #include <sstream>
 
 #include "thermargin/report/budget_output.hpp"
@@ -178,7 +179,20 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
   return j;
 }
 
-std::string to_csv(const Budget& b) {
+// The end-of-life bands at one temperature (docs/model.md §11): worst case,
+// linear and Monte Carlo, each low and high; empty where an engine has none.
+constexpr const char* eol_columns[] = {"eol_wc_low_K",  "eol_wc_high_K", "eol_rss_low_K",
+                                       "eol_rss_high_K", "eol_mc_low_K",  "eol_mc_high_K"};
+std::string eol_cells(const BudgetPoint& p) {
+  const auto cell = [](bool has, double v) { return has ? fixed(v, 5) : std::string(); };
+  const bool ok = point_ok(p), lin = ok && p.linear.status == Status::ok, mc = ok && p.mc && p.mc->valid > 0;
+  return cell(ok && p.wc.any_ok, p.wc.low) + "," + cell(ok && p.wc.any_ok, p.wc.high) + "," + cell(lin, p.linear.low) +
+         "," + cell(lin, p.linear.high) + "," + cell(mc, mc ? p.mc->low : 0.0) + "," + cell(mc, mc ? p.mc->high : 0.0);
+}
+
+// d: the design, for the RTD class's rated range (a column only when some
+// temperature of the design lies beyond it); null leaves that column out.
+std::string to_csv(const Budget& b, const Design* d) {
   std::ostringstream out;
   std::vector<std::string> head{"t_degC", "in_window", "status", "v_node_V", "code_LSB", "sensitivity_LSB_per_K",
                                 "sensitivity_mV_per_K", "lsb_K", "self_heating_K", "nominal_K", "wc_low_K", "wc_high_K",
@@ -190,9 +204,16 @@ std::string to_csv(const Budget& b) {
     head.push_back("share_" + c.name);
     head.push_back("half_width_" + c.name + "_K");
   }
+  // Beyond the RTD class's rated range (docs/model.md §1), and the window at
+  // end of life beside the delivery one (§11): columns only for such designs.
+  const bool rtd_mark = d && !rtd_class_range_note(*d).empty();
+  if (rtd_mark) head.push_back("rtd_class_extrapolated");
+  const Budget* eol = b.end_of_life ? &b.end_of_life->budget : nullptr;
+  if (eol) head.insert(head.end(), std::begin(eol_columns), std::end(eol_columns));
   for (std::size_t i = 0; i < head.size(); ++i) out << (i ? "," : "") << head[i];
   out << "\n";
-  for (const auto& p : b.points) {
+  for (std::size_t i = 0; i < b.points.size(); ++i) {
+    const BudgetPoint& p = b.points[i];
     out << fixed(p.t, 3) << "," << (p.in_window ? 1 : 0) << ",";
     if (!point_ok(p)) {
       out << to_string(p.nominal.status) << std::string(head.size() - 3, ',') << "\n";
@@ -212,6 +233,8 @@ std::string to_csv(const Budget& b) {
       const Contributor* c = contributor_at(p, w.name);
       out << "," << (c ? fixed(c->share, 6) : "") << "," << (c ? fixed(c->half_width, 6) : "");
     }
+    if (rtd_mark) out << "," << (rtd_class_rated_at(*d, p.t) ? 0 : 1);
+    if (eol) out << "," << (i < eol->points.size() ? eol_cells(eol->points[i]) : std::string(5, ','));
     out << "\n";
   }
   return out.str();
@@ -244,7 +267,7 @@ void add_settling(const Chain& chain, const Budget& b, Out f, std::string& text,
 }  // namespace
 
 std::string budget_csv(const Budget& budget, const BudgetExtras& extras) {
-  std::string text = to_csv(budget);
+  std::string text = to_csv(budget, extras.chain ? &extras.chain->design() : nullptr);
   if (extras.chain) add_settling(*extras.chain, budget, Out::csv, text, nullptr);
   return text;
 }

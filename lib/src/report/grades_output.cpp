@@ -1,6 +1,7 @@
 // The grades' text, CSV and JSON (grades_output.hpp): every combination of
 // part grades, the cost/accuracy front and the recommendation.
 #include <nlohmann/json.hpp>
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <sstream>
@@ -101,7 +102,12 @@ std::string to_csv(const GradesResult& g) {
   out << "# " << caution << "\n";
   for (const auto& s : g.slots) out << csv_cell(s) << ",";
   out << "r_fixed_ohm,unit_cost,setup_per_unit,cost_per_good_unit,wc_max_abs_K,rss_max_abs_K,mc_max_abs_K,yield,"
-         "yield_low,yield_high,failures_per_million,mc_units,mc_run,error_K,on_front,meets_requirement,recommended,verdict\n";
+         "yield_low,yield_high,failures_per_million,mc_units,mc_run,error_K,on_front,meets_requirement,recommended,verdict";
+  // A combination that uses its RTD class beyond the rated range (docs/model.md
+  // §1): a last column, only when some combination does.
+  const bool rtd_mark =
+      std::any_of(g.rows.begin(), g.rows.end(), [](const GradeRow& r) { return !r.rtd_class_note.empty(); });
+  out << (rtd_mark ? ",rtd_class_extrapolated\n" : "\n");
   for (std::size_t i = 0; i < g.rows.size(); ++i) {
     const GradeRow& r = g.rows[i];
     for (std::size_t k = 0; k < g.slots.size(); ++k) out << csv_cell(g.grades[k][static_cast<std::size_t>(r.choice[k])]) << ",";
@@ -114,7 +120,9 @@ std::string to_csv(const GradesResult& g) {
     else
       out << ",,,,,,";
     out << (r.mc_run ? 1 : 0) << "," << cell(r.error, 5) << "," << (r.on_front ? 1 : 0) << ","
-        << (r.meets_requirement ? 1 : 0) << "," << (g.recommendation == i ? 1 : 0) << "," << csv_cell(r.verdict) << "\n";
+        << (r.meets_requirement ? 1 : 0) << "," << (g.recommendation == i ? 1 : 0) << "," << csv_cell(r.verdict);
+    if (rtd_mark) out << "," << (r.rtd_class_note.empty() ? 0 : 1);
+    out << "\n";
   }
   return out.str();
 }
@@ -132,7 +140,11 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
   if (g.volume) out << "; setup costs spread over " << fixed(*g.volume, 0) << " units";
   if (g.reject_cost) out << "; a failed unit costs " << money(*g.reject_cost);
   out << ".\nRequirement: +/-" << fixed(q.max_error, 3) << " K over " << fixed(q.window_min, 2) << " .. "
-      << fixed(q.window_max, 2) << " degC (" << to_string(q.basis) << " basis), yield at least " << pct(q.yield)
+      << fixed(q.window_max, 2) << " degC (" << to_string(q.basis) << " basis"
+      << (std::any_of(g.rows.begin(), g.rows.end(), [](const GradeRow& r) { return r.end_of_life; })
+              ? ", at end of life: requirement.at, with each grade's drift"
+              : "")
+      << "), yield at least " << pct(q.yield)
       << ". Error for the front: " << to_string(g.by) << ".\n\n";
 
   if (g.recommendation) {

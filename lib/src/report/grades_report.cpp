@@ -102,6 +102,11 @@ std::string grades_report_html(const Design& d, const Scenario& scenario, const 
   }
   doc.caution(caution);
   if (!g.summary.empty()) doc.paragraph(g.summary);
+  for (const GradeRow& r : g.rows)  // X in the table: the RTD class used beyond its rated range (docs/model.md §1)
+    if (!r.rtd_class_note.empty()) {
+      doc.paragraph("X: the RTD class is used beyond its rated range, e.g. " + r.rtd_class_note + ".");
+      break;
+    }
 
   doc.heading("Cost against accuracy");
   doc.chart(figures[0].chart, "Figure 1. " + figures[0].caption);
@@ -124,7 +129,7 @@ std::string grades_report_html(const Design& d, const Scenario& scenario, const 
                            r.mc ? pct(r.mc->yield, 2) + (r.mc_run ? "" : " pilot") : "\u2013",
                            r.mc ? num(100 * r.mc->yield_low, 2) + "\u2013" + num(100 * r.mc->yield_high, 2) + " %" : "",
                            std::string(r.on_front ? "F" : "") + (r.meets_requirement ? "M" : "") +
-                               (g.recommendation == i ? "R" : "")});
+                               (g.recommendation == i ? "R" : "") + (r.rtd_class_note.empty() ? "" : "X")});
     t.rows.push_back(std::move(row));
   }
   doc.table(std::move(t));

@@ -12,6 +12,7 @@
 #include "thermargin/report/table.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
+#include "thermargin/input/life.hpp"
 #include "thermargin/report/pick_report.hpp"
 #include "thermargin/tools/picker.hpp"
 
@@ -222,7 +223,9 @@ std::string to_text(const Design& d, const PickResult& r, const PickOptions& o) 
   out << "thermargin pick - " << d.title << "\n\n";
   out << verdict_line(d, r, o) << "\n";
   out << "Ranked by the " << objective_phrase(r.objective) << " over the window "
-      << (maximised(r.objective) ? "(largest smallest LSB/K first)" : "(smallest largest |error| first)") << "; "
+      << (judged_at_end_of_life(d) ? "at end of life " : "")
+      << (maximised(r.objective) ? "(largest smallest LSB/K first" : "(smallest largest |error| first")
+      << (judged_at_end_of_life(d) ? "; the drift inputs active, requirement.at" : "") << "); "
       << r.candidates << " candidate" << (r.candidates == 1 ? "" : "s") << " (" << r.candidates_label
       << (r.pair_search ? ", fixed and parallel resistor pairs" : "") << (r.reduced_pair_search ? ", reduced pair search" : "")
       << "), " << r.within_constraints << " within the constraints";

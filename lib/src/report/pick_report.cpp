@@ -5,6 +5,7 @@
 #include <numeric>
 #include <optional>
 
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 
 namespace thermargin {
@@ -194,6 +195,7 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
     doc.verdict(meets ? Badge::pass : Badge::fail, detail);
   }
   doc.caution(caution);
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) doc.paragraph("RTD class: " + note + ".");
 
   doc.heading("Candidates");
   doc.chart(figures[0].chart, "Figure 1. " + figures[0].caption);

@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "report/json_fields.hpp"
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 
 namespace thermargin {
@@ -107,6 +108,8 @@ std::string response_text(const Design& d, const ResponseAnalysis& a) {
   o << "thermargin response - " << d.title << "\n\n";
   o << (a.recommended ? "RECOMMENDATION: " : "NO FILTER MEETS THE REQUIREMENT: ") << recommendation_text(a) << "\n\n";
   o << settings_sentence(a) << "\n";
+  // The static worst case reads the RTD class beyond its rated range: say so (docs/model.md §1).
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) o << "RTD class: " << note << ".\n";
   std::vector<std::vector<std::string>> rows{{"filter", "delay (s)", "ramp error (K)", "settling (s)", "noise factor",
                                               "noise band (K)", "static (K)", "total (K)", "margin (K)", "meets"}};
   for (std::size_t i = 0; i < a.rows.size(); ++i) rows.push_back(row_cells(a, i));
@@ -174,6 +177,7 @@ std::string response_json(const Design& d, const ResponseAnalysis& a) {
                             {"time_constant_filter", filter_of(w.time_constant, w.time_constant_row)},
                             {"averaging", opt(w.averaging)}};
   }
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) j["rtd_class_note"] = note;
   j["caution"] = std::string(caution);
   return j.dump(2) + "\n";
 }
@@ -314,6 +318,7 @@ std::string response_report_html(const Design& d, const Scenario& scenario, cons
                   (a.recommended ? "Recommended: " : "") + recommendation_text(a));
   doc.caution(caution);
   doc.preformatted(settings_sentence(a));
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) doc.paragraph("RTD class: " + note + ".");
   const auto figures = response_figures(a);
   int n = 0;
   for (const Figure& f : figures) {

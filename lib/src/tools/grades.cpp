@@ -152,6 +152,7 @@ struct Figures {  // what the engines say about one distinct design
   bool mc_unreadable = false;  // some Monte Carlo reading in the window did not convert
   Requirement requirement;
   std::string rtd_class_note;  // the RTD class used beyond its rated range (marked, not refused)
+  bool end_of_life = false;    // judged at end of life (life.hpp)
 };
 
 Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& rp, std::size_t anchor) {
@@ -172,7 +173,9 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
   }
   // On the verdict's basis: at end of life when drift is set and requirement.at says so.
   // One thread an engine: threads are spread over combinations instead.
-  const Design d = design_for_verdict(build_design(s));
+  const Design built = build_design(s);
+  f.end_of_life = judged_at_end_of_life(built);
+  const Design d = design_for_verdict(built);
   f.requirement = d.requirement;
   f.rtd_class_note = rtd_class_range_note(d);
   const Chain chain(d);
@@ -378,6 +381,7 @@ GradeRow make_row(const Catalogue& cat, const GradesOptions& options, std::size_
   r.status = f.status;
   r.status_at = f.status_at;
   r.rtd_class_note = f.rtd_class_note;
+  r.end_of_life = f.end_of_life;
   r.wc_max_abs = f.wc_max_abs;
   r.rss_max_abs = f.rss_max_abs;
   r.mc_run = f.mc_run;

@@ -17,8 +17,12 @@ bool has_drift(const Design& d);
 // inputs (after them, in the order of the Source list). Without drift, `d`.
 Design at_end_of_life(const Design& d);
 
+// Whether the verdict is judged at end of life: drift is set and
+// requirement.at = end-of-life.
+bool judged_at_end_of_life(const Design& d);
+
 // The design the verdict is judged on (requirement.at): at end of life when
-// drift is set and requirement.at = end-of-life, else `d` as delivered.
+// judged_at_end_of_life(d), else `d` as delivered.
 Design design_for_verdict(const Design& d);
 
 std::string_view to_string(Requirement::At at);

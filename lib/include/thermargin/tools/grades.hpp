@@ -116,6 +116,7 @@ struct GradeRow {
   // Its RTD class is used beyond the range IEC 60751 rates it for (one
   // sentence; empty otherwise): marked, never refused.
   std::string rtd_class_note;
+  bool end_of_life = false;  // judged at end of life: drift set (scenario or grade) and requirement.at = end-of-life
 };
 
 struct GradesResult {
