@@ -74,7 +74,7 @@ TEST(InlShape, BoundIsUniformInTheBudgetAndAppliesAtEveryCode) {
     const FrontEnd fe = chain.front_end(dev, t);
     EXPECT_NEAR(fe.x_static - fe.x_ideal, 2.0, 1e-9) << t;
   }
-  const Design bow = design_with(ideal({{"adc.inl", "2"}, {"adc.bits", "12"}}));
+  const Design bow = design_with(ideal({{"adc.inl", "2"}, {"adc.inl_shape", "bow"}, {"adc.bits", "12"}}));
   const FrontEnd fe = Chain(bow).front_end(dev, -20.0);
   const double u = fe.x_ideal / 4096.0;
   EXPECT_NEAR(fe.x_static - fe.x_ideal, 2.0 * 4.0 * u * (1.0 - u), 1e-9);  // the bow of docs/model.md §5

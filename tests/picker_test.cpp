@@ -789,8 +789,10 @@ TEST(Picker, SeriesGradeIsTheToleranceOfTheSeriesTheCandidatesComeFrom) {
 
 TEST(Picker, ContinuousOptimumAgreesWithScipyOnAReimplementedObjective) {
   // The simple design pick_worst_case.py re-implements: no self-heating,
-  // board at 25 °C, no noise, no output rounding, beta conversion.
+  // board at 25 °C, no noise, no output rounding, beta conversion, the INL
+  // as a bow.
   const Scenario s = scenario_with({{"sensor.dissipation", "0"},
+                                    {"adc.inl_shape", "bow"},
                                     {"adc.noise", "0"},
                                     {"firmware.resolution", "0"},
                                     {"conditions.t_min", "0"},

@@ -7,7 +7,7 @@ Reads the scenario with Python's configparser and re-implements, from
 docs/model.md alone, the worst case of docs/engines.md for the designs it
 covers: a beta NTC, self-heating, a fixed resistor with tolerance and tempco
 at a board temperature range, a ratiometric divider without leads, leakage
-or parallel resistor, an ADC with gain, offset and INL bow, the round
+or parallel resistor, an ADC with gain, offset and INL (bound or bow), the round
 quantiser and noise as an interval on the reading, firmware converting with
 the beta equation (full scale 2^N) and rounding its output, no calibration.
 Anything else in the scenario is refused (exit 1), so the script never
@@ -83,7 +83,7 @@ def read(path):
         "tempco": number(g("divider", "r_fixed_tempco")), "board": (lo, hi),
         "v_exc": number(g("supply", "v_excitation")),
         "bits": int(g("adc", "bits")), "offset": number(g("adc", "offset")), "gain": number(g("adc", "gain_error")),
-        "inl": number(g("adc", "inl")), "noise": number(g("adc", "noise")), "averaging": int(g("adc", "averaging")),
+        "inl": number(g("adc", "inl")), "inl_bound": g("adc", "inl_shape", "bound") == "bound", "noise": number(g("adc", "noise")), "averaging": int(g("adc", "averaging")),
         "noise_k": number(g("montecarlo", "noise_k", "3")), "resolution": number(g("firmware", "resolution")),
         "t": np.arange(number(g("conditions", "t_min")), number(g("conditions", "t_max")) + 1e-9,
                        number(g("conditions", "t_step"))),
@@ -118,7 +118,10 @@ def band(p):
         u = x / span
         for s_o, s_g, s_i in itertools.product((-1.0, 1.0), repeat=3):
             corners += 1
-            xs = x * (1 + s_g * p["gain"]) + s_o * p["offset"] + s_i * p["inl"] * 4 * u * (1 - u)
+            # The INL: a bound at every code (adc.inl_shape = bound, the
+            # default) or the bow 4u(1 - u) that is zero at both ends.
+            inl = s_i * p["inl"] * (1.0 if p["inl_bound"] else 4 * u * (1 - u))
+            xs = x * (1 + s_g * p["gain"]) + s_o * p["offset"] + inl
             for shift in (-half, half):
                 code = xs + shift
                 if np.any(code < 0) or np.any(code > span - 1):

@@ -83,7 +83,7 @@ std::vector<KeySpec> section_keys() {
       {"adc.precharge", Q::plain, "same", "what C_s holds before an acquisition: same | ground | reference | any | a voltage"},
       {"adc.offset_tempco", Q::plain, "0", "+/- offset drift in LSB/K at board temperature (from 25 degC)"},
       {"adc.gain_tempco", Q::tempco, "0", "+/- gain drift at board temperature (from 25 degC)"},
-      {"adc.inl_shape", Q::plain, "bow", "bow (zero at both ends, adc.inl at mid-scale) | bound (+/- adc.inl at every code)"},
+      {"adc.inl_shape", Q::plain, "bound", "bound (+/- adc.inl at every code) | bow (zero at both ends, adc.inl at mid-scale)"},
       {"firmware.conversion", Q::plain, "beta", "exact | beta | steinhart-hart | table"},
       {"firmware.full_scale", Q::plain, "pow2", "pow2 (ratio = code/2^N) | pow2-minus-1 (code/(2^N - 1))"},
       {"firmware.r25", Q::resistance, "sensor", "R25 the firmware assumes; sensor = the sensor's"},

@@ -50,10 +50,11 @@ std::vector<SourceRow> source_rows(const Design& d) {
 // What the INL's shape means, said wherever adc.inl is active (docs/model.md §5).
 std::string inl_shape_note(const Design& d) {
   if (!(d.adc.inl > 0.0)) return "";
-  if (d.adc.inl_bound) return "adc.inl_shape = bound: +/- adc.inl at every code, uniform in the linear budget.";
-  return "adc.inl_shape = bow (the default): the INL is zero at both ends of the ADC's range and adc.inl only at "
-         "mid-scale, so it is no bound near the ends; a datasheet's INL is a bound at every code, and "
-         "adc.inl_shape = bound is the reading a careful review should use.";
+  if (d.adc.inl_bound)
+    return "adc.inl_shape = bound (the default): +/- adc.inl at every code, uniform in the linear budget, as a "
+           "datasheet's INL is a bound at every code; bow is for a converter whose INL curve is known to bow.";
+  return "adc.inl_shape = bow: the INL is zero at both ends of the ADC's range and adc.inl only at mid-scale, so it "
+         "is no bound near the ends; use it only when the converter's INL curve is known to bow.";
 }
 
 bool starts(const std::string& key, std::initializer_list<const char*> keys) {
