@@ -117,7 +117,7 @@ std::string to_csv(const FitResult& r) {
                            std::to_string(f.dof), r.recommendation.found && r.recommendation.fit == i ? "1" : "0"});
     t.rows.push_back(std::move(row));
   }
-  return "# " + std::string(caution) + "\n" + render_csv(t);
+  return csv_caution_line() + render_csv(t);
 }
 
 std::string to_text(const FitResult& r, const std::string& snippet) {

@@ -99,7 +99,7 @@ std::string to_json(const Design& d, const Catalogue& cat, const GradesResult& g
 
 std::string to_csv(const GradesResult& g) {
   std::ostringstream out;
-  out << "# " << caution << "\n";
+  out << csv_caution_line();
   for (const auto& s : g.slots) out << csv_cell(s) << ",";
   out << "r_fixed_ohm,unit_cost,setup_per_unit,cost_per_good_unit,wc_max_abs_K,rss_max_abs_K,mc_max_abs_K,yield,"
          "yield_low,yield_high,failures_per_million,mc_units,mc_run,error_K,on_front,meets_requirement,recommended,verdict";

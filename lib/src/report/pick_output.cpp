@@ -180,7 +180,7 @@ std::string cell(const std::optional<double>& v, int decimals) { return v ? fixe
 
 std::string to_csv(const PickResult& r) {
   std::ostringstream out;
-  out << "# " << caution << "\n";
+  out << csv_caution_line();
   out << "rank,r_fixed_ohm,r_parallel_ohm,series,objective,wc_max_abs_K,rss_max_abs_K,mc_max_abs_K,"
          "min_sensitivity_LSB_per_K,max_self_heating_K,max_current_A,max_power_W,span,dominant,status,rejected_by,"
          "verify_mc_max_abs_K,verify_yield,verify_yield_low,verify_yield_high\n";

@@ -9,6 +9,7 @@
 #include "report/json_fields.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
+#include "thermargin/report/table.hpp"  // render_csv, csv_caution_line
 
 namespace thermargin {
 namespace {
@@ -139,7 +140,7 @@ std::string response_csv(const ResponseAnalysis& a) {
                       g(r.static_max_abs), r.readable ? g(r.total_max_abs) : "", g(r.total_at), g(r.margin),
                       r.meets ? "1" : "0"});
   }
-  return "# " + std::string(caution) + "\n" + render_csv(t);
+  return csv_caution_line() + render_csv(t);
 }
 
 std::string response_json(const Design& d, const ResponseAnalysis& a) {

@@ -4,6 +4,7 @@
 #include <cctype>
 #include <sstream>
 
+#include "thermargin/core/caution.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell
 
 namespace thermargin {
@@ -172,5 +173,7 @@ std::string render_csv(const Table& table) {
   for (const auto& r : table.rows) line(r);
   return out;
 }
+
+std::string csv_caution_line() { return "# " + std::string(caution) + "\n"; }
 
 }  // namespace thermargin

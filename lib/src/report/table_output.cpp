@@ -117,7 +117,7 @@ std::string to_json(const Design& d, const TableResult& r) {
 std::string to_csv(const TableResult& r) {
   const auto& t = r.table;
   std::ostringstream out;
-  out << "# " << caution << "\n";
+  out << csv_caution_line();
   out << "code,temperature_degC,stored,max_error_to_next_K\n";
   for (std::size_t k = 0; k < t.size(); ++k) {
     out << t.code(k) << "," << significant(stored_celsius(t, k)) << "," << t.stored[k] << ","

@@ -47,4 +47,10 @@ std::string render_text(const Table& table, const TextLayout& layout);
 // not printed.
 std::string render_csv(const Table& table);
 
+// The first line of every CSV a command writes (budget, check, pick, grades,
+// fit, table, response): the caution (core/caution.hpp) as a `#` comment line,
+// "# CAUTION: ...\n". A reader skips it as it skips the comment lines of the
+// project's own data files.
+std::string csv_caution_line();
+
 }  // namespace thermargin
