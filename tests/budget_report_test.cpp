@@ -244,7 +244,7 @@ TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {
   std::ofstream(dir.path / "formula.ini") << "title = =HYPERLINK(\"http://example.invalid\",\"x\")\n";
   std::ofstream(dir.path / "read.py")
       << "import csv, sys\n"
-         "rows = list(csv.reader(open(sys.argv[1], newline='', encoding='utf-8')))\n"
+         "rows = list(csv.reader(l for l in open(sys.argv[1], newline='', encoding='utf-8') if not l.startswith('#')))\n"
          "width = len(rows[0])\n"
          "assert all(len(r) == width for r in rows), 'ragged rows'\n"
          "def number(c):\n"

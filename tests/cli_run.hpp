@@ -91,6 +91,17 @@ inline nlohmann::json cli_json(const std::string& args) {
   return nlohmann::json::parse(r.out);
 }
 
+// A CSV the program wrote, as a reader that skips `#` comment lines sees it:
+// every line that starts with '#' (the caution, report/table.hpp
+// csv_caution_line) left out, so that the header comes first.
+inline std::string csv_without_comments(const std::string& text) {
+  std::istringstream in(text);
+  std::string kept;
+  for (std::string line; std::getline(in, line);)
+    if (!line.starts_with('#')) kept += line + "\n";
+  return kept;
+}
+
 // The shell command line that runs tests/reference/SCRIPT ARGS with Debian's python3.
 inline std::string reference_command(const std::string& script, const std::string& args) {
   return std::string(THERMARGIN_PYTHON) + " " + shell_quote(reference_script(script)) + " " + args;

@@ -13,6 +13,7 @@
 #include <nlohmann/json.hpp>
 
 #include "cli_run.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/input/scenario.hpp"
 
 namespace thermargin {
@@ -109,7 +110,7 @@ TEST_F(Cli, CheckPrintsEveryKeyWithItsValueUnitAndOrigin) {
   const Outcome r = run("check '" + file + "' --format csv --divider.r_fixed=4k7");
   ASSERT_EQ(r.status, 0) << r.err;
   EXPECT_TRUE(r.err.empty()) << r.err;
-  std::istringstream in(r.out);
+  std::istringstream in(testing::csv_without_comments(r.out));
   std::string line;
   std::getline(in, line);
   EXPECT_EQ(line, "key,value,unit,origin,resolved");
@@ -123,6 +124,26 @@ TEST_F(Cli, CheckPrintsEveryKeyWithItsValueUnitAndOrigin) {
   ASSERT_NE(duty, std::string::npos);
   const std::string duty_row = r.out.substr(duty + 1, r.out.find('\n', duty + 1) - duty - 1);
   EXPECT_TRUE(duty_row.ends_with(",100")) << duty_row;
+}
+
+TEST_F(Cli, CheckAndBudgetCsvStartWithTheCautionLineAsEveryCsvDoes) {
+  // Every output keeps the caution; in CSV it is the first line, a `#`
+  // comment, then the header, as in pick, grades, fit, table and response
+  // (picker_test.cpp, grades_test.cpp, fit_cli_test.cpp, lookup_table_test.cpp,
+  // response_cli_test.cpp). The budget with a sampling capacitor too: its
+  // CSV gains a last column, acquisition_error_K, on the header, not on the caution.
+  const std::string caution_line = "# " + std::string(caution) + "\n";
+  const std::string budget = "budget --no-mc --conditions.t_step=10 --format csv";
+  std::string sampled_header;
+  for (const auto& [args, header] : {std::pair<std::string, std::string>{"check --format csv", "key,value,unit,origin,resolved"},
+                                     {budget, "t_degC,in_window,status,v_node_V,"},
+                                     {budget + " --adc.c_sample=15p --adc.t_acq=1u", "t_degC,in_window,status,v_node_V,"}}) {
+    const Outcome r = run(args);
+    ASSERT_EQ(r.status, 0) << args << ": " << r.err;
+    EXPECT_EQ(r.out.rfind(caution_line + header, 0), 0u) << args << ":\n" << r.out.substr(0, 300);
+    sampled_header = r.out.substr(caution_line.size(), r.out.find('\n', caution_line.size()) - caution_line.size());
+  }
+  EXPECT_TRUE(sampled_header.ends_with(",acquisition_error_K")) << sampled_header;  // the last case's
 }
 
 TEST_F(Cli, BudgetJsonCarriesTheInterfaceFields) {

@@ -90,7 +90,7 @@ TEST(Life, DriftAloneMatchesTheDividerEquationByHand) {
 
 std::vector<std::vector<std::string>> csv_rows(const std::string& text) {
   std::vector<std::vector<std::string>> rows;
-  std::istringstream in(text);
+  std::istringstream in(testing::csv_without_comments(text));
   for (std::string line; std::getline(in, line);) {
     rows.emplace_back();
     std::istringstream cells(line);

@@ -269,7 +269,7 @@ void add_settling(const Chain& chain, const Budget& b, Out f, std::string& text,
 std::string budget_csv(const Budget& budget, const BudgetExtras& extras) {
   std::string text = to_csv(budget, extras.chain ? &extras.chain->design() : nullptr);
   if (extras.chain) add_settling(*extras.chain, budget, Out::csv, text, nullptr);
-  return text;
+  return csv_caution_line() + text;
 }
 
 std::string budget_json(const Design& design, const Budget& budget, const WhatIf& what_if, const BudgetExtras& extras) {

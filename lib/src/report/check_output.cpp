@@ -136,7 +136,7 @@ std::string check_csv(const Scenario& scenario, const Design& design) {
   std::ostringstream out;
   const auto& schema = scenario_schema();
   // resolved: the number the design uses, in the unit column's unit; words and lists as written.
-  out << "key,value,unit,origin,resolved\n";
+  out << csv_caution_line() << "key,value,unit,origin,resolved\n";
   for (const auto& k : schema) {
     const auto& s = scenario.get(k.key);
     const ResolvedValue& r = resolved.at(k.key);

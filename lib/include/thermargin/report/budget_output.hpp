@@ -32,8 +32,9 @@ struct BudgetExtras {
 std::string budget_text(const Design& design, const Budget& budget, const WhatIf& what_if,
                         const BudgetExtras& extras = {});
 
-// One line per temperature: the bands, the sensitivity and each source's
-// share and half-width (in the order of the window's ranking).
+// The caution as a `#` line (csv_caution_line), the header, then one line per
+// temperature: the bands, the sensitivity and each source's share and
+// half-width (in the order of the window's ranking).
 std::string budget_csv(const Budget& budget, const BudgetExtras& extras = {});
 
 // The whole budget as JSON (two-space indent, a final newline), with

@@ -23,7 +23,8 @@ bool key_in_design(const std::string& key, const Design& design);
 // the notes on keys set but not used (Design::notes), the active error
 // sources with their distribution and standard deviation. `all`: every key.
 std::string check_text(const Scenario& scenario, const Design& design, bool all = false);
-std::string check_csv(const Scenario& scenario, const Design& design);  // key,value,unit,origin,resolved
+// The CSV: the caution as a `#` line (csv_caution_line), then key,value,unit,origin,resolved.
+std::string check_csv(const Scenario& scenario, const Design& design);
 std::string check_json(const Scenario& scenario, const Design& design);  // two-space indent, final newline
 
 }  // namespace thermargin
