@@ -24,6 +24,21 @@ void BM_WorstCaseTwelveInputs(benchmark::State& state) {
 }
 BENCHMARK(BM_WorstCaseTwelveInputs)->Unit(benchmark::kMillisecond)->UseRealTime();
 
+// 14 active inputs without calibration (2^14 corners: 8 of the element, 3
+// of the node, 3 of the ADC): the staged enumeration with the extreme
+// readings converted (docs/engines.md, Worst case).
+void BM_WorstCaseFourteenInputs(benchmark::State& state) {
+  const Design d = build_design(bench::fourteen_inputs_scenario());
+  const Chain chain(d);
+  const auto temps = d.conditions.temperatures();
+  for (auto _ : state) benchmark::DoNotOptimize(worst_case(chain, temps, {.half_widths = false}).points.data());
+  state.counters["inputs"] = static_cast<double>(d.inputs.size());
+  state.counters["corner_temperatures_per_s"] = benchmark::Counter(
+      static_cast<double>(temps.size()) * static_cast<double>(1LL << d.inputs.size()) * static_cast<double>(state.iterations()),
+      benchmark::Counter::kIsRate);
+}
+BENCHMARK(BM_WorstCaseFourteenInputs)->Unit(benchmark::kMillisecond)->UseRealTime();
+
 void BM_LinearBudgetTwelveInputs(benchmark::State& state) {
   const Design d = twelve_inputs();
   const Chain chain(d);
