@@ -500,8 +500,8 @@ def step_sampled_node(d, st, dev):
         return
     v_th, r_th = st["v_node"], st["r_th"] + 0.0 * st["v_node"]
     pre = a["precharge"]
-    if pre == "any":  # another channel's voltage, uniform over [0, V_ref]: z of bound ½
-        v_start = st["v_ref"] * (0.5 + dev("adc_precharge"))
+    if pre == "any":  # another channel's voltage, uniform over [0, V_ref nominal]: z of bound ½ (its own source's)
+        v_start = (d.v_exc if d.ratiometric else d.v_ref) * (0.5 + dev("adc_precharge")) + 0.0 * v_th
     elif pre == "ground":
         v_start = 0.0 * v_th
     elif pre == "reference":
