@@ -138,10 +138,10 @@ TEST(Acquisition, AgreesWithScipySolveIvp) {
       {0.8, 200e3, 2e3, 12e-12, 2.2e-9, 1e-6, 50e-6, 3.3, true, std::nullopt, 1},    // periodic, precharge reference
       {1.2, 50e3, 5e3, 20e-12, 100e-9, 2e-6, 100e-6, 0.0, false, 2e-3, 4},            // switched, same, averaged
       {2.1, 100e3, 1e3, 10e-12, 0.0, 0.5e-6, 20e-6, 1.65, true, 1e-3, 2},            // no node capacitor
-      // Periodic, reached the long way: the node (R_th·C_n = 25 µs) forgets
-      // its power-on by e^(−2) each 50 µs period, so after 16 periods it is
+      // Periodic, reached the long way: the node (R_th·C_n = 12.5 µs) forgets
+      // its power-on by e^(−4) each 50 µs period, so after 8 periods it is
       // within 1e-13 V of its periodic steady state.
-      {1.2, 50e3, 5e3, 20e-12, 500e-12, 1e-6, 50e-6, 0.0, true, std::nullopt, 1, 16},
+      {1.2, 50e3, 5e3, 20e-12, 250e-12, 1e-6, 50e-6, 0.0, true, std::nullopt, 1, 8},
   };
   for (const Case& c : cases) {
     const auto m = model(c.r_sw, c.c_s, c.c_n, c.t_acq, c.t_s, c.reset, c.settle, c.m);
