@@ -315,10 +315,11 @@ void set_signs(const Design& d, Deviations& dev, const std::vector<std::size_t>&
 }
 
 // An uncalibrated design whose conversion is monotone over the readings
-// (Firmware::monotone_between) needs, at one temperature, only the lowest and the highest reading any
-// corner converts: every reading between converts too, and its error lies
-// between theirs. Readings are gathered in the order corner_range takes
-// them, so each corner fails (or not) exactly as it would there.
+// (Firmware::monotone_between) needs, at one temperature, only the lowest
+// and the highest reading any corner converts: every reading between
+// converts too, and its error lies between theirs. Readings are gathered in
+// the order corner_range takes them, so each corner fails (or not) exactly
+// as it would there.
 struct ReadingSpan {
   double lo = std::numeric_limits<double>::infinity(), hi = -std::numeric_limits<double>::infinity();
   void add(double code) {
