@@ -21,9 +21,12 @@ inline constexpr std::uint32_t unit_stream = 0xFFFFFFFFu;  // the units' stream 
 
 // ln u for u in (0, 1]: exponent from the bits, mantissa by the atanh series
 // 2(s + s³/3 + … + s¹¹/11), s = (m − 1)/(m + 1), m ∈ [√½, √2): |error| < 1e-12.
+// The exponent is a 32-bit integer: AVX2 has no vector conversion of a
+// 64-bit integer to double (AVX-512DQ has), and with one the loops that call
+// this (normals_block) stay scalar on an AVX2 machine (docs/engines.md, Speed).
 inline double plain_log(double u) {
   std::uint64_t bits = std::bit_cast<std::uint64_t>(u);
-  const auto e0 = static_cast<std::int64_t>((bits >> 52) & 0x7FF) - 1023;
+  const auto e0 = static_cast<std::int32_t>((bits >> 52) & 0x7FF) - 1023;
   bits = (bits & 0x000FFFFFFFFFFFFFull) | 0x3FF0000000000000ull;
   double m = std::bit_cast<double>(bits);
   const bool big = m > std::numbers::sqrt2;
