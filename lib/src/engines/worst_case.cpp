@@ -45,7 +45,8 @@ CalibrationFrontEnds calibration_front_ends(const Chain& chain, const Deviations
 // Every calibration one corner's unit can receive: each calibration reading
 // at either end of its reading interval and of its rounding interval.
 // nullopt entries are calibrations that failed (saturation, no conversion).
-// `analog`: calibration_front_ends of the corner (of its analog deviations).
+// `analog`: the corner's front ends at the calibration points before the ADC
+// stage (its element and node deviations; the ADC's are applied here).
 std::vector<std::optional<CalibrationData>> corner_calibrations(const Chain& chain, const Deviations& dev,
                                                                 const CalibrationFrontEnds& analog,
                                                                 const Intervals& iv, Status& failure) {
