@@ -65,7 +65,7 @@ export TSAN_OPTIONS=halt_on_error=1:second_deadlock_stack=1
 
 # One clang build for the sanitizer run and the fuzzers: the library, the
 # CLI, every test and the libFuzzer targets, all with ASan + UBSan (the
-# library also carries libFuzzer's coverage hooks, which the tests ignore).
+# library's readers also carry libFuzzer's coverage hooks, docs/checks.md).
 asan() {
   # -O1, as the sanitizer's own guide suggests: most of this step is
   # compiling the whole test program a second time, and -O1 compiles it

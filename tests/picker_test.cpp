@@ -685,39 +685,38 @@ INSTANTIATE_TEST_SUITE_P(Scenarios, WinnerFromAnyStart, ::testing::ValuesIn(test
                            return std::filesystem::path(info.param).stem().string();
                          });
 
-TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerWithCalibrationLimitsUnreadableAndLinear) {
-  // The default design with each calibration, with a limit that rules out
-  // the unconstrained winner, with readings no candidate can convert, and an
-  // objective the search hands to pick().
+// The default design with each calibration, with a limit that rules out the
+// unconstrained winner, with readings no candidate can convert, and an
+// objective the search hands to pick(): one test each, so that ctest runs
+// them side by side.
+TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerWithOffsetCalibration) {
+  expect_the_winner_from_any_start(scenario_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}),
+                                   any_start_options());
+}
+
+TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerWithTwoPointCalibration) {
+  expect_the_winner_from_any_start(
+      scenario_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"}}), any_start_options());
+}
+
+TEST(Picker, WinnerSearchedFromAnyStartIsTheBestCandidateWithinACurrentLimit) {
   const PickOptions e12 = any_start_options();
-  {
-    SCOPED_TRACE("offset calibration");
-    expect_the_winner_from_any_start(scenario_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}), e12);
-  }
-  {
-    SCOPED_TRACE("two-point calibration");
-    expect_the_winner_from_any_start(
-        scenario_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"}}), e12);
-  }
   const PickRow free = pick(Scenario{}, e12).winner();
-  {
-    SCOPED_TRACE("current limit");
-    PickOptions limited = e12;
-    limited.constraints.max_current = 0.99 * free.max_current;
-    const PickRow want = expect_the_winner_from_any_start(Scenario{}, limited);
-    EXPECT_TRUE(want.feasible());  // the best feasible, not the unconstrained winner
-    EXPECT_NE(want.r_fixed, free.r_fixed);
-  }
-  {
-    SCOPED_TRACE("nothing readable");
-    EXPECT_FALSE(expect_the_winner_from_any_start(scenario_with({{"adc.offset", "2000"}}), e12).feasible());
-  }
-  {
-    SCOPED_TRACE("linear objective");
-    PickOptions linear = e12;
-    linear.objective = Objective::linear;
-    expect_the_winner_from_any_start(Scenario{}, linear);
-  }
+  PickOptions limited = e12;
+  limited.constraints.max_current = 0.99 * free.max_current;
+  const PickRow want = expect_the_winner_from_any_start(Scenario{}, limited);
+  EXPECT_TRUE(want.feasible());  // the best feasible, not the unconstrained winner
+  EXPECT_NE(want.r_fixed, free.r_fixed);
+}
+
+TEST(Picker, WinnerSearchedFromAnyStartIsUnreadableWhenNoCandidateConverts) {
+  EXPECT_FALSE(expect_the_winner_from_any_start(scenario_with({{"adc.offset", "2000"}}), any_start_options()).feasible());
+}
+
+TEST(Picker, WinnerSearchedFromAnyStartIsTheWinnerOfTheLinearObjective) {
+  PickOptions linear = any_start_options();
+  linear.objective = Objective::linear;
+  expect_the_winner_from_any_start(Scenario{}, linear);
 }
 
 TEST(Picker, RankingDoesNotDependOnTheThreadCount) {
