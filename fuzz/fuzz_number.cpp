@@ -13,7 +13,7 @@
 
 namespace {
 
-constexpr int quantity_count = static_cast<int>(thermargin::Quantity::ramp_rate) + 1;  // the last
+constexpr int quantity_count = static_cast<int>(thermargin::Quantity::lsb_per_kelvin) + 1;  // the last
 constexpr double round_trip_tolerance = 1e-12;  // relative; 17 digits, then a scale by 100 or 1e6
 
 }  // namespace

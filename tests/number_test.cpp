@@ -178,13 +178,27 @@ TEST(ParseQuantity, ReadsTimesInSecondsAndRampsInKelvinPerMinute) {
   EXPECT_NE(rejection("2V/min", Quantity::ramp_rate).find("expected a rate of change"), std::string::npos);
 }
 
+TEST(ParseQuantity, ReadsAnOffsetDriftInCountsPerKelvin) {
+  // An ADC offset drift is given per kelvin of board temperature (common practice in datasheets: LSB/°C).
+  expect_value("0.01", Quantity::lsb_per_kelvin, 0.01);
+  expect_value("0.01LSB/K", Quantity::lsb_per_kelvin, 0.01);
+  expect_value("0.01 LSB/C", Quantity::lsb_per_kelvin, 0.01);
+  expect_value("0.01LSB/\xC2\xB0" "C", Quantity::lsb_per_kelvin, 0.01);  // LSB/°C
+  expect_value("10mLSB/K", Quantity::lsb_per_kelvin, 0.01);
+  EXPECT_NE(rejection("0.01LSB", Quantity::lsb_per_kelvin).find("expected ADC counts per kelvin such as 0.01, 0.01LSB/K"),
+            std::string::npos);
+  EXPECT_EQ(unit_symbol(Quantity::lsb_per_kelvin), "LSB/K");
+  EXPECT_EQ(format_quantity(0.01, Quantity::lsb_per_kelvin), "0.01 LSB/K");
+}
+
 TEST(FormatQuantity, PrintsValuesTheParserReadsBack) {
   // Round trip: what the tool prints, a person may paste back into a scenario.
   const std::pair<double, Quantity> values[] = {{4.7e3, Quantity::resistance}, {2.2e6, Quantity::resistance},
                                                 {0.47, Quantity::resistance},  {3.3, Quantity::voltage},
                                                 {1.5e-3, Quantity::dissipation}, {10e-9, Quantity::current},
                                                 {0.01, Quantity::ratio},      {25e-6, Quantity::tempco},
-                                                {0.5, Quantity::time},        {1.5, Quantity::ramp_rate}};
+                                                {0.5, Quantity::time},        {1.5, Quantity::ramp_rate},
+                                                {0.02, Quantity::lsb_per_kelvin}};
   for (const auto& [v, q] : values) {
     const std::string text = format_quantity(v, q, 6);
     EXPECT_NEAR(parse(text, q), v, relative_tolerance * 10 * std::fabs(v)) << text;

@@ -49,6 +49,7 @@ std::string_view accepted(Quantity q) {
     case Quantity::ramp_rate: return "expected a rate of change such as 2, 2K/min, 0.05K/s or 30K/h";
     case Quantity::capacitance: return "expected a capacitance such as 100n, 100nF or 5pF";
     case Quantity::frequency: return "expected a frequency such as 10k, 10kHz or 1MHz";
+    case Quantity::lsb_per_kelvin: return "expected ADC counts per kelvin such as 0.01, 0.01LSB/K or 0.01LSB/C";
   }
   return "expected a number";
 }
@@ -77,6 +78,8 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
   static constexpr std::array ramp_rate{UnitWord{"K/min", 1.0}, UnitWord{"K/s", 60.0}, UnitWord{"K/h", 1.0 / 60.0}};
   static constexpr std::array capacitance{UnitWord{"F", 1.0}};
   static constexpr std::array frequency{UnitWord{"Hz", 1.0}};
+  static constexpr std::array lsb_per_kelvin{UnitWord{"LSB/K", 1.0}, UnitWord{"LSB/C", 1.0},
+                                             UnitWord{"LSB/\xC2\xB0" "C", 1.0}};
   auto find = [&](const auto& list) -> std::optional<double> {
     for (const auto& u : list)
       if (u.word == word) return u.factor;
@@ -97,6 +100,7 @@ std::optional<double> unit_factor(Quantity q, std::string_view word) {
     case Quantity::ramp_rate: return find(ramp_rate);
     case Quantity::capacitance: return find(capacitance);
     case Quantity::frequency: return find(frequency);
+    case Quantity::lsb_per_kelvin: return find(lsb_per_kelvin);
     case Quantity::plain:
     case Quantity::integer: return std::nullopt;
   }
@@ -130,6 +134,7 @@ std::string_view unit_symbol(Quantity q) {
     case Quantity::ramp_rate: return "K/min";
     case Quantity::capacitance: return "F";
     case Quantity::frequency: return "Hz";
+    case Quantity::lsb_per_kelvin: return "LSB/K";
   }
   return "";
 }
@@ -264,6 +269,9 @@ std::string format_quantity(double value, Quantity q, int digits) {
       return buf;
     case Quantity::lsb:
       std::snprintf(buf, sizeof buf, "%.*g LSB", digits, value);
+      return buf;
+    case Quantity::lsb_per_kelvin:
+      std::snprintf(buf, sizeof buf, "%.*g LSB/K", digits, value);
       return buf;
     case Quantity::integer:
       std::snprintf(buf, sizeof buf, "%.0f", value);

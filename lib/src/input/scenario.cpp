@@ -81,7 +81,7 @@ std::vector<KeySpec> section_keys() {
       {"adc.t_acq", Q::time, "1us", "acquisition time: how long the switch is closed"},
       {"adc.sample_rate", Q::frequency, "10kHz", "this channel's sample rate (averaged samples follow at 1/rate)"},
       {"adc.precharge", Q::plain, "same", "what C_s holds before an acquisition: same | ground | reference | any | a voltage"},
-      {"adc.offset_tempco", Q::plain, "0", "+/- offset drift in LSB/K at board temperature (from 25 degC)"},
+      {"adc.offset_tempco", Q::lsb_per_kelvin, "0", "+/- offset drift in LSB/K at board temperature (from 25 degC)"},
       {"adc.gain_tempco", Q::tempco, "0", "+/- gain drift at board temperature (from 25 degC)"},
       {"adc.inl_shape", Q::plain, "bound", "bound (+/- adc.inl at every code) | bow (zero at both ends, adc.inl at mid-scale)"},
       {"firmware.conversion", Q::plain, "beta", "exact | beta | steinhart-hart | table"},

@@ -38,7 +38,7 @@ const SourceInfo& info(Source s) {
       {"sensor.table_file", "table_spread", "sensor spread (R-T table limits)", Quantity::plain},
       {"supply.r_drive_tol", "r_drive", "divider drive resistance", Quantity::ratio},
       {"adc.precharge", "adc_precharge", "sampling capacitor's start (precharge = any)", Quantity::voltage},
-      {"adc.offset_tempco", "adc_offset_tempco", "ADC offset drift", Quantity::plain},
+      {"adc.offset_tempco", "adc_offset_tempco", "ADC offset drift", Quantity::lsb_per_kelvin},
       {"adc.gain_tempco", "adc_gain_tempco", "ADC gain drift", Quantity::tempco},
   }};
   return table[static_cast<std::size_t>(s)];

@@ -30,13 +30,14 @@ enum class Quantity {
   ramp_rate,        // K/min, a rate of temperature change; accepts `K/min`, `K/s`, `K/h`
   capacitance,      // F
   frequency,        // Hz
+  lsb_per_kelvin,   // ADC counts per kelvin (an offset's drift); accepts `LSB/K`, `LSB/C`, `LSB/°C`
 };
 
 // The unit a quantity is printed in ("Ω", "V", "ppm/K", ...).
 std::string_view unit_symbol(Quantity q);
 
 // Reads `text` as a value of quantity `q` in its base unit (Ω, V, A, W/K,
-// °C, K, 1/K, fraction, LSB, s, K/min). Throws input_error naming `where` on failure;
+// °C, K, 1/K, fraction, LSB, s, K/min, LSB/K). Throws input_error naming `where` on failure;
 // the message says what would be accepted.
 struct Where;
 double parse_quantity(std::string_view text, Quantity q, const Where& where);
