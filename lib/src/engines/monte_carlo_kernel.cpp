@@ -38,6 +38,8 @@ RunConstants make_constants(const Chain& chain) {
   c.beta = d.sensor.beta;
   if (d.sensor.kind != SensorKind::rtd)
     if (auto l = nominal_ln_resistance(d.sensor, t0_kelvin)) c.ln_r0 = *l;
+  c.rtd = d.sensor.kind == SensorKind::rtd;
+  if (c.rtd && d.sensor.rtd_class) c.rtd_line = class_line(*d.sensor.rtd_class);
   for (const auto& in : d.inputs)
     if (in.source != Source::board_temperature && in.source != Source::adc_precharge)
       c.active.push_back(static_cast<int>(in.source));
@@ -63,6 +65,7 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     // The sensor's drift over life shifts ln R like R25's tolerance (sensor.hpp).
     if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
       b.ln_shift[u] += std::log1p(drift);
+    b.drift_shift[u] = std::log1p(b.dev[static_cast<int>(Source::sensor_drift)][u]);
   }
 }
 

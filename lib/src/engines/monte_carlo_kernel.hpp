@@ -11,6 +11,7 @@
 #include "monte_carlo_streams.hpp"
 #include "thermargin/chain/acquisition.hpp"
 #include "thermargin/chain/chain.hpp"
+#include "thermargin/chain/rtd.hpp"
 
 namespace thermargin::mc_detail {
 
@@ -32,6 +33,8 @@ struct RunConstants {
   int cal_points = 0;
   AcquisitionModel acquisition{};    // the sampled node (docs/model.md §14)
   bool precharge_any = false;        // the start of C_s drawn per reading
+  bool rtd = false;                  // an RTD: its curve and class spread vectorised
+  ClassLine rtd_line{};              // its class's bound (0 without a class)
 };
 
 RunConstants make_constants(const Chain& chain);
@@ -43,6 +46,7 @@ struct BlockUnits {
   int count = 0;
   alignas(64) double dev[source_count][block_size];
   alignas(64) double ln_shift[block_size];  // ln(1 + δR) of each unit (NTC)
+  alignas(64) double drift_shift[block_size];  // ln(1 + drift) of each unit (RTD)
   alignas(64) double cal_reported[2][block_size];
   alignas(64) double cal_reference[2][block_size];
   alignas(64) std::uint8_t cal_ok[block_size];
