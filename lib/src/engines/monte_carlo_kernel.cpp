@@ -65,7 +65,6 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     // The sensor's drift over life shifts ln R like R25's tolerance (sensor.hpp).
     if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
       b.ln_shift[u] += std::log1p(drift);
-    b.drift_shift[u] = std::log1p(b.dev[static_cast<int>(Source::sensor_drift)][u]);
   }
 }
 

@@ -46,7 +46,6 @@ struct BlockUnits {
   int count = 0;
   alignas(64) double dev[source_count][block_size];
   alignas(64) double ln_shift[block_size];  // ln(1 + δR) of each unit (NTC)
-  alignas(64) double drift_shift[block_size];  // ln(1 + drift) of each unit (RTD)
   alignas(64) double cal_reported[2][block_size];
   alignas(64) double cal_reference[2][block_size];
   alignas(64) std::uint8_t cal_ok[block_size];

@@ -259,32 +259,31 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
   }
 }
 
-// An RTD's ln R at te[] into r_el[] (SensorUnit::ln_resistance, sensor.cpp):
-// the class spread and the Callendar–Van Dusen curve in a loop that
-// vectorises, then the logarithm (the library's std::log, as the chain
-// takes it) in a loop of its own. A unit whose R is not positive is out of
-// table.
-[[gnu::always_inline]] inline void rtd_ln_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+// An RTD's R at te[] into r_el[] (SensorUnit::ln_resistance, sensor.cpp):
+// the class spread and the Callendar–Van Dusen curve, times 1 + drift, in a
+// loop that vectorises. R itself, not exp(ln R) as the chain takes it: the
+// same value to an ulp or two (the chain's round trip through the logarithm
+// is the less exact of the two), and no logarithm, which does not vectorise
+// (docs/engines.md, Speed). A unit whose R is not positive is out of table
+// (R = 1 then, as exp(0) gave).
+[[gnu::always_inline]] inline void rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   const CallendarVanDusen k = c.d->sensor.cvd;
   const ClassLine line = c.rtd_line;
   const double* spread = row(b, Source::rtd_class);
-  const double* drift = b.drift_shift;
+  const double* drift = row(b, Source::sensor_drift);
+  constexpr auto out_of_table = static_cast<std::uint8_t>(Status::out_of_table);
   for (int u = 0; u < block_size; ++u) {
     const double t = s.te[u];
     const double bound = class_bound(line, t - kelvin_offset);
-    s.r_el[u] = resistance(k, (t + spread[u] * bound) - kelvin_offset);
-  }
-  constexpr auto out_of_table = static_cast<std::uint8_t>(Status::out_of_table);
-  for (int u = 0; u < block_size; ++u) {
-    const double r = s.r_el[u];
+    const double r = resistance(k, (t + spread[u] * bound) - kelvin_offset);
     const bool ok = r > 0.0;
     s.status[u] = ok ? s.status[u] : out_of_table;
-    // + ln(1 + drift): + 0 without drift, which leaves ln R as it is.
-    s.r_el[u] = ok ? std::log(r) + drift[u] : 0.0;
+    s.r_el[u] = ok ? r * (1.0 + drift[u]) : 1.0;
   }
 }
 
-// The element's R at te[] into r_el[]: ln R, then a vector exp. A unit
+// The element's R at te[] into r_el[]: ln R, then a vector exp (an RTD's
+// R directly, above). A unit
 // whose sensor cannot be read there is marked out of table. Inlined at both
 // calls, as every stage is, so that the compiler sees the scratch arrays as
 // read_block's own and vectorises without run-time alias checks.
@@ -298,7 +297,8 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
       s.r_el[u] = ln_r0 + shift[u] + (1.0 + d_beta[u]) * (l - ln_r0);
     }
   } else if (c.rtd) {
-    rtd_ln_resistance(c, b, s);
+    rtd_resistance(c, b, s);
+    return;
   } else {
     const SensorSettings& sensor = c.d->sensor;
     for (int u = 0; u < block_size; ++u) {
