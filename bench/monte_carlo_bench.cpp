@@ -70,4 +70,16 @@ void BM_MonteCarloBlockKernelSettling(benchmark::State& state) {
 }
 BENCHMARK(BM_MonteCarloBlockKernelSettling)->Arg(0)->Arg(1)->Arg(2)->Unit(benchmark::kMicrosecond);
 
+// The same block on the Pt1000 hot plate (scenarios/hot_plate_pt1000.ini:
+// the Callendar–Van Dusen curve with its class spread, leads, 16 bits,
+// averaging 4, 251 temperatures). Items are unit-temperature evaluations,
+// as above, so the rate compares with BM_MonteCarloBlockKernel's per
+// evaluation (issue 19's bound: within 1.5× of it).
+void BM_MonteCarloBlockKernelPt1000(benchmark::State& state) {
+  Scenario s;
+  s.load_file(THERMARGIN_SOURCE_DIR "/scenarios/hot_plate_pt1000.ini");
+  run_block_kernel(state, build_design(s));
+}
+BENCHMARK(BM_MonteCarloBlockKernelPt1000)->Unit(benchmark::kMicrosecond);
+
 }  // namespace

@@ -4,12 +4,6 @@
 
 namespace thermargin {
 
-double resistance(const CallendarVanDusen& k, double t) {
-  double f = 1.0 + k.a * t + k.b * t * t;
-  if (t < 0.0) f += k.c * (t - 100.0) * t * t * t;
-  return k.r0 * f;
-}
-
 double resistance_slope(const CallendarVanDusen& k, double t) {
   double d = k.a + 2.0 * k.b * t;
   if (t < 0.0) d += k.c * (4.0 * t * t * t - 300.0 * t * t);
@@ -31,16 +25,17 @@ double temperature_celsius(const CallendarVanDusen& k, double r) {
   return t < -273.15 ? -273.15 : t;
 }
 
-double class_bound(RtdClass cls, double t) {
-  const double at = std::fabs(t);
+ClassLine class_line(RtdClass cls) {
   switch (cls) {
-    case RtdClass::AA: return 0.10 + 0.0017 * at;
-    case RtdClass::A: return 0.15 + 0.002 * at;
-    case RtdClass::B: return 0.30 + 0.005 * at;
-    case RtdClass::C: return 0.6 + 0.01 * at;
+    case RtdClass::AA: return {0.10, 0.0017};
+    case RtdClass::A: return {0.15, 0.002};
+    case RtdClass::B: return {0.30, 0.005};
+    case RtdClass::C: return {0.6, 0.01};
   }
-  return 0.0;
+  return {};
 }
+
+double class_bound(RtdClass cls, double t) { return class_bound(class_line(cls), t); }
 
 ClassRange class_validity(RtdClass cls, RtdConstruction construction) {
   const bool film = construction == RtdConstruction::film;

@@ -30,6 +30,55 @@ struct Job {
   double limit;
 };
 
+// One temperature of a block, prepared for the histogram in a loop that
+// vectorises: each unit's clamped error and its square for the sums (0 for
+// a reading without a value, which adds nothing), its bin and where it
+// falls; the counts.
+struct BlockBins {
+  alignas(64) double clamped[block_size];
+  alignas(64) double squared[block_size];
+  alignas(64) std::int32_t bin[block_size];
+  alignas(64) std::int32_t place[block_size];  // 0 in the histogram, 1 below it, 2 above it, 3 no value
+  int valid = 0, saturated = 0, failed = 0;
+};
+
+void bin_block(const double* __restrict err, const std::uint8_t* __restrict status, int count, const Range& r,
+               BlockBins& out) {
+  const double inv_width = histogram_bins / r.width, lo = r.lo;
+  constexpr auto saturated_status = static_cast<std::uint8_t>(Status::saturated);
+  int valid = 0, saturated = 0;
+  for (int u = 0; u < count; ++u) {
+    const std::uint8_t st = status[u];
+    const bool ok = st == 0;
+    const double e = ok ? err[u] : 0.0;
+    const double clamped = std::min(std::max(e, -sum_clamp), sum_clamp);  // std::clamp's value, branch-free
+    out.clamped[u] = clamped;
+    out.squared[u] = clamped * clamped;
+    const double pos = (e - lo) * inv_width;
+    const bool below = pos < 0.0, above = pos >= histogram_bins;
+    out.bin[u] = static_cast<std::int32_t>((below | above) ? 0.0 : pos);
+    out.place[u] = ok ? static_cast<std::int32_t>(below) + 2 * static_cast<std::int32_t>(above) : 3;
+    valid += ok;
+    saturated += st == saturated_status;
+  }
+  out.valid = valid;
+  out.saturated = saturated;
+  out.failed = count - valid - saturated;
+}
+
+// At a temperature in the window: each unit's worst |error| so far, and
+// whether a reading without a value failed it. A loop of its own, so that
+// both loops vectorise.
+void track_window(const double* __restrict err, const std::uint8_t* __restrict status, int count,
+                  double* __restrict worst, std::uint8_t* __restrict bad) {
+  for (int u = 0; u < count; ++u) {
+    const bool ok = status[u] == 0;
+    const double w = worst[u];
+    bad[u] = static_cast<std::uint8_t>(bad[u] | !ok);
+    worst[u] = ok ? std::max(w, std::fabs(err[u])) : w;
+  }
+}
+
 void run_block(const Job& job, std::uint64_t first, int count, Accumulator& acc, BlockUnits& b) {
   const RunConstants& c = *job.c;
   draw_block(c, b, first, count);
@@ -38,42 +87,29 @@ void run_block(const Job& job, std::uint64_t first, int count, Accumulator& acc,
   alignas(64) double worst[block_size];
   alignas(64) std::uint8_t status[block_size];
   alignas(64) std::uint8_t bad[block_size];
+  BlockBins bins;
   std::fill(std::begin(worst), std::end(worst), 0.0);
   std::fill(std::begin(bad), std::end(bad), std::uint8_t{0});
   const auto& temps = *job.temps;
   for (std::size_t ti = 0; ti < temps.size(); ++ti) {
     errors_block(c, b, temps[ti], static_cast<std::uint32_t>(ti), err, status);
-    const Range& r = (*job.ranges)[ti];
-    const double inv_width = histogram_bins / r.width;
+    bin_block(err, status, count, (*job.ranges)[ti], bins);
+    if (job.in_window[ti] != 0) track_window(err, status, count, worst, bad);
     std::uint32_t* h = &acc.hist[ti * histogram_bins];
     // Sums in double within the block (its order is fixed), then added to
     // the fixed-point totals: the totals do not depend on which thread ran
     // which block.
     double s1 = 0.0, s2 = 0.0;
-    std::uint64_t n_valid = 0, n_saturated = 0, n_failed = 0;
-    const bool window = job.in_window[ti] != 0;
     for (int u = 0; u < count; ++u) {
-      if (status[u] != 0) {
-        const bool saturated = status[u] == static_cast<std::uint8_t>(Status::saturated);
-        n_saturated += saturated;
-        n_failed += !saturated;
-        bad[u] = static_cast<std::uint8_t>(bad[u] | window);
-        continue;
-      }
-      const double e = err[u];
-      ++n_valid;
-      const double clamped = std::clamp(e, -sum_clamp, sum_clamp);
-      s1 += clamped;
-      s2 += clamped * clamped;
-      const double pos = (e - r.lo) * inv_width;
-      if (pos < 0.0) acc.below[ti].push_back(e);
-      else if (pos >= histogram_bins) acc.above[ti].push_back(e);
-      else h[static_cast<int>(pos)]++;
-      worst[u] = window ? std::max(worst[u], std::fabs(e)) : worst[u];
+      s1 += bins.clamped[u];
+      s2 += bins.squared[u];
+      h[bins.bin[u]] += bins.place[u] == 0;
+      if (bins.place[u] == 1) acc.below[ti].push_back(err[u]);
+      else if (bins.place[u] == 2) acc.above[ti].push_back(err[u]);
     }
-    acc.valid[ti] += n_valid;
-    acc.saturated[ti] += n_saturated;
-    acc.failed[ti] += n_failed;
+    acc.valid[ti] += static_cast<std::uint64_t>(bins.valid);
+    acc.saturated[ti] += static_cast<std::uint64_t>(bins.saturated);
+    acc.failed[ti] += static_cast<std::uint64_t>(bins.failed);
     acc.sum[ti] += static_cast<long long>(std::floor(s1 * fixed_point_scale + 0.5));
     acc.sumsq[ti] += static_cast<long long>(std::floor(s2 * fixed_point_scale + 0.5));
   }

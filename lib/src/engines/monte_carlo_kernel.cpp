@@ -38,6 +38,8 @@ RunConstants make_constants(const Chain& chain) {
   c.beta = d.sensor.beta;
   if (d.sensor.kind != SensorKind::rtd)
     if (auto l = nominal_ln_resistance(d.sensor, t0_kelvin)) c.ln_r0 = *l;
+  c.rtd = d.sensor.kind == SensorKind::rtd;
+  if (c.rtd && d.sensor.rtd_class) c.rtd_line = class_line(*d.sensor.rtd_class);
   for (const auto& in : d.inputs)
     if (in.source != Source::board_temperature && in.source != Source::adc_precharge)
       c.active.push_back(static_cast<int>(in.source));
@@ -91,6 +93,12 @@ void errors_block(const RunConstants& c, BlockUnits& b, double t, std::uint32_t 
   alignas(64) double rep[block_size];
   read_block(c, b, t, t_index, rep, status);
   const Calibration cal = c.d->firmware.calibration;
+  if (cal == Calibration::none) {
+    // Without calibration the error is the reading's: branch-free, vectorised.
+    const double nan = std::numeric_limits<double>::quiet_NaN();
+    for (int u = 0; u < block_size; ++u) err[u] = status[u] == 0 ? rep[u] - t : nan;
+    return;
+  }
   for (int u = 0; u < block_size; ++u) {
     if (status[u] == 0 && cal != Calibration::none && !b.cal_ok[u])
       status[u] = static_cast<std::uint8_t>(Status::calibration_failed);

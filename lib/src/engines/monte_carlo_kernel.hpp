@@ -11,6 +11,7 @@
 #include "monte_carlo_streams.hpp"
 #include "thermargin/chain/acquisition.hpp"
 #include "thermargin/chain/chain.hpp"
+#include "thermargin/chain/rtd.hpp"
 
 namespace thermargin::mc_detail {
 
@@ -32,6 +33,8 @@ struct RunConstants {
   int cal_points = 0;
   AcquisitionModel acquisition{};    // the sampled node (docs/model.md §14)
   bool precharge_any = false;        // the start of C_s drawn per reading
+  bool rtd = false;                  // an RTD: its curve and class spread vectorised
+  ClassLine rtd_line{};              // its class's bound (0 without a class)
 };
 
 RunConstants make_constants(const Chain& chain);

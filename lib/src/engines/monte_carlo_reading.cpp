@@ -259,7 +259,31 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
   }
 }
 
-// The element's R at te[] into r_el[]: ln R, then a vector exp. A unit
+// An RTD's R at te[] into r_el[] (SensorUnit::ln_resistance, sensor.cpp):
+// the class spread and the Callendar–Van Dusen curve, times 1 + drift, in a
+// loop that vectorises. R itself, not exp(ln R) as the chain takes it: the
+// same value to an ulp or two (the chain's round trip through the logarithm
+// is the less exact of the two), and no logarithm, which does not vectorise
+// (docs/engines.md, Speed). A unit whose R is not positive is out of table
+// (R = 1 then, as exp(0) gave).
+[[gnu::always_inline]] inline void rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+  const CallendarVanDusen k = c.d->sensor.cvd;
+  const ClassLine line = c.rtd_line;
+  const double* spread = row(b, Source::rtd_class);
+  const double* drift = row(b, Source::sensor_drift);
+  constexpr auto out_of_table = static_cast<std::uint8_t>(Status::out_of_table);
+  for (int u = 0; u < block_size; ++u) {
+    const double t = s.te[u];
+    const double bound = class_bound(line, t - kelvin_offset);
+    const double r = resistance(k, (t + spread[u] * bound) - kelvin_offset);
+    const bool ok = r > 0.0;
+    s.status[u] = ok ? s.status[u] : out_of_table;
+    s.r_el[u] = ok ? r * (1.0 + drift[u]) : 1.0;
+  }
+}
+
+// The element's R at te[] into r_el[]: ln R, then a vector exp (an RTD's
+// R directly, above). A unit
 // whose sensor cannot be read there is marked out of table. Inlined at both
 // calls, as every stage is, so that the compiler sees the scratch arrays as
 // read_block's own and vectorises without run-time alias checks.
@@ -272,6 +296,9 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
       const double l = ln_r25 + beta * (1.0 / s.te[u] - 1.0 / t0_kelvin);
       s.r_el[u] = ln_r0 + shift[u] + (1.0 + d_beta[u]) * (l - ln_r0);
     }
+  } else if (c.rtd) {
+    rtd_resistance(c, b, s);
+    return;
   } else {
     const SensorSettings& sensor = c.d->sensor;
     for (int u = 0; u < block_size; ++u) {
@@ -333,9 +360,12 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
   }
   for (int u = 0; u < block_size; ++u) b.rise_guess[u] = s.status[u] == 0 ? s.te[u] - t_k : 0.0;
   // Still moving after the last iteration, or a step that grew: runaway.
-  for (int u = 0; u < block_size; ++u)
-    if ((moving[u] != 0.0 || runaway_flag[u] != 0.0) && s.status[u] == 0)
-      s.status[u] = static_cast<std::uint8_t>(Status::runaway);
+  // Branch-free, so that it vectorises.
+  constexpr auto runaway = static_cast<std::uint8_t>(Status::runaway);
+  for (int u = 0; u < block_size; ++u) {
+    const bool diverged = (moving[u] != 0.0) | (runaway_flag[u] != 0.0);
+    s.status[u] = (diverged & (s.status[u] == 0)) ? runaway : s.status[u];
+  }
   return resolved_at_first;
 }
 
@@ -390,15 +420,25 @@ void divider_and_adc(const RunConstants& c, const BlockUnits& b, ReadingScratch&
   }
 }
 
+// Whether unit u goes to the scalar chain: heated by more than 1 K, or a
+// runaway for it to confirm.
+inline bool hot_unit(const ReadingScratch& s, const ReadingAt& at, int u) {
+  return (s.te[u] - at.t_k > 1.0) | (s.status[u] == static_cast<std::uint8_t>(Status::runaway));
+}
+
 // Stage 6: a unit heated by more than 1 K is handed to the scalar chain,
 // which checks the loop gain at the true temperature for runaway
 // (chain.cpp): a loop gain of 1 needs a rise of at least 1/|d ln R/dT|,
 // tens of kelvin for any NTC, so this is rare and costs nothing in
 // ordinary designs.
 void hot_units_by_chain(const RunConstants& c, const BlockUnits& b, const ReadingAt& at, ReadingScratch& s) {
+  // Counted first in a loop that vectorises: most blocks have none.
+  int hot = 0;
+  for (int u = 0; u < block_size; ++u) hot += hot_unit(s, at, u);
+  if (hot == 0) return;
   const BoardTemperature board = c.d->conditions.board;
   for (int u = 0; u < block_size; ++u) {
-    if (!(s.te[u] - at.t_k > 1.0) && s.status[u] != static_cast<std::uint8_t>(Status::runaway)) continue;
+    if (!hot_unit(s, at, u)) continue;
     Deviations unit{};
     for (int k = 0; k < source_count; ++k) unit[static_cast<std::size_t>(k)] = b.dev[k][u];
     if (board.kind == BoardKind::range) unit[static_cast<std::size_t>(Source::board_temperature)] = s.tb[u] - board.middle();
@@ -439,14 +479,17 @@ void convert_block(const RunConstants& c, ReadingScratch& s, double* reported) {
   constexpr auto saturated = static_cast<std::uint8_t>(Status::saturated);
   constexpr auto no_solution = static_cast<std::uint8_t>(Status::no_solution);
   if (c.table_conversion) {
-    // Branch-free so that it vectorises (the table lookup is a gather).
+    // Branch-free so that it vectorises (the table lookup is a gather). The
+    // index through a 32-bit integer (the table has at most 2^22 entries):
+    // AVX2 has no vector conversion of a double to a 64-bit integer.
     const double* table = c.conversion.data();
+    alignas(64) double tr[block_size];
+    for (int u = 0; u < block_size; ++u) tr[u] = table[static_cast<std::int32_t>(s.sum[u])];
     for (int u = 0; u < block_size; ++u) {
       std::uint8_t st = s.status[u];
-      st = (st == 0 && s.sat[u] != 0.0) ? saturated : st;
-      const double tr = table[static_cast<std::size_t>(s.sum[u])];
-      st = (st == 0 && tr != tr) ? no_solution : st;  // NaN: no conversion
-      reported[u] = st == 0 ? tr : 0.0;
+      st = ((st == 0) & (s.sat[u] != 0.0)) ? saturated : st;
+      st = ((st == 0) & (tr[u] != tr[u])) ? no_solution : st;  // NaN: no conversion
+      reported[u] = st == 0 ? tr[u] : 0.0;
       s.status[u] = st;
     }
   } else {

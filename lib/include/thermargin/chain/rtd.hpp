@@ -8,6 +8,7 @@
 // C ±(0.6 + 0.01|t|) °C (class C from memory).
 #pragma once
 
+#include <cmath>
 #include <string_view>
 
 namespace thermargin {
@@ -21,13 +22,24 @@ struct CallendarVanDusen {
 
 enum class RtdClass { AA, A, B, C };
 
-double resistance(const CallendarVanDusen& cvd, double t_celsius);
+// Inline and branch-free (the C term selected, not branched to), so that
+// the Monte Carlo kernel's loop over a block of units vectorises it.
+inline double resistance(const CallendarVanDusen& k, double t) {
+  const double f = 1.0 + k.a * t + k.b * t * t;
+  const double below_zero = f + k.c * (t - 100.0) * t * t * t;
+  return k.r0 * (t < 0.0 ? below_zero : f);
+}
 double resistance_slope(const CallendarVanDusen& cvd, double t_celsius);  // Ω/°C
 // Inverse: closed form above 0 °C, Newton from it below. Returns the
 // temperature in °C; resistances below the curve's range give -273.15.
 double temperature_celsius(const CallendarVanDusen& cvd, double r_ohm);
 
-// The class's ± temperature bound at t (°C).
+// The class's ± temperature bound at t (°C): base + slope·|t|.
+struct ClassLine {
+  double base = 0.0, slope = 0.0;  // °C, 1
+};
+ClassLine class_line(RtdClass cls);
+inline double class_bound(const ClassLine& line, double t_celsius) { return line.base + line.slope * std::fabs(t_celsius); }
 double class_bound(RtdClass cls, double t_celsius);
 
 // IEC 60751:2008 rates each class over a range that depends on the
