@@ -63,7 +63,7 @@ Focus focus_of(const State& start, const Context& ctx) {
 }
 
 std::vector<Witness> witnesses_of(const State& w, const Focus& f) {
-  const LinearBudget lb = linear_budget(w.built->chain, f.temps);
+  const LinearBudget lb = linear_budget(w.built->chain, f.temps, BudgetOrder::first);  // the signs only
   std::vector<Witness> out;
   for (std::size_t i = 0; i < f.temps.size(); ++i) {
     if (lb.points[i].status != Status::ok) continue;
