@@ -336,17 +336,20 @@ struct GatheredReadings {
   WorstCasePoint failed;  // the saturated corners, folded
 };
 
-void gather(const Chain& chain, const FrontEnd& fe, const Intervals& iv, GatheredReadings& g) {
-  if (fe.status != Status::ok) {
+// `node`: the corner's front end before the ADC stage, read through the
+// ADC corner `adc` (Chain::static_transfer: adc_stage's reading, no copy).
+void gather(const Chain& chain, const FrontEnd& node, const AdcUnit& adc, const Intervals& iv, GatheredReadings& g) {
+  if (node.status != Status::ok) {
     CornerRange c;
-    c.failure = fe.status;
+    c.failure = node.status;
     fold(g.failed, c);
     return;
   }
+  const double x_static = chain.static_transfer(node, adc);
   double codes[2];
   int n = 0;
   for (double shift : {iv.reading.lo, iv.reading.hi}) {
-    const Reading r = continuous_reading(fe.x_static, shift, chain.max_code());
+    const Reading r = continuous_reading(x_static, shift, chain.max_code());
     if (r.saturated) {
       CornerRange c;
       c.failure = Status::saturated;
@@ -431,7 +434,7 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
           set_signs(d, dev, g.adc, m);
           if (gathered) {
             const AdcUnit adc = Chain::adc_unit(dev);
-            for (std::size_t i = 0; i < nt; ++i) gather(chain, chain.adc_stage(node[i], adc), iv, readings[i]);
+            for (std::size_t i = 0; i < nt; ++i) gather(chain, node[i], adc, iv, readings[i]);
             continue;
           }
           Status cal_failure = Status::ok;
