@@ -47,13 +47,19 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
 SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z,
                        double drift)
     : s_(&s), rtd_k_(rtd_k), table_z_(table_z), drift_shift_(std::log1p(drift)) {
+  if (s.kind == SensorKind::beta) beta_ = BetaLn(BetaCurve{s.r25, s.beta});
   if (s.kind != SensorKind::rtd) {
     // The stretch is about T0; a table that misses 25 °C has been refused
     // upstream whenever a tolerance is active, so ln_r0 is only used then.
-    if (auto l0 = nominal_ln_resistance(s, t0_kelvin)) ln_r0_ = *l0;
+    if (auto l0 = nominal(t0_kelvin)) ln_r0_ = *l0;
     shift_ = std::log1p(delta_r25);
     stretch_ = 1.0 + delta_beta;
   }
+}
+
+std::optional<double> SensorUnit::nominal(double t) const {
+  if (s_->kind == SensorKind::beta) return thermargin::ln_resistance(beta_, t);
+  return nominal_ln_resistance(*s_, t);
 }
 
 std::optional<double> SensorUnit::ln_resistance(double t) const {
@@ -64,7 +70,7 @@ std::optional<double> SensorUnit::ln_resistance(double t) const {
     if (!l || drift_shift_ == 0.0) return l;
     return *l + drift_shift_;
   }
-  auto l = nominal_ln_resistance(*s_, t);
+  auto l = nominal(t);
   if (!l) return std::nullopt;
   if (table_z_ != 0.0) {
     const auto h = s_->table->spread(t, table_z_ > 0.0);
