@@ -77,10 +77,11 @@ void witness_bound(const Chain& chain, const std::vector<Witness>& ws, double en
   const Design& d = chain.design();
   const ReadingInterval q = reading_interval(d);
   const double rounding = bound_rounding(d);
-  for (const Witness& w : ws)
+  for (const Witness& w : ws) {
+    ElementMemo memo(chain, w.t);  // the corner's element stages, for both shifts
     for (double shift : {q.lo, q.hi}) {
       Status failure = Status::ok;
-      const auto e = corner_error(chain, w.corner, w.t, shift, failure);
+      const auto e = corner_error(memo, w.corner, shift, failure);
       if (!e) {
         b.unreadable = true;
         return;
@@ -88,6 +89,7 @@ void witness_bound(const Chain& chain, const std::vector<Witness>& ws, double en
       b.value = std::max(b.value, std::fabs(*e) + rounding);
       if (b.value > enough) return;
     }
+  }
 }
 
 std::size_t best_exact(const std::vector<State>& st) {
