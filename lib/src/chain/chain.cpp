@@ -67,7 +67,8 @@ FrontEnd Chain::front_end(const Deviations& dev, double t_c) const { return adc_
 FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& unit) const { return adc_stage(fe, adc_unit(unit)); }
 
 AdcUnit Chain::adc_unit(const Deviations& unit) {
-  const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
+  Deviations scratch;
+  const Deviations& dev = with_drift(unit, scratch);  // drift over life adds to the initial deviations
   AdcUnit a;
   a.offset = at(dev, Source::adc_offset);
   a.offset_tempco = at(dev, Source::adc_offset_tempco);
@@ -117,7 +118,8 @@ ElementStage Chain::calibration_element_stage(const Deviations& dev, double t_ca
 
 ElementStage Chain::element_stage(const Deviations& unit, double t_c, double dissipation, double dissipation_dev) const {
   const Design& d = *d_;
-  const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
+  Deviations scratch;
+  const Deviations& dev = with_drift(unit, scratch);  // drift over life adds to the initial deviations
   ElementStage es;
   FrontEnd& fe = es.front;
   const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
@@ -193,7 +195,8 @@ FrontEnd Chain::node_stage(const ElementStage& es, const Deviations& unit) const
   FrontEnd fe = es.front;
   if (fe.status != Status::ok) return fe;
   const Design& d = *d_;
-  const Deviations dev = with_drift(unit);
+  Deviations scratch;
+  const Deviations& dev = with_drift(unit, scratch);
   const SupplyUnit supply = supply_unit(d.supply, dev, fe.t_board);
   fe.v_node = node_voltage(d.divider.placement, es.v_excitation, es.r_fixed, es.r_branch, es.r_drive,
                            at(dev, Source::adc_leakage));

@@ -22,28 +22,54 @@ const std::vector<std::size_t>& element_source_list() {
 
 }  // namespace
 
-ElementMemo::ElementMemo(const Chain& chain, double t_celsius) : chain_(&chain), t_(t_celsius) {}
+ElementMemo::ElementMemo(const Chain& chain, double t_celsius) : chain_(&chain), t_(t_celsius), slots_(64, -1) {
+  entries_.reserve(32);
+}
 
+// The element's sources in the key's first words (the rest stay 0).
 ElementMemo::Key ElementMemo::key_of(const Deviations& dev) {
   Key k{};
-  for (std::size_t s : element_source_list()) k[s] = std::bit_cast<std::uint64_t>(dev[s]);
+  const std::vector<std::size_t>& element = element_source_list();
+  for (std::size_t j = 0; j < element.size(); ++j) k[j] = std::bit_cast<std::uint64_t>(dev[element[j]]);
   return k;
 }
 
-// Cheap rather than strong: equal keys are compared word by word anyway.
-std::size_t ElementMemo::KeyHash::operator()(const Key& k) const {
+// Cheap rather than strong: equal hashes are compared word by word anyway.
+std::uint64_t ElementMemo::hash_of(const Key& k) {
   std::uint64_t h = 0;
-  for (std::size_t s = 0; s < k.size(); ++s) h += std::rotl(k[s], static_cast<int>(s * 7 % 64));
+  for (std::size_t j = 0; j < element_source_list().size(); ++j) h += std::rotl(k[j], static_cast<int>(j * 7 % 64));
   h ^= h >> 31;
   h *= 0x9e3779b97f4a7c15ULL;
-  return static_cast<std::size_t>(h ^ (h >> 29));
+  return h ^ (h >> 29);
+}
+
+void ElementMemo::grow() {
+  slots_.assign(2 * slots_.size(), -1);
+  const std::size_t mask = slots_.size() - 1;
+  for (std::size_t e = 0; e < entries_.size(); ++e) {
+    std::size_t i = entries_[e].hash & mask;
+    while (slots_[i] >= 0) i = (i + 1) & mask;
+    slots_[i] = static_cast<int>(e);
+  }
+}
+
+const ElementMemo::Entry& ElementMemo::find(const Deviations& dev) {
+  const Key k = key_of(dev);
+  const std::uint64_t h = hash_of(k);
+  const std::size_t mask = slots_.size() - 1;
+  std::size_t i = h & mask;
+  for (; slots_[i] >= 0; i = (i + 1) & mask) {
+    const Entry& e = entries_[static_cast<std::size_t>(slots_[i])];
+    if (e.hash == h && e.key == k) return e;
+  }
+  slots_[i] = static_cast<int>(entries_.size());
+  entries_.push_back({k, h, chain_->element_stages(dev, t_)});
+  if (2 * entries_.size() > slots_.size()) grow();
+  return entries_.back();
 }
 
 Evaluation ElementMemo::evaluate(const Deviations& dev, const ReadingShift& shift, bool round_output) {
-  const Key k = key_of(dev);
-  auto it = stages_.find(k);
-  if (it == stages_.end()) it = stages_.emplace(k, chain_->element_stages(dev, t_)).first;
-  return chain_->evaluate(it->second, dev, t_, shift, round_output);
+  return chain_->evaluate(find(dev).stages, dev, t_, shift, round_output);
 }
 
 }  // namespace thermargin

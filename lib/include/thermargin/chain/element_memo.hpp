@@ -14,7 +14,7 @@
 #include <array>
 #include <cstddef>
 #include <cstdint>
-#include <unordered_map>
+#include <vector>
 
 #include "thermargin/chain/chain.hpp"
 
@@ -30,15 +30,23 @@ class ElementMemo {
   Evaluation evaluate(const Deviations& dev, const ReadingShift& shift = {}, bool round_output = false);
 
  private:
-  // The element's sources of a unit as their bits, every other source 0.
+  // The element's sources of a unit as their bits (in the first words; the
+  // rest 0).
   using Key = std::array<std::uint64_t, source_count>;
-  struct KeyHash {
-    std::size_t operator()(const Key& k) const;
+  struct Entry {
+    Key key;
+    std::uint64_t hash;
+    ElementStages stages;
   };
   static Key key_of(const Deviations& dev);
+  static std::uint64_t hash_of(const Key& k);
+  // The entry of `k`, made when new.
+  const Entry& find(const Deviations& dev);
+  void grow();
   const Chain* chain_;
   double t_;
-  std::unordered_map<Key, ElementStages, KeyHash> stages_;
+  std::vector<Entry> entries_;
+  std::vector<int> slots_;  // open addressing: an index into entries_, −1 empty; a power of two long
 };
 
 }  // namespace thermargin
