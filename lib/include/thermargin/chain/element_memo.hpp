@@ -28,6 +28,8 @@ class ElementMemo {
 
   // chain.evaluate(dev, t, shift, round_output), to the bit.
   Evaluation evaluate(const Deviations& dev, const ReadingShift& shift = {}, bool round_output = false);
+  // The element stages computed so far: one per distinct unit's element sources.
+  std::size_t element_solves() const { return entries_.size(); }
 
  private:
   // The element's sources of a unit as their bits (in the first words; the
