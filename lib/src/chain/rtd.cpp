@@ -31,16 +31,17 @@ double temperature_celsius(const CallendarVanDusen& k, double r) {
   return t < -273.15 ? -273.15 : t;
 }
 
-double class_bound(RtdClass cls, double t) {
-  const double at = std::fabs(t);
+ClassLine class_line(RtdClass cls) {
   switch (cls) {
-    case RtdClass::AA: return 0.10 + 0.0017 * at;
-    case RtdClass::A: return 0.15 + 0.002 * at;
-    case RtdClass::B: return 0.30 + 0.005 * at;
-    case RtdClass::C: return 0.6 + 0.01 * at;
+    case RtdClass::AA: return {0.10, 0.0017};
+    case RtdClass::A: return {0.15, 0.002};
+    case RtdClass::B: return {0.30, 0.005};
+    case RtdClass::C: return {0.6, 0.01};
   }
-  return 0.0;
+  return {};
 }
+
+double class_bound(RtdClass cls, double t) { return class_line(cls).at(t); }
 
 ClassRange class_validity(RtdClass cls, RtdConstruction construction) {
   const bool film = construction == RtdConstruction::film;

@@ -8,6 +8,8 @@
 // C ±(0.6 + 0.01|t|) °C (class C from memory).
 #pragma once
 
+#include <cmath>
+
 #include <string_view>
 
 namespace thermargin {
@@ -29,6 +31,15 @@ double temperature_celsius(const CallendarVanDusen& cvd, double r_ohm);
 
 // The class's ± temperature bound at t (°C).
 double class_bound(RtdClass cls, double t_celsius);
+
+// The same bound as a line in |t|, for code that reads one class at many
+// temperatures: class_bound(cls, t) is class_line(cls).at(t), to the bit.
+struct ClassLine {
+  double at_zero = 0.0;  // °C
+  double slope = 0.0;    // °C per °C of |t|
+  double at(double t_celsius) const { return at_zero + slope * std::fabs(t_celsius); }
+};
+ClassLine class_line(RtdClass cls);
 
 // IEC 60751:2008 rates each class over a range that depends on the
 // element's construction (from memory, not read):
