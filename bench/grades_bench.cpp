@@ -6,6 +6,9 @@
 // of wall time on two cores. Prices are invented.
 #include <benchmark/benchmark.h>
 
+#include <string>
+
+#include "thermargin/input/catalogue.hpp"
 #include "thermargin/tools/grades.hpp"
 
 namespace {
@@ -69,5 +72,23 @@ void BM_Grades256Yield1e4(benchmark::State& state) {
   }
 }
 BENCHMARK(BM_Grades256Yield1e4)->Arg(2)->Iterations(1)->Unit(benchmark::kSecond)->UseRealTime();
+
+// The run of issue 19's goal (bench/run_times.sh): the Pt1000 hot plate
+// against bench/pt1000_oven_catalogue.csv, 54 combinations, each through
+// every engine, 10^4-unit yields, a volume of 10^4.
+void BM_GradesPt1000Oven54Yield1e4(benchmark::State& state) {
+  Scenario scenario;
+  scenario.load_file(std::string(THERMARGIN_SOURCE_DIR) + "/scenarios/hot_plate_pt1000.ini");
+  const Catalogue cat = read_catalogue(std::string(THERMARGIN_SOURCE_DIR) + "/bench/pt1000_oven_catalogue.csv");
+  GradesOptions o = yield_1e4(state);
+  o.volume = 1e4;
+  GradesResult g;
+  for (auto _ : state) {
+    g = evaluate_grades(scenario, cat, o);
+    benchmark::DoNotOptimize(g.rows.data());
+  }
+  state.counters["monte_carlo_runs"] = static_cast<double>(g.mc_full);
+}
+BENCHMARK(BM_GradesPt1000Oven54Yield1e4)->Arg(2)->Iterations(1)->Unit(benchmark::kSecond)->UseRealTime();
 
 }  // namespace

@@ -6,6 +6,7 @@
 // and the cheap screening it is spared for most candidates.
 #include <benchmark/benchmark.h>
 
+#include "bench_designs.hpp"
 #include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/tools/picker.hpp"
 #include "thermargin/engines/worst_case.hpp"
@@ -36,6 +37,23 @@ BENCHMARK(BM_PickE96WorstCase)
     ->Args({2, 1})
     ->Unit(benchmark::kMillisecond)
     ->UseRealTime();
+
+// The run of issue 19's goal (bench/run_times.sh: `pick
+// bench/fourteen_inputs.ini --series e96`): E96 over 1 kΩ–1 MΩ on the
+// 14-input design, worst case, guidance on, as the command runs it.
+void BM_PickE96FourteenInputs(benchmark::State& state) {
+  const Scenario s = bench::fourteen_inputs_scenario();
+  PickOptions o;
+  o.threads = static_cast<int>(state.range(0));
+  std::size_t full = 0;
+  for (auto _ : state) {
+    const PickResult r = pick(s, o);
+    full = r.evaluated_in_full;
+    benchmark::DoNotOptimize(r.rows.data());
+  }
+  state.counters["in_full"] = static_cast<double>(full);
+}
+BENCHMARK(BM_PickE96FourteenInputs)->ArgName("threads")->Arg(1)->Arg(2)->Unit(benchmark::kMillisecond)->UseRealTime();
 
 std::vector<double> window(const Design& d) {
   std::vector<double> w;

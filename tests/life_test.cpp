@@ -209,6 +209,13 @@ TEST(Life, DriftFoldsIntoItsPartAndOnlyOnce) {
   Deviations none{};
   none[static_cast<std::size_t>(Source::r_fixed)] = 0.01;
   EXPECT_EQ(with_drift(none), none);  // no drift: bit for bit
+  // The overload the chain's stages use: the unit itself when it has no
+  // drift, else the folded copy.
+  Deviations scratch{};
+  EXPECT_FALSE(has_drift(none));
+  EXPECT_EQ(&with_drift(none, scratch), &none);
+  EXPECT_TRUE(has_drift(dev));
+  EXPECT_EQ(with_drift(dev, scratch), once);
 }
 
 TEST(Life, RtdDriftShiftsTheElement) {

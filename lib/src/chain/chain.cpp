@@ -67,7 +67,8 @@ FrontEnd Chain::front_end(const Deviations& dev, double t_c) const { return adc_
 FrontEnd Chain::adc_stage(FrontEnd fe, const Deviations& unit) const { return adc_stage(fe, adc_unit(unit)); }
 
 AdcUnit Chain::adc_unit(const Deviations& unit) {
-  const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
+  Deviations scratch;
+  const Deviations& dev = with_drift(unit, scratch);  // drift over life adds to the initial deviations
   AdcUnit a;
   a.offset = at(dev, Source::adc_offset);
   a.offset_tempco = at(dev, Source::adc_offset_tempco);
@@ -79,6 +80,11 @@ AdcUnit Chain::adc_unit(const Deviations& unit) {
 
 FrontEnd Chain::adc_stage(FrontEnd fe, const AdcUnit& adc) const {
   if (fe.status != Status::ok) return fe;
+  fe.x_static = static_transfer(fe, adc);
+  return fe;
+}
+
+double Chain::static_transfer(const FrontEnd& fe, const AdcUnit& adc) const {
   // The ADC's offset and gain drift with the board temperature (docs/model.md §5).
   const double drift = fe.t_board - 25.0;
   const double offset = adc.offset + adc.offset_tempco * drift;
@@ -88,9 +94,8 @@ FrontEnd Chain::adc_stage(FrontEnd fe, const AdcUnit& adc) const {
   inl = 0.0;
 #endif
   const bool bound = d_->adc.inl_bound;
-  fe.x_static = adc_static(fe.x_ideal, span_, adc.gain + adc.gain_tempco * drift, bound ? offset + inl : offset,
-                           bound ? 0.0 : inl);
-  return fe;
+  return adc_static(fe.x_ideal, span_, adc.gain + adc.gain_tempco * drift, bound ? offset + inl : offset,
+                    bound ? 0.0 : inl);
 }
 
 FrontEnd Chain::analog_front_end(const Deviations& dev, double t_c) const {
@@ -113,7 +118,8 @@ ElementStage Chain::calibration_element_stage(const Deviations& dev, double t_ca
 
 ElementStage Chain::element_stage(const Deviations& unit, double t_c, double dissipation, double dissipation_dev) const {
   const Design& d = *d_;
-  const Deviations dev = with_drift(unit);  // drift over life adds to the initial deviations
+  Deviations scratch;
+  const Deviations& dev = with_drift(unit, scratch);  // drift over life adds to the initial deviations
   ElementStage es;
   FrontEnd& fe = es.front;
   const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
@@ -189,7 +195,8 @@ FrontEnd Chain::node_stage(const ElementStage& es, const Deviations& unit) const
   FrontEnd fe = es.front;
   if (fe.status != Status::ok) return fe;
   const Design& d = *d_;
-  const Deviations dev = with_drift(unit);
+  Deviations scratch;
+  const Deviations& dev = with_drift(unit, scratch);
   const SupplyUnit supply = supply_unit(d.supply, dev, fe.t_board);
   fe.v_node = node_voltage(d.divider.placement, es.v_excitation, es.r_fixed, es.r_branch, es.r_drive,
                            at(dev, Source::adc_leakage));
@@ -212,14 +219,32 @@ std::optional<double> Chain::convert(double code, bool round_output) const {
   return round_output ? firmware_.round_output(*t) : *t;
 }
 
+ElementStages Chain::element_stages(const Deviations& dev, double t_c) const {
+  ElementStages s;
+  s.at_t = element_stage(dev, t_c);
+  const FirmwareSettings& f = d_->firmware;
+  for (int i = 0; i < calibration_points(f.calibration); ++i)
+    s.at_cal[i] = calibration_element_stage(dev, f.calibration_at[static_cast<std::size_t>(i)]);
+  return s;
+}
+
 std::optional<CalibrationData> Chain::calibrate(const Deviations& dev, const ReadingShift& shift,
                                                 bool round_output) const {
+  const FirmwareSettings& f = d_->firmware;
+  ElementStage at_cal[2];
+  for (int i = 0; i < calibration_points(f.calibration); ++i)
+    at_cal[i] = calibration_element_stage(dev, f.calibration_at[static_cast<std::size_t>(i)]);
+  return calibrate(at_cal, dev, shift, round_output);
+}
+
+std::optional<CalibrationData> Chain::calibrate(const ElementStage (&at_cal)[2], const Deviations& dev,
+                                                const ReadingShift& shift, bool round_output) const {
   const FirmwareSettings& f = d_->firmware;
   CalibrationData k;
   const int points = calibration_points(f.calibration);
   for (int i = 0; i < points; ++i) {
     const double t_cal = f.calibration_at[static_cast<std::size_t>(i)];
-    const FrontEnd fe = adc_stage(analog_calibration_front_end(dev, t_cal), dev);
+    const FrontEnd fe = adc_stage(node_stage(at_cal[i], dev), dev);
     if (fe.status != Status::ok) return std::nullopt;
     const Reading r = continuous_reading(fe.x_static, shift.at_cal[i], max_code_);
     if (r.saturated) return std::nullopt;
@@ -258,9 +283,8 @@ Evaluation Chain::finish(const FrontEnd& fe, double t_c, const Reading& r, const
   return e;
 }
 
-Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift& shift, const CalibrationData* cal,
-                           bool round_output) const {
-  const FrontEnd fe = front_end(dev, t_c);
+Evaluation Chain::read(const FrontEnd& fe, double t_c, const ReadingShift& shift, const CalibrationData* cal,
+                       bool round_output) const {
   if (fe.status != Status::ok) {
     Evaluation e;
     e.status = fe.status;
@@ -271,10 +295,21 @@ Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift
   return finish(fe, t_c, continuous_reading(fe.x_static, shift.at_t, max_code_), cal, round_output, shift.output_at_t);
 }
 
+Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift& shift, const CalibrationData* cal,
+                           bool round_output) const {
+  return read(front_end(dev, t_c), t_c, shift, cal, round_output);
+}
+
 Evaluation Chain::evaluate(const Deviations& dev, double t_c, const ReadingShift& shift, bool round_output) const {
-  if (d_->firmware.calibration == Calibration::none) return evaluate(dev, t_c, shift, nullptr, round_output);
-  const auto k = calibrate(dev, shift, round_output);
-  return evaluate(dev, t_c, shift, k ? &*k : nullptr, round_output);
+  return evaluate(element_stages(dev, t_c), dev, t_c, shift, round_output);
+}
+
+Evaluation Chain::evaluate(const ElementStages& stages, const Deviations& dev, double t_c, const ReadingShift& shift,
+                           bool round_output) const {
+  const FrontEnd fe = adc_stage(node_stage(stages.at_t, dev), dev);
+  if (d_->firmware.calibration == Calibration::none) return read(fe, t_c, shift, nullptr, round_output);
+  const auto k = calibrate(stages.at_cal, dev, shift, round_output);
+  return read(fe, t_c, shift, k ? &*k : nullptr, round_output);
 }
 
 }  // namespace thermargin

@@ -37,6 +37,7 @@ Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion)
   full_scale_ = d.firmware.full_scale == FullScale::pow2 ? span : span - 1.0;
   if (!d.supply.ratiometric) ratio_scale_ = d.supply.v_reference / d.supply.v_excitation;
   beta_ = BetaCurve{d.firmware.r25, d.firmware.beta};
+  beta_ln_ = BetaLn(beta_);
   if (d.firmware.sh) {
     sh_ = *d.firmware.sh;
   } else {
@@ -93,7 +94,7 @@ std::optional<double> Firmware::temperature(double code) const {
   const auto r = element_resistance(code);
   if (!r) return std::nullopt;
   const double l = std::log(*r);
-  const double t = conversion_ == Conversion::beta ? temperature_kelvin(beta_, l) : temperature_kelvin(sh_, l);
+  const double t = conversion_ == Conversion::beta ? temperature_kelvin(beta_ln_, l) : temperature_kelvin(sh_, l);
   if (!(t > 0.0)) return std::nullopt;
   return t - kelvin_offset;
 }

@@ -6,14 +6,20 @@
 
 namespace thermargin {
 
-double ln_resistance(const BetaCurve& c, double t) { return std::log(c.r25) + c.beta * (1.0 / t - 1.0 / t0_kelvin); }
+BetaLn::BetaLn(const BetaCurve& c) : ln_r25(std::log(c.r25)), beta(c.beta) {}
+
+double ln_resistance(const BetaLn& c, double t) { return c.ln_r25 + c.beta * (1.0 / t - 1.0 / t0_kelvin); }
+
+double temperature_kelvin(const BetaLn& c, double ln_r) {
+  const double inv = 1.0 / t0_kelvin + (ln_r - c.ln_r25) / c.beta;
+  return inv > 0.0 ? 1.0 / inv : 0.0;
+}
+
+double ln_resistance(const BetaCurve& c, double t) { return ln_resistance(BetaLn(c), t); }
 
 double ln_resistance_slope(const BetaCurve& c, double t) { return -c.beta / (t * t); }
 
-double temperature_kelvin(const BetaCurve& c, double ln_r) {
-  const double inv = 1.0 / t0_kelvin + (ln_r - std::log(c.r25)) / c.beta;
-  return inv > 0.0 ? 1.0 / inv : 0.0;
-}
+double temperature_kelvin(const BetaCurve& c, double ln_r) { return temperature_kelvin(BetaLn(c), ln_r); }
 
 double ln_resistance(const SteinhartHart& s, double t) {
   if (s.c == 0.0) return (1.0 / t - s.a) / s.b;

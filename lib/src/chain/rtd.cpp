@@ -35,7 +35,7 @@ ClassLine class_line(RtdClass cls) {
   return {};
 }
 
-double class_bound(RtdClass cls, double t) { return class_bound(class_line(cls), t); }
+double class_bound(RtdClass cls, double t) { return class_line(cls).at(t); }
 
 ClassRange class_validity(RtdClass cls, RtdConstruction construction) {
   const bool film = construction == RtdConstruction::film;

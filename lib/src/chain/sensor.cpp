@@ -4,16 +4,20 @@
 
 namespace thermargin {
 
+namespace {
+std::optional<double> rtd_ln_resistance(const CallendarVanDusen& cvd, double t) {
+  const double r = resistance(cvd, t - kelvin_offset);
+  if (!(r > 0.0)) return std::nullopt;
+  return std::log(r);
+}
+}  // namespace
+
 std::optional<double> nominal_ln_resistance(const SensorSettings& s, double t) {
   switch (s.kind) {
     case SensorKind::beta: return ln_resistance(BetaCurve{s.r25, s.beta}, t);
     case SensorKind::steinhart_hart: return ln_resistance(s.sh, t);
     case SensorKind::table: return s.table->ln_resistance(t);
-    case SensorKind::rtd: {
-      const double r = resistance(s.cvd, t - kelvin_offset);
-      if (!(r > 0.0)) return std::nullopt;
-      return std::log(r);
-    }
+    case SensorKind::rtd: return rtd_ln_resistance(s.cvd, t);
   }
   return std::nullopt;
 }
@@ -47,24 +51,31 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
 SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z,
                        double drift)
     : s_(&s), rtd_k_(rtd_k), table_z_(table_z), drift_shift_(std::log1p(drift)) {
+  if (s.kind == SensorKind::beta) beta_ = BetaLn(BetaCurve{s.r25, s.beta});
+  if (s.kind == SensorKind::rtd && s.rtd_class) rtd_line_ = class_line(*s.rtd_class);
   if (s.kind != SensorKind::rtd) {
     // The stretch is about T0; a table that misses 25 °C has been refused
     // upstream whenever a tolerance is active, so ln_r0 is only used then.
-    if (auto l0 = nominal_ln_resistance(s, t0_kelvin)) ln_r0_ = *l0;
+    if (auto l0 = nominal(t0_kelvin)) ln_r0_ = *l0;
     shift_ = std::log1p(delta_r25);
     stretch_ = 1.0 + delta_beta;
   }
 }
 
+std::optional<double> SensorUnit::nominal(double t) const {
+  if (s_->kind == SensorKind::beta) return thermargin::ln_resistance(beta_, t);
+  return nominal_ln_resistance(*s_, t);
+}
+
 std::optional<double> SensorUnit::ln_resistance(double t) const {
   if (s_->kind == SensorKind::rtd) {
     const double tc = t - kelvin_offset;
-    const double bound = s_->rtd_class ? class_bound(*s_->rtd_class, tc) : 0.0;
-    const auto l = nominal_ln_resistance(*s_, t + rtd_k_ * bound);
+    const double bound = s_->rtd_class ? rtd_line_.at(tc) : 0.0;
+    const auto l = rtd_ln_resistance(s_->cvd, t + rtd_k_ * bound);
     if (!l || drift_shift_ == 0.0) return l;
     return *l + drift_shift_;
   }
-  auto l = nominal_ln_resistance(*s_, t);
+  auto l = nominal(t);
   if (!l) return std::nullopt;
   if (table_z_ != 0.0) {
     const auto h = s_->table->spread(t, table_z_ > 0.0);

@@ -5,6 +5,7 @@
 
 #include <boost/math/distributions/normal.hpp>
 
+#include "thermargin/chain/element_memo.hpp"
 #include "thermargin/engines/second_order.hpp"
 
 namespace thermargin {
@@ -112,8 +113,11 @@ LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temper
     LinearPoint lp;
     lp.t = t;
     Status failure = Status::ok;
+    // Most of the differences move one or two inputs: those of the node and
+    // the ADC share the element stages of their unit (element_memo.hpp).
+    ElementMemo memo(chain, t);
     auto model = [&](const Deviations& dev, const ReadingShift& shift) -> std::optional<double> {
-      const Evaluation e = chain.evaluate(dev, t, shift, false);
+      const Evaluation e = memo.evaluate(dev, shift, false);
       if (e.status != Status::ok) {
         if (failure == Status::ok) failure = e.status;
         return std::nullopt;
@@ -170,7 +174,7 @@ LinearBudget linear_budget(const Chain& chain, const std::vector<double>& temper
       // A step the chain cannot read leaves that term out (counted), without
       // failing the point as a first-order failure does.
       const DeviationModel quiet = [&](const Deviations& dev) -> std::optional<double> {
-        const Evaluation e = chain.evaluate(dev, t, centre_shift, false);
+        const Evaluation e = memo.evaluate(dev, centre_shift, false);
         if (e.status != Status::ok) return std::nullopt;
         return e.error;
       };

@@ -22,12 +22,36 @@ namespace {
 
 using namespace mc_detail;
 
+// The pilot's blocks, read once and kept for the run: each block's errors
+// and statuses at every temperature. The run's first blocks are the pilot's
+// (the same first unit and count), and a block's readings depend only on its
+// units, the temperatures and the run's constants (draw_block starts every
+// block afresh), so the run accumulates these instead of reading the block
+// again: the same values, in the same order. Kept only up to
+// max_kept_readings (units × temperatures), else the run reads them again.
+struct PilotBlocks {
+  static constexpr std::uint64_t max_kept_readings = std::uint64_t{1} << 22;  // 36 MB
+  std::size_t nt = 0;
+  std::vector<std::uint64_t> first;
+  std::vector<int> count;
+  std::vector<double> err;            // [block][temperature][unit of the block]
+  std::vector<std::uint8_t> status;   // the same layout
+  std::size_t at(std::size_t k, std::size_t ti) const { return (k * nt + ti) * block_size; }
+  // The kept block that is units [f, f + n), or none.
+  const PilotBlocks* find(std::uint64_t f, int n, std::size_t& k) const {
+    if (f % block_size != 0) return nullptr;
+    k = static_cast<std::size_t>(f / block_size);
+    return k < first.size() && first[k] == f && count[k] == n ? this : nullptr;
+  }
+};
+
 struct Job {
   const RunConstants* c;
   const std::vector<double>* temps;
   const std::vector<Range>* ranges;
   std::vector<std::uint8_t> in_window;
   double limit;
+  const PilotBlocks* pilot = nullptr;
 };
 
 // One temperature of a block, prepared for the histogram in a loop that
@@ -81,18 +105,29 @@ void track_window(const double* __restrict err, const std::uint8_t* __restrict s
 
 void run_block(const Job& job, std::uint64_t first, int count, Accumulator& acc, BlockUnits& b) {
   const RunConstants& c = *job.c;
-  draw_block(c, b, first, count);
-  if (c.cal_points > 0) calibrate_block(c, b);
-  alignas(64) double err[block_size];
+  std::size_t k = 0;
+  const PilotBlocks* kept = job.pilot ? job.pilot->find(first, count, k) : nullptr;
+  if (!kept) {
+    draw_block(c, b, first, count);
+    if (c.cal_points > 0) calibrate_block(c, b);
+  }
+  alignas(64) double read_err[block_size];
   alignas(64) double worst[block_size];
-  alignas(64) std::uint8_t status[block_size];
+  alignas(64) std::uint8_t read_status[block_size];
   alignas(64) std::uint8_t bad[block_size];
   BlockBins bins;
   std::fill(std::begin(worst), std::end(worst), 0.0);
   std::fill(std::begin(bad), std::end(bad), std::uint8_t{0});
   const auto& temps = *job.temps;
   for (std::size_t ti = 0; ti < temps.size(); ++ti) {
-    errors_block(c, b, temps[ti], static_cast<std::uint32_t>(ti), err, status);
+    const double* err = read_err;
+    const std::uint8_t* status = read_status;
+    if (kept) {
+      err = &kept->err[kept->at(k, ti)];
+      status = &kept->status[kept->at(k, ti)];
+    } else {
+      errors_block(c, b, temps[ti], static_cast<std::uint32_t>(ti), read_err, read_status);
+    }
     bin_block(err, status, count, (*job.ranges)[ti], bins);
     if (job.in_window[ti] != 0) track_window(err, status, count, worst, bad);
     std::uint32_t* h = &acc.hist[ti * histogram_bins];
@@ -148,29 +183,69 @@ Accumulator run_units(const Job& job, std::uint64_t first, std::uint64_t n, int 
       progress(static_cast<double>(progress_base + done.load() * block_size) / static_cast<double>(progress_total));
     }
   });
+  // Integer counts and appended tails: one worker's accumulator is the total.
+  if (accs.size() == 1) return std::move(accs.front());
   Accumulator total(nt);
   for (const auto& a : accs) total.merge(a);
   return total;
 }
 
-// The pilot: the first units fix each temperature's histogram range.
-std::vector<Range> pilot_ranges(const RunConstants& c, const std::vector<double>& temperatures, std::uint64_t n) {
+// The pilot: the first n units fix each temperature's histogram range. Its
+// blocks are read on `threads` threads (the smallest and largest value are
+// exact whatever the split) and kept in `kept` when they fit.
+std::vector<Range> pilot_ranges(const RunConstants& c, const std::vector<double>& temperatures, std::uint64_t n,
+                                int threads, PilotBlocks& kept) {
   const std::size_t nt = temperatures.size();
-  std::vector<double> lo(nt, std::numeric_limits<double>::infinity()), hi(nt, -std::numeric_limits<double>::infinity());
-  std::vector<double> errs;
-  for (std::uint64_t f = 0; f < n; f += block_size) {
-    const int count = static_cast<int>(std::min<std::uint64_t>(block_size, n - f));
-    simulate_block_with(c, temperatures, f, count, errs);
-    for (std::size_t ti = 0; ti < nt; ++ti)
-      for (int u = 0; u < count; ++u) {
-        const double e = errs[static_cast<std::size_t>(u) + ti * static_cast<std::size_t>(count)];
-        if (std::isnan(e)) continue;
-        lo[ti] = std::min(lo[ti], e);
-        hi[ti] = std::max(hi[ti], e);
-      }
+  const std::size_t blocks = static_cast<std::size_t>((n + block_size - 1) / block_size);
+  const bool keep = n * nt <= PilotBlocks::max_kept_readings;
+  if (keep) {
+    kept.nt = nt;
+    kept.err.resize(blocks * nt * block_size);
+    kept.status.resize(blocks * nt * block_size);
+    for (std::size_t k = 0; k < blocks; ++k) {
+      kept.first.push_back(k * block_size);
+      kept.count.push_back(static_cast<int>(std::min<std::uint64_t>(block_size, n - k * block_size)));
+    }
   }
+  const int workers = static_cast<int>(std::min<std::size_t>(static_cast<std::size_t>(std::max(threads, 1)), std::max<std::size_t>(blocks, 1)));
+  constexpr double inf = std::numeric_limits<double>::infinity();
+  std::vector<std::vector<double>> lo(static_cast<std::size_t>(workers), std::vector<double>(nt, inf));
+  std::vector<std::vector<double>> hi(static_cast<std::size_t>(workers), std::vector<double>(nt, -inf));
+  std::atomic<std::size_t> next{0};
+  run_workers(workers, [&](int w) {
+    auto b = std::make_unique<BlockUnits>();
+    alignas(64) double err[block_size];
+    alignas(64) std::uint8_t status[block_size];
+    for (std::size_t k; (k = next.fetch_add(1)) < blocks;) {
+      const std::uint64_t f = k * block_size;
+      const int count = static_cast<int>(std::min<std::uint64_t>(block_size, n - f));
+      draw_block(c, *b, f, count);
+      if (c.cal_points > 0) calibrate_block(c, *b);
+      for (std::size_t ti = 0; ti < nt; ++ti) {
+        errors_block(c, *b, temperatures[ti], static_cast<std::uint32_t>(ti), err, status);
+        if (keep) {
+          std::copy(std::begin(err), std::end(err), kept.err.begin() + static_cast<std::ptrdiff_t>(kept.at(k, ti)));
+          std::copy(std::begin(status), std::end(status), kept.status.begin() + static_cast<std::ptrdiff_t>(kept.at(k, ti)));
+        }
+        double& l = lo[static_cast<std::size_t>(w)][ti];
+        double& h = hi[static_cast<std::size_t>(w)][ti];
+        for (int u = 0; u < count; ++u) {
+          if (std::isnan(err[u])) continue;
+          l = std::min(l, err[u]);
+          h = std::max(h, err[u]);
+        }
+      }
+    }
+  });
   std::vector<Range> ranges(nt);
-  for (std::size_t ti = 0; ti < nt; ++ti) ranges[ti] = pilot_range(lo[ti], hi[ti]);
+  for (std::size_t ti = 0; ti < nt; ++ti) {
+    double l = inf, h = -inf;
+    for (int w = 0; w < workers; ++w) {
+      l = std::min(l, lo[static_cast<std::size_t>(w)][ti]);
+      h = std::max(h, hi[static_cast<std::size_t>(w)][ti]);
+    }
+    ranges[ti] = pilot_range(l, h);
+  }
   return ranges;
 }
 
@@ -247,17 +322,18 @@ McResult monte_carlo(const Chain& chain, const std::vector<double>& temperatures
   Job job{&c, &temperatures, nullptr, std::vector<std::uint8_t>(nt, 0), d.requirement.max_error};
   for (std::size_t i = 0; i < nt; ++i)
     job.in_window[i] = in_requirement_window(d.requirement, temperatures[i]);
+  PilotBlocks pilot;
   const std::vector<Range> ranges =
-      pilot_ranges(c, temperatures, adaptive ? pilot_units : std::min(requested, pilot_units));
+      pilot_ranges(c, temperatures, adaptive ? pilot_units : std::min(requested, pilot_units), threads, pilot);
   job.ranges = &ranges;
+  job.pilot = &pilot;
 
   McResult result;
   McSummary& s = result.summary;
   s.coverage = d.montecarlo.coverage;
   s.adaptive = adaptive;
-  Accumulator total(nt);
-  if (!adaptive) total = run_units(job, 0, requested, threads, options.progress, 0, requested);
-  else s.converged = run_adaptive(job, d.montecarlo, threads, options.progress, total);
+  Accumulator total = adaptive ? Accumulator(nt) : run_units(job, 0, requested, threads, options.progress, 0, requested);
+  if (adaptive) s.converged = run_adaptive(job, d.montecarlo, threads, options.progress, total);
   result.points = summarise(total, temperatures, ranges, d.montecarlo.coverage);
   summarise_run(total, job, result.points, s);
   return result;

@@ -336,17 +336,20 @@ struct GatheredReadings {
   WorstCasePoint failed;  // the saturated corners, folded
 };
 
-void gather(const Chain& chain, const FrontEnd& fe, const Intervals& iv, GatheredReadings& g) {
-  if (fe.status != Status::ok) {
+// `node`: the corner's front end before the ADC stage, read through the
+// ADC corner `adc` (Chain::static_transfer: adc_stage's reading, no copy).
+void gather(const Chain& chain, const FrontEnd& node, const AdcUnit& adc, const Intervals& iv, GatheredReadings& g) {
+  if (node.status != Status::ok) {
     CornerRange c;
-    c.failure = fe.status;
+    c.failure = node.status;
     fold(g.failed, c);
     return;
   }
+  const double x_static = chain.static_transfer(node, adc);
   double codes[2];
   int n = 0;
   for (double shift : {iv.reading.lo, iv.reading.hi}) {
-    const Reading r = continuous_reading(fe.x_static, shift, chain.max_code());
+    const Reading r = continuous_reading(x_static, shift, chain.max_code());
     if (r.saturated) {
       CornerRange c;
       c.failure = Status::saturated;
@@ -388,6 +391,34 @@ bool fold_gathered(const Chain& chain, const GatheredReadings& g, double t, cons
   return true;
 }
 
+// Each ADC corner's reading of the ADC's sources (Chain::adc_unit reads
+// nothing else), in the order of the corners' masks.
+std::vector<AdcUnit> adc_units(const Design& d, const std::vector<std::size_t>& adc_inputs) {
+  std::vector<AdcUnit> out;
+  for (long long m = 0; m < (1LL << adc_inputs.size()); ++m) {
+    Deviations dev{};
+    set_signs(d, dev, adc_inputs, m);
+    out.push_back(Chain::adc_unit(dev));
+  }
+  return out;
+}
+
+// Every node and ADC corner of one element corner gathered at each
+// temperature (`node_at_t`: the node corners' front ends, nt a corner),
+// temperature by temperature so that its spans stay at hand. A span's ends
+// are a minimum and a maximum and the failures a count and the lowest
+// status, whatever the order of the corners.
+void gather_corners(const Chain& chain, const std::vector<FrontEnd>& node_at_t, const std::vector<AdcUnit>& adc,
+                    const Intervals& iv, std::vector<GatheredReadings>& readings) {
+  const std::size_t nt = readings.size(), node_corners = node_at_t.size() / std::max<std::size_t>(nt, 1);
+  for (std::size_t i = 0; i < nt; ++i) {
+    GatheredReadings g;
+    for (std::size_t b = 0; b < node_corners; ++b)
+      for (const AdcUnit& a : adc) gather(chain, node_at_t[b * nt + i], a, iv, g);
+    readings[i] = std::move(g);
+  }
+}
+
 // Every corner: every combination of the inputs' signs, in three nested
 // stages (stage_inputs): the element's (the sensor and its self-heating, the
 // costly part) computed once for every corner of the node's inputs, and the
@@ -407,6 +438,7 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
   threads = resolve_threads(threads);
   threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), element_corners}));
   std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
+  const std::vector<AdcUnit> adc = gathered ? adc_units(d, g.adc) : std::vector<AdcUnit>{};
   std::atomic<long long> next{0};
   auto work = [&](int worker) {
     std::vector<WorstCasePoint>& out = partial[static_cast<std::size_t>(worker)];
@@ -420,20 +452,15 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
       ElementStage cal_element[2];
       for (int k = 0; k < cal_points; ++k)
         cal_element[k] = chain.calibration_element_stage(dev, d.firmware.calibration_at[static_cast<std::size_t>(k)]);
-      std::fill(readings.begin(), readings.end(), GatheredReadings{});
       for (long long b = 0; b < node_corners; ++b) {
         set_signs(d, dev, g.node, b);
         FrontEnd* node = &node_at_t[static_cast<std::size_t>(b) * nt];
         for (std::size_t i = 0; i < nt; ++i) node[i] = chain.node_stage(at_t[i], dev);
+        if (gathered) continue;
         CalibrationFrontEnds at_cal;
         for (int k = 0; k < cal_points; ++k) at_cal.at[k] = chain.node_stage(cal_element[k], dev);
         for (long long m = 0; m < adc_corners; ++m) {
           set_signs(d, dev, g.adc, m);
-          if (gathered) {
-            const AdcUnit adc = Chain::adc_unit(dev);
-            for (std::size_t i = 0; i < nt; ++i) gather(chain, chain.adc_stage(node[i], adc), iv, readings[i]);
-            continue;
-          }
           Status cal_failure = Status::ok;
           const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
           for (std::size_t i = 0; i < nt; ++i)
@@ -441,6 +468,7 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
         }
       }
       if (!gathered) continue;
+      gather_corners(chain, node_at_t, adc, iv, readings);
       for (std::size_t i = 0; i < nt; ++i) {
         if (fold_gathered(chain, readings[i], temperatures[i], iv, out[i])) continue;
         // An end that does not convert: every corner of this element corner by itself.

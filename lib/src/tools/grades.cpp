@@ -189,7 +189,9 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
 
   f.wc_max_abs = picked_wc;
   if (!picked_wc) {
-    const WindowMax m = window_max(worst_case(chain, window, {.method = options.corners, .threads = 1}).points, d.requirement);
+    // The band alone: window_max reads no source's own half-width.
+    const WorstCaseOptions wo{.method = options.corners, .half_widths = false, .threads = 1};
+    const WindowMax m = window_max(worst_case(chain, window, wo).points, d.requirement);
     if (m.readable) f.wc_max_abs = m.max_abs;
     else unreadable(m.failure, m.failure_at);
   }

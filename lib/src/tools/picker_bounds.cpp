@@ -99,8 +99,8 @@ double bound_rounding(const Design& d) {
 
 // The unrounded error at one corner with the readings shifted by `rs`;
 // none (and `failure` set) where the chain fails.
-std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, const ReadingShift& rs, Status& failure) {
-  const Evaluation e = chain.evaluate(dev, t, rs, false);
+std::optional<double> corner_error(ElementMemo& memo, const Deviations& dev, const ReadingShift& rs, Status& failure) {
+  const Evaluation e = memo.evaluate(dev, rs, false);
   if (e.status != Status::ok) {
     if (failure == Status::ok) failure = e.status;
     return std::nullopt;
@@ -109,10 +109,10 @@ std::optional<double> corner_error(const Chain& chain, const Deviations& dev, do
 }
 
 // Every reading at one end of the reading interval.
-std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, double shift, Status& failure) {
+std::optional<double> corner_error(ElementMemo& memo, const Deviations& dev, double shift, Status& failure) {
   ReadingShift rs;
   rs.at_t = rs.at_cal[0] = rs.at_cal[1] = shift;
-  return corner_error(chain, dev, t, rs, failure);
+  return corner_error(memo, dev, rs, failure);
 }
 
 // The reading shifts at which a directed design's start corner is read:
@@ -150,12 +150,13 @@ DirectedBound directed_bound(const Chain& chain, const std::vector<double>& temp
   for (std::size_t i = 0; i < temps.size(); ++i) {
     const LinearPoint& lp = lb.points[i];
     if (lp.status != Status::ok) continue;
+    ElementMemo memo(chain, temps[i]);
     for (double direction : {-1.0, 1.0}) {
       const Deviations dev = directed_corner(d, lp, direction);
       Status failure = Status::ok;
       double highest = -inf, lowest = inf;
       for (const ReadingShift& rs : shifts) {
-        const auto e = corner_error(chain, dev, temps[i], rs, failure);
+        const auto e = corner_error(memo, dev, rs, failure);
         if (!e) continue;
         highest = std::max(highest, *e);
         lowest = std::min(lowest, *e);

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "thermargin/chain/chain.hpp"
+#include "thermargin/chain/element_memo.hpp"
 #include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/engines/monte_carlo.hpp"
 #include "thermargin/engines/worst_case.hpp"
@@ -80,12 +81,13 @@ Deviations directed_corner(const Design& d, const LinearPoint& lp, double direct
 // What the bound adds to an unrounded |error| for the output rounding.
 double bound_rounding(const Design& d);
 
-// The unrounded error at one corner with the readings shifted by `rs`;
-// none (and `failure` set) where the chain fails.
-std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, const ReadingShift& rs, Status& failure);
+// The unrounded error at one corner with the readings shifted by `rs`, at
+// the memo's temperature (a corner read at several shifts shares its
+// element stages); none (and `failure` set) where the chain fails.
+std::optional<double> corner_error(ElementMemo& memo, const Deviations& dev, const ReadingShift& rs, Status& failure);
 
 // Every reading at one end of the reading interval.
-std::optional<double> corner_error(const Chain& chain, const Deviations& dev, double t, double shift, Status& failure);
+std::optional<double> corner_error(ElementMemo& memo, const Deviations& dev, double shift, Status& failure);
 
 // The reading shifts at which a directed design's start corner is read:
 // the reading at t at either end of its interval, and each calibration

@@ -188,13 +188,17 @@ void screen(State& s, const Context& ctx, const Focus* focus) {
     finish_row(s);
     return;
   }
-  if (o == Objective::worst_case && focus) {
-    bound_worst_case(s, focus->temps, linear_budget(chain, focus->temps), focus->rest);
+  if (o == Objective::worst_case) {
+    // Only the signs of the first-order sensitivities direct the corners of
+    // the lower bound (and whether the budget could be formed says where
+    // they were evaluated): the first-order budget, whose sensitivities and
+    // status are the second-order budget's to the bit. The rows shown get
+    // the linear band and dominant source of the full budget (complete_row).
+    const std::vector<double>& temps = focus ? focus->temps : ctx.window;
+    bound_worst_case(s, temps, linear_budget(chain, temps, BudgetOrder::first), focus ? focus->rest : std::vector<double>{});
     return;
   }
-  // The linear budget is cheap and gives every row its band and dominant
-  // source; for the worst case it also tells whether the directed corners
-  // below were evaluated (they are, where the budget could be formed).
+  // The linear budget gives every row its band and dominant source.
   const LinearBudget lb = linear_budget(chain, ctx.window);
   const LinearWindow lin = linear_window(lb);
   if (lin.band.status == Status::ok) row.rss_max_abs = lin.band.max_abs;
@@ -205,17 +209,12 @@ void screen(State& s, const Context& ctx, const Focus* focus) {
     finish_row(s);
     return;
   }
-  if (o == Objective::monte_carlo) {
-    const McCheck mc = mc_window(chain, ctx.window, ctx.mc_objective_units, 1);
-    if (!mc.readable) set_status(s, Status::saturated);
-    row.mc_max_abs = mc.max_abs;
-    set_score(s, o, mc.max_abs);
-    finish_row(s);
-    return;
-  }
-  // Worst case: a lower bound first (the full enumeration only where the
-  // bound says a candidate could reach the top).
-  bound_worst_case(s, ctx.window, lb, {});
+  // The Monte Carlo objective.
+  const McCheck mc = mc_window(chain, ctx.window, ctx.mc_objective_units, 1);
+  if (!mc.readable) set_status(s, Status::saturated);
+  row.mc_max_abs = mc.max_abs;
+  set_score(s, o, mc.max_abs);
+  finish_row(s);
 }
 
 // One step of a screened candidate towards its full worst case: the full

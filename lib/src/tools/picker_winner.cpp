@@ -63,7 +63,7 @@ Focus focus_of(const State& start, const Context& ctx) {
 }
 
 std::vector<Witness> witnesses_of(const State& w, const Focus& f) {
-  const LinearBudget lb = linear_budget(w.built->chain, f.temps);
+  const LinearBudget lb = linear_budget(w.built->chain, f.temps, BudgetOrder::first);  // the signs only
   std::vector<Witness> out;
   for (std::size_t i = 0; i < f.temps.size(); ++i) {
     if (lb.points[i].status != Status::ok) continue;
@@ -77,10 +77,11 @@ void witness_bound(const Chain& chain, const std::vector<Witness>& ws, double en
   const Design& d = chain.design();
   const ReadingInterval q = reading_interval(d);
   const double rounding = bound_rounding(d);
-  for (const Witness& w : ws)
+  for (const Witness& w : ws) {
+    ElementMemo memo(chain, w.t);  // the corner's element stages, for both shifts
     for (double shift : {q.lo, q.hi}) {
       Status failure = Status::ok;
-      const auto e = corner_error(chain, w.corner, w.t, shift, failure);
+      const auto e = corner_error(memo, w.corner, shift, failure);
       if (!e) {
         b.unreadable = true;
         return;
@@ -88,6 +89,7 @@ void witness_bound(const Chain& chain, const std::vector<Witness>& ws, double en
       b.value = std::max(b.value, std::fabs(*e) + rounding);
       if (b.value > enough) return;
     }
+  }
 }
 
 std::size_t best_exact(const std::vector<State>& st) {

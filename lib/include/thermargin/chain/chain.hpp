@@ -73,6 +73,13 @@ struct ElementStage {
   SampleMap settling;           // the sampled node's map at r_thevenin (docs/model.md §14)
 };
 
+// The element stages one evaluation reads: at the measured temperature and
+// at each calibration point (Chain::element_stages).
+struct ElementStages {
+  ElementStage at_t;
+  ElementStage at_cal[2];
+};
+
 // Which stage of the chain a source acts in first: a source of a later
 // stage never changes an earlier one (drift over life belongs to its part's
 // stage), so an engine may share an earlier stage among the corners of the
@@ -117,6 +124,10 @@ class Chain {
   // adc_stage(fe, adc_unit(dev)), to the bit.
   static AdcUnit adc_unit(const Deviations& dev);
   FrontEnd adc_stage(FrontEnd fe, const AdcUnit& adc) const;
+  // The ADC's static transfer alone, for a front end that read (status ok):
+  // adc_stage(fe, adc).x_static, to the bit, without copying the front end
+  // (the worst case's innermost loop).
+  double static_transfer(const FrontEnd& fe, const AdcUnit& adc) const;
 
   // analog_front_end(dev, t) is node_stage(element_stage(dev, t), dev) and
   // analog_calibration_front_end(dev, t) node_stage(calibration_element_stage(dev, t), dev),
@@ -125,12 +136,20 @@ class Chain {
   ElementStage element_stage(const Deviations& dev, double t_celsius) const;
   ElementStage calibration_element_stage(const Deviations& dev, double t_cal) const;
   FrontEnd node_stage(const ElementStage& element, const Deviations& dev) const;
+  // The element stages of `dev` at t and at each calibration point (the
+  // calibration medium's, as analog_calibration_front_end); they read only
+  // the element's sources of `dev`.
+  ElementStages element_stages(const Deviations& dev, double t_celsius) const;
 
   // Firmware steps 1–4 for a reading: temperature before calibration.
   std::optional<double> convert(double code, bool round_output) const;
 
   // The calibration a unit receives; nullopt when a calibration reading fails.
   std::optional<CalibrationData> calibrate(const Deviations& dev, const ReadingShift& shift, bool round_output) const;
+  // The same from the unit's element stages at the calibration points
+  // (element_stages(dev, t).at_cal), to the bit.
+  std::optional<CalibrationData> calibrate(const ElementStage (&at_cal)[2], const Deviations& dev, const ReadingShift& shift,
+                                           bool round_output) const;
 
   // One reading: continuous, the quantiser the identity plus shift.at_t;
   // `cal` is the unit's calibration (needed when calibration is on).
@@ -140,6 +159,11 @@ class Chain {
   // Convenience: calibrates the unit first with the same shifts.
   Evaluation evaluate(const Deviations& dev, double t_celsius, const ReadingShift& shift = {},
                       bool round_output = false) const;
+  // The same from the unit's element stages (element_stages(dev, t)), to
+  // the bit: evaluations of units whose element sources are equal may share
+  // them (element_memo.hpp).
+  Evaluation evaluate(const ElementStages& stages, const Deviations& dev, double t_celsius, const ReadingShift& shift,
+                      bool round_output) const;
 
   // From a reading (however obtained) to the evaluation's tail.
   Evaluation finish(const FrontEnd& fe, double t_celsius, const Reading& r, const CalibrationData* cal,
@@ -148,6 +172,10 @@ class Chain {
  private:
   // `dissipation`: W/K of the medium, `dissipation_dev` the unit's relative deviation of it.
   ElementStage element_stage(const Deviations& dev, double t_celsius, double dissipation, double dissipation_dev) const;
+  // A reading from its front end at t: the reading's tail (finish), or the
+  // front end's status.
+  Evaluation read(const FrontEnd& fe, double t_celsius, const ReadingShift& shift, const CalibrationData* cal,
+                  bool round_output) const;
   const Design* d_;
   Firmware firmware_;
   double span_ = 0.0, max_code_ = 0.0;

@@ -20,4 +20,10 @@ Source drift_target(Source s);
 // bit for bit.
 Deviations with_drift(Deviations dev);
 
+// Whether `dev` has a drift that with_drift folds (it changes nothing else).
+bool has_drift(const Deviations& dev);
+// with_drift(dev) without the copy when there is nothing to fold: `dev`
+// itself, else `scratch` holding with_drift(dev).
+const Deviations& with_drift(const Deviations& dev, Deviations& scratch);
+
 }  // namespace thermargin

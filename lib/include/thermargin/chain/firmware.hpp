@@ -83,6 +83,7 @@ class Firmware {
   double full_scale_ = 0.0;
   double ratio_scale_ = 1.0;  // V_ref,nom / V_exc,nom
   BetaCurve beta_{};
+  BetaLn beta_ln_;  // beta_ with ln R25 taken once (the conversion's)
   SteinhartHart sh_{};
   bool table_monotone_ = true;  // the lookup table's stored points in one direction
   LookupTable table_;

@@ -26,6 +26,19 @@ double ln_resistance_slope(const BetaCurve& c, double t_kelvin);
 // non-positive result (no physical solution) is returned as 0.
 double temperature_kelvin(const BetaCurve& c, double ln_r);
 
+// A beta curve with ln R25 taken once, for code that evaluates one curve
+// many times (a unit's element in every self-heating step, the firmware's
+// conversion): the BetaCurve functions above are these with ln R25 taken on
+// each call, so both give the same bits.
+struct BetaLn {
+  double ln_r25 = 0.0;
+  double beta = 0.0;
+  BetaLn() = default;
+  explicit BetaLn(const BetaCurve& c);
+};
+double ln_resistance(const BetaLn& c, double t_kelvin);
+double temperature_kelvin(const BetaLn& c, double ln_r);
+
 struct SteinhartHart {
   double a;  // 1/K
   double b;  // 1/K

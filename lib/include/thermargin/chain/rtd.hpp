@@ -34,12 +34,15 @@ double resistance_slope(const CallendarVanDusen& cvd, double t_celsius);  // Ω/
 // temperature in °C; resistances below the curve's range give -273.15.
 double temperature_celsius(const CallendarVanDusen& cvd, double r_ohm);
 
-// The class's ± temperature bound at t (°C): base + slope·|t|.
+// The class's ± temperature bound at t (°C): base + slope·|t|, as a line
+// for code that reads one class at many temperatures (class_bound(cls, t) is
+// class_line(cls).at(t), to the bit).
 struct ClassLine {
-  double base = 0.0, slope = 0.0;  // °C, 1
+  double base = 0.0, slope = 0.0;  // °C, °C per °C of |t|
+  double at(double t_celsius) const { return base + slope * std::fabs(t_celsius); }
 };
 ClassLine class_line(RtdClass cls);
-inline double class_bound(const ClassLine& line, double t_celsius) { return line.base + line.slope * std::fabs(t_celsius); }
+inline double class_bound(const ClassLine& line, double t_celsius) { return line.at(t_celsius); }
 double class_bound(RtdClass cls, double t_celsius);
 
 // IEC 60751:2008 rates each class over a range that depends on the

@@ -35,7 +35,11 @@ class SensorUnit {
   std::optional<double> ln_resistance(double t_kelvin) const;
 
  private:
+  // nominal_ln_resistance(*s_, t), a beta curve's ln R25 taken once.
+  std::optional<double> nominal(double t_kelvin) const;
   const SensorSettings* s_;
+  BetaLn beta_;          // the beta model's curve
+  ClassLine rtd_line_;   // the RTD's class bound (rtd_class set)
   double ln_r0_ = 0.0;   // ln R_nom(T0) (NTC)
   double shift_ = 0.0;   // ln(1 + δR)
   double stretch_ = 1.0; // 1 + δβ
