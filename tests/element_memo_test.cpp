@@ -77,7 +77,9 @@ TEST(ElementMemo, EveryEvaluationIsTheChainsToTheBit) {
           }
     }
   }
-  EXPECT_GT(compared, 10000);
+  // Hundreds of evaluations a design (the sanitizer build visits the covering
+  // subset of the scenarios, so the total follows the number of designs).
+  EXPECT_GT(compared, 500 * static_cast<int>(designs.size()));
 }
 
 TEST(ElementMemo, UnitsDifferingInTheNodeAndTheAdcShareOneElementSolve) {
