@@ -40,12 +40,10 @@ std::vector<Deviations> units_of(const Design& d) {
 }
 
 TEST(ElementMemo, EveryEvaluationIsTheChainsToTheBit) {
-  std::vector<Design> designs;
-  for (const auto& file : testing::scenario_files()) designs.push_back(design_with({}, file));
-  designs.push_back(design_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}));
-  designs.push_back(design_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"},
-                                 {"firmware.calibration_uncertainty", "0.05"},
-                                 {"firmware.calibration_dissipation", "10mW/K"}}));
+  std::vector<Design> designs = testing::every_scenario_and(
+      {{{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}},
+       {{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"},
+        {"firmware.calibration_uncertainty", "0.05"}, {"firmware.calibration_dissipation", "10mW/K"}}});
   designs.push_back(at_end_of_life(design_with({{"sensor.drift", "2%"}, {"supply.ratiometric", "false"},
                                                 {"supply.v_reference", "3.3V"}, {"supply.v_reference_drift", "0.2%"},
                                                 {"divider.r_fixed_drift", "0.1%"}, {"adc.offset_drift", "1"}})));

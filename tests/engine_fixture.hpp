@@ -28,6 +28,16 @@ inline Design design_with(const Overrides& overrides, const std::string& file = 
   return build_design(scenario_with(overrides, file));
 }
 
+// Every shipped scenario (the covering subset in a sanitizer build), then the
+// default design with each of `variants` applied: the designs an equality
+// test walks to reach every path of the chain.
+inline std::vector<Design> every_scenario_and(const std::vector<Overrides>& variants) {
+  std::vector<Design> designs;
+  for (const auto& file : scenario_files()) designs.push_back(design_with({}, file));
+  for (const auto& v : variants) designs.push_back(design_with(v));
+  return designs;
+}
+
 inline Overrides with_extra(Overrides o, const Overrides& extra) {
   o.insert(o.end(), extra.begin(), extra.end());  // later settings win
   return o;

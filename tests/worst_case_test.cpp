@@ -249,22 +249,22 @@ TEST(WorstCase, EnumerationIsEveryCornerThroughTheChainOnEveryScenarioAndCalibra
   // converts only the extreme readings at each temperature; by definition
   // it is every corner evaluated on its own. Both fold the same numbers, so
   // they agree to the bit.
-  std::vector<Design> designs;
-  for (const auto& file : testing::scenario_files()) designs.push_back(design_with({}, file));
-  designs.push_back(design_with({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}}));
-  designs.push_back(design_with({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"},
-                                 {"firmware.calibration_uncertainty", "0.05"}}));
-  designs.push_back(design_with({{"supply.ratiometric", "false"}, {"supply.v_reference", "3.0"},
-                                 {"supply.v_reference_tol", "0.5%"}, {"adc.leakage", "20n"}}));
-  designs.push_back(design_with({{"adc.offset", "1500"}}));  // corners that saturate
-  // Readings the firmware's lookup table does not reach (a wide R25 spread):
-  // the extreme readings do not convert, and the element corner's corners
-  // are taken one by one (docs/engines.md, Worst case).
-  designs.push_back(design_with({{"sensor.r25_tol", "40%"}, {"firmware.conversion", "table"}}));
-  // A Steinhart–Hart conversion whose 1/T turns at R = 517 Ω (c < 0): not
-  // monotone over these readings, so every reading of every corner is converted.
-  designs.push_back(design_with({{"firmware.conversion", "steinhart-hart"}, {"firmware.a", "1.129e-3"},
-                                 {"firmware.b", "2.341e-4"}, {"firmware.c", "-2e-6"}}));
+  std::vector<Design> designs = testing::every_scenario_and({
+      {{"firmware.calibration", "offset"}, {"firmware.calibration_at", "40"}},
+      {{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "5,55"},
+       {"firmware.calibration_uncertainty", "0.05"}},
+      {{"supply.ratiometric", "false"}, {"supply.v_reference", "3.0"},
+       {"supply.v_reference_tol", "0.5%"}, {"adc.leakage", "20n"}},
+      {{"adc.offset", "1500"}},  // corners that saturate
+      // Readings the firmware's lookup table does not reach (a wide R25 spread):
+      // the extreme readings do not convert, and the element corner's corners
+      // are taken one by one (docs/engines.md, Worst case).
+      {{"sensor.r25_tol", "40%"}, {"firmware.conversion", "table"}},
+      // A Steinhart–Hart conversion whose 1/T turns at R = 517 Ω (c < 0): not
+      // monotone over these readings, so every reading of every corner is converted.
+      {{"firmware.conversion", "steinhart-hart"}, {"firmware.a", "1.129e-3"},
+       {"firmware.b", "2.341e-4"}, {"firmware.c", "-2e-6"}},
+  });
   // Drift over life in every stage (element, node, ADC), at end of life.
   designs.push_back(at_end_of_life(design_with({{"sensor.drift", "2%"}, {"supply.ratiometric", "false"},
                                                 {"supply.v_reference", "3.3V"}, {"supply.v_reference_drift", "0.2%"},
