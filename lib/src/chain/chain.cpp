@@ -85,8 +85,13 @@ FrontEnd Chain::adc_stage(FrontEnd fe, const AdcUnit& adc) const {
 }
 
 double Chain::static_transfer(const FrontEnd& fe, const AdcUnit& adc) const {
+  const double u = fe.x_ideal / span_;
+  return adc_static(fe.x_ideal, u, 1.0 - u, adc_terms(adc, fe.t_board));
+}
+
+AdcTerms Chain::adc_terms(const AdcUnit& adc, double t_board) const {
   // The ADC's offset and gain drift with the board temperature (docs/model.md §5).
-  const double drift = fe.t_board - 25.0;
+  const double drift = t_board - 25.0;
   const double offset = adc.offset + adc.offset_tempco * drift;
   // adc.inl_shape = bound: the INL deviation at every code, not the bow.
   double inl = adc.inl;
@@ -94,8 +99,7 @@ double Chain::static_transfer(const FrontEnd& fe, const AdcUnit& adc) const {
   inl = 0.0;
 #endif
   const bool bound = d_->adc.inl_bound;
-  return adc_static(fe.x_ideal, span_, adc.gain + adc.gain_tempco * drift, bound ? offset + inl : offset,
-                    bound ? 0.0 : inl);
+  return thermargin::adc_terms(adc.gain + adc.gain_tempco * drift, bound ? offset + inl : offset, bound ? 0.0 : inl);
 }
 
 FrontEnd Chain::analog_front_end(const Deviations& dev, double t_c) const {

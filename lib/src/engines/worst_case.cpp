@@ -403,18 +403,85 @@ std::vector<AdcUnit> adc_units(const Design& d, const std::vector<std::size_t>& 
   return out;
 }
 
+// The usual case of one temperature's gathering, in one pass: every node
+// corner read (status ok), and every corner's readings inside the ADC's
+// range with the lowest above 0. Then the spans are the lowest static
+// transfer plus the interval's low end and the highest plus its high end:
+// rounding is monotone, so fl(x + lo) <= fl(x' + lo) for x <= x' (and
+// fl(x + lo) <= fl(x + hi)), which also says that no corner's reading is
+// below 0 or above the top code when those two are not; the readings are
+// all positive, so no zero's sign can depend on the order. The transfer is
+// Chain::static_transfer's, its parts computed once a node corner and once
+// an ADC corner (adc.hpp's AdcTerms). NaN transfers are passed over, as
+// ReadingSpan::add passes them over. Returns false (g untouched) when the
+// case does not hold: gather() then reads each corner.
+// The ADC corners' terms as arrays (a multiple of four long, padded with
+// the last corner's: a repeated corner changes no minimum or maximum).
+struct AdcTermArrays {
+  std::vector<double> one_plus_gain, offset, inl4;
+  void set(const Chain& chain, const std::vector<AdcUnit>& adc, double t_board) {
+    const std::size_t n = (adc.size() + 3) / 4 * 4;
+    one_plus_gain.resize(n);
+    offset.resize(n);
+    inl4.resize(n);
+    for (std::size_t a = 0; a < n; ++a) {
+      const AdcTerms t = chain.adc_terms(adc[std::min(a, adc.size() - 1)], t_board);
+      one_plus_gain[a] = t.one_plus_gain;
+      offset[a] = t.offset;
+      inl4[a] = t.inl4;
+    }
+  }
+};
+
+bool gather_span(const Chain& chain, const FrontEnd* node, std::size_t stride, std::size_t node_corners,
+                 const std::vector<AdcUnit>& adc, const Intervals& iv, AdcTermArrays& terms, GatheredReadings& g) {
+  constexpr double inf = std::numeric_limits<double>::infinity();
+  // Four lanes, each its own minimum and maximum (NaN passed over in each),
+  // then the lanes' together: the same extremes as one pass over the corners.
+  double lo[4] = {inf, inf, inf, inf}, hi[4] = {-inf, -inf, -inf, -inf};
+  const double span = chain.span();
+  for (std::size_t b = 0; b < node_corners; ++b) {
+    const FrontEnd& fe = node[b * stride];
+    if (fe.status != Status::ok) return false;
+    if (b == 0 || !(fe.t_board == node[(b - 1) * stride].t_board)) terms.set(chain, adc, fe.t_board);
+    const double x = fe.x_ideal, u = x / span, one_minus_u = 1.0 - u;
+    const std::size_t n = terms.offset.size();
+    const double* g1 = terms.one_plus_gain.data();
+    const double* off = terms.offset.data();
+    const double* i4 = terms.inl4.data();
+    for (std::size_t a = 0; a < n; a += 4)
+      for (std::size_t j = 0; j < 4; ++j) {
+        const double s = adc_static(x, u, one_minus_u, AdcTerms{g1[a + j], off[a + j], i4[a + j]});
+        lo[j] = s < lo[j] ? s : lo[j];
+        hi[j] = hi[j] < s ? s : hi[j];
+      }
+  }
+  double low = lo[0], high = hi[0];
+  for (std::size_t j = 1; j < 4; ++j) {
+    low = lo[j] < low ? lo[j] : low;
+    high = high < hi[j] ? hi[j] : high;
+  }
+  if (!(low <= high)) return false;
+  const double code_lo = low + iv.reading.lo, code_hi = high + iv.reading.hi;
+  if (!(code_lo > 0.0) || code_hi > chain.max_code()) return false;
+  g.converted.lo = g.ok.lo = code_lo;
+  g.converted.hi = g.ok.hi = code_hi;
+  return true;
+}
+
 // Every node and ADC corner of one element corner gathered at each
 // temperature (`node_at_t`: the node corners' front ends, nt a corner),
 // temperature by temperature so that its spans stay at hand. A span's ends
 // are a minimum and a maximum and the failures a count and the lowest
 // status, whatever the order of the corners.
 void gather_corners(const Chain& chain, const std::vector<FrontEnd>& node_at_t, const std::vector<AdcUnit>& adc,
-                    const Intervals& iv, std::vector<GatheredReadings>& readings) {
+                    const Intervals& iv, std::vector<GatheredReadings>& readings, AdcTermArrays& terms) {
   const std::size_t nt = readings.size(), node_corners = node_at_t.size() / std::max<std::size_t>(nt, 1);
   for (std::size_t i = 0; i < nt; ++i) {
     GatheredReadings g;
-    for (std::size_t b = 0; b < node_corners; ++b)
-      for (const AdcUnit& a : adc) gather(chain, node_at_t[b * nt + i], a, iv, g);
+    if (!gather_span(chain, &node_at_t[i], nt, node_corners, adc, iv, terms, g))
+      for (std::size_t b = 0; b < node_corners; ++b)
+        for (const AdcUnit& a : adc) gather(chain, node_at_t[b * nt + i], a, iv, g);
     readings[i] = std::move(g);
   }
 }
@@ -445,6 +512,7 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
     std::vector<ElementStage> at_t(nt);
     std::vector<FrontEnd> node_at_t(nt * static_cast<std::size_t>(node_corners));
     std::vector<GatheredReadings> readings(gathered ? nt : 0);
+    AdcTermArrays terms;
     for (long long a; (a = next.fetch_add(1)) < element_corners;) {
       Deviations dev{};
       set_signs(d, dev, g.element, a);
@@ -468,7 +536,7 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
         }
       }
       if (!gathered) continue;
-      gather_corners(chain, node_at_t, adc, iv, readings);
+      gather_corners(chain, node_at_t, adc, iv, readings, terms);
       for (std::size_t i = 0; i < nt; ++i) {
         if (fold_gathered(chain, readings[i], temperatures[i], iv, out[i])) continue;
         // An end that does not convert: every corner of this element corner by itself.
