@@ -8,6 +8,10 @@
 #include <limits>
 #include <thread>
 
+#ifdef __AVX2__
+#include <immintrin.h>
+#endif
+
 #include "thermargin/engines/linear_budget.hpp"
 
 namespace thermargin {
@@ -449,12 +453,30 @@ bool gather_span(const Chain& chain, const FrontEnd* node, std::size_t stride, s
     const double* g1 = terms.one_plus_gain.data();
     const double* off = terms.offset.data();
     const double* i4 = terms.inl4.data();
+#ifdef __AVX2__
+    // The same lanes by intrinsics (GCC leaves the loop below scalar):
+    // vminpd(s, lo) is s < lo ? s : lo and vmaxpd(s, hi) is hi < s ? s : hi,
+    // lane by lane, NaN and zeros included; the multiplications and
+    // additions are adc_static's, in its order (no contraction).
+    __m256d vlo = _mm256_loadu_pd(lo), vhi = _mm256_loadu_pd(hi);
+    const __m256d vx = _mm256_set1_pd(x), vu = _mm256_set1_pd(u), vw = _mm256_set1_pd(one_minus_u);
+    for (std::size_t a = 0; a < n; a += 4) {
+      const __m256d sum = _mm256_add_pd(_mm256_mul_pd(vx, _mm256_loadu_pd(g1 + a)), _mm256_loadu_pd(off + a));
+      const __m256d bow = _mm256_mul_pd(_mm256_mul_pd(_mm256_loadu_pd(i4 + a), vu), vw);
+      const __m256d v = _mm256_add_pd(sum, bow);
+      vlo = _mm256_min_pd(v, vlo);
+      vhi = _mm256_max_pd(v, vhi);
+    }
+    _mm256_storeu_pd(lo, vlo);
+    _mm256_storeu_pd(hi, vhi);
+#else
     for (std::size_t a = 0; a < n; a += 4)
       for (std::size_t j = 0; j < 4; ++j) {
         const double s = adc_static(x, u, one_minus_u, AdcTerms{g1[a + j], off[a + j], i4[a + j]});
         lo[j] = s < lo[j] ? s : lo[j];
         hi[j] = hi[j] < s ? s : hi[j];
       }
+#endif
   }
   double low = lo[0], high = hi[0];
   for (std::size_t j = 1; j < 4; ++j) {
