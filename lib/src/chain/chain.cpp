@@ -35,7 +35,12 @@ std::string_view describe(Status s) {
 }
 
 Chain::Chain(const Design& d)
-    : d_(&d), firmware_(d), span_(d.adc_span()), max_code_(d.adc_span() - 1.0), acquisition_(acquisition_model(d)) {}
+    : d_(&d),
+      firmware_(d),
+      span_(d.adc_span()),
+      max_code_(d.adc_span() - 1.0),
+      acquisition_(acquisition_model(d)),
+      sensor_curve_(d.sensor) {}
 
 namespace {
 double at(const Deviations& d, Source s) { return d[static_cast<std::size_t>(s)]; }
@@ -126,7 +131,7 @@ ElementStage Chain::element_stage(const Deviations& unit, double t_c, double dis
   const Deviations& dev = with_drift(unit, scratch);  // drift over life adds to the initial deviations
   ElementStage es;
   FrontEnd& fe = es.front;
-  const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
+  const SensorUnit sensor(d.sensor, sensor_curve_, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
                           at(dev, Source::table_spread), at(dev, Source::sensor_drift));
   const double t_board = board_temperature(d.conditions.board, t_c, at(dev, Source::board_temperature));
   fe.t_board = t_board;

@@ -21,6 +21,7 @@
 #include "thermargin/chain/calibration.hpp"
 #include "thermargin/input/design.hpp"
 #include "thermargin/chain/firmware.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 namespace thermargin {
 
@@ -185,6 +186,7 @@ class Chain {
   Firmware firmware_;
   double span_ = 0.0, max_code_ = 0.0;
   AcquisitionModel acquisition_;
+  SensorCurve sensor_curve_;  // the element's nominal curve constants, taken once
 };
 
 // The nominal unit: every deviation zero.
