@@ -107,29 +107,56 @@ struct CornerRange {
   double low = 0.0, high = 0.0;
 };
 
+// One corner's reading at t converted at both ends of the reading
+// interval, the first end first, up to the first that fails: what
+// corner_range reads of a corner besides its calibrations. Corners that
+// differ only in a calibration reference share it (a reference changes only
+// the calibration: stage_of).
+struct ConvertedReadings {
+  Status failure = Status::ok;  // the front end's, or the end's that failed (saturated, no conversion)
+  int converted = 0;            // the ends converted before it (2: both, no failure)
+  double t[2] = {0.0, 0.0};     // °C, unrounded
+};
+
 // `fe`: the corner's front end at t.
-CornerRange corner_range(const Chain& chain, const FrontEnd& fe, double t, const Intervals& iv,
+ConvertedReadings convert_readings(const Chain& chain, const FrontEnd& fe, const Intervals& iv) {
+  ConvertedReadings r;
+  if (fe.status != Status::ok) {
+    r.failure = fe.status;
+    return r;
+  }
+  for (double shift : {iv.reading.lo, iv.reading.hi}) {
+    const Reading reading = continuous_reading(fe.x_static, shift, chain.max_code());
+    if (reading.saturated) {
+      r.failure = Status::saturated;
+      return r;
+    }
+    const auto tr = chain.convert(reading.code, false);
+    if (!tr) {
+      r.failure = Status::no_solution;
+      return r;
+    }
+    r.t[r.converted++] = *tr;
+  }
+  return r;
+}
+
+// The corner's range from its converted readings: each end in turn, its
+// failure where it failed, each end's errors folded before the next end is
+// looked at (so a failed calibration is reported before a failure of the
+// second end, as when the two were read in one loop).
+CornerRange corner_range(const Chain& chain, const ConvertedReadings& r, double t, const Intervals& iv,
                          const std::vector<std::optional<CalibrationData>>& cals, Status cal_failure) {
   CornerRange c;
-  if (fe.status != Status::ok) {
-    c.failure = fe.status;
-    return c;
-  }
   const Calibration method = chain.design().firmware.calibration;
   bool first = true;
-  for (double shift : {iv.reading.lo, iv.reading.hi}) {
-    const Reading r = continuous_reading(fe.x_static, shift, chain.max_code());
-    if (r.saturated) {
-      c.failure = Status::saturated;
-      return c;
-    }
-    const auto tr = chain.convert(r.code, false);
-    if (!tr) {
-      c.failure = Status::no_solution;
+  for (int end = 0; end < 2; ++end) {
+    if (end == r.converted) {
+      c.failure = r.failure;
       return c;
     }
     for (double rounding : {-iv.rounding, iv.rounding}) {
-      const double converted = *tr + rounding;
+      const double converted = r.t[end] + rounding;
       auto fold = [&](double e) {
         c.low = first ? e : std::min(c.low, e);
         c.high = first ? e : std::max(c.high, e);
@@ -150,6 +177,12 @@ CornerRange corner_range(const Chain& chain, const FrontEnd& fe, double t, const
   }
   c.ok = true;
   return c;
+}
+
+// `fe`: the corner's front end at t.
+CornerRange corner_range(const Chain& chain, const FrontEnd& fe, double t, const Intervals& iv,
+                         const std::vector<std::optional<CalibrationData>>& cals, Status cal_failure) {
+  return corner_range(chain, convert_readings(chain, fe, iv), t, iv, cals, cal_failure);
 }
 
 CornerRange evaluate_corner(const Chain& chain, const Deviations& dev, double t, const Intervals& iv) {
@@ -528,12 +561,18 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
   threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), element_corners}));
   std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
   const std::vector<AdcUnit> adc = gathered ? adc_units(d, g.adc) : std::vector<AdcUnit>{};
+  // Of the ADC stage's inputs, the ADC's own and the calibration references.
+  std::vector<std::size_t> adc_unit_inputs, reference_inputs;
+  for (std::size_t k : g.adc)
+    (stage_of(d.inputs[k].source) == ChainStage::calibration_reference ? reference_inputs : adc_unit_inputs).push_back(k);
+  const long long unit_corners = 1LL << adc_unit_inputs.size(), reference_corners = 1LL << reference_inputs.size();
   std::atomic<long long> next{0};
   auto work = [&](int worker) {
     std::vector<WorstCasePoint>& out = partial[static_cast<std::size_t>(worker)];
     std::vector<ElementStage> at_t(nt);
     std::vector<FrontEnd> node_at_t(nt * static_cast<std::size_t>(node_corners));
     std::vector<GatheredReadings> readings(gathered ? nt : 0);
+    std::vector<ConvertedReadings> converted(gathered ? 0 : nt);
     AdcTermArrays terms;
     for (long long a; (a = next.fetch_add(1)) < element_corners;) {
       Deviations dev{};
@@ -549,12 +588,18 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
         if (gathered) continue;
         CalibrationFrontEnds at_cal;
         for (int k = 0; k < cal_points; ++k) at_cal.at[k] = chain.node_stage(cal_element[k], dev);
-        for (long long m = 0; m < adc_corners; ++m) {
-          set_signs(d, dev, g.adc, m);
-          Status cal_failure = Status::ok;
-          const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
-          for (std::size_t i = 0; i < nt; ++i)
-            fold(out[i], corner_range(chain, chain.adc_stage(node[i], dev), temperatures[i], iv, cals, cal_failure));
+        // The ADC's own corners, then the calibration references', whose
+        // corners share the readings at t (adc_stage reads no reference).
+        for (long long m = 0; m < unit_corners; ++m) {
+          set_signs(d, dev, adc_unit_inputs, m);
+          for (std::size_t i = 0; i < nt; ++i) converted[i] = convert_readings(chain, chain.adc_stage(node[i], dev), iv);
+          for (long long r = 0; r < reference_corners; ++r) {
+            set_signs(d, dev, reference_inputs, r);
+            Status cal_failure = Status::ok;
+            const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
+            for (std::size_t i = 0; i < nt; ++i)
+              fold(out[i], corner_range(chain, converted[i], temperatures[i], iv, cals, cal_failure));
+          }
         }
       }
       if (!gathered) continue;
