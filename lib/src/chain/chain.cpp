@@ -35,7 +35,12 @@ std::string_view describe(Status s) {
 }
 
 Chain::Chain(const Design& d)
-    : d_(&d), firmware_(d), span_(d.adc_span()), max_code_(d.adc_span() - 1.0), acquisition_(acquisition_model(d)) {}
+    : d_(&d),
+      firmware_(d),
+      span_(d.adc_span()),
+      max_code_(d.adc_span() - 1.0),
+      acquisition_(acquisition_model(d)),
+      sensor_curve_(d.sensor) {}
 
 namespace {
 double at(const Deviations& d, Source s) { return d[static_cast<std::size_t>(s)]; }
@@ -85,8 +90,13 @@ FrontEnd Chain::adc_stage(FrontEnd fe, const AdcUnit& adc) const {
 }
 
 double Chain::static_transfer(const FrontEnd& fe, const AdcUnit& adc) const {
+  const double u = fe.x_ideal / span_;
+  return adc_static(fe.x_ideal, u, 1.0 - u, adc_terms(adc, fe.t_board));
+}
+
+AdcTerms Chain::adc_terms(const AdcUnit& adc, double t_board) const {
   // The ADC's offset and gain drift with the board temperature (docs/model.md §5).
-  const double drift = fe.t_board - 25.0;
+  const double drift = t_board - 25.0;
   const double offset = adc.offset + adc.offset_tempco * drift;
   // adc.inl_shape = bound: the INL deviation at every code, not the bow.
   double inl = adc.inl;
@@ -94,8 +104,7 @@ double Chain::static_transfer(const FrontEnd& fe, const AdcUnit& adc) const {
   inl = 0.0;
 #endif
   const bool bound = d_->adc.inl_bound;
-  return adc_static(fe.x_ideal, span_, adc.gain + adc.gain_tempco * drift, bound ? offset + inl : offset,
-                    bound ? 0.0 : inl);
+  return thermargin::adc_terms(adc.gain + adc.gain_tempco * drift, bound ? offset + inl : offset, bound ? 0.0 : inl);
 }
 
 FrontEnd Chain::analog_front_end(const Deviations& dev, double t_c) const {
@@ -122,7 +131,7 @@ ElementStage Chain::element_stage(const Deviations& unit, double t_c, double dis
   const Deviations& dev = with_drift(unit, scratch);  // drift over life adds to the initial deviations
   ElementStage es;
   FrontEnd& fe = es.front;
-  const SensorUnit sensor(d.sensor, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
+  const SensorUnit sensor(d.sensor, sensor_curve_, at(dev, Source::r25), at(dev, Source::beta), at(dev, Source::rtd_class),
                           at(dev, Source::table_spread), at(dev, Source::sensor_drift));
   const double t_board = board_temperature(d.conditions.board, t_c, at(dev, Source::board_temperature));
   fe.t_board = t_board;

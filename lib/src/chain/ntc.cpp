@@ -8,8 +8,6 @@ namespace thermargin {
 
 BetaLn::BetaLn(const BetaCurve& c) : ln_r25(std::log(c.r25)), beta(c.beta) {}
 
-double ln_resistance(const BetaLn& c, double t) { return c.ln_r25 + c.beta * (1.0 / t - 1.0 / t0_kelvin); }
-
 double temperature_kelvin(const BetaLn& c, double ln_r) {
   const double inv = 1.0 / t0_kelvin + (ln_r - c.ln_r25) / c.beta;
   return inv > 0.0 ? 1.0 / inv : 0.0;

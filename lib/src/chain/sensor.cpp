@@ -48,15 +48,33 @@ std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, doubl
   return std::nullopt;
 }
 
-SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z,
-                       double drift)
-    : s_(&s), rtd_k_(rtd_k), table_z_(table_z), drift_shift_(std::log1p(drift)) {
-  if (s.kind == SensorKind::beta) beta_ = BetaLn(BetaCurve{s.r25, s.beta});
-  if (s.kind == SensorKind::rtd && s.rtd_class) rtd_line_ = class_line(*s.rtd_class);
+SensorCurve::SensorCurve(const SensorSettings& s) {
+  if (s.kind == SensorKind::beta) beta = BetaLn(BetaCurve{s.r25, s.beta});
+  if (s.kind == SensorKind::rtd && s.rtd_class) rtd_line = class_line(*s.rtd_class);
   if (s.kind != SensorKind::rtd) {
     // The stretch is about T0; a table that misses 25 °C has been refused
     // upstream whenever a tolerance is active, so ln_r0 is only used then.
-    if (auto l0 = nominal(t0_kelvin)) ln_r0_ = *l0;
+    const auto l0 = s.kind == SensorKind::beta ? std::optional<double>(thermargin::ln_resistance(beta, t0_kelvin))
+                                               : nominal_ln_resistance(s, t0_kelvin);
+    if (l0) ln_r0 = *l0;
+  }
+}
+
+SensorUnit::SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z,
+                       double drift)
+    : SensorUnit(s, SensorCurve(s), delta_r25, delta_beta, rtd_k, table_z, drift) {}
+
+SensorUnit::SensorUnit(const SensorSettings& s, const SensorCurve& curve, double delta_r25, double delta_beta,
+                       double rtd_k, double table_z, double drift)
+    : s_(&s),
+      beta_(curve.beta),
+      rtd_line_(curve.rtd_line),
+      ln_r0_(curve.ln_r0),
+      rtd_k_(rtd_k),
+      table_z_(table_z),
+      drift_shift_(std::log1p(drift)),
+      beta_unit_(s.kind == SensorKind::beta && table_z == 0.0) {
+  if (s.kind != SensorKind::rtd) {
     shift_ = std::log1p(delta_r25);
     stretch_ = 1.0 + delta_beta;
   }
@@ -67,7 +85,7 @@ std::optional<double> SensorUnit::nominal(double t) const {
   return nominal_ln_resistance(*s_, t);
 }
 
-std::optional<double> SensorUnit::ln_resistance(double t) const {
+std::optional<double> SensorUnit::curve_ln_resistance(double t) const {
   if (s_->kind == SensorKind::rtd) {
     const double tc = t - kelvin_offset;
     const double bound = s_->rtd_class ? rtd_line_.at(tc) : 0.0;

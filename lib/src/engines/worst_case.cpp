@@ -8,6 +8,10 @@
 #include <limits>
 #include <thread>
 
+#ifdef __AVX2__
+#include <immintrin.h>
+#endif
+
 #include "thermargin/engines/linear_budget.hpp"
 
 namespace thermargin {
@@ -103,29 +107,56 @@ struct CornerRange {
   double low = 0.0, high = 0.0;
 };
 
+// One corner's reading at t converted at both ends of the reading
+// interval, the first end first, up to the first that fails: what
+// corner_range reads of a corner besides its calibrations. Corners that
+// differ only in a calibration reference share it (a reference changes only
+// the calibration: stage_of).
+struct ConvertedReadings {
+  Status failure = Status::ok;  // the front end's, or the end's that failed (saturated, no conversion)
+  int converted = 0;            // the ends converted before it (2: both, no failure)
+  double t[2] = {0.0, 0.0};     // °C, unrounded
+};
+
 // `fe`: the corner's front end at t.
-CornerRange corner_range(const Chain& chain, const FrontEnd& fe, double t, const Intervals& iv,
+ConvertedReadings convert_readings(const Chain& chain, const FrontEnd& fe, const Intervals& iv) {
+  ConvertedReadings r;
+  if (fe.status != Status::ok) {
+    r.failure = fe.status;
+    return r;
+  }
+  for (double shift : {iv.reading.lo, iv.reading.hi}) {
+    const Reading reading = continuous_reading(fe.x_static, shift, chain.max_code());
+    if (reading.saturated) {
+      r.failure = Status::saturated;
+      return r;
+    }
+    const auto tr = chain.convert(reading.code, false);
+    if (!tr) {
+      r.failure = Status::no_solution;
+      return r;
+    }
+    r.t[r.converted++] = *tr;
+  }
+  return r;
+}
+
+// The corner's range from its converted readings: each end in turn, its
+// failure where it failed, each end's errors folded before the next end is
+// looked at (so a failed calibration is reported before a failure of the
+// second end, as when the two were read in one loop).
+CornerRange corner_range(const Chain& chain, const ConvertedReadings& r, double t, const Intervals& iv,
                          const std::vector<std::optional<CalibrationData>>& cals, Status cal_failure) {
   CornerRange c;
-  if (fe.status != Status::ok) {
-    c.failure = fe.status;
-    return c;
-  }
   const Calibration method = chain.design().firmware.calibration;
   bool first = true;
-  for (double shift : {iv.reading.lo, iv.reading.hi}) {
-    const Reading r = continuous_reading(fe.x_static, shift, chain.max_code());
-    if (r.saturated) {
-      c.failure = Status::saturated;
-      return c;
-    }
-    const auto tr = chain.convert(r.code, false);
-    if (!tr) {
-      c.failure = Status::no_solution;
+  for (int end = 0; end < 2; ++end) {
+    if (end == r.converted) {
+      c.failure = r.failure;
       return c;
     }
     for (double rounding : {-iv.rounding, iv.rounding}) {
-      const double converted = *tr + rounding;
+      const double converted = r.t[end] + rounding;
       auto fold = [&](double e) {
         c.low = first ? e : std::min(c.low, e);
         c.high = first ? e : std::max(c.high, e);
@@ -146,6 +177,12 @@ CornerRange corner_range(const Chain& chain, const FrontEnd& fe, double t, const
   }
   c.ok = true;
   return c;
+}
+
+// `fe`: the corner's front end at t.
+CornerRange corner_range(const Chain& chain, const FrontEnd& fe, double t, const Intervals& iv,
+                         const std::vector<std::optional<CalibrationData>>& cals, Status cal_failure) {
+  return corner_range(chain, convert_readings(chain, fe, iv), t, iv, cals, cal_failure);
 }
 
 CornerRange evaluate_corner(const Chain& chain, const Deviations& dev, double t, const Intervals& iv) {
@@ -403,18 +440,103 @@ std::vector<AdcUnit> adc_units(const Design& d, const std::vector<std::size_t>& 
   return out;
 }
 
+// The usual case of one temperature's gathering, in one pass: every node
+// corner read (status ok), and every corner's readings inside the ADC's
+// range with the lowest above 0. Then the spans are the lowest static
+// transfer plus the interval's low end and the highest plus its high end:
+// rounding is monotone, so fl(x + lo) <= fl(x' + lo) for x <= x' (and
+// fl(x + lo) <= fl(x + hi)), which also says that no corner's reading is
+// below 0 or above the top code when those two are not; the readings are
+// all positive, so no zero's sign can depend on the order. The transfer is
+// Chain::static_transfer's, its parts computed once a node corner and once
+// an ADC corner (adc.hpp's AdcTerms). NaN transfers are passed over, as
+// ReadingSpan::add passes them over. Returns false (g untouched) when the
+// case does not hold: gather() then reads each corner.
+// The ADC corners' terms as arrays (a multiple of four long, padded with
+// the last corner's: a repeated corner changes no minimum or maximum).
+struct AdcTermArrays {
+  std::vector<double> one_plus_gain, offset, inl4;
+  void set(const Chain& chain, const std::vector<AdcUnit>& adc, double t_board) {
+    const std::size_t n = (adc.size() + 3) / 4 * 4;
+    one_plus_gain.resize(n);
+    offset.resize(n);
+    inl4.resize(n);
+    for (std::size_t a = 0; a < n; ++a) {
+      const AdcTerms t = chain.adc_terms(adc[std::min(a, adc.size() - 1)], t_board);
+      one_plus_gain[a] = t.one_plus_gain;
+      offset[a] = t.offset;
+      inl4[a] = t.inl4;
+    }
+  }
+};
+
+bool gather_span(const Chain& chain, const FrontEnd* node, std::size_t stride, std::size_t node_corners,
+                 const std::vector<AdcUnit>& adc, const Intervals& iv, AdcTermArrays& terms, GatheredReadings& g) {
+  constexpr double inf = std::numeric_limits<double>::infinity();
+  // Four lanes, each its own minimum and maximum (NaN passed over in each),
+  // then the lanes' together: the same extremes as one pass over the corners.
+  double lo[4] = {inf, inf, inf, inf}, hi[4] = {-inf, -inf, -inf, -inf};
+  const double span = chain.span();
+  for (std::size_t b = 0; b < node_corners; ++b) {
+    const FrontEnd& fe = node[b * stride];
+    if (fe.status != Status::ok) return false;
+    if (b == 0 || !(fe.t_board == node[(b - 1) * stride].t_board)) terms.set(chain, adc, fe.t_board);
+    const double x = fe.x_ideal, u = x / span, one_minus_u = 1.0 - u;
+    const std::size_t n = terms.offset.size();
+    const double* g1 = terms.one_plus_gain.data();
+    const double* off = terms.offset.data();
+    const double* i4 = terms.inl4.data();
+#ifdef __AVX2__
+    // The same lanes by intrinsics (GCC leaves the loop below scalar):
+    // vminpd(s, lo) is s < lo ? s : lo and vmaxpd(s, hi) is hi < s ? s : hi,
+    // lane by lane, NaN and zeros included; the multiplications and
+    // additions are adc_static's, in its order (no contraction).
+    __m256d vlo = _mm256_loadu_pd(lo), vhi = _mm256_loadu_pd(hi);
+    const __m256d vx = _mm256_set1_pd(x), vu = _mm256_set1_pd(u), vw = _mm256_set1_pd(one_minus_u);
+    for (std::size_t a = 0; a < n; a += 4) {
+      const __m256d sum = _mm256_add_pd(_mm256_mul_pd(vx, _mm256_loadu_pd(g1 + a)), _mm256_loadu_pd(off + a));
+      const __m256d bow = _mm256_mul_pd(_mm256_mul_pd(_mm256_loadu_pd(i4 + a), vu), vw);
+      const __m256d v = _mm256_add_pd(sum, bow);
+      vlo = _mm256_min_pd(v, vlo);
+      vhi = _mm256_max_pd(v, vhi);
+    }
+    _mm256_storeu_pd(lo, vlo);
+    _mm256_storeu_pd(hi, vhi);
+#else
+    for (std::size_t a = 0; a < n; a += 4)
+      for (std::size_t j = 0; j < 4; ++j) {
+        const double s = adc_static(x, u, one_minus_u, AdcTerms{g1[a + j], off[a + j], i4[a + j]});
+        lo[j] = s < lo[j] ? s : lo[j];
+        hi[j] = hi[j] < s ? s : hi[j];
+      }
+#endif
+  }
+  double low = lo[0], high = hi[0];
+  for (std::size_t j = 1; j < 4; ++j) {
+    low = lo[j] < low ? lo[j] : low;
+    high = high < hi[j] ? hi[j] : high;
+  }
+  if (!(low <= high)) return false;
+  const double code_lo = low + iv.reading.lo, code_hi = high + iv.reading.hi;
+  if (!(code_lo > 0.0) || code_hi > chain.max_code()) return false;
+  g.converted.lo = g.ok.lo = code_lo;
+  g.converted.hi = g.ok.hi = code_hi;
+  return true;
+}
+
 // Every node and ADC corner of one element corner gathered at each
 // temperature (`node_at_t`: the node corners' front ends, nt a corner),
 // temperature by temperature so that its spans stay at hand. A span's ends
 // are a minimum and a maximum and the failures a count and the lowest
 // status, whatever the order of the corners.
 void gather_corners(const Chain& chain, const std::vector<FrontEnd>& node_at_t, const std::vector<AdcUnit>& adc,
-                    const Intervals& iv, std::vector<GatheredReadings>& readings) {
+                    const Intervals& iv, std::vector<GatheredReadings>& readings, AdcTermArrays& terms) {
   const std::size_t nt = readings.size(), node_corners = node_at_t.size() / std::max<std::size_t>(nt, 1);
   for (std::size_t i = 0; i < nt; ++i) {
     GatheredReadings g;
-    for (std::size_t b = 0; b < node_corners; ++b)
-      for (const AdcUnit& a : adc) gather(chain, node_at_t[b * nt + i], a, iv, g);
+    if (!gather_span(chain, &node_at_t[i], nt, node_corners, adc, iv, terms, g))
+      for (std::size_t b = 0; b < node_corners; ++b)
+        for (const AdcUnit& a : adc) gather(chain, node_at_t[b * nt + i], a, iv, g);
     readings[i] = std::move(g);
   }
 }
@@ -439,12 +561,19 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
   threads = static_cast<int>(std::min<long long>({threads, std::max<long long>(1, wc.corners / 64), element_corners}));
   std::vector<std::vector<WorstCasePoint>> partial(static_cast<std::size_t>(threads), wc.points);
   const std::vector<AdcUnit> adc = gathered ? adc_units(d, g.adc) : std::vector<AdcUnit>{};
+  // Of the ADC stage's inputs, the ADC's own and the calibration references.
+  std::vector<std::size_t> adc_unit_inputs, reference_inputs;
+  for (std::size_t k : g.adc)
+    (stage_of(d.inputs[k].source) == ChainStage::calibration_reference ? reference_inputs : adc_unit_inputs).push_back(k);
+  const long long unit_corners = 1LL << adc_unit_inputs.size(), reference_corners = 1LL << reference_inputs.size();
   std::atomic<long long> next{0};
   auto work = [&](int worker) {
     std::vector<WorstCasePoint>& out = partial[static_cast<std::size_t>(worker)];
     std::vector<ElementStage> at_t(nt);
     std::vector<FrontEnd> node_at_t(nt * static_cast<std::size_t>(node_corners));
     std::vector<GatheredReadings> readings(gathered ? nt : 0);
+    std::vector<ConvertedReadings> converted(gathered ? 0 : nt);
+    AdcTermArrays terms;
     for (long long a; (a = next.fetch_add(1)) < element_corners;) {
       Deviations dev{};
       set_signs(d, dev, g.element, a);
@@ -459,16 +588,22 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
         if (gathered) continue;
         CalibrationFrontEnds at_cal;
         for (int k = 0; k < cal_points; ++k) at_cal.at[k] = chain.node_stage(cal_element[k], dev);
-        for (long long m = 0; m < adc_corners; ++m) {
-          set_signs(d, dev, g.adc, m);
-          Status cal_failure = Status::ok;
-          const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
-          for (std::size_t i = 0; i < nt; ++i)
-            fold(out[i], corner_range(chain, chain.adc_stage(node[i], dev), temperatures[i], iv, cals, cal_failure));
+        // The ADC's own corners, then the calibration references', whose
+        // corners share the readings at t (adc_stage reads no reference).
+        for (long long m = 0; m < unit_corners; ++m) {
+          set_signs(d, dev, adc_unit_inputs, m);
+          for (std::size_t i = 0; i < nt; ++i) converted[i] = convert_readings(chain, chain.adc_stage(node[i], dev), iv);
+          for (long long r = 0; r < reference_corners; ++r) {
+            set_signs(d, dev, reference_inputs, r);
+            Status cal_failure = Status::ok;
+            const auto cals = corner_calibrations(chain, dev, at_cal, iv, cal_failure);
+            for (std::size_t i = 0; i < nt; ++i)
+              fold(out[i], corner_range(chain, converted[i], temperatures[i], iv, cals, cal_failure));
+          }
         }
       }
       if (!gathered) continue;
-      gather_corners(chain, node_at_t, adc, iv, readings);
+      gather_corners(chain, node_at_t, adc, iv, readings, terms);
       for (std::size_t i = 0; i < nt; ++i) {
         if (fold_gathered(chain, readings[i], temperatures[i], iv, out[i])) continue;
         // An end that does not convert: every corner of this element corner by itself.

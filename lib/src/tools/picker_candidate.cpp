@@ -163,11 +163,12 @@ Key bound_key(const State& s, bool objective_only) {
   return {rejected ? 1 : 0, s.certain_unreadable ? inf : s.bound, s.c.r_fixed, s.c.r_parallel.value_or(inf)};
 }
 
-// The first pass over a candidate: its nominal profile and constraints, and
-// the objective itself, except the worst case, which gets its lower bound.
-void screen(State& s, const Context& ctx, const Focus* focus) {
+namespace {
+
+// The screen's first part: the candidate's design and chain, its nominal
+// profile and the constraints.
+void screen_nominal(State& s, const Context& ctx) {
   if (!s.built) s.built = build(ctx, s.c);
-  const Chain& chain = s.built->chain;
   PickRow& row = s.row;
   row.r_fixed = s.c.r_fixed;
   row.r_parallel = s.built->design.divider.r_parallel;
@@ -178,13 +179,21 @@ void screen(State& s, const Context& ctx, const Focus* focus) {
   row.max_current = n.max_current;
   row.max_power = n.max_power;
   row.span = n.span;
+  s.nominal_window_status = n.window_status;
   s.constraints = violated(ctx.options.constraints, n);
   if (n.range_status != Status::ok) set_status(s, n.range_status);
+}
 
+// The screen's second part: the objective, except the worst case, which
+// gets its lower bound (at the focus's temperatures when one is given).
+void screen_objective(State& s, const Context& ctx, const Focus* focus) {
+  const Chain& chain = s.built->chain;
+  PickRow& row = s.row;
+  s.screened = true;
   const Objective o = ctx.options.objective;
   if (o == Objective::sensitivity) {
-    if (n.window_status != Status::ok) set_status(s, n.window_status);
-    set_score(s, o, n.min_sensitivity);
+    if (s.nominal_window_status != Status::ok) set_status(s, s.nominal_window_status);
+    set_score(s, o, row.min_sensitivity);
     finish_row(s);
     return;
   }
@@ -215,6 +224,43 @@ void screen(State& s, const Context& ctx, const Focus* focus) {
   row.mc_max_abs = mc.max_abs;
   set_score(s, o, mc.max_abs);
   finish_row(s);
+}
+
+}  // namespace
+
+// The first pass over a candidate: its nominal profile and constraints, and
+// the objective itself, except the worst case, which gets its lower bound.
+void screen(State& s, const Context& ctx, const Focus* focus) {
+  screen_nominal(s, ctx);
+  screen_objective(s, ctx, focus);
+}
+
+// The screen's nominal part, and for the worst case (when the candidate is
+// not already settled by its nominal profile) the directed bound at
+// ctx.sample only, not yet over the window: that is the largest of the
+// window's bounds at some of its temperatures, each formed exactly as the
+// screen forms it (linear_budget and directed_bound treat each temperature
+// by itself), so a lower bound of the screen's bound. A failure there is a
+// failure of the screen too: the candidate is then screened in full at once.
+void pre_screen(State& s, const Context& ctx) {
+  screen_nominal(s, ctx);
+  if (ctx.options.objective != Objective::worst_case || s.row.status != Status::ok || ctx.sample.empty()) {
+    screen_objective(s, ctx, nullptr);
+    return;
+  }
+  const DirectedBound b = directed_bound(s.built->chain, ctx.sample, linear_budget(s.built->chain, ctx.sample, BudgetOrder::first));
+  if (b.status != Status::ok) {
+    screen_objective(s, ctx, nullptr);
+    return;
+  }
+  s.bound = b.value;
+  s.screened = false;
+}
+
+// A pre-screened candidate screened in full: what screen() gives.
+void finish_screen(State& s, const Context& ctx) {
+  s.bound = 0.0;
+  screen_objective(s, ctx, nullptr);
 }
 
 // One step of a screened candidate towards its full worst case: the full

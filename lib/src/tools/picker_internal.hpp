@@ -62,6 +62,7 @@ struct Context {
   int threads = 1;
   std::vector<double> window;  // the analysed temperatures inside the requirement window
   std::vector<double> range;   // every analysed temperature
+  std::vector<double> sample;  // a few window temperatures, ascending: where pre_screen bounds the worst case
   std::uint64_t mc_objective_units = 0, mc_verify_units = 0;
   std::vector<double> values;  // the r_fixed candidates, ascending
 };
@@ -103,6 +104,12 @@ struct State {
   double enumerated = 0.0;      // K, the largest |error| the enumeration has found so far
   std::vector<double> directed_at;  // K, the directed bound at each window temperature
   bool certain_unreadable = false;
+  // Pre-screened only (pre_screen): `bound` is the directed bound at a few
+  // window temperatures, a lower bound of the screen's, and the rest of the
+  // screen is still to do (finish_screen). bound_key is then a lower bound
+  // of the key the screen gives.
+  bool screened = true;
+  Status nominal_window_status = Status::ok;  // the nominal reading in the window (NominalProfile)
 };
 
 using Key = std::tuple<int, double, double, double>;
@@ -137,6 +144,12 @@ Key bound_key(const State& s, bool objective_only);
 // the objective itself, except the worst case, which gets its lower bound
 // (at the focus's temperatures when one is given).
 void screen(State& s, const Context& ctx, const Focus* focus = nullptr);
+// The screen in two steps: the nominal part and a lower bound of the worst
+// case's directed bound at ctx.sample (screened = false), then the rest; the
+// state is then what screen(s, ctx) gives. Other objectives, and candidates
+// the first step settles, are screened in full by pre_screen.
+void pre_screen(State& s, const Context& ctx);
+void finish_screen(State& s, const Context& ctx);
 // One step of a screened candidate towards its full worst case; whether it
 // is now enumerated in full.
 bool refine(State& s, const Context& ctx);

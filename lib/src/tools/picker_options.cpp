@@ -157,6 +157,11 @@ Context make_context(const Scenario& scenario, const PickOptions& options) {
   const Design& d = ctx.design;
   ctx.range = d.conditions.temperatures();
   ctx.window = window_temperatures(d.requirement, ctx.range);
+  // The pre-screen's temperatures (pre_screen): the window's ends and its
+  // middle, where a divider's error is usually largest.
+  if (!ctx.window.empty())
+    for (std::size_t i : {std::size_t{0}, ctx.window.size() / 2, ctx.window.size() - 1})
+      if (ctx.sample.empty() || ctx.sample.back() != ctx.window[i]) ctx.sample.push_back(ctx.window[i]);
   ctx.threads = resolve_threads(given_threads);
   ctx.mc_objective_units = default_units(d, options.mc_units, mc_objective_cap);
   ctx.mc_verify_units = default_units(d, options.mc_units, mc_verify_cap);

@@ -39,14 +39,16 @@ std::vector<double> around(const std::vector<double>& values, const std::vector<
   return out;
 }
 
+// `pre`: pre_screen only (settle finishes the screens it needs).
 std::vector<State> screen_all(const std::vector<Candidate>& cands, const Context& ctx,
-                              const std::function<void(double)>& progress, std::size_t progress_total) {
+                              const std::function<void(double)>& progress, std::size_t progress_total, bool pre = false) {
   std::vector<State> st(cands.size());
   std::atomic<std::size_t> done{0};
   std::mutex m;
   parallel_for(cands.size(), ctx.threads, [&](std::size_t i) {
     st[i].c = cands[i];
-    screen(st[i], ctx);
+    if (pre) pre_screen(st[i], ctx);
+    else screen(st[i], ctx);
     const std::size_t k = ++done;
     if (progress) {
       const std::lock_guard<std::mutex> lock(m);
@@ -54,6 +56,38 @@ std::vector<State> screen_all(const std::vector<Candidate>& cands, const Context
     }
   });
   return st;
+}
+
+// Every pre-screened candidate that could be among the first n by key is
+// screened in full, so that the first n are those of the full screens.
+// A pre-screened key is a lower bound of the screened one (pre_screen): a
+// candidate whose lower bound is past the n-th key of the screened ones
+// has n keys before it whatever its screen gives, and the screened keys
+// only move up (refine), so it stays behind. The pre-screened ones are
+// screened lowest key first, a batch at a time (the batch fixed, so the
+// work does not depend on the threads; which ones are screened does not
+// change any result, only the work).
+void finish_screens(std::vector<State>& st, std::size_t n, bool objective_only, const Context& ctx) {
+  const Key past{2, inf, inf, inf};  // after every key
+  const std::size_t batch = std::max(n, full_batch);
+  for (;;) {
+    std::vector<Key> keys;
+    for (const auto& s : st)
+      if (s.screened) keys.push_back(bound_key(s, objective_only));
+    Key nth = past;
+    if (n > 0 && keys.size() >= n) {
+      std::nth_element(keys.begin(), keys.begin() + static_cast<std::ptrdiff_t>(n - 1), keys.end());
+      nth = keys[n - 1];
+    }
+    std::vector<std::size_t> open;
+    for (std::size_t i = 0; i < st.size(); ++i)
+      if (!st[i].screened && !(nth < bound_key(st[i], objective_only))) open.push_back(i);
+    if (open.empty()) return;
+    std::sort(open.begin(), open.end(),
+              [&](std::size_t a, std::size_t b) { return bound_key(st[a], objective_only) < bound_key(st[b], objective_only); });
+    open.resize(std::min(open.size(), batch));
+    parallel_for(open.size(), ctx.threads, [&](std::size_t k) { finish_screen(st[open[k]], ctx); });
+  }
 }
 
 }  // namespace
@@ -70,6 +104,7 @@ std::size_t settle(std::vector<State>& st, std::size_t n, bool objective_only, c
   std::vector<std::size_t> order(st.size());
   std::size_t evaluated = 0;
   for (;;) {
+    finish_screens(st, n, objective_only, ctx);
     std::iota(order.begin(), order.end(), std::size_t{0});
     std::sort(order.begin(), order.end(),
               [&](std::size_t a, std::size_t b) { return bound_key(st[a], objective_only) < bound_key(st[b], objective_only); });
@@ -97,7 +132,7 @@ std::vector<State> search_candidates(const Context& ctx, std::size_t wanted, con
   if (!ctx.pair) {
     std::vector<Candidate> cands;
     for (double v : ctx.values) cands.push_back({v, ctx.design.divider.r_parallel});
-    st = screen_all(cands, ctx, screen_progress, cands.size());
+    st = screen_all(cands, ctx, screen_progress, cands.size(), true);
     result.evaluated_in_full = settle(st, wanted, false, ctx);
   } else if (ctx.values.size() <= full_pair_search_limit) {
     std::vector<Candidate> cands;

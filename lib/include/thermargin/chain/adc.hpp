@@ -20,6 +20,20 @@ inline double adc_static(double x, double span, double gain, double offset, doub
   return x * (1.0 + gain) + offset + inl * 4.0 * u * (1.0 - u);
 }
 
+// adc_static in two parts, the same operations in the same order: what the
+// unit's ADC deviations give (1 + g, o, 4i) and what the input gives (u and
+// 1 − u), so that a loop over many ADC units at one input, or many inputs
+// through one unit, computes each part once (the worst case's enumeration).
+// adc_static(x, span, g, o, i) == adc_static(x, x / span, 1.0 - x / span,
+// adc_terms(g, o, i)), to the bit.
+struct AdcTerms {
+  double one_plus_gain = 1.0, offset = 0.0, inl4 = 0.0;
+};
+inline AdcTerms adc_terms(double gain, double offset, double inl) { return {1.0 + gain, offset, inl * 4.0}; }
+inline double adc_static(double x, double u, double one_minus_u, const AdcTerms& a) {
+  return x * a.one_plus_gain + a.offset + a.inl4 * u * one_minus_u;
+}
+
 inline double quantize(double v, Quantizer q) { return q == Quantizer::round ? std::floor(v + 0.5) : std::floor(v); }
 
 struct Reading {

@@ -21,6 +21,7 @@
 #include "thermargin/chain/calibration.hpp"
 #include "thermargin/input/design.hpp"
 #include "thermargin/chain/firmware.hpp"
+#include "thermargin/chain/sensor.hpp"
 
 namespace thermargin {
 
@@ -128,6 +129,11 @@ class Chain {
   // adc_stage(fe, adc).x_static, to the bit, without copying the front end
   // (the worst case's innermost loop).
   double static_transfer(const FrontEnd& fe, const AdcUnit& adc) const;
+  // The unit's part of that transfer at a board temperature (adc.hpp's
+  // AdcTerms): static_transfer(fe, adc) is adc_static(fe.x_ideal, u, 1 − u,
+  // adc_terms(adc, fe.t_board)) with u = fe.x_ideal / span, to the bit.
+  AdcTerms adc_terms(const AdcUnit& adc, double t_board) const;
+  double span() const { return span_; }
 
   // analog_front_end(dev, t) is node_stage(element_stage(dev, t), dev) and
   // analog_calibration_front_end(dev, t) node_stage(calibration_element_stage(dev, t), dev),
@@ -180,6 +186,7 @@ class Chain {
   Firmware firmware_;
   double span_ = 0.0, max_code_ = 0.0;
   AcquisitionModel acquisition_;
+  SensorCurve sensor_curve_;  // the element's nominal curve constants, taken once
 };
 
 // The nominal unit: every deviation zero.

@@ -36,7 +36,7 @@ struct BetaLn {
   BetaLn() = default;
   explicit BetaLn(const BetaCurve& c);
 };
-double ln_resistance(const BetaLn& c, double t_kelvin);
+inline double ln_resistance(const BetaLn& c, double t) { return c.ln_r25 + c.beta * (1.0 / t - 1.0 / t0_kelvin); }
 double temperature_kelvin(const BetaLn& c, double ln_r);
 
 struct SteinhartHart {

@@ -23,6 +23,19 @@ std::optional<double> nominal_temperature(const SensorSettings& s, double ln_r);
 // d ln R / dT of the nominal curve (1/K).
 std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, double t_kelvin);
 
+// What every unit's element of one design shares: the nominal curve's
+// constants that SensorUnit takes (a beta curve with ln R25 taken, ln
+// R_nom(T0) of an NTC, an RTD's class line). A chain keeps one, so that a
+// unit is made without taking them again; the values are those
+// SensorUnit(s, ...) takes itself, to the bit.
+struct SensorCurve {
+  BetaLn beta;
+  ClassLine rtd_line;
+  double ln_r0 = 0.0;
+  SensorCurve() = default;
+  explicit SensorCurve(const SensorSettings& s);
+};
+
 // A unit's element: the nominal curve with the unit's deviations applied.
 class SensorUnit {
  public:
@@ -32,9 +45,21 @@ class SensorUnit {
   // (docs/model.md §11): ln R_unit + ln(1 + drift).
   SensorUnit(const SensorSettings& s, double delta_r25, double delta_beta, double rtd_k, double table_z = 0.0,
              double drift = 0.0);
-  std::optional<double> ln_resistance(double t_kelvin) const;
+  // The same with the curve's constants given (`curve` is SensorCurve(s)).
+  SensorUnit(const SensorSettings& s, const SensorCurve& curve, double delta_r25, double delta_beta, double rtd_k,
+             double table_z = 0.0, double drift = 0.0);
+  // A beta curve's unit inline (the self-heating solve's step), the other
+  // models in sensor.cpp; the same arithmetic either way.
+  std::optional<double> ln_resistance(double t_kelvin) const {
+    if (!beta_unit_) return curve_ln_resistance(t_kelvin);
+    const double l = thermargin::ln_resistance(beta_, t_kelvin);
+    if (shift_ == 0.0 && stretch_ == 1.0) return drift_shift_ == 0.0 ? l : l + drift_shift_;
+    const double unit = ln_r0_ + shift_ + stretch_ * (l - ln_r0_);
+    return drift_shift_ == 0.0 ? unit : unit + drift_shift_;
+  }
 
  private:
+  std::optional<double> curve_ln_resistance(double t_kelvin) const;
   // nominal_ln_resistance(*s_, t), a beta curve's ln R25 taken once.
   std::optional<double> nominal(double t_kelvin) const;
   const SensorSettings* s_;
@@ -46,6 +71,7 @@ class SensorUnit {
   double rtd_k_ = 0.0;
   double table_z_ = 0.0;
   double drift_shift_ = 0.0;  // ln(1 + drift)
+  bool beta_unit_ = false;    // the beta model, no table spread: ln_resistance inline
 };
 
 }  // namespace thermargin
