@@ -5,9 +5,10 @@
 #   1. build/       Release build, every test (ctest)
 #   2. build-asan/  clang: every test again under AddressSanitizer + UndefinedBehaviorSanitizer
 #   3. build-tsan/  the Monte Carlo and worst-case engines' tests, and the CLI
-#                   runs across thread counts, under ThreadSanitizer
+#                   runs across thread counts, under ThreadSanitizer (in shards,
+#                   one per core)
 #   4. build-asan/  each libFuzzer target (built in step 2, the same sanitizers) for
-#                   THERMARGIN_FUZZ_SECONDS (default 60), as many side by side as there are cores
+#                   THERMARGIN_FUZZ_SECONDS (default 40), as many side by side as there are cores
 #
 # A failing step stops the script with a non-zero status. THERMARGIN_QUICK=1
 # runs step 1 only. Build directories are reused, and ccache (when present)
@@ -16,7 +17,7 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 THERMARGIN_TEST_EXTRAS=1 bash scripts/deps.sh
 jobs=$(( $(nproc) < 2 ? $(nproc) : 2 ))
-fuzz_seconds=${THERMARGIN_FUZZ_SECONDS:-60}
+fuzz_seconds=${THERMARGIN_FUZZ_SECONDS:-40}
 launcher=()
 if command -v ccache >/dev/null; then
   launcher=(-DCMAKE_CXX_COMPILER_LAUNCHER=ccache)
@@ -97,7 +98,18 @@ tsan() {
   local objects=("${tsan_tests[@]/#/$out/}")
   "${cxx[@]}" "${objects[@]/%/.o}" build-tsan/lib/libthermargin.a -lboost_program_options \
     -lgtest -lgtest_main -pthread -o "$out/engine_tests"
-  "$out/engine_tests" --gtest_brief=1
+  # One test program, its tests shared out between the cores (GoogleTest's
+  # sharding): most of them run one thread at a time.
+  local pids=() status=0 i
+  for ((i = 0; i < jobs; i++)); do
+    GTEST_TOTAL_SHARDS=$jobs GTEST_SHARD_INDEX=$i "$out/engine_tests" --gtest_brief=1 >"$out/shard$i.log" 2>&1 &
+    pids+=($!)
+  done
+  for ((i = 0; i < jobs; i++)); do
+    wait "${pids[$i]}" || status=1
+    cat "$out/shard$i.log"
+  done
+  return $status
 }
 
 fuzz() {
