@@ -124,7 +124,7 @@ int run_pick(int argc, char** argv) {
 
   std::string text;
   if (inv.format == Format::json) text = pick_json(design, result, o);
-  else if (inv.format == Format::csv) text = pick_csv(result);
+  else if (inv.format == Format::csv) text = pick_csv(design, result);
   else text = pick_text(design, result, o);
   if (!inv.report.empty()) write_report(inv.report, pick_report_html(design, inv.scenario, result, o, inv.file));
   if (!inv.plots.empty()) write_figures("--plots", inv.plots, pick_figures(design, result));

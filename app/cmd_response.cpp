@@ -32,7 +32,7 @@ int run_response(int argc, char** argv) {
 
   std::string text;
   if (inv.format == Format::json) text = response_json(design, analysis);
-  else if (inv.format == Format::csv) text = response_csv(analysis);
+  else if (inv.format == Format::csv) text = response_csv(design, analysis);
   else text = response_text(design, analysis);
   if (!inv.report.empty()) write_report(inv.report, response_report_html(design, inv.scenario, analysis, inv.file));
   if (!inv.plots.empty()) write_figures("--plots", inv.plots, response_figures(analysis));

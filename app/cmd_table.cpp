@@ -75,7 +75,7 @@ int run_table(int argc, char** argv) {
   if (emit_as == "c") text = c_header(design, r, prefix);
   else if (emit_as == "csv") text = table_csv(design, r);
   else if (inv.format == Format::json) text = table_report_json(design, r);
-  else if (inv.format == Format::csv) text = table_report_csv(r);
+  else if (inv.format == Format::csv) text = table_report_csv(design, r);
   else text = table_report_text(design, r);
   emit(inv, text);
   if (!emit_as.empty() && !inv.output.empty())

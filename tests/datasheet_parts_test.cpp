@@ -12,6 +12,7 @@
 #include "engine_fixture.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
+#include "thermargin/core/caution.hpp"
 #include "thermargin/engines/budget.hpp"
 #include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/report/budget_output.hpp"
@@ -194,6 +195,28 @@ TEST(RtdClassRange, ResponsePickAndGradesMarkTheExtrapolatedClass) {
   EXPECT_TRUE(line.starts_with("A film,") && line.ends_with(",1")) << line;
   std::getline(in, line);
   EXPECT_TRUE(line.starts_with("A wire,") && line.ends_with(",0")) << line;  // wire-wound A: rated from -100 degC
+}
+
+TEST(RtdClassRange, PickTableResponseAndCheckCsvSayItInACommentLine) {
+  // These CSVs have no per-temperature rows: the line after the caution
+  // carries the note (the freezer monitor's class A film element read down to
+  // -80 degC, rated from -30 degC: the ranges above, from memory). A design
+  // inside its class's range (the default NTC design) has no such line.
+  const std::string file = testing::shell_quote(testing::scenario_path("freezer_pt100_film.ini"));
+  const std::string line = "# RTD class: class A (film) is rated over -30..300 degC (IEC 60751:2008); beyond it, at "
+                           "-80 to -30 degC, the bound is extrapolated.\n";
+  const std::string caution_line = "# " + std::string(caution) + "\n";
+  for (const std::string command : {"pick --values 1k --format csv", "table --format csv", "table --emit csv",
+                                    "response --format csv", "check --format csv"}) {
+    const testing::CliOutcome with_note = testing::run_cli(command + " " + file);
+    ASSERT_EQ(with_note.status, 0) << command << ": " << with_note.err;
+    const auto at = with_note.out.find(line);
+    ASSERT_NE(at, std::string::npos) << command << "\n" << with_note.out.substr(0, 400);
+    if (command != "table --emit csv") EXPECT_EQ(with_note.out.substr(0, at), caution_line) << command;  // the second line
+    const testing::CliOutcome without = testing::run_cli(command);
+    ASSERT_EQ(without.status, 0) << command << ": " << without.err;
+    EXPECT_EQ(without.out.find("# RTD class"), std::string::npos) << command;
+  }
 }
 
 // The element's temperature in a medium at t with dissipation constant δ,

@@ -12,6 +12,7 @@
 #include "thermargin/core/number.hpp"
 #include "thermargin/chain/rt_table.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell
+#include "thermargin/report/csv_preamble.hpp"
 #include "thermargin/report/table.hpp"
 
 namespace thermargin {
@@ -136,7 +137,7 @@ std::string check_csv(const Scenario& scenario, const Design& design) {
   std::ostringstream out;
   const auto& schema = scenario_schema();
   // resolved: the number the design uses, in the unit column's unit; words and lists as written.
-  out << csv_caution_line() << "key,value,unit,origin,resolved\n";
+  out << csv_preamble(design) << "key,value,unit,origin,resolved\n";
   for (const auto& k : schema) {
     const auto& s = scenario.get(k.key);
     const ResolvedValue& r = resolved.at(k.key);

@@ -8,6 +8,7 @@
 #include "thermargin/report/pick_output.hpp"
 
 #include "thermargin/core/number.hpp"
+#include "thermargin/report/csv_preamble.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell
 #include "thermargin/report/table.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
@@ -178,9 +179,9 @@ std::string to_json(const Design& d, const PickResult& r, const PickOptions& o) 
 
 std::string cell(const std::optional<double>& v, int decimals) { return v ? fixed(*v, decimals) : "n/a"; }
 
-std::string to_csv(const PickResult& r) {
+std::string to_csv(const Design& d, const PickResult& r) {
   std::ostringstream out;
-  out << csv_caution_line();
+  out << csv_preamble(d);
   out << "rank,r_fixed_ohm,r_parallel_ohm,series,objective,wc_max_abs_K,rss_max_abs_K,mc_max_abs_K,"
          "min_sensitivity_LSB_per_K,max_self_heating_K,max_current_A,max_power_W,span,dominant,status,rejected_by,"
          "verify_mc_max_abs_K,verify_yield,verify_yield_low,verify_yield_high\n";
@@ -303,7 +304,7 @@ std::string pick_text(const Design& design, const PickResult& result, const Pick
   return to_text(design, result, options);
 }
 
-std::string pick_csv(const PickResult& result) { return to_csv(result); }
+std::string pick_csv(const Design& design, const PickResult& result) { return to_csv(design, result); }
 
 std::string pick_json(const Design& design, const PickResult& result, const PickOptions& options) {
   return to_json(design, result, options);

@@ -9,7 +9,8 @@
 #include "report/json_fields.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
-#include "thermargin/report/table.hpp"  // render_csv, csv_caution_line
+#include "thermargin/report/csv_preamble.hpp"
+#include "thermargin/report/table.hpp"  // render_csv
 
 namespace thermargin {
 namespace {
@@ -125,7 +126,7 @@ std::string response_text(const Design& d, const ResponseAnalysis& a) {
   return o.str();
 }
 
-std::string response_csv(const ResponseAnalysis& a) {
+std::string response_csv(const Design& design, const ResponseAnalysis& a) {
   Table t{.header = {"filter", "length", "alpha", "chosen", "recommended", "delay_s", "lag_s", "ramp_error_K", "settling_s",
                      "settling_readings", "noise_factor", "noise_band_K", "static_max_abs_K", "total_max_abs_K",
                      "total_at_degC", "margin_K", "meets"}};
@@ -140,7 +141,7 @@ std::string response_csv(const ResponseAnalysis& a) {
                       g(r.static_max_abs), r.readable ? g(r.total_max_abs) : "", g(r.total_at), g(r.margin),
                       r.meets ? "1" : "0"});
   }
-  return csv_caution_line() + render_csv(t);
+  return csv_preamble(design) + render_csv(t);
 }
 
 std::string response_json(const Design& d, const ResponseAnalysis& a) {

@@ -8,6 +8,7 @@
 
 #include "thermargin/core/number.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell
+#include "thermargin/report/csv_preamble.hpp"
 #include "thermargin/report/table.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
@@ -114,10 +115,10 @@ std::string to_json(const Design& d, const TableResult& r) {
   return j.dump(2) + "\n";
 }
 
-std::string to_csv(const TableResult& r) {
+std::string to_csv(const Design& d, const TableResult& r) {
   const auto& t = r.table;
   std::ostringstream out;
-  out << csv_caution_line();
+  out << csv_preamble(d);
   out << "code,temperature_degC,stored,max_error_to_next_K\n";
   for (std::size_t k = 0; k < t.size(); ++k) {
     out << t.code(k) << "," << significant(stored_celsius(t, k)) << "," << t.stored[k] << ","
@@ -147,7 +148,7 @@ std::string to_text(const Design& d, const TableResult& r) {
 
 std::string table_report_text(const Design& design, const TableResult& result) { return to_text(design, result); }
 
-std::string table_report_csv(const TableResult& result) { return to_csv(result); }
+std::string table_report_csv(const Design& design, const TableResult& result) { return to_csv(design, result); }
 
 std::string table_report_json(const Design& design, const TableResult& result) { return to_json(design, result); }
 

@@ -7,6 +7,7 @@
 #include <sstream>
 #include <utility>
 
+#include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 
 namespace thermargin {
@@ -424,6 +425,7 @@ std::string table_csv(const Design& d, const TableResult& r) {
   comment("temperature_degC = stored x " + unit_text(t.unit) + "; stored as " + std::string(r.stored_type()));
   comment(describe_error(r, t_first, t_last));
   comment(std::string(caution));
+  if (const std::string note = rtd_class_range_note(d); !note.empty()) comment("RTD class: " + note + ".");
   out << "code,temperature_degC,stored\n";
   for (std::size_t k = 0; k < t.size(); ++k)
     out << t.code(k) << "," << fmt("%.10g", stored_celsius(t, k)) << "," << t.stored[k] << "\n";

@@ -15,7 +15,7 @@ namespace thermargin {
 std::string pick_text(const Design& design, const PickResult& result, const PickOptions& options);
 
 // One line per ranked candidate, every figure to ten significant digits.
-std::string pick_csv(const PickResult& result);
+std::string pick_csv(const Design& design, const PickResult& result);
 
 // The whole result as JSON (two-space indent, a final newline).
 std::string pick_json(const Design& design, const PickResult& result, const PickOptions& options);

@@ -18,8 +18,8 @@
 namespace thermargin {
 
 std::string response_text(const Design& design, const ResponseAnalysis& a);
-// One row per filter; `#` first line with the caution.
-std::string response_csv(const ResponseAnalysis& a);
+// One row per filter, after the `#` lines of csv_preamble (the caution, the RTD class).
+std::string response_csv(const Design& design, const ResponseAnalysis& a);
 // {"command": "response", ..., "rows": [...], "recommendation": row | null, ...}
 std::string response_json(const Design& design, const ResponseAnalysis& a);
 

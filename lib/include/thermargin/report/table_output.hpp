@@ -13,7 +13,7 @@
 namespace thermargin {
 
 std::string table_report_text(const Design& design, const TableResult& result);
-std::string table_report_csv(const TableResult& result);  // one line per point
+std::string table_report_csv(const Design& design, const TableResult& result);  // one line per point
 std::string table_report_json(const Design& design, const TableResult& result);  // two-space indent, final newline
 
 }  // namespace thermargin
