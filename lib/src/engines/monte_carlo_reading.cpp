@@ -281,29 +281,37 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
 // same value to an ulp or two (the chain's round trip through the logarithm
 // is the less exact of the two), and no logarithm, which does not vectorise
 // (docs/engines.md, Speed). A unit whose R is not positive is out of table
-// (R = 1 then, as exp(0) gave).
-[[gnu::always_inline]] inline void rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+// (R = 1 then, as exp(0) gave): marked in loops of their own, only when
+// there is one (the statuses are bytes, and a loop of doubles that also
+// writes bytes vectorises poorly). Returns whether it marked any.
+[[gnu::always_inline]] inline bool rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   const CallendarVanDusen k = c.d->sensor.cvd;
   const ClassLine line = c.rtd_line;
   const double* spread = row(b, Source::rtd_class);
   const double* drift = row(b, Source::sensor_drift);
   constexpr auto out_of_table = static_cast<std::uint8_t>(Status::out_of_table);
+  alignas(64) double r_curve[block_size];
   for (int u = 0; u < block_size; ++u) {
     const double t = s.te[u];
     const double bound = class_bound(line, t - kelvin_offset);
     const double r = resistance(k, (t + spread[u] * bound) - kelvin_offset);
-    const bool ok = r > 0.0;
-    s.status[u] = ok ? s.status[u] : out_of_table;
-    s.r_el[u] = ok ? r * (1.0 + drift[u]) : 1.0;
+    r_curve[u] = r;
+    s.r_el[u] = r > 0.0 ? r * (1.0 + drift[u]) : 1.0;
   }
+  int out = 0;
+  for (int u = 0; u < block_size; ++u) out += !(r_curve[u] > 0.0);
+  if (out == 0) return false;
+  for (int u = 0; u < block_size; ++u) s.status[u] = r_curve[u] > 0.0 ? s.status[u] : out_of_table;
+  return true;
 }
 
 // The element's R at te[] into r_el[]: ln R, then a vector exp (an RTD's
 // R directly, above). A unit
 // whose sensor cannot be read there is marked out of table. Inlined at both
 // calls, as every stage is, so that the compiler sees the scratch arrays as
-// read_block's own and vectorises without run-time alias checks.
-[[gnu::always_inline]] inline void element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+// read_block's own and vectorises without run-time alias checks. Returns
+// whether it may have marked a unit (a beta sensor never does).
+[[gnu::always_inline]] inline bool element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   if (c.beta_fast) {
     const double ln_r25 = c.ln_r25, beta = c.beta, ln_r0 = c.ln_r0;
     const double* d_beta = row(b, Source::beta);
@@ -315,8 +323,7 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
       s.r_el[u] = ln_r0 + shift[u] + (1.0 + d_beta[u]) * (l - ln_r0);
     }
   } else if (c.rtd) {
-    rtd_resistance(c, b, s);
-    return;
+    return rtd_resistance(c, b, s);
   } else {
     const SensorSettings& sensor = c.d->sensor;
     for (int u = 0; u < block_size; ++u) {
@@ -329,6 +336,7 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
   }
   Eigen::Map<Block> m(s.r_el);
   m = m.exp();
+  return !c.beta_fast;
 }
 
 // Stage 3, the element's temperature: the self-heating solve for the block
@@ -361,11 +369,13 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
   const bool simple = r_lead == 0.0 && !has_par;
   const bool newton = simple && c.beta_fast;
   const double* b_unit = b.beta_unit;
-  bool resolved_at_first = false;
+  bool resolved_at_first = false, marked_any = false;
   for (int it = 1; it <= self_heating_max_iterations; ++it) {
-    element_resistance(c, b, s);
-    // A beta sensor's R marks no unit (statuses are all 0 here then).
-    if (!c.beta_fast)
+    // Units the element marked stop moving (the statuses are all 0 until
+    // the element marks one).
+    const bool marked = element_resistance(c, b, s);
+    marked_any |= marked;
+    if (marked)
       for (int u = 0; u < block_size; ++u) moving[u] = s.status[u] == 0 ? moving[u] : 0.0;
     const int open =
         (newton && it == 1)
@@ -382,7 +392,7 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
       break;
     }
   }
-  if (c.beta_fast)
+  if (!marked_any)
     for (int u = 0; u < block_size; ++u) b.rise_guess[u] = s.te[u] - t_k;
   else
     for (int u = 0; u < block_size; ++u) b.rise_guess[u] = s.status[u] == 0 ? s.te[u] - t_k : 0.0;
