@@ -66,6 +66,14 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
       b.ln_shift[u] += std::log1p(drift);
   }
+  // The same expressions read_block took at every temperature.
+  const double duty_over_delta = c.d->sensor.dissipation > 0.0 ? c.d->divider.duty / c.d->sensor.dissipation : 0.0;
+  const double* d_diss = b.dev[static_cast<int>(Source::dissipation)];
+  const double* d_beta = b.dev[static_cast<int>(Source::beta)];
+  for (int u = 0; u < block_size; ++u) {
+    b.heat_gain[u] = duty_over_delta / (1.0 + d_diss[u]);
+    b.beta_unit[u] = (1.0 + d_beta[u]) * c.beta;
+  }
 }
 
 void calibrate_block(const RunConstants& c, BlockUnits& b) {

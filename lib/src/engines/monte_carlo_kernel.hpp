@@ -52,6 +52,11 @@ struct BlockUnits {
   // The last self-heating rise of each unit: the next temperature's solve
   // starts there (the sweep moves in small steps), saving iterations.
   alignas(64) double rise_guess[block_size];
+  // Per unit and constant over the sweep, so taken once a block: the
+  // self-heating gain duty/δ of a reading in service (δ with its deviation)
+  // and a beta sensor's B with its deviation.
+  alignas(64) double heat_gain[block_size];
+  alignas(64) double beta_unit[block_size];
 };
 
 // Draws units first..first+block_size−1 into `b` (count of them are used).

@@ -25,10 +25,21 @@ namespace {
 
 using Block = Eigen::Array<double, block_size, 1>;
 
+// The branch's resistance, series/(1 + series/R_par). Without a parallel
+// resistor 1/R_par is 0 and the division is by 1 + series·0: series itself
+// where series is finite, NaN where it is not; series + series·0 is the
+// same in every case (series·0 is a zero of series' sign, NaN for an
+// infinity or NaN), without the division.
+template <bool HasPar>
+inline double branch_of(double series, double inv_par) {
+  if constexpr (HasPar) return series / (1.0 + series * inv_par);
+  else return series + series * 0.0;
+}
+
 // One fixed-point step of the self-heating solve for the whole block (see
 // self_heating.hpp); separate, with unaliased arrays, so that it vectorises.
 // Returns how many units are still moving.
-template <bool Simple>
+template <bool Simple, bool HasPar>
 int self_heating_step(int it, double t_k, double r_lead, const double* __restrict r_el, const double* __restrict rf,
                       const double* __restrict vexc, const double* __restrict inv_par, const double* __restrict gain,
                       double* __restrict te, double* __restrict rise_prev, double* __restrict runaway_flag,
@@ -45,7 +56,7 @@ int self_heating_step(int it, double t_k, double r_lead, const double* __restric
       rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
     } else {
       const double series = r + r_lead;
-      const double rb = series / (1.0 + series * inv_par[u]);
+      const double rb = branch_of<HasPar>(series, inv_par[u]);
       const double v_e = vexc[u] * rb / (rf[u] + rb) * r / series;
       rise = gain[u] * v_e * v_e / r;
     }
@@ -83,17 +94,18 @@ int self_heating_step(int it, double t_k, double r_lead, const double* __restric
 // at most 1e-3 (so R follows from one series step, below); the others take
 // the plain fixed-point step and go on as before. In a sweep of small steps
 // almost every unit is accepted here, saving two of the three exponentials.
+
 int self_heating_newton_first(double t_k, const double* __restrict r_el, const double* __restrict rf,
                               const double* __restrict vexc, const double* __restrict gain,
-                              const double* __restrict b_unit, double* __restrict te, double* __restrict rise_prev,
-                              double* __restrict moving, double* __restrict dln_r) {
+                              const double* __restrict b_unit, const double* __restrict inv_te, double* __restrict te,
+                              double* __restrict rise_prev, double* __restrict moving, double* __restrict dln_r) {
   int open = 0;
   for (int u = 0; u < block_size; ++u) {
     const double r = r_el[u];
     const double sum = rf[u] + r;
     const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
     const double x = r / sum;
-    const double inv_t = 1.0 / te[u];
+    const double inv_t = inv_te[u];  // 1/T_e, as element_resistance() took it
     const double l1 = -b_unit[u] * inv_t * inv_t, l2 = -2.0 * l1 * inv_t;
     const double slope = rise * (1.0 - 2.0 * x) * l1;  // d rise/dT_e
     const double q = std::fabs(slope);
@@ -193,6 +205,7 @@ struct ReadingScratch {
   alignas(64) double vexc[block_size];       // the excitation
   alignas(64) double vref[block_size];       // the ADC's reference
   alignas(64) double te[block_size];         // the element's temperature, K
+  alignas(64) double inv_te[block_size];     // 1/te, a beta sensor's (element_resistance)
   alignas(64) double rise_prev[block_size];  // the self-heating solve's last step
   alignas(64) double dln_r[block_size];      // ln R's change over the Newton step
   alignas(64) double r_el[block_size];       // the element's resistance at te
@@ -237,10 +250,13 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
   const double* d_par = row(b, Source::r_parallel);
   for (int u = 0; u < block_size; ++u) {
     s.rf[u] = r_fixed * (1.0 + d_rf[u]) * (1.0 + d_tc[u] * (s.tb[u] - 25.0));
-    // 1/R_par, 0 without one: (R ∥ R_par) = R / (1 + R/R_par), no branch.
-    s.inv_par[u] = has_par ? 1.0 / (r_par * (1.0 + d_par[u])) : 0.0;
     s.status[u] = 0;
   }
+  // 1/R_par, 0 without one: (R ∥ R_par) = R / (1 + R/R_par).
+  if (has_par)
+    for (int u = 0; u < block_size; ++u) s.inv_par[u] = 1.0 / (r_par * (1.0 + d_par[u]));
+  else
+    std::fill(std::begin(s.inv_par), std::end(s.inv_par), 0.0);
   // The fixed resistor and the drive in series: what the element's
   // voltage sees wherever the sensor sits (docs/model.md §15).
   const double r_drive = d.supply.r_drive;
@@ -265,40 +281,49 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
 // same value to an ulp or two (the chain's round trip through the logarithm
 // is the less exact of the two), and no logarithm, which does not vectorise
 // (docs/engines.md, Speed). A unit whose R is not positive is out of table
-// (R = 1 then, as exp(0) gave).
-[[gnu::always_inline]] inline void rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+// (R = 1 then, as exp(0) gave): marked in loops of their own, only when
+// there is one (the statuses are bytes, and a loop of doubles that also
+// writes bytes vectorises poorly). Returns whether it marked any.
+[[gnu::always_inline]] inline bool rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   const CallendarVanDusen k = c.d->sensor.cvd;
   const ClassLine line = c.rtd_line;
   const double* spread = row(b, Source::rtd_class);
   const double* drift = row(b, Source::sensor_drift);
   constexpr auto out_of_table = static_cast<std::uint8_t>(Status::out_of_table);
+  alignas(64) double r_curve[block_size];
   for (int u = 0; u < block_size; ++u) {
     const double t = s.te[u];
     const double bound = class_bound(line, t - kelvin_offset);
     const double r = resistance(k, (t + spread[u] * bound) - kelvin_offset);
-    const bool ok = r > 0.0;
-    s.status[u] = ok ? s.status[u] : out_of_table;
-    s.r_el[u] = ok ? r * (1.0 + drift[u]) : 1.0;
+    r_curve[u] = r;
+    s.r_el[u] = r > 0.0 ? r * (1.0 + drift[u]) : 1.0;
   }
+  int out = 0;
+  for (int u = 0; u < block_size; ++u) out += !(r_curve[u] > 0.0);
+  if (out == 0) return false;
+  for (int u = 0; u < block_size; ++u) s.status[u] = r_curve[u] > 0.0 ? s.status[u] : out_of_table;
+  return true;
 }
 
 // The element's R at te[] into r_el[]: ln R, then a vector exp (an RTD's
 // R directly, above). A unit
 // whose sensor cannot be read there is marked out of table. Inlined at both
 // calls, as every stage is, so that the compiler sees the scratch arrays as
-// read_block's own and vectorises without run-time alias checks.
-[[gnu::always_inline]] inline void element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+// read_block's own and vectorises without run-time alias checks. Returns
+// whether it may have marked a unit (a beta sensor never does).
+[[gnu::always_inline]] inline bool element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   if (c.beta_fast) {
     const double ln_r25 = c.ln_r25, beta = c.beta, ln_r0 = c.ln_r0;
     const double* d_beta = row(b, Source::beta);
     const double* shift = b.ln_shift;
     for (int u = 0; u < block_size; ++u) {
-      const double l = ln_r25 + beta * (1.0 / s.te[u] - 1.0 / t0_kelvin);
+      const double inv_t = 1.0 / s.te[u];
+      s.inv_te[u] = inv_t;  // the Newton step's 1/T_e: one division, not two
+      const double l = ln_r25 + beta * (inv_t - 1.0 / t0_kelvin);
       s.r_el[u] = ln_r0 + shift[u] + (1.0 + d_beta[u]) * (l - ln_r0);
     }
   } else if (c.rtd) {
-    rtd_resistance(c, b, s);
-    return;
+    return rtd_resistance(c, b, s);
   } else {
     const SensorSettings& sensor = c.d->sensor;
     for (int u = 0; u < block_size; ++u) {
@@ -311,6 +336,7 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
   }
   Eigen::Map<Block> m(s.r_el);
   m = m.exp();
+  return !c.beta_fast;
 }
 
 // Stage 3, the element's temperature: the self-heating solve for the block
@@ -327,40 +353,53 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
   const Design& d = *c.d;
   const double r_lead = d.sensor.lead_resistance;
   const bool has_par = d.divider.r_parallel.has_value();
-  const double duty_over_delta = d.divider.duty / at.dissipation;
-  alignas(64) double gain[block_size], moving[block_size], runaway_flag[block_size];
-  const double* d_diss = at.medium ? no_deviation : row(b, Source::dissipation);
+  alignas(64) double medium_gain[block_size], moving[block_size], runaway_flag[block_size];
   for (int u = 0; u < block_size; ++u) {
-    gain[u] = duty_over_delta / (1.0 + d_diss[u]);
     moving[u] = 1.0;
     runaway_flag[u] = 0.0;
   }
+  // The gain duty/δ: in service the block's (draw_block), in the
+  // calibration medium its own dissipation constant without a deviation.
+  const double* gain = b.heat_gain;
+  if (at.medium) {
+    const double duty_over_delta = d.divider.duty / at.dissipation;
+    for (int u = 0; u < block_size; ++u) medium_gain[u] = duty_over_delta / (1.0 + no_deviation[u]);
+    gain = medium_gain;
+  }
   const bool simple = r_lead == 0.0 && !has_par;
   const bool newton = simple && c.beta_fast;
-  alignas(64) double b_unit[block_size];
-  if (newton) {
-    const double* d_beta = row(b, Source::beta);
-    for (int u = 0; u < block_size; ++u) b_unit[u] = (1.0 + d_beta[u]) * c.beta;
-  }
-  bool resolved_at_first = false;
+  const double* b_unit = b.beta_unit;
+  bool resolved_at_first = false, marked_any = false;
   for (int it = 1; it <= self_heating_max_iterations; ++it) {
-    element_resistance(c, b, s);
-    for (int u = 0; u < block_size; ++u) moving[u] = s.status[u] == 0 ? moving[u] : 0.0;
+    // Units the element marked stop moving (the statuses are all 0 until
+    // the element marks one).
+    const bool marked = element_resistance(c, b, s);
+    marked_any |= marked;
+    if (marked)
+      for (int u = 0; u < block_size; ++u) moving[u] = s.status[u] == 0 ? moving[u] : 0.0;
     const int open =
         (newton && it == 1)
-            ? self_heating_newton_first(t_k, s.r_el, s.rs, s.vexc, gain, b_unit, s.te, s.rise_prev, moving, s.dln_r)
-        : simple ? self_heating_step<true>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te, s.rise_prev,
-                                           runaway_flag, moving)
-                 : self_heating_step<false>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te, s.rise_prev,
-                                            runaway_flag, moving);
+            ? self_heating_newton_first(t_k, s.r_el, s.rs, s.vexc, gain, b_unit, s.inv_te, s.te, s.rise_prev, moving,
+                                        s.dln_r)
+        : simple  ? self_heating_step<true, false>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te,
+                                                   s.rise_prev, runaway_flag, moving)
+        : has_par ? self_heating_step<false, true>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te,
+                                                   s.rise_prev, runaway_flag, moving)
+                  : self_heating_step<false, false>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te,
+                                                    s.rise_prev, runaway_flag, moving);
     if (open == 0) {
       resolved_at_first = newton && it == 1;
       break;
     }
   }
-  for (int u = 0; u < block_size; ++u) b.rise_guess[u] = s.status[u] == 0 ? s.te[u] - t_k : 0.0;
+  if (!marked_any)
+    for (int u = 0; u < block_size; ++u) b.rise_guess[u] = s.te[u] - t_k;
+  else
+    for (int u = 0; u < block_size; ++u) b.rise_guess[u] = s.status[u] == 0 ? s.te[u] - t_k : 0.0;
   // Still moving after the last iteration, or a step that grew: runaway.
-  // Branch-free, so that it vectorises.
+  // Branch-free, so that it vectorises. Nothing to mark when the Newton
+  // step settled every unit (moving and the flags all 0).
+  if (resolved_at_first) return true;
   constexpr auto runaway = static_cast<std::uint8_t>(Status::runaway);
   for (int u = 0; u < block_size; ++u) {
     const bool diverged = (moving[u] != 0.0) | (runaway_flag[u] != 0.0);
@@ -385,39 +424,58 @@ void element_at_solution(const RunConstants& c, const BlockUnits& b, bool resolv
   }
 }
 
+// The ADC's static transfer of the node's voltage (adc_static, adc.hpp).
+// The span is 2^N, so x/span is x·2^−N to the bit (both the correctly
+// rounded value of the same real number): a multiplication. The bow is
+// taken only where adc.inl_shape = bow reads it.
+template <bool InlBound>
+void static_transfer_block(const RunConstants& c, const BlockUnits& b, const double* __restrict v_node,
+                           ReadingScratch& s) {
+  const double span = c.span, inv_span = 1.0 / c.span;
+  const double *g = row(b, Source::adc_gain), *o = row(b, Source::adc_offset), *i = row(b, Source::adc_inl);
+  const double *g_tc = row(b, Source::adc_gain_tempco), *o_tc = row(b, Source::adc_offset_tempco);
+  for (int u = 0; u < block_size; ++u) {
+    const double x = v_node[u] / s.vref[u] * span;
+    const double drift = s.tb[u] - 25.0;  // the ADC's offset and gain drift (docs/model.md §5)
+    double inl = i[u];                    // adc.inl_shape = bound: i[u] at every code
+    if constexpr (!InlBound) {
+      const double q = x * inv_span;
+      inl = i[u] * 4.0 * q * (1.0 - q);
+    }
+    s.xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift) + inl;
+#ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
+    s.xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift);
+#endif
+  }
+}
+
 // Stage 5, the divider (its arms with the drive, divider.hpp), leakage, the
 // sampled node and the ADC's static transfer into xs[].
-void divider_and_adc(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
-  const Design& d = *c.d;
-  const double r_lead = d.sensor.lead_resistance;
-  const bool low = d.divider.placement == Placement::low;
-  const double span = c.span;
-  const double *g = row(b, Source::adc_gain), *o = row(b, Source::adc_offset), *i = row(b, Source::adc_inl);
+template <bool HasPar>
+void divider_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s, double* __restrict v_node,
+                   double* __restrict r_th) {
+  const double r_lead = c.d->sensor.lead_resistance;
+  const bool low = c.d->divider.placement == Placement::low;
   const double* leak = row(b, Source::adc_leakage);
-  alignas(64) double v_node[block_size], r_th[block_size];
-  const double *g_tc = row(b, Source::adc_gain_tempco), *o_tc = row(b, Source::adc_offset_tempco);
-  const bool inl_bound = d.adc.inl_bound;
   for (int u = 0; u < block_size; ++u) {
     const double r = s.r_el[u];
     const double series = r + r_lead;
-    const double rb = series / (1.0 + series * s.inv_par[u]);
+    const double rb = branch_of<HasPar>(series, s.inv_par[u]);
     const double drive = s.rs[u] - s.rf[u];
     const double top = low ? s.rs[u] : rb + drive, bottom = low ? rb : s.rf[u];
     const double ratio = bottom / (top + bottom);
     r_th[u] = top * bottom / (top + bottom);
     v_node[u] = s.vexc[u] * ratio - leak[u] * r_th[u];
   }
+}
+
+void divider_and_adc(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+  alignas(64) double v_node[block_size], r_th[block_size];
+  if (c.d->divider.r_parallel.has_value()) divider_block<true>(c, b, s, v_node, r_th);
+  else divider_block<false>(c, b, s, v_node, r_th);
   if (c.acquisition.on) settle_block(c, row(b, Source::adc_precharge), s.vref, r_th, v_node);
-  for (int u = 0; u < block_size; ++u) {
-    const double x = v_node[u] / s.vref[u] * span;
-    const double q = x / span;
-    const double drift = s.tb[u] - 25.0;  // the ADC's offset and gain drift (docs/model.md §5)
-    const double bow = i[u] * 4.0 * q * (1.0 - q);  // adc.inl_shape = bound: i[u] at every code
-    s.xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift) + (inl_bound ? i[u] : bow);
-#ifdef THERMARGIN_BREAK_TERM_adc_inl  // a throwaway test build's deliberate bug (DEVELOPERS.md)
-    s.xs[u] = x * (1.0 + (g[u] + g_tc[u] * drift)) + (o[u] + o_tc[u] * drift);
-#endif
-  }
+  if (c.d->adc.inl_bound) static_transfer_block<true>(c, b, v_node, s);
+  else static_transfer_block<false>(c, b, v_node, s);
 }
 
 // Whether unit u goes to the scalar chain: heated by more than 1 K, or a
@@ -456,7 +514,7 @@ void sample_block(const RunConstants& c, const BlockUnits& b, const ReadingAt& a
   alignas(64) double noise[block_size];
   std::fill(std::begin(s.sum), std::end(s.sum), 0.0);
   std::fill(std::begin(s.sat), std::end(s.sat), 0.0);
-  std::fill(std::begin(noise), std::end(noise), 0.0);
+  if (!(c.noise > 0.0)) std::fill(std::begin(noise), std::end(noise), 0.0);  // else normals_block() writes it
   const double q_offset = c.d->adc.quantizer == Quantizer::round ? 0.5 : 0.0;
   for (int k = 0; k < c.m; ++k) {
     if (c.noise > 0.0) {

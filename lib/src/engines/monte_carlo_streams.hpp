@@ -42,22 +42,31 @@ inline double plain_log(double u) {
   return e * std::numbers::ln2 + series;
 }
 
-// cos(2πv) for any v, by reduction to |θ| ≤ π/4 and Taylor series to θ¹⁴.
+// cos(2πv) for |v| < 2^28, by reduction to |θ| ≤ π/4 and Taylor series to θ¹⁴.
 inline double plain_cos_2pi(double v) {
   const double q = std::floor(4.0 * v + 0.5);
   const double theta = 2.0 * std::numbers::pi * (v - 0.25 * q);
   const double t2 = theta * theta;
   const double c = 1.0 + t2 * (-1.0 / 2 + t2 * (1.0 / 24 + t2 * (-1.0 / 720 + t2 * (1.0 / 40320 + t2 * (-1.0 / 3628800 + t2 * (1.0 / 479001600 + t2 * (-1.0 / 87178291200.0)))))));
   const double s = theta * (1.0 + t2 * (-1.0 / 6 + t2 * (1.0 / 120 + t2 * (-1.0 / 5040 + t2 * (1.0 / 362880 + t2 * (-1.0 / 39916800 + t2 * (1.0 / 6227020800.0)))))));
-  // Quadrant k = q mod 4 selects c, −s, −c, s; chosen arithmetically so the
-  // loop stays branch-free.
-  const double k = q - 4.0 * std::floor(q * 0.25);
-  const double odd = k - 2.0 * std::floor(k * 0.5);
-  const double sign = 1.0 - 2.0 * (std::floor((k + 1.0) * 0.5) - 2.0 * std::floor((k + 1.0) * 0.25));
-  return sign * (odd * s + (1.0 - odd) * c);
+  // Quadrant k = q mod 4 selects c, −s, −c, s: from q's integer (a whole
+  // number, |q| < 2^30), branch-free. The same value as the arithmetic
+  // selection sign·(odd·s + (1 − odd)·c) with odd and sign from floors
+  // that this replaced (faster, docs/engines.md, Speed): ±1 times r is ±r
+  // exactly, and 1·s + 0·c is s and 0·s + 1·c is c, as c ≥ cos(π/4) and s
+  // is never −0 (θ = 2π·(+0) where v − q/4 vanishes).
+  const auto k = static_cast<std::int32_t>(q) & 3;
+  const double r = (k & 1) != 0 ? s : c;
+  return ((k + 1) & 2) != 0 ? -r : r;
 }
 
-inline double uniform32(std::uint32_t x) { return (static_cast<double>(x) + 0.5) * 0x1.0p-32; }
+// (double)x for a 32-bit word, by a signed conversion (AVX2 has one, not an
+// unsigned one) and 2^31 added back: both steps exact, so the same value.
+inline double word_to_double(std::uint32_t x) {
+  return static_cast<double>(static_cast<std::int32_t>(x ^ 0x80000000u)) + 2147483648.0;
+}
+
+inline double uniform32(std::uint32_t x) { return (word_to_double(x) + 0.5) * 0x1.0p-32; }
 
 // A standard normal from two 32-bit words (Box–Muller, cosine branch).
 inline double normal_from(std::uint32_t a, std::uint32_t b) {
