@@ -105,6 +105,13 @@ struct CornerRange {
   bool ok = false;
   Status failure = Status::ok;
   double low = 0.0, high = 0.0;
+  bool empty = true;  // no error taken yet
+  // Widens [low, high] to the error e (the first error sets both ends).
+  void take(double e) {
+    low = empty ? e : std::min(low, e);
+    high = empty ? e : std::max(high, e);
+    empty = false;
+  }
 };
 
 // One corner's reading at t converted at both ends of the reading
@@ -149,7 +156,6 @@ CornerRange corner_range(const Chain& chain, const ConvertedReadings& r, double 
                          const std::vector<std::optional<CalibrationData>>& cals, Status cal_failure) {
   CornerRange c;
   const Calibration method = chain.design().firmware.calibration;
-  bool first = true;
   for (int end = 0; end < 2; ++end) {
     if (end == r.converted) {
       c.failure = r.failure;
@@ -157,13 +163,8 @@ CornerRange corner_range(const Chain& chain, const ConvertedReadings& r, double 
     }
     for (double rounding : {-iv.rounding, iv.rounding}) {
       const double converted = r.t[end] + rounding;
-      auto fold = [&](double e) {
-        c.low = first ? e : std::min(c.low, e);
-        c.high = first ? e : std::max(c.high, e);
-        first = false;
-      };
       if (method == Calibration::none) {
-        fold(converted - t);
+        c.take(converted - t);
         continue;
       }
       for (const auto& k : cals) {
@@ -171,7 +172,7 @@ CornerRange corner_range(const Chain& chain, const ConvertedReadings& r, double 
           c.failure = cal_failure == Status::ok ? Status::calibration_failed : cal_failure;
           return c;
         }
-        fold(apply_calibration(method, *k, converted) - t);
+        c.take(apply_calibration(method, *k, converted) - t);
       }
     }
   }
@@ -411,15 +412,9 @@ bool fold_gathered(const Chain& chain, const GatheredReadings& g, double t, cons
   WorstCasePoint q = g.failed;
   if (!g.ok.empty()) {
     CornerRange c;
-    bool first = true;
     for (double code : {g.ok.lo, g.ok.hi}) {
       const double tr = *chain.convert(code, false);
-      for (double rounding : {-iv.rounding, iv.rounding}) {
-        const double e = (tr + rounding) - t;
-        c.low = first ? e : std::min(c.low, e);
-        c.high = first ? e : std::max(c.high, e);
-        first = false;
-      }
+      for (double rounding : {-iv.rounding, iv.rounding}) c.take((tr + rounding) - t);
     }
     c.ok = true;
     fold(q, c);
