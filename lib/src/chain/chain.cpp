@@ -228,21 +228,23 @@ std::optional<double> Chain::convert(double code, bool round_output) const {
   return round_output ? firmware_.round_output(*t) : *t;
 }
 
+void Chain::calibration_element_stages(const Deviations& dev, ElementStage (&at_cal)[2]) const {
+  const FirmwareSettings& f = d_->firmware;
+  for (int i = 0; i < calibration_points(f.calibration); ++i)
+    at_cal[i] = calibration_element_stage(dev, f.calibration_at[static_cast<std::size_t>(i)]);
+}
+
 ElementStages Chain::element_stages(const Deviations& dev, double t_c) const {
   ElementStages s;
   s.at_t = element_stage(dev, t_c);
-  const FirmwareSettings& f = d_->firmware;
-  for (int i = 0; i < calibration_points(f.calibration); ++i)
-    s.at_cal[i] = calibration_element_stage(dev, f.calibration_at[static_cast<std::size_t>(i)]);
+  calibration_element_stages(dev, s.at_cal);
   return s;
 }
 
 std::optional<CalibrationData> Chain::calibrate(const Deviations& dev, const ReadingShift& shift,
                                                 bool round_output) const {
-  const FirmwareSettings& f = d_->firmware;
   ElementStage at_cal[2];
-  for (int i = 0; i < calibration_points(f.calibration); ++i)
-    at_cal[i] = calibration_element_stage(dev, f.calibration_at[static_cast<std::size_t>(i)]);
+  calibration_element_stages(dev, at_cal);
   return calibrate(at_cal, dev, shift, round_output);
 }
 

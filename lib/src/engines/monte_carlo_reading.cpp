@@ -163,8 +163,6 @@ void settle_block(const RunConstants& c, const double* __restrict d_pre, const d
   }
 }
 
-alignas(64) const double no_deviation[block_size] = {};
-
 // A row of the block's deviations: one value per unit.
 inline const double* row(const BlockUnits& b, Source s) { return b.dev[static_cast<int>(s)]; }
 
@@ -362,8 +360,7 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
   // calibration medium its own dissipation constant without a deviation.
   const double* gain = b.heat_gain;
   if (at.medium) {
-    const double duty_over_delta = d.divider.duty / at.dissipation;
-    for (int u = 0; u < block_size; ++u) medium_gain[u] = duty_over_delta / (1.0 + no_deviation[u]);
+    std::fill(std::begin(medium_gain), std::end(medium_gain), d.divider.duty / at.dissipation);
     gain = medium_gain;
   }
   const bool simple = r_lead == 0.0 && !has_par;

@@ -574,8 +574,7 @@ void enumerate_corners(const Chain& chain, const std::vector<double>& temperatur
       set_signs(d, dev, g.element, a);
       for (std::size_t i = 0; i < nt; ++i) at_t[i] = chain.element_stage(dev, temperatures[i]);
       ElementStage cal_element[2];
-      for (int k = 0; k < cal_points; ++k)
-        cal_element[k] = chain.calibration_element_stage(dev, d.firmware.calibration_at[static_cast<std::size_t>(k)]);
+      chain.calibration_element_stages(dev, cal_element);
       for (long long b = 0; b < node_corners; ++b) {
         set_signs(d, dev, g.node, b);
         FrontEnd* node = &node_at_t[static_cast<std::size_t>(b) * nt];

@@ -15,23 +15,22 @@
 
 namespace thermargin {
 
-inline double adc_static(double x, double span, double gain, double offset, double inl) {
-  const double u = x / span;
-  return x * (1.0 + gain) + offset + inl * 4.0 * u * (1.0 - u);
-}
-
-// adc_static in two parts, the same operations in the same order: what the
+// The static transfer x·(1 + g) + o + i·4u(1 − u) in two parts: what the
 // unit's ADC deviations give (1 + g, o, 4i) and what the input gives (u and
 // 1 − u), so that a loop over many ADC units at one input, or many inputs
-// through one unit, computes each part once (the worst case's enumeration).
-// adc_static(x, span, g, o, i) == adc_static(x, x / span, 1.0 - x / span,
-// adc_terms(g, o, i)), to the bit.
+// through one unit, computes each part once (the worst case's enumeration);
+// the five-argument adc_static below is the two composed.
 struct AdcTerms {
   double one_plus_gain = 1.0, offset = 0.0, inl4 = 0.0;
 };
 inline AdcTerms adc_terms(double gain, double offset, double inl) { return {1.0 + gain, offset, inl * 4.0}; }
 inline double adc_static(double x, double u, double one_minus_u, const AdcTerms& a) {
   return x * a.one_plus_gain + a.offset + a.inl4 * u * one_minus_u;
+}
+// The transfer from the ideal input x over a span of 2^N codes.
+inline double adc_static(double x, double span, double gain, double offset, double inl) {
+  const double u = x / span;
+  return adc_static(x, u, 1.0 - u, adc_terms(gain, offset, inl));
 }
 
 inline double quantize(double v, Quantizer q) { return q == Quantizer::round ? std::floor(v + 0.5) : std::floor(v); }

@@ -141,6 +141,9 @@ class Chain {
   // (leakage, the reference, the precharge) beside the element stage.
   ElementStage element_stage(const Deviations& dev, double t_celsius) const;
   ElementStage calibration_element_stage(const Deviations& dev, double t_cal) const;
+  // calibration_element_stage at each of the firmware's calibration points
+  // into at_cal (the entries past their number untouched).
+  void calibration_element_stages(const Deviations& dev, ElementStage (&at_cal)[2]) const;
   FrontEnd node_stage(const ElementStage& element, const Deviations& dev) const;
   // The element stages of `dev` at t and at each calibration point (the
   // calibration medium's, as analog_calibration_front_end); they read only
