@@ -3,6 +3,9 @@
 // single-threaded and on all threads. Items processed = units × temperatures.
 #include <benchmark/benchmark.h>
 
+#include <initializer_list>
+#include <utility>
+
 #include "thermargin/engines/monte_carlo.hpp"
 #include "thermargin/input/scenario.hpp"
 
@@ -81,5 +84,34 @@ void BM_MonteCarloBlockKernelPt1000(benchmark::State& state) {
   run_block_kernel(state, build_design(s));
 }
 BENCHMARK(BM_MonteCarloBlockKernelPt1000)->Unit(benchmark::kMicrosecond);
+
+// The sensor's own cost, the rest of the chain held: the hot plate above
+// with a 1 kOhm beta NTC in place of its Pt1000 (the same 16 bits,
+// averaging 4, noise, leads and self-heating; B and tolerances typical of
+// an NTC data sheet, common practice), and the default design with a class
+// B Pt1000 against a 1 kOhm fixed resistor in place of its NTC. Each pair's
+// ratio is what the RTD's curve, class spread and exact conversion cost
+// over an NTC's in the same chain (docs/engines.md, "RTD at NTC speed").
+void set_all(Scenario& s, std::initializer_list<std::pair<const char*, const char*>> keys) {
+  const Where w{Origin::command_line, "", 0, "bench"};
+  for (const auto& [k, v] : keys) s.set(k, v, w);
+}
+
+void BM_MonteCarloBlockKernelPt1000NtcInPlace(benchmark::State& state) {
+  Scenario s;
+  s.load_file(THERMARGIN_SOURCE_DIR "/scenarios/hot_plate_pt1000.ini");
+  set_all(s, {{"sensor.model", "beta"}, {"sensor.r25", "1k"}, {"sensor.beta", "3950"}, {"sensor.r25_tol", "1%"},
+              {"sensor.beta_tol", "1%"}});
+  run_block_kernel(state, build_design(s));
+}
+BENCHMARK(BM_MonteCarloBlockKernelPt1000NtcInPlace)->Unit(benchmark::kMicrosecond);
+
+void BM_MonteCarloBlockKernelDefaultDesignPt1000InPlace(benchmark::State& state) {
+  Scenario s;
+  set_all(s, {{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"sensor.rtd_class", "B"}, {"divider.r_fixed", "1k"},
+              {"firmware.conversion", "exact"}});
+  run_block_kernel(state, build_design(s));
+}
+BENCHMARK(BM_MonteCarloBlockKernelDefaultDesignPt1000InPlace)->Unit(benchmark::kMicrosecond);
 
 }  // namespace

@@ -4,7 +4,8 @@
 # unit-temperature evaluations per second. The rows are the runs a user
 # makes (docs/engines.md, "Speed", keeps the figures with the machine and
 # its load): budget on the built-in default design, with and without the
-# ADC noise, on 1 and 2 threads; a Pt1000 design; the worst case of a
+# ADC noise, on 1 and 2 threads; a Pt1000 design, and each sensor in the
+# other's chain; the worst case of a
 # 14-input design; grades over 54 combinations of a Pt1000 design; pick over
 # E96 on the 14-input design; and the independent NumPy simulation of the
 # default design for comparison. Builds first if needed.
@@ -46,6 +47,15 @@ run "budget, default design, 1e6 units, 1 thread" 1000000 $default_t "$bin" budg
 run "budget, default design, 1e6 units, 2 threads" 1000000 $default_t "$bin" budget --montecarlo.units=1000000 --montecarlo.threads=2 $q
 run "budget, default design, no ADC noise, 1e6 units, 1 thread" 1000000 $default_t "$bin" budget --adc.noise=0 --montecarlo.units=1000000 --montecarlo.threads=1 $q
 run "budget, Pt1000 (exact conversion), 1e5 units, 1 thread" 100000 $pt1000_t "$bin" budget $pt1000 --montecarlo.units=100000 --montecarlo.threads=1 $q
+# The sensor's own cost with the rest of the chain held (docs/engines.md,
+# "RTD at NTC speed"): the hot plate with an NTC in its place, and the
+# default design with a Pt1000 in its NTC's place (about 2 K of self-heating).
+run "budget, the Pt1000 design with a 1 kOhm NTC in place, 1e5 units" 100000 $pt1000_t "$bin" budget $pt1000 \
+  --sensor.model=beta --sensor.r25=1k --sensor.beta=3950 --sensor.r25_tol=1% --sensor.beta_tol=1% \
+  --montecarlo.units=100000 --montecarlo.threads=1 $q
+run "budget, default design with a Pt1000 in place, 1e5 units, 1 thread" 100000 $default_t "$bin" budget \
+  --sensor.model=rtd --sensor.r0=1k --sensor.rtd_class=B --divider.r_fixed=1k --firmware.conversion=exact \
+  --montecarlo.units=100000 --montecarlo.threads=1 $q
 run "budget, 14 active inputs (2^14 corners), no Monte Carlo" 0 0 "$bin" budget bench/fourteen_inputs.ini --no-mc --montecarlo.threads=2 $q
 run "grades, Pt1000, 54 combinations, 1e4 units each" 0 0 "$bin" grades $pt1000 --catalogue bench/pt1000_oven_catalogue.csv --units 10000 --volume 10000 $q
 run "pick --series e96, 14 active inputs" 0 0 "$bin" pick bench/fourteen_inputs.ini --series e96 $q

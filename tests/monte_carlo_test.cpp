@@ -181,6 +181,37 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainUnderStrongSelfHeating) {
   }
 }
 
+TEST(MonteCarloKernel, AgreesWithTheScalarChainOnAnRtdHeatedByKelvins) {
+  // A unit heated by more than 1 K is read by the scalar chain, except an
+  // RTD's whose loop gain cannot come near 1 (monte_carlo_reading.cpp,
+  // rtd_solution_stands): its reading is then the kernel's own solve, which
+  // must match the chain's independent fixed-point solve. A class B
+  // Pt1000 against 1 kOhm from 3.3 V in the default design's mounting
+  // (about 2 K of rise), and a Pt100 from 5 V with a tenth of that
+  // dissipation constant down to −190 °C (some 6–9 K), on a 16-bit ADC so
+  // that a hundredth of a kelvin shows in the reading. Leads and a parallel
+  // resistor on the second, so that the general branch is taken.
+  const std::vector<std::pair<std::string, testing::Overrides>> cases = {
+      {"Pt1000, 1 kOhm, 3.3 V",
+       {{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"sensor.rtd_class", "B"}, {"divider.r_fixed", "1k"},
+        {"firmware.conversion", "exact"}, {"adc.bits", "16"}}},
+      {"Pt100, cryogenic, leads and a parallel resistor",
+       {{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"sensor.rtd_class", "A"}, {"divider.r_fixed", "220"},
+        {"supply.v_excitation", "5V"}, {"sensor.dissipation", "0.15mW/K"}, {"sensor.lead_resistance", "0.5"},
+        {"divider.r_parallel", "10k"}, {"firmware.conversion", "exact"}, {"adc.bits", "16"},
+        {"conditions.t_min", "-190"}, {"conditions.t_max", "20"}, {"conditions.t_step", "7"},
+        {"requirement.window_min", "-150"}, {"requirement.window_max", "0"}}},
+  };
+  for (const auto& [label, o] : cases) {
+    const Design d = design_with(o);
+    const Chain chain(d);
+    const auto temps = d.conditions.temperatures();
+    // The case is what it says: the nominal unit is heated by more than 1 K everywhere.
+    for (double t : temps) ASSERT_GT(chain.evaluate(Deviations{}, t).front.rise, 1.0) << label << " t=" << t;
+    expect_kernel_matches_the_scalar_chain(chain, temps, 0, 48, 5, label);
+  }
+}
+
 TEST(MonteCarloKernel, AgreesWithTheScalarChainAtEndOfLife) {
   // Drift over life folded into its part's deviation (chain/drift.hpp): the
   // kernel's rows and the scalar chain must fold it alike. An absolute

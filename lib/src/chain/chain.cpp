@@ -161,9 +161,8 @@ ElementStage Chain::element_stage(const Deviations& unit, double t_c, double dis
     // temperature (loop gain d·(dP/dT)/δ ≥ 1), so the element heats until the
     // divider limits it. The iteration would jump past that and may settle
     // on a far equilibrium (thousands of kelvin): refuse it here.
-    constexpr double probe = 1e-3;  // K
-    const auto r0 = rise_at(t_true_k), r1 = rise_at(t_true_k + probe);
-    if (r0 && r1 && (*r1 - *r0) / probe >= 1.0) {
+    const auto r0 = rise_at(t_true_k), r1 = rise_at(t_true_k + runaway_probe);
+    if (r0 && r1 && (*r1 - *r0) / runaway_probe >= 1.0) {
       fe.status = Status::runaway;
       fe.t_element = t_c + *r0;
       fe.rise = *r0;

@@ -282,6 +282,14 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
 // (R = 1 then, as exp(0) gave): marked in loops of their own, only when
 // there is one (the statuses are bytes, and a loop of doubles that also
 // writes bytes vectorises poorly). Returns whether it marked any.
+// An RTD unit's curve at the element's temperature t (K): its class spread
+// (a fraction of the class's bound) and the Callendar–Van Dusen curve, before
+// its drift; not positive below the curve's range.
+inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, double spread, double t) {
+  const double bound = class_bound(line, t - kelvin_offset);
+  return resistance(k, (t + spread * bound) - kelvin_offset);
+}
+
 [[gnu::always_inline]] inline bool rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   const CallendarVanDusen k = c.d->sensor.cvd;
   const ClassLine line = c.rtd_line;
@@ -290,9 +298,7 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
   constexpr auto out_of_table = static_cast<std::uint8_t>(Status::out_of_table);
   alignas(64) double r_curve[block_size];
   for (int u = 0; u < block_size; ++u) {
-    const double t = s.te[u];
-    const double bound = class_bound(line, t - kelvin_offset);
-    const double r = resistance(k, (t + spread[u] * bound) - kelvin_offset);
+    const double r = rtd_curve(k, line, spread[u], s.te[u]);
     r_curve[u] = r;
     s.r_el[u] = r > 0.0 ? r * (1.0 + drift[u]) : 1.0;
   }
@@ -481,11 +487,44 @@ inline bool hot_unit(const ReadingScratch& s, const ReadingAt& at, int u) {
   return (s.te[u] - at.t_k > 1.0) | (s.status[u] == static_cast<std::uint8_t>(Status::runaway));
 }
 
+// An RTD unit's loop gain d rise/dT at the true temperature, by the chain's
+// own probe (chain.cpp) on the kernel's values of the unit's parts.
+double rtd_loop_gain(const RunConstants& c, const BlockUnits& b, const ReadingAt& at, const ReadingScratch& s, int u) {
+  const Design& d = *c.d;
+  const double gain = at.medium ? d.divider.duty / at.dissipation : b.heat_gain[u];
+  const std::optional<double> r_par =
+      d.divider.r_parallel ? std::optional<double>(1.0 / s.inv_par[u]) : std::nullopt;
+  const auto rise_at = [&](double t_k) {
+    const double r = rtd_curve(d.sensor.cvd, c.rtd_line, row(b, Source::rtd_class)[u], t_k) *
+                     (1.0 + row(b, Source::sensor_drift)[u]);
+    const double v = element_voltage(d.divider.placement, s.vexc[u], s.rs[u], r, d.sensor.lead_resistance, r_par);
+    return gain * v * v / r;
+  };
+  return (rise_at(at.t_k + runaway_probe) - rise_at(at.t_k)) / runaway_probe;
+}
+
+// Whether the kernel's own solution of a hot RTD unit stands: solved
+// without a status, a rise of at most 10 K and a loop gain below ½ at the
+// true temperature. An RTD's |d ln R/dT| is 0.0039/K at 0 °C and 0.023/K
+// at −200 °C (computed from IEC 60751's coefficients), so its loop gain, at
+// most rise·|d ln R/dT| (the power of a resistor fed by any linear network
+// moves by at most |d ln R|), stays near ¼ or below over such a rise, its
+// class spread's slope changing that by a percent: the fixed point is unique, both
+// solves converge to it within their tolerance, and the chain's probe
+// cannot see a runaway. The probe guards curves of the user's own
+// coefficients near the bottom of their range.
+bool rtd_solution_stands(const RunConstants& c, const BlockUnits& b, const ReadingAt& at, const ReadingScratch& s,
+                         int u) {
+  return c.rtd && s.status[u] == 0 && s.te[u] - at.t_k <= 10.0 && rtd_loop_gain(c, b, at, s, u) < 0.5;
+}
+
 // Stage 6: a unit heated by more than 1 K is handed to the scalar chain,
 // which checks the loop gain at the true temperature for runaway
 // (chain.cpp): a loop gain of 1 needs a rise of at least 1/|d ln R/dT|,
 // tens of kelvin for any NTC, so this is rare and costs nothing in
-// ordinary designs.
+// ordinary NTC designs. An RTD's unit is handed over only where its loop
+// gain could come near 1 (rtd_solution_stands): a well-heated RTD design
+// is otherwise read by the chain unit by unit, some twenty times slower.
 void hot_units_by_chain(const RunConstants& c, const BlockUnits& b, const ReadingAt& at, ReadingScratch& s) {
   // Counted first in a loop that vectorises: most blocks have none.
   int hot = 0;
@@ -493,7 +532,7 @@ void hot_units_by_chain(const RunConstants& c, const BlockUnits& b, const Readin
   if (hot == 0) return;
   const BoardTemperature board = c.d->conditions.board;
   for (int u = 0; u < block_size; ++u) {
-    if (!hot_unit(s, at, u)) continue;
+    if (!hot_unit(s, at, u) || rtd_solution_stands(c, b, at, s, u)) continue;
     Deviations unit{};
     for (int k = 0; k < source_count; ++k) unit[static_cast<std::size_t>(k)] = b.dev[k][u];
     if (board.kind == BoardKind::range) unit[static_cast<std::size_t>(Source::board_temperature)] = s.tb[u] - board.middle();

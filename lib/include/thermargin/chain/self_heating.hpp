@@ -15,6 +15,10 @@ namespace thermargin {
 
 inline constexpr double self_heating_tolerance = 1e-9;  // K
 inline constexpr int self_heating_max_iterations = 200;
+// The step (K) of the loop-gain probe at the true temperature: a rise that
+// grows by at least the probe over the probe is a runaway from the start
+// (chain.cpp; the Monte Carlo kernel probes a hot RTD unit the same way).
+inline constexpr double runaway_probe = 1e-3;
 
 struct SelfHeating {
   enum class Outcome { converged, runaway, out_of_range };
