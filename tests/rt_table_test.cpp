@@ -8,12 +8,20 @@
 #include "thermargin/chain/rt_table.hpp"
 
 #include <algorithm>
+#include <bit>
 #include <cmath>
+#include <cstdint>
 #include <sstream>
 #include <string>
 #include <vector>
 
 #include <gtest/gtest.h>
+
+// Boost 1.74's interpolators call isnan unqualified (as in rt_table.cpp).
+namespace boost::math::interpolators {
+using std::isnan;
+}
+#include <boost/math/interpolators/cubic_hermite.hpp>
 
 #include "cli_run.hpp"
 #include "thermargin/core/error.hpp"
@@ -78,6 +86,35 @@ TEST(RtTable, AgreesWithScipyPchipOffGridOnAnUnevenDescendingTable) {
 TEST(RtTable, AgreesWithScipyPchipOnTheIncubatorScenariosTable) {
   // The table a shipped scenario reads (scenarios/incubator.ini), -10..90 degC.
   expect_agrees_with_scipy_at(testing::scenario_path("incubator_ntc47k.csv"), -10.0, 90.0);
+}
+
+// The table's interpolants are kept as pieces evaluated inline
+// (hermite_segments.hpp, which the Monte Carlo kernel vectorises) with the
+// arithmetic of Boost.Math's cubic_hermite: Boost's own interpolator on the
+// same points and slopes must give the same double at every point, at both
+// ends and at 20 000 points between, for the curve and for a limits
+// table's two spreads.
+void expect_boosts_cubic_hermite_to_the_bit(const HermiteSegments& seg, const std::string& label) {
+  boost::math::interpolators::cubic_hermite<std::vector<double>> f(std::vector<double>(seg.x), std::vector<double>(seg.y),
+                                                                    std::vector<double>(seg.slope));
+  std::vector<double> xs = seg.x;
+  const double lo = seg.x.front(), hi = seg.x.back();
+  for (int k = 0; k <= 20000; ++k) xs.push_back(lo + (hi - lo) * k / 20000.0);
+  for (double x : xs) {
+    if (x > hi) x = hi;
+    EXPECT_EQ(std::bit_cast<std::uint64_t>(seg.at(x)), std::bit_cast<std::uint64_t>(f(x)))
+        << label << " x=" << x << ": " << seg.at(x) << " against " << f(x);
+  }
+}
+
+TEST(RtTable, InlinePiecesGiveBoostsCubicHermiteToTheBit) {
+  for (const char* name : {"ntc10k_sh_5K.csv", "ntc10k_sh_uneven_desc.csv", "ntc10k_sh_0_50.csv"})
+    expect_boosts_cubic_hermite_to_the_bit(load(name).curve_segments(), name);
+  const RtTable limits(read_rt_data(testing::scenario_path("freezer_probe_ntc10k_limits.csv")));
+  ASSERT_TRUE(limits.has_limits());
+  expect_boosts_cubic_hermite_to_the_bit(limits.curve_segments(), "limits table, curve");
+  expect_boosts_cubic_hermite_to_the_bit(*limits.spread_segments(true), "limits table, upper spread");
+  expect_boosts_cubic_hermite_to_the_bit(*limits.spread_segments(false), "limits table, lower spread");
 }
 
 TEST(RtTable, PassesThroughItsPoints) {

@@ -34,6 +34,10 @@ struct RtTable::Interpolant {
   // Abscissa 1/T must ascend for Boost's interpolator: ascending 1/T is
   // descending T, so the points are stored reversed.
   boost::math::interpolators::pchip<std::vector<double>> f;
+  // The same interpolant's pieces (hermite_segments.hpp), evaluated inline:
+  // its slope at each point is Boost's derivative there (prime(x_k) returns
+  // the stored slope, s_k + 0 + 0).
+  HermiteSegments seg;
 };
 
 // PCHIP of y against x = 1/T (x ascending) with the shape-preserving end slopes.
@@ -43,7 +47,11 @@ std::shared_ptr<const RtTable::Interpolant> RtTable::make_pchip(std::vector<doub
                                 (y[2] - y[1]) / (x[2] - x[1]));
   const double right = end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
                                  (y[n - 2] - y[n - 3]) / (x[n - 2] - x[n - 3]));
-  return std::make_shared<RtTable::Interpolant>(RtTable::Interpolant{{std::move(x), std::move(y), left, right}});
+  HermiteSegments seg{x, y, {}};
+  auto p = std::make_shared<RtTable::Interpolant>(RtTable::Interpolant{{std::move(x), std::move(y), left, right}, {}});
+  for (double xk : seg.x) seg.slope.push_back(p->f.prime(xk));
+  p->seg = std::move(seg);
+  return p;
 }
 
 RtTable::RtTable(const RtData& data) : source_(data.file) {
@@ -87,12 +95,19 @@ RtTable::RtTable(const RtData& data) : source_(data.file) {
 
 std::optional<double> RtTable::spread(double t, bool upper) const {
   if (!covers(t) || !upper_) return std::nullopt;
-  return (upper ? upper_ : lower_)->f(1.0 / t);
+  return (upper ? upper_ : lower_)->seg.at(1.0 / t);
 }
 
 std::optional<double> RtTable::ln_resistance(double t) const {
   if (!covers(t)) return std::nullopt;
-  return curve_->f(1.0 / t);
+  return curve_->seg.at(1.0 / t);
+}
+
+const HermiteSegments& RtTable::curve_segments() const { return curve_->seg; }
+
+const HermiteSegments* RtTable::spread_segments(bool upper) const {
+  if (!upper_) return nullptr;
+  return &(upper ? upper_ : lower_)->seg;
 }
 
 std::optional<double> RtTable::ln_resistance_slope(double t) const {

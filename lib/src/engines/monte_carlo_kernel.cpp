@@ -40,6 +40,15 @@ RunConstants make_constants(const Chain& chain) {
     if (auto l = nominal_ln_resistance(d.sensor, t0_kelvin)) c.ln_r0 = *l;
   c.rtd = d.sensor.kind == SensorKind::rtd;
   if (c.rtd && d.sensor.rtd_class) c.rtd_line = class_line(*d.sensor.rtd_class);
+  if (d.sensor.kind == SensorKind::table) {
+    const RtTable& table = *d.sensor.table;
+    c.table_curve = &table.curve_segments();
+    c.table_upper = table.spread_segments(true);
+    c.table_lower = table.spread_segments(false);
+    c.table_lo = table.t_min_kelvin();
+    c.table_hi = table.t_max_kelvin();
+  }
+  c.curve = SensorCurve(d.sensor);
   for (const auto& in : d.inputs)
     if (in.source != Source::board_temperature && in.source != Source::adc_precharge)
       c.active.push_back(static_cast<int>(in.source));
@@ -66,6 +75,11 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
       b.ln_shift[u] += std::log1p(drift);
   }
+  if (c.table_curve)
+    for (int u = 0; u < block_size; ++u) {
+      b.ln_r25[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
+      b.ln_drift[u] = std::log1p(b.dev[static_cast<int>(Source::sensor_drift)][u]);
+    }
   // The same expressions read_block took at every temperature.
   const double duty_over_delta = c.d->sensor.dissipation > 0.0 ? c.d->divider.duty / c.d->sensor.dissipation : 0.0;
   const double* d_diss = b.dev[static_cast<int>(Source::dissipation)];

@@ -309,6 +309,44 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
   return true;
 }
 
+// A table sensor's ln R at te[] into r_el[] (SensorUnit::ln_resistance,
+// sensor.cpp): the table's PCHIP and, with limit columns, the unit's share
+// of its spread, then the stretch about T0 and the drift, the same
+// operations in the same order, in a loop without branches. A unit outside
+// the table is marked out of table (ln R = 0, as the general loop leaves
+// it), in a loop of its own and only when there is one. Returns whether it
+// marked any.
+[[gnu::always_inline]] inline bool table_ln_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+  const HermiteSegments& curve = *c.table_curve;
+  const HermiteSegments* upper = c.table_upper;
+  const HermiteSegments* lower = c.table_lower;
+  const double t_lo = c.table_lo, t_hi = c.table_hi, ln_r0 = c.curve.ln_r0;
+  const double* z = row(b, Source::table_spread);
+  const double* d_beta = row(b, Source::beta);
+  alignas(64) double inside[block_size];
+  for (int u = 0; u < block_size; ++u) {
+    const double t = s.te[u];
+    // RtTable::covers; a unit outside is evaluated at the range's end, then dropped.
+    const bool in = (t >= t_lo) & (t <= t_hi);
+    const double x = 1.0 / (in ? t : t_lo);
+    double l = curve.at(x);
+    // A spread without limit columns has no value (RtTable::spread): out of table.
+    const bool spread = z[u] != 0.0;
+    const bool readable = in & (!spread | (upper != nullptr));
+    if (spread && upper) l += z[u] * (z[u] > 0.0 ? upper : lower)->at(x);
+    const double shift = b.ln_r25[u], stretch = 1.0 + d_beta[u], drift = b.ln_drift[u];
+    const double unit = (shift == 0.0 && stretch == 1.0) ? l : ln_r0 + shift + stretch * (l - ln_r0);
+    s.r_el[u] = readable ? (drift == 0.0 ? unit : unit + drift) : 0.0;
+    inside[u] = readable ? 1.0 : 0.0;
+  }
+  int out = 0;
+  for (int u = 0; u < block_size; ++u) out += inside[u] == 0.0;
+  if (out == 0) return false;
+  constexpr auto out_of_table = static_cast<std::uint8_t>(Status::out_of_table);
+  for (int u = 0; u < block_size; ++u) s.status[u] = inside[u] != 0.0 ? s.status[u] : out_of_table;
+  return true;
+}
+
 // The element's R at te[] into r_el[]: ln R, then a vector exp (an RTD's
 // R directly, above). A unit
 // whose sensor cannot be read there is marked out of table. Inlined at both
@@ -316,6 +354,7 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
 // read_block's own and vectorises without run-time alias checks. Returns
 // whether it may have marked a unit (a beta sensor never does).
 [[gnu::always_inline]] inline bool element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
+  bool marked = false;
   if (c.beta_fast) {
     const double ln_r25 = c.ln_r25, beta = c.beta, ln_r0 = c.ln_r0;
     const double* d_beta = row(b, Source::beta);
@@ -328,19 +367,23 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
     }
   } else if (c.rtd) {
     return rtd_resistance(c, b, s);
+  } else if (c.table_curve) {
+    marked = table_ln_resistance(c, b, s);
   } else {
     const SensorSettings& sensor = c.d->sensor;
     for (int u = 0; u < block_size; ++u) {
-      const SensorUnit unit(sensor, row(b, Source::r25)[u], row(b, Source::beta)[u], row(b, Source::rtd_class)[u],
-                            row(b, Source::table_spread)[u], row(b, Source::sensor_drift)[u]);
+      const SensorUnit unit(sensor, c.curve, row(b, Source::r25)[u], row(b, Source::beta)[u],
+                            row(b, Source::rtd_class)[u], row(b, Source::table_spread)[u],
+                            row(b, Source::sensor_drift)[u]);
       const auto l = unit.ln_resistance(s.te[u]);
       if (!l) s.status[u] = static_cast<std::uint8_t>(Status::out_of_table);
       s.r_el[u] = l ? *l : 0.0;
     }
+    marked = true;
   }
   Eigen::Map<Block> m(s.r_el);
   m = m.exp();
-  return !c.beta_fast;
+  return marked;
 }
 
 // Stage 3, the element's temperature: the self-heating solve for the block

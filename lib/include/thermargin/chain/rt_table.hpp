@@ -13,6 +13,7 @@
 #include <string>
 #include <vector>
 
+#include "thermargin/chain/hermite_segments.hpp"
 #include "thermargin/input/rt_data.hpp"
 
 namespace thermargin {
@@ -42,6 +43,12 @@ class RtTable {
   bool has_limits() const { return static_cast<bool>(upper_); }
   // h(T) on the upper or lower side; nullopt outside the table or without limits.
   std::optional<double> spread(double t_kelvin, bool upper) const;
+  // The interpolants of ln R and of h against 1/T as pieces (for the Monte
+  // Carlo kernel's loop, which checks the range itself): ln_resistance(t) is
+  // curve_segments().at(1/t) and spread(t, upper) spread_segments(upper)->at(1/t),
+  // to the bit; spread_segments is null without limits.
+  const HermiteSegments& curve_segments() const;
+  const HermiteSegments* spread_segments(bool upper) const;
 
  private:
   struct Interpolant;
