@@ -43,6 +43,11 @@ class RtTable {
   // h(T) on the upper or lower side; nullopt outside the table or without limits.
   std::optional<double> spread(double t_kelvin, bool upper) const;
 
+  // Equal: the same table object or a copy of it (the interpolants are
+  // compared as pointers, so two tables read from one file twice differ).
+  // Immutable after construction, so equal tables give the same values.
+  bool operator==(const RtTable&) const = default;
+
  private:
   struct Interpolant;
   static std::shared_ptr<const Interpolant> make_pchip(std::vector<double> x, std::vector<double> y);
