@@ -441,7 +441,7 @@ TEST(TableMaxError, ALimitBelowTheStorageRoundingIsRefused) {
 TEST(TableSpacing, TemperaturePointsAreTheCodesNearestEquallySpacedTemperatures) {
   const Design d = design_with({});
   const Firmware fw(d);
-  const LookupTable t = build_lookup_table(d, fw, 30, 0.01, TableSpacing::temperature);
+  const LookupTable t = build_lookup_table(fw, 30, 0.01, TableSpacing::temperature);
   ASSERT_EQ(t.size(), 30u);
   const double t0 = *fw.exact_temperature(static_cast<double>(t.code(0)));
   const double t1 = *fw.exact_temperature(static_cast<double>(t.last_code()));

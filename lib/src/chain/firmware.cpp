@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <utility>
 
 #include "thermargin/chain/divider.hpp"
 #include "thermargin/chain/sensor.hpp"
@@ -32,23 +33,21 @@ std::optional<double> LookupTable::temperature(double code) const {
   return (a + f * (b - a)) * unit;
 }
 
-Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion) {
-  const double span = d.adc_span();
-  full_scale_ = d.firmware.full_scale == FullScale::pow2 ? span : span - 1.0;
-  if (!d.supply.ratiometric) ratio_scale_ = d.supply.v_reference / d.supply.v_excitation;
-  beta_ = BetaCurve{d.firmware.r25, d.firmware.beta};
+Firmware::Firmware(FirmwareInputs in) : in_(std::move(in)), conversion_(in_.conversion) {
+  full_scale_ = in_.full_scale == FullScale::pow2 ? in_.adc_span : in_.adc_span - 1.0;
+  if (!in_.ratiometric) ratio_scale_ = in_.v_reference / in_.v_excitation;
+  beta_ = BetaCurve{in_.fw_r25, in_.fw_beta};
   beta_ln_ = BetaLn(beta_);
-  if (d.firmware.sh) {
-    sh_ = *d.firmware.sh;
+  if (in_.fw_sh) {
+    sh_ = *in_.fw_sh;
   } else {
     // Through the nominal curve at t_min, the middle and t_max (docs/model.md §6).
-    const double t[3] = {d.conditions.t_min + kelvin_offset,
-                         0.5 * (d.conditions.t_min + d.conditions.t_max) + kelvin_offset,
-                         d.conditions.t_max + kelvin_offset};
+    const double t[3] = {in_.t_min + kelvin_offset, 0.5 * (in_.t_min + in_.t_max) + kelvin_offset,
+                         in_.t_max + kelvin_offset};
     double l[3];
     bool ok = true;
     for (int i = 0; i < 3; ++i) {
-      const auto v = nominal_ln_resistance(d.sensor, t[i]);
+      const auto v = nominal_ln_resistance(in_.sensor, t[i]);
       ok = ok && v.has_value();
       l[i] = v.value_or(0.0);
     }
@@ -57,7 +56,7 @@ Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion)
   if (conversion_ == Conversion::table) {
     Firmware exact = *this;
     exact.conversion_ = Conversion::exact;
-    table_ = build_lookup_table(d, exact, d.firmware.table_points, d.firmware.table_unit, d.firmware.table_spacing);
+    table_ = build_lookup_table(exact, in_.table_points, in_.table_unit, in_.table_spacing);
     table_monotone_ = std::is_sorted(table_.stored.begin(), table_.stored.end()) ||
                       std::is_sorted(table_.stored.rbegin(), table_.stored.rend());
   }
@@ -65,26 +64,26 @@ Firmware::Firmware(const Design& d) : d_(&d), conversion_(d.firmware.conversion)
 
 std::optional<double> Firmware::element_resistance(double code) const {
   const double ratio = code / full_scale_ * ratio_scale_;
-  const auto rb = invert_driven_divider(d_->divider.placement, d_->divider.r_fixed, d_->firmware.drive_compensation, ratio);
+  const auto rb = invert_driven_divider(in_.placement, in_.r_fixed, in_.drive_compensation, ratio);
   if (!rb) return std::nullopt;
-  return element_from_branch(*rb, d_->divider.r_parallel, d_->firmware.lead_compensation);
+  return element_from_branch(*rb, in_.r_parallel, in_.lead_compensation);
 }
 
 std::optional<double> Firmware::exact_temperature(double code) const {
   const auto r = element_resistance(code);
   if (!r) return std::nullopt;
-  const auto t = nominal_temperature(d_->sensor, std::log(*r));
+  const auto t = nominal_temperature(in_.sensor, std::log(*r));
   if (!t) return std::nullopt;
   return *t - kelvin_offset;
 }
 
 std::optional<double> Firmware::exact_code(double t_celsius) const {
-  const auto l = nominal_ln_resistance(d_->sensor, t_celsius + kelvin_offset);
+  const auto l = nominal_ln_resistance(in_.sensor, t_celsius + kelvin_offset);
   if (!l) return std::nullopt;
   // The firmware's own model forward: the lead resistance it assumes and its
   // nominal parts, so that exact_temperature(exact_code(t)) == t.
-  const double rb = branch_resistance(std::exp(*l), d_->firmware.lead_compensation, d_->divider.r_parallel);
-  const double ratio = divider_arms(d_->divider.placement, d_->divider.r_fixed, rb, d_->firmware.drive_compensation).ratio();
+  const double rb = branch_resistance(std::exp(*l), in_.lead_compensation, in_.r_parallel);
+  const double ratio = divider_arms(in_.placement, in_.r_fixed, rb, in_.drive_compensation).ratio();
   return ratio / ratio_scale_ * full_scale_;
 }
 
@@ -120,7 +119,7 @@ bool Firmware::monotone_between(double lo, double hi) const {
   };
   switch (conversion_) {
     case Conversion::steinhart_hart: return rising(sh_);
-    case Conversion::exact: return d_->sensor.kind != SensorKind::steinhart_hart || rising(d_->sensor.sh);
+    case Conversion::exact: return in_.sensor.kind != SensorKind::steinhart_hart || rising(in_.sensor.sh);
     case Conversion::table: return table_monotone_;
     case Conversion::beta: return true;
   }
@@ -128,25 +127,25 @@ bool Firmware::monotone_between(double lo, double hi) const {
 }
 
 double Firmware::round_output(double t) const {
-  const double res = d_->firmware.resolution;
+  const double res = in_.resolution;
   if (res <= 0.0) return t;
   return std::floor(t / res + 0.5) * res;
 }
 
-CodeSpan range_codes(const Design& d) {
-  const double span_codes = d.adc_span();
-  const double v_ratio = d.supply.ratiometric ? 1.0 : d.supply.v_excitation / d.supply.v_reference;
+CodeSpan range_codes(const FirmwareInputs& in) {
+  const double span_codes = in.adc_span;
+  const double v_ratio = in.ratiometric ? 1.0 : in.v_excitation / in.v_reference;
   double lo = span_codes, hi = 0.0;
   // A sensor known only by its R-T table has no curve beyond the table's ends.
-  double t_lo = d.conditions.t_min, t_hi = d.conditions.t_max;
-  if (d.sensor.kind == SensorKind::table) {
-    t_lo = std::max(t_lo, d.sensor.table->t_min_kelvin() - kelvin_offset);
-    t_hi = std::min(t_hi, d.sensor.table->t_max_kelvin() - kelvin_offset);
+  double t_lo = in.t_min, t_hi = in.t_max;
+  if (in.sensor.kind == SensorKind::table) {
+    t_lo = std::max(t_lo, in.sensor.table->t_min_kelvin() - kelvin_offset);
+    t_hi = std::min(t_hi, in.sensor.table->t_max_kelvin() - kelvin_offset);
   }
   for (double t : {t_lo, t_hi}) {
-    const auto l = nominal_ln_resistance(d.sensor, t + kelvin_offset);
-    const double rb = l ? branch_resistance(std::exp(*l), d.sensor.lead_resistance, d.divider.r_parallel) : 0.0;
-    const double ratio = divider_arms(d.divider.placement, d.divider.r_fixed, rb, d.supply.r_drive).ratio();
+    const auto l = nominal_ln_resistance(in.sensor, t + kelvin_offset);
+    const double rb = l ? branch_resistance(std::exp(*l), in.lead_resistance, in.r_parallel) : 0.0;
+    const double ratio = divider_arms(in.placement, in.r_fixed, rb, in.r_drive).ratio();
     const double c = l ? ratio * v_ratio * span_codes
                        : (t == t_lo ? 0.0 : span_codes);
     lo = std::min(lo, c);
@@ -155,12 +154,12 @@ CodeSpan range_codes(const Design& d) {
   return {lo, hi};
 }
 
-LookupTable build_lookup_table(const Design& d, const Firmware& exact, int points, double unit, TableSpacing spacing) {
+LookupTable build_lookup_table(const Firmware& exact, int points, double unit, TableSpacing spacing) {
   // The ideal codes of the nominal divider (no self-heating, no leakage) at
   // the ends of the range, widened by 5 % of that span at each end so that a
   // unit at the edge of its tolerance still reads inside the table.
-  const CodeSpan range = range_codes(d);
-  const double span_codes = d.adc_span();
+  const CodeSpan range = range_codes(exact.inputs());
+  const double span_codes = exact.inputs().adc_span;
   const double margin = 0.05 * (range.high - range.low);
   auto solves = [&](std::int64_t c) { return exact.exact_temperature(static_cast<double>(c)).has_value(); };
   LookupTable table;

@@ -10,9 +10,10 @@ std::optional<double> rtd_ln_resistance(const CallendarVanDusen& cvd, double t) 
   if (!(r > 0.0)) return std::nullopt;
   return std::log(r);
 }
-}  // namespace
 
-std::optional<double> nominal_ln_resistance(const SensorSettings& s, double t) {
+// One rule for SensorSettings and NominalCurve (sensor.hpp).
+template <class Curve>
+std::optional<double> ln_resistance_of(const Curve& s, double t) {
   switch (s.kind) {
     case SensorKind::beta: return ln_resistance(BetaCurve{s.r25, s.beta}, t);
     case SensorKind::steinhart_hart: return ln_resistance(s.sh, t);
@@ -22,7 +23,8 @@ std::optional<double> nominal_ln_resistance(const SensorSettings& s, double t) {
   return std::nullopt;
 }
 
-std::optional<double> nominal_temperature(const SensorSettings& s, double ln_r) {
+template <class Curve>
+std::optional<double> temperature_of(const Curve& s, double ln_r) {
   if (!std::isfinite(ln_r)) return std::nullopt;
   double t = 0.0;
   switch (s.kind) {
@@ -34,6 +36,15 @@ std::optional<double> nominal_temperature(const SensorSettings& s, double ln_r) 
   if (!(t > 0.0) || !std::isfinite(t)) return std::nullopt;
   return t;
 }
+
+}  // namespace
+
+NominalCurve nominal_curve(const SensorSettings& s) { return {s.kind, s.r25, s.beta, s.sh, s.table, s.cvd}; }
+
+std::optional<double> nominal_ln_resistance(const SensorSettings& s, double t) { return ln_resistance_of(s, t); }
+std::optional<double> nominal_ln_resistance(const NominalCurve& s, double t) { return ln_resistance_of(s, t); }
+std::optional<double> nominal_temperature(const SensorSettings& s, double ln_r) { return temperature_of(s, ln_r); }
+std::optional<double> nominal_temperature(const NominalCurve& s, double ln_r) { return temperature_of(s, ln_r); }
 
 std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, double t) {
   switch (s.kind) {

@@ -313,7 +313,7 @@ void summarise_run(const Accumulator& total, const Job& job, const std::vector<M
 
 McResult monte_carlo(const Chain& chain, const std::vector<double>& temperatures, const McOptions& options) {
   const Design& d = chain.design();
-  const RunConstants c = make_constants(chain);
+  const RunConstants c = make_constants(chain, options.conversions);
   const std::size_t nt = temperatures.size();
   const int threads = resolve_threads(d.threads_or_scenario(options.threads));
   const std::uint64_t requested = options.units ? options.units : d.montecarlo.units;

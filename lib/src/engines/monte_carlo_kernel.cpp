@@ -18,20 +18,34 @@
 namespace thermargin {
 namespace mc_detail {
 
-RunConstants make_constants(const Chain& chain) {
+namespace {
+
+// Readings of a sum of m samples of an ADC of `span` codes.
+double reading_count(double span, int m) { return static_cast<double>(m) * (span - 1.0) + 1.0; }
+
+}  // namespace
+
+std::vector<double> conversion_table(const Firmware& fw, int m) {
+  // Chain::convert(k / m, true), from the firmware itself.
+  std::vector<double> table(static_cast<std::size_t>(reading_count(fw.inputs().adc_span, m)));
+  for (std::size_t k = 0; k < table.size(); ++k) {
+    const auto t = fw.temperature(static_cast<double>(k) / m);
+    table[k] = t ? fw.round_output(*t) : std::numeric_limits<double>::quiet_NaN();
+  }
+  return table;
+}
+
+RunConstants make_constants(const Chain& chain, ConversionCache* cache) {
   const Design& d = chain.design();
   RunConstants c{&chain, &d, philox_key(d.montecarlo.seed), d.adc_span(), d.adc_span() - 1.0, d.adc.averaging,
                  d.adc.noise, {}, false, false, 0.0, 0.0, 0.0, {}, calibration_points(d.firmware.calibration)};
-  // The firmware's conversion of every possible reading, once: a reading is
-  // a sum of M integer samples in [0, M·(2^N − 1)].
-  const double entries = static_cast<double>(c.m) * c.max_code + 1.0;
-  if (entries <= static_cast<double>(1u << 22)) {
+  // The firmware's conversion of every possible reading, once a run (or
+  // once for the cache's runs).
+  if (reading_count(c.span, c.m) <= static_cast<double>(1u << 22)) {
     c.table_conversion = true;
-    c.conversion.resize(static_cast<std::size_t>(entries));
-    for (std::size_t k = 0; k < c.conversion.size(); ++k) {
-      const auto t = chain.convert(static_cast<double>(k) / c.m, true);
-      c.conversion[k] = t ? *t : std::numeric_limits<double>::quiet_NaN();
-    }
+    const Firmware& fw = chain.firmware();
+    auto make = [&fw, m = c.m] { return conversion_table(fw, m); };
+    c.conversion = cache ? cache->get({fw.inputs(), c.m}, make) : std::make_shared<const std::vector<double>>(make());
   }
   c.beta_fast = d.sensor.kind == SensorKind::beta;
   c.ln_r25 = std::log(d.sensor.r25);

@@ -6,6 +6,7 @@
 #pragma once
 
 #include <cstdint>
+#include <memory>
 #include <vector>
 
 #include "monte_carlo_streams.hpp"
@@ -13,6 +14,7 @@
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/rtd.hpp"
 #include "thermargin/chain/sensor.hpp"
+#include "thermargin/engines/conversion_cache.hpp"
 
 namespace thermargin::mc_detail {
 
@@ -25,7 +27,8 @@ struct RunConstants {
   double span, max_code;
   int m;                             // averaging
   double noise;                      // LSB rms
-  std::vector<double> conversion;    // reported temperature by sample sum; NaN: no solution
+  // Reported temperature by sample sum; NaN: no solution (conversion_table).
+  std::shared_ptr<const std::vector<double>> conversion;
   bool table_conversion = false;
   bool beta_fast = false;            // beta sensor: ln R in closed form
   double ln_r25 = 0.0, beta = 0.0;
@@ -45,7 +48,15 @@ struct RunConstants {
   SensorCurve curve{};               // the other models' constants, for SensorUnit
 };
 
-RunConstants make_constants(const Chain& chain);
+// The table of every possible reading's conversion when the firmware has at
+// most 2^22 readings (a sum of M samples in [0, M·(2^N − 1)]), from `cache`
+// when one is given.
+RunConstants make_constants(const Chain& chain, ConversionCache* cache = nullptr);
+
+// That table: the firmware's conversion, rounded to its output resolution,
+// of every sum k of `m` samples (reading k/m); NaN where there is no solution.
+// A function of the firmware and m alone (the conversion cache's key).
+std::vector<double> conversion_table(const Firmware& fw, int m);
 
 // The units of one block: their deviations, drawn once, kept across the
 // temperature sweep.

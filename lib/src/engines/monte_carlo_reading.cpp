@@ -619,7 +619,7 @@ void convert_block(const RunConstants& c, ReadingScratch& s, double* reported) {
     // Branch-free so that it vectorises (the table lookup is a gather). The
     // index through a 32-bit integer (the table has at most 2^22 entries):
     // AVX2 has no vector conversion of a double to a 64-bit integer.
-    const double* table = c.conversion.data();
+    const double* table = c.conversion->data();
     alignas(64) double tr[block_size];
     for (int u = 0; u < block_size; ++u) tr[u] = table[static_cast<std::int32_t>(s.sum[u])];
     for (int u = 0; u < block_size; ++u) {

@@ -155,7 +155,10 @@ struct Figures {  // what the engines say about one distinct design
   bool end_of_life = false;    // judged at end of life (life.hpp)
 };
 
-Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& rp, std::size_t anchor) {
+// `conversions`: the firmware's conversion tables the run's Monte Carlo
+// runs share (combinations that change no firmware input share one).
+Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& rp, std::size_t anchor,
+                        ConversionCache& conversions) {
   Figures f;
   // The picker has just evaluated the winning design over the same window
   // (the winner's worst case in full, every candidate's linear band): its
@@ -206,6 +209,7 @@ Figures evaluate_design(Scenario s, const GradesOptions& options, const RePick& 
   const Requirement& q = d.requirement;
   McOptions mo;
   mo.threads = 1;
+  mo.conversions = &conversions;
   const bool full = options.mc_all || options.by == ErrorMeasure::monte_carlo;
   if (!full && q.basis != Requirement::Basis::monte_carlo) {
     const bool wc_basis = q.basis == Requirement::Basis::worst_case;
@@ -663,6 +667,7 @@ std::vector<Figures> evaluate_designs(const Scenario& scenario, const Catalogue&
   };
   std::vector<Figures> figures(first_of.size());
   std::vector<std::size_t> anchor(first_of.size(), rp.anchor);
+  ConversionCache conversions;
   std::deque<std::size_t> ready;
   if (options.re_pick) ready.push_back(0);
   else
@@ -675,7 +680,8 @@ std::vector<Figures> evaluate_designs(const Scenario& scenario, const Catalogue&
   const auto errors = run_task_tree(
       std::move(ready), first_of.size(), threads,
       [&](std::size_t j) {
-        figures[j] = evaluate_design(combination_scenario(scenario, cat, choice_of(cat, first_of[j])), options, rp, anchor[j]);
+        figures[j] = evaluate_design(combination_scenario(scenario, cat, choice_of(cat, first_of[j])), options, rp,
+                                     anchor[j], conversions);
         return children(first_of[j]);  // with a re-pick, designs are combinations: j == first_of[j]
       },
       [&](std::size_t j, std::size_t c) { anchor[c] = nearest_index(rp.values, *figures[j].r_fixed); },

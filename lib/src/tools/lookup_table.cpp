@@ -35,7 +35,7 @@ struct ExactCodes {
 };
 
 ExactCodes exact_codes(const Design& d, const Firmware& fw) {
-  const CodeSpan r = range_codes(d);
+  const CodeSpan r = range_codes(fw.inputs());
   ExactCodes e;
   e.first = std::max<std::int64_t>(static_cast<std::int64_t>(std::ceil(r.low)), 0);
   e.last = std::min<std::int64_t>(static_cast<std::int64_t>(std::floor(r.high)),
@@ -183,7 +183,7 @@ TableResult make_table(const Design& d, const TableSettings& s) {
     reject(s.unit_where, unit_text(s.unit), "must be a storage unit in K from 0.0001 to 1, e.g. 0.01 or 0.1");
   const Firmware fw(d);
   const ExactCodes ex = exact_codes(d, fw);
-  auto build = [&](int p) { return build_lookup_table(d, fw, p, s.unit, s.spacing); };
+  auto build = [&](int p) { return build_lookup_table(fw, p, s.unit, s.spacing); };
 
   // A two-point table spans the codes a table of any size spans; P can be at
   // most one point per code of it.

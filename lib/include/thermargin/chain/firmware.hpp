@@ -16,6 +16,7 @@
 #include <optional>
 #include <vector>
 
+#include "thermargin/chain/firmware_inputs.hpp"
 #include "thermargin/input/design.hpp"
 
 namespace thermargin {
@@ -47,9 +48,9 @@ struct LookupTable {
 
 class Firmware {
  public:
-  // Keeps a reference to the design (it must outlive the firmware).
-  explicit Firmware(const Design& d);
-  explicit Firmware(const Design&& d) = delete;
+  // Keeps a copy of what it reads (firmware_inputs.hpp), never the design.
+  explicit Firmware(FirmwareInputs in);
+  explicit Firmware(const Design& d) : Firmware(firmware_inputs(d)) {}
 
   // Steps 1–3: the temperature (°C) for a reading in LSB, before rounding;
   // nullopt when the conversion has no solution (a ratio outside (0, 1), a
@@ -69,6 +70,7 @@ class Firmware {
   const SteinhartHart& steinhart_hart() const { return sh_; }
   const BetaCurve& beta_curve() const { return beta_; }
   const LookupTable& table() const { return table_; }
+  const FirmwareInputs& inputs() const { return in_; }
 
   // The exact nominal conversion at a code (the table's source of truth).
   std::optional<double> exact_temperature(double code) const;
@@ -78,7 +80,7 @@ class Firmware {
 
  private:
   std::optional<double> element_resistance(double code) const;
-  const Design* d_;
+  FirmwareInputs in_;
   Conversion conversion_;
   double full_scale_ = 0.0;
   double ratio_scale_ = 1.0;  // V_ref,nom / V_exc,nom
@@ -95,7 +97,7 @@ class Firmware {
 struct CodeSpan {
   double low = 0.0, high = 0.0;
 };
-CodeSpan range_codes(const Design& d);
+CodeSpan range_codes(const FirmwareInputs& in);
 
 // Builds the lookup table for a design: P points over the codes of the range
 // widened by 5 % of their span at each end, stored in `unit` K. Spaced in
@@ -113,7 +115,8 @@ CodeSpan range_codes(const Design& d);
 std::optional<BetaCurve> beta_through_curve(const SensorSettings& s, double t_min, double t_max);
 double beta_curve_r25(const SensorSettings& s, double t_min, double beta);
 
-LookupTable build_lookup_table(const Design& d, const Firmware& exact, int points, double unit,
+// `exact` is the firmware with the exact conversion, whose inputs it reads.
+LookupTable build_lookup_table(const Firmware& exact, int points, double unit,
                                TableSpacing spacing = TableSpacing::code);
 
 }  // namespace thermargin

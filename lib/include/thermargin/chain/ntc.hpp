@@ -43,6 +43,7 @@ struct SteinhartHart {
   double a;  // 1/K
   double b;  // 1/K
   double c;  // 1/K, > 0 for the closed-form inverse; 0 degenerates to the beta form
+  bool operator==(const SteinhartHart&) const = default;
 };
 
 double ln_resistance(const SteinhartHart& s, double t_kelvin);

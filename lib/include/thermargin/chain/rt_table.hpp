@@ -50,6 +50,11 @@ class RtTable {
   const HermiteSegments& curve_segments() const;
   const HermiteSegments* spread_segments(bool upper) const;
 
+  // Equal: the same table object or a copy of it (the interpolants are
+  // compared as pointers, so two tables read from one file twice differ).
+  // Immutable after construction, so equal tables give the same values.
+  bool operator==(const RtTable&) const = default;
+
  private:
   struct Interpolant;
   static std::shared_ptr<const Interpolant> make_pchip(std::vector<double> x, std::vector<double> y);

@@ -18,6 +18,7 @@ struct CallendarVanDusen {
   double a = 3.9083e-3;   // 1/°C
   double b = -5.775e-7;   // 1/°C²
   double c = -4.183e-12;  // 1/°C⁴, below 0 °C only
+  bool operator==(const CallendarVanDusen&) const = default;
 };
 
 enum class RtdClass { AA, A, B, C };

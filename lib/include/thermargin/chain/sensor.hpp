@@ -13,12 +13,29 @@
 
 namespace thermargin {
 
+// The sensor's nominal curve alone: the fields of SensorSettings that
+// nominal_ln_resistance and nominal_temperature read, and nothing else (the
+// same functions are one template over both types, so reading another field
+// does not compile for this one). The firmware's inputs hold it
+// (firmware_inputs.hpp).
+struct NominalCurve {
+  SensorKind kind = SensorKind::beta;
+  double r25 = 0.0, beta = 0.0;
+  SteinhartHart sh{};
+  std::optional<RtTable> table;
+  CallendarVanDusen cvd{};
+  bool operator==(const NominalCurve&) const = default;
+};
+NominalCurve nominal_curve(const SensorSettings& s);
+
 // ln R (Ω) of the nominal curve at t_kelvin; nullopt outside a table.
 std::optional<double> nominal_ln_resistance(const SensorSettings& s, double t_kelvin);
+std::optional<double> nominal_ln_resistance(const NominalCurve& s, double t_kelvin);
 
 // The nominal curve's temperature (K) at resistance exp(ln_r); nullopt when
 // there is none (outside a table, a non-physical resistance).
 std::optional<double> nominal_temperature(const SensorSettings& s, double ln_r);
+std::optional<double> nominal_temperature(const NominalCurve& s, double ln_r);
 
 // d ln R / dT of the nominal curve (1/K).
 std::optional<double> nominal_ln_resistance_slope(const SensorSettings& s, double t_kelvin);

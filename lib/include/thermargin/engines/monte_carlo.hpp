@@ -28,6 +28,7 @@
 #include <vector>
 
 #include "thermargin/chain/chain.hpp"
+#include "thermargin/engines/conversion_cache.hpp"
 
 namespace thermargin {
 
@@ -64,6 +65,9 @@ struct McOptions {
   std::uint64_t units = 0;  // 0: the design's montecarlo.units (or auto)
   int threads = -1;         // -1: the design's; 0: all cores
   McProgress progress;
+  // The firmware's conversion table shared with other runs (a `grades`
+  // run's combinations); none: made for this run alone. Not owned.
+  ConversionCache* conversions = nullptr;
 };
 
 McResult monte_carlo(const Chain& chain, const std::vector<double>& temperatures, const McOptions& options = {});
