@@ -11,10 +11,10 @@
 set(thermargin_long_tests
   "ChainSecondOpinion.MonteCarloBandMeanSpreadAndYieldOnEveryScenarioAndGeneratedDesign=20"
   "ChainSecondOpinion.NominalWorstCaseAndLinearBudgetOnEveryScenarioAndGeneratedDesign=17"
-  "Picker.WithMoreThanSixteenInputsTheRankingEqualsTheDirectedWorstCaseOfEveryCandidate=15"
+  "Picker.WithMoreThanSixteenInputsTheRankingEqualsTheDirectedWorstCaseOfEveryCandidate=10"
   "Picker.WinnerEqualsABruteForceWorstCaseOfEveryCandidateOnEveryScenario=9"
   "Picker.WinnerSearchedFromAnyStartIsTheWinnerWithTwoPointCalibration=9"
-  "Picker.EveryConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestCandidateMeetingIt=8"
+  "Picker.EveryConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestCandidateMeetingIt=11"
   "Acquisition.AgreesWithScipySolveIvp=8"
   "BadInput.EveryCaseExitsTwoWithOneLineNamingWhereAndWhatIsAcceptedAndLeavesNoFile=7"
   "Picker.WinnerSearchedFromAnyStartIsTheWinnerOfTheLinearObjective=6"
