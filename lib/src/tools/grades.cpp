@@ -16,6 +16,7 @@
 #include <thread>
 
 #include "thermargin/engines/budget.hpp"
+#include "thermargin/engines/conversion_cache.hpp"
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/engines/linear_budget.hpp"
 #include "thermargin/engines/window.hpp"

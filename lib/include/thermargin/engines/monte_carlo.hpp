@@ -28,9 +28,12 @@
 #include <vector>
 
 #include "thermargin/chain/chain.hpp"
-#include "thermargin/engines/conversion_cache.hpp"
 
 namespace thermargin {
+
+// A run may share its conversion table (conversion_cache.hpp); declared
+// here only, so that this header does not pull in the cache's <future>.
+class ConversionCache;
 
 struct McPoint {
   double t = 0.0;
