@@ -62,7 +62,6 @@ RunConstants make_constants(const Chain& chain, ConversionCache* cache) {
     c.table_lo = table.t_min_kelvin();
     c.table_hi = table.t_max_kelvin();
   }
-  c.curve = SensorCurve(d.sensor);
   for (const auto& in : d.inputs)
     if (in.source != Source::board_temperature && in.source != Source::adc_precharge)
       c.active.push_back(static_cast<int>(in.source));

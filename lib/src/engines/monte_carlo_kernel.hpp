@@ -13,7 +13,6 @@
 #include "thermargin/chain/acquisition.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/rtd.hpp"
-#include "thermargin/chain/sensor.hpp"
 #include "thermargin/engines/conversion_cache.hpp"
 
 namespace thermargin::mc_detail {
@@ -45,7 +44,6 @@ struct RunConstants {
   const HermiteSegments* table_upper = nullptr;
   const HermiteSegments* table_lower = nullptr;
   double table_lo = 0.0, table_hi = 0.0;  // K, the table's range
-  SensorCurve curve{};               // the other models' constants, for SensorUnit
 };
 
 // The table of every possible reading's conversion when the firmware has at

@@ -273,6 +273,14 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
   }
 }
 
+// An RTD unit's curve at the element's temperature t (K): its class spread
+// (a fraction of the class's bound) and the Callendar–Van Dusen curve, before
+// its drift; not positive below the curve's range.
+inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, double spread, double t) {
+  const double bound = class_bound(line, t - kelvin_offset);
+  return resistance(k, (t + spread * bound) - kelvin_offset);
+}
+
 // An RTD's R at te[] into r_el[] (SensorUnit::ln_resistance, sensor.cpp):
 // the class spread and the Callendar–Van Dusen curve, times 1 + drift, in a
 // loop that vectorises. R itself, not exp(ln R) as the chain takes it: the
@@ -282,14 +290,6 @@ void parts_block(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) 
 // (R = 1 then, as exp(0) gave): marked in loops of their own, only when
 // there is one (the statuses are bytes, and a loop of doubles that also
 // writes bytes vectorises poorly). Returns whether it marked any.
-// An RTD unit's curve at the element's temperature t (K): its class spread
-// (a fraction of the class's bound) and the Callendar–Van Dusen curve, before
-// its drift; not positive below the curve's range.
-inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, double spread, double t) {
-  const double bound = class_bound(line, t - kelvin_offset);
-  return resistance(k, (t + spread * bound) - kelvin_offset);
-}
-
 [[gnu::always_inline]] inline bool rtd_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   const CallendarVanDusen k = c.d->sensor.cvd;
   const ClassLine line = c.rtd_line;
@@ -320,7 +320,7 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
   const HermiteSegments& curve = *c.table_curve;
   const HermiteSegments* upper = c.table_upper;
   const HermiteSegments* lower = c.table_lower;
-  const double t_lo = c.table_lo, t_hi = c.table_hi, ln_r0 = c.curve.ln_r0;
+  const double t_lo = c.table_lo, t_hi = c.table_hi, ln_r0 = c.chain->sensor_curve().ln_r0;
   const double* z = row(b, Source::table_spread);
   const double* d_beta = row(b, Source::beta);
   alignas(64) double inside[block_size];
@@ -372,7 +372,7 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
   } else {
     const SensorSettings& sensor = c.d->sensor;
     for (int u = 0; u < block_size; ++u) {
-      const SensorUnit unit(sensor, c.curve, row(b, Source::r25)[u], row(b, Source::beta)[u],
+      const SensorUnit unit(sensor, c.chain->sensor_curve(), row(b, Source::r25)[u], row(b, Source::beta)[u],
                             row(b, Source::rtd_class)[u], row(b, Source::table_spread)[u],
                             row(b, Source::sensor_drift)[u]);
       const auto l = unit.ln_resistance(s.te[u]);

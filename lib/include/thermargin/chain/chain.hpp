@@ -106,6 +106,8 @@ class Chain {
   const Design& design() const { return *d_; }
   const AcquisitionModel& acquisition() const { return acquisition_; }
   const Firmware& firmware() const { return firmware_; }
+  // The element's nominal curve constants, taken once (SensorUnit's).
+  const SensorCurve& sensor_curve() const { return sensor_curve_; }
   double max_code() const { return max_code_; }
 
   // Sensor, self-heating, divider, supply and the ADC's static transfer.
