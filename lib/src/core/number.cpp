@@ -8,16 +8,10 @@
 #include <string>
 
 #include "thermargin/core/error.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace thermargin {
 namespace {
-
-std::string trim(std::string_view s) {
-  std::size_t b = 0, e = s.size();
-  while (b < e && std::isspace(static_cast<unsigned char>(s[b]))) ++b;
-  while (e > b && std::isspace(static_cast<unsigned char>(s[e - 1]))) --e;
-  return std::string(s.substr(b, e - b));
-}
 
 // The multiplier of an SI prefix letter, or nothing.
 std::optional<double> prefix_value(std::string_view p) {
@@ -299,5 +293,9 @@ std::string significant(double v, int digits) {
   std::snprintf(buf, sizeof buf, "%.*g", digits, v);
   return buf;
 }
+
+std::string ohms(double r, int digits) { return format_quantity(r, Quantity::resistance, digits); }
+
+std::string percent(double fraction, int decimals) { return fixed(100.0 * fraction, decimals) + " %"; }
 
 }  // namespace thermargin

@@ -11,22 +11,11 @@
 
 #include "thermargin/input/scenario.hpp"
 #include "thermargin/core/text_file.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace thermargin {
 
 namespace {
-
-std::string trim(const std::string& s) {
-  const auto b = s.find_first_not_of(" \t");
-  if (b == std::string::npos) return "";
-  const auto e = s.find_last_not_of(" \t");
-  return s.substr(b, e - b + 1);
-}
-
-std::string lower(std::string s) {
-  for (char& c : s) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-  return s;
-}
 
 // "<what> = <value> (<file>:<line>:<column>): <why>", `what` the column's
 // name (or "header").
@@ -238,7 +227,7 @@ Catalogue parse_catalogue(const std::string& text, const std::string& name) {
                                        "setup_cost (optional)";
   for (std::size_t c = 0; c < head.size(); ++c) {
     const int col = static_cast<int>(c + 1);
-    const std::string h = lower(trim(head[c].text));
+    const std::string h = lower_ascii(trim(head[c].text));
     const auto it = known.find(h);
     if (it == known.end()) refuse(name, header_line, col, "header", trim(head[c].text), "unknown column; " + accepted_columns);
     if (*it->second != 0)

@@ -8,6 +8,7 @@
 #include "thermargin/chain/ntc.hpp"
 #include "thermargin/core/number.hpp"
 #include "thermargin/core/text_file.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace thermargin {
 namespace {
@@ -37,11 +38,6 @@ bool looks_numeric(const std::string& field) {
   return false;
 }
 
-std::string lower(std::string s) {
-  for (char& ch : s) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
-  return s;
-}
-
 // The columns of the unit spread, read from the header's names (rt_data.hpp);
 // 0: none (1-based columns otherwise).
 struct LimitColumns {
@@ -55,11 +51,11 @@ struct LimitColumns {
 LimitColumns limit_columns(const std::vector<std::string>& header, const std::string& name, int line_no) {
   LimitColumns c;
   for (std::size_t i = 2; i < header.size(); ++i) {
-    const std::string name = lower(header[i]);
+    const std::string heading = lower_ascii(header[i]);
     const int col = static_cast<int>(i) + 1;
-    if (name.find("min") != std::string::npos) c.min = col;
-    else if (name.find("max") != std::string::npos) c.max = col;
-    else if (name.find("tol") != std::string::npos) c.tolerance = col;
+    if (heading.find("min") != std::string::npos) c.min = col;
+    else if (heading.find("max") != std::string::npos) c.max = col;
+    else if (heading.find("tol") != std::string::npos) c.tolerance = col;
   }
   if (c.tolerance > 0) c.min = c.max = 0;
   const bool tolerance_misplaced = c.tolerance > 0 && c.tolerance != 3;

@@ -12,6 +12,7 @@
 #include "thermargin/chain/firmware.hpp"
 #include "thermargin/chain/sensor.hpp"
 #include "thermargin/core/text_file.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace po = boost::program_options;
 
@@ -165,13 +166,6 @@ std::vector<KeySpec> make_schema() {
   add_distribution_keys(s);
   add_coverage_keys(s);
   return s;
-}
-
-std::string trim(const std::string& s) {
-  const auto b = s.find_first_not_of(" \t\r");
-  if (b == std::string::npos) return "";
-  const auto e = s.find_last_not_of(" \t\r");
-  return s.substr(b, e - b + 1);
 }
 
 bool known_section(const std::string& name) {

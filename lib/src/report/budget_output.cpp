@@ -34,7 +34,6 @@ namespace {
 using budget_writer::contributor_at;
 using budget_writer::point_ok;
 
-nlohmann::json num(double v) { return json_fields::finite(v); }
 
 nlohmann::json what_if_json(const Design& d, const WhatIf& w) {
   auto figures = [](const WhatIfFigures& f) {
@@ -67,7 +66,7 @@ nlohmann::json point_json(const BudgetPoint& p, const Design& d) {
   r["code"] = p.nominal.code;
   r["sensitivity"] = p.nominal.sensitivity;
   r["mv_per_k"] = p.nominal.mv_per_k;
-  r["lsb_in_k"] = num(p.nominal.lsb_in_k);
+  r["lsb_in_k"] = json_fields::finite(p.nominal.lsb_in_k);
   r["self_heating"] = p.nominal.self_heating;
   r["nominal"] = p.nominal.error;
   if (p.wc.any_ok) {
@@ -136,9 +135,9 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
                    {"dominant", b.window_contributors.empty() ? "" : b.window_contributors.front().name},
                    {"verdict", v.pass ? "pass" : "fail"},
                    {"basis", std::string(to_string(v.basis))},
-                   {"worst_abs_error", num(v.worst_abs_error)},
-                   {"margin", num(v.margin)},
-                   {"worst_at", num(v.worst_at)},
+                   {"worst_abs_error", json_fields::finite(v.worst_abs_error)},
+                   {"margin", json_fields::finite(v.margin)},
+                   {"worst_at", json_fields::finite(v.worst_at)},
                    {"reason", v.reason},
                    {"wc_method", b.wc_directed ? "directed corners" : "full enumeration"},
                    {"wc_method_detail", corner_method_text(b)},
@@ -158,7 +157,7 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
     w["weakest_sensitivity"] = {{"t", b.weakest.t},
                                 {"lsb_per_k", b.weakest.lsb_per_k},
                                 {"mv_per_k", b.weakest.mv_per_k},
-                                {"lsb_in_k", num(b.weakest.lsb_in_k)}};
+                                {"lsb_in_k", json_fields::finite(b.weakest.lsb_in_k)}};
   w["contributors"] = nlohmann::json::array();
   for (const auto& c : b.window_contributors)
     w["contributors"].push_back({{"source", c.name}, {"label", c.label}, {"share", c.share}, {"half_width", c.half_width}});
@@ -170,8 +169,8 @@ nlohmann::json to_json(const Design& d, const Budget& b) {
     for (const auto& r : v.unreadable)
       w["unreadable"].push_back({{"from", r.from}, {"to", r.to}, {"status", std::string(to_string(r.status))},
                                  {"every_unit", r.nominal}});
-    w["readable_max_abs"] = num(v.readable_max_abs);
-    w["readable_at"] = num(v.readable_at);
+    w["readable_max_abs"] = json_fields::finite(v.readable_max_abs);
+    w["readable_at"] = json_fields::finite(v.readable_at);
   }
   j["window"] = w;
   if (const std::string note = rtd_class_range_note(d); !note.empty()) j["rtd_class_note"] = note;
@@ -252,7 +251,7 @@ void add_settling(const Chain& chain, const Budget& b, Out f, std::string& text,
     for (std::size_t i = 0; i < b.points.size(); ++i)
       if (point_ok(b.points[i])) (*j)["points"][i]["acquisition_error"] = b.points[i].nominal.acquisition_error;
     (*j)["settling"] = {{"max_abs", s.max_abs}, {"at", s.at}, {"leading", s.shown},
-                        {"t_acq_needed", num(s.need.t_acq)}, {"settle_time_needed", num(s.need.settle)}};
+                        {"t_acq_needed", json_fields::finite(s.need.t_acq)}, {"settle_time_needed", json_fields::finite(s.need.settle)}};
   } else if (f == Out::csv) {
     std::istringstream in(text);
     std::string out, line;

@@ -63,12 +63,6 @@ svg::Axis axis(std::string label, svg::Scale scale = svg::Scale::linear) {
   return a;
 }
 
-svg::Style slot(int n) {
-  svg::Style s;
-  s.slot = n;
-  return s;
-}
-
 const svg::Axis kTemperatureAxis = axis("Temperature (\u00b0C)");
 
 // Runs of consecutive unreadable temperatures, widened by half a step each
@@ -132,7 +126,7 @@ Figure error_figure(const Design& d, const Budget& b) {
     auto values = [&](Get get) {
       return column(of, [&](const BudgetPoint& p) { return ok(p) ? std::optional<double>(get(p)) : std::nullopt; });
     };
-    c.series.push_back(svg::band(name, label, t, values(low), values(high), slot(n)));
+    c.series.push_back(svg::band(name, label, t, values(low), values(high), svg::in_slot(n)));
   };
   band(b, "wc", "Worst case", wc_ok, [](const BudgetPoint& p) { return p.wc.low; }, [](const BudgetPoint& p) { return p.wc.high; }, 1);
   band(b, "rss", "Linear budget (k = " + num(b.k_p, 2) + ")", linear_ok, [](const BudgetPoint& p) { return p.linear.low; },
@@ -149,7 +143,7 @@ Figure error_figure(const Design& d, const Budget& b) {
                                  if (!nominal_ok(p)) return std::nullopt;
                                  return p.nominal.error;
                                }),
-                               slot(0)));
+                               svg::in_slot(0)));
   // Keep the limit lines inside the plot, clear of its frame, whenever the
   // bands allow; bands beyond them take the automatic range, so they show.
   const double limit = d.requirement.max_error, room = 1.2 * limit;
@@ -182,7 +176,7 @@ Figure contributor_figure(const Budget& b) {
   for (const auto& m : main)
     c.series.push_back(svg::line(m.name, m.label, t,
                                  column(b, [&](const BudgetPoint& p) { return share_at(p, m.name); }),
-                                 slot(next_slot++)));
+                                 svg::in_slot(next_slot++)));
   std::size_t others = 0;
   for (const auto& w : b.window_contributors) others += w.share > 0.0;
   if (others > main.size())
@@ -194,7 +188,7 @@ Figure contributor_figure(const Budget& b) {
                                           for (const auto& m : main) rest -= *share_at(p, m.name);
                                           return std::max(rest, 0.0);
                                         }),
-                                 slot(next_slot)));
+                                 svg::in_slot(next_slot)));
   return {"contributors.svg",
           "Where the uncertainty comes from across the range: a source near 100 % is the one to improve there.",
           std::move(c)};
@@ -216,7 +210,7 @@ Figure curve_figure(const Design& d, const Budget& b, CurveFigure f, std::option
   if (f.from_zero) c.y.min = 0.0;
   c.description = f.description;
   c.series.push_back(svg::span("window", "Requirement window", d.requirement.window_min, d.requirement.window_max));
-  c.series.push_back(svg::line(f.series, f.legend, temperatures(b), column(b, value), slot(f.slot)));
+  c.series.push_back(svg::line(f.series, f.legend, temperatures(b), column(b, value), svg::in_slot(f.slot)));
   return {f.file, f.caption, std::move(c)};
 }
 

@@ -56,7 +56,6 @@ using budget_writer::point_ok;
 constexpr std::size_t kWidth = 100;  // the text's columns
 const TextLayout kLayout{kWidth, 1};
 
-std::string pct(double v, int decimals = 2) { return fixed(100.0 * v, decimals) + " %"; }
 
 // A current or a power with an SI prefix and three significant digits: "251 uA", "0.62 mW".
 std::string si(double v, const char* unit) {
@@ -141,7 +140,7 @@ std::string engines_text(const Design& d, const Budget& b) {
   };
   row("worst case", b.wc_max_abs, b.wc_max_at, corner_method_text(b));
   row("linear budget", b.rss_max_abs, b.rss_max_at,
-      "JCGM 100, k = " + fixed(b.k_p, 3) + ", " + pct(d.montecarlo.coverage) + " coverage");
+      "JCGM 100, k = " + fixed(b.k_p, 3) + ", " + percent(d.montecarlo.coverage) + " coverage");
   if (b.mc)
     row("Monte Carlo", b.mc->max_abs, b.mc->max_abs_at,
         "JCGM 101, " + std::to_string(b.mc->units) + " units" +
@@ -152,10 +151,10 @@ std::string engines_text(const Design& d, const Budget& b) {
 std::string yield_text(const Design& d, const Budget& b, bool detail) {
   if (!b.mc) return "\nMonte Carlo not run (--no-mc): no yield estimate.\n";
   const McSummary& m = *b.mc;
-  std::string out = wrapped("Yield: " + pct(m.yield, 3) + " of " + std::to_string(m.units) + " units within +/-" +
-                            fixed(d.requirement.max_error, 3) + " K over the window (95 % interval " + pct(m.yield_low, 3) +
-                            " .. " + pct(m.yield_high, 3) + "); " + budget_writer::failure_rate_text(m) +
-                            "; required " + pct(d.requirement.yield, 3) + ".");
+  std::string out = wrapped("Yield: " + percent(m.yield, 3) + " of " + std::to_string(m.units) + " units within +/-" +
+                            fixed(d.requirement.max_error, 3) + " K over the window (95 % interval " + percent(m.yield_low, 3) +
+                            " .. " + percent(m.yield_high, 3) + "); " + budget_writer::failure_rate_text(m) +
+                            "; required " + percent(d.requirement.yield, 3) + ".");
   int compared = 0;
   const int validated = budget_writer::validated_points(b, compared);
   std::string check = "Linear budget validated by Monte Carlo (JCGM 101 section 8) at " + std::to_string(validated) +
@@ -183,7 +182,7 @@ std::string leaders_text(const Design& d, const Budget& b, bool detail) {
       continue;
     }
     const bool first_reach = !b.leaders_by_reach.empty() && b.leaders_by_reach.front() == c.name;
-    t.rows.push_back({c.label + " (" + c.name + ")", pct(c.share, 1), fixed(c.half_width, 3),
+    t.rows.push_back({c.label + " (" + c.name + ")", percent(c.share, 1), fixed(c.half_width, 3),
                       first_reach ? "<- largest reach" : reach_leader ? "<- reach" : ""});
   }
   if (t.rows.empty()) return "";
@@ -199,7 +198,7 @@ std::string end_text(const char* where, const HandCheck& h, double max_code) {
   if (h.status != Status::ok) return std::string(where) + " " + fixed(h.t, 2) + " degC " + std::string(describe(h.status));
   const bool low = h.to_bottom <= h.to_top;
   return std::string(where) + " " + fixed(h.t, 2) + " degC code " + fixed(h.code, 0) + ", " +
-         fixed(low ? h.to_bottom : h.to_top, 0) + " codes (" + pct((low ? h.to_bottom : h.to_top) / (max_code + 1.0), 1) +
+         fixed(low ? h.to_bottom : h.to_top, 0) + " codes (" + percent((low ? h.to_bottom : h.to_top) / (max_code + 1.0), 1) +
          ") from the " + (low ? "bottom" : "top");
 }
 
@@ -216,7 +215,7 @@ std::string headroom_text(const Chain* chain, const Budget& b) {
                      fixed(h.at_min.t, 2) + " degC, " + si(h.at_max.current, "A") + " at " +
                      fixed(h.at_max.t, 2) + " degC; sensor power " + si(h.at_min.power, "W") +
                      " and " + si(h.at_max.power, "W") +
-                     (h.duty < 1.0 ? " while powered (duty " + pct(h.duty, 1) + ")" : "") + ".");
+                     (h.duty < 1.0 ? " while powered (duty " + percent(h.duty, 1) + ")" : "") + ".");
   }
   if (b.weakest.found)
     out += wrapped("Weakest ADC sensitivity in the window: " + fixed(b.weakest.lsb_per_k, 2) + " LSB/K (" +
@@ -284,7 +283,7 @@ std::string contributors_text(const Design& d, const Budget& b) {
   std::string out = "\nEvery contributor over the window (share of the combined variance; own worst-case half-width):\n";
   Table c{.header = {"source", "key", "share", "half-width (K)"}};
   for (const auto& k : b.window_contributors)
-    if (shown_contributor(d, k)) c.rows.push_back({k.label, k.name, pct(k.share, 1), fixed(k.half_width, 4)});
+    if (shown_contributor(d, k)) c.rows.push_back({k.label, k.name, percent(k.share, 1), fixed(k.half_width, 4)});
   out += render_text(c, kLayout);
   if (std::any_of(b.window_contributors.begin(), b.window_contributors.end(),
                   [&](const Contributor& k) { return shown_contributor(d, k) && k.share == 0.0; }))

@@ -23,7 +23,6 @@ namespace thermargin {
 
 namespace {
 
-nlohmann::json num(double v) { return json_fields::finite(v); }
 
 std::string short_label(const ModelFit& f) {
   const std::string m = f.model == "beta" ? "beta" : f.model == "steinhart-hart" ? "SH" : "SH4";
@@ -62,7 +61,7 @@ nlohmann::json to_json(const FitResult& r, const std::string& snippet) {
                    units = nlohmann::json::object();
     for (const auto& c : f.coefficients) {
       coefficients[c.name] = c.value;
-      uncertainties[c.name] = c.uncertainty ? num(*c.uncertainty) : nlohmann::json(nullptr);
+      uncertainties[c.name] = c.uncertainty ? json_fields::finite(*c.uncertainty) : nlohmann::json(nullptr);
       units[c.name] = c.unit;
     }
     nlohmann::json row{{"model", f.model},
@@ -75,8 +74,8 @@ nlohmann::json to_json(const FitResult& r, const std::string& snippet) {
                        {"max_residual_at", f.max_residual_at},
                        {"rms_residual", f.rms_residual},
                        {"between_assessed", f.between_assessed},
-                       {"between_max_error", f.between_assessed ? num(f.between_max_error) : nlohmann::json(nullptr)},
-                       {"between_max_at", f.between_assessed ? num(f.between_max_at) : nlohmann::json(nullptr)},
+                       {"between_max_error", f.between_assessed ? json_fields::finite(f.between_max_error) : nlohmann::json(nullptr)},
+                       {"between_max_at", f.between_assessed ? json_fields::finite(f.between_max_at) : nlohmann::json(nullptr)},
                        {"worst_error", f.worst_error},
                        {"weighted", f.weighted},
                        {"dof", f.dof},
@@ -193,12 +192,12 @@ nlohmann::json rtd_json(const RtdFit& f, double limit) {
   nlohmann::json coefficients, uncertainties;
   for (const auto& c : f.coefficients) {
     coefficients[c.name] = c.value;
-    uncertainties[c.name] = c.uncertainty ? num(*c.uncertainty) : nlohmann::json(nullptr);
+    uncertainties[c.name] = c.uncertainty ? json_fields::finite(*c.uncertainty) : nlohmann::json(nullptr);
   }
   nlohmann::json residuals = nlohmann::json::array();
   for (const auto& r : f.residuals)
     residuals.push_back({{"line", r.line}, {"t", r.t_celsius}, {"r", r.r_ohm}, {"in_window", r.in_window},
-                         {"residual", num(r.residual)}, {"solved", r.solved}});
+                         {"residual", json_fields::finite(r.residual)}, {"solved", r.solved}});
   return {{"model", "callendar-van-dusen"},
           {"method", "least-squares"},
           {"fitted_c", f.fitted_c},
@@ -206,7 +205,7 @@ nlohmann::json rtd_json(const RtdFit& f, double limit) {
           {"uncertainties", uncertainties},
           {"weighted", f.weighted},
           {"dof", f.dof},
-          {"chi_squared", f.weighted ? num(f.chi_squared) : nlohmann::json(nullptr)},
+          {"chi_squared", f.weighted ? json_fields::finite(f.chi_squared) : nlohmann::json(nullptr)},
           {"max_residual", f.max_residual},
           {"max_residual_at", f.max_residual_at},
           {"rms_residual", f.rms_residual},
@@ -214,11 +213,11 @@ nlohmann::json rtd_json(const RtdFit& f, double limit) {
           {"standard", {{"nominal_r0", f.nominal_r0},
                         {"delta_a", f.delta_a},
                         {"delta_b", f.delta_b},
-                        {"delta_c", f.fitted_c ? num(f.delta_c) : nlohmann::json(nullptr)},
+                        {"delta_c", f.fitted_c ? json_fields::finite(f.delta_c) : nlohmann::json(nullptr)},
                         {"max_deviation", f.max_deviation},
                         {"max_deviation_at", f.max_deviation_at},
                         {"class", f.met_class ? nlohmann::json(std::string(to_string(*f.met_class))) : nlohmann::json(nullptr)},
-                        {"class_use", f.met_class ? num(f.class_use) : nlohmann::json(nullptr)}}},
+                        {"class_use", f.met_class ? json_fields::finite(f.class_use) : nlohmann::json(nullptr)}}},
           {"residuals", residuals},
           {"snippet", rtd_scenario_snippet(f)}};
 }

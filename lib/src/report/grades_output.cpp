@@ -24,11 +24,9 @@ namespace {
 
 nlohmann::json opt(const std::optional<double>& v) { return json_fields::optional(v); }
 
-std::string pct(double v, int decimals = 2) { return fixed(100.0 * v, decimals) + " %"; }
 
 std::string opt_fixed(const std::optional<double>& v, int decimals) { return v ? fixed(*v, decimals) : "-"; }
 
-std::string ohms(double v) { return format_quantity(v, Quantity::resistance, 3); }
 
 nlohmann::ordered_json row_json(const GradesResult& g, const GradeRow& r) {
   nlohmann::ordered_json choice = nlohmann::ordered_json::object();
@@ -129,7 +127,7 @@ std::string to_csv(const GradesResult& g) {
 
 std::string yield_text(const GradeRow& r) {
   if (!r.mc) return "-";
-  return pct(r.mc->yield) + (r.mc_run ? "" : " (pilot)");
+  return percent(r.mc->yield) + (r.mc_run ? "" : " (pilot)");
 }
 
 std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g) {
@@ -144,7 +142,7 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
       << (std::any_of(g.rows.begin(), g.rows.end(), [](const GradeRow& r) { return r.end_of_life; })
               ? ", at end of life: requirement.at, with each grade's drift"
               : "")
-      << "), yield at least " << pct(q.yield)
+      << "), yield at least " << percent(q.yield)
       << ". Error for the front: " << to_string(g.by) << ".\n\n";
 
   if (g.recommendation) {
@@ -153,10 +151,10 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
     if (r.cost_per_good_unit) out << ", " << money(*r.cost_per_good_unit) << " per good unit";
     out << "\n  worst case " << opt_fixed(r.wc_max_abs, 3) << " K, linear band " << opt_fixed(r.rss_max_abs, 3) << " K";
     if (r.mc)
-      out << ", Monte Carlo band " << fixed(r.mc->max_abs, 3) << " K; yield " << pct(r.mc->yield, 3) << " (95 % interval "
-          << pct(r.mc->yield_low, 3) << " .. " << pct(r.mc->yield_high, 3) << "), "
+      out << ", Monte Carlo band " << fixed(r.mc->max_abs, 3) << " K; yield " << percent(r.mc->yield, 3) << " (95 % interval "
+          << percent(r.mc->yield_low, 3) << " .. " << percent(r.mc->yield_high, 3) << "), "
           << fixed(r.mc->failures_per_million, 0) << " failures per million";
-    if (r.r_fixed) out << "; fixed resistor " << ohms(*r.r_fixed);
+    if (r.r_fixed) out << "; fixed resistor " << ohms(*r.r_fixed, 3);
     out << "\n";
   } else {
     out << "RECOMMENDATION: none - no combination meets the requirement.\n";
@@ -185,13 +183,13 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
     const GradeRow& r = g.rows[i];
     std::vector<std::string> row{std::to_string(i + 1)};
     for (std::size_t k = 0; k < g.slots.size(); ++k) row.push_back(g.grades[k][static_cast<std::size_t>(r.choice[k])]);
-    if (re_picked) row.push_back(ohms(*r.r_fixed));
+    if (re_picked) row.push_back(ohms(*r.r_fixed, 3));
     row.push_back(money(r.unit_cost));
     if (g.reject_cost) row.push_back(r.cost_per_good_unit ? money(*r.cost_per_good_unit) : "-");
     row.insert(row.end(), {opt_fixed(r.wc_max_abs, 3), opt_fixed(r.rss_max_abs, 3)});
     if (r.mc) {
       row.insert(row.end(), {r.mc_run ? fixed(r.mc->max_abs, 3) : "-", yield_text(r),
-                             pct(r.mc->yield_low) + " .. " + pct(r.mc->yield_high), fixed(r.mc->failures_per_million, 0)});
+                             percent(r.mc->yield_low) + " .. " + percent(r.mc->yield_high), fixed(r.mc->failures_per_million, 0)});
     } else {
       row.insert(row.end(), {"-", "-", "", ""});
     }
@@ -218,7 +216,7 @@ std::string to_text(const Design& d, const Catalogue& cat, const GradesResult& g
          "them all; docs/grades.md).\n";
   if (g.anchor_r_fixed)
     out << "Fixed resistor re-picked for every combination (the picker's objective), starting from the scenario's own pick, "
-        << ohms(*g.anchor_r_fixed) << ".\n";
+        << ohms(*g.anchor_r_fixed, 3) << ".\n";
   out << "\n" << caution << "\n";
   return out.str();
 }

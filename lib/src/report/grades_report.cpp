@@ -25,12 +25,6 @@ std::string measure_phrase(ErrorMeasure m) {
 
 std::string opt_k(const std::optional<double>& v) { return v ? num(*v, 3) : std::string("\u2013"); }
 
-svg::Style slot(int n) {
-  svg::Style s;
-  s.slot = n;
-  return s;
-}
-
 }  // namespace
 
 std::vector<Figure> grades_figures(const GradesResult& g) {
@@ -49,7 +43,7 @@ std::vector<Figure> grades_figures(const GradesResult& g) {
     fx.push_back(g.rows[i].unit_cost);
     fy.push_back(g.rows[i].error);
   }
-  svg::Style front = slot(3);
+  svg::Style front = svg::in_slot(3);
   front.marker = svg::Marker::none;
   c.series.push_back(svg::line("front", "Cost/accuracy front", fx, fy, front));
   std::vector<double> mx, nx;
@@ -59,8 +53,8 @@ std::vector<Figure> grades_figures(const GradesResult& g) {
     (r.meets_requirement ? mx : nx).push_back(r.unit_cost);
     (r.meets_requirement ? my : ny).push_back(r.error);
   }
-  c.series.push_back(svg::points("meets", "Meets the requirement", mx, my, slot(0)));
-  svg::Style miss = slot(2);
+  c.series.push_back(svg::points("meets", "Meets the requirement", mx, my, svg::in_slot(0)));
+  svg::Style miss = svg::in_slot(2);
   miss.marker = svg::Marker::cross;
   c.series.push_back(svg::points("misses", "Does not", nx, ny, miss));
   if (g.recommendation && g.rows[*g.recommendation].error) {
@@ -85,7 +79,7 @@ std::string grades_report_html(const Design& d, const Scenario& scenario, const 
   HtmlDocument doc("Part grades: " + d.title);
   std::string intro = "thermargin " + std::string(version) + " grades for " +
                       (source.empty() ? std::string("the built-in default design") : "scenario " + source) +
-                      " with catalogue " + cat.file + ": " + std::to_string(g.slots.size()) + " slot(s), " +
+                      " with catalogue " + cat.file + ": " + std::to_string(g.slots.size()) + " svg::in_slot(s), " +
                       std::to_string(g.rows.size()) + " combination(s). Requirement \u00b1" + kelvin(q.max_error) +
                       " from " + num(q.window_min, 2) + " to " + num(q.window_max, 2) + " \u00b0C with a yield of at least " +
                       pct(q.yield, 2) + "; Monte Carlo with " + std::to_string(g.units) + " units per combination.";

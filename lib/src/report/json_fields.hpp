@@ -16,6 +16,12 @@ Json finite(double v) {
   return std::isfinite(v) ? Json(v) : Json(nullptr);
 }
 
+// An optional number, or null where it is missing or not finite.
+template <class Json = nlohmann::json>
+Json finite(const std::optional<double>& v) {
+  return v ? finite<Json>(*v) : Json(nullptr);
+}
+
 // An optional value, or null.
 template <class Json = nlohmann::json, class T>
 Json optional(const std::optional<T>& v) {

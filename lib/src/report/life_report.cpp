@@ -4,6 +4,7 @@
 #include <cstdio>
 #include <string>
 
+#include "thermargin/core/number.hpp"
 #include "thermargin/input/life.hpp"
 
 namespace thermargin {
@@ -13,12 +14,6 @@ std::string k(double v) {
   if (!std::isfinite(v)) return "n/a";
   char buf[32];
   std::snprintf(buf, sizeof buf, "%.3f K", v);
-  return buf;
-}
-
-std::string percent(double v) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.3f %%", 100.0 * v);
   return buf;
 }
 
@@ -46,7 +41,7 @@ std::string end_of_life_text(const Design& d, const Budget& b) {
   out += row("linear budget", k(b.rss_max_abs), k(e.rss_max_abs));
   if (b.mc && e.mc) {
     out += row("Monte Carlo", k(b.mc->max_abs), k(e.mc->max_abs));
-    out += row("yield", percent(b.mc->yield), percent(e.mc->yield));
+    out += row("yield", percent(b.mc->yield, 3), percent(e.mc->yield, 3));
   }
   out += row("verdict", b.end_of_life->delivery_verdict.pass ? "PASS" : "FAIL", e.verdict.pass ? "PASS" : "FAIL");
   std::string drift;

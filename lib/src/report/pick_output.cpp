@@ -7,6 +7,8 @@
 
 #include "thermargin/report/pick_output.hpp"
 
+#include "report/json_fields.hpp"
+
 #include "thermargin/core/number.hpp"
 #include "thermargin/report/csv_preamble.hpp"
 #include "thermargin/report/html_report.hpp"  // csv_cell
@@ -16,16 +18,13 @@
 #include "thermargin/input/life.hpp"
 #include "thermargin/report/pick_report.hpp"
 #include "thermargin/tools/picker.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace thermargin {
 
 namespace {
 
-nlohmann::json num(const std::optional<double>& v) {
-  return v && std::isfinite(*v) ? nlohmann::json(*v) : nlohmann::json(nullptr);
-}
 
-std::string ohms(double r) { return format_quantity(r, Quantity::resistance, 4); }
 std::string parallel_text(const std::optional<double>& r) { return r ? ohms(*r) : "none"; }
 std::string series_text(const std::optional<Series>& s) { return s ? std::string(to_string(*s)) : "-"; }
 
@@ -35,12 +34,6 @@ std::string watts(double w) {
   std::string s = format_quantity(w, Quantity::current, 3);
   s.back() = 'W';
   return s;
-}
-
-std::string join(const std::vector<std::string>& v, const char* sep) {
-  std::string out;
-  for (const auto& s : v) out += (out.empty() ? "" : sep) + s;
-  return out;
 }
 
 // The objective in words, for the verdict line and the guidance.
@@ -110,13 +103,13 @@ std::string verdict_line(const Design& d, const PickResult& r, const PickOptions
 nlohmann::json row_json(const PickRow& w, std::size_t rank, Objective o) {
   nlohmann::json j{{"rank", rank},
                    {"r_fixed", w.r_fixed},
-                   {"r_parallel", num(w.r_parallel)},
+                   {"r_parallel", json_fields::finite(w.r_parallel)},
                    {"series", w.series ? nlohmann::json(std::string(to_string(*w.series))) : nlohmann::json(nullptr)},
                    {"objective", w.status == Status::ok ? nlohmann::json(w.objective) : nlohmann::json(nullptr)},
                    {"objective_unit", objective_unit(o)},
-                   {"wc_max_abs", num(w.wc_max_abs)},
-                   {"rss_max_abs", num(w.rss_max_abs)},
-                   {"mc_max_abs", num(w.mc_max_abs)},
+                   {"wc_max_abs", json_fields::finite(w.wc_max_abs)},
+                   {"rss_max_abs", json_fields::finite(w.rss_max_abs)},
+                   {"mc_max_abs", json_fields::finite(w.mc_max_abs)},
                    {"min_sensitivity", w.min_sensitivity},
                    {"max_self_heating", w.max_self_heating},
                    {"max_current", w.max_current},
@@ -134,8 +127,8 @@ nlohmann::json row_json(const PickRow& w, std::size_t rank, Objective o) {
 }
 
 nlohmann::json guidance_json(const GuidanceValue& g) {
-  return {{"r", num(g.r)},         {"objective", num(g.objective)},          {"below", num(g.below)},
-          {"above", num(g.above)}, {"below_objective", num(g.below_objective)}, {"above_objective", num(g.above_objective)}};
+  return {{"r", json_fields::finite(g.r)},         {"objective", json_fields::finite(g.objective)},          {"below", json_fields::finite(g.below)},
+          {"above", json_fields::finite(g.above)}, {"below_objective", json_fields::finite(g.below_objective)}, {"above_objective", json_fields::finite(g.above_objective)}};
 }
 
 std::string to_json(const Design& d, const PickResult& r, const PickOptions& o) {
@@ -155,16 +148,16 @@ std::string to_json(const Design& d, const PickResult& r, const PickOptions& o) 
                      {"corners_directed", r.corners_directed}};
   j["grade"] = {{"tolerance", r.tolerance}, {"tempco", r.tempco}};
   const auto& c = o.constraints;
-  j["constraints"] = {{"max_self_heating", num(c.max_self_heating)}, {"max_current", num(c.max_current)},
-                      {"max_power", num(c.max_power)},               {"min_span", num(c.min_span)},
-                      {"min_sensitivity", num(c.min_sensitivity)}};
+  j["constraints"] = {{"max_self_heating", json_fields::finite(c.max_self_heating)}, {"max_current", json_fields::finite(c.max_current)},
+                      {"max_power", json_fields::finite(c.max_power)},               {"min_span", json_fields::finite(c.min_span)},
+                      {"min_sensitivity", json_fields::finite(c.min_sensitivity)}};
   if (c.settles) j["constraints"]["settles"] = true;
   if (r.mc_objective_units) j["mc_objective_units"] = r.mc_objective_units;
   if (r.mc_verify_units) j["mc_verify_units"] = r.mc_verify_units;
   j["rows"] = nlohmann::json::array();
   for (std::size_t i = 0; i < r.rows.size(); ++i) j["rows"].push_back(row_json(r.rows[i], i + 1, r.objective));
   j["winner"] = j["rows"].front();
-  j["margin"] = num(r.margin);
+  j["margin"] = json_fields::finite(r.margin);
   const Guidance& g = r.guidance;
   if (o.guidance)
     j["guidance"] = {{"continuous_optimum", guidance_json(g.optimum)},

@@ -7,6 +7,7 @@
 
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace thermargin {
 
@@ -15,8 +16,6 @@ namespace {
 using report::kelvin;
 using report::num;
 using report::pct;
-
-std::string ohms(double r) { return format_quantity(r, Quantity::resistance, 4); }
 
 std::string objective_axis(Objective o) {
   switch (o) {
@@ -28,7 +27,7 @@ std::string objective_axis(Objective o) {
   return "Objective";
 }
 
-std::string objective_phrase(Objective o) {
+std::string page_objective_phrase(Objective o) {
   switch (o) {
     case Objective::worst_case: return "worst case";
     case Objective::linear: return "linear band";
@@ -38,14 +37,8 @@ std::string objective_phrase(Objective o) {
   return "objective";
 }
 
-std::string objective_value(Objective o, double v) {
+std::string page_objective_value(Objective o, double v) {
   return maximised(o) ? num(v, 3) + " LSB/K" : kelvin(v, 4);
-}
-
-std::string join(const std::vector<std::string>& v, const char* sep) {
-  std::string out;
-  for (const auto& s : v) out += (out.empty() ? "" : sep) + s;
-  return out;
 }
 
 // The value a row plots: its objective where the window could be read (the
@@ -61,18 +54,11 @@ std::string candidate(const PickResult& res, const PickRow& r) {
   return s;
 }
 
-svg::Style slot(int n, svg::Marker m = svg::Marker::automatic) {
-  svg::Style s;
-  s.slot = n;
-  s.marker = m;
-  return s;
-}
-
 }  // namespace
 
 std::vector<Figure> pick_figures(const Design& design, const PickResult& res) {
   svg::Chart c;
-  c.title = "Candidates: " + objective_phrase(res.objective) + " against the fixed resistor";
+  c.title = "Candidates: " + page_objective_phrase(res.objective) + " against the fixed resistor";
   c.x.label = "R fixed (\u03a9)";
   c.x.scale = svg::Scale::log10;
   c.x.si_prefix = true;
@@ -120,7 +106,7 @@ std::vector<Figure> pick_figures(const Design& design, const PickResult& res) {
       x.push_back(res.rows[k].r_fixed);
       y.push_back(plotted(res.rows[k]));
     }
-    c.series.push_back(svg::line("objective", "", x, y, slot(3, svg::Marker::none)));
+    c.series.push_back(svg::line("objective", "", x, y, svg::in_slot(3, svg::Marker::none)));
   }
   std::vector<double> fx, rx;
   svg::Values fy, ry;
@@ -129,8 +115,8 @@ std::vector<Figure> pick_figures(const Design& design, const PickResult& res) {
     (row.feasible() ? fx : rx).push_back(row.r_fixed);
     (row.feasible() ? fy : ry).push_back(plotted(row));
   }
-  c.series.push_back(svg::points("feasible", "Within the constraints", fx, fy, slot(0)));
-  c.series.push_back(svg::points("rejected", "Ruled out", rx, ry, slot(2, svg::Marker::cross)));
+  c.series.push_back(svg::points("feasible", "Within the constraints", fx, fy, svg::in_slot(0)));
+  c.series.push_back(svg::points("rejected", "Ruled out", rx, ry, svg::in_slot(2, svg::Marker::cross)));
   if (!res.rows.empty() && plotted(res.winner()))
     c.series.push_back(svg::annotation("winner", (res.winner().feasible() ? "best: " : "least bad: ") + ohms(res.winner().r_fixed),
                                        res.winner().r_fixed, *plotted(res.winner())));
@@ -152,7 +138,7 @@ std::vector<Figure> pick_figures(const Design& design, const PickResult& res) {
   }
   std::vector<Figure> f;
   f.push_back({"pick-candidates.svg",
-               "The ranked candidates: " + objective_phrase(res.objective) +
+               "The ranked candidates: " + page_objective_phrase(res.objective) +
                    (maximised(res.objective) ? " (higher is better)" : " (lower is better)") +
                    " against the resistor's value on a log axis; hatched values are ruled out." + clipped,
                std::move(c)});
@@ -167,7 +153,7 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
                 (source.empty() ? std::string("the built-in default design") : "scenario " + source) + ": " +
                 std::to_string(res.candidates) + " candidates (" + res.candidates_label +
                 (res.pair_search ? ", fixed and parallel resistor pairs" : "") + "), ranked by the " +
-                objective_phrase(res.objective) + " over the window " + num(res.window_min, 1) + " to " +
+                page_objective_phrase(res.objective) + " over the window " + num(res.window_min, 1) + " to " +
                 num(res.window_max, 1) + " \u00b0C; " + std::to_string(res.within_constraints) +
                 " meet every constraint. Fixed-resistor grade " + format_quantity(res.tolerance, Quantity::ratio, 3) +
                 ", " + format_quantity(res.tempco, Quantity::tempco, 3) + ".");
@@ -182,10 +168,10 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
       detail = "No candidate meets every condition; least bad: " + candidate(res, w) + ", ruled out by " +
                join(w.rejected_by, ", ") + ".";
     } else {
-      detail = "Best: " + candidate(res, w) + " \u2014 " + objective_phrase(res.objective) + " " +
-               objective_value(res.objective, w.objective) + " over the window";
+      detail = "Best: " + candidate(res, w) + " \u2014 " + page_objective_phrase(res.objective) + " " +
+               page_objective_value(res.objective, w.objective) + " over the window";
       if (res.margin && res.rows.size() >= 2)
-        detail += ", " + objective_value(res.objective, *res.margin) +
+        detail += ", " + page_objective_value(res.objective, *res.margin) +
                   (maximised(res.objective) ? " more than " : " better than ") + candidate(res, res.rows[1]);
       if (!maximised(res.objective))
         detail += w.objective <= d.requirement.max_error ? "; within the requirement of \u00b1" + kelvin(d.requirement.max_error)
@@ -240,10 +226,10 @@ std::string pick_report_html(const Design& d, const Scenario& scenario, const Pi
     g.header = {"What", "R", "Objective there", "Below", "Above"};
     auto side = [&](const std::optional<double>& r, const std::optional<double>& obj) {
       if (!r) return std::string("none");
-      return ohms(*r) + " (" + (obj ? objective_value(res.objective, *obj) : std::string("not readable")) + ")";
+      return ohms(*r) + " (" + (obj ? page_objective_value(res.objective, *obj) : std::string("not readable")) + ")";
     };
     auto add = [&](const std::string& what, const GuidanceValue& v) {
-      g.rows.push_back({what, v.r ? ohms(*v.r) : "none", v.objective ? objective_value(res.objective, *v.objective) : "",
+      g.rows.push_back({what, v.r ? ohms(*v.r) : "none", v.objective ? page_objective_value(res.objective, *v.objective) : "",
                         side(v.below, v.below_objective), side(v.above, v.above_objective)});
     };
     const Guidance& gd = res.guidance;

@@ -10,15 +10,14 @@
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
 #include "thermargin/report/csv_preamble.hpp"
+#include "thermargin/core/text.hpp"
 #include "thermargin/report/table.hpp"  // render_csv
 
 namespace thermargin {
 namespace {
 
-std::string fmt(const char* format, double v) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, format, v);
-  std::string s = buf;
+std::string printed(const char* format, double v) {
+  std::string s = printf_number(format, v);
   if (s.starts_with("-") && s.find_first_not_of("-0.") == std::string::npos) s = s.substr(1);  // no "-0.000"
   return s;
 }
@@ -27,7 +26,7 @@ std::string series_name(const Filter& f) {
   switch (f.kind) {
     case FilterKind::none: return "none";
     case FilterKind::moving_average: return "moving-average-" + std::to_string(f.length);
-    case FilterKind::exponential: return "exponential-" + fmt("%.6g", f.alpha);
+    case FilterKind::exponential: return "exponential-" + printed("%.6g", f.alpha);
   }
   return "none";
 }
@@ -35,15 +34,15 @@ std::string series_name(const Filter& f) {
 std::string settings_sentence(const ResponseAnalysis& a) {
   const ResponseSettings& s = a.settings;
   std::ostringstream o;
-  o << "Sensor time constant " << fmt("%.4g", s.time_constant) << " s +/- " << fmt("%.3g", 100 * s.time_constant_tol)
-    << " % (the slowest, " << fmt("%.4g", s.time_constant_max()) << " s, is used); a reading every "
-    << fmt("%.4g", s.reading_period) << " s; the scenario's filter: " << describe(s.filter) << ".\n"
-    << "Ramp " << fmt("%.4g", s.ramp_per_minute()) << " K/min (either direction); step " << fmt("%.4g", s.step)
-    << " K, settled within " << fmt("%.4g", s.settle_to) << " K. Requirement +/-" << fmt("%.3f", a.limit) << " K over "
-    << fmt("%.2f", a.window_min) << " .. " << fmt("%.2f", a.window_max) << " degC.\n"
-    << "Static worst case over the window " << fmt("%.3f", a.static_wc_max_abs)
+  o << "Sensor time constant " << printed("%.4g", s.time_constant) << " s +/- " << printed("%.3g", 100 * s.time_constant_tol)
+    << " % (the slowest, " << printed("%.4g", s.time_constant_max()) << " s, is used); a reading every "
+    << printed("%.4g", s.reading_period) << " s; the scenario's filter: " << describe(s.filter) << ".\n"
+    << "Ramp " << printed("%.4g", s.ramp_per_minute()) << " K/min (either direction); step " << printed("%.4g", s.step)
+    << " K, settled within " << printed("%.4g", s.settle_to) << " K. Requirement +/-" << printed("%.3f", a.limit) << " K over "
+    << printed("%.2f", a.window_min) << " .. " << printed("%.2f", a.window_max) << " degC.\n"
+    << "Static worst case over the window " << printed("%.3f", a.static_wc_max_abs)
     << " K (thermargin budget), of which the noise of an unfiltered reading is up to +/-"
-    << fmt("%.4f", a.noise_band_unfiltered) << " K.\n";
+    << printed("%.4f", a.noise_band_unfiltered) << " K.\n";
   return o.str();
 }
 
@@ -76,9 +75,9 @@ std::vector<std::string> row_cells(const ResponseAnalysis& a, std::size_t i) {
   const ResponseRow& r = a.rows[i];
   std::string mark = r.chosen ? "*" : "";
   if (a.recommended && *a.recommended == i) mark += ">";
-  return {mark + describe(r.filter), fmt("%.3f", r.delay_s), fmt("%.3f", r.ramp_error), fmt("%.4g", r.settling_s),
-          fmt("%.4f", r.noise_factor), fmt("%.4f", r.noise_band), fmt("%.3f", r.static_max_abs),
-          r.readable ? fmt("%.3f", r.total_max_abs) : "unreadable", fmt("%.3f", r.margin), r.meets ? "yes" : "no"};
+  return {mark + describe(r.filter), printed("%.3f", r.delay_s), printed("%.3f", r.ramp_error), printed("%.4g", r.settling_s),
+          printed("%.4f", r.noise_factor), printed("%.4f", r.noise_band), printed("%.3f", r.static_max_abs),
+          r.readable ? printed("%.3f", r.total_max_abs) : "unreadable", printed("%.3f", r.margin), r.meets ? "yes" : "no"};
 }
 
 nlohmann::json row_json(const ResponseRow& r) {
@@ -132,7 +131,7 @@ std::string response_csv(const Design& design, const ResponseAnalysis& a) {
                      "total_at_degC", "margin_K", "meets"}};
   for (std::size_t i = 0; i < a.rows.size(); ++i) {
     const ResponseRow& r = a.rows[i];
-    auto g = [](double v) { return fmt("%.10g", v); };
+    auto g = [](double v) { return printed("%.10g", v); };
     t.rows.push_back({std::string(kind_word(r.filter.kind)),
                       r.filter.kind == FilterKind::moving_average ? std::to_string(r.filter.length) : "",
                       r.filter.kind == FilterKind::exponential ? g(r.filter.alpha) : "", r.chosen ? "1" : "0",
@@ -187,9 +186,9 @@ std::string response_json(const Design& d, const ResponseAnalysis& a) {
 std::string dynamic_error_line(const ResponseSettings& s) {
   const double dyn = dynamic_error(s);
   std::ostringstream o;
-  o << "Dynamic error at the stated ramp of " << fmt("%.4g", s.ramp_per_minute()) << " K/min ([response]: time constant "
-    << fmt("%.4g", s.time_constant_max()) << " s at its slowest, " << describe(s.filter) << " every "
-    << fmt("%.4g", s.reading_period) << " s): " << fmt("%.3f", dyn) << " K, "
+  o << "Dynamic error at the stated ramp of " << printed("%.4g", s.ramp_per_minute()) << " K/min ([response]: time constant "
+    << printed("%.4g", s.time_constant_max()) << " s at its slowest, " << describe(s.filter) << " every "
+    << printed("%.4g", s.reading_period) << " s): " << printed("%.3f", dyn) << " K, "
     << (s.include_dynamic ? "added to the verdict (requirement.include_dynamic = true)"
                           : "not in the verdict (requirement.include_dynamic = false)")
     << "; thermargin response compares filters.";
@@ -223,12 +222,6 @@ Timeline timeline(double duration, double period) {
   return t;
 }
 
-svg::Style slot(int n) {
-  svg::Style s;
-  s.slot = n;
-  return s;
-}
-
 std::string legend(const ResponseAnalysis& a, std::size_t i) {
   return describe(a.rows[i].filter) + (a.rows[i].chosen ? " (the scenario's)" : "");
 }
@@ -242,12 +235,12 @@ svg::Chart response_chart(const ResponseAnalysis& a, const std::vector<std::size
   c.y.label = "Temperature change (K)";
   const auto t = tl.times();
   c.series = std::move(first);
-  c.series.push_back(svg::line("medium", "medium (true)", t, tl.pick(medium), slot(0)));
-  c.series.push_back(svg::line("sensor", "sensor element", t, tl.pick(sensor), slot(1)));
+  c.series.push_back(svg::line("medium", "medium (true)", t, tl.pick(medium), svg::in_slot(0)));
+  c.series.push_back(svg::line("sensor", "sensor element", t, tl.pick(sensor), svg::in_slot(1)));
   int n = 2;
   for (std::size_t i : shown)
     c.series.push_back(svg::line(series_name(a.rows[i].filter), legend(a, i), t,
-                                 tl.pick(apply_filter(a.rows[i].filter, sensor)), slot(n++)));
+                                 tl.pick(apply_filter(a.rows[i].filter, sensor)), svg::in_slot(n++)));
   return c;
 }
 
@@ -265,13 +258,13 @@ Figure ramp_figure(const ResponseAnalysis& a, const std::vector<std::size_t>& sh
   std::vector<double> medium(tl.count);
   for (std::size_t k = 0; k < tl.count; ++k) medium[k] = s.ramp * static_cast<double>(k) * s.reading_period;
   svg::Chart c = response_chart(a, shown, tl, medium, sensor_on_ramp(tau, s.reading_period, s.ramp, tl.count), {});
-  c.title = "Following a ramp of " + fmt("%.4g", s.ramp_per_minute()) + " K/min";
+  c.title = "Following a ramp of " + printed("%.4g", s.ramp_per_minute()) + " K/min";
   c.x.label = "Time since the ramp began (s)";
-  c.description = "The medium's temperature, the sensor's own (time constant " + fmt("%.4g", tau) +
+  c.description = "The medium's temperature, the sensor's own (time constant " + printed("%.4g", tau) +
                   " s) and the reported temperature at each reading for the scenario's filter and its neighbours.";
   return {"response-ramp.svg",
           "The reported temperature lags the ramp by the ramp times (time constant + the filter's delay) once the "
-          "transients have passed: " + fmt("%.3f", a.rows[a.chosen].ramp_error) + " K for the scenario's filter.",
+          "transients have passed: " + printed("%.3f", a.rows[a.chosen].ramp_error) + " K for the scenario's filter.",
           std::move(c)};
 }
 
@@ -282,18 +275,18 @@ Figure step_figure(const ResponseAnalysis& a, const std::vector<std::size_t>& sh
   const double tau = s.time_constant_max();
   svg::Chart c = response_chart(a, shown, tl, std::vector<double>(tl.count, s.step),
                                 sensor_after_step(tau, s.reading_period, s.step, tl.count),
-                                {svg::reference("settle_band", "step \u00b1 " + fmt("%.4g", s.settle_to) + " K",
+                                {svg::reference("settle_band", "step \u00b1 " + printed("%.4g", s.settle_to) + " K",
                                                 {s.step - s.settle_to, s.step + s.settle_to})});
-  c.title = "Settling after a step of " + fmt("%.4g", s.step) + " K";
+  c.title = "Settling after a step of " + printed("%.4g", s.step) + " K";
   c.x.label = "Time since the step (s)";
   c.description = "The reported temperature after the medium steps at a reading, for the scenario's filter and its "
                   "neighbours; the band is the step +/- settle_to.";
   const ResponseRow& own = a.rows[a.chosen];
-  c.series.push_back(svg::annotation("settled", "settled: " + fmt("%.4g", own.settling_s) + " s", own.settling_s,
+  c.series.push_back(svg::annotation("settled", "settled: " + printed("%.4g", own.settling_s) + " s", own.settling_s,
                                      s.step - step_error(tau, s.reading_period, own.filter, s.step, own.settling_readings)));
   return {"response-step.svg",
-          "After a step the scenario's filter is within " + fmt("%.4g", s.settle_to) + " K of the new temperature from " +
-              fmt("%.4g", own.settling_s) + " s on (the slowest sensor of the tolerance).",
+          "After a step the scenario's filter is within " + printed("%.4g", s.settle_to) + " K of the new temperature from " +
+              printed("%.4g", own.settling_s) + " s on (the slowest sensor of the tolerance).",
           std::move(c)};
 }
 

@@ -14,8 +14,8 @@ constexpr int kWidth = 850, kHeight = 330;
 constexpr int kSupplyX = 50, kDividerX = 310, kCapX = 500, kAdcX = 630;
 constexpr int kTop = 40, kNode = 165, kGround = 290;
 
-std::string ohms(double v) { return format_quantity(v, Quantity::resistance, 4); }
-std::string percent(double v) { return significant(100.0 * v, 3) + " %"; }
+// A tolerance or a share as a percentage, three significant digits.
+std::string three_digit_percent(double v) { return significant(100.0 * v, 3) + " %"; }
 
 // The drawing, built from a few primitives in SVG user units.
 class Sheet {
@@ -95,9 +95,9 @@ std::vector<std::string> sensor_label(const Design& d) {
   switch (s.kind) {
     case SensorKind::beta:
       out = {"NTC " + ohms(s.r25) + " at 25 degC", "B " + significant(s.beta, 5) + " K",
-             "+/-" + percent(s.r25_tol) + " R25, +/-" + percent(s.beta_tol) + " B"};
+             "+/-" + three_digit_percent(s.r25_tol) + " R25, +/-" + three_digit_percent(s.beta_tol) + " B"};
       break;
-    case SensorKind::steinhart_hart: out = {"NTC (Steinhart-Hart)", "+/-" + percent(s.r25_tol) + " R25"}; break;
+    case SensorKind::steinhart_hart: out = {"NTC (Steinhart-Hart)", "+/-" + three_digit_percent(s.r25_tol) + " R25"}; break;
     case SensorKind::table: out = {"NTC (R-T table)"}; break;
     case SensorKind::rtd: out = {"RTD R0 " + ohms(s.cvd.r0)}; break;
   }
@@ -144,7 +144,7 @@ std::string chain_schematic_svg(const Design& d) {
   s.ground(kDividerX, kGround);
   s.dot(kDividerX, kNode);
   const std::vector<std::string> fixed_label{"R_fixed " + ohms(d.divider.r_fixed),
-                                             "+/-" + percent(d.divider.r_fixed_tol) + ", " +
+                                             "+/-" + three_digit_percent(d.divider.r_fixed_tol) + ", " +
                                                  significant(1e6 * d.divider.r_fixed_tempco, 3) + " ppm/K"};
   const std::vector<std::string> sensor = sensor_label(d);
   labels.label(kDividerX - 18, (kTop + kNode) / 2 - 8, low ? fixed_label : sensor, "end");
@@ -168,7 +168,7 @@ std::string chain_schematic_svg(const Design& d) {
   s.rect(kAdcX, kNode - 45, 110, 90);
   labels.label(kAdcX + 55, kNode - 5, {"ADC"}, "middle");
   labels.label(kAdcX - 10, kNode + 62, adc_label(d));
-  if (d.divider.duty < 1.0) labels.label(kSupplyX + 40, kTop + 30, {"powered " + percent(d.divider.duty) + " of the time"});
+  if (d.divider.duty < 1.0) labels.label(kSupplyX + 40, kTop + 30, {"powered " + three_digit_percent(d.divider.duty) + " of the time"});
   return s.str("The measurement chain of " + d.title + " with its values");
 }
 

@@ -19,6 +19,7 @@ using std::isnan;
 
 #include "thermargin/chain/rt_table.hpp"
 #include "thermargin/core/error.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace thermargin {
 namespace {
@@ -52,12 +53,6 @@ struct Point {
   double ln_r;
   double u_ln_r;  // u(R)/R, the standard uncertainty of ln R; 0 without uncertainties
 };
-
-std::string fmt(const char* format, double v) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, format, v);
-  return buf;
-}
 
 // ---------------------------------------------------------------- the models
 
@@ -310,7 +305,7 @@ std::string list_temperatures(const RtData& data, const std::vector<std::size_t>
   constexpr std::size_t shown = 12;
   for (std::size_t j = 0; j < window.size() && j < shown; ++j) {
     if (j) text += ", ";
-    text += fmt("%g", data.points[window[j]].t_celsius);
+    text += printf_number("%g", data.points[window[j]].t_celsius);
   }
   if (window.size() > shown) text += ", ... (" + std::to_string(window.size()) + " points)";
   return text;
@@ -320,7 +315,7 @@ std::string list_temperatures(const RtData& data, const std::vector<std::size_t>
 std::vector<std::size_t> pick(const RtData& data, const std::vector<std::size_t>& window,
                               const std::vector<double>& wanted, const char* key) {
   std::string given;
-  for (double t : wanted) given += (given.empty() ? "" : ", ") + fmt("%g", t);
+  for (double t : wanted) given += (given.empty() ? "" : ", ") + printf_number("%g", t);
   const Where where = command_line(key);
   std::vector<std::size_t> chosen;
   for (double t : wanted) {
@@ -341,9 +336,9 @@ std::vector<std::size_t> pick(const RtData& data, const std::vector<std::size_t>
 void check_settings(const FitSettings& s) {
   const Where window = command_line("fit.window");
   if (std::isnan(s.t_min) || std::isnan(s.t_max) || s.t_min > s.t_max)
-    reject(window, fmt("%g", s.t_min) + ".." + fmt("%g", s.t_max), "must be t_min..t_max in degC with t_min <= t_max");
+    reject(window, printf_number("%g", s.t_min) + ".." + printf_number("%g", s.t_max), "must be t_min..t_max in degC with t_min <= t_max");
   if (!(s.limit > 0.0) || !std::isfinite(s.limit))
-    reject(command_line("fit.limit"), fmt("%g", s.limit), "must be an error in K > 0");
+    reject(command_line("fit.limit"), printf_number("%g", s.limit), "must be an error in K > 0");
   if (s.between_samples < 1 || s.between_samples > 100000)
     reject(command_line("fit.between_samples"), std::to_string(s.between_samples),
            "must be a whole number from 1 to 100000");
@@ -360,7 +355,7 @@ std::string describe(const ModelFit& f) { return f.model + " (" + f.method + ")"
 FitRecommendation recommend(const FitResult& r, const FitSettings& s) {
   FitRecommendation rec;
   rec.limit = s.limit;
-  const std::string window = fmt("%g", r.window_low) + ".." + fmt("%g", r.window_high) + " degC";
+  const std::string window = printf_number("%g", r.window_low) + ".." + printf_number("%g", r.window_high) + " degC";
   for (const char* model : {"beta", "steinhart-hart", "steinhart-hart-4"}) {
     for (std::size_t i = 0; i < r.fits.size(); ++i) {
       const ModelFit& f = r.fits[i];
@@ -372,14 +367,14 @@ FitRecommendation recommend(const FitResult& r, const FitSettings& s) {
   }
   if (rec.found) {
     const ModelFit& f = r.fits[rec.fit];
-    rec.text = describe(f) + " is the simplest model within " + fmt("%g", s.limit) + " K over " + window +
-               ": its largest error there is " + fmt("%.3g", f.worst_error) + " K.";
+    rec.text = describe(f) + " is the simplest model within " + printf_number("%g", s.limit) + " K over " + window +
+               ": its largest error there is " + printf_number("%.3g", f.worst_error) + " K.";
   } else {
     for (std::size_t i = 1; i < r.fits.size(); ++i)
       if (r.fits[i].worst_error < r.fits[rec.fit].worst_error) rec.fit = i;
     const ModelFit& f = r.fits[rec.fit];
-    rec.text = "No NTC model meets " + fmt("%g", s.limit) + " K over " + window + ": the closest, " + describe(f) +
-               ", is off by up to " + fmt("%.3g", f.worst_error) +
+    rec.text = "No NTC model meets " + printf_number("%g", s.limit) + " K over " + window + ": the closest, " + describe(f) +
+               ", is off by up to " + printf_number("%.3g", f.worst_error) +
                " K. Describe this sensor by its table (or, for a platinum RTD, the rtd model)" +
                (s.extended ? "." : ", or try the four-term form.");
   }
@@ -432,8 +427,8 @@ void require_finite(const ModelFit& f, const RtData& data, const std::vector<Poi
     if (std::abs(pts[i].ln_r - median) > std::abs(pts[worst].ln_r - median)) worst = i;
   const RtPoint& p = data.points[worst];
   reject_at(data.file, p.line,
-            "the " + describe(f) + " fit of this data has no finite coefficients (" + fmt("%g", p.r_ohm) + " ohm at " +
-                fmt("%g", p.t_celsius) +
+            "the " + describe(f) + " fit of this data has no finite coefficients (" + printf_number("%g", p.r_ohm) + " ohm at " +
+                printf_number("%g", p.t_celsius) +
                 " degC is the resistance furthest from the others): check the data for a mistyped value");
 }
 
@@ -471,7 +466,7 @@ FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
     reject_at(data.file, line,
               std::string(data.points.empty() ? "no data points" : "only " + std::to_string(window.size()) +
                                                                        " data point(s)") +
-                  (windowed ? " inside the fit window " + fmt("%g", settings.t_min) + ".." + fmt("%g", settings.t_max) +
+                  (windowed ? " inside the fit window " + printf_number("%g", settings.t_min) + ".." + printf_number("%g", settings.t_max) +
                                   " degC"
                             : "") +
                   "; the " + (settings.extended ? "four-term" : "Steinhart-Hart") + " model needs at least " +
@@ -510,8 +505,8 @@ FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
   if (comparisons > max_between_comparisons)
     reject(command_line("fit.between_samples"), std::to_string(settings.between_samples),
            std::to_string(window.size() - 1) + " intervals between the points in the window x " +
-               std::to_string(settings.between_samples) + " samples = " + fmt("%.3g", comparisons) +
-               " comparisons per model; at most " + fmt("%.3g", max_between_comparisons) + ": fewer samples or a narrower window");
+               std::to_string(settings.between_samples) + " samples = " + printf_number("%.3g", comparisons) +
+               " comparisons per model; at most " + printf_number("%.3g", max_between_comparisons) + ": fewer samples or a narrower window");
   const Interpolation in = make_interpolation(pts, in_window);
   const bool w = data.has_uncertainty;
   const int n = settings.between_samples;
@@ -529,16 +524,16 @@ FitResult fit_rt_data(const RtData& data, const FitSettings& settings) {
 std::string scenario_snippet(const FitResult& result, std::size_t index) {
   const ModelFit& f = result.fits.at(index);
   std::string text = "# thermargin fit of " + result.file + ": " + describe(f) + ", largest error " +
-                     fmt("%.3g", f.worst_error) + " K over " + fmt("%g", result.window_low) + ".." +
-                     fmt("%g", result.window_high) + " degC\n";
+                     printf_number("%.3g", f.worst_error) + " K over " + printf_number("%g", result.window_low) + ".." +
+                     printf_number("%g", result.window_high) + " degC\n";
   if (!(f.worst_error <= result.recommendation.limit))
-    text += "# This fit misses the limit of " + fmt("%g", result.recommendation.limit) +
+    text += "# This fit misses the limit of " + printf_number("%g", result.recommendation.limit) +
             " K: use it only if that error is acceptable.\n";
   std::string coefficients;
-  for (const auto& c : f.coefficients) coefficients += c.name + " = " + fmt("%.10g", c.value) + "\n";
+  for (const auto& c : f.coefficients) coefficients += c.name + " = " + printf_number("%.10g", c.value) + "\n";
   if (f.model == "steinhart-hart-4") {
     text += "# The four-term form 1/T = a + b ln R + c (ln R)^2 + d (ln R)^3 has no scenario model:\n";
-    for (const auto& c : f.coefficients) text += "#   " + c.name + " = " + fmt("%.10g", c.value) + "\n";
+    for (const auto& c : f.coefficients) text += "#   " + c.name + " = " + printf_number("%.10g", c.value) + "\n";
     text += "# so the sensor is described by the data as a table, and the firmware by a lookup table.\n";
     text += "# (table_file is read relative to the scenario file: adjust the path if needed.)\n";
     text += "[sensor]\nmodel = table\ntable_file = " + result.file + "\n\n[firmware]\nconversion = table\n";
@@ -704,12 +699,12 @@ RtdFit fit_rtd_data(const RtData& data, const FitSettings& settings) {
 
 std::string rtd_scenario_snippet(const RtdFit& f) {
   std::string text = "# thermargin fit of " + f.file + ": Callendar-Van Dusen (least-squares), largest residual " +
-                     fmt("%.3g", std::abs(f.max_residual)) + " K over " + fmt("%g", f.window_low) + ".." +
-                     fmt("%g", f.window_high) + " degC\n";
+                     printf_number("%.3g", std::abs(f.max_residual)) + " K over " + printf_number("%g", f.window_low) + ".." +
+                     printf_number("%g", f.window_high) + " degC\n";
   if (!f.fitted_c)
     text += "# No data below 0 degC: C is not fitted and stays IEC 60751's, used below 0 degC only.\n";
-  text += "[sensor]\nmodel = rtd\nr0 = " + fmt("%.10g", f.cvd.r0) + "\ncvd_a = " + fmt("%.10g", f.cvd.a) +
-          "\ncvd_b = " + fmt("%.10g", f.cvd.b) + "\ncvd_c = " + fmt("%.10g", f.fitted_c ? f.cvd.c : iec60751.c) + "\n";
+  text += "[sensor]\nmodel = rtd\nr0 = " + printf_number("%.10g", f.cvd.r0) + "\ncvd_a = " + printf_number("%.10g", f.cvd.a) +
+          "\ncvd_b = " + printf_number("%.10g", f.cvd.b) + "\ncvd_c = " + printf_number("%.10g", f.fitted_c ? f.cvd.c : iec60751.c) + "\n";
   if (f.met_class)
     text += "# The data meet IEC 60751 class " + std::string(to_string(*f.met_class)) +
             " against the standard curve: rtd_class = " + std::string(to_string(*f.met_class)) +

@@ -9,19 +9,14 @@
 
 #include "thermargin/chain/rtd_class_range.hpp"
 #include "thermargin/core/caution.hpp"
+#include "thermargin/core/text.hpp"
 
 namespace thermargin {
 
 namespace {
 
-std::string fmt(const char* f, double v) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, f, v);
-  return buf;
-}
-
-std::string kelvin(double v) { return fmt("%.3g", v) + " K"; }
-std::string celsius(double v) { return fmt("%.2f", v); }
+std::string kelvin(double v) { return printf_number("%.3g", v) + " K"; }
+std::string celsius(double v) { return printf_number("%.2f", v); }
 
 // More codes than this in the range are compared with a stride: the error is
 // smooth between points, and 2^20 codes keep the search for P interactive.
@@ -123,7 +118,7 @@ std::pair<double, double> range_temperatures(const Design& d, const Interpolatio
   return {a.value_or(d.conditions.t_min), b.value_or(d.conditions.t_max)};
 }
 
-std::string unit_text(double unit) { return fmt("%.10g", unit); }
+std::string unit_text(double unit) { return printf_number("%.10g", unit); }
 
 bool valid_identifier(const std::string& s) {
   if (s.empty() || s.size() > 48) return false;
@@ -208,14 +203,14 @@ TableResult make_table(const Design& d, const TableSettings& s) {
   } else {
     const double limit = *s.max_error;
     if (!(limit > 0.0 && std::isfinite(limit)))
-      reject(s.max_error_where, fmt("%g", limit), "must be an error in K > 0, e.g. 0.05");
+      reject(s.max_error_where, printf_number("%g", limit), "must be an error in K > 0, e.g. 0.05");
     const LookupTable dense = build(static_cast<int>(std::min<std::int64_t>(max_points, 1 << 30)));
     const InterpolationError best = measure(ex, dense);
     if (!best.within(limit))
-      reject(s.max_error_where, fmt("%g", limit) + " K",
+      reject(s.max_error_where, printf_number("%g", limit) + " K",
              "cannot be met: a point at every code still leaves " + kelvin(best.max_abs) +
                  " (the rounding of the stored values, up to half the unit of " + unit_text(s.unit) +
-                 " K); accepted: a limit of at least " + fmt("%.3g", best.max_abs) + " K, or a finer unit");
+                 " K); accepted: a limit of at least " + printf_number("%.3g", best.max_abs) + " K, or a finer unit");
     // Upwards from two points, so that the first table within the limit is the
     // smallest and P − 1 is known to fail. Spaced in code, tables with the same
     // first code and step agree over the range (the longer one only adds
@@ -428,7 +423,7 @@ std::string table_csv(const Design& d, const TableResult& r) {
   if (const std::string note = rtd_class_range_note(d); !note.empty()) comment("RTD class: " + note + ".");
   out << "code,temperature_degC,stored\n";
   for (std::size_t k = 0; k < t.size(); ++k)
-    out << t.code(k) << "," << fmt("%.10g", stored_celsius(t, k)) << "," << t.stored[k] << "\n";
+    out << t.code(k) << "," << printf_number("%.10g", stored_celsius(t, k)) << "," << t.stored[k] << "\n";
   return out.str();
 }
 

@@ -25,8 +25,6 @@ std::string number_text(double v) {
   return buf;
 }
 
-std::string ohms(double v) { return format_quantity(v, Quantity::resistance, 4); }
-
 }  // namespace picker_detail
 
 using namespace picker_detail;

@@ -10,12 +10,6 @@
 
 namespace thermargin::picker_detail {
 
-namespace {
-
-constexpr double inf = std::numeric_limits<double>::infinity();
-
-}  // namespace
-
 // Worst case over the window, the temperatures split between threads (each
 // temperature's corners are independent of the others, so the result does
 // not depend on the split).

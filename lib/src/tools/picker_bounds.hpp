@@ -4,6 +4,7 @@
 #pragma once
 
 #include <cstdint>
+#include <limits>
 #include <optional>
 #include <string>
 #include <vector>
@@ -16,6 +17,8 @@
 #include "thermargin/tools/picker.hpp"
 
 namespace thermargin::picker_detail {
+
+inline constexpr double inf = std::numeric_limits<double>::infinity();
 
 // The largest |error| of a band over the window, or the first status that
 // stopped it.

@@ -23,7 +23,6 @@
 
 namespace thermargin::picker_detail {
 
-inline constexpr double inf = std::numeric_limits<double>::infinity();
 // Refinements of the worst case (settle) and candidates screened per round
 // (pick_winner) go in batches of at most this many candidates whatever the
 // thread count, so the work done (and every number reported) does not
@@ -44,7 +43,6 @@ inline constexpr std::size_t pair_refine_count = 3;
 
 // A value as text that reads back to the same bits.
 std::string number_text(double v);
-std::string ohms(double v);
 
 struct Candidate {
   double r_fixed = 0.0;

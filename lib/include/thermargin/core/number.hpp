@@ -55,4 +55,11 @@ std::string fixed(double v, int decimals);
 // columns print so that a reader gets every digit that counts.
 std::string significant(double v, int digits = 10);
 
+// A resistance in engineering notation, format_quantity's form: ohms(4700).
+std::string ohms(double r, int digits = 4);
+
+// A fraction as a percentage with `decimals` fixed decimals, as `fixed`
+// prints them: percent(0.125) == "12.50 %".
+std::string percent(double fraction, int decimals = 2);
+
 }  // namespace thermargin

@@ -86,6 +86,10 @@ struct Style {
   bool hatched = false;   // span only: diagonal hatching ("excluded") instead of a light tint
 };
 
+// The style of palette slot `n` (its colour, dash and marker), the marker
+// optionally chosen.
+inline Style in_slot(int n, Marker m = Marker::automatic) { return Style{n, Dash::automatic, m, false}; }
+
 // The palette: each slot pairs a colour with a dash pattern and a marker.
 //   0 #10183f near-black navy  solid     circle    L* 10
 //   1 #e8a33a light amber      dashed    square    L* 72
