@@ -28,12 +28,12 @@ namespace {
 using testing::design_with;
 using testing::ideal;
 
-constexpr double exact_tolerance = 1e-12;   // V: closed forms against the exact map, rounding only
-constexpr double scipy_tolerance = 1e-9;    // V: solve_ivp (Radau, rtol 1e-12) against the exact map
+constexpr double acquisition_exact_tolerance = 1e-12;   // V: closed forms against the exact map, rounding only
+constexpr double acquisition_scipy_tolerance = 1e-9;    // V: solve_ivp (Radau, rtol 1e-12) against the exact map
 constexpr double kelvin_tolerance = 1e-9;   // K: a closed form read through the beta curve, rounding only
 constexpr double printed_tolerance = 6e-6;  // K: CSV and text print 5 decimals (±5e-6) of the JSON's value
 
-AcquisitionModel model(double r_sw, double c_s, double c_n, double t_acq, double t_s, bool reset,
+AcquisitionModel acquisition_model(double r_sw, double c_s, double c_n, double t_acq, double t_s, bool reset,
                        std::optional<double> settle = std::nullopt, int m = 1) {
   AcquisitionModel a;
   a.on = true;
@@ -53,15 +53,15 @@ AcquisitionModel model(double r_sw, double c_s, double c_n, double t_acq, double
 // V_s = V_th + (V_start − V_th)·e^(−t/((R_th + R_sw)·C_s)).
 TEST(Acquisition, WithoutANodeCapacitorIsTheSingleExponential) {
   const double r_th = 47e3, r_sw = 2e3, c_s = 15e-12, t = 1.5e-6, v_th = 1.1, v_start = 0.0;
-  const SampleMap s = acquisition_map(model(r_sw, c_s, 0.0, t, 1e-4, true), r_th);
+  const SampleMap s = acquisition_map(acquisition_model(r_sw, c_s, 0.0, t, 1e-4, true), r_th);
   const double expected = v_th + (v_start - v_th) * std::exp(-t / ((r_th + r_sw) * c_s));
-  EXPECT_NEAR(s.apply(v_th, v_start), expected, exact_tolerance);
+  EXPECT_NEAR(s.apply(v_th, v_start), expected, acquisition_exact_tolerance);
   // Switched, precharge = same: C_s starts at 0 V and keeps what it took,
   // so the k-th sample is V_th·(1 − e^(−k·t/τ)); the reading is their mean.
   const double q = std::exp(-t / ((r_th + r_sw) * c_s));
-  const SampleMap sw = acquisition_map(model(r_sw, c_s, 0.0, t, 1e-4, false, 1e-3, 3), r_th);
+  const SampleMap sw = acquisition_map(acquisition_model(r_sw, c_s, 0.0, t, 1e-4, false, 1e-3, 3), r_th);
   const double mean = v_th * (1.0 - (q + q * q + q * q * q) / 3.0);
-  EXPECT_NEAR(sw.apply(v_th, 0.0), mean, exact_tolerance);
+  EXPECT_NEAR(sw.apply(v_th, 0.0), mean, acquisition_exact_tolerance);
 }
 
 // The minimum acquisition time for ½ LSB after a full-scale step,
@@ -82,7 +82,7 @@ TEST(Acquisition, MinimumAcquisitionTimeForHalfAnLsbIsTheDatasheetRule) {
 // during the acquisition at some 2e-8 V.
 TEST(Acquisition, LargeNodeCapacitorAndFastSwitchShareTheCharge) {
   const double r_th = 1e6, c_n = 100e-9, c_s = 10e-12, v_th = 2.0, v_start = 0.0;
-  const SampleMap s = acquisition_map(model(100.0, c_s, c_n, 10e-6, 1e-3, true, 10.0), r_th);
+  const SampleMap s = acquisition_map(acquisition_model(100.0, c_s, c_n, 10e-6, 1e-3, true, 10.0), r_th);
   const double step = c_s / (c_n + c_s) * (v_start - v_th);
   // The divider's recharge during the acquisition: 1e-4 of the 2e-4 V step.
   EXPECT_NEAR(s.apply(v_th, v_start) - v_th, step, 5e-8);
@@ -94,7 +94,7 @@ TEST(Acquisition, LargeNodeCapacitorAndFastSwitchShareTheCharge) {
 // The node's ripple, C_s/C_n of the step (2.4e-5 V here), bounds the check.
 TEST(Acquisition, SlowNodeDropsByTheMeanSamplingCurrentTimesTheResistance) {
   const double r_th = 100e3, c_n = 1e-6, c_s = 20e-12, t_s = 1e-3, v_th = 1.2, v_start = 0.0;
-  const double v_s = acquisition_map(model(1e3, c_s, c_n, 5e-6, t_s, true), r_th).apply(v_th, v_start);
+  const double v_s = acquisition_map(acquisition_model(1e3, c_s, c_n, 5e-6, t_s, true), r_th).apply(v_th, v_start);
   const double current = c_s * (v_s - v_start) / t_s;
   EXPECT_NEAR(v_th - v_s, current * r_th, 5e-5);
   EXPECT_GT(v_th - v_s, 2e-3);  // the drop itself is 2.4 mV: the check is not vacuous
@@ -103,8 +103,8 @@ TEST(Acquisition, SlowNodeDropsByTheMeanSamplingCurrentTimesTheResistance) {
 // A divider powered continuously and sampled back to back (precharge =
 // same) draws no charge in its periodic steady state: every sample is V_th.
 TEST(Acquisition, ContinuousDividerWithPrechargeSameSettlesExactly) {
-  const SampleMap s = acquisition_map(model(1e3, 20e-12, 10e-9, 1e-6, 1e-4, false), 50e3);
-  EXPECT_NEAR(s.apply(1.3, 0.0), 1.3, exact_tolerance);
+  const SampleMap s = acquisition_map(acquisition_model(1e3, 20e-12, 10e-9, 1e-6, 1e-4, false), 50e3);
+  EXPECT_NEAR(s.apply(1.3, 0.0), 1.3, acquisition_exact_tolerance);
 }
 
 // The closed form of the 2×2 exponential against SciPy's solve_ivp
@@ -112,7 +112,7 @@ TEST(Acquisition, ContinuousDividerWithPrechargeSameSettlesExactly) {
 // the fixed point of the measured one-period map, or reached the long way,
 // period after period from power-on) and a switched divider's power-on, to
 // 1e-9 V.
-struct Case {
+struct AcquisitionCase {
   double v_th, r_th, r_sw, c_s, c_n, t_acq, t_s, v_start;
   bool reset;
   std::optional<double> settle;
@@ -120,7 +120,7 @@ struct Case {
   int periods = 0;  // > 0: the periodic steady state integrated over this many periods
 };
 
-double scipy_sample(const Case& c) {
+double scipy_sample(const AcquisitionCase& c) {
   std::ostringstream cmd;
   cmd.precision(17);
   cmd << THERMARGIN_PYTHON << " '" << testing::source_path("tests/reference/acquisition.py") << "' v_th=" << c.v_th
@@ -133,7 +133,7 @@ double scipy_sample(const Case& c) {
 }
 
 TEST(Acquisition, AgreesWithScipySolveIvp) {
-  const Case cases[] = {
+  const AcquisitionCase cases[] = {
       {1.2, 50e3, 5e3, 20e-12, 10e-9, 2e-6, 100e-6, 0.0, true, std::nullopt, 1},     // periodic, precharge ground
       {0.8, 200e3, 2e3, 12e-12, 2.2e-9, 1e-6, 50e-6, 3.3, true, std::nullopt, 1},    // periodic, precharge reference
       {1.2, 50e3, 5e3, 20e-12, 100e-9, 2e-6, 100e-6, 0.0, false, 2e-3, 4},            // switched, same, averaged
@@ -143,10 +143,10 @@ TEST(Acquisition, AgreesWithScipySolveIvp) {
       // within 1e-13 V of its periodic steady state.
       {1.2, 50e3, 5e3, 20e-12, 250e-12, 1e-6, 50e-6, 0.0, true, std::nullopt, 1, 8},
   };
-  for (const Case& c : cases) {
-    const auto m = model(c.r_sw, c.c_s, c.c_n, c.t_acq, c.t_s, c.reset, c.settle, c.m);
+  for (const AcquisitionCase& c : cases) {
+    const auto m = acquisition_model(c.r_sw, c.c_s, c.c_n, c.t_acq, c.t_s, c.reset, c.settle, c.m);
     const double exact = acquisition_map(m, c.r_th).apply(c.v_th, c.v_start);
-    EXPECT_NEAR(exact, scipy_sample(c), scipy_tolerance) << "r_th " << c.r_th << " c_n " << c.c_n;
+    EXPECT_NEAR(exact, scipy_sample(c), acquisition_scipy_tolerance) << "r_th " << c.r_th << " c_n " << c.c_n;
   }
 }
 

@@ -301,7 +301,7 @@ std::string one_byte_signs(std::string s) {
   return s;
 }
 
-std::vector<TextTable> tables(const std::string& text) {
+std::vector<TextTable> budget_tables(const std::string& text) {
   std::vector<std::string> lines;
   std::istringstream in(one_byte_signs(text));
   for (std::string l; std::getline(in, l);) lines.push_back(l);
@@ -360,7 +360,7 @@ TEST(BudgetCli, DetailCarriesEveryPerTemperatureValueTheCsvHas) {
   ASSERT_EQ(text.status, 0) << text.err;
   // column name -> (t -> cell) from the text
   std::map<std::string, std::map<std::string, std::string>> shown;
-  for (const auto& t : detail_text::tables(text.out)) {
+  for (const auto& t : detail_text::budget_tables(text.out)) {
     if (t.header.empty() || t.header[0] != "t_degC") continue;
     for (const auto& row : t.rows) {
       std::string when = row[0];

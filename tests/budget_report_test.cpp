@@ -40,9 +40,9 @@ using Outcome = testing::CliOutcome;
 using TempDir = testing::ScratchDir;
 
 // Monte Carlo units for the CLI runs: enough for bands and a yield, quick.
-constexpr const char* kUnits = "--montecarlo.units=2000";
+constexpr const char* kPageUnits = "--montecarlo.units=2000";
 
-Outcome budget(const std::string& args) { return run_cli("budget " + args); }
+Outcome budget_page(const std::string& args) { return run_cli("budget " + args); }
 
 // Reads the page and the JSON with the outside reader; "ok: 5 charts\n" when they agree.
 std::string check_report(const fs::path& html, const fs::path& json, const fs::path& plots = {}) {
@@ -51,13 +51,13 @@ std::string check_report(const fs::path& html, const fs::path& json, const fs::p
   return testing::reference_output("report_check.py", args);
 }
 
-Budget budget_of(const Design& d) {
+Budget page_budget_of(const Design& d) {
   const Chain chain(d);
   return run_budget(chain);
 }
 
 // A shipped scenario ("" for the built-in default) with settings from the command line.
-Scenario scenario(const std::string& file, const testing::Overrides& overrides) {
+Scenario page_scenario(const std::string& file, const testing::Overrides& overrides) {
   return testing::scenario_with(overrides, file.empty() ? "" : testing::scenario_path(file));
 }
 
@@ -72,9 +72,9 @@ const svg::Series& series(const Figure& f, const std::string& name) {
 // ------------------------------------------------------------------ the charts in the library
 
 TEST(BudgetFigures, AreFiveChartsWithStableNamesHoldingTheBudgetsOwnNumbers) {
-  const Scenario s = scenario("fermentation_probe.ini", {{"montecarlo.units", "2000"}});
+  const Scenario s = page_scenario("fermentation_probe.ini", {{"montecarlo.units", "2000"}});
   const Design d = build_design(s);
-  const Budget b = budget_of(d);
+  const Budget b = page_budget_of(d);
   const auto figures = budget_figures(d, b);
   std::vector<std::string> files;
   for (const auto& f : figures) files.push_back(f.file);
@@ -110,7 +110,7 @@ TEST(BudgetFigures, ContributorSharesAreTheRowVariancesOverTheCombinedVariance) 
   // Second route to the same number: the linear budget's terms (|c|·u plus
   // each row's second-order terms) and u_c, as JCGM 100 eq. 10 and its note
   // define the shares, not the budget's sorted list.
-  const Scenario s = scenario("battery_charge_guard.ini", {});
+  const Scenario s = page_scenario("battery_charge_guard.ini", {});
   const Design d = build_design(s);
   const Chain chain(d);
   const Budget b = run_budget(chain, {.monte_carlo = false, .corners = CornerMethod::automatic, .progress = {}});
@@ -137,11 +137,11 @@ TEST(BudgetFigures, ContributorSharesAreTheRowVariancesOverTheCombinedVariance) 
 TEST(BudgetFigures, SaturatedTemperaturesAreGapsNeverZeros) {
   // A 10 Ω fixed resistor puts the node within one LSB of the rail once the
   // NTC exceeds 4096 · 10 Ω (below about −7 °C): the ADC saturates there.
-  const Scenario s = scenario("fermentation_probe.ini", {{"conditions.t_min", "-20"},
+  const Scenario s = page_scenario("fermentation_probe.ini", {{"conditions.t_min", "-20"},
                                                          {"divider.r_fixed", "10"},
                                                          {"montecarlo.units", "500"}});
   const Design d = build_design(s);
-  const Budget b = budget_of(d);
+  const Budget b = page_budget_of(d);
   const auto figures = budget_figures(d, b);
   std::vector<double> saturated;
   for (const auto& p : b.points)
@@ -171,10 +171,10 @@ TEST(BudgetFigures, SaturatedTemperaturesAreGapsNeverZeros) {
 }
 
 TEST(BudgetReportPage, CarriesTheCautionBeforeAnyChartAndEscapesTheTitle) {
-  Scenario s = scenario("", {{"montecarlo.units", "500"}});
+  Scenario s = page_scenario("", {{"montecarlo.units", "500"}});
   s.set("title", "<b>bold</b> & \"quoted\"", Where{Origin::command_line, "", 0, "title"});
   const Design d = build_design(s);
-  const Budget b = budget_of(d);
+  const Budget b = page_budget_of(d);
   const std::string html = budget_report_html(d, s, b);
   const auto caution_at = html.find("CAUTION: this is an engineering estimate");
   ASSERT_NE(caution_at, std::string::npos);
@@ -192,7 +192,7 @@ TEST_P(EveryScenario, ReportIsWellFormedAndPlotsExactlyTheJsonNumbers) {
   TempDir dir;
   const std::string file = GetParam();
   // --plots into a directory that does not exist yet: it is created.
-  const Outcome r = budget(shell_quote(file) + " " + kUnits + " --format json --output " + shell_quote((dir.path / "b.json").string()) +
+  const Outcome r = budget_page(shell_quote(file) + " " + kPageUnits + " --format json --output " + shell_quote((dir.path / "b.json").string()) +
                            " --report " + shell_quote((dir.path / "review.html").string()) + " --plots " +
                            shell_quote((dir.path / "slides").string()));
   ASSERT_EQ(r.status, 0) << r.err;
@@ -213,7 +213,7 @@ TEST(BudgetReportCli, SaturationAndNoMonteCarloStillMatchTheJson) {
   TempDir dir;
   const std::string file = shell_quote(testing::scenario_path("fermentation_probe.ini"));
   for (const std::string extra : {" --conditions.t_min=-20 --divider.r_fixed=10", " --no-mc"}) {
-    const Outcome r = budget(file + " " + kUnits + extra + " --format json --output " +
+    const Outcome r = budget_page(file + " " + kPageUnits + extra + " --format json --output " +
                              shell_quote((dir.path / "b.json").string()) + " --report " +
                              shell_quote((dir.path / "review.html").string()));
     ASSERT_EQ(r.status, 0) << r.err;
@@ -227,7 +227,7 @@ TEST(BudgetReportCli, ScenarioTitleWithMarkupAppearsEscaped) {
   TempDir dir;
   const std::string title = "<script>alert(\"x\")</script> Tom & Jerry's \"probe\"";
   std::ofstream(dir.path / "evil.ini") << "title = " << title << "\n";
-  const Outcome r = budget(shell_quote((dir.path / "evil.ini").string()) + " " + kUnits + " --format json --output " +
+  const Outcome r = budget_page(shell_quote((dir.path / "evil.ini").string()) + " " + kPageUnits + " --format json --output " +
                            shell_quote((dir.path / "b.json").string()) + " --report " +
                            shell_quote((dir.path / "review.html").string()));
   ASSERT_EQ(r.status, 0) << r.err;
@@ -269,7 +269,7 @@ TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {
   EXPECT_EQ(counts.substr(counts.find(' ') + 1), "0") << r.out << r.err;
   EXPECT_EQ(title, "'=HYPERLINK(\"http://example.invalid\",\"x\")");
   // The budget's CSV: every row as wide as the header, no cell a formula.
-  r = budget(shell_quote((dir.path / "formula.ini").string()) + " " + kUnits + " --format csv --output " +
+  r = budget_page(shell_quote((dir.path / "formula.ini").string()) + " " + kPageUnits + " --format csv --output " +
                  shell_quote((dir.path / "b.csv").string()));
   ASSERT_EQ(r.status, 0) << r.err;
   r = run_shell(reader + shell_quote((dir.path / "b.csv").string()));
@@ -281,7 +281,7 @@ TEST(BudgetCsvCli, CellsThatWouldRunAsFormulasAreNeutralised) {
 TEST(BudgetReportCli, MissingDirectoryFailsBeforeAnyWorkWithOneLine) {
   TempDir dir;
   const fs::path target = dir.path / "missing" / "review.html";
-  const Outcome r = budget(std::string(kUnits) + " --report " + shell_quote(target.string()));
+  const Outcome r = budget_page(std::string(kPageUnits) + " --report " + shell_quote(target.string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(r.out, "");  // refused before the analysis printed anything
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
@@ -293,7 +293,7 @@ TEST(BudgetReportCli, MissingDirectoryFailsBeforeAnyWorkWithOneLine) {
 TEST(BudgetPlotsCli, DirectoryWhoseParentIsMissingIsRefusedAndNothingIsCreated) {
   TempDir dir;
   const fs::path target = dir.path / "a" / "b";
-  const Outcome r = budget(std::string(kUnits) + " --plots " + shell_quote(target.string()));
+  const Outcome r = budget_page(std::string(kPageUnits) + " --plots " + shell_quote(target.string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
   EXPECT_NE(r.err.find("--plots = " + target.string() + " (command line)"), std::string::npos) << r.err;
@@ -305,7 +305,7 @@ TEST(BudgetPlotsCli, AFileThatCannotBeReplacedLeavesNoPartialSetOfPlots) {
   // neither the other three charts nor a staged file appear.
   TempDir dir;
   fs::create_directories(dir.path / "plots" / "contributors.svg");
-  const Outcome r = budget(std::string(kUnits) + " --plots " + shell_quote((dir.path / "plots").string()));
+  const Outcome r = budget_page(std::string(kPageUnits) + " --plots " + shell_quote((dir.path / "plots").string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
   EXPECT_NE(r.err.find("cannot write contributors.svg"), std::string::npos) << r.err;
@@ -341,7 +341,7 @@ TEST(BudgetReportCli, ReadOnlyReportKeepsItsContentsAndNoTemporaryIsLeft) {
   std::ofstream(target) << "old";
   fs::permissions(target, fs::perms(0444));
   const Outcome r =
-      run_shell(unprivileged(cli_command("budget " + std::string(kUnits) + " --report " + shell_quote(target.string())), dir.path));
+      run_shell(unprivileged(cli_command("budget " + std::string(kPageUnits) + " --report " + shell_quote(target.string())), dir.path));
   EXPECT_EQ(r.status, 2) << r.err;
   EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r.err;
   EXPECT_NE(r.err.find(target.string()), std::string::npos) << r.err;
@@ -358,7 +358,7 @@ TEST(BudgetPlotsCli, ReadOnlyChartKeepsItsContentsAndNoOtherChartIsWritten) {
   fs::permissions(plots / "sensitivity.svg", fs::perms(0444));
   if (::geteuid() == 0) fs::permissions(plots, fs::perms::all);
   const Outcome r =
-      run_shell(unprivileged(cli_command("budget " + std::string(kUnits) + " --plots " + shell_quote(plots.string())), dir.path));
+      run_shell(unprivileged(cli_command("budget " + std::string(kPageUnits) + " --plots " + shell_quote(plots.string())), dir.path));
   EXPECT_EQ(r.status, 2) << r.err;
   EXPECT_NE(r.err.find("cannot write sensitivity.svg: the file is read-only"), std::string::npos) << r.err;
   EXPECT_EQ(slurp(plots / "sensitivity.svg"), "old");

@@ -29,16 +29,16 @@ namespace {
 using Keys = testing::Overrides;
 using testing::design_with;
 
-constexpr double round_trip_tolerance = 1e-9;  // K (docs/model.md §2's solver tolerance; the chain is exact)
+constexpr double chain_round_trip_tolerance = 1e-9;  // K (docs/model.md §2's solver tolerance; the chain is exact)
 constexpr double voltage_tolerance = 1e-12;    // V, rounding of a few operations on volts
 constexpr double code_relative_tolerance = 1e-13;
 constexpr double lsb_tolerance = 1e-12;   // LSB, a few roundings of numbers near 1000
 constexpr double grid_tolerance = 1e-9;   // K, distance of a rounded output from its grid
 
 // An ideal converter and firmware (engine_fixture.hpp): what is left is the chain's algebra.
-Keys ideal(const Keys& extra) { return testing::ideal_converter(extra); }
+Keys chain_ideal(const Keys& extra) { return testing::ideal_converter(extra); }
 
-std::size_t at(Source s) { return static_cast<std::size_t>(s); }
+std::size_t chain_at(Source s) { return static_cast<std::size_t>(s); }
 
 const std::string table_5k = testing::data_path("chain/ntc10k_sh_5K.csv");
 const std::string table_0_50 = testing::data_path("chain/ntc10k_sh_0_50.csv");
@@ -50,7 +50,7 @@ struct Model {
   const char* lead;  // Ω, the same compensated in firmware
 };
 
-std::vector<Model> every_model() {
+std::vector<Model> every_chain_model() {
   return {
       {"beta", {{"sensor.model", "beta"}, {"sensor.r25", "10k"}, {"sensor.beta", "3950"}, {"divider.r_fixed", "10k"},
                 {"conditions.t_min", "-40"}, {"conditions.t_max", "125"}}, "100k", "5"},
@@ -70,17 +70,17 @@ void expect_round_trip(const Design& d, const std::string& label) {
   for (double t = d.conditions.t_min; t <= d.conditions.t_max + 1e-9; t += step) {
     const Evaluation e = chain.evaluate(nominal_deviations(), t);
     ASSERT_EQ(e.status, Status::ok) << label << " at " << t;
-    EXPECT_NEAR(e.error, 0.0, round_trip_tolerance) << label << " at " << t;
-    EXPECT_NEAR(e.t_reported, t, round_trip_tolerance) << label << " at " << t;
+    EXPECT_NEAR(e.error, 0.0, chain_round_trip_tolerance) << label << " at " << t;
+    EXPECT_NEAR(e.t_reported, t, chain_round_trip_tolerance) << label << " at " << t;
   }
 }
 
 TEST(ChainRoundTrip, ExactConversionReturnsTheTrueTemperatureForEveryModelPlacementShuntAndLead) {
-  for (const Model& m : every_model()) {
+  for (const Model& m : every_chain_model()) {
     for (const char* placement : {"low", "high"}) {
       for (const char* r_parallel : {"none", m.r_parallel}) {
         for (const char* lead : {"0", m.lead}) {
-          Keys k = ideal(m.keys);
+          Keys k = chain_ideal(m.keys);
           k.insert(k.end(), {{"divider.placement", placement},
                              {"divider.r_parallel", r_parallel},
                              {"sensor.lead_resistance", lead},
@@ -95,9 +95,9 @@ TEST(ChainRoundTrip, ExactConversionReturnsTheTrueTemperatureForEveryModelPlacem
 
 TEST(ChainRoundTrip, SteinhartHartConversionOfASteinhartHartSensorIsExact) {
   // Fitted through the nominal curve (the default) and given explicitly.
-  expect_round_trip(design_with(ideal({{"sensor.model", "steinhart-hart"}, {"firmware.conversion", "steinhart-hart"}})),
+  expect_round_trip(design_with(chain_ideal({{"sensor.model", "steinhart-hart"}, {"firmware.conversion", "steinhart-hart"}})),
                     "fitted");
-  expect_round_trip(design_with(ideal({{"sensor.model", "steinhart-hart"},
+  expect_round_trip(design_with(chain_ideal({{"sensor.model", "steinhart-hart"},
                                        {"firmware.conversion", "steinhart-hart"},
                                        {"firmware.a", "1.129148e-3"},
                                        {"firmware.b", "2.34125e-4"},
@@ -107,22 +107,22 @@ TEST(ChainRoundTrip, SteinhartHartConversionOfASteinhartHartSensorIsExact) {
 }
 
 TEST(ChainRoundTrip, BetaConversionOfABetaSensorIsExact) {
-  expect_round_trip(design_with(ideal({{"sensor.beta", "3435"}, {"firmware.conversion", "beta"}})), "low");
-  expect_round_trip(design_with(ideal({{"sensor.r25", "47k"}, {"divider.r_fixed", "47k"}, {"firmware.conversion", "beta"},
+  expect_round_trip(design_with(chain_ideal({{"sensor.beta", "3435"}, {"firmware.conversion", "beta"}})), "low");
+  expect_round_trip(design_with(chain_ideal({{"sensor.r25", "47k"}, {"divider.r_fixed", "47k"}, {"firmware.conversion", "beta"},
                                        {"divider.placement", "high"}, {"divider.r_parallel", "220k"}})),
                     "high with shunt");
 }
 
 TEST(ChainRoundTrip, AbsoluteReferenceIsExactWithNominalVoltages) {
   // The firmware scales the ratio by V_ref,nom/V_exc,nom (docs/model.md §6 step 1).
-  expect_round_trip(design_with(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
+  expect_round_trip(design_with(chain_ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
                                        {"supply.v_reference", "3.0V"}})),
                     "absolute");
 }
 
 TEST(ChainRoundTrip, RatiometricReadingDoesNotDependOnTheSupplyVoltage) {
-  const Design a = design_with(ideal({{"supply.v_excitation", "3.3V"}}));
-  const Design b = design_with(ideal({{"supply.v_excitation", "5V"}}));
+  const Design a = design_with(chain_ideal({{"supply.v_excitation", "3.3V"}}));
+  const Design b = design_with(chain_ideal({{"supply.v_excitation", "5V"}}));
   const Chain ca(a), cb(b);
   for (double t : {-20.0, 25.0, 80.0})
     EXPECT_NEAR(ca.front_end(nominal_deviations(), t).x_static / cb.front_end(nominal_deviations(), t).x_static, 1.0,
@@ -142,7 +142,7 @@ TEST(ChainStages, TheFrontEndIsItsAnalogStageThenTheAdcStageToTheBit) {
     return (state >> 16 & 1) ? 1.0 : -1.0;
   };
   int compared = 0;
-  for (const auto& m : every_model()) {
+  for (const auto& m : every_chain_model()) {
     Keys keys = m.keys;
     keys.insert(keys.end(), {{"divider.r_parallel", m.r_parallel}, {"adc.leakage", "10n"}, {"conditions.board", "0..50"}});
     const Design d = design_with(keys);
@@ -152,9 +152,9 @@ TEST(ChainStages, TheFrontEndIsItsAnalogStageThenTheAdcStageToTheBit) {
     for (double t = d.conditions.t_min; t <= d.conditions.t_max + 1e-9; t += step)
       for (int corner = 0; corner < 8; ++corner) {
         Deviations dev{};
-        for (const auto& in : d.inputs) dev[at(in.source)] = next_sign() * in.bound;
+        for (const auto& in : d.inputs) dev[chain_at(in.source)] = next_sign() * in.bound;
         Deviations analog_only = dev;
-        for (Source s : adc_sources) analog_only[at(s)] = 0.0;
+        for (Source s : adc_sources) analog_only[chain_at(s)] = 0.0;
         const FrontEnd whole = chain.front_end(dev, t);
         const FrontEnd analog = chain.analog_front_end(analog_only, t);
         const FrontEnd staged = chain.adc_stage(analog, dev);
@@ -173,14 +173,14 @@ TEST(ChainStages, TheFrontEndIsItsAnalogStageThenTheAdcStageToTheBit) {
 TEST(ChainSpread, RtdClassFactorMovesTheReadingByExactlyTheClassBound) {
   // docs/model.md §1: R_unit(t) = R_nom(t + k·bound(t)); the exact conversion
   // reads that unit at t + k·bound(t). IEC 60751 class B: 0.30 + 0.005|t|.
-  const Design d = design_with(ideal({{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"divider.r_fixed", "100"},
+  const Design d = design_with(chain_ideal({{"sensor.model", "rtd"}, {"sensor.r0", "100"}, {"divider.r_fixed", "100"},
                                       {"sensor.rtd_class", "B"}, {"conditions.t_min", "-50"}, {"conditions.t_max", "400"}}));
   const Chain chain(d);
   for (double k : {-1.0, 1.0}) {
     Deviations dev{};
-    dev[at(Source::rtd_class)] = k;
+    dev[chain_at(Source::rtd_class)] = k;
     for (double t = -50.0; t <= 400.0; t += 25.0)
-      EXPECT_NEAR(chain.evaluate(dev, t).error, k * (0.30 + 0.005 * std::fabs(t)), round_trip_tolerance) << k << " " << t;
+      EXPECT_NEAR(chain.evaluate(dev, t).error, k * (0.30 + 0.005 * std::fabs(t)), chain_round_trip_tolerance) << k << " " << t;
   }
 }
 
@@ -189,16 +189,16 @@ TEST(ChainSpread, R25AndBetaDeviationsMoveTheReadingAsTheBetaEquationSays) {
   // has resistance R at T, which the nominal curve reads at T_rep with
   // 1/T_rep = 1/T0 + (ln R/R25)/B = 1/T0 + [ln(1 + δR) + B'(1/T − 1/T0)]/B.
   const double beta = 3950.0;
-  const Design d = design_with(ideal({}));
+  const Design d = design_with(chain_ideal({}));
   const Chain chain(d);
   for (const auto& [dr, db] : {std::pair{0.01, 0.0}, {0.0, 0.01}, {-0.02, 0.015}}) {
     Deviations dev{};
-    dev[at(Source::r25)] = dr;
-    dev[at(Source::beta)] = db;
+    dev[chain_at(Source::r25)] = dr;
+    dev[chain_at(Source::beta)] = db;
     for (double t = -20.0; t <= 80.0; t += 5.0) {
       const double tk = t + kelvin_offset;
       const double inv = 1 / t0_kelvin + (std::log1p(dr) + beta * (1 + db) * (1 / tk - 1 / t0_kelvin)) / beta;
-      EXPECT_NEAR(chain.evaluate(dev, t).t_reported, 1 / inv - kelvin_offset, round_trip_tolerance) << dr << " " << db << " " << t;
+      EXPECT_NEAR(chain.evaluate(dev, t).t_reported, 1 / inv - kelvin_offset, chain_round_trip_tolerance) << dr << " " << db << " " << t;
     }
   }
 }
@@ -208,11 +208,11 @@ TEST(ChainSpread, R25AndBetaDeviationsMoveTheReadingAsTheBetaEquationSays) {
 TEST(Divider, NodeVoltageWithLeakageMatchesNodalAnalysis) {
   // Kirchhoff's current law at the node: (V_exc − V)/R_top = V/R_bottom + I_leak.
   for (const char* placement : {"low", "high"}) {
-    const Design d = design_with(ideal({{"divider.placement", placement}, {"adc.leakage", "1u"}}));
+    const Design d = design_with(chain_ideal({{"divider.placement", placement}, {"adc.leakage", "1u"}}));
     const Chain chain(d);
     for (double leak : {-1e-6, 0.0, 1e-6}) {
       Deviations dev{};
-      dev[at(Source::adc_leakage)] = leak;
+      dev[chain_at(Source::adc_leakage)] = leak;
       for (double t : {-20.0, 25.0, 80.0}) {
         const double r = std::exp(*nominal_ln_resistance(d.sensor, t + kelvin_offset));
         const bool low = std::string(placement) == "low";
@@ -228,13 +228,13 @@ TEST(Divider, FixedResistorTempcoActsAtTheBoardTemperature) {
   // docs/model.md §3: R_fixed·(1 + δ)(1 + α(T_b − 25 °C)). A tempco deviation α
   // equals a tolerance deviation α·(T_b − 25).
   for (const char* board : {"40", "sensor"}) {
-    const Design d = design_with(ideal({{"conditions.board", board}}));
+    const Design d = design_with(chain_ideal({{"conditions.board", board}}));
     const Chain chain(d);
     for (double t : {-20.0, 25.0, 60.0}) {
       const double t_board = std::string(board) == "sensor" ? t : 40.0;
       Deviations tempco{}, tolerance{};
-      tempco[at(Source::r_fixed_tempco)] = 100e-6;
-      tolerance[at(Source::r_fixed)] = 100e-6 * (t_board - 25.0);
+      tempco[chain_at(Source::r_fixed_tempco)] = 100e-6;
+      tolerance[chain_at(Source::r_fixed)] = 100e-6 * (t_board - 25.0);
       EXPECT_NEAR(chain.front_end(tempco, t).v_node, chain.front_end(tolerance, t).v_node, voltage_tolerance) << board << " " << t;
     }
   }
@@ -243,29 +243,29 @@ TEST(Divider, FixedResistorTempcoActsAtTheBoardTemperature) {
 TEST(Divider, BoardRangeDeviationIsMeasuredFromItsMiddle) {
   // A board range 10..40 °C sits at 25 °C nominally; a deviation of +15 K
   // puts it at 40 °C.
-  const Design range = design_with(ideal({{"conditions.board", "10..40"}}));
-  const Design fixed = design_with(ideal({{"conditions.board", "40"}}));
+  const Design range = design_with(chain_ideal({{"conditions.board", "10..40"}}));
+  const Design fixed = design_with(chain_ideal({{"conditions.board", "40"}}));
   const Chain a(range), b(fixed);
   Deviations dev{};
-  dev[at(Source::r_fixed_tempco)] = 100e-6;
+  dev[chain_at(Source::r_fixed_tempco)] = 100e-6;
   EXPECT_NEAR(a.front_end(dev, 0.0).v_node, a.front_end(nominal_deviations(), 0.0).v_node, voltage_tolerance);
-  dev[at(Source::board_temperature)] = 15.0;
+  dev[chain_at(Source::board_temperature)] = 15.0;
   Deviations dev_fixed{};
-  dev_fixed[at(Source::r_fixed_tempco)] = 100e-6;
+  dev_fixed[chain_at(Source::r_fixed_tempco)] = 100e-6;
   EXPECT_NEAR(a.front_end(dev, 0.0).v_node, b.front_end(dev_fixed, 0.0).v_node, voltage_tolerance);
 }
 
 TEST(Supply, AbsoluteExcitationAndReferenceScaleTheCode) {
   // x = V/V_ref·2^N (docs/model.md §5) with V ∝ V_exc: +1 % on the excitation is
   // +1 % on the code, +1 % on the reference is the code divided by 1.01.
-  const Design d = design_with(ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
+  const Design d = design_with(chain_ideal({{"supply.ratiometric", "false"}, {"supply.v_excitation", "2.5V"},
                                       {"supply.v_reference", "3.0V"}, {"conditions.board", "45"}}));
   const Chain chain(d);
   const double nominal = chain.front_end(nominal_deviations(), 30.0).x_static;
   Deviations exc{}, ref{}, ref_tempco{};
-  exc[at(Source::v_excitation)] = 0.01;
-  ref[at(Source::v_reference)] = 0.01;
-  ref_tempco[at(Source::v_reference_tempco)] = 0.01 / 20.0;  // at a board 20 K above 25 °C
+  exc[chain_at(Source::v_excitation)] = 0.01;
+  ref[chain_at(Source::v_reference)] = 0.01;
+  ref_tempco[chain_at(Source::v_reference_tempco)] = 0.01 / 20.0;  // at a board 20 K above 25 °C
   EXPECT_NEAR(chain.front_end(exc, 30.0).x_static / nominal, 1.01, code_relative_tolerance);
   EXPECT_NEAR(chain.front_end(ref, 30.0).x_static * 1.01 / nominal, 1.0, code_relative_tolerance);
   EXPECT_NEAR(chain.front_end(ref_tempco, 30.0).x_static * 1.01 / nominal, 1.0, code_relative_tolerance);
@@ -340,7 +340,7 @@ TEST(ChainStatus, AReadingShiftedOffScaleIsSaturated) {
 }
 
 TEST(ChainStatus, SensorOutsideItsTableIsOutOfTable) {
-  const Design d = design_with(ideal({{"sensor.model", "table"}, {"sensor.table_file", table_0_50},
+  const Design d = design_with(chain_ideal({{"sensor.model", "table"}, {"sensor.table_file", table_0_50},
                                       {"conditions.t_min", "0"}, {"conditions.t_max", "60"}}));
   const Chain chain(d);
   EXPECT_EQ(chain.evaluate(nominal_deviations(), 50.0).status, Status::ok);
@@ -352,52 +352,52 @@ TEST(ChainStatus, SensorOutsideItsTableIsOutOfTable) {
 
 Deviations a_poor_unit() {
   Deviations dev{};
-  dev[at(Source::r25)] = 0.03;
-  dev[at(Source::beta)] = -0.01;
-  dev[at(Source::r_fixed)] = -0.01;
-  dev[at(Source::adc_gain)] = 0.002;
-  dev[at(Source::adc_offset)] = 1.5;
+  dev[chain_at(Source::r25)] = 0.03;
+  dev[chain_at(Source::beta)] = -0.01;
+  dev[chain_at(Source::r_fixed)] = -0.01;
+  dev[chain_at(Source::adc_gain)] = 0.002;
+  dev[chain_at(Source::adc_offset)] = 1.5;
   return dev;
 }
 
 TEST(Calibration, OffsetLeavesOnlyTheReferenceErrorAtTheCalibrationPoint) {
   // calibration.hpp: the unit's error at t_cal becomes the reference's error e.
-  const Design none = design_with(ideal({}));
-  const Design offset = design_with(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
+  const Design none = design_with(chain_ideal({}));
+  const Design offset = design_with(chain_ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
                                            {"firmware.calibration_uncertainty", "0.1"}}));
   const Chain raw(none), calibrated(offset);
   Deviations dev = a_poor_unit();
-  dev[at(Source::calibration_1)] = 0.04;
-  EXPECT_NEAR(calibrated.evaluate(dev, 25.0).error, 0.04, round_trip_tolerance);
+  dev[chain_at(Source::calibration_1)] = 0.04;
+  EXPECT_NEAR(calibrated.evaluate(dev, 25.0).error, 0.04, chain_round_trip_tolerance);
   // Elsewhere the uncalibrated error less its value at 25 °C, plus e.
   const double at_cal = raw.evaluate(dev, 25.0).error;
   EXPECT_GT(std::fabs(at_cal), 0.5);  // the unit is poor before calibration
   for (double t : {-20.0, 0.0, 60.0})
-    EXPECT_NEAR(calibrated.evaluate(dev, t).error, raw.evaluate(dev, t).error - at_cal + 0.04, round_trip_tolerance) << t;
+    EXPECT_NEAR(calibrated.evaluate(dev, t).error, raw.evaluate(dev, t).error - at_cal + 0.04, chain_round_trip_tolerance) << t;
 }
 
 TEST(Calibration, TwoPointLeavesOnlyTheReferenceErrorsAtBothPoints) {
-  const Design d = design_with(ideal({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "0,60"},
+  const Design d = design_with(chain_ideal({{"firmware.calibration", "two-point"}, {"firmware.calibration_at", "0,60"},
                                       {"firmware.calibration_uncertainty", "0.1"}}));
   const Chain chain(d);
   Deviations dev = a_poor_unit();
-  dev[at(Source::calibration_1)] = -0.05;
-  dev[at(Source::calibration_2)] = 0.08;
-  EXPECT_NEAR(chain.evaluate(dev, 0.0).error, -0.05, round_trip_tolerance);
-  EXPECT_NEAR(chain.evaluate(dev, 60.0).error, 0.08, round_trip_tolerance);
+  dev[chain_at(Source::calibration_1)] = -0.05;
+  dev[chain_at(Source::calibration_2)] = 0.08;
+  EXPECT_NEAR(chain.evaluate(dev, 0.0).error, -0.05, chain_round_trip_tolerance);
+  EXPECT_NEAR(chain.evaluate(dev, 60.0).error, 0.08, chain_round_trip_tolerance);
 }
 
 TEST(Calibration, CalibratesTheSameUnitAtTheSameBoardCorner) {
   // The calibration reading sees every deviation of the unit, the board's
   // included: the error at t_cal is the reference's whatever the board does.
-  const Design d = design_with(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
+  const Design d = design_with(chain_ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
                                       {"divider.r_fixed_tempco", "200ppm"}}));
   const Chain chain(d);
   for (double board : {-15.0, 0.0, 15.0}) {
     Deviations dev = a_poor_unit();
-    dev[at(Source::r_fixed_tempco)] = 200e-6;
-    dev[at(Source::board_temperature)] = board;
-    EXPECT_NEAR(chain.evaluate(dev, 25.0).error, 0.0, round_trip_tolerance) << board;
+    dev[chain_at(Source::r_fixed_tempco)] = 200e-6;
+    dev[chain_at(Source::board_temperature)] = board;
+    EXPECT_NEAR(chain.evaluate(dev, 25.0).error, 0.0, chain_round_trip_tolerance) << board;
   }
 }
 
@@ -406,11 +406,11 @@ TEST(Calibration, OutputIsRoundedBeforeTheCalibrationIsApplied) {
   // reported value is a multiple of the resolution shifted by
   // (reference − rounded reading at t_cal): with a reference error of
   // 0.03 K, reported − 0.03 − 25 + round(reading at 25) is a multiple of 0.5.
-  const Design d = design_with(ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
+  const Design d = design_with(chain_ideal({{"firmware.calibration", "offset"}, {"firmware.calibration_at", "25"},
                                       {"firmware.resolution", "0.5"}}));
   const Chain chain(d);
   Deviations dev = a_poor_unit();
-  dev[at(Source::calibration_1)] = 0.03;
+  dev[chain_at(Source::calibration_1)] = 0.03;
   const auto k = chain.calibrate(dev, {}, true);
   ASSERT_TRUE(k);
   EXPECT_NEAR(std::remainder(k->reported[0], 0.5), 0.0, grid_tolerance);  // the calibration reading was rounded

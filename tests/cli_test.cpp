@@ -21,8 +21,8 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const fs::path source_dir(THERMARGIN_SOURCE_DIR);
-const std::string chain_data = (source_dir / "tests/data/chain").string();
+const fs::path cli_source_dir(THERMARGIN_SOURCE_DIR);
+const std::string chain_data = (cli_source_dir / "tests/data/chain").string();
 
 using Outcome = testing::CliOutcome;
 using testing::slurp;
@@ -43,14 +43,14 @@ class Cli : public ::testing::Test {
   testing::ScratchDir dir_;
 };
 
-struct BadInput {
+struct CliBadInput {
   const char* what;
   std::string ini;
   std::string line;  // "bad.ini:N" the message must name
   std::string key;   // the key (or section) it must name
 };
 
-std::vector<BadInput> bad_inputs() {
+std::vector<CliBadInput> bad_inputs() {
   return {
       {"negative resistance", "# fixed resistor\n[divider]\nr_fixed = -10k\n", "bad.ini:3", "divider.r_fixed"},
       {"zero resistance", "[sensor]\nr25 = 0\n", "bad.ini:2", "sensor.r25"},
@@ -76,7 +76,7 @@ std::vector<BadInput> bad_inputs() {
 }
 
 TEST_F(Cli, BadInputIsOneLineNamingFileLineAndKeyExitTwoAndNoOutputFile) {
-  for (const BadInput& b : bad_inputs()) {
+  for (const CliBadInput& b : bad_inputs()) {
     SCOPED_TRACE(b.what);
     write("bad.ini", b.ini);
     for (const char* command : {"check bad.ini --output result.txt", "budget bad.ini --format json --output result.json"}) {
@@ -106,7 +106,7 @@ TEST_F(Cli, UnreadableScenarioIsOneLine) {
 }
 
 TEST_F(Cli, CheckPrintsEveryKeyWithItsValueUnitAndOrigin) {
-  const std::string file = (source_dir / "scenarios/default.ini").string();
+  const std::string file = (cli_source_dir / "scenarios/default.ini").string();
   const Outcome r = run("check '" + file + "' --format csv --divider.r_fixed=4k7");
   ASSERT_EQ(r.status, 0) << r.err;
   EXPECT_TRUE(r.err.empty()) << r.err;

@@ -23,16 +23,16 @@ namespace {
 namespace fs = std::filesystem;
 
 using Outcome = testing::CliOutcome;
-Outcome thermargin(const std::string& args) { return testing::run_cli(args); }
+using testing::run_cli;
 
 // Runs `args` with 1, 2 and 8 threads and once more with 2; all four outputs
 // must be the same bytes. Returns the output.
 std::string same_for_every_thread_count(const std::string& args) {
-  const Outcome one = thermargin(args + " --montecarlo.threads=1");
+  const Outcome one = run_cli(args + " --montecarlo.threads=1");
   EXPECT_EQ(one.status, 0) << args;
   EXPECT_FALSE(one.out.empty()) << args;
   for (const char* threads : {"2", "8", "2"}) {
-    const Outcome other = thermargin(args + " --montecarlo.threads=" + threads);
+    const Outcome other = run_cli(args + " --montecarlo.threads=" + threads);
     EXPECT_EQ(other.status, 0) << args;
     EXPECT_TRUE(other.out == one.out) << args << " differs with " << threads << " threads";
   }
@@ -45,8 +45,8 @@ const std::string pick_mc = "pick --values=4k7,10k,22k --objective=monte-carlo -
 // The text and CSV printers are compared once, 1 thread against 8.
 void same_text_and_csv(const std::string& args) {
   for (const char* format : {"csv", "text"}) {
-    const Outcome one = thermargin(args + " --format " + format + " --montecarlo.threads=1");
-    const Outcome eight = thermargin(args + " --format " + format + " --montecarlo.threads=8");
+    const Outcome one = run_cli(args + " --format " + format + " --montecarlo.threads=1");
+    const Outcome eight = run_cli(args + " --format " + format + " --montecarlo.threads=8");
     EXPECT_EQ(one.status, 0) << format;
     EXPECT_FALSE(one.out.empty()) << format;
     EXPECT_TRUE(one.out == eight.out) << args << " --format " << format << " differs with 8 threads";
@@ -63,8 +63,8 @@ TEST(Determinism, PickMonteCarloObjectiveIsByteIdenticalAcrossThreadCounts) {
 }
 
 TEST(Determinism, PickVerifyDrawsOtherUnitsWithAnotherSeed) {
-  const auto a = nlohmann::json::parse(thermargin(pick_verify + " --format json --montecarlo.seed=1").out);
-  const auto b = nlohmann::json::parse(thermargin(pick_verify + " --format json --montecarlo.seed=2").out);
+  const auto a = nlohmann::json::parse(run_cli(pick_verify + " --format json --montecarlo.seed=1").out);
+  const auto b = nlohmann::json::parse(run_cli(pick_verify + " --format json --montecarlo.seed=2").out);
   ASSERT_TRUE(a["rows"][0].contains("verify"));
   int differing = 0;
   for (std::size_t i = 0; i < a["rows"].size(); ++i)
@@ -98,8 +98,8 @@ TEST_F(GradesDeterminism, GradesIsByteIdenticalAcrossRunsAndThreadCounts) {
 }
 
 TEST_F(GradesDeterminism, GradesDrawsOtherUnitsWithAnotherSeed) {
-  const auto a = nlohmann::json::parse(thermargin(args_ + " --format json --montecarlo.seed=1").out);
-  const auto b = nlohmann::json::parse(thermargin(args_ + " --format json --montecarlo.seed=2").out);
+  const auto a = nlohmann::json::parse(run_cli(args_ + " --format json --montecarlo.seed=1").out);
+  const auto b = nlohmann::json::parse(run_cli(args_ + " --format json --montecarlo.seed=2").out);
   ASSERT_EQ(a["rows"].size(), 4u);
   int differing = 0;
   for (std::size_t i = 0; i < a["rows"].size(); ++i) differing += a["rows"][i]["mc_max_abs"] != b["rows"][i]["mc_max_abs"];

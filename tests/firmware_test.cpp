@@ -24,9 +24,9 @@ namespace {
 using testing::design_with;
 using testing::ideal_converter;
 
-constexpr double exact_tolerance = 1e-9;  // K: the same arithmetic in another order
+constexpr double firmware_exact_tolerance = 1e-9;  // K: the same arithmetic in another order
 constexpr double coefficient_tolerance = 1e-15;  // 1/K, Steinhart–Hart coefficients near 1e-4
-constexpr double relative_tolerance = 1e-12;     // one value computed two ways
+constexpr double firmware_relative_tolerance = 1e-12;     // one value computed two ways
 constexpr double output_tolerance = 1e-12;       // K, rounding and storage arithmetic on numbers near 20
 
 // The beta equation solved for T (IEC 60539-1), in °C.
@@ -42,7 +42,7 @@ TEST(FirmwareConversion, BetaConversionIsTheBetaEquationOfTheInvertedDivider) {
   for (double code : {300.0, 1000.5, 2048.0, 3900.25}) {
     const double rho = code / 4096.0;
     const double r = 12e3 * rho / (1 - rho);
-    EXPECT_NEAR(*fw.temperature(code), beta_temperature(r, 10e3, 3435), exact_tolerance) << code;
+    EXPECT_NEAR(*fw.temperature(code), beta_temperature(r, 10e3, 3435), firmware_exact_tolerance) << code;
   }
 }
 
@@ -51,10 +51,10 @@ TEST(FirmwareConversion, FirmwareBetaMayDifferFromTheSensors) {
   // B = 3900 reads right at 25 °C only.
   const Design d = design_with(ideal_converter({{"firmware.conversion", "beta"}, {"firmware.beta", "3900"}}));
   const Chain chain(d);
-  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 25.0).error, 0.0, exact_tolerance);
+  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 25.0).error, 0.0, firmware_exact_tolerance);
   for (double t : {-20.0, 0.0, 60.0, 80.0}) {
     const double r = 10e3 * std::exp(3950 * (1 / (t + kelvin_offset) - 1 / t0_kelvin));
-    EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).t_reported, beta_temperature(r, 10e3, 3900), exact_tolerance) << t;
+    EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).t_reported, beta_temperature(r, 10e3, 3900), firmware_exact_tolerance) << t;
   }
 }
 
@@ -69,7 +69,7 @@ TEST(FirmwareConversion, FullScaleOfTwoToTheNMinusOneReadsTheRatioLarger) {
     const double rho = code / 4095.0;
     const double expected = beta_temperature(10e3 * rho / (1 - rho), 10e3, 3950);
     const Evaluation e = chain.evaluate(nominal_deviations(), t);
-    EXPECT_NEAR(e.t_reported, expected, exact_tolerance) << t;
+    EXPECT_NEAR(e.t_reported, expected, firmware_exact_tolerance) << t;
     EXPECT_LT(e.error, 0.0) << t;  // a larger ratio is a larger NTC resistance: colder
   }
 }
@@ -90,7 +90,7 @@ TEST(FirmwareConversion, DefaultSteinhartHartPassesThroughTheCurveAtTheRangeEnds
                                                 {"firmware.conversion", "steinhart-hart"}, {"conditions.t_min", "0"},
                                                 {"conditions.t_max", "250"}}));
   const Chain chain(d);
-  for (double t : {0.0, 125.0, 250.0}) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, exact_tolerance) << t;
+  for (double t : {0.0, 125.0, 250.0}) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, firmware_exact_tolerance) << t;
   EXPECT_GT(std::fabs(chain.evaluate(nominal_deviations(), 60.0).error), 1e-3);
 }
 
@@ -102,7 +102,7 @@ TEST(FirmwareConversion, SteinhartHartFittedToABetaCurveIsTheBetaCurve) {
   EXPECT_NEAR(fw.steinhart_hart().b, 1 / 3950.0, coefficient_tolerance);
   EXPECT_NEAR(fw.steinhart_hart().c, 0.0, coefficient_tolerance);
   const Chain chain(d);
-  for (double t = -20.0; t <= 80.0; t += 2.5) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, exact_tolerance) << t;
+  for (double t = -20.0; t <= 80.0; t += 2.5) EXPECT_NEAR(chain.evaluate(nominal_deviations(), t).error, 0.0, firmware_exact_tolerance) << t;
 }
 
 TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRange) {
@@ -114,10 +114,10 @@ TEST(FirmwareConversion, DefaultBetaOfANonBetaSensorIsTheTwoPointBetaOverTheRang
   const SteinhartHart sh{1.129148e-3, 2.34125e-4, 8.76741e-8};
   const double t1 = kelvin_offset, t2 = 60 + kelvin_offset;
   const double b = (ln_resistance(sh, t1) - ln_resistance(sh, t2)) / (1 / t1 - 1 / t2);
-  EXPECT_NEAR(d.firmware.beta / b, 1.0, relative_tolerance);
+  EXPECT_NEAR(d.firmware.beta / b, 1.0, firmware_relative_tolerance);
   const Chain chain(d);
-  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 0.0).error, 0.0, exact_tolerance);
-  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 60.0).error, 0.0, exact_tolerance);
+  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 0.0).error, 0.0, firmware_exact_tolerance);
+  EXPECT_NEAR(chain.evaluate(nominal_deviations(), 60.0).error, 0.0, firmware_exact_tolerance);
   EXPECT_GT(std::fabs(chain.evaluate(nominal_deviations(), 30.0).error), 1e-3);
 }
 

@@ -64,7 +64,7 @@ double rel(double got, double want) { return std::abs(got - want) / std::abs(wan
 
 // Runs a Python script with Debian's interpreter (python3-numpy, python3-scipy)
 // and returns its JSON output.
-nlohmann::json run_python(const std::string& script, const std::string& args) {
+nlohmann::json run_fit_python(const std::string& script, const std::string& args) {
   const testing::ScratchDir dir;
   const std::string command = std::string(THERMARGIN_PYTHON) + " " + dir.write("second_opinion.py", script) + " " + args;
   const testing::CliOutcome r = testing::run_shell(command);
@@ -136,7 +136,7 @@ void expect_agrees_with_numpy(const std::string& file, const std::string& model,
   const ModelFit& f = find(r, model, "least-squares");
   char window[128];
   std::snprintf(window, sizeof window, " %.17g %.17g", std::max(s.t_min, -1e300), std::min(s.t_max, 1e300));
-  const auto py = run_python(numpy_fit, fit_data_file(file) + " " + model + window);
+  const auto py = run_fit_python(numpy_fit, fit_data_file(file) + " " + model + window);
   const auto& coef = py["coef"];
   ASSERT_EQ(coef.size(), f.coefficients.size());
   for (std::size_t i = 0; i < coef.size(); ++i) {
@@ -262,7 +262,7 @@ TEST(FitSteinhartHart, WeightedChiSquaredFitsTheRoundingUncertainty) {
   const ModelFit& sh = find(r, "steinhart-hart", "least-squares");
   const ModelFit& beta = find(r, "beta", "least-squares");
   ASSERT_EQ(sh.dof, 31);
-  const auto py = run_python(R"PY(
+  const auto py = run_fit_python(R"PY(
 import json, sys
 from scipy.stats import chi2
 print(json.dumps([chi2.ppf(0.001, int(sys.argv[1])), chi2.ppf(0.999, int(sys.argv[1]))]))
@@ -441,7 +441,7 @@ TEST(FitBetweenPoints, MatchesScipyPchip) {
         std::snprintf(buf, sizeof buf, " %.17g", c.value);
         args += buf;
       }
-      const auto py = run_python(scipy_between, args);
+      const auto py = run_fit_python(scipy_between, args);
       EXPECT_NEAR(f.between_max_error, py["worst"].get<double>(), numpy_residual_k) << file << " " << model;
       EXPECT_NEAR(f.between_max_at, py["at"].get<double>(), 1e-9) << file << " " << model;
       EXPECT_EQ(f.worst_error, std::max(f.max_residual, f.between_max_error));

@@ -31,8 +31,8 @@ namespace fs = std::filesystem;
 using testing::shell_quote;
 using testing::slurp;
 
-const std::string kScenario = testing::scenario_path("fermentation_probe.ini");
-constexpr std::uint64_t kUnits = 2000;  // Monte Carlo units per combination: quick, enough for a yield
+const std::string kGradesScenario = testing::scenario_path("fermentation_probe.ini");
+constexpr std::uint64_t kGradesPageUnits = 2000;  // Monte Carlo units per combination: quick, enough for a yield
 
 // Three slots, twelve combinations; invented prices. One grade name carries
 // markup and an ampersand, as a user's catalogue may.
@@ -48,37 +48,37 @@ constexpr const char* kCatalogue =
 
 // What the outside reader (tests/reference/report_choice_check.py) says of
 // the page and the plots against the JSON: "ok: 1 chart\n" when they agree.
-std::string reader_says(const fs::path& html, const fs::path& json, const fs::path& plots) {
+std::string grades_reader_says(const fs::path& html, const fs::path& json, const fs::path& plots) {
   return testing::reference_output("report_choice_check.py", "grades " + shell_quote(html.string()) + " " +
                                                                  shell_quote(json.string()) + " " + shell_quote(plots.string()));
 }
 
 // `max_error` overrides the requirement ("" keeps the scenario's 0.5 K).
 // `cli_extra` goes to the CLI only, to show that the reader notices two different runs.
-std::string cli_and_report_agree(const testing::ScratchDir& dir, const std::string& max_error, const std::string& cli_extra = "") {
+std::string grades_cli_and_report_agree(const testing::ScratchDir& dir, const std::string& max_error, const std::string& cli_extra = "") {
   const fs::path cat = dir.path / "grades.csv", json = dir.path / "grades.json", html = dir.path / "grades.html",
                  plots = dir.path / "plots";
   std::ofstream(cat) << kCatalogue;
   const std::string over = max_error.empty() ? "" : " --requirement.max_error=" + max_error;
-  const std::string ran = testing::cli_output("grades " + shell_quote(kScenario) + over + " --catalogue " +
-                                             shell_quote(cat.string()) + " --units " + std::to_string(kUnits) +
+  const std::string ran = testing::cli_output("grades " + shell_quote(kGradesScenario) + over + " --catalogue " +
+                                             shell_quote(cat.string()) + " --units " + std::to_string(kGradesPageUnits) +
                                              " --format json --output " + shell_quote(json.string()) + cli_extra);
   if (!ran.empty()) return "CLI: " + ran;
   const Scenario s = testing::scenario_with(
-      max_error.empty() ? testing::Overrides{} : testing::Overrides{{"requirement.max_error", max_error}}, kScenario);
+      max_error.empty() ? testing::Overrides{} : testing::Overrides{{"requirement.max_error", max_error}}, kGradesScenario);
   const Design d = build_design(s);
   const Catalogue c = read_catalogue(cat.string());
   GradesOptions o;
-  o.units = kUnits;
+  o.units = kGradesPageUnits;
   const GradesResult g = evaluate_grades(s, c, o);
-  write_report(html.string(), grades_report_html(d, s, c, g, kScenario));
+  write_report(html.string(), grades_report_html(d, s, c, g, kGradesScenario));
   write_figures("--plots", plots.string(), grades_figures(g));
-  return reader_says(html, json, plots);
+  return grades_reader_says(html, json, plots);
 }
 
 TEST(GradesReport, ChartAndTableMatchTheGradesJsonWithARecommendation) {
   testing::ScratchDir dir;
-  EXPECT_EQ(cli_and_report_agree(dir, ""), "ok: 1 chart\n");
+  EXPECT_EQ(grades_cli_and_report_agree(dir, ""), "ok: 1 chart\n");
   const std::string html = slurp(dir.path / "grades.html");
   EXPECT_EQ(html.find("<b>0.2%"), std::string::npos);
   EXPECT_NE(html.find("&lt;b&gt;0.2%&lt;/b&gt; &amp; co"), std::string::npos);
@@ -87,14 +87,14 @@ TEST(GradesReport, ChartAndTableMatchTheGradesJsonWithARecommendation) {
 
 TEST(GradesReport, NoCombinationMeetingTheRequirementIsAFailWithNothingRinged) {
   testing::ScratchDir dir;
-  EXPECT_EQ(cli_and_report_agree(dir, "0.1"), "ok: 1 chart\n");
+  EXPECT_EQ(grades_cli_and_report_agree(dir, "0.1"), "ok: 1 chart\n");
   EXPECT_NE(slurp(dir.path / "grades.html").find("class=\"verdict fail\""), std::string::npos);
 }
 
 TEST(GradesReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
   // The CLI measures error by the linear band, the page by the worst case.
   testing::ScratchDir dir;
-  const std::string out = cli_and_report_agree(dir, "", " --by linear");
+  const std::string out = grades_cli_and_report_agree(dir, "", " --by linear");
   EXPECT_EQ(out.rfind("FAIL: ", 0), 0u) << out;
 }
 
@@ -103,7 +103,7 @@ TEST(GradesReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
 // The fermentation probe with its demo catalogue (36 combinations, one grade
 // with a setup cost, hence --volume); few Monte Carlo units and temperatures
 // every 5 K keep the run short.
-const std::string kCliGrades = shell_quote(kScenario) + " --catalogue " +
+const std::string kCliGrades = shell_quote(kGradesScenario) + " --catalogue " +
                                shell_quote(testing::scenario_path("fermentation_probe_catalogue.csv")) +
                                " --volume 5000 --units 500 --conditions.t_step=5";
 
@@ -120,7 +120,7 @@ TEST(GradesReportCli, FermentationProbeReportAndPlotsHoldTheNumbersOfTheSameRuns
   EXPECT_EQ(j["combinations"], 36);
   EXPECT_GE(j["front"].size(), 2u);
   EXPECT_FALSE(j["recommendation"].is_null());
-  EXPECT_EQ(reader_says(html, json, plots), "ok: 1 chart\n");
+  EXPECT_EQ(grades_reader_says(html, json, plots), "ok: 1 chart\n");
 }
 
 TEST(GradesReportCli, ADestinationThatCannotBeWrittenIsRefusedBeforeAnyWorkWithOneLine) {

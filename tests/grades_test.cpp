@@ -41,7 +41,7 @@ using testing::scenario_with;
 // extra is the ±½ LSB reading interval, a few µK there.
 constexpr double kClosedFormTolerance = 1e-4;  // K
 constexpr double kCostTolerance = 1e-12;       // sums of a few decimal prices
-constexpr std::uint64_t kUnits = 2000;         // Monte Carlo units per combination in these tests
+constexpr std::uint64_t kGradesUnits = 2000;         // Monte Carlo units per combination in these tests
 
 using testing::shell_quote;
 using Outcome = testing::CliOutcome;
@@ -107,9 +107,9 @@ double hand_worst_case(double a, double b, double f, double t_min, double t_max)
 
 double fraction(const std::string& grade) { return std::stod(grade) / 100.0; }  // "0.5%" -> 0.005
 
-GradesOptions quick() {
+GradesOptions grades_quick() {
   GradesOptions o;
-  o.units = kUnits;
+  o.units = kGradesUnits;
   return o;
 }
 
@@ -127,7 +127,7 @@ TEST(Grades, TheHotCornerOfTheWindowForcesTheExpensiveBetaGrade) {
   const Catalogue cat = parse_catalogue(kConstructed, "constructed.csv");
   for (double window_max : {60.0, 40.0}) {
     SCOPED_TRACE("window 0.." + std::to_string(window_max));
-    const GradesResult g = evaluate_grades(scenario_with(constructed(window_max)), cat, quick());
+    const GradesResult g = evaluate_grades(scenario_with(constructed(window_max)), cat, grades_quick());
     ASSERT_EQ(g.rows.size(), 8u);
     // Every combination's worst case against the closed form.
     for (const auto& r : g.rows) {
@@ -155,7 +155,7 @@ TEST(Grades, TheHotCornerOfTheWindowForcesTheExpensiveBetaGrade) {
 
 TEST(Grades, RowsAreSortedByCostAndMonteCarloRunsOnlyWhereTheRequirementCanBeMet) {
   const Catalogue cat = parse_catalogue(kConstructed, "constructed.csv");
-  const GradesResult g = evaluate_grades(scenario_with(constructed(60.0)), cat, quick());
+  const GradesResult g = evaluate_grades(scenario_with(constructed(60.0)), cat, grades_quick());
   for (std::size_t i = 1; i < g.rows.size(); ++i) EXPECT_LE(g.rows[i - 1].unit_cost, g.rows[i].unit_cost);
   // Worst-case basis: the error part of the requirement is deterministic, so
   // a combination over the limit gets no simulation; one within it does.
@@ -166,7 +166,7 @@ TEST(Grades, RowsAreSortedByCostAndMonteCarloRunsOnlyWhereTheRequirementCanBeMet
   EXPECT_EQ(g.mc_full, 2u);  // (1 %, 0.2 %, 0.1 %) and (0.5 %, 0.2 %, 0.1 %), from the reasoning above
   // Every simulated row used the same units.
   for (const auto& r : g.rows)
-    if (r.mc_run) EXPECT_EQ(r.mc->units, kUnits);
+    if (r.mc_run) EXPECT_EQ(r.mc->units, kGradesUnits);
 }
 
 // --- Costs -----------------------------------------------------------------
@@ -195,7 +195,7 @@ TEST(Grades, SetupCostsAreSpreadOverTheVolumeAndAVolumeIsRequired) {
     head = false;
   }
   const Catalogue cat = parse_catalogue(with_setup, "setup.csv");
-  GradesOptions o = quick();
+  GradesOptions o = grades_quick();
   try {
     (void)evaluate_grades(scenario_with(constructed(60.0)), cat, o);
     ADD_FAILURE() << "a setup cost without a volume was accepted";
@@ -240,7 +240,7 @@ TEST(Grades, TheFrontHoldsExactlyTheCombinationsNoOtherBeatsOnCostAndError) {
   const Catalogue cat = parse_catalogue(kConstructed, "constructed.csv");
   for (ErrorMeasure by : {ErrorMeasure::worst_case, ErrorMeasure::linear, ErrorMeasure::monte_carlo}) {
     SCOPED_TRACE(std::string(to_string(by)));
-    GradesOptions o = quick();
+    GradesOptions o = grades_quick();
     o.by = by;
     const GradesResult g = evaluate_grades(scenario_with(constructed(60.0)), cat, o);
     expect_front_by_definition(g);
@@ -285,7 +285,7 @@ constexpr const char* kLarger =
     "resistor,0.1%,0.03,divider.r_fixed_tol=0.1%\n";
 
 TEST(Grades, AYieldDoesNotChangeWhenRowsAreAddedToTheCatalogue) {
-  GradesOptions o = quick();
+  GradesOptions o = grades_quick();
   o.mc_all = true;
   const GradesResult small = evaluate_grades(marginal(), parse_catalogue(kSmall, "small.csv"), o);
   const GradesResult larger = evaluate_grades(marginal(), parse_catalogue(kLarger, "larger.csv"), o);
@@ -305,7 +305,7 @@ TEST(Grades, AYieldDoesNotChangeWhenRowsAreAddedToTheCatalogue) {
 
 TEST(Grades, ResultsDoNotDependOnTheThreadCount) {
   const Catalogue cat = parse_catalogue(kLarger, "larger.csv");
-  GradesOptions o = quick();
+  GradesOptions o = grades_quick();
   o.mc_all = true;
   o.threads = 1;
   const GradesResult one = evaluate_grades(marginal(), cat, o);
@@ -326,7 +326,7 @@ TEST(Grades, AYieldEqualsTheMonteCarloEngineRunOnThatDesignAlone) {
   // The combination is exactly the scenario with its settings: the engine
   // run by hand over the window's temperatures gives the same count.
   const GradesResult g = evaluate_grades(marginal(), parse_catalogue(kSmall, "small.csv"), [] {
-    GradesOptions o = quick();
+    GradesOptions o = grades_quick();
     o.mc_all = true;
     return o;
   }());
@@ -340,7 +340,7 @@ TEST(Grades, AYieldEqualsTheMonteCarloEngineRunOnThatDesignAlone) {
   for (double t : d.conditions.temperatures())
     if (t >= d.requirement.window_min && t <= d.requirement.window_max) window.push_back(t);
   McOptions mo;
-  mo.units = kUnits;
+  mo.units = kGradesUnits;
   EXPECT_EQ(monte_carlo(chain, window, mo).summary.good_units, r.mc->good_units);
 }
 
@@ -378,7 +378,7 @@ TEST(Grades, TheSummarySaysWhatTheRecommendationChangesAndWhatItCosts) {
   // another way and still matches the catalogue's "1%".
   Overrides o = constructed(60.0);
   o.insert(o.end(), {{"sensor.r25_tol", "0.01"}, {"sensor.beta_tol", "1%"}, {"divider.r_fixed_tol", "1 %"}});
-  GradesOptions opt = quick();
+  GradesOptions opt = grades_quick();
   opt.volume = 10000.0;
   const GradesResult g = evaluate_grades(scenario_with(o), parse_catalogue(kConstructed, "constructed.csv"), opt);
   ASSERT_TRUE(g.current_row && g.recommendation);
@@ -397,7 +397,7 @@ TEST(Grades, TheSummarySaysWhatTheRecommendationChangesAndWhatItCosts) {
 
 TEST(Grades, WithoutACombinationThatMeetsTheRequirementTheSummarySaysSo) {
   const GradesResult g = evaluate_grades(scenario_with(ideal({{"requirement.max_error", "0.1"}})),
-                                         parse_catalogue(kConstructed, "constructed.csv"), quick());
+                                         parse_catalogue(kConstructed, "constructed.csv"), grades_quick());
   EXPECT_FALSE(g.recommendation);
   EXPECT_EQ(g.summary.rfind("No combination meets the requirement", 0), 0u) << g.summary;
   EXPECT_NE(g.summary.find("The most accurate combination is r25 = 0.5%, beta = 0.2%, resistor = 0.1%"), std::string::npos)
@@ -406,9 +406,9 @@ TEST(Grades, WithoutACombinationThatMeetsTheRequirementTheSummarySaysSo) {
 
 // --- Re-pick -------------------------------------------------------------------
 
-// quick(), re-picking the fixed resistor over `series` from `low` to `high`.
+// grades_quick(), re-picking the fixed resistor over `series` from `low` to `high`.
 GradesOptions re_pick_over(Series series, double low, double high) {
-  GradesOptions o = quick();
+  GradesOptions o = grades_quick();
   o.re_pick = true;
   o.pick.series = series;
   o.pick.range_low = low;
@@ -490,7 +490,7 @@ TEST(Grades, RePickFollowsAWinnerThatMovesFarBetweenNeighbouringCombinations) {
 }
 
 TEST(Grades, RePickRefusesACatalogueThatGradesTheFixedResistorValue) {
-  GradesOptions o = quick();
+  GradesOptions o = grades_quick();
   o.re_pick = true;
   try {
     (void)evaluate_grades(Scenario(), parse_catalogue("slot,grade,unit_cost,settings\nr,10k,0,divider.r_fixed=10k\n", "r.csv"), o);
@@ -509,7 +509,7 @@ TEST(Grades, ASettingWithAnUnusableValueIsRefusedNamingItsLineAndColumn) {
       parse_catalogue("slot,grade,unit_cost,settings\nthermistor,std,0.1,sensor.r25_tol=1%\nthermistor,odd,0.1,sensor.r25_tol=abc\n",
                       "bad.csv");
   try {
-    (void)evaluate_grades(Scenario(), cat, quick());
+    (void)evaluate_grades(Scenario(), cat, grades_quick());
     ADD_FAILURE() << "accepted";
   } catch (const input_error& e) {
     const std::string m = e.what();
@@ -520,7 +520,7 @@ TEST(Grades, ASettingWithAnUnusableValueIsRefusedNamingItsLineAndColumn) {
   const Catalogue pair = parse_catalogue(
       "slot,grade,unit_cost,settings\nrange,narrow,0,conditions.t_max=50\nwindow,wide,0,requirement.window_max=55\n", "pair.csv");
   try {
-    (void)evaluate_grades(scenario_with({{"requirement.window_max", "40"}}), pair, quick());
+    (void)evaluate_grades(scenario_with({{"requirement.window_max", "40"}}), pair, grades_quick());
     ADD_FAILURE() << "accepted";
   } catch (const input_error& e) {
     EXPECT_EQ(std::string(e.what()).rfind("pair.csv: the combination range = narrow, window = wide is not a valid design: ", 0), 0u)

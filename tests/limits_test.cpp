@@ -32,7 +32,7 @@ namespace thermargin {
 namespace {
 
 using Outcome = testing::CliOutcome;
-Outcome thermargin(const std::string& args) { return testing::run_cli(args); }
+using testing::run_cli;
 
 // A number that is not one, as C's printf, JSON libraries or a person would write it.
 bool prints_non_finite(const std::string& text) {
@@ -57,33 +57,33 @@ struct Limit {
   bool in_window;    // some temperature inside the requirement window reaches it
 };
 
-const std::string quick = " --montecarlo.units=2000 --conditions.t_step=5";
+const std::string limits_quick = " --montecarlo.units=2000 --conditions.t_step=5";
 
 std::vector<Limit> limits() {
   return {
       // 10k/10k from 3.3 V into a 1.0 V reference: the node is above the
       // reference while the NTC is above 4.35 kOhm, below about 45 degC.
-      {"saturation at the ADC rail", "--supply.ratiometric=false --supply.v_reference=1.0V" + quick, Status::saturated, true},
+      {"saturation at the ADC rail", "--supply.ratiometric=false --supply.v_reference=1.0V" + limits_quick, Status::saturated, true},
       // 50 V across 100 Ohm + 1 Ohm into an element that sheds 0.1 mW/K: no
       // stable self-heating anywhere.
       {"thermal runaway",
-       "--sensor.r25=100 --divider.r_fixed=1 --supply.v_excitation=50V --sensor.dissipation=0.1mW/K" + quick,
+       "--sensor.r25=100 --divider.r_fixed=1 --supply.v_excitation=50V --sensor.dissipation=0.1mW/K" + limits_quick,
        Status::runaway, true},
       // A table from 0 to 50 degC analysed from -20 to 80 degC.
       {"a sensor outside its table",
        "--sensor.model=table --sensor.table_file=" + testing::data_path("chain/ntc10k_sh_0_50.csv") +
-           " --firmware.conversion=exact --requirement.window_min=10 --requirement.window_max=40" + quick,
+           " --firmware.conversion=exact --requirement.window_min=10 --requirement.window_max=40" + limits_quick,
        Status::out_of_table, false},
       // The firmware subtracts 1 MOhm of "lead resistance" from a 10k NTC:
       // every reading leaves a negative resistance, which has no temperature.
-      {"a firmware conversion with no solution", "--firmware.lead_compensation=1M" + quick, Status::no_solution, true},
+      {"a firmware conversion with no solution", "--firmware.lead_compensation=1M" + limits_quick, Status::no_solution, true},
   };
 }
 
 TEST(PhysicalLimits, AreReportedPerTemperatureAndSummarisedInJsonWithNoNumberThatIsNotFinite) {
   for (const Limit& l : limits()) {
     SCOPED_TRACE(l.what);
-    const Outcome r = thermargin("budget " + l.args + " --format json");
+    const Outcome r = run_cli("budget " + l.args + " --format json");
     ASSERT_EQ(r.status, 0) << r.err;
     EXPECT_TRUE(r.err.empty()) << r.err;
     EXPECT_FALSE(prints_non_finite(r.out));
@@ -120,12 +120,12 @@ TEST(PhysicalLimits, AreReportedPerTemperatureAndSummarisedInJsonWithNoNumberTha
 }
 
 TEST(PhysicalLimits, AWindowWithNoReadableTemperatureHasNoLargestErrorRatherThanZero) {
-  const std::string design = "budget --firmware.lead_compensation=1M" + quick;
-  const auto j = nlohmann::json::parse(thermargin(design + " --format json").out);
+  const std::string design = "budget --firmware.lead_compensation=1M" + limits_quick;
+  const auto j = nlohmann::json::parse(run_cli(design + " --format json").out);
   EXPECT_EQ(j["window"]["verdict"], "fail");
   for (const char* field : {"wc_max_abs", "wc_max_at", "rss_max_abs", "mc_max_abs", "margin"})
     EXPECT_TRUE(j["window"][field].is_null()) << field << " = " << j["window"][field];
-  const Outcome text = thermargin(design);
+  const Outcome text = run_cli(design);
   ASSERT_EQ(text.status, 0) << text.err;
   for (const char* engine : {"\nworst case ", "\nlinear budget ", "\nMonte Carlo "}) {
     const auto at = text.out.find(engine);
@@ -139,7 +139,7 @@ TEST(PhysicalLimits, AWindowWithNoReadableTemperatureHasNoLargestErrorRatherThan
 TEST(PhysicalLimits, AreReportedPerTemperatureInCsvWithEmptyCellsNotNumbers) {
   for (const Limit& l : limits()) {
     SCOPED_TRACE(l.what);
-    const Outcome r = thermargin("budget " + l.args + " --format csv");
+    const Outcome r = run_cli("budget " + l.args + " --format csv");
     ASSERT_EQ(r.status, 0) << r.err;
     EXPECT_FALSE(prints_non_finite(r.out));
     std::istringstream in(testing::csv_without_comments(r.out));
@@ -168,7 +168,7 @@ TEST(PhysicalLimits, AreReportedPerTemperatureInCsvWithEmptyCellsNotNumbers) {
 TEST(PhysicalLimits, AreNamedInTheTextTableAndCountedInItsNote) {
   for (const Limit& l : limits()) {
     SCOPED_TRACE(l.what);
-    const Outcome r = thermargin("budget " + l.args + " --detail");
+    const Outcome r = run_cli("budget " + l.args + " --detail");
     ASSERT_EQ(r.status, 0) << r.err;
     EXPECT_FALSE(prints_non_finite(r.out));
     // Rows of the per-temperature table of the nominal chain that say it in
@@ -195,10 +195,10 @@ TEST(PhysicalLimits, PickAndTablePrintNoNumberThatIsNotFiniteForTheseDesigns) {
   for (const Limit& l : limits()) {
     SCOPED_TRACE(l.what);
     for (const char* format : {"text", "csv", "json"}) {
-      const Outcome pick = thermargin("pick " + l.args + " --values=1k,10k,100k --no-guidance --format " + format);
+      const Outcome pick = run_cli("pick " + l.args + " --values=1k,10k,100k --no-guidance --format " + format);
       EXPECT_EQ(pick.status, 0) << format << ": " << pick.err;
       EXPECT_FALSE(prints_non_finite(pick.out)) << format;
-      const Outcome table = thermargin("table " + l.args + " --points=9 --format " + format);
+      const Outcome table = run_cli("table " + l.args + " --points=9 --format " + format);
       if (table.status == 0) {
         EXPECT_FALSE(prints_non_finite(table.out)) << format;
       } else {
@@ -218,18 +218,18 @@ TEST(PhysicalLimits, TheNonFiniteDetectorFindsNanAndInfAndPassesOrdinaryWords) {
 
 TEST(ResourceLimits, AHugeRangeOrStepIsRefusedWithTheCountItWouldProduce) {
   // -20..80 degC in 1 uK steps: 100 000 001 temperatures.
-  const Outcome r = thermargin("check --conditions.t_step=1u");
+  const Outcome r = run_cli("check --conditions.t_step=1u");
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(r.err, "thermargin: conditions.t_step = 1u (command line): gives 100000001 temperatures; at most 100001 "
                    "are analysed\n");
   // -270..1000 degC in 10 mK steps: 127 001 temperatures.
-  const Outcome wide = thermargin("check --conditions.t_min=-270 --conditions.t_max=1000 --conditions.t_step=0.01 "
+  const Outcome wide = run_cli("check --conditions.t_min=-270 --conditions.t_max=1000 --conditions.t_step=0.01 "
                               "--requirement.window_min=0");
   EXPECT_EQ(wide.status, 2);
   EXPECT_NE(wide.err.find("gives 127001 temperatures; at most 100001"), std::string::npos) << wide.err;
   // The largest range accepted: exactly 100 001 temperatures.
   EXPECT_EQ(testing::design_with({{"conditions.t_step", "1m"}}).conditions.temperatures().size(), 100001u);
-  EXPECT_EQ(thermargin("check --conditions.t_step=1m").status, 0);
+  EXPECT_EQ(run_cli("check --conditions.t_step=1m").status, 0);
 }
 
 }  // namespace
@@ -244,25 +244,25 @@ Design with_units(const std::string& units, const std::string& averaging = "1") 
 
 TEST(ResourceLimits, AMonteCarloRunOfHoursIsRefusedUpFrontWithItsSizeAndEstimate) {
   // 1e9 units x 201 temperatures (-20..80 degC in 0.5 K) x 1 sample = 2.01e11 > 2e11.
-  const Outcome r = thermargin("budget --montecarlo.units=1e9 --format json");
+  const Outcome r = run_cli("budget --montecarlo.units=1e9 --format json");
   EXPECT_EQ(r.status, 2);
   EXPECT_TRUE(r.out.empty());
   EXPECT_EQ(r.err, "thermargin: montecarlo.units = 1e9 (command line): 1e+09 units x 201 temperatures x 1 sample(s) per "
                    "reading = 2.01e+11 simulated ADC samples, about 67 minutes of one core; at most 2e+11 are simulated: "
                    "fewer units (or auto), a coarser conditions.t_step or a narrower t_min..t_max, or budget --no-mc\n");
   // Averaging multiplies the samples: 1e8 x 201 x 16 = 3.2e11.
-  const Outcome averaged = thermargin("budget --montecarlo.units=1e8 --adc.averaging=16");
+  const Outcome averaged = run_cli("budget --montecarlo.units=1e8 --adc.averaging=16");
   EXPECT_EQ(averaged.status, 2);
   EXPECT_NE(averaged.err.find("montecarlo.units = 1e8 (command line): 1e+08 units x 201 temperatures x 16 sample(s)"),
             std::string::npos)
       << averaged.err;
   // auto may run up to its cap, which is then the key named.
-  const Outcome automatic = thermargin("budget --montecarlo.units=auto --montecarlo.max_units=1e9");
+  const Outcome automatic = run_cli("budget --montecarlo.units=auto --montecarlo.max_units=1e9");
   EXPECT_EQ(automatic.status, 2);
   EXPECT_NE(automatic.err.find("montecarlo.max_units = 1e9 (command line): auto may run up to 1e+09 units"), std::string::npos)
       << automatic.err;
   // The same design without the Monte Carlo run is analysed.
-  EXPECT_EQ(thermargin("budget --montecarlo.units=1e9 --no-mc --conditions.t_step=10").status, 0);
+  EXPECT_EQ(run_cli("budget --montecarlo.units=1e9 --no-mc --conditions.t_step=10").status, 0);
   // The limit itself, through the library: 2e11 / 201 = 995 024 875 units.
   BudgetOptions o;
   Scenario s;
@@ -280,7 +280,7 @@ TEST(ResourceLimits, EnumeratingEveryCornerForHoursIsRefusedWithTheCount) {
       " --supply.v_excitation_tempco=50ppm --supply.v_reference_tol=0.5% --supply.v_reference_tempco=20ppm"
       " --adc.leakage=10n --divider.r_parallel=100k --divider.r_parallel_tol=1% --firmware.calibration=two-point"
       " --firmware.calibration_at=0,60";
-  const Outcome r = thermargin("budget --no-mc --corners=enumerate" + design);
+  const Outcome r = run_cli("budget --no-mc --corners=enumerate" + design);
   EXPECT_EQ(r.status, 2);
   EXPECT_NE(r.err.find("--corners = enumerate (command line): 17 active inputs give 2^17 corners x 100001 temperatures = "
                        "1.31e+10 chain evaluations"),

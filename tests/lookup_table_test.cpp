@@ -52,7 +52,7 @@ constexpr double half_unit = 0.5;
 constexpr double round_trip_k = 1e-9;
 
 // A scratch directory for this test program, removed when it ends.
-const fs::path& scratch() {
+const fs::path& table_scratch() {
   static const testing::ScratchDir dir;
   return dir.path;
 }
@@ -206,7 +206,7 @@ class TableCHeader : public ::testing::TestWithParam<HeaderCase> {};
 
 TEST_P(TableCHeader, CompilesAndReproducesTheToolsTemperaturesAtEveryCode) {
   const HeaderCase& c = GetParam();
-  const fs::path dir = scratch() / c.name;
+  const fs::path dir = table_scratch() / c.name;
   fs::create_directories(dir);
   const CliOutcome emitted = run_cli("table " + scenario_arg(c.scenario) + " " + c.args +
                                      " --emit c --prefix probe_lut --output " + shell_quote((dir / "probe_lut.h").string()));
@@ -258,7 +258,7 @@ TEST_P(TableCHeader, CompilesAndReproducesTheToolsTemperaturesAtEveryCode) {
   EXPECT_EQ(lines, static_cast<std::size_t>(tool.table.last_code() - tool.table.code(0) + 1));
 }
 
-TableSettings settings(int points, double unit, TableSpacing spacing, StorageType type) {
+TableSettings table_settings(int points, double unit, TableSpacing spacing, StorageType type) {
   TableSettings s;
   s.points = points;
   s.unit = unit;
@@ -272,20 +272,20 @@ INSTANTIATE_TEST_SUITE_P(
     ::testing::Values(
         HeaderCase{"default_code_int16", "", "--firmware.conversion=table",
                    {{"firmware.conversion", "table"}},
-                   settings(33, 0.01, TableSpacing::code, StorageType::int16)},
+                   table_settings(33, 0.01, TableSpacing::code, StorageType::int16)},
         HeaderCase{"guard_temperature_int32", "battery_charge_guard.ini",
                    "--spacing temperature --type int32 --unit 0.1 --points 20 --title='Guard */ with a comment end'",
                    {{"title", "Guard */ with a comment end"}},
-                   settings(20, 0.1, TableSpacing::temperature, StorageType::int32)},
+                   table_settings(20, 0.1, TableSpacing::temperature, StorageType::int32)},
         HeaderCase{"hot_plate_rtd_code_int32", "hot_plate_pt1000.ini", "--type int32 --points 40",
                    {},
-                   settings(40, 0.01, TableSpacing::code, StorageType::int32)},
+                   table_settings(40, 0.01, TableSpacing::code, StorageType::int32)},
         // The scenario's firmware converts with this table spaced in temperature:
         // the header's search is compared with the chain's conversion.
         HeaderCase{"incubator_temperature_chain", "incubator.ini",
                    "--firmware.conversion=table --firmware.table_spacing=temperature",
                    {{"firmware.conversion", "table"}, {"firmware.table_spacing", "temperature"}},
-                   settings(33, 0.01, TableSpacing::temperature, StorageType::int16)}),
+                   table_settings(33, 0.01, TableSpacing::temperature, StorageType::int16)}),
     [](const auto& info) { return info.param.name; });
 
 // ---------------------------------------------------------------------------
@@ -322,7 +322,7 @@ print(json.dumps(out))
 )PY";
 
 nlohmann::json numpy_errors(const Design& d, const std::vector<nlohmann::json>& tables) {
-  const fs::path dir = scratch() / "numpy";
+  const fs::path dir = table_scratch() / "numpy";
   fs::create_directories(dir);
   nlohmann::json p{{"placement", d.divider.placement == Placement::low ? "low" : "high"},
                    {"r25", d.sensor.r25},
@@ -428,7 +428,7 @@ INSTANTIATE_TEST_SUITE_P(Limits, TableMaxError,
                          [](const auto& info) { return info.param.name; });
 
 TEST(TableMaxError, ALimitBelowTheStorageRoundingIsRefused) {
-  const fs::path out = scratch() / "unreachable.h";
+  const fs::path out = table_scratch() / "unreachable.h";
   const CliOutcome r = run_cli("table --max-error 0.001 --emit c --output " + shell_quote(out.string()));
   EXPECT_EQ(r.status, 2);
   EXPECT_NE(r.err.find("table.max_error = 0.001 K (command line): cannot be met"), std::string::npos) << r.err;
@@ -475,7 +475,7 @@ TEST(TableSpacing, ExactCodeInvertsTheExactConversionForEverySensorModel) {
 
 TEST(TableSize, CountsTheStoredValuesAndTheCodesWhenSpacedInTemperature) {
   const Design d = design_with({});
-  TableSettings s = settings(21, 0.01, TableSpacing::code, StorageType::int16);
+  TableSettings s = table_settings(21, 0.01, TableSpacing::code, StorageType::int16);
   EXPECT_EQ(make_table(d, s).bytes(), 21u * sizeof(std::int16_t));
   s.type = StorageType::int32;
   EXPECT_EQ(make_table(d, s).bytes(), 21u * sizeof(std::int32_t));
@@ -522,13 +522,13 @@ TEST(TableOutput, EveryFormatCarriesTheCautionAndTheSameRows) {
 // Bad input: one line naming the setting, exit status 2, no output file.
 
 // The arguments after `thermargin table`.
-using BadCase = testing::RefusalCase;
+using TableBadCase = testing::RefusalCase;
 
-class TableBadInput : public ::testing::TestWithParam<BadCase> {};
+class TableBadInput : public ::testing::TestWithParam<TableBadCase> {};
 
 TEST_P(TableBadInput, IsOneLineWithStatusTwoAndLeavesNoFile) {
-  const BadCase& c = GetParam();
-  const fs::path dir = scratch() / ("bad_" + c.name);
+  const TableBadCase& c = GetParam();
+  const fs::path dir = table_scratch() / ("bad_" + c.name);
   fs::create_directories(dir);
   const fs::path out = dir / "lut.h";
   const CliOutcome r = run_cli("table " + c.args + " --output " + shell_quote(out.string()));
@@ -539,17 +539,17 @@ INSTANTIATE_TEST_SUITE_P(
     Settings, TableBadInput,
     ::testing::Values(
         // 96 °C at the table's first code is 96020 thousandths: beyond int16's 32767.
-        BadCase{"int16_overflow", "--unit 0.001 --emit c", "table.type = int16 (default): the point at code"},
-        BadCase{"int16_overflow_named", "--unit 0.001 --type int16 --emit csv", "outside int16's -32768..32767"},
-        BadCase{"one_point", "--points 1 --emit c", "table.points = 1 (command line)"},
-        BadCase{"more_points_than_codes", "--points 60000 --emit c", "table.points = 60000 (command line): at most"},
-        BadCase{"unknown_emit", "--emit rust", "table.emit = rust (command line): must be one of: c | csv"},
-        BadCase{"emit_and_format", "--emit c --format json", "table.emit = c (command line)"},
-        BadCase{"unknown_type", "--type int8 --emit c", "table.type = int8 (command line)"},
-        BadCase{"unknown_spacing", "--spacing log --emit c", "table.spacing = log (command line)"},
-        BadCase{"unit_too_fine", "--unit 1e-6 --emit c", "table.unit = 1e-06 (command line)"},
-        BadCase{"bad_prefix", "--prefix 9lives --emit c", "table.prefix = 9lives (command line)"},
-        BadCase{"scenario_points", "--firmware.table_points=1 --emit c", "firmware.table_points = 1 (command line)"}),
+        TableBadCase{"int16_overflow", "--unit 0.001 --emit c", "table.type = int16 (default): the point at code"},
+        TableBadCase{"int16_overflow_named", "--unit 0.001 --type int16 --emit csv", "outside int16's -32768..32767"},
+        TableBadCase{"one_point", "--points 1 --emit c", "table.points = 1 (command line)"},
+        TableBadCase{"more_points_than_codes", "--points 60000 --emit c", "table.points = 60000 (command line): at most"},
+        TableBadCase{"unknown_emit", "--emit rust", "table.emit = rust (command line): must be one of: c | csv"},
+        TableBadCase{"emit_and_format", "--emit c --format json", "table.emit = c (command line)"},
+        TableBadCase{"unknown_type", "--type int8 --emit c", "table.type = int8 (command line)"},
+        TableBadCase{"unknown_spacing", "--spacing log --emit c", "table.spacing = log (command line)"},
+        TableBadCase{"unit_too_fine", "--unit 1e-6 --emit c", "table.unit = 1e-06 (command line)"},
+        TableBadCase{"bad_prefix", "--prefix 9lives --emit c", "table.prefix = 9lives (command line)"},
+        TableBadCase{"scenario_points", "--firmware.table_points=1 --emit c", "firmware.table_points = 1 (command line)"}),
     [](const auto& info) { return info.param.name; });
 
 TEST(TableCli, SaysWhatTheAdcCannotShowWithTheTemperaturesLost) {

@@ -37,7 +37,7 @@ const std::string kPairValues = "1,4k7,12k,47k";
 constexpr double kMaxSelfHeating = 0.06;  // K
 constexpr double kLimit = 0.5;            // K, the scenario's requirement.max_error
 
-PickOptions options(bool parallel) {
+PickOptions pick_page_options(bool parallel) {
   PickOptions o;
   o.values = parse_values(parallel ? kPairValues : kValues, Where{Origin::command_line, "", 0, "--values"});
   o.constraints.max_self_heating = kMaxSelfHeating;
@@ -46,7 +46,7 @@ PickOptions options(bool parallel) {
   return o;
 }
 
-Scenario scenario() { return testing::scenario_with({}, kScenario); }
+Scenario pick_page_scenario() { return testing::scenario_with({}, kScenario); }
 
 // What the outside reader (tests/reference/report_choice_check.py) says of
 // the page and the plots against the JSON: "ok: 1 chart\n" when they agree.
@@ -65,9 +65,9 @@ std::string cli_and_report_agree(bool parallel, const testing::ScratchDir& dir, 
                                              (parallel ? " --parallel" : "") + cli_extra + " --format json --output " +
                                              shell_quote(json.string()));
   if (!ran.empty()) return "CLI: " + ran;
-  const Scenario s = scenario();
+  const Scenario s = pick_page_scenario();
   const Design d = build_design(s);
-  const PickOptions o = options(parallel);
+  const PickOptions o = pick_page_options(parallel);
   const PickResult r = pick(s, o);
   write_report(html.string(), pick_report_html(d, s, r, o, kScenario));
   write_figures("--plots", plots.string(), pick_figures(d, r));
@@ -93,9 +93,9 @@ TEST(PickReport, TheReaderNoticesWhenThePageAndTheJsonAreDifferentRuns) {
 }
 
 TEST(PickFigures, UnreadableCandidatesAreGapsInsideTheRuledOutRegion) {
-  const Scenario s = scenario();
+  const Scenario s = pick_page_scenario();
   const Design d = build_design(s);
-  const PickResult r = pick(s, options(false));
+  const PickResult r = pick(s, pick_page_options(false));
   const auto f = pick_figures(d, r);
   ASSERT_EQ(f.size(), 1u);
   EXPECT_EQ(f[0].file, "pick-candidates.svg");

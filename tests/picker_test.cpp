@@ -73,7 +73,7 @@ struct Truth {
   std::string dominant;  // short name of budget's largest window contributor
 };
 
-Truth budget_of(const Scenario& base, double r_fixed, const std::vector<std::pair<std::string, std::string>>& extra = {}) {
+Truth picker_budget_of(const Scenario& base, double r_fixed, const std::vector<std::pair<std::string, std::string>>& extra = {}) {
   Scenario s = base;
   s.set("divider.r_fixed", text(r_fixed), Where{Origin::command_line, "", 0, "divider.r_fixed"});
   for (const auto& [k, v] : extra) s.set(k, v, Where{Origin::command_line, "", 0, k});
@@ -120,13 +120,13 @@ double r_fixed_of(const Scenario& s) { return build_design(s).divider.r_fixed; }
 // --- The analytic values ----------------------------------------------------
 
 // Beta curve (IEC 60539-1 definition of B): R(T) = R25·exp(B(1/T − 1/T0)).
-double beta_r(double r25, double beta, double t_celsius) {
+double picker_beta_r(double r25, double beta, double t_celsius) {
   return r25 * std::exp(beta * (1.0 / (t_celsius + 273.15) - 1.0 / 298.15));
 }
 
 TEST(Picker, LinearisingResistorMapsEquallySpacedTemperaturesToEquallySpacedRatios) {
   for (const auto& [t1, t2, t3] : {std::tuple{0.0, 30.0, 60.0}, std::tuple{-30.0, -10.0, 10.0}, std::tuple{35.0, 37.5, 40.0}}) {
-    const double r1 = beta_r(10e3, 3950, t1), r2 = beta_r(10e3, 3950, t2), r3 = beta_r(10e3, 3950, t3);
+    const double r1 = picker_beta_r(10e3, 3950, t1), r2 = picker_beta_r(10e3, 3950, t2), r3 = picker_beta_r(10e3, 3950, t3);
     const auto r = linearising_resistor(r1, r2, r3);
     ASSERT_TRUE(r) << t1;
     // Low placement: ρ = R_i/(R + R_i); high placement: 1 − that, so one
@@ -165,7 +165,7 @@ TEST(Picker, MaximumSensitivityValueIsTheSensorResistanceAtTheWindowCentre) {
   o.range_low = 5e3;
   o.range_high = 12e3;
   const PickResult r = pick(s, o);
-  const double r_tm = beta_r(10e3, 3950, 30.0);
+  const double r_tm = picker_beta_r(10e3, 3950, 30.0);
   ASSERT_TRUE(r.guidance.max_sensitivity.r);
   EXPECT_NEAR(*r.guidance.max_sensitivity.r / r_tm, 1.0, 1e-12);
   ASSERT_TRUE(r.guidance.optimum.r);
@@ -334,7 +334,7 @@ TEST(Picker, WinnerAndItsFiguresEqualTheBudgetOfThatDesign) {
   const Scenario s = scenario_with({}, testing::scenario_path("fermentation_probe.ini"));
   const PickOptions o = winner_over(Series::e24, 5e3, 50e3);
   const PickRow w = pick(s, o).winner();
-  const Truth t = budget_of(s, w.r_fixed);
+  const Truth t = picker_budget_of(s, w.r_fixed);
   ASSERT_TRUE(w.wc_max_abs && w.rss_max_abs);
   EXPECT_NEAR(*w.wc_max_abs, t.wc, same_engine_tolerance);
   EXPECT_NEAR(*w.rss_max_abs, t.rss, same_engine_tolerance);
@@ -359,7 +359,7 @@ TEST(Picker, ConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheBestFe
   const PickResult held = pick(s, o);
 
   std::vector<Truth> all;
-  for (double v : series_values(Series::e24, o.range_low, o.range_high)) all.push_back(budget_of(s, v));
+  for (double v : series_values(Series::e24, o.range_low, o.range_high)) all.push_back(picker_budget_of(s, v));
   ASSERT_EQ(held.rows.size(), all.size());
   std::vector<Truth> feasible;
   for (const auto& t : all)
@@ -421,7 +421,7 @@ std::vector<OutsideFigures> outside_figures(const Design& d, const std::vector<d
     double lo = std::numeric_limits<double>::infinity(), hi = -lo;
     for (std::size_t i = 0; i < range.size() && k * range.size() + i < element.size(); ++i) {
       const double t_e = element[k * range.size() + i];
-      const double r = beta_r(d.sensor.r25, d.sensor.beta, t_e);
+      const double r = picker_beta_r(d.sensor.r25, d.sensor.beta, t_e);
       f.max_self_heating = std::max(f.max_self_heating, t_e - range[i]);
       f.max_current = std::max(f.max_current, d.supply.v_excitation / (r_fixed + r));
       if (range[i] >= d.requirement.window_min - 1e-9 && range[i] <= d.requirement.window_max + 1e-9) {
@@ -457,7 +457,7 @@ TEST(Picker, EveryConstraintThatExcludesTheUnconstrainedWinnerMovesThePickToTheB
   const double winner = free.winner().r_fixed;
 
   std::vector<Truth> truth;
-  for (double v : values) truth.push_back(budget_of(s, v));
+  for (double v : values) truth.push_back(picker_budget_of(s, v));
   const std::vector<OutsideFigures> outside = outside_figures(d, values);
   ASSERT_EQ(outside.size(), values.size());
   // The picker's own figures against the outside ones, every candidate.
@@ -542,7 +542,7 @@ TEST(Picker, LinearAndSensitivityObjectivesRankByTheirEngines) {
   const Scenario s;
   PickOptions o = e12_3k_to_40k(1);
   std::vector<Truth> all;
-  for (double v : series_values(Series::e12, o.range_low, o.range_high)) all.push_back(budget_of(s, v));
+  for (double v : series_values(Series::e12, o.range_low, o.range_high)) all.push_back(picker_budget_of(s, v));
   const auto by_rss = std::min_element(all.begin(), all.end(), [](const Truth& a, const Truth& b) { return a.rss < b.rss; });
   const auto by_sensitivity = std::max_element(all.begin(), all.end(), [](const Truth& a, const Truth& b) {
     return a.min_sensitivity < b.min_sensitivity;
@@ -641,9 +641,9 @@ TEST(Picker, PairSearchEqualsBruteForceOverEveryPairAndNone) {
   for (double rf : o.values) {
     // docs/pick.md: without --grade and without a parallel resistor in the
     // scenario, the parallel resistor has the fixed resistor's tolerance.
-    truth.push_back({budget_of(s, rf).wc, rf, none});
+    truth.push_back({picker_budget_of(s, rf).wc, rf, none});
     for (double rp : o.values) {
-      const Truth t = budget_of(s, rf, {{"divider.r_parallel", text(rp)}, {"divider.r_parallel_tol", "1%"}});
+      const Truth t = picker_budget_of(s, rf, {{"divider.r_parallel", text(rp)}, {"divider.r_parallel_tol", "1%"}});
       truth.push_back({t.wc, rf, rp});
     }
   }
@@ -772,7 +772,7 @@ TEST(Picker, GradeOverridesTheScenarioTolerance) {
   const PickResult got = pick(s, o);
   EXPECT_EQ(got.tolerance, 0.001);
   EXPECT_EQ(got.tempco, 25e-6);
-  const Truth t = budget_of(s, got.winner().r_fixed, {{"divider.r_fixed_tol", "0.1%"}, {"divider.r_fixed_tempco", "25ppm"}});
+  const Truth t = picker_budget_of(s, got.winner().r_fixed, {{"divider.r_fixed_tol", "0.1%"}, {"divider.r_fixed_tempco", "25ppm"}});
   EXPECT_NEAR(*got.winner().wc_max_abs, t.wc, same_engine_tolerance);
 }
 
@@ -792,9 +792,9 @@ TEST(Picker, SeriesGradeIsTheToleranceOfTheSeriesTheCandidatesComeFrom) {
     EXPECT_EQ(by_series.rows[k].r_fixed, explicit_grade.rows[k].r_fixed);
     EXPECT_EQ(by_series.rows[k].objective, explicit_grade.rows[k].objective);
   }
-  const Truth t = budget_of(s, by_series.winner().r_fixed, {{"divider.r_fixed_tol", "10%"}});
+  const Truth t = picker_budget_of(s, by_series.winner().r_fixed, {{"divider.r_fixed_tol", "10%"}});
   EXPECT_NEAR(*by_series.winner().wc_max_abs, t.wc, same_engine_tolerance);
-  EXPECT_GT(t.wc, budget_of(s, by_series.winner().r_fixed).wc);  // the grade matters here
+  EXPECT_GT(t.wc, picker_budget_of(s, by_series.winner().r_fixed).wc);  // the grade matters here
   // An explicit tolerance wins over the series'; with given values there is no series.
   o.series_grade = true;
   o.tolerance = 0.001;
@@ -886,12 +886,12 @@ TEST(Picker, BadOptionsAreRejectedBeforeAnyWork) {
 
 // --- The command line --------------------------------------------------------
 
-using CliRun = testing::CliOutcome;
+using PickRun = testing::CliOutcome;
 
-CliRun run_cli(const std::string& args) { return testing::run_cli("pick " + args); }
+PickRun pick_cli(const std::string& args) { return testing::run_cli("pick " + args); }
 
 TEST(PickCli, JsonHasTheInterfaceFieldsBestFirstAndTheWinner) {
-  const CliRun r = run_cli("--series e24 --range 8k..20k --top 3 --format json");
+  const PickRun r = pick_cli("--series e24 --range 8k..20k --top 3 --format json");
   ASSERT_EQ(r.status, 0) << r.err;
   const auto j = nlohmann::json::parse(r.out);
   EXPECT_EQ(j["command"], "pick");
@@ -916,7 +916,7 @@ TEST(PickCli, JsonHasTheInterfaceFieldsBestFirstAndTheWinner) {
 }
 
 TEST(PickCli, TextLeadsWithTheVerdictAndCsvCarriesTheCaution) {
-  const CliRun txt = run_cli("--series e12 --range 5k..30k --top 3 --verify 2 --mc-units 2000");
+  const PickRun txt = pick_cli("--series e12 --range 5k..30k --top 3 --verify 2 --mc-units 2000");
   ASSERT_EQ(txt.status, 0) << txt.err;
   std::istringstream lines(txt.out);
   std::string first, blank, verdict;
@@ -930,14 +930,14 @@ TEST(PickCli, TextLeadsWithTheVerdictAndCsvCarriesTheCaution) {
   EXPECT_TRUE(verdict.ends_with("; outside the requirement of +/-1.000 K")) << verdict;
   EXPECT_NE(txt.out.find("verify MC (K)"), std::string::npos);
   EXPECT_NE(txt.out.find(std::string(caution)), std::string::npos);
-  const CliRun csv = run_cli("--series e12 --range 5k..30k --top 3 --format csv --no-guidance");
+  const PickRun csv = pick_cli("--series e12 --range 5k..30k --top 3 --format csv --no-guidance");
   ASSERT_EQ(csv.status, 0) << csv.err;
   EXPECT_EQ(csv.out.rfind("# " + std::string(caution), 0), 0u);
   EXPECT_EQ(std::count(csv.out.begin(), csv.out.end(), '\n'), 5);  // caution, header, 3 rows
 }
 
 TEST(PickCli, VerifyAddsAMonteCarloBandAndYieldToTheTopRows) {
-  const CliRun r = run_cli("--series e12 --range 5k..30k --top 3 --verify 2 --mc-units 3000 --no-guidance --format json");
+  const PickRun r = pick_cli("--series e12 --range 5k..30k --top 3 --verify 2 --mc-units 3000 --no-guidance --format json");
   ASSERT_EQ(r.status, 0) << r.err;
   const auto j = nlohmann::json::parse(r.out);
   ASSERT_EQ(j["rows"].size(), 3u);
@@ -964,7 +964,7 @@ TEST(PickCli, BadInputIsOneLineNamingTheOptionAndExitStatusTwo) {
            {"--top 0", "--top"},
            {"--values 4k7,10k --grade series", "--grade"},
            {"--grade tight", "--grade"}}) {
-    const CliRun r = run_cli(args);
+    const PickRun r = pick_cli(args);
     EXPECT_EQ(r.status, 2) << args;
     EXPECT_TRUE(r.out.empty()) << args;
     EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << args << ": " << r.err;

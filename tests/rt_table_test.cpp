@@ -36,7 +36,7 @@ const std::string data_dir = testing::data_path("chain/");
 // Two implementations of the same interpolant agree to rounding: the cubic
 // is evaluated in a different order in each.
 constexpr double scipy_relative_tolerance = 1e-12;
-constexpr double round_trip_tolerance = 1e-9;  // K
+constexpr double table_round_trip_tolerance = 1e-9;  // K
 // The table is printed to 0.001 Ω; at the hot end (340 Ω) that is 1.5e-6 in ln R.
 constexpr double point_tolerance = 1e-12;  // in ln R, at the table's own points
 // PCHIP on 5 K steps against the curve it was sampled from: SciPy's
@@ -49,7 +49,7 @@ const SteinhartHart generating_curve{1.129148e-3, 2.34125e-4, 8.76741e-8};
 RtTable load(const std::string& name) { return RtTable(read_rt_data(data_dir + name)); }
 
 // Runs a reference script and returns the numbers it prints, one a line.
-std::vector<double> run_python(const std::string& arguments) {
+std::vector<double> scipy_table_values(const std::string& arguments) {
   return testing::numbers_printed_by(std::string(THERMARGIN_PYTHON) + " " + testing::reference_script(arguments));
 }
 
@@ -64,7 +64,7 @@ void expect_agrees_with_scipy_at(const std::string& path, double t_first, double
   args.precision(17);
   args << "pchip_table.py " << path;
   for (double t : temperatures) args << " " << t;
-  const std::vector<double> scipy = run_python(args.str());
+  const std::vector<double> scipy = scipy_table_values(args.str());
   ASSERT_EQ(scipy.size(), temperatures.size());
   for (std::size_t i = 0; i < temperatures.size(); ++i) {
     const auto l = table.ln_resistance(temperatures[i] + kelvin_offset);
@@ -144,7 +144,7 @@ TEST(RtTable, InverseRoundTrips) {
     ASSERT_TRUE(l);
     const auto back = table.temperature_kelvin(*l);
     ASSERT_TRUE(back) << t;
-    EXPECT_NEAR(*back - kelvin_offset, t, round_trip_tolerance) << t;
+    EXPECT_NEAR(*back - kelvin_offset, t, table_round_trip_tolerance) << t;
   }
 }
 
@@ -188,7 +188,7 @@ TEST(RtTable, ReadsDescendingFilesAsTheSameCurve) {
     EXPECT_EQ(*a.ln_resistance(t + kelvin_offset), *b.ln_resistance(t + kelvin_offset)) << t;
 }
 
-std::string refusal(const std::string& name) {
+std::string table_refusal(const std::string& name) {
   try {
     load(name);
   } catch (const input_error& e) {
@@ -198,18 +198,18 @@ std::string refusal(const std::string& name) {
 }
 
 TEST(RtTable, RefusesFewerThanFourPoints) {
-  const std::string message = refusal("bad_three_points.csv");
+  const std::string message = table_refusal("bad_three_points.csv");
   EXPECT_NE(message.find("at least 4 points"), std::string::npos) << message;
 }
 
 TEST(RtTable, RefusesANonMonotonicTableNamingTheLine) {
-  const std::string message = refusal("bad_nonmonotonic.csv");
+  const std::string message = table_refusal("bad_nonmonotonic.csv");
   EXPECT_NE(message.find("bad_nonmonotonic.csv:5"), std::string::npos) << message;
   EXPECT_NE(message.find("monotonic"), std::string::npos) << message;
 }
 
 TEST(RtTable, RefusesAResistanceThatIsNotANumberNamingLineAndColumn) {
-  const std::string message = refusal("bad_text.csv");
+  const std::string message = table_refusal("bad_text.csv");
   EXPECT_NE(message.find("bad_text.csv:4"), std::string::npos) << message;
   EXPECT_NE(message.find("bad_text.csv:4:2"), std::string::npos) << message;
 }

@@ -21,7 +21,7 @@ constexpr double table_digits = 0.005 + 1e-9;      // Ω
 // Inverting a value rounded to 0.001 Ω: half that digit over the smallest
 // slope in −200…850 °C (0.29 Ω/K at 850 °C) is 0.0017 K.
 constexpr double inverse_tolerance = 0.002;  // K
-constexpr double round_trip_tolerance = 1e-9;  // K
+constexpr double rtd_round_trip_tolerance = 1e-9;  // K
 constexpr double slope_tolerance = 1e-7;       // Ω/K, central difference with h = 1e-3 K
 constexpr double c_term_tolerance = 1e-12;     // Ω, rounding of a difference of numbers near 60 Ω
 
@@ -60,10 +60,10 @@ TEST(RtdCallendarVanDusen, CTermActsOnlyBelowZero) {
 
 TEST(RtdCallendarVanDusen, InverseRoundTripsFromMinus200To850C) {
   for (double t = -200.0; t <= 850.0; t += 0.25)
-    ASSERT_NEAR(temperature_celsius(pt100, resistance(pt100, t)), t, round_trip_tolerance) << t;
+    ASSERT_NEAR(temperature_celsius(pt100, resistance(pt100, t)), t, rtd_round_trip_tolerance) << t;
   const CallendarVanDusen pt1000{1000.0};
   for (double t = -200.0; t <= 850.0; t += 12.5)
-    ASSERT_NEAR(temperature_celsius(pt1000, resistance(pt1000, t)), t, round_trip_tolerance) << t;
+    ASSERT_NEAR(temperature_celsius(pt1000, resistance(pt1000, t)), t, rtd_round_trip_tolerance) << t;
 }
 
 TEST(RtdCallendarVanDusen, SlopeAgreesWithCentralDifference) {

@@ -27,9 +27,9 @@ namespace {
 
 // The fixed point stops when a step is ≤ 1e-9 K; what remains is that step
 // times the loop gain (≪ 1 in any design here), plus rounding of ~300 K.
-constexpr double solver_tolerance = 2 * self_heating_tolerance;  // K
+constexpr double heating_solver_tolerance = 2 * self_heating_tolerance;  // K
 // brentq is run to xtol 1e-13 K; the two solutions differ by the fixed point's tolerance.
-constexpr double scipy_tolerance = 2 * self_heating_tolerance;  // K
+constexpr double heating_scipy_tolerance = 2 * self_heating_tolerance;  // K
 constexpr double addition_tolerance = 1e-12;  // K, one rounding of a sum near 300 K
 
 using testing::design_with;
@@ -43,7 +43,7 @@ TEST(SelfHeatingSolver, ConvergesToTheFixedPointOfALinearRise) {
     const double t_true = 300.0, a = 2.0;
     const SelfHeating r = solve_self_heating(t_true, [&](double t) -> std::optional<double> { return a + g * (t - t_true); });
     ASSERT_EQ(r.outcome, SelfHeating::Outcome::converged) << g;
-    EXPECT_NEAR(r.rise, a / (1 - g), solver_tolerance / (1 - std::fabs(g))) << g;
+    EXPECT_NEAR(r.rise, a / (1 - g), heating_solver_tolerance / (1 - std::fabs(g))) << g;
     EXPECT_NEAR(r.t_element, t_true + r.rise, addition_tolerance) << g;
   }
 }
@@ -97,7 +97,7 @@ TEST(SelfHeating, RiseEqualsDutyTimesPowerOverDissipation) {
         const FrontEnd fe = chain.front_end(dev, t);
         ASSERT_EQ(fe.status, Status::ok) << t;
         EXPECT_GT(fe.rise, 0.0);
-        EXPECT_NEAR(fe.rise, rise_by_hand(d, dissipation_deviation, fe.t_element), solver_tolerance) << t;
+        EXPECT_NEAR(fe.rise, rise_by_hand(d, dissipation_deviation, fe.t_element), heating_solver_tolerance) << t;
         EXPECT_NEAR(fe.t_element, t + fe.rise, addition_tolerance);
       }
     }
@@ -116,7 +116,7 @@ std::vector<double> scipy_element_temperatures(const Design& d, const std::vecto
   return testing::numbers_printed_by(command.str());
 }
 
-void expect_agrees_with_scipy(const Design& d) {
+void expect_heating_agrees_with_scipy(const Design& d) {
   ASSERT_EQ(d.sensor.kind, SensorKind::beta);
   const Chain chain(d);
   std::vector<double> temperatures;
@@ -128,21 +128,21 @@ void expect_agrees_with_scipy(const Design& d) {
     const FrontEnd fe = chain.front_end(nominal_deviations(), temperatures[i]);
     ASSERT_EQ(fe.status, Status::ok) << temperatures[i];
     EXPECT_GT(fe.rise, 0.0);
-    EXPECT_NEAR(fe.t_element, scipy[i], scipy_tolerance) << d.title << " at " << temperatures[i];
+    EXPECT_NEAR(fe.t_element, scipy[i], heating_scipy_tolerance) << d.title << " at " << temperatures[i];
   }
 }
 
 TEST(SelfHeating, AgreesWithScipyBrentqOnTheFermentationProbe) {
-  expect_agrees_with_scipy(design_from_file("fermentation_probe.ini"));
+  expect_heating_agrees_with_scipy(design_from_file("fermentation_probe.ini"));
 }
 
 TEST(SelfHeating, AgreesWithScipyBrentqOnTheHighSideBatteryGuard) {
-  expect_agrees_with_scipy(design_from_file("battery_charge_guard.ini"));
+  expect_heating_agrees_with_scipy(design_from_file("battery_charge_guard.ini"));
 }
 
 TEST(SelfHeating, AgreesWithScipyBrentqWithLeadsAndAParallelResistor) {
   // An exaggerated divider so that the rise is large (about a kelvin).
-  expect_agrees_with_scipy(design_with({{"divider.r_fixed", "2k2"},
+  expect_heating_agrees_with_scipy(design_with({{"divider.r_fixed", "2k2"},
                                         {"supply.v_excitation", "5V"},
                                         {"sensor.dissipation", "1mW/K"},
                                         {"sensor.lead_resistance", "25"},

@@ -19,18 +19,18 @@ namespace thermargin {
 namespace {
 
 constexpr double ln_r_tolerance = 1e-12;        // ln R: a few roundings of numbers near 10
-constexpr double round_trip_tolerance = 1e-9;   // K
+constexpr double sensor_round_trip_tolerance = 1e-9;   // K
 constexpr double slope_relative_tolerance = 1e-7;  // central difference, h = 1e-3 K
 constexpr double pt1000_digits = 1e-9;           // Ω: 1385.055 is exact (R0·(1 + 100 A + 10⁴ B))
 
 using testing::design_with;
 
-const std::string table_file = testing::data_path("chain/ntc10k_sh_5K.csv");
+const std::string sensor_table_file = testing::data_path("chain/ntc10k_sh_5K.csv");
 
 std::vector<Design> every_model() {
   return {design_with({{"sensor.model", "beta"}, {"sensor.r25", "4k7"}, {"sensor.beta", "3977"}}),
           design_with({{"sensor.model", "steinhart-hart"}}),
-          design_with({{"sensor.model", "table"}, {"sensor.table_file", table_file}}),
+          design_with({{"sensor.model", "table"}, {"sensor.table_file", sensor_table_file}}),
           design_with({{"sensor.model", "rtd"}, {"sensor.r0", "1k"}, {"sensor.rtd_class", "B"}})};
 }
 
@@ -43,7 +43,7 @@ TEST(SensorCurve, InverseRoundTripsForEveryModel) {
       ASSERT_TRUE(l) << static_cast<int>(d.sensor.kind) << " " << t;
       const auto back = nominal_temperature(d.sensor, *l);
       ASSERT_TRUE(back);
-      EXPECT_NEAR(*back, tk(t), round_trip_tolerance) << static_cast<int>(d.sensor.kind) << " " << t;
+      EXPECT_NEAR(*back, tk(t), sensor_round_trip_tolerance) << static_cast<int>(d.sensor.kind) << " " << t;
     }
   }
 }

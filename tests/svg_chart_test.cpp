@@ -225,7 +225,7 @@ std::string series_attr(const std::string& svg, const std::string& series, const
   return std::regex_search(tag, am, a) ? am[1].str() : "(no such attribute)";
 }
 
-std::vector<double> numbers(const std::string& list) {
+std::vector<double> svg_numbers(const std::string& list) {
   std::vector<double> v;
   std::istringstream in(list);
   std::string word;
@@ -257,10 +257,10 @@ TEST(SvgChart, GapsBreakTheLineAndNoNonFiniteNumberIsWritten) {
   EXPECT_FALSE(std::regex_search(lower, std::regex("\\b(nan|inf|infinity)\\b"))) << svg;
   // -20 | gap | 0 | gap | 20, 1e300 | gap (inf) | 50
   EXPECT_EQ(series_attr(svg, "nominal", "data-runs"), "4");
-  EXPECT_EQ(numbers(series_attr(svg, "nominal", "data-x")), (std::vector<double>{-20, 0, 20, 30, 50}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "nominal", "data-x")), (std::vector<double>{-20, 0, 20, 30, 50}));
   EXPECT_EQ(series_attr(svg, "wc", "data-runs"), "3");
-  EXPECT_EQ(numbers(series_attr(svg, "mc", "data-x")), (std::vector<double>{25}));
-  EXPECT_EQ(numbers(series_attr(svg, "limits", "data-y")), (std::vector<double>{-0.5, 0.5}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "mc", "data-x")), (std::vector<double>{25}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "limits", "data-y")), (std::vector<double>{-0.5, 0.5}));
   EXPECT_EQ(series_attr(svg, "window", "data-x0"), "0");
   EXPECT_EQ(series_attr(svg, "window", "data-x1"), "(no such attribute)");
   EXPECT_EQ(count(svg, "class=\"segment\""), 4u);
@@ -275,7 +275,7 @@ TEST(SvgChart, LogAxisTreatsNonPositiveValuesAsGaps) {
   c.x.scale = Scale::log10;
   c.series.push_back(line("wc", "Worst case", {-1, 0, 1e3, 1e4, 1e5}, {1, 2, 3, 4, 5}));
   std::string svg = render(c);
-  EXPECT_EQ(numbers(series_attr(svg, "wc", "data-x")), (std::vector<double>{1e3, 1e4, 1e5}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "wc", "data-x")), (std::vector<double>{1e3, 1e4, 1e5}));
   EXPECT_EQ(series_attr(svg, "wc", "data-runs"), "1");
 }
 
@@ -346,13 +346,13 @@ TEST(SvgChart, NonPositiveValuesOnALogYAxisAreGapsAndStayOutOfItsRange) {
   c.series.push_back(annotation("note", "zero", 1, 0.0));
   const std::string svg = render(c);
   // 1 | gap (-3, 0) | 10, 100: two runs, and nothing of the gap is listed or drawn
-  EXPECT_EQ(numbers(series_attr(svg, "err", "data-y")), (std::vector<double>{1, 10, 100}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "err", "data-y")), (std::vector<double>{1, 10, 100}));
   EXPECT_EQ(series_attr(svg, "err", "data-runs"), "2");
   EXPECT_EQ(count(svg, "class=\"segment\""), 2u);
-  EXPECT_EQ(numbers(series_attr(svg, "wc", "data-x")), (std::vector<double>{0, 2}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "wc", "data-x")), (std::vector<double>{0, 2}));
   EXPECT_EQ(series_attr(svg, "wc", "data-runs"), "2");
-  EXPECT_EQ(numbers(series_attr(svg, "pts", "data-y")), (std::vector<double>{20}));
-  EXPECT_EQ(numbers(series_attr(svg, "limit", "data-y")), (std::vector<double>{50}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "pts", "data-y")), (std::vector<double>{20}));
+  EXPECT_EQ(svg_numbers(series_attr(svg, "limit", "data-y")), (std::vector<double>{50}));
   EXPECT_EQ(series_attr(svg, "note", "data-y"), "(no such attribute)");
   // The range is that of the drawn values, 0.5 .. 100, not widened down to
   // (or thrown off by) the values <= 0.
@@ -404,8 +404,8 @@ TEST(SvgChart, DataAttributesGiveBackTheInputToNineSignificantDigits) {
   c.series.push_back(points("pts", "Points", x, values(y)));
   std::string svg = render(c);
   for (const char* name : {"rt", "pts"}) {
-    std::vector<double> gx = numbers(series_attr(svg, name, "data-x"));
-    std::vector<double> gy = numbers(series_attr(svg, name, "data-y"));
+    std::vector<double> gx = svg_numbers(series_attr(svg, name, "data-x"));
+    std::vector<double> gy = svg_numbers(series_attr(svg, name, "data-y"));
     ASSERT_EQ(gx.size(), x.size());
     ASSERT_EQ(gy.size(), y.size());
     for (std::size_t i = 0; i < x.size(); ++i) {
@@ -564,7 +564,7 @@ TEST(SvgChart, PythonXmlParserReadsTheChartAndItsSeries) {
   std::vector<double> expect_x;
   for (std::size_t i = 0; i < t.size(); ++i)
     if (hi[i]) expect_x.push_back(t[i]);
-  EXPECT_EQ(numbers(wc_x), expect_x);
+  EXPECT_EQ(svg_numbers(wc_x), expect_x);
   EXPECT_EQ(outside, "0");
   EXPECT_EQ(title, c.title);
 }

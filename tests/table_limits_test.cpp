@@ -32,7 +32,7 @@ using testing::Overrides;
 constexpr double r25 = 10e3, beta = 3950.0, t0 = 298.15;
 
 // IEC 60539-1's beta equation: R = R25·exp(B·(1/T − 1/T0)).
-double beta_r(double t_celsius, double r25_factor = 1.0, double beta_factor = 1.0) {
+double limits_beta_r(double t_celsius, double r25_factor = 1.0, double beta_factor = 1.0) {
   return r25 * r25_factor * std::exp(beta * beta_factor * (1.0 / (t_celsius + 273.15) - 1.0 / t0));
 }
 
@@ -48,14 +48,14 @@ std::string table_text(bool percent, double r25_tol, double beta_tol) {
   out.precision(17);
   out << (percent ? "t_degC,r_ohm,tol_pct\n" : "t_degC,r_ohm,r_min_ohm,r_max_ohm\n");
   for (int t = -20; t <= 80; t += 5) {
-    out << t << "," << beta_r(t);
+    out << t << "," << limits_beta_r(t);
     if (percent) {
       out << "," << 100.0 * r25_tol << "\n";
       continue;
     }
     // Both tolerances pushing the same way: R up when (1 + b) raises B·(1/T − 1/T0).
     const double s = t < 25 ? 1.0 : -1.0;
-    out << "," << beta_r(t, 1.0 - r25_tol, 1.0 - s * beta_tol) << "," << beta_r(t, 1.0 + r25_tol, 1.0 + s * beta_tol)
+    out << "," << limits_beta_r(t, 1.0 - r25_tol, 1.0 - s * beta_tol) << "," << limits_beta_r(t, 1.0 + r25_tol, 1.0 + s * beta_tol)
         << "\n";
   }
   return out.str();
@@ -86,7 +86,7 @@ TEST(TableLimits, ConstantPercentColumnIsTheR25Tolerance) {
   for (std::size_t i = 0; i < temps.size(); ++i) {
     const double t = temps[i] + 273.15;
     const double interpolation_k =
-        std::abs(*curve.ln_resistance(t) - std::log(beta_r(temps[i]))) / (beta / (t * t)) + 1e-9;
+        std::abs(*curve.ln_resistance(t) - std::log(limits_beta_r(temps[i]))) / (beta / (t * t)) + 1e-9;
     EXPECT_NEAR(a.points[i].low, b.points[i].low, 2.0 * interpolation_k + 1e-6) << temps[i];
     EXPECT_NEAR(a.points[i].high, b.points[i].high, 2.0 * interpolation_k + 1e-6) << temps[i];
     EXPECT_GT(a.points[i].high, 0.1);  // the spread is there: 1 % is at least 0.15 K over this range

@@ -18,7 +18,7 @@ namespace {
 using testing::design_with;
 using testing::ideal;
 
-BudgetOptions no_mc() {
+BudgetOptions what_if_no_mc() {
   BudgetOptions o;
   o.monte_carlo = false;
   return o;
@@ -39,7 +39,7 @@ TEST(WhatIf, HalvedFixedResistorToleranceGivesTheBetaEquationAtHalfTheBound) {
   const Design d = design_with(ideal({{"divider.r_fixed_tol", "1%"}, {"divider.placement", "low"}}));
   ASSERT_EQ(d.inputs.size(), 1u);
   const Chain chain(d);
-  const Budget b = run_budget(chain, no_mc());
+  const Budget b = run_budget(chain, what_if_no_mc());
   const WhatIf w = what_if(chain, b);
   const WhatIfRow* r = row_named(w, "r_fixed");
   ASSERT_NE(r, nullptr);
@@ -68,7 +68,7 @@ TEST(WhatIf, RemovingASourceTakesItsTermOutOfTheCombinedUncertainty) {
   // so moves when a source goes: each such pair is below 1e-4 of u_c².
   const Design d = design_with({});
   const Chain chain(d);
-  const Budget b = run_budget(chain, no_mc());
+  const Budget b = run_budget(chain, what_if_no_mc());
   const WhatIf w = what_if(chain, b);
   ASSERT_GE(w.rows.size(), 3u);
   for (const auto& r : w.rows) {
@@ -96,7 +96,7 @@ TEST(WhatIf, ImprovingOnePartNeverWidensTheWorstCaseOfAnyScenario) {
   for (const auto& file : testing::scenario_files()) {
     const Design d = design_with({}, file);
     const Chain chain(d);
-    const Budget b = run_budget(chain, no_mc());
+    const Budget b = run_budget(chain, what_if_no_mc());
     const WhatIf w = what_if(chain, b);
     EXPECT_FALSE(w.rows.empty()) << file;
     std::size_t compared = 0;
@@ -116,12 +116,12 @@ TEST(WhatIf, RemovedEqualsTheBudgetOfTheDesignWithThatToleranceSetToZero) {
   // The same question asked through the scenario: sensor.r25_tol = 0.
   const Design d = design_with({});
   const Chain chain(d);
-  const WhatIf w = what_if(chain, run_budget(chain, no_mc()));
+  const WhatIf w = what_if(chain, run_budget(chain, what_if_no_mc()));
   const WhatIfRow* r = row_named(w, "r25");
   ASSERT_NE(r, nullptr);
   EXPECT_EQ(r->key, "sensor.r25_tol");
   const Design d0 = design_with({{"sensor.r25_tol", "0"}});
-  const Budget b0 = run_budget(Chain(d0), no_mc());
+  const Budget b0 = run_budget(Chain(d0), what_if_no_mc());
   EXPECT_NEAR(r->removed.wc_max_abs, b0.wc_max_abs, 1e-12);
   EXPECT_NEAR(r->removed.rss_max_abs, b0.rss_max_abs, 1e-9);
 }
@@ -129,7 +129,7 @@ TEST(WhatIf, RemovedEqualsTheBudgetOfTheDesignWithThatToleranceSetToZero) {
 TEST(WhatIf, MostHelpfulFirstByTheVerdictsBasis) {
   const Design d = design_with({});
   const Chain chain(d);
-  const WhatIf w = what_if(chain, run_budget(chain, no_mc()));
+  const WhatIf w = what_if(chain, run_budget(chain, what_if_no_mc()));
   for (std::size_t i = 1; i < w.rows.size(); ++i)
     EXPECT_LE(w.rows[i - 1].removed.wc_max_abs, w.rows[i].removed.wc_max_abs);
 }
@@ -139,9 +139,9 @@ TEST(WhatIf, BeyondTheEnumerationLimitCornersAreDirectedAndSaid) {
   const Chain chain(d);
   WhatIfOptions o;
   o.max_evaluations = 10;  // far below 2^9 corners x 121 temperatures
-  const WhatIf w = what_if(chain, run_budget(chain, no_mc()), o);
+  const WhatIf w = what_if(chain, run_budget(chain, what_if_no_mc()), o);
   EXPECT_TRUE(w.directed);
-  const WhatIf full = what_if(chain, run_budget(chain, no_mc()));
+  const WhatIf full = what_if(chain, run_budget(chain, what_if_no_mc()));
   ASSERT_EQ(w.rows.size(), full.rows.size());
   // Directed corners equal enumeration on this design (worst_case_test).
   EXPECT_NEAR(w.as_designed.wc_max_abs, full.as_designed.wc_max_abs, 1e-6);
