@@ -1,10 +1,11 @@
 // Tests of the Monte Carlo kernel's R–T table (lib/src/engines/
-// monte_carlo_table.hpp, not public API): the block's search, run step by
-// step across 256 units at once, finds the same piece as the table's own
-// scalar search (HermiteSegments::piece), and the block's evaluation of that
-// piece gives the table's ln R and spread (RtTable::ln_resistance,
-// RtTable::spread) to the bit, at every point of the table, just above and
-// below each, at both ends and at 20 000 points between. The scalar
+// monte_carlo_table.hpp, not public API): the block's search, through its
+// grid or the binary search step by step across 256 units at once, finds
+// the same piece as the table's own scalar search (HermiteSegments::piece),
+// and the block's evaluation of that piece gives the table's ln R and
+// spread (RtTable::ln_resistance, RtTable::spread) to the bit, at every
+// point of the table, just above and below each, at both ends and at
+// 20 000 points between. The scalar
 // interpolant is itself held to Boost.Math's cubic_hermite bit for bit and
 // to SciPy's PchipInterpolator (rt_table_test.cpp). Built like the kernel's
 // files in a native build (-O2 -march=native, tests/CMakeLists.txt), so on
@@ -40,8 +41,10 @@ std::vector<double> arguments_over(const HermiteSegments& seg) {
 }
 
 template <bool Limits>
-void expect_block_is_the_table(const RtTable& table, const std::string& label) {
-  const mc_detail::TablePieces pieces = mc_detail::table_pieces(table);
+void expect_block_is_the_table(const RtTable& table, bool grid, const std::string& label) {
+  mc_detail::TablePieces pieces = mc_detail::table_pieces(table);
+  ASSERT_FALSE(pieces.grid.empty()) << label;
+  if (!grid) pieces.grid.clear();  // the binary search, as a table of too many cells takes
   const mc_detail::TableView view(pieces);
   const HermiteSegments& curve = table.curve_segments();
   std::vector<double> v = arguments_over(curve);
@@ -49,7 +52,7 @@ void expect_block_is_the_table(const RtTable& table, const std::string& label) {
   int compared = 0;
   for (std::size_t first = 0; first < v.size(); first += block_size) {
     alignas(64) std::int32_t piece[block_size];
-    mc_detail::pieces_block(view, &v[first], piece);
+    mc_detail::pieces_block(pieces, &v[first], piece);
     for (int u = 0; u < block_size; ++u) {
       const double x = v[first + static_cast<std::size_t>(u)];
       ASSERT_EQ(static_cast<std::size_t>(piece[u]), curve.piece(x)) << label << " x=" << x;
@@ -72,15 +75,18 @@ void expect_block_is_the_table(const RtTable& table, const std::string& label) {
 }
 
 TEST(MonteCarloTable, BlockSearchAndPiecesAreTheTablesOwnAtEveryPoint) {
-  for (const char* name : {"ntc10k_sh_5K.csv", "ntc10k_sh_uneven_desc.csv", "ntc10k_sh_0_50.csv"}) {
-    const RtTable table(read_rt_data(testing::data_path(std::string("chain/") + name)));
-    expect_block_is_the_table<false>(table, name);
+  // Both searches: the grid's (every table here) and the binary one.
+  for (const bool grid : {true, false}) {
+    for (const char* name : {"ntc10k_sh_5K.csv", "ntc10k_sh_uneven_desc.csv", "ntc10k_sh_0_50.csv"}) {
+      const RtTable table(read_rt_data(testing::data_path(std::string("chain/") + name)));
+      expect_block_is_the_table<false>(table, grid, name);
+    }
+    const RtTable incubator(read_rt_data(testing::scenario_path("incubator_ntc47k.csv")));
+    expect_block_is_the_table<false>(incubator, grid, "incubator");
+    const RtTable limits(read_rt_data(testing::scenario_path("freezer_probe_ntc10k_limits.csv")));
+    ASSERT_TRUE(limits.has_limits());
+    expect_block_is_the_table<true>(limits, grid, "freezer limits");
   }
-  const RtTable incubator(read_rt_data(testing::scenario_path("incubator_ntc47k.csv")));
-  expect_block_is_the_table<false>(incubator, "incubator");
-  const RtTable limits(read_rt_data(testing::scenario_path("freezer_probe_ntc10k_limits.csv")));
-  ASSERT_TRUE(limits.has_limits());
-  expect_block_is_the_table<true>(limits, "freezer limits");
 }
 
 TEST(MonteCarloTable, BoundsHoldTheSlopeAndCurvatureOfEveryPiece) {

@@ -204,7 +204,7 @@ struct ReadingScratch {
   alignas(64) double vexc[block_size];       // the excitation
   alignas(64) double vref[block_size];       // the ADC's reference
   alignas(64) double te[block_size];         // the element's temperature, K
-  alignas(64) double inv_te[block_size];     // 1/te, a beta sensor's (element_resistance)
+  alignas(64) double inv_te[block_size];     // 1/te, a beta or table sensor's (element_resistance)
   alignas(64) double rise_prev[block_size];  // the self-heating solve's last step
   alignas(64) double dln_r[block_size];      // ln R's change over the Newton step
   alignas(64) double r_el[block_size];       // the element's resistance at te
@@ -312,6 +312,25 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
   return true;
 }
 
+// The table's unit ln R at v[] (1/T) in piece[] into l[] where inside[] is
+// set, 0 elsewhere (table_ln_resistance). The table's arrays as __restrict
+// parameters (TableView), so that the loop may gather from them while it
+// stores to the scratch (it vectorises).
+template <bool Limits>
+void table_pieces_ln(const TablePieces& k, const double* __restrict xs, const double* __restrict ys,
+                     const double* __restrict ss, const double* __restrict sys, const double* __restrict sss,
+                     double ln_r0, const double* __restrict z, const double* __restrict d_beta,
+                     const double* __restrict shift, const double* __restrict drift,
+                     const std::int32_t* __restrict piece, const double* __restrict v,
+                     const double* __restrict inside, double* __restrict l) {
+  const TableView t(TableView(k), xs, ys, ss, sys, sss);
+  for (int u = 0; u < block_size; ++u) {
+    const double unit =
+        table_unit_ln(table_ln_at<Limits>(t, piece[u], v[u], z[u]), ln_r0, shift[u], 1.0 + d_beta[u], drift[u]);
+    l[u] = inside[u] != 0.0 ? unit : 0.0;
+  }
+}
+
 // A table sensor's ln R at te[] into r_el[] (SensorUnit::ln_resistance,
 // sensor.cpp): the table's PCHIP and, with limit columns, the unit's share
 // of its spread, then the stretch about T0 and the drift, the same
@@ -321,30 +340,24 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
 // (ln R = 0, as the general loop leaves it), in a loop of its own and only
 // when there is one. Returns whether it marked any.
 [[gnu::always_inline]] inline bool table_ln_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
-  const TableView table(*c.table);
   const double t_lo = c.table->t_lo, t_hi = c.table->t_hi, ln_r0 = c.chain->sensor_curve().ln_r0;
-  const bool limits = table.limits;
+  const bool limits = c.table->limits;
   const double* z = row(b, Source::table_spread);
   const double* d_beta = row(b, Source::beta);
-  alignas(64) double v[block_size], inside[block_size];
+  alignas(64) double inside[block_size];
   for (int u = 0; u < block_size; ++u) {
     const double t = s.te[u];
     // RtTable::covers; a unit outside is evaluated at the range's end, then dropped.
     const bool in = (t >= t_lo) & (t <= t_hi);
-    v[u] = 1.0 / (in ? t : t_lo);
+    s.inv_te[u] = 1.0 / (in ? t : t_lo);  // v = 1/T, kept for the Newton step
     // A spread without limit columns has no value (RtTable::spread): out of table.
     inside[u] = (in & ((z[u] == 0.0) | limits)) ? 1.0 : 0.0;
   }
-  pieces_block(table, v, s.piece);
-  const auto pieces = [&]<bool Limits>() {
-    for (int u = 0; u < block_size; ++u) {
-      const double l = table_ln_at<Limits>(table, s.piece[u], v[u], z[u]);
-      const double unit = table_unit_ln(l, ln_r0, b.ln_r25[u], 1.0 + d_beta[u], b.ln_drift[u]);
-      s.r_el[u] = inside[u] != 0.0 ? unit : 0.0;
-    }
-  };
-  if (limits) pieces.template operator()<true>();
-  else pieces.template operator()<false>();
+  pieces_block(*c.table, s.inv_te, s.piece);
+  const TablePieces& k = *c.table;
+  const auto pieces = limits ? table_pieces_ln<true> : table_pieces_ln<false>;
+  pieces(k, k.x.data(), k.y.data(), k.s.data(), k.sy.data(), k.ss.data(), ln_r0, z, d_beta, b.ln_r25, b.ln_drift,
+         s.piece, s.inv_te, inside, s.r_el);
   int out = 0;
   for (int u = 0; u < block_size; ++u) out += inside[u] == 0.0;
   if (out == 0) return false;
@@ -358,14 +371,14 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
 // (self_heating_newton_first) with ln R and its slope from the unit's piece
 // of the table (table_ln_resistance kept it). Newton's error term again,
 // with bounds that hold over all of I = T_e ± 4|δ|: |d ln R/dT| ≤ L1 =
-// |stretch|·m1/T², |d² ln R/dT²| ≤ L2 = |stretch|·(m2/T⁴ + 2·m1/T³) at the
-// lowest T of I (m1, m2 the table's bounds of |p'|, |p''|, spread
+// |stretch|·m1·w², |d² ln R/dT²| ≤ L2 = |stretch|·(m2·w⁴ + 2·m1·w³), w a
+// bound of 1/T on I (m1, m2 the table's bounds of |p'|, |p''|, spread
 // included: PCHIP's p' is continuous and p'' bounded on every piece, which
 // is all the error term asks), rise at most rise·(1 + 2·L1·4|δ|) on I (the
 // power of a resistor fed by a linear network moves by at most |d ln R|),
 // so |F''| ≤ rise_max·(L1² + L2) and the loop gain q ≤ rise_max·L1 on I.
 // With q ≤ ½ the root is within 3|δ| of T_e, inside I, and the iterate
-// within 4.5·|F''|/(1 − q)·δ² of it. A unit is accepted when that is within
+// within 4.5·|F''|/(1 − q)·δ² ≤ 9·|F''|·δ² of it. A unit is accepted when that is within
 // the solve's tolerance, I lies in the table, the iterate is more than 1e-6
 // K inside it and stays in the same piece: its ln R there is then the
 // piece's own value (table_ln_at, to the bit what the table gives at that
@@ -378,7 +391,8 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
                        const double* __restrict ss, const double* __restrict sys, const double* __restrict sss,
                        double ln_r0, double t_k, const double* __restrict z, const double* __restrict d_beta,
                        const double* __restrict shift, const double* __restrict drift,
-                       const std::int32_t* __restrict piece, const double* __restrict r_el,
+                       const std::int32_t* __restrict piece, const double* __restrict inv_te,
+                       const double* __restrict r_el,
                        const double* __restrict rf, const double* __restrict vexc, const double* __restrict gain,
                        double* __restrict te_io, double* __restrict rise_prev, double* __restrict moving,
                        double* __restrict ln_new) {
@@ -392,7 +406,7 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
     const double sum = rf[u] + r;
     const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
     const double x = r / sum;
-    const double te = te_io[u], v = 1.0 / te;
+    const double te = te_io[u], v = inv_te[u];  // 1/T_e, as table_ln_resistance took it
     const int i = piece[u];
     const double zu = z[u], stretch = 1.0 + d_beta[u];
     const double l1 = -stretch * table_ln_slope_at<Limits>(t, i, v, zu) * v * v;  // d ln R/dT_e
@@ -401,8 +415,9 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
     const double step = next - te;
     const double delta = step / (1.0 - slope);
     const double te_newton = te + delta;
-    // The error term over I.
-    const double reach = 4.0 * std::fabs(delta), t_min = te - reach, w = 1.0 / t_min;
+    // The error term over I, where 1/T ≤ w = v·(1 + 2·reach·v) (1/(1 − ε) ≤
+    // 1 + 2ε for ε ≤ ½).
+    const double reach = 4.0 * std::fabs(delta), t_min = te - reach, w = v * (1.0 + 2.0 * reach * v);
     const double share = Limits ? std::fabs(zu) : 0.0;
     const double m1 = std::fabs(stretch) * (cm1 + share * (zu > 0.0 ? um1 : lm1));
     const double m2 = std::fabs(stretch) * (cm2 + share * (zu > 0.0 ? um2 : lm2));
@@ -411,11 +426,12 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
     const double rise_max = rise * (1.0 + 2.0 * a);
     const double q = rise_max * big_l1;
     const double f2 = rise_max * (big_l1 * big_l1 + big_l2);
-    const double error = 4.5 * f2 / (1.0 - std::min(q, 0.5)) * delta * delta;
+    const double error = 9.0 * f2 * delta * delta;  // 4.5·f2/(1 − q)·δ², q ≤ ½
     const double v_new = 1.0 / te_newton;
     const bool inside = (t_min >= t_lo) & (te + reach <= t_hi) & (te_newton >= t_lo + 1e-6) & (te_newton <= t_hi - 1e-6);
     const bool same_piece = (v_new >= t.x[i]) & (v_new < t.x[i + 1]);
-    const bool accept = (q <= 0.5) & (a <= 1e-3) & (error <= self_heating_tolerance) & inside & same_piece;
+    const bool accept =
+        (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance) & inside & same_piece;
     const double l_new =
         table_unit_ln(table_ln_at<Limits>(t, i, v_new, zu), ln_r0, shift[u], stretch, drift[u]);
     const bool active = moving[u] != 0.0;
@@ -434,7 +450,8 @@ int table_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, c
   const double ln_r0 = c.chain->sensor_curve().ln_r0;
   const auto step = k.limits ? table_newton_first<true> : table_newton_first<false>;
   return step(k, k.x.data(), k.y.data(), k.s.data(), k.sy.data(), k.ss.data(), ln_r0, t_k,
-              row(b, Source::table_spread), row(b, Source::beta), b.ln_r25, b.ln_drift, s.piece, s.r_el, s.rs, s.vexc,
+              row(b, Source::table_spread), row(b, Source::beta), b.ln_r25, b.ln_drift, s.piece, s.inv_te, s.r_el,
+              s.rs, s.vexc,
               gain, s.te, s.rise_prev, moving, s.ln_new);
 }
 
