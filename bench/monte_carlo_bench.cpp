@@ -121,7 +121,7 @@ BENCHMARK(BM_MonteCarloBlockKernelDefaultDesignPt1000InPlace)->Unit(benchmark::k
 // two-point beta through 25 and 85 degC, and the r25 and beta tolerances
 // closest to the limit columns). Their ratio is what the table's PCHIP and
 // its spread cost over a beta curve in the same chain (issue 19's bound:
-// within 1.5x; docs/engines.md, "A table sensor in the kernel").
+// within 1.5x; docs/engines.md, "A table sensor at NTC speed").
 Scenario freezer_table_scenario() {
   Scenario s;
   s.load_file(THERMARGIN_SOURCE_DIR "/scenarios/freezer_probe_limits.ini");

@@ -378,14 +378,15 @@ void table_pieces_ln(const TablePieces& k, const double* __restrict xs, const do
 // power of a resistor fed by a linear network moves by at most |d ln R|),
 // so |F''| ≤ rise_max·(L1² + L2) and the loop gain q ≤ rise_max·L1 on I.
 // With q ≤ ½ the root is within 3|δ| of T_e, inside I, and the iterate
-// within 4.5·|F''|/(1 − q)·δ² ≤ 9·|F''|·δ² of it. A unit is accepted when that is within
-// the solve's tolerance, I lies in the table, the iterate is more than 1e-6
-// K inside it and stays in the same piece: its ln R there is then the
-// piece's own value (table_ln_at, to the bit what the table gives at that
-// T_e), kept in ln_new for the element's R after the solve. The others take
-// the plain fixed-point step and go on as before. The table's arrays come
-// as __restrict parameters (TableView), so that the loop may gather from
-// them while it stores to the scratch (it vectorises).
+// within 4.5·|F''|/(1 − q)·δ² ≤ 9·|F''|·δ² of it (the bounds' widening by
+// 1e-6 covers the rounding of this arithmetic). A unit is accepted when
+// that is within the solve's tolerance, I lies in the table, the iterate is
+// more than 1e-6 K inside it and stays in the same piece: its ln R there is
+// then the piece's own value (table_ln_at, to the bit what the table gives
+// at that T_e), kept in ln_new for the element's R after the solve. The
+// others take the plain fixed-point step and go on as before. The table's
+// arrays come as __restrict parameters (TableView), so that the loop may
+// gather from them while it stores to the scratch (it vectorises).
 template <bool Limits>
 int table_newton_first(const TablePieces& k, const double* __restrict xs, const double* __restrict ys,
                        const double* __restrict ss, const double* __restrict sys, const double* __restrict sss,

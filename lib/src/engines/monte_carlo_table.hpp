@@ -1,11 +1,11 @@
 // An R–T table sensor in the Monte Carlo kernel (docs/engines.md, "A table
-// sensor in the kernel"): the table's interpolants as arrays the block's
-// loops read by index, the piece of every unit found by HermiteSegments'
-// own search run step by step across the block (a gather a step), and the
-// pieces evaluated with Boost's arithmetic (hermite_piece), so that each
-// stage is a loop the compiler vectorises and gives the chain's values to
-// the bit. Not public API; the tests hold the block's search to the scalar
-// one (monte_carlo_table_test.cpp).
+// sensor at NTC speed"): the table's interpolants as arrays the block's
+// loops read by index, the piece of every unit found through a grid (or
+// HermiteSegments' own binary search run step by step across the block),
+// and the pieces evaluated with Boost's arithmetic (hermite_piece), so that
+// each stage is a loop the compiler vectorises and gives the chain's values
+// to the bit. Not public API; the tests hold the block's search and pieces
+// to the table's own (monte_carlo_table_test.cpp).
 #pragma once
 
 #include <algorithm>
