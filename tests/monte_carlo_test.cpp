@@ -252,6 +252,21 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainOnAHeatedTable) {
   expect_kernel_matches_the_scalar_chain(Chain(edges), edges.conditions.temperatures(), 256, 64, 1, "table 0..50");
 }
 
+TEST(MonteCarloKernel, AgreesWithTheScalarChainOnASteinhartHartSensor) {
+  // A Steinhart–Hart sensor's element in a loop of its own (the chain's
+  // closed form, then the unit's stretch, shift and drift as SensorUnit
+  // takes them, monte_carlo_reading.cpp): the default design with the
+  // published 10 kOhm coefficients (the scenario's defaults), R25 and B
+  // tolerances, heated by up to a quarter kelvin on a 16-bit ADC without
+  // output rounding, in service and at end of life (a 2 % drift).
+  const Design d = design_with({{"sensor.model", "steinhart-hart"}, {"divider.r_fixed", "10k"}, {"divider.duty", "100%"},
+                                {"sensor.dissipation", "1mW/K"}, {"adc.bits", "16"}, {"firmware.resolution", "0"},
+                                {"sensor.drift", "2%"}, {"conditions.t_step", "3"}});
+  expect_kernel_matches_the_scalar_chain(Chain(d), d.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart");
+  const Design life = at_end_of_life(d);
+  expect_kernel_matches_the_scalar_chain(Chain(life), life.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart, life");
+}
+
 TEST(MonteCarloKernel, AgreesWithTheScalarChainAtEndOfLife) {
   // Drift over life folded into its part's deviation (chain/drift.hpp): the
   // kernel's rows and the scalar chain must fold it alike. An absolute

@@ -81,7 +81,7 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
       b.ln_shift[u] += std::log1p(drift);
   }
-  if (c.table)
+  if (c.table || c.d->sensor.kind == SensorKind::steinhart_hart)
     for (int u = 0; u < block_size; ++u) {
       b.ln_r25[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
       b.ln_drift[u] = std::log1p(b.dev[static_cast<int>(Source::sensor_drift)][u]);

@@ -62,7 +62,8 @@ struct BlockUnits {
   int count = 0;
   alignas(64) double dev[source_count][block_size];
   alignas(64) double ln_shift[block_size];  // ln(1 + δR) of each unit (NTC)
-  // A table's units: ln(1 + δR) and ln(1 + drift), apart (SensorUnit's shift_ and drift_shift_).
+  // A table's or a Steinhart–Hart sensor's units: ln(1 + δR) and ln(1 +
+  // drift), apart (SensorUnit's shift_ and drift_shift_).
   alignas(64) double ln_r25[block_size];
   alignas(64) double ln_drift[block_size];
   alignas(64) double cal_reported[2][block_size];

@@ -326,7 +326,7 @@ void table_pieces_ln(const TablePieces& k, const double* __restrict xs, const do
   const TableView t(TableView(k), xs, ys, ss, sys, sss);
   for (int u = 0; u < block_size; ++u) {
     const double unit =
-        table_unit_ln(table_ln_at<Limits>(t, piece[u], v[u], z[u]), ln_r0, shift[u], 1.0 + d_beta[u], drift[u]);
+        ntc_unit_ln(table_ln_at<Limits>(t, piece[u], v[u], z[u]), ln_r0, shift[u], 1.0 + d_beta[u], drift[u]);
     l[u] = inside[u] != 0.0 ? unit : 0.0;
   }
 }
@@ -434,7 +434,7 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
     const bool accept =
         (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance) & inside & same_piece;
     const double l_new =
-        table_unit_ln(table_ln_at<Limits>(t, i, v_new, zu), ln_r0, shift[u], stretch, drift[u]);
+        ntc_unit_ln(table_ln_at<Limits>(t, i, v_new, zu), ln_r0, shift[u], stretch, drift[u]);
     const bool active = moving[u] != 0.0;
     te_io[u] = !active ? te : accept ? te_newton : next;
     rise_prev[u] = active ? step : rise_prev[u];
@@ -461,7 +461,8 @@ int table_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, c
 // whose sensor cannot be read there is marked out of table. Inlined at both
 // calls, as every stage is, so that the compiler sees the scratch arrays as
 // read_block's own and vectorises without run-time alias checks. Returns
-// whether it may have marked a unit (a beta sensor never does).
+// whether it may have marked a unit (a beta or Steinhart–Hart sensor never
+// does).
 [[gnu::always_inline]] inline bool element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   bool marked = false;
   if (c.beta_fast) {
@@ -479,16 +480,16 @@ int table_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, c
   } else if (c.table) {
     marked = table_ln_resistance(c, b, s);
   } else {
-    const SensorSettings& sensor = c.d->sensor;
-    for (int u = 0; u < block_size; ++u) {
-      const SensorUnit unit(sensor, c.chain->sensor_curve(), row(b, Source::r25)[u], row(b, Source::beta)[u],
-                            row(b, Source::rtd_class)[u], row(b, Source::table_spread)[u],
-                            row(b, Source::sensor_drift)[u]);
-      const auto l = unit.ln_resistance(s.te[u]);
-      if (!l) s.status[u] = static_cast<std::uint8_t>(Status::out_of_table);
-      s.r_el[u] = l ? *l : 0.0;
-    }
-    marked = true;
+    // Steinhart–Hart, the one kind left: the curve's closed form (the
+    // chain's own function, ntc.cpp; its cube roots keep this loop scalar)
+    // and the unit's stretch, shift and drift as SensorUnit takes them, with
+    // ln(1 + δR) and ln(1 + drift) taken once a block (draw_block). The curve
+    // has a value at every temperature: nothing to mark.
+    const SteinhartHart sh = c.d->sensor.sh;
+    const double ln_r0 = c.chain->sensor_curve().ln_r0;
+    const double* d_beta = row(b, Source::beta);
+    for (int u = 0; u < block_size; ++u)
+      s.r_el[u] = ntc_unit_ln(ln_resistance(sh, s.te[u]), ln_r0, b.ln_r25[u], 1.0 + d_beta[u], b.ln_drift[u]);
   }
   Eigen::Map<Block> m(s.r_el);
   m = m.exp();

@@ -138,10 +138,10 @@ inline double table_ln_slope_at(const TableView& t, int i, double v, double z) {
   return d;
 }
 
-// The unit's ln R from the table's (SensorUnit::ln_resistance): the
-// stretch about T0 and the shift, then the drift, skipped where they are 0
-// as there.
-inline double table_unit_ln(double l, double ln_r0, double shift, double stretch, double drift) {
+// An NTC unit's ln R from its curve's, a table's or a Steinhart–Hart
+// curve's (SensorUnit::ln_resistance): the stretch about T0 and the shift,
+// then the drift, skipped where they are 0 as there.
+inline double ntc_unit_ln(double l, double ln_r0, double shift, double stretch, double drift) {
   const double unit = (shift == 0.0 && stretch == 1.0) ? l : ln_r0 + shift + stretch * (l - ln_r0);
   return drift == 0.0 ? unit : unit + drift;
 }
