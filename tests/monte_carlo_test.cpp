@@ -255,16 +255,26 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainOnAHeatedTable) {
 TEST(MonteCarloKernel, AgreesWithTheScalarChainOnASteinhartHartSensor) {
   // A Steinhart–Hart sensor's element in a loop of its own (the chain's
   // closed form, then the unit's stretch, shift and drift as SensorUnit
-  // takes them, monte_carlo_reading.cpp): the default design with the
-  // published 10 kOhm coefficients (the scenario's defaults), R25 and B
-  // tolerances, heated by up to a quarter kelvin on a 16-bit ADC without
-  // output rounding, in service and at end of life (a 2 % drift).
-  const Design d = design_with({{"sensor.model", "steinhart-hart"}, {"divider.r_fixed", "10k"}, {"divider.duty", "100%"},
-                                {"sensor.dissipation", "1mW/K"}, {"adc.bits", "16"}, {"firmware.resolution", "0"},
-                                {"sensor.drift", "2%"}, {"conditions.t_step", "3"}});
+  // takes them) and its Newton first step (monte_carlo_reading.cpp,
+  // steinhart_hart_newton_first): the default design with the published
+  // 10 kOhm coefficients (the scenario's defaults), R25 and B tolerances,
+  // heated by up to a quarter kelvin on a 16-bit ADC without output
+  // rounding, in service and at end of life (a 2 % drift), and from 6 V
+  // over 21..61 °C in 7 K steps (some 0.9 K, the sweep's first step as far
+  // from the solution).
+  // Leaving the drift out fails it at 2209 points; accepting every Newton
+  // step whatever its error term, at 16.
+  const testing::Overrides sh = {{"sensor.model", "steinhart-hart"}, {"divider.r_fixed", "10k"},
+                                 {"divider.duty", "100%"},           {"sensor.dissipation", "1mW/K"},
+                                 {"adc.bits", "16"},                 {"firmware.resolution", "0"}};
+  const Design d = design_with(testing::with_extra(sh, {{"sensor.drift", "2%"}, {"conditions.t_step", "3"}}));
   expect_kernel_matches_the_scalar_chain(Chain(d), d.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart");
   const Design life = at_end_of_life(d);
   expect_kernel_matches_the_scalar_chain(Chain(life), life.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart, life");
+  const Design hot = design_with(testing::with_extra(
+      sh, {{"supply.v_excitation", "6V"}, {"conditions.t_min", "21"}, {"conditions.t_max", "61"},
+           {"conditions.t_step", "7"}, {"requirement.window_min", "30"}, {"requirement.window_max", "50"}}));
+  expect_kernel_matches_the_scalar_chain(Chain(hot), hot.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart, 6 V");
 }
 
 TEST(MonteCarloKernel, AgreesWithTheScalarChainAtEndOfLife) {

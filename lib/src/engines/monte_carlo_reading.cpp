@@ -209,7 +209,8 @@ struct ReadingScratch {
   alignas(64) double dln_r[block_size];      // ln R's change over the Newton step
   alignas(64) double r_el[block_size];       // the element's resistance at te
   alignas(64) std::int32_t piece[block_size];  // a table's piece at te (table_ln_resistance)
-  alignas(64) double ln_new[block_size];     // a table's ln R after the Newton step
+  alignas(64) double ln_new[block_size];     // a table's or Steinhart–Hart's ln R after the Newton step
+  alignas(64) double ln_curve[block_size];   // a Steinhart–Hart curve's ln R at te, before the unit's
   alignas(64) double xs[block_size];         // the ADC's static transfer, LSB
   alignas(64) double sum[block_size];        // the reading: the sum of the M samples
   alignas(64) double sat[block_size];        // 1 where a sample was clamped at a rail
@@ -456,6 +457,66 @@ int table_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, c
               gain, s.te, s.rise_prev, moving, s.ln_new);
 }
 
+// The first step of the self-heating solve for a Steinhart–Hart sensor
+// without leads or a parallel resistor: the table's Newton step
+// (table_newton_first) with the curve's slope in closed form. With l the
+// curve's ln R (1/T = A + B·l + C·l³, B > 0 and C ≥ 0 as the reader
+// requires) and g = B + 3C·l² ≥ B: dl/dT = −1/(T²·g), so |dl/dT| ≤ w²/B,
+// and d²l/dT² = 2/(T³·g) + 6C·l·(dl/dT)/(T²·g²), so |d²l/dT²| ≤ 2w³/B +
+// 6C·|l|·w⁴/B³, w a bound of 1/T and |l| of the curve's ln R on I; the
+// unit's ln R is the stretch times these. The same acceptance as the
+// table's, without its range and pieces: the curve has a value at every
+// temperature, and ln R at the iterate is the chain's own function there.
+int steinhart_hart_newton_first(const SteinhartHart sh, double ln_r0, double t_k, const double* __restrict d_beta,
+                                const double* __restrict shift, const double* __restrict drift,
+                                const double* __restrict ln_curve, const double* __restrict r_el,
+                                const double* __restrict rf, const double* __restrict vexc,
+                                const double* __restrict gain, double* __restrict te_io, double* __restrict rise_prev,
+                                double* __restrict moving, double* __restrict ln_new) {
+  int open = 0;
+  for (int u = 0; u < block_size; ++u) {
+    const double r = r_el[u];
+    const double sum = rf[u] + r;
+    const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
+    const double x = r / sum;
+    const double te = te_io[u], v = 1.0 / te;
+    const double l = ln_curve[u], stretch = 1.0 + d_beta[u];
+    const double l1 = -stretch * v * v / (sh.b + 3.0 * sh.c * l * l);  // d ln R/dT_e
+    const double slope = rise * (1.0 - 2.0 * x) * l1;                  // d rise/dT_e
+    const double next = t_k + rise;
+    const double step = next - te;
+    const double delta = step / (1.0 - slope);
+    const double te_newton = te + delta;
+    // The error term over I = T_e ± 4|δ|, where 1/T ≤ w (as the table's).
+    const double reach = 4.0 * std::fabs(delta), w = v * (1.0 + 2.0 * reach * v);
+    const double curve_l1 = w * w / sh.b;
+    const double l_max = std::fabs(l) + curve_l1 * reach;
+    const double big_l1 = std::fabs(stretch) * curve_l1 * (1.0 + 1e-6);
+    const double big_l2 =
+        std::fabs(stretch) * (2.0 * w * w * w / sh.b + 6.0 * sh.c * l_max * curve_l1 * curve_l1 / sh.b) * (1.0 + 1e-6);
+    const double a = big_l1 * reach;  // |Δ ln R| over I
+    const double rise_max = rise * (1.0 + 2.0 * a);
+    const double q = rise_max * big_l1;
+    const double error = 9.0 * rise_max * (big_l1 * big_l1 + big_l2) * delta * delta;
+    const bool accept = (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance);
+    const double l_new = ntc_unit_ln(ln_resistance(sh, te_newton), ln_r0, shift[u], stretch, drift[u]);
+    const bool active = moving[u] != 0.0;
+    te_io[u] = !active ? te : accept ? te_newton : next;
+    rise_prev[u] = active ? step : rise_prev[u];
+    ln_new[u] = (active & accept) ? l_new : 0.0;
+    moving[u] = (active & !accept) ? 1.0 : 0.0;
+    open += moving[u] != 0.0;
+  }
+  return open;
+}
+
+int steinhart_hart_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, const double* gain,
+                                ReadingScratch& s, double* moving) {
+  return steinhart_hart_newton_first(c.d->sensor.sh, c.chain->sensor_curve().ln_r0, t_k, row(b, Source::beta),
+                                     b.ln_r25, b.ln_drift, s.ln_curve, s.r_el, s.rs, s.vexc, gain, s.te, s.rise_prev,
+                                     moving, s.ln_new);
+}
+
 // The element's R at te[] into r_el[]: ln R, then a vector exp (an RTD's
 // R directly, above). A unit
 // whose sensor cannot be read there is marked out of table. Inlined at both
@@ -488,8 +549,11 @@ int table_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, c
     const SteinhartHart sh = c.d->sensor.sh;
     const double ln_r0 = c.chain->sensor_curve().ln_r0;
     const double* d_beta = row(b, Source::beta);
-    for (int u = 0; u < block_size; ++u)
-      s.r_el[u] = ntc_unit_ln(ln_resistance(sh, s.te[u]), ln_r0, b.ln_r25[u], 1.0 + d_beta[u], b.ln_drift[u]);
+    for (int u = 0; u < block_size; ++u) {
+      const double l = ln_resistance(sh, s.te[u]);
+      s.ln_curve[u] = l;  // for the Newton step's slope
+      s.r_el[u] = ntc_unit_ln(l, ln_r0, b.ln_r25[u], 1.0 + d_beta[u], b.ln_drift[u]);
+    }
   }
   Eigen::Map<Block> m(s.r_el);
   m = m.exp();
@@ -523,7 +587,8 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
     gain = medium_gain;
   }
   const bool simple = r_lead == 0.0 && !has_par;
-  const bool newton = simple && (c.beta_fast || c.table);
+  const bool steinhart_hart = c.d->sensor.kind == SensorKind::steinhart_hart;
+  const bool newton = simple && (c.beta_fast || c.table || steinhart_hart);
   const double* b_unit = b.beta_unit;
   bool resolved_at_first = false, marked_any = false;
   for (int it = 1; it <= self_heating_max_iterations; ++it) {
@@ -534,7 +599,8 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
     if (marked)
       for (int u = 0; u < block_size; ++u) moving[u] = s.status[u] == 0 ? moving[u] : 0.0;
     const int open =
-        (newton && it == 1 && c.table)
+        (newton && it == 1 && steinhart_hart) ? steinhart_hart_newton_block(c, b, t_k, gain, s, moving)
+        : (newton && it == 1 && c.table)
             ? table_newton_block(c, b, t_k, gain, s, moving)
         : (newton && it == 1)
             ? self_heating_newton_first(t_k, s.r_el, s.rs, s.vexc, gain, b_unit, s.inv_te, s.te, s.rise_prev, moving,
@@ -572,10 +638,11 @@ void element_at_solution(const RunConstants& c, const BlockUnits& b, bool resolv
     element_resistance(c, b, s);
     return;
   }
-  if (c.table) {
-    // A table's units: the table's ln R at the new T_e, from the step
-    // (table_newton_first); 0 for a unit marked out of table, whose R is 1
-    // as element_resistance leaves it.
+  if (c.table || c.d->sensor.kind == SensorKind::steinhart_hart) {
+    // A table's or Steinhart–Hart units: the curve's ln R at the new T_e,
+    // from the step (table_newton_first, steinhart_hart_newton_first); 0
+    // for a unit marked out of table, whose R is 1 as element_resistance
+    // leaves it.
     Eigen::Map<Block> m(s.r_el);
     m = Eigen::Map<const Block>(s.ln_new).exp();
     return;
