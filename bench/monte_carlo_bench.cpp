@@ -114,4 +114,31 @@ void BM_MonteCarloBlockKernelDefaultDesignPt1000InPlace(benchmark::State& state)
 }
 BENCHMARK(BM_MonteCarloBlockKernelDefaultDesignPt1000InPlace)->Unit(benchmark::kMicrosecond);
 
+// The freezer probe read from its R-T table with limit columns
+// (scenarios/freezer_probe_limits.ini: 12 bits, averaging 4, 101
+// temperatures), and the same design with a beta NTC in its place whose
+// curve and spread are the ones `thermargin fit` gives for that table (the
+// two-point beta through 25 and 85 degC, and the r25 and beta tolerances
+// closest to the limit columns). Their ratio is what the table's PCHIP and
+// its spread cost over a beta curve in the same chain (issue 19's bound:
+// within 1.5x; docs/engines.md, "A table sensor at NTC speed").
+Scenario freezer_table_scenario() {
+  Scenario s;
+  s.load_file(THERMARGIN_SOURCE_DIR "/scenarios/freezer_probe_limits.ini");
+  return s;
+}
+
+void BM_MonteCarloBlockKernelFreezerTable(benchmark::State& state) {
+  run_block_kernel(state, build_design(freezer_table_scenario()));
+}
+BENCHMARK(BM_MonteCarloBlockKernelFreezerTable)->Unit(benchmark::kMicrosecond);
+
+void BM_MonteCarloBlockKernelFreezerBetaInPlace(benchmark::State& state) {
+  Scenario s = freezer_table_scenario();
+  set_all(s, {{"sensor.model", "beta"}, {"sensor.r25", "10k"}, {"sensor.beta", "3972.53"},
+              {"sensor.r25_tol", "0.777%"}, {"sensor.beta_tol", "0.914%"}});
+  run_block_kernel(state, build_design(s));
+}
+BENCHMARK(BM_MonteCarloBlockKernelFreezerBetaInPlace)->Unit(benchmark::kMicrosecond);
+
 }  // namespace

@@ -212,6 +212,71 @@ TEST(MonteCarloKernel, AgreesWithTheScalarChainOnAnRtdHeatedByKelvins) {
   }
 }
 
+TEST(MonteCarloKernel, AgreesWithTheScalarChainOnAHeatedTable) {
+  // A table sensor without leads or a parallel resistor takes a Newton step
+  // first, accepted only where its error term is within the solve's 1e-9 K,
+  // its iterate inside the table and in the piece it started from
+  // (monte_carlo_reading.cpp, table_newton_first); the others iterate as
+  // before, and a unit heated by more than 1 K is read by the scalar chain.
+  // The freezer's table with its limit columns, fully on, 16 bits so that a
+  // thousandth of a kelvin shows: against its own 100 kOhm from 3.3 V (some
+  // 10 mK of rise, nearly every step accepted), against 10 kOhm (a quarter
+  // kelvin, most refused; 6 V, up to 0.9 K; 10 V, over 1 K at the warm
+  // end), and from 20 °C, where the sweep's first step starts 0.9 K from
+  // the solution (a Newton step accepted there regardless of its error term
+  // is off by some 3e-4 K, a quarter of an LSB); and a table without limits
+  // that ends where the sweep ends (0 and 50 °C), so that units leave it.
+  // Each reading must match the scalar chain's independent fixed-point
+  // solve. Reading R at the old temperature instead of the iterate makes it
+  // fail at 10 points.
+  const testing::Overrides heated = {{"divider.duty", "100%"}, {"sensor.dissipation", "1mW/K"}, {"adc.bits", "16"},
+                                     {"firmware.resolution", "0"}};
+  const std::vector<std::pair<std::string, testing::Overrides>> cases = {
+      {"100 kOhm, 3.3 V", {{"divider.r_fixed", "100k"}, {"supply.v_excitation", "3.3V"}}},
+      {"10 kOhm, 3.3 V", {{"divider.r_fixed", "10k"}, {"supply.v_excitation", "3.3V"}}},
+      {"10 kOhm, 6 V, 7 K steps",
+       {{"divider.r_fixed", "10k"}, {"supply.v_excitation", "6V"}, {"conditions.t_step", "7"}}},
+      {"10 kOhm, 10 V, 7 K steps",
+       {{"divider.r_fixed", "10k"}, {"supply.v_excitation", "10V"}, {"conditions.t_step", "7"}}},
+      {"10 kOhm, 6 V, 21..61 degC",
+       {{"divider.r_fixed", "10k"}, {"supply.v_excitation", "6V"}, {"conditions.t_min", "21"},
+        {"conditions.t_max", "61"}, {"conditions.t_step", "7"}, {"requirement.window_min", "30"},
+        {"requirement.window_max", "50"}}},
+  };
+  for (const auto& [label, o] : cases) {
+    const Design d = design_with(testing::with_extra(heated, o), testing::scenario_path("freezer_probe_limits.ini"));
+    expect_kernel_matches_the_scalar_chain(Chain(d), d.conditions.temperatures(), 0, 64, 1, "freezer table, " + label);
+  }
+  const Design edges = design_with(testing::table_sensor_0_to_50(testing::with_extra(
+      heated, {{"divider.r_fixed", "10k"}, {"supply.v_excitation", "3.3V"}, {"conditions.t_step", "0.5"}})));
+  expect_kernel_matches_the_scalar_chain(Chain(edges), edges.conditions.temperatures(), 256, 64, 1, "table 0..50");
+}
+
+TEST(MonteCarloKernel, AgreesWithTheScalarChainOnASteinhartHartSensor) {
+  // A Steinhart–Hart sensor's element in a loop of its own (the chain's
+  // closed form, then the unit's stretch, shift and drift as SensorUnit
+  // takes them) and its Newton first step (monte_carlo_reading.cpp,
+  // steinhart_hart_newton_first): the default design with the published
+  // 10 kOhm coefficients (the scenario's defaults), R25 and B tolerances,
+  // heated by up to a quarter kelvin on a 16-bit ADC without output
+  // rounding, in service and at end of life (a 2 % drift), and from 6 V
+  // over 21..61 °C in 7 K steps (some 0.9 K, the sweep's first step as far
+  // from the solution).
+  // Leaving the drift out fails it at 2209 points; accepting every Newton
+  // step whatever its error term, at 16.
+  const testing::Overrides sh = {{"sensor.model", "steinhart-hart"}, {"divider.r_fixed", "10k"},
+                                 {"divider.duty", "100%"},           {"sensor.dissipation", "1mW/K"},
+                                 {"adc.bits", "16"},                 {"firmware.resolution", "0"}};
+  const Design d = design_with(testing::with_extra(sh, {{"sensor.drift", "2%"}, {"conditions.t_step", "3"}}));
+  expect_kernel_matches_the_scalar_chain(Chain(d), d.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart");
+  const Design life = at_end_of_life(d);
+  expect_kernel_matches_the_scalar_chain(Chain(life), life.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart, life");
+  const Design hot = design_with(testing::with_extra(
+      sh, {{"supply.v_excitation", "6V"}, {"conditions.t_min", "21"}, {"conditions.t_max", "61"},
+           {"conditions.t_step", "7"}, {"requirement.window_min", "30"}, {"requirement.window_max", "50"}}));
+  expect_kernel_matches_the_scalar_chain(Chain(hot), hot.conditions.temperatures(), 0, 64, 1, "Steinhart-Hart, 6 V");
+}
+
 TEST(MonteCarloKernel, AgreesWithTheScalarChainAtEndOfLife) {
   // Drift over life folded into its part's deviation (chain/drift.hpp): the
   // kernel's rows and the scalar chain must fold it alike. An absolute

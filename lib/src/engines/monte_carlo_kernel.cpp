@@ -54,14 +54,7 @@ RunConstants make_constants(const Chain& chain, ConversionCache* cache) {
     if (auto l = nominal_ln_resistance(d.sensor, t0_kelvin)) c.ln_r0 = *l;
   c.rtd = d.sensor.kind == SensorKind::rtd;
   if (c.rtd && d.sensor.rtd_class) c.rtd_line = class_line(*d.sensor.rtd_class);
-  if (d.sensor.kind == SensorKind::table) {
-    const RtTable& table = *d.sensor.table;
-    c.table_curve = &table.curve_segments();
-    c.table_upper = table.spread_segments(true);
-    c.table_lower = table.spread_segments(false);
-    c.table_lo = table.t_min_kelvin();
-    c.table_hi = table.t_max_kelvin();
-  }
+  if (d.sensor.kind == SensorKind::table) c.table = std::make_shared<const TablePieces>(table_pieces(*d.sensor.table));
   for (const auto& in : d.inputs)
     if (in.source != Source::board_temperature && in.source != Source::adc_precharge)
       c.active.push_back(static_cast<int>(in.source));
@@ -88,7 +81,7 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
     if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
       b.ln_shift[u] += std::log1p(drift);
   }
-  if (c.table_curve)
+  if (c.table || c.d->sensor.kind == SensorKind::steinhart_hart)
     for (int u = 0; u < block_size; ++u) {
       b.ln_r25[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
       b.ln_drift[u] = std::log1p(b.dev[static_cast<int>(Source::sensor_drift)][u]);

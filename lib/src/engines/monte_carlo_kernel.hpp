@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "monte_carlo_streams.hpp"
+#include "monte_carlo_table.hpp"
 #include "thermargin/chain/acquisition.hpp"
 #include "thermargin/chain/chain.hpp"
 #include "thermargin/chain/rtd.hpp"
@@ -38,12 +39,10 @@ struct RunConstants {
   bool precharge_any = false;        // the start of C_s drawn per reading
   bool rtd = false;                  // an RTD: its curve and class spread vectorised
   ClassLine rtd_line{};              // its class's bound (0 without a class)
-  // An R–T table: its interpolants as pieces (rt_table.hpp), vectorised
-  // like the RTD's curve; the limit columns' null without them.
-  const HermiteSegments* table_curve = nullptr;
-  const HermiteSegments* table_upper = nullptr;
-  const HermiteSegments* table_lower = nullptr;
-  double table_lo = 0.0, table_hi = 0.0;  // K, the table's range
+  // An R–T table: its interpolants as arrays the block's loops read
+  // (monte_carlo_table.hpp), vectorised like the RTD's curve; null for
+  // every other sensor.
+  std::shared_ptr<const TablePieces> table{};
 };
 
 // The table of every possible reading's conversion when the firmware has at
@@ -63,7 +62,8 @@ struct BlockUnits {
   int count = 0;
   alignas(64) double dev[source_count][block_size];
   alignas(64) double ln_shift[block_size];  // ln(1 + δR) of each unit (NTC)
-  // A table's units: ln(1 + δR) and ln(1 + drift), apart (SensorUnit's shift_ and drift_shift_).
+  // A table's or a Steinhart–Hart sensor's units: ln(1 + δR) and ln(1 +
+  // drift), apart (SensorUnit's shift_ and drift_shift_).
   alignas(64) double ln_r25[block_size];
   alignas(64) double ln_drift[block_size];
   alignas(64) double cal_reported[2][block_size];

@@ -13,6 +13,7 @@
 #include <Eigen/Core>
 
 #include "monte_carlo_kernel.hpp"
+#include "monte_carlo_table.hpp"
 #include "thermargin/chain/divider.hpp"
 #include "thermargin/chain/self_heating.hpp"
 #include "thermargin/chain/sensor.hpp"
@@ -203,10 +204,13 @@ struct ReadingScratch {
   alignas(64) double vexc[block_size];       // the excitation
   alignas(64) double vref[block_size];       // the ADC's reference
   alignas(64) double te[block_size];         // the element's temperature, K
-  alignas(64) double inv_te[block_size];     // 1/te, a beta sensor's (element_resistance)
+  alignas(64) double inv_te[block_size];     // 1/te, a beta or table sensor's (element_resistance)
   alignas(64) double rise_prev[block_size];  // the self-heating solve's last step
   alignas(64) double dln_r[block_size];      // ln R's change over the Newton step
   alignas(64) double r_el[block_size];       // the element's resistance at te
+  alignas(64) std::int32_t piece[block_size];  // a table's piece at te (table_ln_resistance)
+  alignas(64) double ln_new[block_size];     // a table's or Steinhart–Hart's ln R after the Newton step
+  alignas(64) double ln_curve[block_size];   // a Steinhart–Hart curve's ln R at te, before the unit's
   alignas(64) double xs[block_size];         // the ADC's static transfer, LSB
   alignas(64) double sum[block_size];        // the reading: the sum of the M samples
   alignas(64) double sat[block_size];        // 1 where a sample was clamped at a rail
@@ -309,18 +313,36 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
   return true;
 }
 
+// The table's unit ln R at v[] (1/T) in piece[] into l[] where inside[] is
+// set, 0 elsewhere (table_ln_resistance). The table's arrays as __restrict
+// parameters (TableView), so that the loop may gather from them while it
+// stores to the scratch (it vectorises).
+template <bool Limits>
+void table_pieces_ln(const TablePieces& k, const double* __restrict xs, const double* __restrict ys,
+                     const double* __restrict ss, const double* __restrict sys, const double* __restrict sss,
+                     double ln_r0, const double* __restrict z, const double* __restrict d_beta,
+                     const double* __restrict shift, const double* __restrict drift,
+                     const std::int32_t* __restrict piece, const double* __restrict v,
+                     const double* __restrict inside, double* __restrict l) {
+  const TableView t(TableView(k), xs, ys, ss, sys, sss);
+  for (int u = 0; u < block_size; ++u) {
+    const double unit =
+        ntc_unit_ln(table_ln_at<Limits>(t, piece[u], v[u], z[u]), ln_r0, shift[u], 1.0 + d_beta[u], drift[u]);
+    l[u] = inside[u] != 0.0 ? unit : 0.0;
+  }
+}
+
 // A table sensor's ln R at te[] into r_el[] (SensorUnit::ln_resistance,
 // sensor.cpp): the table's PCHIP and, with limit columns, the unit's share
 // of its spread, then the stretch about T0 and the drift, the same
-// operations in the same order, in a loop without branches. A unit outside
-// the table is marked out of table (ln R = 0, as the general loop leaves
-// it), in a loop of its own and only when there is one. Returns whether it
-// marked any.
+// operations in the same order, in loops without branches
+// (monte_carlo_table.hpp): 1/T, each unit's piece (kept in piece[] for the
+// Newton step), the pieces. A unit outside the table is marked out of table
+// (ln R = 0, as the general loop leaves it), in a loop of its own and only
+// when there is one. Returns whether it marked any.
 [[gnu::always_inline]] inline bool table_ln_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
-  const HermiteSegments& curve = *c.table_curve;
-  const HermiteSegments* upper = c.table_upper;
-  const HermiteSegments* lower = c.table_lower;
-  const double t_lo = c.table_lo, t_hi = c.table_hi, ln_r0 = c.chain->sensor_curve().ln_r0;
+  const double t_lo = c.table->t_lo, t_hi = c.table->t_hi, ln_r0 = c.chain->sensor_curve().ln_r0;
+  const bool limits = c.table->limits;
   const double* z = row(b, Source::table_spread);
   const double* d_beta = row(b, Source::beta);
   alignas(64) double inside[block_size];
@@ -328,17 +350,15 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
     const double t = s.te[u];
     // RtTable::covers; a unit outside is evaluated at the range's end, then dropped.
     const bool in = (t >= t_lo) & (t <= t_hi);
-    const double x = 1.0 / (in ? t : t_lo);
-    double l = curve.at(x);
+    s.inv_te[u] = 1.0 / (in ? t : t_lo);  // v = 1/T, kept for the Newton step
     // A spread without limit columns has no value (RtTable::spread): out of table.
-    const bool spread = z[u] != 0.0;
-    const bool readable = in & (!spread | (upper != nullptr));
-    if (spread && upper) l += z[u] * (z[u] > 0.0 ? upper : lower)->at(x);
-    const double shift = b.ln_r25[u], stretch = 1.0 + d_beta[u], drift = b.ln_drift[u];
-    const double unit = (shift == 0.0 && stretch == 1.0) ? l : ln_r0 + shift + stretch * (l - ln_r0);
-    s.r_el[u] = readable ? (drift == 0.0 ? unit : unit + drift) : 0.0;
-    inside[u] = readable ? 1.0 : 0.0;
+    inside[u] = (in & ((z[u] == 0.0) | limits)) ? 1.0 : 0.0;
   }
+  pieces_block(*c.table, s.inv_te, s.piece);
+  const TablePieces& k = *c.table;
+  const auto pieces = limits ? table_pieces_ln<true> : table_pieces_ln<false>;
+  pieces(k, k.x.data(), k.y.data(), k.s.data(), k.sy.data(), k.ss.data(), ln_r0, z, d_beta, b.ln_r25, b.ln_drift,
+         s.piece, s.inv_te, inside, s.r_el);
   int out = 0;
   for (int u = 0; u < block_size; ++u) out += inside[u] == 0.0;
   if (out == 0) return false;
@@ -347,12 +367,163 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
   return true;
 }
 
+// The first step of the self-heating solve for a table sensor without
+// leads or a parallel resistor: the beta sensor's Newton step
+// (self_heating_newton_first) with ln R and its slope from the unit's piece
+// of the table (table_ln_resistance kept it). Newton's error term again,
+// with bounds that hold over all of I = T_e ± 4|δ|: |d ln R/dT| ≤ L1 =
+// |stretch|·m1·w², |d² ln R/dT²| ≤ L2 = |stretch|·(m2·w⁴ + 2·m1·w³), w a
+// bound of 1/T on I (m1, m2 the table's bounds of |p'|, |p''|, spread
+// included: PCHIP's p' is continuous and p'' bounded on every piece, which
+// is all the error term asks), rise at most rise·(1 + 2·L1·4|δ|) on I (the
+// power of a resistor fed by a linear network moves by at most |d ln R|),
+// so |F''| ≤ rise_max·(L1² + L2) and the loop gain q ≤ rise_max·L1 on I.
+// With q ≤ ½ the root is within 3|δ| of T_e, inside I, and the iterate
+// within 4.5·|F''|/(1 − q)·δ² ≤ 9·|F''|·δ² of it (the bounds' widening by
+// 1e-6 covers the rounding of this arithmetic). A unit is accepted when
+// that is within the solve's tolerance, I lies in the table, the iterate is
+// more than 1e-6 K inside it and stays in the same piece: its ln R there is
+// then the piece's own value (table_ln_at, to the bit what the table gives
+// at that T_e), kept in ln_new for the element's R after the solve. The
+// others take the plain fixed-point step and go on as before. The table's
+// arrays come as __restrict parameters (TableView), so that the loop may
+// gather from them while it stores to the scratch (it vectorises).
+template <bool Limits>
+int table_newton_first(const TablePieces& k, const double* __restrict xs, const double* __restrict ys,
+                       const double* __restrict ss, const double* __restrict sys, const double* __restrict sss,
+                       double ln_r0, double t_k, const double* __restrict z, const double* __restrict d_beta,
+                       const double* __restrict shift, const double* __restrict drift,
+                       const std::int32_t* __restrict piece, const double* __restrict inv_te,
+                       const double* __restrict r_el,
+                       const double* __restrict rf, const double* __restrict vexc, const double* __restrict gain,
+                       double* __restrict te_io, double* __restrict rise_prev, double* __restrict moving,
+                       double* __restrict ln_new) {
+  const TableView t(TableView(k), xs, ys, ss, sys, sss);
+  const double t_lo = k.t_lo, t_hi = k.t_hi;
+  const double cm1 = k.curve_m1, cm2 = k.curve_m2, um1 = k.upper_m1, um2 = k.upper_m2, lm1 = k.lower_m1,
+               lm2 = k.lower_m2;
+  int open = 0;
+  for (int u = 0; u < block_size; ++u) {
+    const double r = r_el[u];
+    const double sum = rf[u] + r;
+    const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
+    const double x = r / sum;
+    const double te = te_io[u], v = inv_te[u];  // 1/T_e, as table_ln_resistance took it
+    const int i = piece[u];
+    const double zu = z[u], stretch = 1.0 + d_beta[u];
+    const double l1 = -stretch * table_ln_slope_at<Limits>(t, i, v, zu) * v * v;  // d ln R/dT_e
+    const double slope = rise * (1.0 - 2.0 * x) * l1;                               // d rise/dT_e
+    const double next = t_k + rise;
+    const double step = next - te;
+    const double delta = step / (1.0 - slope);
+    const double te_newton = te + delta;
+    // The error term over I, where 1/T ≤ w = v·(1 + 2·reach·v) (1/(1 − ε) ≤
+    // 1 + 2ε for ε ≤ ½).
+    const double reach = 4.0 * std::fabs(delta), t_min = te - reach, w = v * (1.0 + 2.0 * reach * v);
+    const double share = Limits ? std::fabs(zu) : 0.0;
+    const double m1 = std::fabs(stretch) * (cm1 + share * (zu > 0.0 ? um1 : lm1));
+    const double m2 = std::fabs(stretch) * (cm2 + share * (zu > 0.0 ? um2 : lm2));
+    const double big_l1 = m1 * w * w, big_l2 = (m2 * w + 2.0 * m1) * w * w * w;
+    const double a = big_l1 * reach;  // |Δ ln R| over I
+    const double rise_max = rise * (1.0 + 2.0 * a);
+    const double q = rise_max * big_l1;
+    const double f2 = rise_max * (big_l1 * big_l1 + big_l2);
+    const double error = 9.0 * f2 * delta * delta;  // 4.5·f2/(1 − q)·δ², q ≤ ½
+    const double v_new = 1.0 / te_newton;
+    const bool inside = (t_min >= t_lo) & (te + reach <= t_hi) & (te_newton >= t_lo + 1e-6) & (te_newton <= t_hi - 1e-6);
+    const bool same_piece = (v_new >= t.x[i]) & (v_new < t.x[i + 1]);
+    const bool accept =
+        (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance) & inside & same_piece;
+    const double l_new =
+        ntc_unit_ln(table_ln_at<Limits>(t, i, v_new, zu), ln_r0, shift[u], stretch, drift[u]);
+    const bool active = moving[u] != 0.0;
+    te_io[u] = !active ? te : accept ? te_newton : next;
+    rise_prev[u] = active ? step : rise_prev[u];
+    ln_new[u] = (active & accept) ? l_new : 0.0;
+    moving[u] = (active & !accept) ? 1.0 : 0.0;
+    open += moving[u] != 0.0;
+  }
+  return open;
+}
+
+int table_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, const double* gain, ReadingScratch& s,
+                       double* moving) {
+  const TablePieces& k = *c.table;
+  const double ln_r0 = c.chain->sensor_curve().ln_r0;
+  const auto step = k.limits ? table_newton_first<true> : table_newton_first<false>;
+  return step(k, k.x.data(), k.y.data(), k.s.data(), k.sy.data(), k.ss.data(), ln_r0, t_k,
+              row(b, Source::table_spread), row(b, Source::beta), b.ln_r25, b.ln_drift, s.piece, s.inv_te, s.r_el,
+              s.rs, s.vexc,
+              gain, s.te, s.rise_prev, moving, s.ln_new);
+}
+
+// The first step of the self-heating solve for a Steinhart–Hart sensor
+// without leads or a parallel resistor: the table's Newton step
+// (table_newton_first) with the curve's slope in closed form. With l the
+// curve's ln R (1/T = A + B·l + C·l³, B > 0 and C ≥ 0 as the reader
+// requires) and g = B + 3C·l² ≥ B: dl/dT = −1/(T²·g), so |dl/dT| ≤ w²/B,
+// and d²l/dT² = 2/(T³·g) + 6C·l·(dl/dT)/(T²·g²), so |d²l/dT²| ≤ 2w³/B +
+// 6C·|l|·w⁴/B³, w a bound of 1/T and |l| of the curve's ln R on I; the
+// unit's ln R is the stretch times these. The same acceptance as the
+// table's, without its range and pieces: the curve has a value at every
+// temperature, and ln R at the iterate is the chain's own function there.
+int steinhart_hart_newton_first(const SteinhartHart sh, double ln_r0, double t_k, const double* __restrict d_beta,
+                                const double* __restrict shift, const double* __restrict drift,
+                                const double* __restrict ln_curve, const double* __restrict r_el,
+                                const double* __restrict rf, const double* __restrict vexc,
+                                const double* __restrict gain, double* __restrict te_io, double* __restrict rise_prev,
+                                double* __restrict moving, double* __restrict ln_new) {
+  int open = 0;
+  for (int u = 0; u < block_size; ++u) {
+    const double r = r_el[u];
+    const double sum = rf[u] + r;
+    const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
+    const double x = r / sum;
+    const double te = te_io[u], v = 1.0 / te;
+    const double l = ln_curve[u], stretch = 1.0 + d_beta[u];
+    const double l1 = -stretch * v * v / (sh.b + 3.0 * sh.c * l * l);  // d ln R/dT_e
+    const double slope = rise * (1.0 - 2.0 * x) * l1;                  // d rise/dT_e
+    const double next = t_k + rise;
+    const double step = next - te;
+    const double delta = step / (1.0 - slope);
+    const double te_newton = te + delta;
+    // The error term over I = T_e ± 4|δ|, where 1/T ≤ w (as the table's).
+    const double reach = 4.0 * std::fabs(delta), w = v * (1.0 + 2.0 * reach * v);
+    const double curve_l1 = w * w / sh.b;
+    const double l_max = std::fabs(l) + curve_l1 * reach;
+    const double big_l1 = std::fabs(stretch) * curve_l1 * (1.0 + 1e-6);
+    const double big_l2 =
+        std::fabs(stretch) * (2.0 * w * w * w / sh.b + 6.0 * sh.c * l_max * curve_l1 * curve_l1 / sh.b) * (1.0 + 1e-6);
+    const double a = big_l1 * reach;  // |Δ ln R| over I
+    const double rise_max = rise * (1.0 + 2.0 * a);
+    const double q = rise_max * big_l1;
+    const double error = 9.0 * rise_max * (big_l1 * big_l1 + big_l2) * delta * delta;
+    const bool accept = (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance);
+    const double l_new = ntc_unit_ln(ln_resistance(sh, te_newton), ln_r0, shift[u], stretch, drift[u]);
+    const bool active = moving[u] != 0.0;
+    te_io[u] = !active ? te : accept ? te_newton : next;
+    rise_prev[u] = active ? step : rise_prev[u];
+    ln_new[u] = (active & accept) ? l_new : 0.0;
+    moving[u] = (active & !accept) ? 1.0 : 0.0;
+    open += moving[u] != 0.0;
+  }
+  return open;
+}
+
+int steinhart_hart_newton_block(const RunConstants& c, const BlockUnits& b, double t_k, const double* gain,
+                                ReadingScratch& s, double* moving) {
+  return steinhart_hart_newton_first(c.d->sensor.sh, c.chain->sensor_curve().ln_r0, t_k, row(b, Source::beta),
+                                     b.ln_r25, b.ln_drift, s.ln_curve, s.r_el, s.rs, s.vexc, gain, s.te, s.rise_prev,
+                                     moving, s.ln_new);
+}
+
 // The element's R at te[] into r_el[]: ln R, then a vector exp (an RTD's
 // R directly, above). A unit
 // whose sensor cannot be read there is marked out of table. Inlined at both
 // calls, as every stage is, so that the compiler sees the scratch arrays as
 // read_block's own and vectorises without run-time alias checks. Returns
-// whether it may have marked a unit (a beta sensor never does).
+// whether it may have marked a unit (a beta or Steinhart–Hart sensor never
+// does).
 [[gnu::always_inline]] inline bool element_resistance(const RunConstants& c, const BlockUnits& b, ReadingScratch& s) {
   bool marked = false;
   if (c.beta_fast) {
@@ -367,19 +538,22 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
     }
   } else if (c.rtd) {
     return rtd_resistance(c, b, s);
-  } else if (c.table_curve) {
+  } else if (c.table) {
     marked = table_ln_resistance(c, b, s);
   } else {
-    const SensorSettings& sensor = c.d->sensor;
+    // Steinhart–Hart, the one kind left: the curve's closed form (the
+    // chain's own function, ntc.cpp; its cube roots keep this loop scalar)
+    // and the unit's stretch, shift and drift as SensorUnit takes them, with
+    // ln(1 + δR) and ln(1 + drift) taken once a block (draw_block). The curve
+    // has a value at every temperature: nothing to mark.
+    const SteinhartHart sh = c.d->sensor.sh;
+    const double ln_r0 = c.chain->sensor_curve().ln_r0;
+    const double* d_beta = row(b, Source::beta);
     for (int u = 0; u < block_size; ++u) {
-      const SensorUnit unit(sensor, c.chain->sensor_curve(), row(b, Source::r25)[u], row(b, Source::beta)[u],
-                            row(b, Source::rtd_class)[u], row(b, Source::table_spread)[u],
-                            row(b, Source::sensor_drift)[u]);
-      const auto l = unit.ln_resistance(s.te[u]);
-      if (!l) s.status[u] = static_cast<std::uint8_t>(Status::out_of_table);
-      s.r_el[u] = l ? *l : 0.0;
+      const double l = ln_resistance(sh, s.te[u]);
+      s.ln_curve[u] = l;  // for the Newton step's slope
+      s.r_el[u] = ntc_unit_ln(l, ln_r0, b.ln_r25[u], 1.0 + d_beta[u], b.ln_drift[u]);
     }
-    marked = true;
   }
   Eigen::Map<Block> m(s.r_el);
   m = m.exp();
@@ -389,7 +563,7 @@ inline double rtd_curve(const CallendarVanDusen& k, const ClassLine& line, doubl
 // Stage 3, the element's temperature: the self-heating solve for the block
 // (or te = T without self-heating), starting from each unit's last rise.
 // Sets runaway where the solve diverged. Returns whether every unit was
-// solved by the first (Newton) step, its dln_r then set.
+// solved by the first (Newton) step, its dln_r (beta) or ln_new (table) then set.
 bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const ReadingAt& at, ReadingScratch& s) {
   const double t_k = at.t_k;
   for (int u = 0; u < block_size; ++u) {
@@ -413,7 +587,8 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
     gain = medium_gain;
   }
   const bool simple = r_lead == 0.0 && !has_par;
-  const bool newton = simple && c.beta_fast;
+  const bool steinhart_hart = c.d->sensor.kind == SensorKind::steinhart_hart;
+  const bool newton = simple && (c.beta_fast || c.table || steinhart_hart);
   const double* b_unit = b.beta_unit;
   bool resolved_at_first = false, marked_any = false;
   for (int it = 1; it <= self_heating_max_iterations; ++it) {
@@ -424,7 +599,10 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
     if (marked)
       for (int u = 0; u < block_size; ++u) moving[u] = s.status[u] == 0 ? moving[u] : 0.0;
     const int open =
-        (newton && it == 1)
+        (newton && it == 1 && steinhart_hart) ? steinhart_hart_newton_block(c, b, t_k, gain, s, moving)
+        : (newton && it == 1 && c.table)
+            ? table_newton_block(c, b, t_k, gain, s, moving)
+        : (newton && it == 1)
             ? self_heating_newton_first(t_k, s.r_el, s.rs, s.vexc, gain, b_unit, s.inv_te, s.te, s.rise_prev, moving,
                                         s.dln_r)
         : simple  ? self_heating_step<true, false>(it, t_k, r_lead, s.r_el, s.rs, s.vexc, s.inv_par, gain, s.te,
@@ -458,6 +636,15 @@ bool solve_element_temperature(const RunConstants& c, BlockUnits& b, const Readi
 void element_at_solution(const RunConstants& c, const BlockUnits& b, bool resolved_at_first, ReadingScratch& s) {
   if (!resolved_at_first) {
     element_resistance(c, b, s);
+    return;
+  }
+  if (c.table || c.d->sensor.kind == SensorKind::steinhart_hart) {
+    // A table's or Steinhart–Hart units: the curve's ln R at the new T_e,
+    // from the step (table_newton_first, steinhart_hart_newton_first); 0
+    // for a unit marked out of table, whose R is 1 as element_resistance
+    // leaves it.
+    Eigen::Map<Block> m(s.r_el);
+    m = Eigen::Map<const Block>(s.ln_new).exp();
     return;
   }
   // Every unit took the Newton step: R at the new T_e from R at the old
