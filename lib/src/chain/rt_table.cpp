@@ -10,23 +10,13 @@ using std::isnan;
 #include <boost/math/interpolators/pchip.hpp>
 #include <boost/math/tools/roots.hpp>
 
+#include "thermargin/chain/hermite_segments.hpp"
 #include "thermargin/core/error.hpp"
 
 namespace thermargin {
 
 namespace {
 
-// PCHIP's end slope (Fritsch, SLATEC PCHIM, 1982; Moler, Numerical Computing
-// with MATLAB §3.4): the three-point one-sided formula, set to 0 when its sign
-// differs from the end interval's and limited to 3 times that interval's slope
-// when the first two slopes differ in sign, which keeps the end monotone.
-// h0, m0 are the end interval's width and slope, h1, m1 the next one's.
-double end_slope(double h0, double h1, double m0, double m1) {
-  const double d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1);
-  if ((d > 0.0) != (m0 > 0.0) || d == 0.0) return 0.0;
-  if ((m0 > 0.0) != (m1 > 0.0) && std::fabs(d) > 3.0 * std::fabs(m0)) return 3.0 * m0;
-  return d;
-}
 
 }  // namespace
 
@@ -43,9 +33,9 @@ struct RtTable::Interpolant {
 // PCHIP of y against x = 1/T (x ascending) with the shape-preserving end slopes.
 std::shared_ptr<const RtTable::Interpolant> RtTable::make_pchip(std::vector<double> x, std::vector<double> y) {
   const std::size_t n = x.size();
-  const double left = end_slope(x[1] - x[0], x[2] - x[1], (y[1] - y[0]) / (x[1] - x[0]),
+  const double left = pchip_end_slope(x[1] - x[0], x[2] - x[1], (y[1] - y[0]) / (x[1] - x[0]),
                                 (y[2] - y[1]) / (x[2] - x[1]));
-  const double right = end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
+  const double right = pchip_end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
                                  (y[n - 2] - y[n - 3]) / (x[n - 2] - x[n - 3]));
   HermiteSegments seg{x, y, {}};
   auto p = std::make_shared<RtTable::Interpolant>(RtTable::Interpolant{{std::move(x), std::move(y), left, right}, {}});

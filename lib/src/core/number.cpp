@@ -294,6 +294,18 @@ std::string significant(double v, int digits) {
   return buf;
 }
 
+namespace {
+
+double exact_power_of_ten(int e) {  // e >= 0
+  static constexpr std::array<double, 23> exact{1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,  1e8,  1e9,  1e10, 1e11,
+                                                1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+  return e <= 22 ? exact[static_cast<std::size_t>(e)] : std::pow(10.0, e);
+}
+
+}  // namespace
+
+double times_power_of_ten(double k, int e) { return e >= 0 ? k * exact_power_of_ten(e) : k / exact_power_of_ten(-e); }
+
 std::string ohms(double r, int digits) { return format_quantity(r, Quantity::resistance, digits); }
 
 std::string percent(double fraction, int decimals) { return fixed(100.0 * fraction, decimals) + " %"; }

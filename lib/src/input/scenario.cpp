@@ -13,6 +13,7 @@
 #include "thermargin/chain/sensor.hpp"
 #include "thermargin/core/text_file.hpp"
 #include "thermargin/core/text.hpp"
+#include "thermargin/core/number.hpp"
 
 namespace po = boost::program_options;
 
@@ -286,15 +287,9 @@ std::string to_ini(const Scenario& s, bool with_help) {
 
 namespace {
 
-std::string general(double v, int digits) {
-  char buf[40];
-  std::snprintf(buf, sizeof buf, "%.*g", digits, v);
-  return buf;
-}
-
 std::string celsius_list(const std::vector<double>& t) {
   std::string out;
-  for (double v : t) out += (out.empty() ? "" : ", ") + general(v, 6);
+  for (double v : t) out += (out.empty() ? "" : ", ") + significant(v, 6);
   return out + " degC";
 }
 
@@ -313,8 +308,8 @@ std::map<std::string, ResolvedValue> resolved_values(const Scenario& s, const De
       try {
         const double v = parse_quantity(st.value, k.quantity, st.where);
         r.number = in_unit(v, k.quantity);
-        r.text = k.quantity == Quantity::plain     ? general(v, coefficient_digits)
-                 : k.quantity == Quantity::integer ? general(v, 17)
+        r.text = k.quantity == Quantity::plain     ? significant(v, coefficient_digits)
+                 : k.quantity == Quantity::integer ? significant(v, 17)
                                                    : format_quantity(v, k.quantity, digits);
       } catch (const input_error&) {
         // A word (none, sensor, fit, auto, a model name) or a list: it stands as written.
@@ -333,15 +328,15 @@ std::map<std::string, ResolvedValue> resolved_values(const Scenario& s, const De
   if (f.conversion == Conversion::steinhart_hart && !f.sh) {
     const SteinhartHart fitted = Firmware(d).steinhart_hart();
     const char* note = " (fitted at t_min, the middle, t_max)";
-    out["firmware.a"] = {general(fitted.a, coefficient_digits) + note, fitted.a};
-    out["firmware.b"] = {general(fitted.b, coefficient_digits) + note, fitted.b};
-    out["firmware.c"] = {general(fitted.c, coefficient_digits) + note, fitted.c};
+    out["firmware.a"] = {significant(fitted.a, coefficient_digits) + note, fitted.a};
+    out["firmware.b"] = {significant(fitted.b, coefficient_digits) + note, fitted.b};
+    out["firmware.c"] = {significant(fitted.c, coefficient_digits) + note, fitted.c};
   }
   if (!f.calibration_at.empty()) out["firmware.calibration_at"].text = celsius_list(f.calibration_at);
   const BoardTemperature& b = d.conditions.board;
   out["conditions.board"].text = b.kind == BoardKind::sensor  ? "sensor (the medium's true temperature)"
                                  : b.kind == BoardKind::fixed ? celsius_list({b.min})
-                                                              : general(b.min, digits) + " .. " + celsius_list({b.max});
+                                                              : significant(b.min, digits) + " .. " + celsius_list({b.max});
   return out;
 }
 

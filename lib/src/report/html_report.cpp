@@ -66,7 +66,7 @@ bool plain_number(std::string_view s) {
 }
 
 // A cell that starts like a figure: "-1.25", "10k", "±0.3 K", "−4" (U+2212).
-bool looks_numeric(std::string_view s) {
+bool numeric_cell(std::string_view s) {
   for (std::string_view sign : {"+", "-", "\u00b1", "\u2212"})
     if (s.substr(0, sign.size()) == sign) {
       s.remove_prefix(sign.size());
@@ -313,7 +313,7 @@ HtmlDocument& HtmlDocument::table(const Table& t) {
     for (const auto& row : t.rows) {
       if (c >= row.size() || row[c].empty()) continue;
       any = true;
-      all = all && looks_numeric(row[c]);
+      all = all && numeric_cell(row[c]);
     }
     numeric[c] = any && all;
   }

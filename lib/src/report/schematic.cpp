@@ -10,7 +10,7 @@ namespace thermargin {
 
 namespace {
 
-constexpr int kWidth = 850, kHeight = 330;
+constexpr int kPageWidth = 850, kPageHeight = 330;
 constexpr int kSupplyX = 50, kDividerX = 310, kCapX = 500, kAdcX = 630;
 constexpr int kTop = 40, kNode = 165, kGround = 290;
 
@@ -78,7 +78,7 @@ class Sheet {
     std::snprintf(head, sizeof head,
                   "<svg xmlns=\"http://www.w3.org/2000/svg\" class=\"schematic\" viewBox=\"0 0 %d %d\" width=\"%d\" "
                   "height=\"%d\" role=\"img\">\n",
-                  kWidth, kHeight, kWidth, kHeight);
+                  kPageWidth, kPageHeight, kPageWidth, kPageHeight);
     return std::string(head) + "<title>" + html_escape(title) + "</title>\n" +
            "<g fill=\"none\" stroke=\"#1a1a1a\" stroke-width=\"1.6\">\n" + body_ + "</g>\n" +
            "<g font-family=\"system-ui, sans-serif\" font-size=\"13\" fill=\"#1a1a1a\">\n" + texts_ + "</g>\n</svg>\n";

@@ -11,6 +11,7 @@
 #include <string>
 
 #include "svg_internal.hpp"
+#include "thermargin/core/number.hpp"
 #include "thermargin/report/svg_chart.hpp"
 
 namespace thermargin::svg {
@@ -36,17 +37,9 @@ namespace {
 
 using detail::bug;
 
-double pow10i(int e) {
-  static constexpr std::array<double, 23> exact{1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
-                                                1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
-                                                1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
-  if (e >= 0 && e <= 22) return exact[static_cast<std::size_t>(e)];
-  return std::pow(10.0, e);
-}
-
-// k * 10^e as the double nearest the decimal number: an exact integer times or
-// divided by an exact power of ten rounds once, so 2 * 10^-1 is exactly 0.2.
-double scaled(double k, int e) { return e >= 0 ? k * pow10i(e) : k / pow10i(-e); }
+// k * 10^e (times_power_of_ten, number.hpp) is the double nearest the decimal
+// number: an exact integer times or divided by an exact power of ten rounds
+// once, so 2 * 10^-1 is exactly 0.2.
 
 // The 1-2-5 sequence as an integer index: n = 3e + {0, 1, 2} stands for
 // {1, 2, 5} * 10^e, so neighbouring indices are neighbouring round steps.
@@ -55,7 +48,7 @@ int mantissa_of(int n) {
   static constexpr std::array<int, 3> m{1, 2, 5};
   return m[static_cast<std::size_t>(n - 3 * decade_of(n))];
 }
-double seq125(int n) { return scaled(mantissa_of(n), decade_of(n)); }
+double seq125(int n) { return times_power_of_ten(mantissa_of(n), decade_of(n)); }
 int floor125(double v) {  // largest n with seq125(n) <= v
   int n = 3 * static_cast<int>(std::floor(std::log10(v))) + 5;
   while (seq125(n) > v * (1 + 1e-12)) --n;
@@ -72,8 +65,8 @@ struct Step {
   int mant = 1;
   int exp = 0;
   static Step of(int n) { return {mantissa_of(n), decade_of(n)}; }
-  double value() const { return scaled(mant, exp); }
-  double at(double k) const { return scaled(k * mant + 0.0, exp); }  // + 0.0: no -0
+  double value() const { return times_power_of_ten(mant, exp); }
+  double at(double k) const { return times_power_of_ten(k * mant + 0.0, exp); }  // + 0.0: no -0
 };
 
 std::string with_true_minus(std::string s) {
@@ -81,19 +74,13 @@ std::string with_true_minus(std::string s) {
   return s;
 }
 
-std::string general(double v, int precision) {
-  char buf[48];
-  auto r = std::to_chars(buf, buf + sizeof buf, v, std::chars_format::general, precision);
-  return std::string(buf, r.ptr);
-}
-
 std::string si_label(double v) {
   if (v == 0) return "0";
   static constexpr std::array<const char*, 9> prefix{"p", "n", "\u00b5", "m", "", "k", "M", "G", "T"};
   int g = static_cast<int>(std::floor(std::log10(std::fabs(v)) / 3.0 + 1e-12)) * 3;
   g = std::clamp(g, -12, 12);
-  double mant = g >= 0 ? v / pow10i(g) : v * pow10i(-g);
-  return with_true_minus(general(mant, 6) + prefix[static_cast<std::size_t>(g / 3 + 4)]);
+  double mant = times_power_of_ten(v, -g);
+  return with_true_minus(significant(mant, 6) + prefix[static_cast<std::size_t>(g / 3 + 4)]);
 }
 
 std::string superscript(int n) {
@@ -108,10 +95,10 @@ std::string superscript(int n) {
 // decade suits a log axis; a linear axis keeps "1×10⁹" beside "2×10⁹".
 std::string power_label(double v, bool bare_decade) {
   double a = std::fabs(v);
-  if (v == 0 || (a >= 1e-4 && a < 1e6)) return with_true_minus(general(v, 6));
+  if (v == 0 || (a >= 1e-4 && a < 1e6)) return with_true_minus(significant(v, 6));
   int e = static_cast<int>(std::floor(std::log10(a) + 1e-12));
-  double mant = v / scaled(1, e);
-  std::string m = general(mant, 6);
+  double mant = v / times_power_of_ten(1, e);
+  std::string m = significant(mant, 6);
   std::string s = bare_decade && m == "1" ? std::string() : m + "\u00d7";
   s += "10";
   s += superscript(e);

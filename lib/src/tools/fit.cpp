@@ -19,6 +19,7 @@ using std::isnan;
 
 #include "thermargin/chain/rt_table.hpp"
 #include "thermargin/core/error.hpp"
+#include "thermargin/chain/hermite_segments.hpp"
 #include "thermargin/core/text.hpp"
 
 namespace thermargin {
@@ -191,17 +192,10 @@ struct Interpolation {
   std::optional<boost::math::interpolators::pchip<std::vector<double>>> curve;
 };
 
-// The slope at an end of the data: Boost's default (the end secant) is only
-// first-order and shows up as a spurious between-point error in the end
-// intervals; the shape-preserving three-point formula (C. Moler, Numerical
-// Computing with MATLAB, SIAM 2004, §3.4) is second-order. h1, d1: the end
-// interval's width and secant; h2, d2: its neighbour's.
-double end_slope(double h1, double h2, double d1, double d2) {
-  const double d = ((2.0 * h1 + h2) * d1 - h1 * d2) / (h1 + h2);
-  if ((d > 0.0) != (d1 > 0.0)) return 0.0;
-  if ((d1 > 0.0) != (d2 > 0.0) && std::abs(d) > std::abs(3.0 * d1)) return 3.0 * d1;
-  return d;
-}
+// The data's interpolant in ln R against 1/T. Its end slopes are PCHIP's
+// three-point ones (pchip_end_slope, hermite_segments.hpp), as in the R-T
+// table: Boost's default (the end secant) is only first-order and shows up
+// as a spurious between-point error in the end intervals.
 
 Interpolation make_interpolation(const std::vector<Point>& pts, const std::vector<bool>& in_window) {
   std::vector<std::size_t> order(pts.size());
@@ -219,8 +213,8 @@ Interpolation make_interpolation(const std::vector<Point>& pts, const std::vecto
   if (n >= 4) {
     const auto& x = in.inv_t;
     const auto& y = in.ln_r;
-    const double left = end_slope(x[1] - x[0], x[2] - x[1], (y[1] - y[0]) / (x[1] - x[0]), (y[2] - y[1]) / (x[2] - x[1]));
-    const double right = end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
+    const double left = pchip_end_slope(x[1] - x[0], x[2] - x[1], (y[1] - y[0]) / (x[1] - x[0]), (y[2] - y[1]) / (x[2] - x[1]));
+    const double right = pchip_end_slope(x[n - 1] - x[n - 2], x[n - 2] - x[n - 3], (y[n - 1] - y[n - 2]) / (x[n - 1] - x[n - 2]),
                                    (y[n - 2] - y[n - 3]) / (x[n - 2] - x[n - 3]));
     std::vector<double> xs = x;
     std::vector<double> ys = y;

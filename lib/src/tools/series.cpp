@@ -1,4 +1,5 @@
 #include "thermargin/tools/series.hpp"
+#include "thermargin/core/number.hpp"
 
 #include <algorithm>
 #include <cassert>
@@ -34,19 +35,6 @@ std::vector<int> e192_figures() {
   // The one published departure from the formula.
   std::replace(v.begin(), v.end(), 919, 920);
   return v;
-}
-
-// 10^e as an exact double for the decades a resistor can have.
-double power_of_ten(int e) {
-  double p = 1.0;
-  for (int i = 0; i < std::abs(e); ++i) p *= 10.0;
-  return p;
-}
-
-// figure·10^e, exactly rounded (one multiplication or division by an exact
-// power of ten).
-double scaled(int figure, int e) {
-  return e >= 0 ? figure * power_of_ten(e) : figure / power_of_ten(-e);
 }
 
 int figure_digits(Series s) { return s == Series::e12 || s == Series::e24 ? 2 : 3; }
@@ -112,7 +100,7 @@ std::vector<double> series_values(Series s, double low, double high) {
   const int last = static_cast<int>(std::floor(std::log10(high))) + 1;
   for (int e = first; e <= last; ++e)
     for (int f : figures) {
-      const double v = scaled(f, e);
+      const double v = times_power_of_ten(f, e);
       if (v >= low * (1.0 - membership_tolerance) && v <= high * (1.0 + membership_tolerance)) out.push_back(v);
     }
   std::sort(out.begin(), out.end());

@@ -34,6 +34,18 @@ inline double hermite_piece_slope(double x0, double x1, double y0, double y1, do
   return 6.0 * t * (t - 1.0) * ((y0 - y1) / dx) + s0 * (1.0 - t) * (1.0 - 3.0 * t) + s1 * t * (3.0 * t - 2.0);
 }
 
+// PCHIP's end slope (Fritsch, SLATEC PCHIM, 1982; Moler, Numerical Computing
+// with MATLAB §3.4): the three-point one-sided formula, set to 0 when its sign
+// differs from the end interval's and limited to 3 times that interval's slope
+// when the first two slopes differ in sign, which keeps the end monotone.
+// h0, m0 are the end interval's width and slope, h1, m1 the next one's.
+inline double pchip_end_slope(double h0, double h1, double m0, double m1) {
+  const double d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1);
+  if ((d > 0.0) != (m0 > 0.0) || d == 0.0) return 0.0;
+  if ((m0 > 0.0) != (m1 > 0.0) && std::fabs(d) > 3.0 * std::fabs(m0)) return 3.0 * m0;
+  return d;
+}
+
 struct HermiteSegments {
   std::vector<double> x, y, slope;  // x ascending, at least two points
 

@@ -55,6 +55,10 @@ std::string fixed(double v, int decimals);
 // columns print so that a reader gets every digit that counts.
 std::string significant(double v, int digits = 10);
 
+// k·10^e, exactly rounded: one multiplication or division by 10^|e|, which
+// is an exact double for |e| <= 22 (std::pow beyond).
+double times_power_of_ten(double k, int e);
+
 // A resistance in engineering notation, format_quantity's form: ohms(4700).
 std::string ohms(double r, int digits = 4);
 
