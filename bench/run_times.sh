@@ -5,7 +5,7 @@
 # makes (docs/engines.md, "Speed", keeps the figures with the machine and
 # its load): budget on the built-in default design, with and without the
 # ADC noise, on 1 and 2 threads; a Pt1000 design, and each sensor in the
-# other's chain; the worst case of a
+# other's chain; an R-T table sensor and its beta NTC; the worst case of a
 # 14-input design; grades over 54 combinations of a Pt1000 design; pick over
 # E96 on the 14-input design; and the independent NumPy simulation of the
 # default design for comparison. Builds first if needed.
@@ -55,6 +55,15 @@ run "budget, the Pt1000 design with a 1 kOhm NTC in place, 1e5 units" 100000 $pt
   --montecarlo.units=100000 --montecarlo.threads=1 $q
 run "budget, default design with a Pt1000 in place, 1e5 units, 1 thread" 100000 $default_t "$bin" budget \
   --sensor.model=rtd --sensor.r0=1k --sensor.rtd_class=B --divider.r_fixed=1k --firmware.conversion=exact \
+  --montecarlo.units=100000 --montecarlo.threads=1 $q
+# A table sensor with limit columns, and the same chain with the beta NTC
+# that `thermargin fit` gives for its table (BM_MonteCarloBlockKernelFreezer*).
+freezer=scenarios/freezer_probe_limits.ini
+freezer_t=101  # -40..10 degC in 0.5 K steps
+run "budget, freezer R-T table with limit columns, 1e5 units, 1 thread" 100000 $freezer_t "$bin" budget $freezer \
+  --montecarlo.units=100000 --montecarlo.threads=1 $q
+run "budget, the freezer with its beta NTC in place, 1e5 units" 100000 $freezer_t "$bin" budget $freezer \
+  --sensor.model=beta --sensor.r25=10k --sensor.beta=3972.53 --sensor.r25_tol=0.777% --sensor.beta_tol=0.914% \
   --montecarlo.units=100000 --montecarlo.threads=1 $q
 run "budget, 14 active inputs (2^14 corners), no Monte Carlo" 0 0 "$bin" budget bench/fourteen_inputs.ini --no-mc --montecarlo.threads=2 $q
 run "grades, Pt1000, 54 combinations, 1e4 units each" 0 0 "$bin" grades $pt1000 --catalogue bench/pt1000_oven_catalogue.csv --units 10000 --volume 10000 $q
