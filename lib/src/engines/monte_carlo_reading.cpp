@@ -81,6 +81,24 @@ int self_heating_step(int it, double t_k, double r_lead, const double* __restric
   return open;
 }
 
+// The Newton step on F(T_e) = T + rise(T_e) − T_e at te, for an element of
+// resistance r with d ln R/dT_e = l1 fed through rf: the rise there, x =
+// R/(R_f + R), d rise/dT_e, the fixed-point step's T_e (next) and step, and
+// the Newton increment. Shared by every sensor's first step below.
+struct HeatingNewton {
+  double rise, x, slope, next, step, delta;
+};
+[[gnu::always_inline]] inline HeatingNewton heating_newton(double r, double rf, double vexc, double gain, double t_k,
+                                                           double te, double l1) {
+  const double sum = rf + r;
+  const double rise = gain * vexc * vexc * r / (sum * sum);
+  const double x = r / sum;
+  const double slope = rise * (1.0 - 2.0 * x) * l1;  // d rise/dT_e
+  const double next = t_k + rise;
+  const double step = next - te;
+  return {rise, x, slope, next, step, step / (1.0 - slope)};
+}
+
 // The first step of the self-heating solve for a beta sensor without leads
 // or a parallel resistor, as a Newton step on F(T_e) = T + rise(T_e) − T_e,
 // with the derivative in closed form. With x = R/(R_f + R) and L = ln R,
@@ -102,17 +120,11 @@ int self_heating_newton_first(double t_k, const double* __restrict r_el, const d
                               double* __restrict rise_prev, double* __restrict moving, double* __restrict dln_r) {
   int open = 0;
   for (int u = 0; u < block_size; ++u) {
-    const double r = r_el[u];
-    const double sum = rf[u] + r;
-    const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
-    const double x = r / sum;
     const double inv_t = inv_te[u];  // 1/T_e, as element_resistance() took it
     const double l1 = -b_unit[u] * inv_t * inv_t, l2 = -2.0 * l1 * inv_t;
-    const double slope = rise * (1.0 - 2.0 * x) * l1;  // d rise/dT_e
-    const double q = std::fabs(slope);
-    const double next = t_k + rise;
-    const double step = next - te[u];
-    const double delta = step / (1.0 - slope);
+    const HeatingNewton n = heating_newton(r_el[u], rf[u], vexc[u], gain[u], t_k, te[u], l1);
+    const double rise = n.rise, x = n.x, delta = n.delta;
+    const double q = std::fabs(n.slope);
     const double te_newton = te[u] + delta;
     const double dl = b_unit[u] * (1.0 / te_newton - inv_t);
     // |F''| at T_e, plus what it can change over the step (its terms move
@@ -122,8 +134,8 @@ int self_heating_newton_first(double t_k, const double* __restrict r_el, const d
     const double c = (std::fabs(f2) + 4.0 * std::fabs(dl) * bound) / (1.0 - std::min(q, 0.5));
     const bool accept = (q <= 0.5) & (c * delta * delta <= self_heating_tolerance) & (std::fabs(dl) <= 1e-3);
     const bool active = moving[u] != 0.0;
-    te[u] = !active ? te[u] : accept ? te_newton : next;
-    rise_prev[u] = active ? step : rise_prev[u];
+    te[u] = !active ? te[u] : accept ? te_newton : n.next;
+    rise_prev[u] = active ? n.step : rise_prev[u];
     dln_r[u] = (active & accept) ? dl : 0.0;
     moving[u] = (active & !accept) ? 1.0 : 0.0;
     open += moving[u] != 0.0;
@@ -367,6 +379,23 @@ void table_pieces_ln(const TablePieces& k, const double* __restrict xs, const do
   return true;
 }
 
+// Newton's error term over I = T_e ± reach for the table's and the
+// Steinhart–Hart sensor's first step (table_newton_first), from bounds L1,
+// L2 of |d ln R/dT| and |d² ln R/dT²| on I and w·reach ≤ ½: ln R moves by
+// at most a = L1·reach there, the rise by at most a relative 2a, the loop
+// gain is q ≤ rise_max·L1 and the iterate within 4.5·|F''|/(1 − q)·δ² ≤
+// 9·rise_max·(L1² + L2)·δ² of the root. Whether that is within the solve's
+// tolerance, with q ≤ ½ and a ≤ 1e-3.
+[[gnu::always_inline]] inline bool error_term_accepts(double rise, double big_l1, double big_l2, double reach, double v,
+                                                      double delta) {
+  const double a = big_l1 * reach;  // |Δ ln R| over I
+  const double rise_max = rise * (1.0 + 2.0 * a);
+  const double q = rise_max * big_l1;
+  const double f2 = rise_max * (big_l1 * big_l1 + big_l2);
+  const double error = 9.0 * f2 * delta * delta;  // 4.5·f2/(1 − q)·δ², q ≤ ½
+  return (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance);
+}
+
 // The first step of the self-heating solve for a table sensor without
 // leads or a parallel resistor: the beta sensor's Newton step
 // (self_heating_newton_first) with ln R and its slope from the unit's piece
@@ -404,18 +433,12 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
                lm2 = k.lower_m2;
   int open = 0;
   for (int u = 0; u < block_size; ++u) {
-    const double r = r_el[u];
-    const double sum = rf[u] + r;
-    const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
-    const double x = r / sum;
     const double te = te_io[u], v = inv_te[u];  // 1/T_e, as table_ln_resistance took it
     const int i = piece[u];
     const double zu = z[u], stretch = 1.0 + d_beta[u];
     const double l1 = -stretch * table_ln_slope_at<Limits>(t, i, v, zu) * v * v;  // d ln R/dT_e
-    const double slope = rise * (1.0 - 2.0 * x) * l1;                               // d rise/dT_e
-    const double next = t_k + rise;
-    const double step = next - te;
-    const double delta = step / (1.0 - slope);
+    const HeatingNewton n = heating_newton(r_el[u], rf[u], vexc[u], gain[u], t_k, te, l1);
+    const double delta = n.delta;
     const double te_newton = te + delta;
     // The error term over I, where 1/T ≤ w = v·(1 + 2·reach·v) (1/(1 − ε) ≤
     // 1 + 2ε for ε ≤ ½).
@@ -424,21 +447,15 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
     const double m1 = std::fabs(stretch) * (cm1 + share * (zu > 0.0 ? um1 : lm1));
     const double m2 = std::fabs(stretch) * (cm2 + share * (zu > 0.0 ? um2 : lm2));
     const double big_l1 = m1 * w * w, big_l2 = (m2 * w + 2.0 * m1) * w * w * w;
-    const double a = big_l1 * reach;  // |Δ ln R| over I
-    const double rise_max = rise * (1.0 + 2.0 * a);
-    const double q = rise_max * big_l1;
-    const double f2 = rise_max * (big_l1 * big_l1 + big_l2);
-    const double error = 9.0 * f2 * delta * delta;  // 4.5·f2/(1 − q)·δ², q ≤ ½
     const double v_new = 1.0 / te_newton;
     const bool inside = (t_min >= t_lo) & (te + reach <= t_hi) & (te_newton >= t_lo + 1e-6) & (te_newton <= t_hi - 1e-6);
     const bool same_piece = (v_new >= t.x[i]) & (v_new < t.x[i + 1]);
-    const bool accept =
-        (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance) & inside & same_piece;
+    const bool accept = error_term_accepts(n.rise, big_l1, big_l2, reach, v, delta) & inside & same_piece;
     const double l_new =
         ntc_unit_ln(table_ln_at<Limits>(t, i, v_new, zu), ln_r0, shift[u], stretch, drift[u]);
     const bool active = moving[u] != 0.0;
-    te_io[u] = !active ? te : accept ? te_newton : next;
-    rise_prev[u] = active ? step : rise_prev[u];
+    te_io[u] = !active ? te_io[u] : accept ? te_newton : n.next;
+    rise_prev[u] = active ? n.step : rise_prev[u];
     ln_new[u] = (active & accept) ? l_new : 0.0;
     moving[u] = (active & !accept) ? 1.0 : 0.0;
     open += moving[u] != 0.0;
@@ -475,17 +492,11 @@ int steinhart_hart_newton_first(const SteinhartHart sh, double ln_r0, double t_k
                                 double* __restrict moving, double* __restrict ln_new) {
   int open = 0;
   for (int u = 0; u < block_size; ++u) {
-    const double r = r_el[u];
-    const double sum = rf[u] + r;
-    const double rise = gain[u] * vexc[u] * vexc[u] * r / (sum * sum);
-    const double x = r / sum;
     const double te = te_io[u], v = 1.0 / te;
     const double l = ln_curve[u], stretch = 1.0 + d_beta[u];
     const double l1 = -stretch * v * v / (sh.b + 3.0 * sh.c * l * l);  // d ln R/dT_e
-    const double slope = rise * (1.0 - 2.0 * x) * l1;                  // d rise/dT_e
-    const double next = t_k + rise;
-    const double step = next - te;
-    const double delta = step / (1.0 - slope);
+    const HeatingNewton n = heating_newton(r_el[u], rf[u], vexc[u], gain[u], t_k, te, l1);
+    const double delta = n.delta;
     const double te_newton = te + delta;
     // The error term over I = T_e ± 4|δ|, where 1/T ≤ w (as the table's).
     const double reach = 4.0 * std::fabs(delta), w = v * (1.0 + 2.0 * reach * v);
@@ -494,15 +505,11 @@ int steinhart_hart_newton_first(const SteinhartHart sh, double ln_r0, double t_k
     const double big_l1 = std::fabs(stretch) * curve_l1 * (1.0 + 1e-6);
     const double big_l2 =
         std::fabs(stretch) * (2.0 * w * w * w / sh.b + 6.0 * sh.c * l_max * curve_l1 * curve_l1 / sh.b) * (1.0 + 1e-6);
-    const double a = big_l1 * reach;  // |Δ ln R| over I
-    const double rise_max = rise * (1.0 + 2.0 * a);
-    const double q = rise_max * big_l1;
-    const double error = 9.0 * rise_max * (big_l1 * big_l1 + big_l2) * delta * delta;
-    const bool accept = (q <= 0.5) & (a <= 1e-3) & (reach * v <= 0.5) & (error <= self_heating_tolerance);
+    const bool accept = error_term_accepts(n.rise, big_l1, big_l2, reach, v, delta);
     const double l_new = ntc_unit_ln(ln_resistance(sh, te_newton), ln_r0, shift[u], stretch, drift[u]);
     const bool active = moving[u] != 0.0;
-    te_io[u] = !active ? te : accept ? te_newton : next;
-    rise_prev[u] = active ? step : rise_prev[u];
+    te_io[u] = !active ? te_io[u] : accept ? te_newton : n.next;
+    rise_prev[u] = active ? n.step : rise_prev[u];
     ln_new[u] = (active & accept) ? l_new : 0.0;
     moving[u] = (active & !accept) ? 1.0 : 0.0;
     open += moving[u] != 0.0;
