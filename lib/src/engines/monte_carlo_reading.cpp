@@ -99,6 +99,21 @@ struct HeatingNewton {
   return {rise, x, slope, next, step, step / (1.0 - slope)};
 }
 
+// Unit u's state after the first step: T_e at the Newton iterate where it
+// was accepted (and `kept`, what the step found for its R, in out[u]), at
+// the fixed-point step's elsewhere; still moving only where it was not.
+// Returns whether the unit still moves.
+[[gnu::always_inline]] inline bool first_step_taken(int u, bool accept, double te_newton, const HeatingNewton& n,
+                                                    double kept, double* __restrict te, double* __restrict rise_prev,
+                                                    double* __restrict moving, double* __restrict out) {
+  const bool active = moving[u] != 0.0;
+  te[u] = !active ? te[u] : accept ? te_newton : n.next;
+  rise_prev[u] = active ? n.step : rise_prev[u];
+  out[u] = (active & accept) ? kept : 0.0;
+  moving[u] = (active & !accept) ? 1.0 : 0.0;
+  return moving[u] != 0.0;
+}
+
 // The first step of the self-heating solve for a beta sensor without leads
 // or a parallel resistor, as a Newton step on F(T_e) = T + rise(T_e) − T_e,
 // with the derivative in closed form. With x = R/(R_f + R) and L = ln R,
@@ -133,12 +148,7 @@ int self_heating_newton_first(double t_k, const double* __restrict r_el, const d
     const double f2 = rise * (((1.0 - 2.0 * x) * (1.0 - 2.0 * x) - 2.0 * x * (1.0 - x)) * l1 * l1 + (1.0 - 2.0 * x) * l2);
     const double c = (std::fabs(f2) + 4.0 * std::fabs(dl) * bound) / (1.0 - std::min(q, 0.5));
     const bool accept = (q <= 0.5) & (c * delta * delta <= self_heating_tolerance) & (std::fabs(dl) <= 1e-3);
-    const bool active = moving[u] != 0.0;
-    te[u] = !active ? te[u] : accept ? te_newton : n.next;
-    rise_prev[u] = active ? n.step : rise_prev[u];
-    dln_r[u] = (active & accept) ? dl : 0.0;
-    moving[u] = (active & !accept) ? 1.0 : 0.0;
-    open += moving[u] != 0.0;
+    open += first_step_taken(u, accept, te_newton, n, dl, te, rise_prev, moving, dln_r);
   }
   return open;
 }
@@ -453,12 +463,7 @@ int table_newton_first(const TablePieces& k, const double* __restrict xs, const 
     const bool accept = error_term_accepts(n.rise, big_l1, big_l2, reach, v, delta) & inside & same_piece;
     const double l_new =
         ntc_unit_ln(table_ln_at<Limits>(t, i, v_new, zu), ln_r0, shift[u], stretch, drift[u]);
-    const bool active = moving[u] != 0.0;
-    te_io[u] = !active ? te_io[u] : accept ? te_newton : n.next;
-    rise_prev[u] = active ? n.step : rise_prev[u];
-    ln_new[u] = (active & accept) ? l_new : 0.0;
-    moving[u] = (active & !accept) ? 1.0 : 0.0;
-    open += moving[u] != 0.0;
+    open += first_step_taken(u, accept, te_newton, n, l_new, te_io, rise_prev, moving, ln_new);
   }
   return open;
 }
@@ -507,12 +512,7 @@ int steinhart_hart_newton_first(const SteinhartHart sh, double ln_r0, double t_k
         std::fabs(stretch) * (2.0 * w * w * w / sh.b + 6.0 * sh.c * l_max * curve_l1 * curve_l1 / sh.b) * (1.0 + 1e-6);
     const bool accept = error_term_accepts(n.rise, big_l1, big_l2, reach, v, delta);
     const double l_new = ntc_unit_ln(ln_resistance(sh, te_newton), ln_r0, shift[u], stretch, drift[u]);
-    const bool active = moving[u] != 0.0;
-    te_io[u] = !active ? te_io[u] : accept ? te_newton : n.next;
-    rise_prev[u] = active ? n.step : rise_prev[u];
-    ln_new[u] = (active & accept) ? l_new : 0.0;
-    moving[u] = (active & !accept) ? 1.0 : 0.0;
-    open += moving[u] != 0.0;
+    open += first_step_taken(u, accept, te_newton, n, l_new, te_io, rise_prev, moving, ln_new);
   }
   return open;
 }
