@@ -1,7 +1,8 @@
 // Checks of the shared text rules (text.hpp). The white space trimmed is the
 // C locale's isspace set (ISO C, 7.4.1.10: space, \t, \n, \v, \f, \r); the
 // numbers are printf's conversions (ISO C, 7.21.6.1), written out here by
-// hand for the formats the writers use.
+// hand for the formats the writers use. (The clause numbers are C11's, from
+// memory.)
 #include "thermargin/core/text.hpp"
 
 #include <string>
