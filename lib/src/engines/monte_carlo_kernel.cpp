@@ -76,16 +76,14 @@ void draw_block(const RunConstants& c, BlockUnits& b, std::uint64_t first, int c
   for (int u = 0; u < block_size; ++u) {
     const Deviations dv = draw_unit(*c.d, first + static_cast<std::uint64_t>(u));
     for (int s : c.active) b.dev[s][u] = dv[static_cast<std::size_t>(s)];
-    b.ln_shift[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
-    // The sensor's drift over life shifts ln R like R25's tolerance (sensor.hpp).
-    if (const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u]; drift != 0.0)
-      b.ln_shift[u] += std::log1p(drift);
+    // The sensor's drift over life shifts ln R like R25's tolerance
+    // (sensor.hpp): a beta NTC takes their sum, a table or Steinhart–Hart
+    // sensor each apart, as SensorUnit does.
+    const double drift = b.dev[static_cast<int>(Source::sensor_drift)][u];
+    b.ln_r25[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
+    b.ln_drift[u] = std::log1p(drift);
+    b.ln_shift[u] = drift != 0.0 ? b.ln_r25[u] + b.ln_drift[u] : b.ln_r25[u];
   }
-  if (c.table || c.d->sensor.kind == SensorKind::steinhart_hart)
-    for (int u = 0; u < block_size; ++u) {
-      b.ln_r25[u] = std::log1p(b.dev[static_cast<int>(Source::r25)][u]);
-      b.ln_drift[u] = std::log1p(b.dev[static_cast<int>(Source::sensor_drift)][u]);
-    }
   // The same expressions read_block took at every temperature.
   const double duty_over_delta = c.d->sensor.dissipation > 0.0 ? c.d->divider.duty / c.d->sensor.dissipation : 0.0;
   const double* d_diss = b.dev[static_cast<int>(Source::dissipation)];

@@ -61,11 +61,12 @@ struct BlockUnits {
   std::uint64_t first = 0;
   int count = 0;
   alignas(64) double dev[source_count][block_size];
-  alignas(64) double ln_shift[block_size];  // ln(1 + δR) of each unit (NTC)
-  // A table's or a Steinhart–Hart sensor's units: ln(1 + δR) and ln(1 +
-  // drift), apart (SensorUnit's shift_ and drift_shift_).
+  // Each unit's ln(1 + δR) and ln(1 + drift) (SensorUnit's shift_ and
+  // drift_shift_: a table or Steinhart–Hart sensor reads them apart), and
+  // their sum, as a beta NTC takes it.
   alignas(64) double ln_r25[block_size];
   alignas(64) double ln_drift[block_size];
+  alignas(64) double ln_shift[block_size];
   alignas(64) double cal_reported[2][block_size];
   alignas(64) double cal_reference[2][block_size];
   alignas(64) std::uint8_t cal_ok[block_size];
